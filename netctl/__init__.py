@@ -1,0 +1,61 @@
+"""netctl: structural (graph-based) controllability analysis of large networked systems.
+
+Conventions (stated once here and in DESIGN.md; used everywhere):
+
+* The model is ``dx/dt = A x + B u, y = C x``.
+* An edge ``u -> v`` means "state u influences state v", i.e. ``A[v, u] != 0``.
+* ``B[i, k] != 0`` means input k acts on state i (state i is a *driver node*);
+  ``C[r, i] != 0`` means output r reads state i.
+* Structural analyses look only at the pattern and answer for almost all weights;
+  numeric analyses say which weights they used.
+* Whether states have self-dynamics (self-loops) is an explicit model choice
+  (:mod:`netctl.models`), recorded on every system and in every report.
+
+Results concern a linear(ized) model, not the plant: they do not replace the operator's
+procedures, applicable codes or the judgement of licensed engineers.
+"""
+
+from netctl.errors import (
+    InvalidSystemError,
+    MissingFileError,
+    NetctlError,
+    NetworkFileError,
+    OptionError,
+    UnknownNameError,
+)
+from netctl.structural import (
+    ControllabilityReport,
+    InputDesign,
+    NetworkSummary,
+    controllability,
+    is_structurally_controllable,
+    is_structurally_observable,
+    minimum_inputs,
+    minimum_sensors,
+    observability,
+    summarize,
+)
+from netctl.system import StructuredSystem
+
+__version__ = "0.1.0"
+
+__all__ = [
+    "ControllabilityReport",
+    "InputDesign",
+    "InvalidSystemError",
+    "MissingFileError",
+    "NetctlError",
+    "NetworkFileError",
+    "NetworkSummary",
+    "OptionError",
+    "StructuredSystem",
+    "UnknownNameError",
+    "__version__",
+    "controllability",
+    "is_structurally_controllable",
+    "is_structurally_observable",
+    "minimum_inputs",
+    "minimum_sensors",
+    "observability",
+    "summarize",
+]

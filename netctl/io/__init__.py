@@ -1,0 +1,95 @@
+"""Reading and writing networks and systems: one module a format, one entry point.
+
+``read(path, format=None)`` detects the format from the file name (``.gz`` is looked
+through) and returns a :class:`~netctl.system.StructuredSystem`. Every reader reports
+problems as :class:`~netctl.errors.NetworkFileError` naming the file and line.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Callable
+from pathlib import Path
+
+from netctl.errors import OptionError
+from netctl.io._common import atomic_write
+from netctl.io.edgelist import read_edgelist, write_edgelist
+from netctl.io.mtx import read_mtx, write_mtx
+from netctl.system import StructuredSystem
+
+__all__ = ["FORMATS", "atomic_write", "detect_format", "read", "read_state_list", "write"]
+
+Reader = Callable[..., StructuredSystem]
+Writer = Callable[[StructuredSystem, "str | os.PathLike[str]"], None]
+
+#: format name -> (reader, writer, file suffixes)
+FORMATS: dict[str, tuple[Reader, Writer | None, tuple[str, ...]]] = {
+    "edgelist": (read_edgelist, write_edgelist, (".csv", ".tsv", ".txt", ".edges", ".el")),
+    "mtx": (read_mtx, write_mtx, (".mtx", ".mm")),
+}
+
+
+def detect_format(path: str | os.PathLike[str]) -> str:
+    """The format name for ``path`` from its suffix (``.gz`` looked through).
+
+    Unknown suffixes are read as edge lists, the most common plain format.
+    """
+    name = Path(path).name.lower()
+    if name.endswith(".gz"):
+        name = name[:-3]
+    for fmt, (_, _, suffixes) in FORMATS.items():
+        if any(name.endswith(s) for s in suffixes):
+            return fmt
+    return "edgelist"
+
+
+def _check_format(format: str) -> None:
+    if format not in FORMATS:
+        raise OptionError(f"unknown format {format!r}; choose one of "
+                          f"{', '.join(sorted(FORMATS))}.")
+
+
+def read(path: str | os.PathLike[str], format: str | None = None, *,
+         model: str = "given") -> StructuredSystem:
+    """Read a network or system file.
+
+    Parameters
+    ----------
+    path : path-like
+    format : str, optional
+        One of :data:`FORMATS`; detected from the suffix when omitted.
+    model : str
+        Recorded as the system's model name (the model transformation itself is applied
+        by :func:`netctl.models.apply_model`).
+    """
+    fmt = format or detect_format(path)
+    _check_format(fmt)
+    return FORMATS[fmt][0](path, model=model)
+
+
+def write(system: StructuredSystem, path: str | os.PathLike[str], format: str | None = None) -> None:
+    """Write ``system`` in ``format`` (detected from the suffix when omitted), atomically."""
+    fmt = format or detect_format(path)
+    _check_format(fmt)
+    writer = FORMATS[fmt][1]
+    if writer is None:
+        raise OptionError(f"netctl cannot write the {fmt!r} format; choose one of "
+                          f"{', '.join(sorted(k for k, v in FORMATS.items() if v[1]))}.")
+    writer(system, path)
+
+
+def read_state_list(text_or_path: str) -> list[str]:
+    """Names from ``"a,b,c"`` or from a file with one name a line (``#`` comments).
+
+    A value that names an existing file is read as a file.
+    """
+    from netctl.io._common import read_text
+
+    p = Path(text_or_path)
+    if p.is_file():
+        out = []
+        for raw in read_text(p).splitlines():
+            line = raw.split("#", 1)[0].strip()
+            out.extend(x.strip() for x in line.split(",") if x.strip())
+        return out
+    return [x.strip() for x in text_or_path.split(",") if x.strip()]

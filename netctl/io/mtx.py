@@ -1,0 +1,104 @@
+"""Matrix Market files: the file holds the state matrix ``A`` itself.
+
+Entry ``(i, j)`` (1-based in the file) nonzero means state ``j`` influences state ``i``
+(``A[i, j] != 0``), the netctl orientation. ``pattern`` files give a pattern;
+``real``/``integer`` files give weights; ``symmetric`` files are expanded.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+
+import numpy as np
+import scipy.io
+import scipy.sparse as sp
+
+from netctl.io._common import atomic_write, file_error, read_bytes
+from netctl.system import StructuredSystem
+
+__all__ = ["read_mtx", "write_mtx"]
+
+#: Refuse headers that claim more entries than this (protects memory).
+MAX_ENTRIES = 2_000_000_000
+
+
+def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
+    """Read a Matrix Market coordinate or array file as ``A``.
+
+    Raises
+    ------
+    NetworkFileError
+        Bad banner, non-square matrix, absurd sizes, malformed entries (with the line).
+    """
+    data = read_bytes(path)
+    lines = data.split(b"\n", 64)
+    banner = lines[0].decode("latin-1").strip().lower().split()
+    if len(banner) < 4 or banner[0] != "%%matrixmarket" or banner[1] != "matrix":
+        raise file_error(path, 1, f"expected a Matrix Market banner such as "
+                         f"'%%MatrixMarket matrix coordinate real general', found "
+                         f"{lines[0][:80].decode('latin-1')!r}.")
+    fmt, field = banner[2], banner[3]
+    symmetry = banner[4] if len(banner) > 4 else "general"
+    if fmt not in ("coordinate", "array"):
+        raise file_error(path, 1, f"unknown Matrix Market format {fmt!r}; expected "
+                         "'coordinate' or 'array'.")
+    if field not in ("real", "integer", "pattern", "double"):
+        raise file_error(path, 1, f"the field {field!r} is not supported; expected 'real', "
+                         "'integer' or 'pattern' (complex weights are not meaningful here).")
+    if symmetry not in ("general", "symmetric", "skew-symmetric"):
+        raise file_error(path, 1, f"the symmetry {symmetry!r} is not supported; expected "
+                         "'general', 'symmetric' or 'skew-symmetric'.")
+    # size line: first non-comment line
+    size_line_no = None
+    for k, raw in enumerate(lines[1:], start=2):
+        s = raw.strip()
+        if s and not s.startswith(b"%"):
+            size_line_no = k
+            parts = s.split()
+            break
+    if size_line_no is None:
+        raise file_error(path, None, "the size line ('rows cols entries') is missing.")
+    try:
+        dims = [int(x) for x in parts]
+    except ValueError:
+        raise file_error(path, size_line_no, f"expected the size line 'rows cols entries', "
+                         f"found {raw.strip().decode('latin-1')!r}.") from None
+    want = 3 if fmt == "coordinate" else 2
+    if len(dims) != want or min(dims) < 0:
+        raise file_error(path, size_line_no, f"expected {want} non-negative integers on the "
+                         f"size line, found {raw.strip().decode('latin-1')!r}.")
+    if dims[0] != dims[1]:
+        raise file_error(path, size_line_no, f"the matrix is {dims[0]} x {dims[1]}; a state "
+                         "matrix A must be square (n x n).")
+    claimed = dims[2] if fmt == "coordinate" else dims[0] * dims[1]
+    if claimed > MAX_ENTRIES or dims[0] > MAX_ENTRIES:
+        raise file_error(path, size_line_no, f"the header claims {claimed} entries, more than "
+                         f"netctl reads ({MAX_ENTRIES}); check the size line.")
+    try:
+        M = scipy.io.mmread(io.BytesIO(data))
+    except Exception as exc:  # scipy raises ValueError/OverflowError/... without a line
+        raise file_error(path, None, f"could not read the entries: {exc}. Each entry line "
+                         "must be 'row col [value]' with 1-based indices.") from None
+    A = sp.csr_array(M) if sp.issparse(M) else sp.csr_array(np.asarray(M))
+    if field == "pattern":
+        A = sp.csr_array((np.ones(A.nnz), A.indices, A.indptr), shape=A.shape)
+    if A.nnz and not np.all(np.isfinite(A.data)):
+        raise file_error(path, None, "some values are NaN or infinite; give finite weights.")
+    n_zero = int(np.count_nonzero(A.data == 0))
+    if n_zero:
+        import warnings
+        warnings.warn(f"{path}: {n_zero} explicitly stored zero entr"
+                      f"{'y is' if n_zero == 1 else 'ies are'} not links and were left out.",
+                      stacklevel=2)
+    return StructuredSystem.from_matrices(A, weighted=field != "pattern", model=model)
+
+
+def write_mtx(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+    """Write ``A`` as a Matrix Market coordinate file (pattern unless weighted)."""
+    A = sp.coo_matrix(system.A)
+    buf = io.BytesIO()
+    scipy.io.mmwrite(buf, A, field="real" if system.weighted else "pattern",
+                     comment=" netctl: A[i, j] != 0 means state j influences state i")
+    with atomic_write(path, "wb") as fh:
+        fh.write(buf.getvalue())

@@ -1,0 +1,239 @@
+"""Minimum inputs (driver nodes) and minimum sensors, and a summary of a network."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sp
+
+from netctl.structural._engine import completion, structure_of
+from netctl.system import StructuredSystem
+
+__all__ = ["InputDesign", "minimum_inputs", "minimum_sensors", "NetworkSummary", "summarize"]
+
+
+@dataclass(frozen=True)
+class InputDesign:
+    """A minimum input (or sensor) design.
+
+    Attributes
+    ----------
+    kind : {"inputs", "sensors"}
+    dedicated : bool
+        Whether each input acts on exactly one state.
+    n_inputs : int
+        The minimum number of inputs (sensors).
+    drivers : ndarray of int
+        The states acted on (read) directly, sorted.
+    unmatched : ndarray of int
+        The states left unmatched by the chosen maximum matching (Liu et al. 2011).
+    wiring : tuple of ndarray
+        For each input, the states it acts on.
+    matching_size : int
+        Size of a maximum matching of ``A`` (its structural rank).
+    n_source_components : int
+        Source components of ``A`` (sink components for sensors), ``beta``.
+    n_sources_with_unmatched : int
+        ``alpha``: source components that hold an unmatched state in the chosen matching.
+    """
+
+    kind: str
+    dedicated: bool
+    n_states: int
+    n_inputs: int
+    drivers: np.ndarray
+    unmatched: np.ndarray
+    wiring: tuple[np.ndarray, ...]
+    matching_size: int
+    n_source_components: int
+    n_sources_with_unmatched: int
+    state_names: tuple[str, ...] = field(repr=False)
+    model: str = "given"
+
+    def names(self, indices: Any) -> list[str]:
+        return [self.state_names[int(i)] for i in indices]
+
+    @property
+    def driver_names(self) -> list[str]:
+        return self.names(self.drivers)
+
+    def apply(self, system: StructuredSystem) -> StructuredSystem:
+        """``system`` with this design's inputs (or outputs, for sensors) installed."""
+        n = system.n_states
+        rows = np.concatenate(self.wiring) if self.wiring else np.zeros(0, np.int64)
+        cols = np.repeat(np.arange(len(self.wiring)), [w.size for w in self.wiring])
+        M = sp.coo_array((np.ones(rows.size), (rows, cols)), shape=(n, len(self.wiring)))
+        prefix = "u" if self.kind == "inputs" else "y"
+        names = [f"{prefix}:{self.state_names[int(w[0])]}" if w.size == 1 else f"{prefix}{k}"
+                 for k, w in enumerate(self.wiring)]
+        if self.kind == "inputs":
+            return system.with_inputs(M, names=names)
+        return system.with_outputs(M.T, names=names)
+
+    def to_dict(self) -> dict[str, Any]:
+        single = "input" if self.kind == "inputs" else "sensor"
+        count_key = "n_inputs" if self.kind == "inputs" else "n_sensors"
+        list_key = "drivers" if self.kind == "inputs" else "sensors"
+        return {
+            "analysis": "minimum_" + self.kind,
+            "n_states": self.n_states,
+            count_key: self.n_inputs,
+            "dedicated": self.dedicated,
+            "model": self.model,
+            list_key: self.driver_names,
+            "unmatched": self.names(self.unmatched),
+            "wiring": [{single: k, "states": self.names(w)} for k, w in enumerate(self.wiring)],
+            "structural_rank_A": self.matching_size,
+            "n_source_components" if self.kind == "inputs" else "n_sink_components":
+                self.n_source_components,
+        }
+
+
+def minimum_inputs(system: StructuredSystem, *, dedicated: bool = False) -> InputDesign:
+    r"""Fewest inputs that make ``system`` structurally controllable, and where to put them.
+
+    Existing inputs of ``system`` are ignored (see :func:`controllability` for completing
+    a given design).
+
+    Parameters
+    ----------
+    system : StructuredSystem
+    dedicated : bool, default False
+        False: inputs may act on several states (Liu, Slotine, Barabási [1]_); the count
+        is ``N_D = max(n - |M*|, 1)``. True: each input acts on exactly one state; the
+        count is ``m_u + beta - alpha`` [2]_, [3]_.
+
+    Returns
+    -------
+    InputDesign
+
+    Notes
+    -----
+    With a maximum matching ``M*`` of the bipartite graph of ``A``, the unmatched states
+    need an input each; every *source* strongly connected component (one no other
+    component feeds) must also be reached. Among all maximum matchings, netctl picks one
+    whose unmatched states lie in as many source components as possible (``alpha``), so
+    the set of driven states is as small as possible (it is the dedicated optimum); with
+    shared inputs, input 0 also acts on one state of each source component still
+    unreached. When ``n > 0`` at least one input is needed.
+
+    The minimum set is one of possibly many; ties are broken deterministically by the
+    matching order (state indices). Cost: two maximum matchings and the strongly
+    connected components, near-linear in the number of links.
+
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+    .. [2] C. Commault, J.-M. Dion, "Input addition and leader selection for the
+       controllability of graph-based systems", Automatica 49(11):3322-3328, 2013.
+    .. [3] S. Pequito, S. Kar, A. P. Aguiar, "A framework for structural input/output
+       and control configuration selection in large-scale systems", IEEE TAC
+       61(2):303-318, 2016.
+
+    Examples
+    --------
+    >>> from netctl import StructuredSystem, minimum_inputs
+    >>> star = StructuredSystem.from_edges([0, 0, 0], [1, 2, 3])   # out-star, 3 leaves
+    >>> minimum_inputs(star).n_inputs
+    3
+    """
+    return _design(system, "inputs", dedicated)
+
+
+def minimum_sensors(system: StructuredSystem, *, dedicated: bool = False) -> InputDesign:
+    """Fewest outputs (sensors) that make ``system`` structurally observable.
+
+    The dual of :func:`minimum_inputs`: computed on ``(A^T, C^T)``, so *sink* components
+    (no edge leaving them) must each hold a sensor. Existing outputs are ignored.
+    """
+    return _design(system.dual(), "sensors", dedicated)
+
+
+def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign:
+    if not isinstance(dedicated, bool):
+        from netctl.errors import OptionError
+        raise OptionError(f"dedicated must be True or False, found {dedicated!r}.")
+    n = system.n_states
+    st = structure_of(system.A)
+    comp = completion(system.A, sp.csr_array((n, 0)), st)
+    drivers = comp.states
+    unmatched = comp.unmatched
+    if dedicated or n == 0:
+        wiring = tuple(np.array([i], np.int64) for i in drivers)
+    elif unmatched.size:
+        wiring_l = [np.array([i], np.int64) for i in unmatched]
+        wiring_l[0] = np.union1d(wiring_l[0], comp.representatives).astype(np.int64)
+        wiring = tuple(wiring_l)
+    else:
+        wiring = (comp.representatives.copy(),)
+    return InputDesign(
+        kind=kind, dedicated=dedicated, n_states=n, n_inputs=len(wiring), drivers=drivers,
+        unmatched=unmatched, wiring=wiring, matching_size=comp.matching_size,
+        n_source_components=int(np.count_nonzero(st.source_scc)),
+        n_sources_with_unmatched=comp.n_sources_hit, state_names=system.state_names,
+        model=system.model)
+
+
+@dataclass(frozen=True)
+class NetworkSummary:
+    """Sizes and structural facts of a system (what ``netctl inspect`` prints)."""
+
+    n_states: int
+    n_links: int
+    n_self_loops: int
+    n_inputs_given: int
+    n_outputs_given: int
+    n_weak_components: int
+    n_strong_components: int
+    n_source_components: int
+    n_sink_components: int
+    structural_rank: int
+    n_inputs: int
+    n_dedicated_inputs: int
+    n_sensors: int
+    n_dedicated_sensors: int
+    n_isolated: int
+    weighted: bool
+    model: str
+
+    def to_dict(self) -> dict[str, Any]:
+        return dict(self.__dict__, analysis="summary")
+
+
+def summarize(system: StructuredSystem) -> NetworkSummary:
+    """Sizes, components, structural rank and minimum input / sensor counts.
+
+    The minimum counts are those of :func:`minimum_inputs` (shared inputs and
+    dedicated) and :func:`minimum_sensors` (dedicated sensors = shared, see Notes
+    there), each one near-linear.
+    """
+    from scipy.sparse.csgraph import connected_components
+
+    n = system.n_states
+    st = structure_of(system.A)
+    st_dual = structure_of(system.A.T.tocsr())
+    if n:
+        k_weak, _ = connected_components(sp.csr_matrix(system.A), directed=True,
+                                         connection="weak")
+    else:
+        k_weak = 0
+    comp = completion(system.A, sp.csr_array((n, 0)), st)
+    comp_dual = completion(system.A.T.tocsr(), sp.csr_array((n, 0)), st_dual)
+    deg = np.diff(system.A.indptr) + np.diff(system.A.tocsc().indptr)
+    loops = system.A.diagonal() != 0
+    isolated = int(np.count_nonzero((deg - 2 * loops) == 0))
+    return NetworkSummary(
+        n_states=n, n_links=system.n_links, n_self_loops=system.n_self_loops,
+        n_inputs_given=system.n_inputs, n_outputs_given=system.n_outputs,
+        n_weak_components=int(k_weak), n_strong_components=st.n_scc,
+        n_source_components=int(np.count_nonzero(st.source_scc)),
+        n_sink_components=int(np.count_nonzero(st_dual.source_scc)),
+        structural_rank=comp.matching_size,
+        n_inputs=max(n - comp.matching_size, 1) if n else 0,
+        n_dedicated_inputs=int(comp.states.size),
+        n_sensors=max(n - comp.matching_size, 1) if n else 0,
+        n_dedicated_sensors=int(comp_dual.states.size),
+        n_isolated=isolated, weighted=system.weighted, model=system.model)

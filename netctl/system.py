@@ -1,0 +1,569 @@
+"""The structured linear system ``dx/dt = A x + B u, y = C x``.
+
+Orientation (used everywhere in netctl): an edge ``u -> v`` means "state u influences
+state v", i.e. ``A[v, u] != 0``; ``B[i, k] != 0`` means input k acts on state i;
+``C[r, i] != 0`` means output r reads state i.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sp
+
+from netctl.errors import InvalidSystemError, UnknownNameError
+
+__all__ = ["StructuredSystem", "NODE_COLUMNS", "canonical_csr"]
+
+#: Node-table columns netctl itself understands (others are carried along untouched).
+#: ``x``, ``y``: map coordinates (NaN when unknown); ``actuator`` / ``sensor``: whether the
+#: state may host one; ``actuator_cost`` / ``sensor_cost``: the cost of doing so.
+NODE_COLUMNS: tuple[str, ...] = ("x", "y", "actuator", "actuator_cost", "sensor", "sensor_cost")
+
+
+def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> sp.csr_array:
+    """Return ``matrix`` as a canonical float64 CSR array.
+
+    Canonical means: duplicates summed, explicitly stored zeros removed, column indices
+    sorted. NaN or infinite entries are rejected with a message naming ``what``.
+    """
+    if sp.issparse(matrix):
+        m = sp.csr_array(matrix, dtype=np.float64, copy=True)
+    else:
+        arr = np.asarray(matrix)
+        if arr.dtype == object:
+            raise InvalidSystemError(f"{what} must be numeric, found an object array.")
+        if arr.ndim != 2:
+            raise InvalidSystemError(
+                f"{what} must be two-dimensional, found an array of shape {arr.shape}.")
+        m = sp.csr_array(arr.astype(np.float64))
+    if m.shape != shape:
+        raise InvalidSystemError(
+            f"{what} must have shape {shape}, found {m.shape}. Check the number of states, "
+            "inputs and outputs.")
+    if m.nnz and not np.all(np.isfinite(m.data)):
+        bad = int(np.count_nonzero(~np.isfinite(m.data)))
+        raise InvalidSystemError(
+            f"{what} has {bad} NaN or infinite entr{'y' if bad == 1 else 'ies'}; "
+            "give finite weights, or omit the weights to analyse the pattern only.")
+    m.sum_duplicates()
+    m.eliminate_zeros()
+    m.sort_indices()
+    m.indptr = m.indptr.astype(np.int64, copy=False)
+    m.indices = m.indices.astype(np.int64, copy=False)
+    return m
+
+
+def _names(names: Sequence[object] | None, count: int, prefix: str, what: str) -> tuple[str, ...]:
+    if names is None:
+        return tuple(f"{prefix}{i}" for i in range(count))
+    out = tuple(str(x) for x in names)
+    if len(out) != count:
+        raise InvalidSystemError(f"{what}: expected {count} names, found {len(out)}.")
+    if len(set(out)) != len(out):
+        seen: set[str] = set()
+        dup = next(x for x in out if x in seen or seen.add(x))  # type: ignore[func-returns-value]
+        raise InvalidSystemError(f"{what}: the name {dup!r} is used twice; names must be unique.")
+    return out
+
+
+def _as_index_array(values: Any, upper: int, what: str) -> np.ndarray:
+    arr = np.asarray(values)
+    if arr.size == 0:
+        return np.zeros(0, dtype=np.int64)
+    if arr.ndim != 1:
+        raise InvalidSystemError(f"{what} must be one-dimensional, found shape {arr.shape}.")
+    if not np.issubdtype(arr.dtype, np.integer):
+        if np.issubdtype(arr.dtype, np.floating) and np.all(np.isfinite(arr)) and np.all(
+                arr == np.round(arr)):
+            arr = arr.astype(np.int64)
+        else:
+            raise InvalidSystemError(
+                f"{what} must hold integer state indices, found dtype {arr.dtype}; "
+                "use StructuredSystem.from_named_edges for string names.")
+    arr = arr.astype(np.int64, copy=False)
+    if arr.min() < 0 or arr.max() >= upper:
+        bad = arr[(arr < 0) | (arr >= upper)][0]
+        raise InvalidSystemError(
+            f"{what} holds the index {int(bad)}, outside 0..{upper - 1}; "
+            f"indices count from 0 and there are {upper} states.")
+    return arr
+
+
+def _freeze(a: sp.csr_array) -> sp.csr_array:
+    for arr in (a.data, a.indices, a.indptr):
+        arr.setflags(write=False)
+    return a
+
+
+@dataclass(frozen=True, eq=False)
+class StructuredSystem:
+    """A structured linear system ``dx/dt = A x + B u, y = C x``.
+
+    Build it with one of the ``from_*`` class methods; the constructor validates and
+    canonicalizes whatever it is given (duplicates summed, explicit zeros removed,
+    indices sorted). Instances are immutable: methods that change something return a
+    new system.
+
+    Attributes
+    ----------
+    A, B, C : scipy.sparse.csr_array
+        ``n x n``, ``n x m`` and ``p x n``. The stored entries are the pattern; their
+        values are the weights when ``weighted`` is true (otherwise 1.0).
+    state_names, input_names, output_names : tuple of str
+    nodes : mapping of str to numpy array
+        The node table, one array of length ``n`` per column (see :data:`NODE_COLUMNS`).
+    weighted : bool
+        Whether the values in ``A`` are meaningful weights.
+    model : str
+        How the state-space pattern was obtained from the network (``"given"`` when the
+        matrices were given directly). Reports state it, since self-dynamics change the
+        answer.
+    """
+
+    A: sp.csr_array
+    B: sp.csr_array
+    C: sp.csr_array
+    state_names: tuple[str, ...]
+    input_names: tuple[str, ...]
+    output_names: tuple[str, ...]
+    nodes: Mapping[str, np.ndarray] = field(default_factory=dict)
+    weighted: bool = False
+    model: str = "given"
+    _index: dict[str, int] = field(default_factory=dict, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        n = self.A.shape[0] if hasattr(self.A, "shape") else np.asarray(self.A).shape[0]
+        A = canonical_csr(self.A, (n, n), "A")
+        m = len(self.input_names) if self.B is None else (
+            self.B.shape[1] if hasattr(self.B, "shape") else np.asarray(self.B).shape[1])
+        p = len(self.output_names) if self.C is None else (
+            self.C.shape[0] if hasattr(self.C, "shape") else np.asarray(self.C).shape[0])
+        B = canonical_csr(sp.csr_array((n, m)) if self.B is None else self.B, (n, m), "B")
+        C = canonical_csr(sp.csr_array((p, n)) if self.C is None else self.C, (p, n), "C")
+        states = _names(self.state_names or None, n, "x", "state names")
+        inputs = _names(self.input_names or None, m, "u", "input names")
+        outputs = _names(self.output_names or None, p, "y", "output names")
+        nodes: dict[str, np.ndarray] = {}
+        for key, col in dict(self.nodes).items():
+            arr = np.array(col, copy=True)
+            if arr.shape != (n,):
+                raise InvalidSystemError(
+                    f"node table column {key!r} must have one value per state ({n}), "
+                    f"found shape {arr.shape}.")
+            arr.setflags(write=False)
+            nodes[str(key)] = arr
+        object.__setattr__(self, "A", _freeze(A))
+        object.__setattr__(self, "B", _freeze(B))
+        object.__setattr__(self, "C", _freeze(C))
+        object.__setattr__(self, "state_names", states)
+        object.__setattr__(self, "input_names", inputs)
+        object.__setattr__(self, "output_names", outputs)
+        object.__setattr__(self, "nodes", nodes)
+        object.__setattr__(self, "_index", {})
+
+    # ------------------------------------------------------------------ sizes
+    @property
+    def n_states(self) -> int:
+        """Number of states ``n``."""
+        return int(self.A.shape[0])
+
+    @property
+    def n_inputs(self) -> int:
+        """Number of input columns ``m``."""
+        return int(self.B.shape[1])
+
+    @property
+    def n_outputs(self) -> int:
+        """Number of output rows ``p``."""
+        return int(self.C.shape[0])
+
+    @property
+    def n_links(self) -> int:
+        """Number of nonzero entries of ``A`` (self-loops included)."""
+        return int(self.A.nnz)
+
+    @property
+    def n_self_loops(self) -> int:
+        """Number of states with self-dynamics (nonzero diagonal of ``A``)."""
+        return int(np.count_nonzero(self.A.diagonal()))
+
+    # ------------------------------------------------------------------ builders
+    @classmethod
+    def from_edges(
+        cls,
+        sources: Any,
+        targets: Any,
+        n_states: int | None = None,
+        *,
+        weights: Any = None,
+        state_names: Sequence[object] | None = None,
+        inputs: Any = None,
+        outputs: Any = None,
+        nodes: Mapping[str, Any] | None = None,
+        model: str = "given",
+    ) -> StructuredSystem:
+        """Build a system from integer edge arrays, edge ``sources[k] -> targets[k]``.
+
+        Parameters
+        ----------
+        sources, targets : array_like of int
+            Edge ``u -> v`` means state ``u`` influences state ``v`` (``A[v, u] != 0``).
+        n_states : int, optional
+            Number of states; defaults to one more than the largest index (or the
+            number of ``state_names``). Isolated states need it.
+        weights : array_like of float, optional
+            One weight per edge; without it the system is a pattern (weights 1.0).
+            Duplicate edges are summed; a warning says how many there were.
+        inputs, outputs : optional
+            See :meth:`with_inputs` and :meth:`with_outputs`.
+
+        Raises
+        ------
+        InvalidSystemError
+            Negative or out-of-range indices, unequal lengths, NaN or infinite weights.
+        """
+        if n_states is None:
+            if state_names is not None:
+                n_states = len(state_names)
+            else:
+                s = np.asarray(sources)
+                t = np.asarray(targets)
+                n_states = int(max(s.max(initial=-1), t.max(initial=-1))) + 1 if (
+                    s.size and np.issubdtype(s.dtype, np.number)) else 0
+        if n_states < 0:
+            raise InvalidSystemError(f"n_states must be >= 0, found {n_states}.")
+        src = _as_index_array(sources, n_states, "sources")
+        dst = _as_index_array(targets, n_states, "targets")
+        if src.shape != dst.shape:
+            raise InvalidSystemError(
+                f"sources and targets must have equal lengths, found {src.size} and {dst.size}.")
+        if weights is None:
+            data = np.ones(src.size)
+            weighted = False
+        else:
+            data = np.asarray(weights, dtype=np.float64)
+            if data.shape != src.shape:
+                raise InvalidSystemError(
+                    f"weights must have one value per edge ({src.size}), found {data.size}.")
+            weighted = True
+        A = sp.coo_array((data, (dst, src)), shape=(n_states, n_states)).tocsr()
+        n_dup = src.size - _count_unique_pairs(dst, src, n_states)
+        if n_dup:
+            warnings.warn(
+                f"{n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} merged"
+                + (" (weights summed)" if weighted else "") + ".", stacklevel=2)
+        if not weighted:
+            A.sum_duplicates()
+            A.data[:] = 1.0
+        sys_ = cls(A=A, B=None, C=None, state_names=tuple(state_names or ()), input_names=(),
+                   output_names=(), nodes=dict(nodes or {}), weighted=weighted, model=model)
+        if inputs is not None:
+            sys_ = sys_.with_inputs(inputs)
+        if outputs is not None:
+            sys_ = sys_.with_outputs(outputs)
+        return sys_
+
+    @classmethod
+    def from_matrices(
+        cls,
+        A: Any,
+        B: Any = None,
+        C: Any = None,
+        *,
+        state_names: Sequence[object] | None = None,
+        input_names: Sequence[object] | None = None,
+        output_names: Sequence[object] | None = None,
+        nodes: Mapping[str, Any] | None = None,
+        weighted: bool = True,
+        model: str = "given",
+    ) -> StructuredSystem:
+        """Build a system from dense or sparse ``A`` (and optionally ``B``, ``C``).
+
+        The nonzero entries are the pattern; with ``weighted=True`` (default) their
+        values are kept as weights. Boolean matrices are read as patterns.
+        """
+        n = _shape(A, "A")[0]
+        if B is None:
+            B = sp.csr_array((n, 0))
+        if C is None:
+            C = sp.csr_array((0, n))
+        if _is_bool(A):
+            weighted = False
+        return cls(A=A, B=B, C=C, state_names=tuple(state_names or ()),
+                   input_names=tuple(input_names or ()), output_names=tuple(output_names or ()),
+                   nodes=dict(nodes or {}), weighted=weighted, model=model)
+
+    @classmethod
+    def from_networkx(
+        cls,
+        graph: Any,
+        *,
+        weight: str | None = None,
+        inputs: Any = None,
+        model: str = "given",
+    ) -> StructuredSystem:
+        """Build a system from a networkx ``DiGraph`` or ``Graph``.
+
+        An undirected edge means influence in both directions. Node attributes named in
+        :data:`NODE_COLUMNS` fill the node table; other scalar attributes are carried in
+        the table too. ``weight`` names the edge attribute holding weights.
+        """
+        nodes_list = list(graph.nodes())
+        index = {v: i for i, v in enumerate(nodes_list)}
+        edges = list(graph.edges(data=True))
+        src = np.fromiter((index[u] for u, _, _ in edges), dtype=np.int64, count=len(edges))
+        dst = np.fromiter((index[v] for _, v, _ in edges), dtype=np.int64, count=len(edges))
+        w = None
+        if weight is not None:
+            w = np.array([d.get(weight, 1.0) for _, _, d in edges], dtype=np.float64)
+        if not graph.is_directed():
+            loops = src == dst
+            src, dst = np.concatenate([src, dst[~loops]]), np.concatenate([dst, src[~loops]])
+            if w is not None:
+                w = np.concatenate([w, w[~loops]])
+        table = _node_table_from_attrs([graph.nodes[v] for v in nodes_list])
+        return cls.from_edges(src, dst, len(nodes_list), weights=w,
+                              state_names=[str(v) for v in nodes_list], inputs=inputs,
+                              nodes=table, model=model)
+
+    @classmethod
+    def from_igraph(
+        cls,
+        graph: Any,
+        *,
+        weight: str | None = None,
+        inputs: Any = None,
+        model: str = "given",
+    ) -> StructuredSystem:
+        """Build a system from an igraph ``Graph`` (undirected edges mean both directions).
+
+        Vertex attribute ``name`` gives the state names when present.
+        """
+        n = graph.vcount()
+        el = np.asarray(graph.get_edgelist(), dtype=np.int64).reshape(-1, 2)
+        src, dst = el[:, 0], el[:, 1]
+        w = np.asarray(graph.es[weight], dtype=np.float64) if weight is not None else None
+        if not graph.is_directed():
+            loops = src == dst
+            src, dst = np.concatenate([src, dst[~loops]]), np.concatenate([dst, src[~loops]])
+            if w is not None:
+                w = np.concatenate([w, w[~loops]])
+        names = graph.vs["name"] if "name" in graph.vs.attributes() else None
+        attrs = [{k: graph.vs[i][k] for k in graph.vs.attributes() if k != "name"}
+                 for i in range(n)]
+        return cls.from_edges(src, dst, n, weights=w, state_names=names, inputs=inputs,
+                              nodes=_node_table_from_attrs(attrs), model=model)
+
+    # ------------------------------------------------------------------ views
+    def edges(self) -> tuple[np.ndarray, np.ndarray]:
+        """Edge arrays ``(sources, targets)`` of ``A``, sorted by target then source."""
+        tgt = np.repeat(np.arange(self.n_states, dtype=np.int64), np.diff(self.A.indptr))
+        return self.A.indices.copy(), tgt
+
+    def index_of(self, names: Iterable[object], *, kind: str = "state") -> np.ndarray:
+        """Indices of the given state (or ``kind="input"`` / ``"output"``) names.
+
+        Integers are accepted as indices. Raises :class:`UnknownNameError` naming the
+        first unknown name and a few close matches.
+        """
+        pool = {"state": self.state_names, "input": self.input_names,
+                "output": self.output_names}.get(kind)
+        if pool is None:
+            raise InvalidSystemError(f"kind must be 'state', 'input' or 'output', found {kind!r}.")
+        lookup = self._index.get(kind)
+        if lookup is None:
+            lookup = {name: i for i, name in enumerate(pool)}  # type: ignore[assignment]
+            self._index[kind] = lookup  # type: ignore[assignment]
+        out = []
+        for name in names:
+            key = str(name)
+            if key in lookup:  # type: ignore[operator]
+                out.append(lookup[key])  # type: ignore[index]
+            elif isinstance(name, (int, np.integer)) and 0 <= int(name) < len(pool):
+                out.append(int(name))
+            else:
+                import difflib
+                close = difflib.get_close_matches(key, pool, n=3)
+                hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
+                raise UnknownNameError(
+                    f"unknown {kind} name {key!r}: the system has {len(pool)} {kind}s"
+                    f" (e.g. {', '.join(map(repr, pool[:3]))}).{hint}")
+        return np.asarray(out, dtype=np.int64)
+
+    def names_of(self, indices: Iterable[int], *, kind: str = "state") -> list[str]:
+        """Names for the given indices."""
+        pool = {"state": self.state_names, "input": self.input_names,
+                "output": self.output_names}[kind]
+        return [pool[int(i)] for i in indices]
+
+    def driven_states(self) -> np.ndarray:
+        """Sorted indices of the states some input acts on directly (driver nodes)."""
+        return np.flatnonzero(np.diff(self.B.indptr)).astype(np.int64)
+
+    def measured_states(self) -> np.ndarray:
+        """Sorted indices of the states some output reads directly."""
+        return np.unique(self.C.indices).astype(np.int64)
+
+    # ------------------------------------------------------------------ transforms
+    def with_inputs(self, inputs: Any, *, names: Sequence[object] | None = None) -> StructuredSystem:
+        """A copy with new input columns (replacing any existing ones).
+
+        ``inputs`` may be: a sequence of state names or indices (one dedicated input
+        each); a mapping ``input name -> states it acts on``; or an ``n x m`` matrix.
+        """
+        n = self.n_states
+        input_names: Sequence[object] | None = names
+        if isinstance(inputs, Mapping):
+            input_names = list(inputs.keys())
+            cols = [self.index_of(_as_list(v)) for v in inputs.values()]
+            rows = np.concatenate(cols) if cols else np.zeros(0, np.int64)
+            colidx = np.repeat(np.arange(len(cols)), [c.size for c in cols])
+            B = sp.coo_array((np.ones(rows.size), (rows, colidx)), shape=(n, len(cols)))
+        elif sp.issparse(inputs) or (isinstance(inputs, np.ndarray) and inputs.ndim == 2):
+            B = inputs
+        else:
+            idx = self.index_of(_as_list(inputs))
+            if input_names is None:
+                input_names = [f"u:{self.state_names[i]}" for i in idx]
+            B = sp.coo_array((np.ones(idx.size), (idx, np.arange(idx.size))),
+                             shape=(n, idx.size))
+        m = B.shape[1]
+        return self._replace(B=B, input_names=tuple(input_names) if input_names is not None
+                             else tuple(f"u{k}" for k in range(m)))
+
+    def with_outputs(self, outputs: Any, *, names: Sequence[object] | None = None) -> StructuredSystem:
+        """A copy with new output rows: state names/indices (one dedicated sensor each),
+        a mapping ``output name -> states it reads``, or a ``p x n`` matrix."""
+        dual = self.dual().with_inputs(
+            outputs.T if sp.issparse(outputs) or isinstance(outputs, np.ndarray) else outputs,
+            names=names)
+        if names is None and not isinstance(outputs, Mapping) and not (
+                sp.issparse(outputs) or isinstance(outputs, np.ndarray)):
+            dual = dual._replace(input_names=tuple(
+                "y:" + s[2:] for s in dual.input_names))
+        return dual.dual()
+
+    def dual(self) -> StructuredSystem:
+        """The dual system ``(A^T, C^T, B^T)``: inputs become outputs and vice versa.
+
+        Observability of ``self`` is controllability of ``self.dual()``. Edges reverse.
+        """
+        return StructuredSystem(A=self.A.T.tocsr(), B=self.C.T.tocsr(), C=self.B.T.tocsr(),
+                                state_names=self.state_names, input_names=self.output_names,
+                                output_names=self.input_names, nodes=self.nodes,
+                                weighted=self.weighted, model=self.model)
+
+    def with_self_loops(self) -> StructuredSystem:
+        """A copy with self-dynamics on every state (existing diagonal weights kept)."""
+        n = self.n_states
+        diag = self.A.diagonal()
+        add = np.where(diag == 0, 1.0, 0.0)
+        A = self.A + sp.dia_array((add[None, :], [0]), shape=(n, n))
+        return self._replace(A=A)
+
+    def to_networkx(self) -> Any:
+        """A networkx ``DiGraph`` of the state graph (edge ``u -> v`` iff ``A[v, u] != 0``).
+
+        Node attributes: the node table columns, plus ``driven`` (an input acts on it) and
+        ``measured``. Edge attribute ``weight`` when the system is weighted.
+        """
+        import networkx as nx
+
+        g = nx.DiGraph()
+        driven = set(self.driven_states().tolist())
+        measured = set(self.measured_states().tolist())
+        for i, name in enumerate(self.state_names):
+            attrs = {k: _py(v[i]) for k, v in self.nodes.items()}
+            g.add_node(name, driven=i in driven, measured=i in measured, **attrs)
+        src, dst = self.edges()
+        vals = self.A.data
+        for k in range(src.size):
+            if self.weighted:
+                g.add_edge(self.state_names[src[k]], self.state_names[dst[k]], weight=float(vals[k]))
+            else:
+                g.add_edge(self.state_names[src[k]], self.state_names[dst[k]])
+        return g
+
+    def _replace(self, **changes: Any) -> StructuredSystem:
+        base = dict(A=self.A, B=self.B, C=self.C, state_names=self.state_names,
+                    input_names=self.input_names, output_names=self.output_names,
+                    nodes=self.nodes, weighted=self.weighted, model=self.model)
+        base.update(changes)
+        return StructuredSystem(**base)
+
+    def __repr__(self) -> str:
+        return (f"StructuredSystem(n_states={self.n_states}, n_links={self.n_links}, "
+                f"n_inputs={self.n_inputs}, n_outputs={self.n_outputs}, model={self.model!r}, "
+                f"weighted={self.weighted})")
+
+
+# ---------------------------------------------------------------------- helpers
+def _count_unique_pairs(rows: np.ndarray, cols: np.ndarray, n: int) -> int:
+    if rows.size == 0:
+        return 0
+    key = rows.astype(np.int64) * max(n, 1) + cols.astype(np.int64)
+    return int(np.unique(key).size)
+
+
+def _shape(M: Any, what: str) -> tuple[int, ...]:
+    shape = M.shape if hasattr(M, "shape") else np.asarray(M).shape
+    if len(shape) != 2 or shape[0] != shape[1]:
+        raise InvalidSystemError(f"{what} must be square (n x n), found shape {tuple(shape)}.")
+    return tuple(shape)
+
+
+def _is_bool(M: Any) -> bool:
+    dt = M.dtype if hasattr(M, "dtype") else np.asarray(M).dtype
+    return bool(dt == np.bool_)
+
+
+def _as_list(v: Any) -> list[Any]:
+    if isinstance(v, (str, bytes)) or not isinstance(v, Iterable):
+        return [v]
+    return list(v)
+
+
+def _py(v: Any) -> Any:
+    if isinstance(v, np.generic):
+        v = v.item()
+    if isinstance(v, float) and math.isnan(v):
+        return None
+    return v
+
+
+def _node_table_from_attrs(attrs: list[Mapping[str, Any]]) -> dict[str, np.ndarray]:
+    """Turn per-node attribute dicts into node-table columns.
+
+    Known numeric columns become float (NaN where missing); ``actuator``/``sensor``
+    become bool (missing means allowed). Other attributes are kept as object arrays.
+    """
+    n = len(attrs)
+    keys: list[str] = []
+    for a in attrs:
+        for k in a:
+            if k not in keys:
+                keys.append(k)
+    table: dict[str, np.ndarray] = {}
+    for k in keys:
+        vals = [a.get(k) for a in attrs]
+        if k in ("actuator", "sensor"):
+            table[k] = np.array([True if v is None else _truthy(v) for v in vals], dtype=bool)
+        elif k in ("x", "y", "actuator_cost", "sensor_cost"):
+            table[k] = np.array([np.nan if v is None else float(v) for v in vals])
+        else:
+            arr = np.empty(n, dtype=object)
+            arr[:] = vals
+            table[k] = arr
+    return table
+
+
+def _truthy(v: Any) -> bool:
+    if isinstance(v, str):
+        return v.strip().lower() in ("1", "true", "yes", "y", "t")
+    return bool(v)

@@ -1,0 +1,57 @@
+"""Shared fixtures and small network builders for the tests.
+
+Builders return StructuredSystem objects in the netctl orientation: edge u -> v means
+"u influences v" (A[v, u] != 0).
+"""
+
+from __future__ import annotations
+
+import os
+
+import matplotlib
+import numpy as np
+import pytest
+
+matplotlib.use("Agg")
+os.environ.setdefault("MPLBACKEND", "Agg")
+
+from netctl import StructuredSystem  # noqa: E402
+
+
+def from_edges(edges, n=None, **kw):
+    e = np.asarray(edges, dtype=np.int64).reshape(-1, 2)
+    return StructuredSystem.from_edges(e[:, 0], e[:, 1], n, **kw)
+
+
+def directed_path(n):
+    return from_edges([(i, i + 1) for i in range(n - 1)], n)
+
+
+def directed_cycle(n):
+    return from_edges([(i, (i + 1) % n) for i in range(n)], n)
+
+
+def out_star(k):
+    return from_edges([(0, i) for i in range(1, k + 1)], k + 1)
+
+
+def in_star(k):
+    return from_edges([(i, 0) for i in range(1, k + 1)], k + 1)
+
+
+def complete_digraph(n):
+    return from_edges([(i, j) for i in range(n) for j in range(n) if i != j], n)
+
+
+def random_pattern(rng, n, p, loops=False):
+    """Directed G(n, p) pattern as an edge array (seeded by the caller's rng)."""
+    mask = rng.random((n, n)) < p
+    if not loops:
+        np.fill_diagonal(mask, False)
+    src, dst = np.nonzero(mask)
+    return np.stack([src, dst], axis=1) if src.size else np.zeros((0, 2), np.int64)
+
+
+@pytest.fixture
+def rng():
+    return np.random.default_rng(20261202)

@@ -1,0 +1,21 @@
+"""The public API is pinned: a change to netctl.__all__ must be deliberate."""
+
+import netctl
+
+EXPECTED = sorted([
+    "ControllabilityReport", "InputDesign", "InvalidSystemError", "MissingFileError",
+    "NetctlError", "NetworkFileError", "NetworkSummary", "OptionError", "StructuredSystem",
+    "UnknownNameError", "__version__", "controllability", "is_structurally_controllable",
+    "is_structurally_observable", "minimum_inputs", "minimum_sensors", "observability",
+    "summarize",
+])
+
+
+def test_all_is_sorted_and_pinned():
+    assert list(netctl.__all__) == sorted(netctl.__all__)
+    assert sorted(netctl.__all__) == EXPECTED
+
+
+def test_every_exported_name_exists():
+    for name in netctl.__all__:
+        assert hasattr(netctl, name), name
