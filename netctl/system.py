@@ -270,6 +270,39 @@ class StructuredSystem:
         return sys_
 
     @classmethod
+    def from_named_edges(
+        cls,
+        sources: Sequence[object],
+        targets: Sequence[object],
+        *,
+        weights: Any = None,
+        states: Sequence[object] | None = None,
+        inputs: Any = None,
+        outputs: Any = None,
+        nodes: Mapping[str, Any] | None = None,
+        model: str = "given",
+    ) -> StructuredSystem:
+        """Build a system from edges given by state *names* (``sources[k] -> targets[k]``).
+
+        States are numbered in order of first appearance, after any names listed in
+        ``states`` (which may also declare isolated states).
+        """
+        if len(sources) != len(targets):
+            raise InvalidSystemError(
+                f"sources and targets must have equal lengths, found {len(sources)} and "
+                f"{len(targets)}.")
+        order: dict[str, int] = {}
+        for name in (states or ()):
+            order.setdefault(str(name), len(order))
+        src = np.empty(len(sources), np.int64)
+        dst = np.empty(len(targets), np.int64)
+        for k, (a, b) in enumerate(zip(sources, targets)):
+            src[k] = order.setdefault(str(a), len(order))
+            dst[k] = order.setdefault(str(b), len(order))
+        return cls.from_edges(src, dst, len(order), weights=weights, state_names=list(order),
+                              inputs=inputs, outputs=outputs, nodes=nodes, model=model)
+
+    @classmethod
     def from_matrices(
         cls,
         A: Any,

@@ -1,0 +1,164 @@
+"""The matching engine against reference libraries (scipy, networkx, igraph) and brute force."""
+
+from __future__ import annotations
+
+import igraph as ig
+import networkx as nx
+import numpy as np
+import pytest
+import scipy.sparse as sp
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from scipy.sparse.csgraph import maximum_bipartite_matching
+
+from netctl.graph import (
+    alternating_reach_rows,
+    condensation_sources,
+    is_valid_matching,
+    maximum_matching,
+    reachable_from,
+    strongly_connected_components,
+)
+
+
+def _random_csr(rng, n_rows, n_cols, mean_deg):
+    nnz = rng.poisson(mean_deg * n_rows)
+    r = rng.integers(0, n_rows, nnz)
+    c = rng.integers(0, n_cols, nnz)
+    m = sp.csr_array((np.ones(nnz), (r, c)), shape=(n_rows, n_cols))
+    m.sum_duplicates()
+    m.sort_indices()
+    return m
+
+
+def _scipy_size(m):
+    if m.nnz == 0:
+        return 0
+    return int((maximum_bipartite_matching(sp.csr_matrix(m), perm_type="column") >= 0).sum())
+
+
+def _igraph_size(m):
+    n_rows, n_cols = m.shape
+    coo = m.tocoo()
+    g = ig.Graph.Bipartite([False] * n_rows + [True] * n_cols,
+                           list(zip(coo.row.tolist(), (coo.col + n_rows).tolist())))
+    return len(g.maximum_bipartite_matching())  # number of matched pairs
+
+
+def _networkx_size(m):
+    n_rows, n_cols = m.shape
+    g = nx.Graph()
+    g.add_nodes_from(range(n_rows), bipartite=0)
+    g.add_nodes_from(range(n_rows, n_rows + n_cols), bipartite=1)
+    coo = m.tocoo()
+    g.add_edges_from(zip(coo.row.tolist(), (coo.col + n_rows).tolist()))
+    match = nx.bipartite.hopcroft_karp_matching(g, top_nodes=range(n_rows))
+    return sum(1 for v in range(n_rows) if v in match)
+
+
+@pytest.mark.parametrize("n_rows, n_cols, deg", [(50, 50, 1.0), (200, 180, 2.0), (300, 320, 3.5),
+                                                 (1000, 1000, 1.5), (2000, 1500, 4.0)])
+def test_matching_size_equals_scipy_igraph_networkx(n_rows, n_cols, deg):
+    rng = np.random.default_rng(n_rows + n_cols)
+    for _ in range(5):
+        m = _random_csr(rng, n_rows, n_cols, deg)
+        rm, cm = maximum_matching(m.indptr, m.indices, n_cols)
+        assert is_valid_matching(m.indptr, m.indices, rm, cm)
+        size = int((rm >= 0).sum())
+        assert size == _scipy_size(m)
+        assert size == _networkx_size(m)
+        assert size == _igraph_size(m)
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.integers(1, 9), st.integers(1, 9), st.data())
+def test_matching_is_maximum_on_arbitrary_small_graphs(n_rows, n_cols, data):
+    cells = data.draw(st.sets(st.tuples(st.integers(0, n_rows - 1), st.integers(0, n_cols - 1)),
+                              max_size=n_rows * n_cols))
+    dense = np.zeros((n_rows, n_cols), bool)
+    for r, c in cells:
+        dense[r, c] = True
+    m = sp.csr_array(dense.astype(float))
+    rm, cm = maximum_matching(m.indptr.astype(np.int64), m.indices.astype(np.int64), n_cols)
+    assert is_valid_matching(m.indptr, m.indices, rm, cm)
+    assert int((rm >= 0).sum()) == _scipy_size(m)
+
+
+def test_warm_start_keeps_matched_vertices_matched():
+    rng = np.random.default_rng(0)
+    m = _random_csr(rng, 400, 400, 2.0)
+    # a greedy partial matching as the start
+    rm0 = np.full(400, -1, np.int64)
+    cm0 = np.full(400, -1, np.int64)
+    for r in range(0, 400, 3):
+        for c in m.indices[m.indptr[r]:m.indptr[r + 1]]:
+            if cm0[c] == -1:
+                rm0[r], cm0[c] = c, r
+                break
+    rm, cm = maximum_matching(m.indptr, m.indices, 400, row_match=rm0, col_match=cm0)
+    assert np.all(rm[rm0 >= 0] >= 0) and np.all(cm[cm0 >= 0] >= 0)
+    assert int((rm >= 0).sum()) == _scipy_size(m)
+    # inputs were not modified
+    assert int((rm0 >= 0).sum()) < int((rm >= 0).sum())
+
+
+def test_matching_is_deterministic():
+    rng = np.random.default_rng(1)
+    m = _random_csr(rng, 3000, 3000, 2.5)
+    a = maximum_matching(m.indptr, m.indices, 3000)[0]
+    b = maximum_matching(m.indptr, m.indices, 3000)[0]
+    assert np.array_equal(a, b)
+
+
+def test_empty_inputs():
+    rm, cm = maximum_matching(np.zeros(1, np.int64), np.zeros(0, np.int64), 0)
+    assert rm.size == 0 and cm.size == 0
+    rm, cm = maximum_matching(np.zeros(4, np.int64), np.zeros(0, np.int64), 2)
+    assert rm.tolist() == [-1, -1, -1] and cm.tolist() == [-1, -1]
+
+
+def test_alternating_reach_rows_brute_force():
+    """Rows reached = rows left unmatched by some maximum matching (brute force over
+    all maximum matchings via networkx enumeration on tiny graphs)."""
+    rng = np.random.default_rng(2)
+    for _ in range(80):
+        n = int(rng.integers(1, 6))
+        dense = rng.random((n, n)) < 0.35
+        m = sp.csr_array(dense.astype(float))
+        indptr, indices = m.indptr.astype(np.int64), m.indices.astype(np.int64)
+        rm, cm = maximum_matching(indptr, indices, n)
+        size = int((rm >= 0).sum())
+        rows, _ = alternating_reach_rows(indptr, indices, n, cm)
+        # brute force: row r can be unmatched iff deleting it keeps the matching size
+        for r in range(n):
+            d2 = dense.copy()
+            d2[r, :] = False
+            can_be_free = _scipy_size(sp.csr_array(d2.astype(float))) == size
+            assert rows[r] == can_be_free
+
+
+def test_scc_and_sources_match_networkx():
+    rng = np.random.default_rng(3)
+    for _ in range(30):
+        n = int(rng.integers(1, 40))
+        dense = rng.random((n, n)) < 0.06
+        A = sp.csr_array(dense.astype(float))  # A[v, u]: u -> v
+        k, labels = strongly_connected_components(A.indptr.astype(np.int64),
+                                                  A.indices.astype(np.int64))
+        g = nx.DiGraph()
+        g.add_nodes_from(range(n))
+        v_idx, u_idx = np.nonzero(dense)
+        g.add_edges_from(zip(u_idx.tolist(), v_idx.tolist()))
+        comps = list(nx.strongly_connected_components(g))
+        assert k == len(comps)
+        for c in comps:
+            assert len({labels[i] for i in c}) == 1
+        src = condensation_sources(A.indptr.astype(np.int64), A.indices.astype(np.int64), labels, k)
+        cond = nx.condensation(g, comps)
+        nx_sources = {frozenset(cond.nodes[c]["members"]) for c in cond if cond.in_degree(c) == 0}
+        ours = {frozenset(np.flatnonzero(labels == c).tolist()) for c in np.flatnonzero(src)}
+        assert ours == nx_sources
+        # reachability from node 0 equals networkx descendants
+        At = A.T.tocsr()
+        mask = reachable_from(At.indptr, At.indices, np.array([0]))
+        assert set(np.flatnonzero(mask).tolist()) == nx.descendants(g, 0) | {0}

@@ -1,0 +1,125 @@
+"""StructuredSystem: builders, canonical form, validation messages, conversions."""
+
+from __future__ import annotations
+
+import igraph as ig
+import networkx as nx
+import numpy as np
+import pytest
+import scipy.sparse as sp
+
+from netctl import InvalidSystemError, StructuredSystem, UnknownNameError
+
+
+def test_orientation_edge_u_to_v_sets_A_v_u():
+    s = StructuredSystem.from_edges([0], [2], 3)
+    assert s.A[2, 0] == 1.0 and s.A[0, 2] == 0.0
+    src, dst = s.edges()
+    assert src.tolist() == [0] and dst.tolist() == [2]
+
+
+def test_canonical_pattern_drops_explicit_zeros_and_merges_duplicates():
+    A = sp.csr_array((np.array([1.0, 0.0, 2.0]), np.array([0, 1, 1]), np.array([0, 2, 3])),
+                     shape=(2, 2))
+    s = StructuredSystem.from_matrices(A)
+    assert s.n_links == 2  # the explicit zero is not a link
+    with pytest.warns(UserWarning, match="1 duplicate link was merged"):
+        s2 = StructuredSystem.from_edges([0, 0, 1], [1, 1, 0], 2)
+    assert s2.n_links == 2
+    with pytest.warns(UserWarning, match=r"weights summed"):
+        s3 = StructuredSystem.from_edges([0, 0], [1, 1], 2, weights=[1.5, 2.0])
+    assert s3.A[1, 0] == 3.5 and s3.weighted
+
+
+@pytest.mark.parametrize("kwargs, message", [
+    (dict(sources=[0, -1], targets=[1, 0], n_states=2), r"index -1, outside 0\.\.1"),
+    (dict(sources=[0, 5], targets=[1, 0], n_states=3), r"index 5, outside 0\.\.2"),
+    (dict(sources=[0, 1], targets=[1], n_states=2), "equal lengths, found 2 and 1"),
+    (dict(sources=[0], targets=[1], n_states=2, weights=[np.nan]), "NaN or infinite"),
+    (dict(sources=["a"], targets=["b"], n_states=2), "use StructuredSystem.from_named_edges for string names"),
+    (dict(sources=[0], targets=[1], n_states=2, state_names=["a", "a"]), "'a' is used twice"),
+])
+def test_validation_messages(kwargs, message):
+    with pytest.raises(InvalidSystemError, match=message):
+        StructuredSystem.from_edges(**kwargs)
+
+
+def test_shape_mismatch_message():
+    with pytest.raises(InvalidSystemError, match=r"B must have shape \(3, 1\), found \(2, 1\)"):
+        StructuredSystem(A=np.eye(3), B=np.ones((2, 1)), C=None, state_names=(),
+                         input_names=("u",), output_names=())
+    with pytest.raises(InvalidSystemError, match="must be square"):
+        StructuredSystem.from_matrices(np.ones((2, 3)))
+
+
+def test_unknown_name_suggests_close_matches():
+    s = StructuredSystem.from_edges([0], [1], 2, state_names=["pump_speed", "tank_level"])
+    with pytest.raises(UnknownNameError, match=r"unknown state name 'pump_sped'.*Did you mean 'pump_speed'"):
+        s.with_inputs(["pump_sped"])
+    with pytest.raises(KeyError):  # also a KeyError for Python users
+        s.index_of(["nope"])
+
+
+def test_frozen_and_read_only():
+    s = StructuredSystem.from_edges([0], [1], 2)
+    with pytest.raises(Exception):
+        s.model = "x"  # type: ignore[misc]
+    with pytest.raises(ValueError):
+        s.A.data[0] = 5.0
+
+
+def test_with_inputs_forms_and_dual():
+    s = StructuredSystem.from_edges([0, 1], [1, 2], 3, state_names=["a", "b", "c"])
+    s1 = s.with_inputs(["a", "c"])
+    assert s1.B.shape == (3, 2) and s1.driven_states().tolist() == [0, 2]
+    assert s1.input_names == ("u:a", "u:c")
+    s2 = s.with_inputs({"valve": ["a", "b"]})
+    assert s2.B.shape == (3, 1) and s2.driven_states().tolist() == [0, 1]
+    s3 = s2.with_outputs(["c"])
+    d = s3.dual()
+    assert d.n_inputs == 1 and d.n_outputs == 1
+    assert d.A[0, 1] == 1.0  # reversed edge b -> a
+    assert d.driven_states().tolist() == [2] and d.measured_states().tolist() == [0, 1]
+    assert d.dual().A.nnz == s3.A.nnz
+
+
+def test_from_networkx_undirected_means_both_directions_and_keeps_attributes():
+    g = nx.Graph()
+    g.add_node("p", x=1.0, y=2.0, actuator=False, zone="north")
+    g.add_node("q", x=3.0, y=4.0)
+    g.add_edge("p", "q", weight=0.5)
+    g.add_edge("q", "q", weight=2.0)  # self-loop kept once
+    s = StructuredSystem.from_networkx(g, weight="weight")
+    assert s.n_links == 3 and s.n_self_loops == 1
+    assert s.A[1, 0] == 0.5 and s.A[0, 1] == 0.5
+    assert s.nodes["x"].tolist() == [1.0, 3.0]
+    assert s.nodes["actuator"].tolist() == [False, True]
+    assert s.nodes["zone"].tolist() == ["north", None]
+    back = s.to_networkx()
+    assert back.nodes["p"]["zone"] == "north" and back["p"]["q"]["weight"] == 0.5
+
+
+def test_from_igraph_matches_networkx():
+    g = ig.Graph(directed=True)
+    g.add_vertices(3)
+    g.vs["name"] = ["a", "b", "c"]
+    g.add_edges([(0, 1), (1, 2), (2, 2)])
+    s = StructuredSystem.from_igraph(g)
+    assert s.state_names == ("a", "b", "c")
+    assert s.n_links == 3 and s.A[2, 1] == 1.0 and s.n_self_loops == 1
+    u = StructuredSystem.from_igraph(ig.Graph([(0, 1)]))
+    assert u.n_links == 2
+
+
+def test_self_loops_model_keeps_given_diagonal_weights():
+    s = StructuredSystem.from_edges([0, 1], [0, 0], 2, weights=[-3.0, 1.0])
+    t = s.with_self_loops()
+    assert t.A[0, 0] == -3.0 and t.A[1, 1] == 1.0 and t.n_self_loops == 2
+
+
+def test_from_named_edges_orders_by_first_appearance():
+    s = StructuredSystem.from_named_edges(["pump", "tank"], ["tank", "valve"], states=["spare"],
+                                          inputs=["pump"])
+    assert s.state_names == ("spare", "pump", "tank", "valve")
+    assert s.A[2, 1] == 1.0 and s.A[3, 2] == 1.0 and s.n_links == 2
+    assert s.driven_states().tolist() == [1]
