@@ -1,0 +1,550 @@
+"""Node and link roles for control: which states and links every minimum design needs.
+
+Node roles (Jia et al. 2013) classify each state by the minimum driver sets it belongs
+to; link roles (Liu et al. 2011) classify each link by the maximum matchings it belongs
+to. Both come from *one* maximum matching plus alternating reachability (and, for links,
+the strongly connected components of the matching's alternating graph): near-linear in
+the number of links, never one matching per element.
+
+Orientation: edge ``u -> v`` iff ``A[v, u] != 0``. In the bipartite graph of ``A`` the
+rows are the influenced states (``v``) and the columns the influencing states (``u``);
+a state whose row no maximum-matching edge covers is a driver (Liu et al. 2011).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+from numba import njit
+
+from netctl.errors import UnknownNameError
+from netctl.graph.components import condensation_sources, strongly_connected_components
+from netctl.graph.dm import alternating_reach_cols, alternating_reach_rows
+from netctl.graph.matching import maximum_matching
+from netctl.system import StructuredSystem
+
+__all__ = [
+    "LINK_ROLES",
+    "NODE_ROLES",
+    "LinkRoles",
+    "NodeRoles",
+    "link_roles",
+    "node_roles",
+]
+
+#: Node roles in code order: ``role == 0`` is critical, 1 intermittent, 2 redundant.
+NODE_ROLES: tuple[str, ...] = ("critical", "intermittent", "redundant")
+#: Link roles in code order: ``role == 0`` is critical, 1 ordinary, 2 redundant.
+LINK_ROLES: tuple[str, ...] = ("critical", "ordinary", "redundant")
+
+
+# ---------------------------------------------------------------------- engine
+@dataclass(frozen=True)
+class MatchingFacts:
+    """One maximum matching of a bipartite graph (CSR over rows) and what follows from it.
+
+    ``rows_free``: rows some maximum matching leaves unmatched (alternating reach from
+    the unmatched rows). ``cols_free``: the same for columns. ``h_indptr``/``h_indices``:
+    the alternating graph on rows, ``r -> col_match[c]`` for every unmatched edge
+    ``(r, c)`` with ``c`` matched; ``h_scc`` its strongly connected components and
+    ``h_scc_size`` their sizes. An edge ``(r, c)`` lies on an even alternating cycle iff
+    (matched) ``r`` is in a component of size >= 2, or (unmatched) ``r`` and
+    ``col_match[c]`` share a component.
+    """
+
+    n_rows: int
+    n_cols: int
+    indptr: np.ndarray
+    indices: np.ndarray
+    row_match: np.ndarray
+    col_match: np.ndarray
+    matching_size: int
+    rows_free: np.ndarray
+    cols_free: np.ndarray
+    h_indptr: np.ndarray
+    h_indices: np.ndarray
+    h_n_scc: int
+    h_scc: np.ndarray
+    h_scc_size: np.ndarray
+
+
+def matching_facts(indptr: np.ndarray, indices: np.ndarray, n_cols: int, *,
+                   with_cycles: bool = True) -> MatchingFacts:
+    """Compute :class:`MatchingFacts` (one matching, two alternating searches, one SCC)."""
+    indptr = np.ascontiguousarray(indptr, np.int64)
+    indices = np.ascontiguousarray(indices, np.int64)
+    n_rows = indptr.size - 1
+    row_match, col_match = maximum_matching(indptr, indices, n_cols)
+    size = int(np.count_nonzero(row_match >= 0))
+    rows_free, _ = alternating_reach_rows(indptr, indices, n_cols, col_match)
+    if size < n_cols:
+        cols_free, _ = alternating_reach_cols(indptr, indices, n_cols, row_match)
+    else:
+        cols_free = np.zeros(n_cols, bool)
+    if with_cycles and n_rows:
+        row_of = np.repeat(np.arange(n_rows, dtype=np.int64), np.diff(indptr))
+        partner = col_match[indices]
+        keep = (partner >= 0) & (partner != row_of)
+        h_indptr = np.zeros(n_rows + 1, np.int64)
+        np.cumsum(np.bincount(row_of[keep], minlength=n_rows), out=h_indptr[1:])
+        h_indices = np.ascontiguousarray(partner[keep])
+        k, labels = strongly_connected_components(h_indptr, h_indices)
+        sizes = np.bincount(labels, minlength=k).astype(np.int64)
+    else:
+        h_indptr = np.zeros(n_rows + 1, np.int64)
+        h_indices = np.zeros(0, np.int64)
+        k, labels, sizes = n_rows, np.arange(n_rows, dtype=np.int64), np.ones(n_rows, np.int64)
+    return MatchingFacts(n_rows=n_rows, n_cols=int(n_cols), indptr=indptr, indices=indices,
+                         row_match=row_match, col_match=col_match, matching_size=size,
+                         rows_free=rows_free, cols_free=cols_free, h_indptr=h_indptr,
+                         h_indices=h_indices, h_n_scc=int(k), h_scc=labels,
+                         h_scc_size=sizes)
+
+
+def edge_classes(f: MatchingFacts) -> np.ndarray:
+    """Class of every stored edge (CSR order): 0 in every maximum matching, 1 in some but
+    not all, 2 in none (Liu et al. 2011 critical / ordinary / redundant)."""
+    row_of = np.repeat(np.arange(f.n_rows, dtype=np.int64), np.diff(f.indptr))
+    col = f.indices
+    matched = f.row_match[row_of] == col
+    partner = f.col_match[col]
+    same = np.where(matched, f.h_scc_size[f.h_scc[row_of]] >= 2,
+                    (partner >= 0) & (f.h_scc[row_of] == f.h_scc[np.maximum(partner, 0)]))
+    flexible = f.rows_free[row_of] | f.cols_free[col] | same
+    out = np.full(col.size, 1, np.int8)
+    out[matched & ~flexible] = 0
+    out[~matched & ~flexible] = 2
+    return out
+
+
+# ---------------------------------------------------------------------- results
+@dataclass(frozen=True)
+class NodeRoles:
+    """Role of every state in the minimum driver sets (see :func:`node_roles`).
+
+    Attributes
+    ----------
+    role : ndarray of int8, shape (n,)
+        Code per state: index into :data:`NODE_ROLES`.
+    critical, intermittent, redundant : ndarray of int
+        Sorted state indices with that role.
+    n_inputs : int
+        Minimum number of inputs ``N_D = max(n - |M*|, 1)`` (0 for an empty system).
+    matching_size : int
+        ``|M*|``, the structural rank of ``A``.
+    basis : {"matching", "source-components", "empty"}
+        ``"matching"``: minimum driver sets are the unmatched states of the maximum
+        matchings (``|M*| < n``). ``"source-components"``: ``A`` has a perfect matching,
+        one input suffices and a minimum driver set holds one state of every source
+        component (see Notes of :func:`node_roles`).
+    """
+
+    n_states: int
+    role: np.ndarray
+    critical: np.ndarray
+    intermittent: np.ndarray
+    redundant: np.ndarray
+    n_inputs: int
+    matching_size: int
+    basis: str
+    state_names: tuple[str, ...] = field(repr=False)
+    model: str = "given"
+
+    @property
+    def perfect_matching(self) -> bool:
+        """Whether ``A`` has a perfect matching (every state matched)."""
+        return self.basis == "source-components"
+
+    def names(self, indices: Any) -> list[str]:
+        """State names for state indices."""
+        return [self.state_names[int(i)] for i in indices]
+
+    def role_of(self, state: str | int) -> str:
+        """The role of one state, by name (or index)."""
+        if isinstance(state, (int, np.integer)) and not isinstance(state, bool):
+            i = int(state)
+        else:
+            try:
+                i = self.state_names.index(str(state))
+            except ValueError:
+                raise UnknownNameError(f"unknown state name {state!r}; the system has "
+                                       f"{self.n_states} states.") from None
+        return NODE_ROLES[int(self.role[i])]
+
+    def counts(self) -> dict[str, int]:
+        """Number of states per role."""
+        return {"critical": int(self.critical.size), "intermittent":
+                int(self.intermittent.size), "redundant": int(self.redundant.size)}
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready: ``nodes`` maps state name -> role."""
+        return {
+            "analysis": "node_roles",
+            "n_states": self.n_states,
+            "model": self.model,
+            "n_inputs": self.n_inputs,
+            "structural_rank_A": self.matching_size,
+            "perfect_matching": self.perfect_matching,
+            "basis": self.basis,
+            "counts": self.counts(),
+            "nodes": {self.state_names[i]: NODE_ROLES[int(r)]
+                      for i, r in enumerate(self.role.tolist())},
+        }
+
+
+@dataclass(frozen=True)
+class LinkRoles:
+    """Role of every link of ``A`` (see :func:`link_roles`).
+
+    Attributes
+    ----------
+    sources, targets : ndarray of int
+        The links ``sources[k] -> targets[k]``, sorted by target then source (the order
+        of :meth:`StructuredSystem.edges`); self-loops included.
+    role : ndarray of int8
+        Code per link: index into :data:`LINK_ROLES`.
+    critical, ordinary, redundant : ndarray of int
+        Sorted link positions (into ``sources``/``targets``) with that role.
+    n_inputs : int
+        ``N_D`` of the intact system.
+    n_inputs_after_loss : ndarray of int
+        ``N_D`` after losing each link alone (exact).
+    matching_size : int
+    """
+
+    n_states: int
+    sources: np.ndarray
+    targets: np.ndarray
+    role: np.ndarray
+    critical: np.ndarray
+    ordinary: np.ndarray
+    redundant: np.ndarray
+    n_inputs: int
+    n_inputs_after_loss: np.ndarray
+    matching_size: int
+    state_names: tuple[str, ...] = field(repr=False)
+    model: str = "given"
+
+    @property
+    def n_links(self) -> int:
+        """Number of links (self-loops included)."""
+        return int(self.sources.size)
+
+    def link_names(self, positions: Any) -> list[tuple[str, str]]:
+        """``(source name, target name)`` for link positions."""
+        return [(self.state_names[int(self.sources[k])], self.state_names[int(self.targets[k])])
+                for k in positions]
+
+    def role_of(self, source: str | int, target: str | int) -> str:
+        """Role of the link ``source -> target`` (names or indices)."""
+        names = self.state_names
+        u = names.index(str(source)) if str(source) in names else source
+        v = names.index(str(target)) if str(target) in names else target
+        hit = np.flatnonzero((self.sources == u) & (self.targets == v))
+        if hit.size == 0:
+            raise UnknownNameError(f"no link {source!r} -> {target!r} in the system; "
+                                   "links are given as 'source -> target' (source influences "
+                                   "target).")
+        return LINK_ROLES[int(self.role[hit[0]])]
+
+    def counts(self) -> dict[str, int]:
+        """Number of links per role."""
+        return {"critical": int(self.critical.size), "ordinary": int(self.ordinary.size),
+                "redundant": int(self.redundant.size)}
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready: ``links`` is a list of ``{source, target, role}``."""
+        names = self.state_names
+        return {
+            "analysis": "link_roles",
+            "n_states": self.n_states,
+            "n_links": self.n_links,
+            "model": self.model,
+            "n_inputs": self.n_inputs,
+            "structural_rank_A": self.matching_size,
+            "counts": self.counts(),
+            "links": [{"source": names[u], "target": names[v], "role": LINK_ROLES[r]}
+                      for u, v, r in zip(self.sources.tolist(), self.targets.tolist(),
+                                         self.role.tolist())],
+        }
+
+
+# ---------------------------------------------------------------------- analyses
+def _n_d(n: int, size: int) -> int:
+    return max(n - size, 1) if n else 0
+
+
+def node_roles(system: StructuredSystem) -> NodeRoles:
+    r"""Critical, intermittent and redundant states for control (Jia et al. [1]_).
+
+    A state is *critical* if it is a driver in every minimum driver set, *intermittent*
+    if in some, *redundant* if in none [1]_. Existing inputs of ``system`` are ignored.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+
+    Returns
+    -------
+    NodeRoles
+
+    Notes
+    -----
+    Minimum driver sets (``|M*| < n``): the states left unmatched by the maximum
+    matchings of the bipartite graph of ``A`` (rows = influenced states, columns =
+    influencing states) [2]_. One maximum matching ``M`` is computed; a state is
+    unmatched in *some* maximum matching iff its row is reached by an alternating path
+    (any edge, then a matched edge) from a row ``M`` leaves unmatched. Hence: critical
+    iff no link enters the state (in-degree 0, self-loops count as links); intermittent
+    iff reached and in-degree >= 1; redundant iff not reached. These are Jia et al.'s
+    sets, which ignore the extra wiring an existing input may need to reach a source
+    component holding no driver.
+
+    Perfect matching (``|M*| = n``, so ``N_D = 1``): no state is unmatched in any maximum
+    matching, and the single input must act on at least one state of every *source*
+    strongly connected component (one no other component feeds) to reach everything;
+    the minimum driver sets are then the sets holding exactly one state of each source
+    component. So: critical iff the state is a source component by itself (it then
+    has a self-loop), intermittent iff it lies in a larger source component, redundant
+    otherwise. ``basis`` says which definition applied.
+
+    Cost: one maximum matching (Karp–Sipser + Pothen–Fan) and one breadth-first
+    alternating search, near-linear in the number of links.
+
+    References
+    ----------
+    .. [1] T. Jia, Y.-Y. Liu, E. Csóka, M. Pósfai, J.-J. Slotine, A.-L. Barabási,
+       "Emergence of bimodality in controlling complex networks", Nat. Commun. 4:2002,
+       2013. doi:10.1038/ncomms3002
+    .. [2] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+
+    Examples
+    --------
+    The five-state network ``1 -> 2 -> {3, 4, 5}`` has ``N_D = 3``:
+
+    >>> from netctl import StructuredSystem
+    >>> s = StructuredSystem.from_edges([0, 1, 1, 1], [1, 2, 3, 4],
+    ...                                 state_names=["1", "2", "3", "4", "5"])
+    >>> r = node_roles(s)
+    >>> r.n_inputs, r.names(r.critical), r.names(r.intermittent), r.names(r.redundant)
+    (3, ['1'], ['3', '4', '5'], ['2'])
+    """
+    A = system.A
+    n = system.n_states
+    indptr = A.indptr.astype(np.int64)
+    indices = A.indices.astype(np.int64)
+    if n == 0:
+        role = np.zeros(0, np.int8)
+        size = 0
+        basis = "empty"
+    else:
+        row_match, col_match = maximum_matching(indptr, indices, n)
+        size = int(np.count_nonzero(row_match >= 0))
+        indeg = np.diff(indptr)
+        role = np.full(n, 2, np.int8)
+        if size < n:
+            basis = "matching"
+            reached, _ = alternating_reach_rows(indptr, indices, n, col_match)
+            role[reached] = 1
+            role[indeg == 0] = 0
+        else:
+            basis = "source-components"
+            k, labels = strongly_connected_components(indptr, indices)
+            src = condensation_sources(indptr, indices, labels, k)
+            sizes = np.bincount(labels, minlength=k)
+            in_src = src[labels]
+            role[in_src] = 1
+            role[in_src & (sizes[labels] == 1)] = 0
+    return NodeRoles(
+        n_states=n, role=role, critical=np.flatnonzero(role == 0),
+        intermittent=np.flatnonzero(role == 1), redundant=np.flatnonzero(role == 2),
+        n_inputs=_n_d(n, size), matching_size=size, basis=basis,
+        state_names=system.state_names, model=system.model)
+
+
+def link_roles(system: StructuredSystem) -> LinkRoles:
+    r"""Critical, ordinary and redundant links for control (Liu et al. [1]_).
+
+    A link is *critical* if it is in every maximum matching of ``A``: losing it lowers
+    the structural rank of ``A`` by one, so the minimum number of inputs ``N_D`` rises
+    by one (unless the matching was perfect, see Notes). It is *redundant* if it is in
+    no maximum matching: losing it never changes ``N_D`` nor the possible minimum driver
+    sets. Otherwise it is *ordinary*. Self-loops are links like any other.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+
+    Returns
+    -------
+    LinkRoles
+        Links in :meth:`StructuredSystem.edges` order, their roles, and ``N_D`` after
+        losing each one.
+
+    Notes
+    -----
+    From one maximum matching ``M`` [2]_, [3]_: a link (row ``v``, column ``u``) is in
+    some but not all maximum matchings iff it lies on an even alternating cycle (its
+    two ends share a strongly connected component of the graph that orients unmatched
+    edges row -> column and matched edges column -> row), or an even alternating path
+    from a free vertex reaches one of its ends (the row is unmatched in some maximum
+    matching, or the column is). A matched link with neither is critical; an unmatched
+    link with neither is redundant. Cost: one matching, two alternating searches and one
+    strongly connected components pass, near-linear in the number of links.
+
+    With a perfect matching (``N_D = 1``) a critical link's loss lowers the structural
+    rank to ``n - 1`` and ``N_D = max(n - |M*|, 1)`` stays 1, but the single input must
+    then act on the state left unmatched; ``n_inputs_after_loss`` gives the exact count.
+
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+    .. [2] A. L. Dulmage, N. S. Mendelsohn, "Coverings of bipartite graphs", Canad. J.
+       Math. 10:517-534, 1958.
+    .. [3] T. Tassa, "Finding all maximally-matchable edges in a bipartite graph",
+       Theor. Comput. Sci. 423:50-58, 2012. doi:10.1016/j.tcs.2011.12.071
+
+    Examples
+    --------
+    >>> from netctl import StructuredSystem
+    >>> s = StructuredSystem.from_edges([0, 1, 1, 1], [1, 2, 3, 4])
+    >>> r = link_roles(s)
+    >>> r.link_names(r.critical), len(r.ordinary), r.n_inputs_after_loss.tolist()
+    ([('x0', 'x1')], 3, [4, 3, 3, 3])
+    """
+    A = system.A
+    n = system.n_states
+    src, tgt = system.edges()
+    if n == 0 or A.nnz == 0:
+        role = np.full(src.size, 2, np.int8)
+        size = 0
+    else:
+        f = matching_facts(A.indptr, A.indices, n)
+        role = edge_classes(f)
+        size = f.matching_size
+    after = np.where(role == 0, _n_d(n, size - 1) if size else 0, _n_d(n, size))
+    return LinkRoles(
+        n_states=n, sources=src, targets=tgt, role=role,
+        critical=np.flatnonzero(role == 0), ordinary=np.flatnonzero(role == 1),
+        redundant=np.flatnonzero(role == 2), n_inputs=_n_d(n, size),
+        n_inputs_after_loss=after.astype(np.int64), matching_size=size,
+        state_names=system.state_names, model=system.model)
+
+
+# ---------------------------------------------------------------------- node losses
+@njit(cache=True, nogil=True)
+def _reach_queries(indptr, indices, scc, topo, sources, targets, out):  # pragma: no cover
+    """out[q] = targets[q] reachable from sources[q] (pruned by topological position)."""
+    n = indptr.size - 1
+    stamp = np.zeros(n, np.int64)
+    queue = np.empty(n, np.int64)
+    for q in range(sources.size):
+        s = sources[q]
+        t = targets[q]
+        if scc[s] == scc[t]:
+            out[q] = True
+            continue
+        limit = topo[scc[t]]
+        if topo[scc[s]] > limit:
+            out[q] = False
+            continue
+        mark = q + 1
+        stamp[s] = mark
+        queue[0] = s
+        head = 0
+        tail = 1
+        found = False
+        while head < tail and not found:
+            u = queue[head]
+            head += 1
+            for k in range(indptr[u], indptr[u + 1]):
+                w = indices[k]
+                if w == t or scc[w] == scc[t]:
+                    found = True
+                    break
+                if stamp[w] != mark and topo[scc[w]] < limit:
+                    stamp[w] = mark
+                    queue[tail] = w
+                    tail += 1
+        out[q] = found
+
+
+@njit(cache=True, nogil=True)
+def _topo_of_components(indptr, indices, scc, k):  # pragma: no cover - compiled
+    """Topological position of every component of the condensation (Kahn)."""
+    n = indptr.size - 1
+    indeg = np.zeros(k, np.int64)
+    cnt = np.zeros(k + 1, np.int64)
+    for u in range(n):
+        for e in range(indptr[u], indptr[u + 1]):
+            a = scc[u]
+            b = scc[indices[e]]
+            if a != b:
+                indeg[b] += 1
+                cnt[a + 1] += 1
+    for a in range(k):
+        cnt[a + 1] += cnt[a]
+    fill = cnt[:-1].copy()
+    adj = np.empty(cnt[k], np.int64)
+    for u in range(n):
+        for e in range(indptr[u], indptr[u + 1]):
+            a = scc[u]
+            b = scc[indices[e]]
+            if a != b:
+                adj[fill[a]] = b
+                fill[a] += 1
+    topo = np.empty(k, np.int64)
+    queue = np.empty(k, np.int64)
+    tail = 0
+    for a in range(k):
+        if indeg[a] == 0:
+            queue[tail] = a
+            tail += 1
+    head = 0
+    while head < tail:
+        a = queue[head]
+        topo[a] = head
+        head += 1
+        for e in range(cnt[a], cnt[a + 1]):
+            b = adj[e]
+            indeg[b] -= 1
+            if indeg[b] == 0:
+                queue[tail] = b
+                tail += 1
+    return topo
+
+
+def matching_loss_after_node_removal(f: MatchingFacts, nodes: np.ndarray) -> np.ndarray:
+    """How much the maximum matching shrinks (0, 1 or 2) when row ``v`` and column ``v``
+    are both deleted, for each ``v`` in ``nodes`` (rows and columns share the first
+    indices, as for ``A`` or ``[A B]``).
+
+    Exact. Row ``v`` free in some maximum matching and column ``v`` free in some (they
+    can be freed at once, by the Dulmage–Mendelsohn structure): 0. Exactly one of them:
+    1. Neither: 1 if ``v`` is matched to itself, or if the row matched to column ``v``
+    reaches row ``v`` in the alternating graph (an augmenting path then repairs one of the
+    two lost edges); else 2. The reachability questions are answered by searches pruned
+    to the components between the two ends (worst case linear each).
+    """
+    nodes = np.asarray(nodes, np.int64)
+    rf = f.rows_free[nodes]
+    cf = f.cols_free[nodes]
+    loss = 2 - rf.astype(np.int64) - cf.astype(np.int64)
+    hard = np.flatnonzero(loss == 2)
+    if hard.size:
+        v = nodes[hard]
+        self_matched = f.row_match[v] == v
+        loss[hard[self_matched]] = 1
+        q = hard[~self_matched]
+        if q.size:
+            topo = _topo_of_components(f.h_indptr, f.h_indices, f.h_scc, np.int64(f.h_n_scc))
+            srcs = f.col_match[nodes[q]]
+            out = np.zeros(q.size, np.bool_)
+            _reach_queries(f.h_indptr, f.h_indices, f.h_scc, topo,
+                           np.ascontiguousarray(srcs), np.ascontiguousarray(nodes[q]), out)
+            loss[q[out]] = 1
+    return loss
