@@ -1,0 +1,28 @@
+"""Numeric analyses: sampled realizations, reliable rank tests, exact controllability
+for given weights, modal controllability and control energy.
+
+Structural analyses (:mod:`netctl.structural`) answer for almost all weights of a
+pattern; the analyses here use *numbers* -- the file's weights or weights sampled under
+a stated parameterization (:data:`PARAMETERIZATIONS`) -- and always say which.
+"""
+
+from netctl.numeric.rank import (
+    LostMode,
+    RankTest,
+    modular,
+    pbh,
+    sparse_certificate,
+    staircase,
+)
+from netctl.numeric.realize import PARAMETERIZATIONS, realize
+
+__all__ = [
+    "LostMode",
+    "PARAMETERIZATIONS",
+    "RankTest",
+    "modular",
+    "pbh",
+    "realize",
+    "sparse_certificate",
+    "staircase",
+]
