@@ -1,0 +1,736 @@
+"""Reliable numeric rank tests for controllability, each with the margin of its decision.
+
+Four tests, for different sizes and needs:
+
+* :func:`staircase` -- orthogonal controllability staircase form (Van Dooren 1981),
+  dense, ``O(n^3)``, up to a few thousand states;
+* :func:`pbh` -- the Popov–Belevitch–Hautus test at every eigenvalue, with clusters of
+  close eigenvalues handled together on their left invariant subspace (so repeated
+  eigenvalues and Jordan blocks are covered); it also names the lost modes and the
+  states that carry them;
+* :func:`modular` -- exact arithmetic: random weights over a prime field and the
+  Krylov subspace rank modulo ``p`` (no rounding; Schwartz–Zippel bound reported);
+* :func:`sparse_certificate` -- for very large sparse networks: a nonsingular sparse
+  LU of the matched columns of ``[A B]`` with random weights, plus graph accessibility.
+
+The Kalman matrix ``[B, AB, ..., A^{n-1}B]`` is deliberately absent: its rank is
+unreliable in floating point (see docs/NUMERIC.md).
+
+Margins are reported in decades: ``log10(smallest singular value kept / largest
+dropped)``, the tolerance standing in for a side that is empty. A margin below about 2
+means the decision is close to the rounding level; treat the dimension as uncertain.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import scipy.linalg as la
+import scipy.sparse as sp
+
+from netctl.errors import OptionError
+from netctl.system import StructuredSystem
+
+__all__ = ["RankTest", "LostMode", "staircase", "pbh", "modular", "sparse_certificate",
+           "staircase_dimension", "MERSENNE_61", "DENSE_LIMIT"]
+
+MERSENNE_61 = 2**61 - 1
+DENSE_LIMIT = 5000
+_EPS = float(np.finfo(float).eps)
+
+
+@dataclass(frozen=True)
+class LostMode:
+    """An uncontrollable mode: eigenvalue, how many directions are lost, which states.
+
+    ``states`` are the states on which the lost left eigenvectors are nonzero (relative
+    size above 1e-6): an input on any of them would act on the mode; the support is
+    sorted by state index.
+    """
+
+    eigenvalue: complex
+    n_lost: int
+    states: np.ndarray
+
+
+@dataclass(frozen=True)
+class RankTest:
+    """Outcome of one numeric rank test.
+
+    Attributes
+    ----------
+    method : str
+        ``"staircase"``, ``"pbh"``, ``"modular"`` or ``"certificate"``.
+    dimension : int or None
+        Numeric controllable dimension (``None`` when a certificate is inconclusive).
+    margin : float
+        Decades between the smallest singular value (pivot) kept and the largest dropped
+        (the tolerance stands in for an empty side); ``inf`` for exact tests.
+    smallest_kept, largest_dropped, tolerance : float
+        The two sides of the closest rank decision and the tolerance used.
+    blocks : ndarray of int
+        Staircase block sizes (``staircase``), cluster sizes (``pbh``).
+    lost_modes : tuple of LostMode
+        Uncontrollable modes with the states that carry them (``pbh``).
+    failure_bound : float or None
+        ``modular``: bound on the probability that the dimension is too small
+        (Schwartz–Zippel); ``None`` otherwise.
+    """
+
+    method: str
+    n_states: int
+    dimension: int | None
+    margin: float
+    smallest_kept: float
+    largest_dropped: float
+    tolerance: float
+    blocks: np.ndarray
+    state_names: tuple[str, ...] = field(repr=False)
+    lost_modes: tuple[LostMode, ...] = ()
+    uncontrollable_eigenvalues: np.ndarray = field(
+        default_factory=lambda: np.zeros(0, complex))
+    failure_bound: float | None = None
+    weights: str = "given"
+    note: str = ""
+
+    @property
+    def controllable(self) -> bool | None:
+        """Whether the numeric dimension is ``n`` (``None`` if inconclusive)."""
+        return None if self.dimension is None else self.dimension == self.n_states
+
+    def names(self, indices: Any) -> list[str]:
+        """State names for state indices."""
+        return [self.state_names[int(i)] for i in indices]
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready dictionary (names, not indices)."""
+        return {
+            "method": self.method,
+            "weights": self.weights,
+            "n_states": self.n_states,
+            "dimension": self.dimension,
+            "controllable": self.controllable,
+            "margin": _json_float(self.margin),
+            "smallest_kept": _json_float(self.smallest_kept),
+            "largest_dropped": _json_float(self.largest_dropped),
+            "tolerance": _json_float(self.tolerance),
+            "blocks": self.blocks.tolist(),
+            "lost_modes": [{"eigenvalue": _complex(m.eigenvalue), "n_lost": m.n_lost,
+                            "states": self.names(m.states)} for m in self.lost_modes],
+            "uncontrollable_eigenvalues": [_complex(z) for z in self.uncontrollable_eigenvalues],
+            "failure_bound": self.failure_bound,
+            "note": self.note,
+        }
+
+
+def _json_float(x: float) -> float | str:
+    return x if np.isfinite(x) else ("inf" if x > 0 else "-inf" if x < 0 else "nan")
+
+
+def _complex(z: complex) -> list[float]:
+    z = complex(z)
+    return [round(z.real, 12), round(z.imag, 12)]
+
+
+def _dense(system: StructuredSystem, limit: int = DENSE_LIMIT) -> tuple[np.ndarray, np.ndarray]:
+    n = system.n_states
+    if n > limit:
+        raise OptionError(
+            f"a dense test on {n} states would need {8 * n * n / 1e9:.1f} GB and O(n^3) "
+            f"time; the limit is {limit} states. Use method 'certificate' (sparse) for "
+            "large networks.")
+    return system.A.toarray(), system.B.toarray()
+
+
+def _default_tol(A: np.ndarray, B: np.ndarray) -> float:
+    n = A.shape[0]
+    nrm = float(np.sqrt(np.linalg.norm(A) ** 2 + np.linalg.norm(B) ** 2))
+    return max(n, 1) * _EPS * max(nrm, 1.0)
+
+
+def _margin(kept: float, dropped: float, tol: float) -> float:
+    k = kept if np.isfinite(kept) else tol
+    d = dropped if dropped > 0 else tol
+    if k <= 0:
+        return -np.inf if d > 0 else 0.0
+    return float(np.log10(k / d)) if d > 0 else np.inf
+
+
+class _Decisions:
+    """Running record of the closest kept / dropped singular values."""
+
+    def __init__(self) -> None:
+        self.kept = np.inf
+        self.dropped = 0.0
+
+    def take(self, s: np.ndarray, tol: float) -> int:
+        r = int(np.count_nonzero(s > tol))
+        if r:
+            self.kept = min(self.kept, float(s[r - 1]))
+        if r < s.size:
+            self.dropped = max(self.dropped, float(s[r]))
+        return r
+
+
+def _apply_q(qr: np.ndarray, tau: np.ndarray, A: np.ndarray, k0: int) -> None:
+    """A <- Q^H A Q on the trailing index range ``k0:`` (Q from Householder ``qr``)."""
+    cplx = np.iscomplexobj(A)
+    name = "unmqr" if cplx else "ormqr"
+    (mqr,) = la.get_lapack_funcs((name,), (A,))
+    trans = "C" if cplx else "T"
+    rows = A[k0:, :]
+    lwork = max(1, 64 * max(rows.shape))
+    out, _, info = mqr("L", trans, qr, tau, rows, lwork)
+    if info != 0:  # pragma: no cover - LAPACK argument error
+        raise RuntimeError(f"LAPACK {name} failed (info={info})")
+    A[k0:, :] = out
+    cols = A[:, k0:]
+    out, _, info = mqr("R", "N", qr, tau, cols, lwork)
+    if info != 0:  # pragma: no cover
+        raise RuntimeError(f"LAPACK {name} failed (info={info})")
+    A[:, k0:] = out
+
+
+def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
+                        ) -> tuple[int, list[int], _Decisions, np.ndarray]:
+    """Controllable dimension of dense ``(A, B)`` by the orthogonal staircase (kernel).
+
+    Returns ``(dimension, block sizes, decisions, A_u)`` where ``A_u`` is the
+    uncontrollable block of the staircase form (its eigenvalues are the lost modes).
+    Works for real and complex input; ``A`` is copied.
+    """
+    dtype = np.result_type(A, B, float)
+    A = np.array(A, dtype=dtype, order="F", copy=True)
+    n = A.shape[0]
+    dec = _Decisions()
+    blocks: list[int] = []
+    k0 = 0
+    X = np.asarray(B, dtype=dtype)
+    while k0 < n and X.shape[1] > 0:
+        if X.shape[1] == 1:
+            s = np.array([np.linalg.norm(X)])
+        else:
+            U, s, _ = la.svd(X, full_matrices=False, lapack_driver="gesvd")
+        r = dec.take(s, tol)
+        if r == 0:
+            break
+        basis = X / s[0] if X.shape[1] == 1 else U[:, :r]
+        (qr, tau), _ = la.qr(np.asarray(basis, order="F"), mode="raw")
+        _apply_q(qr, tau, A, k0)
+        blocks.append(r)
+        k0 += r
+        if r == 1 and k0 < n:
+            # the rest of the chain has blocks of size <= 1: a Hessenberg reduction of
+            # the trailing part (Q e1 = e1) gives them all at once (blocked LAPACK)
+            T = A[k0 - 1:, k0 - 1:]
+            H = la.hessenberg(T, calc_q=False, overwrite_a=False, check_finite=False)
+            sub = np.abs(np.diagonal(H, -1))
+            small = np.flatnonzero(sub <= tol)
+            stop = int(small[0]) if small.size else sub.size
+            if stop:
+                dec.kept = min(dec.kept, float(sub[:stop].min()))
+            if small.size:
+                dec.dropped = max(dec.dropped, float(sub[stop]))
+            blocks.extend([1] * stop)
+            k0 += stop
+            Au = H[1 + stop:, 1 + stop:] if k0 < n else np.zeros((0, 0), dtype)
+            return k0, blocks, dec, Au
+        X = A[k0:, k0 - r:k0]
+    return k0, blocks, dec, A[k0:, k0:]
+
+
+def staircase(system: StructuredSystem, *, tol: float | None = None) -> RankTest:
+    r"""Numeric controllable dimension by the orthogonal staircase form (Van Dooren).
+
+    Orthogonal similarity brings ``(A, B)`` to ``U^T A U = [[A_c, *], [0, A_u]]``,
+    ``U^T B = [B_1; 0]`` with ``A_c`` block upper Hessenberg [1]_, [2]_. Each block's rank
+    is decided by an SVD against ``tol``; the controllable dimension is the size of
+    ``A_c`` and the eigenvalues of ``A_u`` are the uncontrollable modes.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+        Numeric weights are taken as stored (use :func:`netctl.numeric.realize`).
+    tol : float, optional
+        Rank tolerance; default ``n * eps * ||[A B]||_F``.
+
+    Returns
+    -------
+    RankTest
+        ``dimension``, ``margin`` (decades between the smallest singular value kept and
+        the largest dropped), block sizes and the eigenvalues of ``A_u``.
+
+    Notes
+    -----
+    Only orthogonal transformations are used, so the computed form is exact for a
+    nearby system (backward stable) [1]_, unlike the Kalman matrix, whose rank fails
+    already for ``A = diag(1..12), b = 1`` [3]_. Once a block has size one, the rest
+    of the chain is one Hessenberg reduction (blocked LAPACK). Dense, ``O(n^3)`` time,
+    ``O(n^2)`` memory.
+
+    References
+    ----------
+    .. [1] P. Van Dooren, "The generalized eigenstructure problem in linear system
+       theory", IEEE TAC 26(1):111-129, 1981. doi:10.1109/TAC.1981.1102559
+    .. [2] C. C. Paige, "Properties of numerical algorithms related to computing
+       controllability", IEEE TAC 26(1):130-138, 1981. doi:10.1109/TAC.1981.1102560
+    .. [3] see docs/NUMERIC.md (the scaled Vandermonde example).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from netctl import StructuredSystem
+    >>> s = StructuredSystem.from_matrices(np.diag([1.0, 2.0, 3.0]), np.array([[1.0], [1.0], [0.0]]))
+    >>> r = staircase(s)
+    >>> r.dimension, r.uncontrollable_eigenvalues.real.round(6).tolist()
+    (2, [3.0])
+    """
+    A, B = _dense(system)
+    t = _default_tol(A, B) if tol is None else float(tol)
+    dim, blocks, dec, Au = staircase_dimension(A, B, t)
+    ev = la.eigvals(Au) if Au.size else np.zeros(0, complex)
+    return RankTest(method="staircase", n_states=system.n_states, dimension=dim,
+                    margin=_margin(dec.kept, dec.dropped, t), smallest_kept=dec.kept,
+                    largest_dropped=dec.dropped, tolerance=t,
+                    blocks=np.asarray(blocks, np.int64), state_names=system.state_names,
+                    uncontrollable_eigenvalues=np.sort_complex(ev),
+                    weights=_weights_of(system))
+
+
+def _weights_of(system: StructuredSystem) -> str:
+    return system.model.rsplit("+", 1)[1] if "+" in system.model else (
+        "given" if system.weighted else "pattern (all weights 1)")
+
+
+def eigen_clusters(lam: np.ndarray, radius: float) -> list[np.ndarray]:
+    """Groups of eigenvalue indices chained by distance ``<= radius`` (sorted)."""
+    n = lam.size
+    if n == 0:
+        return []
+    from scipy.sparse.csgraph import connected_components
+
+    if n <= 4000:
+        close = np.abs(lam[:, None] - lam[None, :]) <= radius
+        k, labels = connected_components(sp.csr_array(close), directed=False)
+    else:  # pragma: no cover - large spectra: sort by real part, compare neighbours
+        order = np.argsort(lam.real, kind="stable")
+        z = lam[order]
+        link = np.abs(np.diff(z)) <= radius
+        labels_sorted = np.concatenate([[0], np.cumsum(~link)])
+        labels = np.empty(n, np.int64)
+        labels[order] = labels_sorted
+        k = int(labels_sorted[-1]) + 1
+    groups = [np.flatnonzero(labels == c) for c in range(k)]
+    groups.sort(key=lambda g: int(g[0]))
+    return groups
+
+
+def cluster_subspace(A: np.ndarray, lam: np.ndarray, idx: np.ndarray, radius: float
+                     ) -> tuple[np.ndarray, np.ndarray]:
+    """Orthonormal basis ``W`` (n x k) of the left invariant subspace of a cluster and
+    ``S`` with ``W^H A = S W^H`` (ordered complex Schur form of ``A^H``)."""
+    mu = lam[idx]
+
+    def select(z: complex) -> bool:
+        return bool(np.min(np.abs(np.conj(z) - mu)) <= radius)
+
+    T, Z, sdim = la.schur(A.conj().T.astype(complex), output="complex", sort=select)
+    k = int(sdim)
+    W = Z[:, :k]
+    S = T[:k, :k].conj().T
+    return W, S
+
+
+def _support(w: np.ndarray) -> np.ndarray:
+    mag = np.abs(w) if w.ndim == 1 else np.linalg.norm(w, axis=1)
+    top = mag.max(initial=0.0)
+    return np.flatnonzero(mag > 1e-6 * top).astype(np.int64) if top > 0 else np.zeros(0, np.int64)
+
+
+def pbh(system: StructuredSystem, *, tol: float | None = None,
+        cluster_tol: float | None = None) -> RankTest:
+    r"""Popov–Belevitch–Hautus test at every eigenvalue, clusters handled together.
+
+    ``(A, B)`` is controllable iff no left eigenvector ``w`` (``w^H A = lambda w^H``)
+    has ``w^H B = 0`` [1]_. Simple eigenvalues are tested with their normalized left
+    eigenvector: the decision value is ``||w^H B||``. Eigenvalues closer than
+    ``cluster_tol`` are grouped; for a cluster of size ``k`` the left invariant subspace
+    ``W`` (ordered Schur form) gives the ``k x k`` system ``(S, W^H B)`` with
+    ``W^H A = S W^H``, and its staircase dimension tells how many of the ``k``
+    directions are controllable -- so Jordan blocks and repeated eigenvalues are
+    covered exactly, not skipped.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+    tol : float, optional
+        Rank tolerance; default ``n * eps * ||[A B]||_F``.
+    cluster_tol : float, optional
+        Eigenvalues closer than this form one cluster; default
+        ``1e-6 * max(1, ||A||_F)`` (perturbed Jordan blocks spread like ``eps^(1/k)``).
+
+    Returns
+    -------
+    RankTest
+        ``dimension`` = ``n`` minus the lost directions; ``lost_modes`` lists each lost
+        eigenvalue with the states carrying the lost left eigenvectors; ``blocks`` the
+        cluster sizes.
+
+    Notes
+    -----
+    One eigen-decomposition with left vectors (``O(n^3)``) and one ordered Schur form
+    per cluster of size > 1. Grouping more eigenvalues than necessary is safe (the
+    projected system is still exact); grouping fewer is what the default guards
+    against.
+
+    References
+    ----------
+    .. [1] C. C. Paige, "Properties of numerical algorithms related to computing
+       controllability", IEEE TAC 26(1):130-138, 1981 (test R2).
+       doi:10.1109/TAC.1981.1102560
+    .. [2] M. L. J. Hautus, "Controllability and observability conditions of linear
+       autonomous systems", Indag. Math. 72(5):443-448, 1969.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from netctl import StructuredSystem
+    >>> J = np.array([[0.0, 1.0], [0.0, 0.0]])     # one Jordan block at 0
+    >>> pbh(StructuredSystem.from_matrices(J, np.array([[0.0], [1.0]]))).dimension
+    2
+    >>> pbh(StructuredSystem.from_matrices(J, np.array([[1.0], [0.0]]))).dimension
+    1
+    """
+    A, B = _dense(system)
+    n = A.shape[0]
+    t = _default_tol(A, B) if tol is None else float(tol)
+    radius = 1e-6 * max(1.0, float(np.linalg.norm(A))) if cluster_tol is None else float(cluster_tol)
+    if n == 0:
+        return RankTest("pbh", 0, 0, np.inf, np.inf, 0.0, t, np.zeros(0, np.int64),
+                        system.state_names, weights=_weights_of(system))
+    lam, VL = la.eig(A, left=True, right=False)
+    dec = _Decisions()
+    lost: list[LostMode] = []
+    sizes: list[int] = []
+    n_lost = 0
+    for idx in eigen_clusters(lam, radius):
+        sizes.append(idx.size)
+        mu = complex(np.mean(lam[idx]))
+        if idx.size == 1:
+            w = VL[:, idx[0]]
+            w = w / np.linalg.norm(w)
+            s = np.array([np.linalg.norm(w.conj() @ B)]) if B.shape[1] else np.zeros(1)
+            if dec.take(s, t) == 0:
+                n_lost += 1
+                lost.append(LostMode(mu, 1, _support(w)))
+            continue
+        W, S = cluster_subspace(A, lam, idx, radius)
+        Bc = W.conj().T @ B
+        d, _, sub, _ = staircase_dimension(S, Bc, t)
+        dec.kept = min(dec.kept, sub.kept)
+        dec.dropped = max(dec.dropped, sub.dropped)
+        k_lost = S.shape[0] - d
+        if k_lost:
+            n_lost += k_lost
+            # lost left eigenvectors inside the cluster: y with y^H [S - mu I, Bc] ~ 0
+            M = np.hstack([S - mu * np.eye(S.shape[0]), Bc])
+            U, sv, _ = la.svd(M)
+            sv_full = np.concatenate([sv, np.zeros(U.shape[1] - sv.size)])
+            thresh = max(radius, t)
+            Y = U[:, sv_full <= thresh]
+            if Y.shape[1] == 0:
+                Y = U[:, -1:]
+            lost.append(LostMode(mu, int(k_lost), _support(W @ Y)))
+    lost.sort(key=lambda m: (m.eigenvalue.real, m.eigenvalue.imag))
+    ev = np.sort_complex(np.array([m.eigenvalue for m in lost for _ in range(m.n_lost)],
+                                  dtype=complex))
+    return RankTest(method="pbh", n_states=n, dimension=n - n_lost,
+                    margin=_margin(dec.kept, dec.dropped, t), smallest_kept=dec.kept,
+                    largest_dropped=dec.dropped, tolerance=t,
+                    blocks=np.asarray(sizes, np.int64), state_names=system.state_names,
+                    lost_modes=tuple(lost), uncontrollable_eigenvalues=ev,
+                    weights=_weights_of(system))
+
+
+# ---------------------------------------------------------------------- modular
+MODULAR_WEIGHTS = ("independent", "symmetric", "laplacian", "uniform")
+
+
+def _to_flint(M: np.ndarray, p: int) -> Any:
+    import flint
+
+    r, c = M.shape
+    return flint.nmod_mat(r, c, np.ascontiguousarray(M, dtype=np.int64).ravel().tolist(), p)
+
+
+def _from_flint(M: Any) -> np.ndarray:
+    r, c = M.nrows(), M.ncols()
+    return np.fromiter(map(int, M.entries()), dtype=np.int64, count=r * c).reshape(r, c)
+
+
+def krylov_dimension_mod_p(A: np.ndarray, B: np.ndarray, p: int) -> int:
+    """``dim span{B, AB, A^2 B, ...}`` over ``GF(p)`` (entries of A, B in ``[0, p)``).
+
+    Doubling: with ``K`` spanning ``B, ..., A^{k-1}B`` and ``P = A^k``, the span of
+    ``[K, PK]`` covers powers below ``2k``; it stops when the span stops growing (the
+    Krylov sequence has stalled) or reaches ``n``. ``O(n^3 log n)`` field operations
+    (python-flint ``nmod_mat``).
+    """
+    n, m = B.shape
+    if n == 0 or m == 0:
+        return 0
+    E, r = _to_flint(B.T % p, p).rref()
+    r = int(r)
+    if r == 0:
+        return 0
+    K = _from_flint(E)[:r]
+    P = _to_flint(A % p, p)
+    power = 1
+    while r < n and power < n:
+        Y = P * _to_flint(np.ascontiguousarray(K.T), p)
+        stacked = np.vstack([K, _from_flint(Y).T])
+        E, r2 = _to_flint(stacked, p).rref()
+        r2 = int(r2)
+        if r2 == r:
+            break
+        K = _from_flint(E)[:r2]
+        r = r2
+        power *= 2
+        if r < n and power < n:
+            P = P * P
+    return r
+
+
+def _modular_matrices(system: StructuredSystem, weights: str, rng: np.random.Generator,
+                      p: int) -> tuple[np.ndarray, np.ndarray]:
+    """Dense integer matrices mod ``p`` of one random realization under ``weights``."""
+    n = system.n_states
+    coo = system.A.tocoo()
+    rows, cols = coo.row.astype(np.int64), coo.col.astype(np.int64)
+    off = rows != cols
+    A = np.zeros((n, n), np.int64)
+    Bc = system.B.tocoo()
+    B = np.zeros(system.B.shape, np.int64)
+
+    def draw(k: int) -> np.ndarray:
+        return rng.integers(1, p, size=k, dtype=np.int64)
+
+    if weights == "independent":
+        A[rows, cols] = draw(rows.size)
+        B[Bc.row, Bc.col] = draw(Bc.row.size)
+        return A, B
+    B[Bc.row, Bc.col] = np.round(Bc.data).astype(np.int64) % p if np.allclose(
+        Bc.data, np.round(Bc.data)) else draw(Bc.row.size)
+    r, c = rows[off], cols[off]
+    key_n = max(n, 1)
+    uniq, inv = np.unique(np.minimum(r, c) * key_n + np.maximum(r, c), return_inverse=True)
+    inv = inv.ravel()
+    if weights == "symmetric":
+        A[r, c] = draw(uniq.size)[inv]
+        A[rows[~off], cols[~off]] = draw(int(np.count_nonzero(~off)))
+        return A, B
+    w = draw(uniq.size)[inv] if weights == "laplacian" else np.ones(r.size, np.int64)
+    A[r, c] = w
+    looped = np.zeros(n, bool)
+    looped[rows[~off]] = True
+    damp = draw(n) if weights == "laplacian" else np.ones(n, np.int64)
+    # diagonal = -(row sum) - damping, in exact integers (object) then reduced mod p
+    sums = np.zeros(n, dtype=object)
+    np.add.at(sums, r, w.astype(object))
+    diag = -(sums + np.where(looped, damp, 0).astype(object))
+    A[np.arange(n), np.arange(n)] = np.array([int(x) % p for x in diag], dtype=np.int64)
+    return A, B
+
+
+def modular(system: StructuredSystem, *, weights: str = "independent", seed: int = 0,
+            prime: int = MERSENNE_61, trials: int = 1) -> RankTest:
+    r"""Exact controllable dimension for random weights over the prime field ``GF(p)``.
+
+    Draws the weights of the pattern uniformly from ``{1, ..., p-1}`` under the
+    parameterization ``weights`` and computes the Krylov subspace dimension modulo
+    ``p`` exactly (no rounding). The result never exceeds the generic dimension of
+    the family over the rationals; it falls short only if the random point is a root
+    of a nonzero polynomial of degree at most ``n^2`` (a minor of the controllability
+    matrix), which by the Schwartz–Zippel lemma [1]_, [2]_ has probability at most
+    ``n^2 / (p - 1)`` per trial. The best of ``trials`` is reported, with the bound
+    ``(n^2/(p-1))^trials``.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+        Only the pattern is used (and B's values when they are integers, except under
+        ``independent``).
+    weights : {"independent", "symmetric", "laplacian", "uniform"}
+        ``uniform`` has no random weights: it is the rank mod ``p`` of the integer
+        matrix itself (equal to the rational rank unless ``p`` divides the relevant
+        minors); no probability bound applies.
+    seed : int, default 0
+    prime : int, default 2**61 - 1
+        A prime below 2**63 (python-flint ``nmod_mat``).
+    trials : int, default 1
+
+    Returns
+    -------
+    RankTest
+        ``margin`` is ``inf`` (exact arithmetic); ``failure_bound`` as above.
+
+    Notes
+    -----
+    Dense: ``O(n^2)`` memory and ``O(n^3 log n)`` field operations (doubling
+    ``K <- [K, A^k K]``). ``independent`` weights give the *generic* (structural)
+    dimension of Hosoe with the stated probability.
+
+    References
+    ----------
+    .. [1] J. T. Schwartz, "Fast probabilistic algorithms for verification of polynomial
+       identities", J. ACM 27(4):701-717, 1980. doi:10.1145/322217.322225
+    .. [2] R. Zippel, "Probabilistic algorithms for sparse polynomials", EUROSAM 1979,
+       LNCS 72:216-226. doi:10.1007/3-540-09519-5_73
+
+    Examples
+    --------
+    >>> from netctl import StructuredSystem
+    >>> tree = StructuredSystem.from_edges([0, 0, 1, 2], [1, 2, 4, 3], 5, inputs=[0])
+    >>> modular(tree).dimension     # generic dimension 3 (longest stem), not 4
+    3
+    """
+    if weights not in MODULAR_WEIGHTS:
+        raise OptionError(f"the modular test supports weights {', '.join(MODULAR_WEIGHTS)}; "
+                          f"found {weights!r}. Use staircase or pbh for "
+                          "'swing' and 'given' weights.")
+    if trials < 1:
+        raise OptionError(f"trials must be >= 1, found {trials!r}.")
+    if not (2 < prime < 2**63):
+        raise OptionError(f"prime must lie in (2, 2**63), found {prime!r}.")
+    n = system.n_states
+    if n > DENSE_LIMIT:
+        _dense(system)
+    rng = np.random.default_rng(seed)
+    best = 0
+    reps = 1 if weights == "uniform" else trials
+    for _ in range(reps):
+        A, B = _modular_matrices(system, weights, rng, prime)
+        best = max(best, krylov_dimension_mod_p(A, B, prime))
+        if best == n:
+            break
+    bound = None if weights == "uniform" else min(1.0, n * n / (prime - 1)) ** trials
+    return RankTest(method="modular", n_states=n, dimension=best, margin=np.inf,
+                    smallest_kept=np.inf, largest_dropped=0.0, tolerance=0.0,
+                    blocks=np.zeros(0, np.int64), state_names=system.state_names,
+                    failure_bound=bound, weights=weights,
+                    note=f"exact rank over GF({prime}), {reps} trial(s)")
+
+
+# ---------------------------------------------------------------------- sparse certificate
+def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
+                       weights: str = "independent") -> RankTest:
+    r"""Certificate that ``rank [A B] = n`` with random weights, plus accessibility.
+
+    A maximum matching of ``[A B]`` picks ``n`` columns (one per state) when the
+    structural rank is ``n``; with random weights (or the stored ones, ``"given"``)
+    these columns form a square sparse matrix with a zero-free diagonal. Its
+    determinant is the product of the determinants of the diagonal blocks of its
+    block-triangular form (strongly connected components), so only the blocks of size
+    two or more are factorized (``scipy.sparse.linalg.splu``, COLAMD ordering). All
+    pivots clear of the tolerance and every state reachable from an input certify,
+    by Lin's theorem [1]_, that the pattern is structurally controllable, with a
+    numerical witness of full rank.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+    seed : int, default 0
+    weights : {"independent", "given"}
+
+    Returns
+    -------
+    RankTest
+        ``dimension`` is ``n`` when certified, ``None`` when inconclusive (a singular
+        matched submatrix does not prove rank deficiency; a structural rank below ``n``
+        or inaccessible states do prove that the pattern is not controllable, and then
+        ``dimension`` is ``None`` and ``note`` says why). ``margin``: decades between
+        the smallest pivot and the tolerance.
+
+    Notes
+    -----
+    Near-linear for the matching and the components; the LU costs what the fill-in of
+    the largest strongly connected block costs (small for tree-like and planar
+    networks, large for big random expanders).
+
+    References
+    ----------
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
+
+    Examples
+    --------
+    >>> from netctl import StructuredSystem
+    >>> cyc = StructuredSystem.from_edges([0, 1, 2], [1, 2, 0], 3, inputs=[0])
+    >>> sparse_certificate(cyc).dimension
+    3
+    """
+    from scipy.sparse.linalg import splu
+
+    from netctl.graph.components import strongly_connected_components
+    from netctl.graph.matching import maximum_matching
+    from netctl.numeric.realize import realize
+    from netctl.structural._engine import accessible_states, stack_AB, structure_of
+
+    if weights not in ("independent", "given"):
+        raise OptionError(f"the sparse certificate supports weights 'independent' and "
+                          f"'given'; found {weights!r}.")
+    n = system.n_states
+    real = realize(system, weights=weights, seed=seed)
+    st = structure_of(system.A)
+    acc = accessible_states(st, system.B)
+    indptr, indices, n_cols = stack_AB(system.A, system.B)
+    row_match, _ = maximum_matching(indptr, indices, n_cols)
+    size = int(np.count_nonzero(row_match >= 0))
+    base = dict(method="certificate", n_states=n, blocks=np.zeros(0, np.int64),
+                state_names=system.state_names, weights=weights)
+    n_inacc = int(np.count_nonzero(~acc))
+    if size < n or n_inacc:
+        why = []
+        if size < n:
+            why.append(f"structural rank of [A B] is {size} < {n}")
+        if n_inacc:
+            why.append(f"{n_inacc} state(s) not reachable from any input")
+        return RankTest(dimension=None, margin=0.0, smallest_kept=0.0, largest_dropped=0.0,
+                        tolerance=0.0, note="not structurally controllable: " + "; ".join(why),
+                        **base)
+    AB = sp.hstack([real.A, real.B], format="csc") if system.n_inputs else real.A.tocsc()
+    M = AB[:, row_match].tocsr()  # column j is the column of [A B] matched to state j
+    M.sort_indices()
+    k, labels = strongly_connected_components(M.indptr.astype(np.int64),
+                                              M.indices.astype(np.int64))
+    counts = np.bincount(labels, minlength=k)
+    big = counts[labels] > 1
+    diag = np.abs(M.diagonal())
+    tol = max(n, 1) * _EPS * max(float(np.abs(M.data).max(initial=0.0)), 1.0)
+    pivots = [diag[~big]]
+    sizes = np.sort(counts[counts > 1])[::-1]
+    if big.any():
+        idx = np.flatnonzero(big)
+        order = idx[np.argsort(labels[idx], kind="stable")]
+        sub = M[order][:, order].tocoo()
+        same = labels[order][sub.row] == labels[order][sub.col]
+        blk = sp.csc_matrix((sub.data[same], (sub.row[same], sub.col[same])),
+                            shape=(order.size, order.size))
+        try:
+            lu = splu(blk, permc_spec="COLAMD")
+            pivots.append(np.abs(lu.U.diagonal()))
+        except RuntimeError:  # exactly singular
+            pivots.append(np.zeros(1))
+    piv = np.concatenate(pivots) if pivots else np.ones(0)
+    smallest = float(piv.min(initial=np.inf))
+    ok = smallest > tol
+    return RankTest(dimension=n if ok else None,
+                    margin=_margin(smallest, 0.0, tol) if ok else _margin(tol, smallest, tol),
+                    smallest_kept=smallest if ok else np.inf,
+                    largest_dropped=0.0 if ok else smallest, tolerance=tol,
+                    note=("certified: rank [A B] = n with random weights, all states "
+                          f"accessible; largest strongly connected block {int(sizes[0]) if sizes.size else 1}")
+                    if ok else "inconclusive: the matched columns are numerically singular "
+                    "for these weights (try another seed)",
+                    **{**base, "blocks": sizes.astype(np.int64)})
