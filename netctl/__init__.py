@@ -15,6 +15,14 @@ Results concern a linear(ized) model, not the plant: they do not replace the ope
 procedures, applicable codes or the judgement of licensed engineers.
 """
 
+from netctl.ensemble import (
+    NullComparison,
+    cavity_driver_fraction,
+    compare_to_null,
+    configuration_model,
+    degree_preserving_swaps,
+    run_tasks,
+)
 from netctl.errors import (
     InvalidSystemError,
     MissingFileError,
@@ -47,15 +55,21 @@ __all__ = [
     "NetctlError",
     "NetworkFileError",
     "NetworkSummary",
+    "NullComparison",
     "OptionError",
     "StructuredSystem",
     "UnknownNameError",
     "__version__",
+    "cavity_driver_fraction",
+    "compare_to_null",
+    "configuration_model",
     "controllability",
+    "degree_preserving_swaps",
     "is_structurally_controllable",
     "is_structurally_observable",
     "minimum_inputs",
     "minimum_sensors",
     "observability",
+    "run_tasks",
     "summarize",
 ]

@@ -1,0 +1,82 @@
+"""``netctl compare FILE --null degree --samples K``: is the driver count unusual?"""
+
+from __future__ import annotations
+
+import argparse
+from typing import Any
+
+from netctl.ensemble import EXECUTORS, NULL_MODELS
+
+__all__ = ["register", "add_executor_options"]
+
+
+def add_executor_options(p: argparse.ArgumentParser) -> None:
+    """``--executor``, ``--workers``, ``--scheduler`` (shared with ``netctl batch``)."""
+    p.add_argument("--executor", choices=list(EXECUTORS), default="local",
+                   help="what runs the independent tasks: local processes (default), serial, "
+                        "or dask (a running scheduler with --scheduler, else a local cluster)")
+    p.add_argument("--workers", type=int, default=None, metavar="W",
+                   help="worker processes (default: the CPUs available; dask local cluster: 2)")
+    p.add_argument("--scheduler", default=None, metavar="ADDRESS",
+                   help="Dask scheduler address, e.g. tcp://10.0.0.5:8786 (with --executor dask)")
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    p = subparsers.add_parser(
+        "compare", parents=[common],
+        help="minimum inputs against a degree-preserving null model and the analytic "
+             "prediction (mean, spread, z-score)")
+    p.add_argument("--null", choices=list(NULL_MODELS), default="degree",
+                   help="null model: degree = configuration model (stub matching; default), "
+                        "swap = degree-preserving link swaps of the network itself")
+    p.add_argument("--samples", type=int, default=100, metavar="K",
+                   help="null-model samples (default 100)")
+    p.add_argument("--seed", type=int, default=None, metavar="N",
+                   help="random seed; the same seed gives the same samples on any executor "
+                        "(default: fresh, printed so the run can be repeated)")
+    add_executor_options(p)
+    p.set_defaults(func=_cmd_compare)
+
+
+def _fmt(x: float | None, digits: int = 4) -> str:
+    return "undefined" if x is None else f"{x:.{digits}f}"
+
+
+def _cmd_compare(args: argparse.Namespace) -> int:
+    from netctl.cli import UsageError, emit, load_system
+    from netctl.ensemble import compare_to_null
+
+    if args.samples < 1:
+        raise UsageError(f"--samples must be at least 1, found {args.samples}; use 100 or "
+                         "more for a stable mean and spread.")
+    if args.seed is not None and args.seed < 0:
+        raise UsageError(f"--seed must be >= 0, found {args.seed}.")
+    if args.workers is not None and args.workers < 1:
+        raise UsageError(f"--workers must be at least 1, found {args.workers}.")
+    if args.scheduler is not None and args.executor != "dask":
+        raise UsageError(f"--scheduler {args.scheduler} needs --executor dask.")
+    system = load_system(args)
+    r = compare_to_null(system, null=args.null, samples=args.samples, seed=args.seed,
+                        executor=args.executor, workers=args.workers, scheduler=args.scheduler)
+    d = r.to_dict()
+    d["file"] = args.file
+    n = r.n_states
+    z = r.z_score
+    lines = [f"{args.file}: {n} states, {r.n_links} links, model {r.model}",
+             f"  observed minimum inputs: {r.observed_n_inputs} "
+             f"(fraction {_fmt(r.fraction(r.observed_n_inputs))})",
+             f"  null model '{r.null}' ({r.n_samples} samples, seed {r.seed}): "
+             f"mean {r.mean:.2f}, std {r.std:.2f} "
+             f"(fraction {_fmt(r.fraction(r.mean))} +/- {_fmt(r.fraction(r.std))})",
+             f"  z-score: {_fmt(z, 2)}"
+             + ("" if z is not None else " (the samples have no spread)")]
+    if r.prediction is not None:
+        p = r.prediction.driver_fraction
+        lines.append(f"  cavity prediction (Liu, Slotine & Barabasi 2011): fraction {p:.4f} "
+                     f"({p * n:.1f} inputs)")
+    for note in r.notes:
+        lines.append(f"  note: {note}")
+    lines.append("  (z-score: how many ensemble standard deviations the observed count lies "
+                 "from the ensemble mean)")
+    emit(args, d, "\n".join(lines))
+    return 0
