@@ -265,6 +265,8 @@ class ContingencySweep:
     cut_off: np.ndarray
     state_names: tuple[str, ...] = field(repr=False)
     model: str = "given"
+    _dom_pre: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
+    _dom_size: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
 
     @property
     def n_elements(self) -> int:
@@ -289,15 +291,29 @@ class ContingencySweep:
             return f"{names[int(self.sources[k])]} -> {names[int(self.targets[k])]}"
         return names[int(self.sources[k])]
 
+    def cut_off_states(self, k: int) -> np.ndarray:
+        """Sorted states that loss ``k`` cuts off from every input (removed state excluded)."""
+        if not self.has_design or not self.cut_off[k]:
+            return np.zeros(0, np.int64)
+        head = int(self.targets[k])
+        inside = (self._dom_pre >= self._dom_pre[head]) & (
+            self._dom_pre < self._dom_pre[head] + self._dom_size[head])
+        if self.elements == "nodes":
+            inside[head] = False
+        return np.flatnonzero(inside[: self.n_states])
+
     def reasons(self, k: int) -> list[str]:
         """Why loss ``k`` breaks the design (empty when it does not)."""
         out = []
         if self.has_design and self.rank_lost[k]:
-            out.append("dilation: some states are left with fewer distinct feeders "
-                       "(states or inputs) than they need; the generic rank of [A B] drops "
-                       "below the number of states")
+            out.append("dilation: without it the generic rank of [A B] falls below the "
+                       "number of states (some states have fewer distinct feeders than "
+                       "members)")
         if self.has_design and self.cut_off[k]:
-            out.append(f"{int(self.cut_off[k])} state(s) no longer reachable from any input")
+            names = [self.state_names[int(i)] for i in self.cut_off_states(k)]
+            shown = ", ".join(names[:8]) + (f", ... ({len(names) - 8} more)"
+                                             if len(names) > 8 else "")
+            out.append(f"cuts {len(names)} state(s) off every input: {shown}")
         return out
 
     def rows(self) -> list[dict[str, Any]]:
@@ -315,6 +331,7 @@ class ContingencySweep:
                 row["controllable_after"] = bool(self.controllable_after[k])
                 row["rank_lost"] = bool(self.rank_lost[k])
                 row["cut_off"] = int(self.cut_off[k])
+                row["cut_off_states"] = [names[int(i)] for i in self.cut_off_states(k)]
                 row["reasons"] = self.reasons(k)
             out.append(row)
         return out
@@ -419,11 +436,13 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
     rank_lost = np.zeros(k, bool)
     cut = np.zeros(k, np.int64)
     ok_before: bool | None = None
+    dom_pre = dom_size = np.zeros(0, np.int64)
     if has_design:
         indptr, indices, n_cols = stack_AB(A, B)
         fAB = matching_facts(indptr, indices, n_cols)
         rank_ok = fAB.matching_size == n
         r = _reach_structure(A, B)
+        dom_pre, dom_size = r.pre, np.concatenate([r.size, [n + 1]])
         unreached = int(np.count_nonzero(~r.reachable))
         ok_before = bool(rank_ok and unreached == 0)
         if elements == "links":
@@ -444,7 +463,7 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
         n_inputs=_n_d(n, fA.matching_size), n_inputs_after=np.asarray(after, np.int64),
         has_design=has_design, controllable_before=ok_before, controllable_after=ok_after,
         rank_lost=rank_lost, cut_off=cut, state_names=system.state_names,
-        model=system.model)
+        model=system.model, _dom_pre=dom_pre, _dom_size=dom_size)
 
 
 # ---------------------------------------------------------------------- k losses

@@ -1,0 +1,143 @@
+"""``netctl join A B ... --ties FILE``: compose subsystems and check the composite.
+
+Subsystems are network or system files (``NAME=PATH`` names one; otherwise the file name
+without its suffix). The ties file is CSV with the header
+``from_system,from_state,to_system,to_state`` and an optional fifth column ``kind``
+(``state``, the default: a link between states; ``signal``: ``from_state`` names an
+output and ``to_state`` an input, fed by that output). ``#`` starts a comment.
+
+Exit status: 0 when the composite is structurally controllable with its external inputs
+(or when it has none: then the minimum number of inputs is reported), 1 when it is not,
+2 on bad usage or input.
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import io
+from pathlib import Path
+from typing import Any
+
+from netctl.structural.interconnect import TIE_KINDS, Tie, interconnection
+
+__all__ = ["register", "read_ties"]
+
+TIES_HEADER = ("from_system", "from_state", "to_system", "to_state")
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    p = subparsers.add_parser(
+        "join", parents=[common],
+        help="compose subsystems with ties and check the composite: unreachable states, "
+             "dilations, smallest fix, by subsystem")
+    p.add_argument("more", nargs="*", metavar="FILE",
+                   help="further subsystem files (NAME=PATH names a subsystem)")
+    p.add_argument("--ties", metavar="FILE", required=True,
+                   help="CSV: from_system,from_state,to_system,to_state[,kind]")
+    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
+                   help="composite states ('sub.state') with a dedicated input; replaces the "
+                        "subsystems' own inputs")
+    p.add_argument("--separator", default=".",
+                   help="between subsystem and state in composite names (default '.')")
+    p.set_defaults(func=_cmd_join)
+
+
+def read_ties(path: str) -> list[Tie]:
+    """Ties from a CSV file (see the module docstring); errors name the file and line."""
+    from netctl.io._common import file_error, read_text
+
+    text = read_text(path)
+    ties: list[Tie] = []
+    header_seen = False
+    for lineno, raw in enumerate(text.splitlines(), start=1):
+        line = raw.split("#", 1)[0].strip()
+        if not line:
+            continue
+        fields = [f.strip() for f in next(csv.reader(io.StringIO(line)))]
+        if not header_seen:
+            low = [f.lower() for f in fields]
+            if tuple(low[:4]) != TIES_HEADER or len(low) > 5 or (
+                    len(low) == 5 and low[4] != "kind"):
+                raise file_error(path, lineno, f"expected the header "
+                                 f"'{','.join(TIES_HEADER)}[,kind]', found {line!r}.")
+            header_seen = True
+            n_cols = len(low)
+            continue
+        if len(fields) not in (4, n_cols) or len(fields) > 5:
+            raise file_error(path, lineno, f"expected {n_cols} comma-separated columns "
+                             f"({','.join(TIES_HEADER)}{',kind' if n_cols == 5 else ''}), "
+                             f"found {len(fields)} in {raw.strip()!r}.")
+        if any(not f for f in fields[:4]):
+            raise file_error(path, lineno, f"empty field in {raw.strip()!r}; every tie names "
+                             "two subsystems and two states.")
+        kind = fields[4].lower() if len(fields) == 5 and fields[4] else "state"
+        if kind not in TIE_KINDS:
+            raise file_error(path, lineno, f"kind {fields[4]!r} is not one of "
+                             f"{', '.join(TIE_KINDS)}; 'state' links two states, 'signal' "
+                             "feeds an output into an input.")
+        ties.append(Tie(fields[0], fields[1], fields[2], fields[3], kind))
+    if not header_seen:
+        raise file_error(path, None, f"the file is empty; expected the header "
+                         f"'{','.join(TIES_HEADER)}[,kind]' and one tie a line.")
+    return ties
+
+
+def _cmd_join(args: argparse.Namespace) -> int:
+    from netctl.cli import CAUTION, UsageError, emit
+    from netctl.io import read, read_state_list
+    from netctl.models import apply_model
+
+    systems: dict[str, Any] = {}
+    for spec in [args.file, *args.more]:
+        name, _, path = spec.rpartition("=") if "=" in spec else ("", "", spec)
+        name = name or Path(path).name.split(".")[0]
+        if name in systems:
+            raise UsageError(f"two subsystems are named {name!r}; name them with "
+                             "NAME=PATH, e.g. plant_a=a.csv.")
+        systems[name] = apply_model(read(path, args.format), args.model)
+    ties = read_ties(args.ties)
+    inputs = read_state_list(args.inputs) if args.inputs is not None else None
+    if inputs is not None and not inputs:
+        raise UsageError("--inputs names no state; give 'sub.state,...' or a file.")
+    r = interconnection(systems, ties, inputs=inputs, separator=args.separator)
+    d = r.to_dict()
+    s = r.composite.system
+    lines = [f"composite of {', '.join(r.composite.subsystems)}: {s.n_states} states, "
+             f"{s.n_links} links, {len(ties)} tie(s), {s.n_inputs} external input(s)"]
+    if r.composite.consumed_inputs:
+        lines.append(f"  inputs fed by signal ties: {', '.join(r.composite.consumed_inputs)}")
+    if r.composite.approximate:
+        lines.append("  note: signal ties reading or driving several states are entered as "
+                     "independent links (may be optimistic): "
+                     + ", ".join(r.composite.approximate))
+    lines.append(f"  minimum inputs: composite {r.n_inputs_composite}, parts separately "
+                 f"{r.n_inputs_parts}")
+    code = 0
+    if r.report is None:
+        lines.append("  no external inputs: give --inputs or subsystems with inputs to "
+                     "check a design")
+    else:
+        lines.append(f"  composite structurally controllable: "
+                     f"{'yes' if r.controllable else 'NO'}")
+        code = 0 if r.controllable else 1
+        for f in r.findings:
+            bits = []
+            if f.unreachable:
+                bits.append(f"unreachable: {', '.join(f.unreachable)}")
+            if f.in_dilation:
+                bits.append(f"in a dilation: {', '.join(f.in_dilation)}")
+            if f.fix:
+                bits.append(f"add inputs at: {', '.join(f.fix)}")
+            alone = {None: "no own inputs", True: "controllable alone",
+                     False: "not controllable alone"}[f.controllable_alone]
+            lines.append(f"  {f.name} ({f.n_states} states, {alone}): "
+                         + ("; ".join(bits) if bits else "fine in the composite"))
+        if not r.controllable:
+            for reason in r.report.reasons():
+                lines.append(f"    - {reason}")
+            lines.append(f"  smallest fix: add {r.report.n_missing_inputs} dedicated input(s) "
+                         f"at {', '.join(r.report.names(r.report.fix))}")
+    lines.append("  " + CAUTION)
+    emit(args, d, "\n".join(lines))
+    return code

@@ -1,0 +1,88 @@
+"""``netctl roles FILE``: critical / intermittent / redundant states and critical /
+ordinary / redundant links (see :mod:`netctl.structural.roles`)."""
+
+from __future__ import annotations
+
+import argparse
+import csv
+from typing import Any
+
+from netctl.structural.roles import LINK_ROLES, link_roles, node_roles
+
+__all__ = ["register"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    p = subparsers.add_parser(
+        "roles", parents=[common],
+        help="which states every minimum driver set needs (critical / intermittent / "
+             "redundant) and which links every maximum matching needs (critical / "
+             "ordinary / redundant)")
+    p.add_argument("--csv", metavar="FILE", default=None,
+                   help="also write the roles as CSV: element,source,target,role (one row a "
+                        "state with an empty target, one row a link)")
+    p.set_defaults(func=_cmd_roles)
+
+
+def write_roles_csv(path: str, nodes: Any, links: Any) -> None:
+    """Write node and link roles to ``path`` atomically."""
+    from netctl.cli import UsageError
+    from netctl.io import atomic_write
+
+    try:
+        with atomic_write(path) as fh:
+            _write_rows(fh, nodes, links)
+    except OSError as exc:
+        raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
+                         "directory exists and is writable.") from None
+
+
+def _write_rows(fh: Any, nodes: Any, links: Any) -> None:
+    w = csv.writer(fh, lineterminator="\n")
+    w.writerow(["element", "source", "target", "role"])
+    for name, role in nodes.to_dict()["nodes"].items():
+        w.writerow(["state", name, "", role])
+    names = links.state_names
+    for u, v, r in zip(links.sources.tolist(), links.targets.tolist(), links.role.tolist()):
+        w.writerow(["link", names[u], names[v], LINK_ROLES[r]])
+
+
+def _cmd_roles(args: argparse.Namespace) -> int:
+    from netctl.cli import CAUTION, emit, load_system
+
+    system = load_system(args)
+    nr = node_roles(system)
+    lr = link_roles(system)
+    d = {"analysis": "roles", "file": args.file, "n_states": nr.n_states,
+         "n_links": lr.n_links, "model": system.model, "n_inputs": nr.n_inputs,
+         "structural_rank_A": nr.matching_size, "perfect_matching": nr.perfect_matching,
+         "node_basis": nr.basis, "counts": {"nodes": nr.counts(), "links": lr.counts()},
+         "nodes": nr.to_dict()["nodes"], "links": lr.to_dict()["links"]}
+    nc, lc = nr.counts(), lr.counts()
+    lines = [f"{args.file}: {nr.n_states} states, {lr.n_links} links, model {system.model}",
+             f"  minimum inputs: {nr.n_inputs} (structural rank of A {nr.matching_size} of "
+             f"{nr.n_states})",
+             f"  states: {nc['critical']} critical, {nc['intermittent']} intermittent, "
+             f"{nc['redundant']} redundant"]
+    if nr.perfect_matching:
+        lines.append("  (A has a perfect matching: one input suffices; it must act on one "
+                     "state of every source component, so those states are the candidates)")
+    lines.append(f"  critical states (in every minimum driver set): "
+                 f"{_short(nr.names(nr.critical))}")
+    lines.append(f"  links: {lc['critical']} critical, {lc['ordinary']} ordinary, "
+                 f"{lc['redundant']} redundant")
+    crit = [f"{a} -> {b}" for a, b in lr.link_names(lr.critical)]
+    lines.append(f"  critical links (losing one costs structural rank): {_short(crit)}")
+    lines.append("  " + CAUTION)
+    if args.csv:
+        write_roles_csv(args.csv, nr, lr)
+    emit(args, d, "\n".join(lines))
+    return 0
+
+
+def _short(items: list[str], limit: int = 20) -> str:
+    if not items:
+        return "none"
+    if len(items) <= limit:
+        return ", ".join(items)
+    return ", ".join(items[:limit]) + f", ... ({len(items) - limit} more; --json lists all)"

@@ -1,0 +1,236 @@
+"""``netctl sweep FILE``: what losing each link or state does (minimum inputs, and the
+given design), ``k > 1`` losses by seeded sampling, and attack curves.
+
+Exit status: 0 when the given design (``--inputs``) survives every loss examined, 1 when
+some loss breaks it (or it is not controllable to begin with); without ``--inputs`` 0.
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import sys
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from typing import IO, Any
+
+from netctl.structural.robustness import (
+    ATTACK_STRATEGIES,
+    AttackCurve,
+    attack_curve,
+    contingency_sweep,
+    plot_attack_curves,
+    sampled_losses,
+)
+
+__all__ = ["register", "progress_printer", "safe_write"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    p = subparsers.add_parser(
+        "sweep", parents=[common],
+        help="lose every link / state in turn (or k at a time, sampled): minimum inputs "
+             "and whether a given design survives; attack curves")
+    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
+                   help="states with a dedicated input (the design to check): 'a,b' or a "
+                        "file, one name a line")
+    p.add_argument("--elements", choices=("links", "nodes", "both"), default="both",
+                   help="lose links, states (nodes) or both (default: both)")
+    p.add_argument("--k", type=int, default=1, metavar="K",
+                   help="elements lost at once (default 1: every single loss, exactly; "
+                        "K > 1: sampled)")
+    p.add_argument("--samples", type=int, default=100, metavar="S",
+                   help="samples for K > 1 (default 100)")
+    p.add_argument("--seed", type=int, default=0, metavar="N",
+                   help="seed for sampling and random attack orders (default 0)")
+    p.add_argument("--csv", metavar="FILE", default=None,
+                   help="write one row per single loss (K = 1) or per sample (K > 1)")
+    p.add_argument("--attack", metavar="STRATEGIES", default=None,
+                   help="also compute attack curves for these comma-separated strategies: "
+                        + ", ".join(ATTACK_STRATEGIES))
+    p.add_argument("--steps", type=int, default=20, help="attack-curve points (default 20)")
+    p.add_argument("--attack-csv", metavar="FILE", default=None,
+                   help="write the attack curves as CSV")
+    p.add_argument("--plot", metavar="FILE", default=None,
+                   help="draw the attack curves into an image file (PNG, SVG, PDF)")
+    p.set_defaults(func=_cmd_sweep)
+
+
+def progress_printer(label: str) -> Callable[[int, int], None] | None:
+    """A ``progress(done, total)`` callback printing to stderr when it is a terminal."""
+    if not sys.stderr.isatty():
+        return None
+
+    def show(done: int, total: int) -> None:
+        end = "\n" if done >= total else ""
+        print(f"\r{label}: {done}/{total}", end=end, file=sys.stderr, flush=True)
+
+    return show
+
+
+@contextmanager
+def safe_write(path: str) -> Iterator[IO[str]]:
+    """:func:`netctl.io.atomic_write`, with write failures reported as usage errors."""
+    from netctl.cli import UsageError
+    from netctl.io import atomic_write
+
+    try:
+        with atomic_write(path) as fh:
+            yield fh
+    except OSError as exc:
+        raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
+                         "directory exists and is writable.") from None
+
+
+def _cmd_sweep(args: argparse.Namespace) -> int:
+    from netctl.cli import CAUTION, UsageError, emit, load_system, parse_names
+
+    if args.k < 1:
+        raise UsageError(f"--k must be at least 1, found {args.k}.")
+    if args.samples < 1:
+        raise UsageError(f"--samples must be at least 1, found {args.samples}.")
+    if args.steps < 1:
+        raise UsageError(f"--steps must be at least 1, found {args.steps}.")
+    strategies: list[str] = []
+    if args.attack:
+        strategies = [s.strip() for s in args.attack.split(",") if s.strip()]
+        bad = [s for s in strategies if s not in ATTACK_STRATEGIES]
+        if bad or not strategies:
+            raise UsageError(f"--attack: unknown strategy {bad[0] if bad else args.attack!r}; "
+                             f"choose from {', '.join(ATTACK_STRATEGIES)} (comma-separated).")
+    if (args.attack_csv or args.plot) and not strategies:
+        raise UsageError("--attack-csv and --plot need --attack STRATEGIES "
+                         f"(from {', '.join(ATTACK_STRATEGIES)}).")
+    system = load_system(args)
+    if args.inputs is not None:
+        system = system.with_inputs(parse_names(system, args.inputs))
+    kinds = ["links", "nodes"] if args.elements == "both" else [args.elements]
+    result: dict[str, Any] = {"analysis": "sweep", "file": args.file, "k": args.k,
+                              "model": system.model}
+    lines = [f"{args.file}: {system.n_states} states, {system.n_links} links, "
+             f"model {system.model}"]
+    ok = True
+    csv_rows: list[list[Any]] = []
+    for kind in kinds:
+        total = system.n_links if kind == "links" else system.n_states
+        if args.k == 1:
+            sw = contingency_sweep(system, elements=kind)
+            d = sw.to_dict()
+            result[kind] = d
+            lines.append(f"  single {kind[:-1]} losses ({sw.n_elements}): "
+                         f"{sw.costly.size} raise the minimum inputs above {sw.n_inputs}")
+            if sw.has_design:
+                if not sw.controllable_before:
+                    ok = False
+                    lines.append("  the given design is NOT structurally controllable even "
+                                 "before any loss (run netctl check for the reasons)")
+                else:
+                    br = sw.breaking
+                    ok &= br.size == 0
+                    lines.append(f"  {br.size} of them break the given design"
+                                 + (":" if br.size else ""))
+                    for k in br.tolist()[:20]:
+                        lines.append(f"    - {sw.label(k)}: {'; '.join(sw.reasons(k))}")
+                    if br.size > 20:
+                        lines.append(f"    ... ({br.size - 20} more; --json lists all)")
+            for row in sw.rows():
+                csv_rows.append([kind[:-1] if kind == "links" else "state",
+                                 row.get("source", row.get("state")),
+                                 row.get("target", ""), row["role"], row["n_inputs_after"],
+                                 row.get("controllable_after", ""), row.get("rank_lost", ""),
+                                 row.get("cut_off", "")])
+        else:
+            if args.k > total:
+                raise UsageError(f"--k {args.k} exceeds the number of {kind} ({total}).")
+            sl = sampled_losses(system, elements=kind, k=args.k, samples=args.samples,
+                                seed=args.seed, progress=progress_printer(f"sampling {kind}"))
+            result[kind] = sl.to_dict()
+            lines.append(f"  {args.k} {kind} lost at once, {sl.n_samples} samples (seed "
+                         f"{args.seed}): minimum inputs rise in "
+                         f"{100 * sl.fraction_costly():.1f}% of samples")
+            if sl.has_design:
+                if not sl.controllable_before:
+                    ok = False
+                    lines.append("  the given design is NOT structurally controllable even "
+                                 "before any loss")
+                else:
+                    frac = sl.fraction_breaking()
+                    ok &= frac == 0
+                    lines.append(f"  the given design breaks in {100 * frac:.1f}% of samples")
+            for s in range(sl.n_samples):
+                csv_rows.append([kind, s, " | ".join(sl.labels(s)),
+                                 int(sl.n_inputs_after[s]),
+                                 bool(sl.controllable_after[s]) if sl.has_design else ""])
+    curves: list[AttackCurve] = []
+    for strat in strategies:
+        for kind in kinds:
+            c = attack_curve(system, elements=kind, strategy=strat, steps=args.steps,
+                             seed=args.seed,
+                             progress=progress_printer(f"attack {strat} on {kind}"))
+            curves.append(c)
+    if curves:
+        result["attack_curves"] = [c.to_dict() for c in curves]
+        for c in curves:
+            half = c.n_inputs[min(len(c.n_inputs) - 1, len(c.n_inputs) // 2)]
+            lines.append(f"  attack {c.strategy} on {c.elements}: minimum inputs "
+                         f"{c.n_inputs[0]} -> {half} at "
+                         f"{100 * c.fraction_removed[len(c.n_inputs) // 2]:.0f}% removed")
+    if args.csv:
+        with safe_write(args.csv) as fh:
+            w = csv.writer(fh, lineterminator="\n")
+            if args.k == 1:
+                w.writerow(["element", "source", "target", "role", "n_inputs_after",
+                            "controllable_after", "rank_lost", "cut_off"])
+            else:
+                w.writerow(["elements", "sample", "lost", "n_inputs_after",
+                            "controllable_after"])
+            w.writerows(csv_rows)
+    if args.attack_csv:
+        with safe_write(args.attack_csv) as fh:
+            fh.write(AttackCurve.CSV_HEADER + "\n")
+            for c in curves:
+                fh.write("\n".join(c.csv_lines()) + "\n")
+    if args.plot:
+        _plot(curves, args.plot)
+    if args.inputs is not None:
+        lines.append(f"  design survives every loss examined: {'yes' if ok else 'NO'}")
+    lines.append("  " + CAUTION)
+    emit(args, result, "\n".join(lines))
+    return 0 if ok else 1
+
+
+def _plot(curves: list[AttackCurve], path: str) -> None:
+    import os
+    import tempfile
+
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from netctl.cli import UsageError
+
+    fig, axes = plt.subplots(1, 2 if len({c.elements for c in curves}) > 1 else 1,
+                             figsize=(10, 4), squeeze=False)
+    for ax, kind in zip(axes[0], sorted({c.elements for c in curves})):
+        plot_attack_curves([c for c in curves if c.elements == kind], ax=ax)
+    fig.tight_layout()
+    suffix = os.path.splitext(path)[1] or ".png"
+    directory = os.path.dirname(path) or "."
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=".plot.", suffix=suffix, dir=directory)
+    except OSError as exc:
+        plt.close(fig)
+        raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
+                         "directory exists and is writable.") from None
+    os.close(fd)
+    try:
+        fig.savefig(tmp)
+        os.replace(tmp, path)
+    except (OSError, ValueError) as exc:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+        raise UsageError(f"cannot write the plot {path}: {exc}. Use a .png, .svg or .pdf "
+                         "file name in a writable directory.") from None
+    finally:
+        plt.close(fig)

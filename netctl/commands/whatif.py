@@ -1,0 +1,135 @@
+"""``netctl whatif FILE``: before and after a proposed change, side by side.
+
+Exit status: with ``--inputs``, 0 when the design is structurally controllable after the
+change and 1 when it is not; without ``--inputs``, 1 when the change raises the minimum
+number of inputs, else 0. 2 on bad usage or input.
+"""
+
+from __future__ import annotations
+
+import argparse
+import re
+from pathlib import Path
+from typing import Any
+
+from netctl.structural.robustness import what_if
+
+__all__ = ["register", "read_links"]
+
+_SPLIT = re.compile(r"[,\t; ]+")
+_HEADER = {"source", "target", "from", "to", "src", "dst", "u", "v"}
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    p = subparsers.add_parser(
+        "whatif", parents=[common],
+        help="compare before and after adding links, removing links or removing states: "
+             "controllability of a design, minimum inputs, drivers, roles")
+    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
+                   help="states with a dedicated input (the design to check)")
+    p.add_argument("--add-links", metavar="FILE|LINKS", default=None,
+                   help="links to add: an edge-list file (source,target a line) or "
+                        "'a->b,c->d'; unknown names become new states")
+    p.add_argument("--remove-links", metavar="FILE|LINKS", default=None,
+                   help="links to remove: an edge-list file or 'a->b,c->d'")
+    p.add_argument("--remove-nodes", metavar="NAMES|FILE", default=None,
+                   help="states to remove with all their links: 'a,b' or a file")
+    p.set_defaults(func=_cmd_whatif)
+
+
+def read_links(value: str, what: str) -> list[tuple[str, str]]:
+    """Links from an edge-list file (``source,target`` a line, ``#`` comments, optional
+    header) or from an inline list ``'a->b,c->d'``."""
+    from netctl.cli import UsageError
+    from netctl.io._common import file_error, read_text
+
+    path = Path(value)
+    out: list[tuple[str, str]] = []
+    if path.is_file():
+        for lineno, raw in enumerate(read_text(path).splitlines(), start=1):
+            line = raw.split("#", 1)[0].strip()
+            if not line:
+                continue
+            f = [x for x in _SPLIT.split(line) if x]
+            if not out and len(f) == 2 and f[0].lower() in _HEADER and f[1].lower() in _HEADER:
+                continue
+            if len(f) != 2:
+                raise file_error(value, lineno, f"expected 'source,target', found {len(f)} "
+                                 f"column(s) in {raw.strip()!r}. One link a line; a link "
+                                 "'a,b' means a influences b.")
+            out.append((f[0], f[1]))
+        if not out:
+            raise file_error(value, None, f"{what}: the file lists no links; expected lines "
+                             "'source,target'.")
+        return out
+    for item in (x.strip() for x in value.split(",")):
+        if not item:
+            continue
+        if "->" not in item:
+            raise UsageError(f"{what}: {item!r} is neither a file nor a link 'a->b'; give an "
+                             "edge-list file or links such as 'pump->tank,tank->valve'.")
+        a, b = (x.strip() for x in item.split("->", 1))
+        if not a or not b:
+            raise UsageError(f"{what}: the link {item!r} lacks a state name; write 'a->b'.")
+        out.append((a, b))
+    if not out:
+        raise UsageError(f"{what} names no link; write 'a->b,c->d' or give a file.")
+    return out
+
+
+def _cmd_whatif(args: argparse.Namespace) -> int:
+    from netctl.cli import CAUTION, UsageError, emit, load_system, parse_names
+    from netctl.io import read_state_list
+
+    if not (args.add_links or args.remove_links or args.remove_nodes):
+        raise UsageError("whatif needs a change: --add-links, --remove-links and/or "
+                         "--remove-nodes.")
+    system = load_system(args)
+    if args.inputs is not None:
+        system = system.with_inputs(parse_names(system, args.inputs))
+    add = read_links(args.add_links, "--add-links") if args.add_links else None
+    rem = read_links(args.remove_links, "--remove-links") if args.remove_links else None
+    nodes = None
+    if args.remove_nodes:
+        nodes = read_state_list(args.remove_nodes)
+        parse_names(system, args.remove_nodes, what="--remove-nodes")  # checks the names
+    w = what_if(system, add_links=add, remove_links=rem, remove_nodes=nodes)
+    d = w.to_dict()
+    d["file"] = args.file
+
+    def yn(x: bool | None) -> str:
+        return "-" if x is None else ("yes" if x else "NO")
+
+    lines = [f"{args.file}: model {system.model}",
+             f"  change: +{len(w.added_links)} link(s), -{len(w.removed_links)} link(s), "
+             f"-{len(w.removed_nodes)} state(s)"
+             + (f"; new states {', '.join(w.new_states)}" if w.new_states else ""),
+             f"  {'':28}{'before':>10}{'after':>10}",
+             f"  {'states':28}{w.before.n_states:>10}{w.after.n_states:>10}",
+             f"  {'links':28}{w.before.n_links:>10}{w.after.n_links:>10}",
+             f"  {'minimum inputs':28}{w.n_inputs_before:>10}{w.n_inputs_after:>10}"]
+    if args.inputs is not None:
+        lines.append(f"  {'design controllable':28}{yn(w.controllable_before):>10}"
+                     f"{yn(w.controllable_after):>10}")
+    if w.inputs_lost:
+        lines.append(f"  inputs lost with their states: {', '.join(w.inputs_lost)}")
+    lines.append(f"  drivers gained: {', '.join(w.drivers_gained) or 'none'}; "
+                 f"lost: {', '.join(w.drivers_lost) or 'none'} (one minimum set each)")
+    if w.role_changes:
+        ch = [f"{k} {a}->{b}" for k, (a, b) in w.role_changes.items()]
+        lines.append(f"  state roles changed ({len(ch)}): {', '.join(ch[:15])}"
+                     + (" ..." if len(ch) > 15 else ""))
+    if w.link_role_changes:
+        lines.append(f"  link roles changed: {len(w.link_role_changes)} (--json lists them)")
+    if args.inputs is not None and not w.controllable_after:
+        for r in w.reasons_after:
+            lines.append(f"    - {r}")
+        lines.append(f"  smallest fix after the change: add dedicated inputs at "
+                     f"{', '.join(w.fix_after)}")
+    if w.breaks_design:
+        lines.append("  the change BREAKS the given design")
+    lines.append("  " + CAUTION)
+    emit(args, d, "\n".join(lines))
+    if args.inputs is not None:
+        return 0 if w.controllable_after else 1
+    return 1 if w.n_inputs_after > w.n_inputs_before else 0
