@@ -15,14 +15,17 @@ from netctl.numeric.rank import (
     staircase,
 )
 from netctl.numeric.realize import PARAMETERIZATIONS, realize
+from netctl.numeric.verify import Verification, verify
 
 __all__ = [
     "LostMode",
     "PARAMETERIZATIONS",
     "RankTest",
+    "Verification",
     "modular",
     "pbh",
     "realize",
     "sparse_certificate",
     "staircase",
+    "verify",
 ]
