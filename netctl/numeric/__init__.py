@@ -6,6 +6,7 @@ pattern; the analyses here use *numbers* -- the file's weights or weights sample
 a stated parameterization (:data:`PARAMETERIZATIONS`) -- and always say which.
 """
 
+from netctl.numeric.exact import ExactControllability, Multiplicity, exact_controllability
 from netctl.numeric.rank import (
     LostMode,
     RankTest,
@@ -18,10 +19,13 @@ from netctl.numeric.realize import PARAMETERIZATIONS, realize
 from netctl.numeric.verify import Verification, verify
 
 __all__ = [
+    "ExactControllability",
     "LostMode",
+    "Multiplicity",
     "PARAMETERIZATIONS",
     "RankTest",
     "Verification",
+    "exact_controllability",
     "modular",
     "pbh",
     "realize",
