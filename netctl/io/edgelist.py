@@ -1,150 +1,502 @@
 """Edge lists: one link per line, ``source target [weight]``.
 
-Columns are separated by commas, tabs, semicolons or spaces; ``#`` starts a comment; an
-optional header line names the columns (``source,target,weight`` or similar); a line with
-a single name declares an isolated state. Names may be integers or strings; gzip files
-are read transparently. Edge ``u v`` means "u influences v" (``A[v, u] != 0``).
+Columns are separated by commas, tabs, semicolons or spaces (runs of separators count
+as one; there is no quoting, so names may not contain separators); ``#`` starts a
+comment; an optional header line names the columns (``source,target,weight`` or
+similar); a line with a single name declares a state (kept even when it has no link).
+Names may be integers or strings; gzip files are read transparently. Edge ``u v`` means
+"u influences v" (``A[v, u] != 0``).
+
+The reader streams the file in fixed-size chunks through a compiled scanner
+(:mod:`netctl.io._edgescan`), so memory is bounded by the output arrays plus one chunk,
+and no Python object is made per line. Names that are all canonical integers are
+numbered in numeric order; otherwise states are numbered in order of first appearance.
 """
 
 from __future__ import annotations
 
+import gzip
 import os
 import re
 import warnings
+import zlib
+from dataclasses import dataclass
+from pathlib import Path
+from typing import IO
 
 import numpy as np
+import scipy.sparse as sp
 
-from netctl.io._common import atomic_write, file_error, read_text
+from netctl.errors import MissingFileError
+from netctl.io import _edgescan as _k
+from netctl.io._common import atomic_write, file_error
 from netctl.system import StructuredSystem
 
-__all__ = ["read_edgelist", "write_edgelist"]
+__all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
+           "CHUNK_BYTES"]
+
+#: Bytes read per chunk; the scanner's working memory is a small multiple of this.
+CHUNK_BYTES = 1 << 24
 
 _HEADER_WORDS = {"source", "target", "from", "to", "src", "dst", "weight", "u", "v", "tail",
-                 "head", "node1", "node2", "origin", "destination", "w"}
-_SPLIT = re.compile(r"[,\t; ]+")
+                 "head", "node1", "node2", "origin", "destination", "w", "node", "name",
+                 "sources", "targets", "weights", "value"}
+_SPLIT = re.compile(r"[,\t; \r\v\f]+")
+_INT = re.compile(r"-?(0|[1-9][0-9]*)\Z")
+_FORMAT_HELP = ("Columns are separated by commas, tabs, semicolons or spaces; '#' starts a "
+                "comment; names may not contain separators (see docs/FORMATS.md).")
 
 
-def _fields(line: str) -> list[str]:
-    return [f for f in _SPLIT.split(line.strip()) if f]
+@dataclass(frozen=True)
+class EdgeArrays:
+    """The parsed content of an edge list, as arrays.
+
+    Attributes
+    ----------
+    sources, targets : numpy.ndarray of int64
+        State indices of each link line, in file order (duplicates not yet merged).
+    weights : numpy.ndarray of float64 or None
+        One weight per link when the file has a weight column.
+    names : tuple of str
+        State names; index ``i`` of ``sources``/``targets`` is ``names[i]``.
+    n_lines : int
+        Number of lines read.
+    first_zero_line : int
+        Line of the first link with weight 0 (0 when there is none or it is unknown).
+    """
+
+    sources: np.ndarray
+    targets: np.ndarray
+    weights: np.ndarray | None
+    names: tuple[str, ...]
+    n_lines: int
+    first_zero_line: int = 0
+
+
+class _NotInt(Exception):
+    pass
+
+
+def _open(path: str | os.PathLike[str]) -> IO[bytes]:
+    p = Path(path)
+    if not p.exists():
+        raise MissingFileError(f"{path}: no such file. Check the path and the working directory.")
+    if p.is_dir():
+        raise MissingFileError(f"{path}: is a directory; give a network file.")
+    try:
+        raw = open(p, "rb")
+    except PermissionError:
+        raise MissingFileError(f"{path}: permission denied; check the file's permissions.") from None
+    head = raw.read(2)
+    raw.seek(0)
+    if head == b"\x1f\x8b":
+        raw.close()
+        return gzip.open(p, "rb")  # type: ignore[return-value]
+    return raw
+
+
+def _fields(text: str) -> list[str]:
+    return [f for f in _SPLIT.split(text.split("#", 1)[0].strip()) if f]
+
+
+def _line_text(chunk: bytes, start: int, end: int) -> str:
+    return chunk[start:end].decode("utf-8", errors="replace").strip()
+
+
+class _Scan:
+    """State of one pass over a file in one name mode."""
+
+    def __init__(self, path: str | os.PathLike[str], mode: int, chunk_bytes: int) -> None:
+        self.path = path
+        self.mode = mode
+        self.chunk_bytes = chunk_bytes
+        self.st = np.zeros(_k.ST_SIZE, np.int64)
+        self.st[1] = 1  # line number
+        self.src: list[np.ndarray] = []
+        self.dst: list[np.ndarray] = []
+        self.w: list[np.ndarray] = []
+        self.iso: list[np.ndarray] = []
+        self.header_done = False
+        self.chunk_len = 0
+        # string-mode name table
+        self.table = np.full((1024, 2), -1, np.int64)
+        self.names_buf = np.zeros(1 << 16, np.uint8)
+        self.name_pos = np.zeros((256, 2), np.int64)
+        self.name_line = np.zeros(256, np.int64)
+
+    # -------------------------------------------------------------- reading
+    def run(self) -> None:
+        path = self.path
+        with _open(path) as fh:
+            carry = b""
+            first = True
+            while True:
+                try:
+                    data = fh.read(self.chunk_bytes)
+                except (EOFError, OSError, zlib.error) as exc:
+                    raise file_error(path, int(self.st[1]), f"the gzip stream is damaged or "
+                                     f"truncated here ({exc}). Compress the file again, or "
+                                     "check that the download or copy completed.") from None
+                eof = not data
+                buf = carry + data if carry else data
+                if first and buf:
+                    first = False
+                    if buf[:2] in (b"\xff\xfe", b"\xfe\xff"):
+                        raise file_error(path, 1, "the file is UTF-16 text; save it as UTF-8 "
+                                         "(or plain ASCII) and read it again.")
+                    if buf[:3] == b"\xef\xbb\xbf":
+                        buf = buf[3:]
+                if eof:
+                    chunk, carry = buf, b""
+                else:
+                    cut = buf.rfind(b"\n")
+                    if cut < 0:
+                        carry = buf
+                        continue
+                    chunk, carry = buf[:cut + 1], buf[cut + 1:]
+                if chunk:
+                    self._chunk(chunk)
+                if eof:
+                    break
+
+    def _chunk(self, chunk: bytes) -> None:
+        st = self.st
+        nul = chunk.find(b"\x00")
+        if nul >= 0:
+            line = int(st[1]) + chunk.count(b"\n", 0, nul)
+            raise file_error(self.path, line, "found a NUL byte: this is not a text edge list "
+                             "(a binary or UTF-16 file?). Save the network as UTF-8 text, or "
+                             "give --format for a binary format (.npz, .npy).")
+        pos = 0
+        if not self.header_done:
+            pos = self._header(chunk)
+            if pos < 0:
+                return
+        n_lines = chunk.count(b"\n") + 1
+        st[0] = pos
+        st[3] = st[4] = st[5] = 0
+        src = np.empty(n_lines, np.int64)
+        dst = np.empty(n_lines, np.int64)
+        w = np.empty(n_lines, np.float64)
+        iso = np.empty(n_lines, np.int64)
+        fb_edge = np.empty(n_lines, np.int64)
+        fb_line = np.empty(n_lines, np.int64)
+        fb_start = np.empty(n_lines, np.int64)
+        fb_end = np.empty(n_lines, np.int64)
+        arr = np.frombuffer(chunk, np.uint8)
+        self.chunk_len = len(chunk)
+        while True:
+            status = _k.scan_chunk(arr, self.mode, st, src, dst, w, iso, fb_edge, fb_line,
+                                   fb_start, fb_end, self.table, self.names_buf,
+                                   self.name_pos, self.name_line)
+            if status != _k.STATUS_GROW:
+                break
+            self._grow()
+        if status == _k.STATUS_NOT_INT:
+            raise _NotInt
+        if status == _k.STATUS_ERROR:
+            self._error(chunk)
+        ne, ni, nfb = int(st[3]), int(st[4]), int(st[5])
+        if nfb:
+            self._fallback_weights(chunk, w, fb_edge[:nfb], fb_line[:nfb], fb_start[:nfb],
+                                   fb_end[:nfb])
+        self.src.append(src[:ne])
+        self.dst.append(dst[:ne])
+        self.w.append(w[:ne])
+        self.iso.append(iso[:ni])
+
+    def _header(self, chunk: bytes) -> int:
+        """Skip comments up to the first content line; skip that line too if a header."""
+        pos = 0
+        st = self.st
+        while pos < len(chunk):
+            end = chunk.find(b"\n", pos)
+            end = len(chunk) if end < 0 else end
+            text = chunk[pos:end].decode("utf-8", errors="replace")
+            f = _fields(text)
+            if f:
+                self.header_done = True
+                if len(f) >= 2 and all(x.lower() in _HEADER_WORDS for x in f[:2]):
+                    if len(f) > 3:
+                        raise file_error(self.path, int(st[1]), f"the header names {len(f)} "
+                                         f"columns ({text.strip()!r}); expected 'source "
+                                         "target [weight]'.")
+                    st[1] += 1
+                    return end + 1
+                return pos
+            st[1] += 1
+            pos = end + 1
+        return -1
+
+    def _grow(self) -> None:
+        """Double whichever of the name table and buffers is short of room."""
+        st = self.st
+        nn, used = int(st[6]), int(st[7])
+        if self.name_pos.shape[0] < nn + 2:
+            pos = np.zeros((2 * self.name_pos.shape[0], 2), np.int64)
+            pos[:nn] = self.name_pos[:nn]
+            line = np.zeros(pos.shape[0], np.int64)
+            line[:nn] = self.name_line[:nn]
+            self.name_pos, self.name_line = pos, line
+        if self.names_buf.size < used + self.chunk_len:
+            buf = np.zeros(max(2 * self.names_buf.size, used + self.chunk_len + 1), np.uint8)
+            buf[:used] = self.names_buf[:used]
+            self.names_buf = buf
+        if self.table.shape[0] < 2 * (nn + 2):
+            self.table = np.full((2 * self.table.shape[0], 2), -1, np.int64)
+            _k.rehash(self.table, self.names_buf, self.name_pos, nn)
+
+    def _error(self, chunk: bytes) -> None:
+        st = self.st
+        line = int(st[1])
+        text = _line_text(chunk, int(st[11]), int(st[12]))
+        nf = len(_fields(text))
+        if st[10] == _k.ERR_TOO_MANY:
+            raise file_error(self.path, line, f"expected 'source target [weight]', found {nf} "
+                             f"columns in {text!r}. {_FORMAT_HELP}")
+        raise file_error(self.path, line, f"this line has {nf} columns but earlier lines have "
+                         f"{int(st[2])}: {text!r}. Give a weight on every link line or on none "
+                         "(a line with one name declares a state).")
+
+    def _fallback_weights(self, chunk: bytes, w: np.ndarray, edges: np.ndarray,
+                          lines: np.ndarray, starts: np.ndarray, ends: np.ndarray) -> None:
+        tokens = [chunk[a:b] for a, b in zip(starts.tolist(), ends.tolist())]
+        try:
+            vals = np.array([float(t) for t in tokens], dtype=np.float64)
+        except ValueError:
+            for t, ln in zip(tokens, lines.tolist()):
+                try:
+                    float(t)
+                except ValueError:
+                    tok = t.decode("utf-8", errors="replace")
+                    raise file_error(self.path, ln, f"the weight {tok!r} is not a number. Use "
+                                     "a decimal number such as 0.5 or 1e-3, or leave the "
+                                     "weight column out.") from None
+            raise AssertionError("unreachable")  # pragma: no cover
+        bad = ~np.isfinite(vals)
+        if bad.any():
+            k = int(np.argmax(bad))
+            tok = tokens[k].decode("utf-8", errors="replace")
+            raise file_error(self.path, int(lines[k]), f"the weight {tok!r} is not a finite "
+                             "number; give a finite weight (or leave the link out).")
+        w[edges] = vals
+        zero = vals == 0
+        if zero.any():
+            if self.st[8] == 0:
+                self.st[9] = int(lines[np.argmax(zero)])
+            self.st[8] += int(zero.sum())
+
+    # -------------------------------------------------------------- results
+    def result(self) -> EdgeArrays:
+        src = _cat(self.src)
+        dst = _cat(self.dst)
+        iso = _cat(self.iso)
+        weighted = self.st[2] == 3
+        w = _cat(self.w, np.float64) if weighted else None
+        n_lines = int(self.st[1]) - 1
+        if self.mode == _k.MODE_INT:
+            names, (src, dst) = _factorize_ints(src, dst, iso)
+        else:
+            names = self._decode_names()
+            if names and all(_INT.match(x) for x in names):
+                order = np.argsort(np.array([int(x) for x in names], dtype=object),
+                                   kind="stable") if any(len(x) > 18 for x in names) else \
+                    np.argsort(np.array([int(x) for x in names], dtype=np.int64), kind="stable")
+                rank = np.empty(len(names), np.int64)
+                rank[order] = np.arange(len(names))
+                names = tuple(names[i] for i in order.tolist())
+                src, dst = rank[src], rank[dst]
+        if not names:
+            raise file_error(self.path, None, "the file holds no links and no states. "
+                             "Expected lines 'source target [weight]' (see docs/FORMATS.md).")
+        return EdgeArrays(src, dst, w, names, n_lines, int(self.st[9]))
+
+    def _decode_names(self) -> tuple[str, ...]:
+        nn, used = int(self.st[6]), int(self.st[7])
+        raw = self.names_buf[:used].tobytes()
+        starts = self.name_pos[:nn, 0].tolist()
+        lens = self.name_pos[:nn, 1].tolist()
+        if not raw.isascii():
+            out = []
+            for i, (a, n) in enumerate(zip(starts, lens)):
+                try:
+                    out.append(raw[a:a + n].decode("utf-8"))
+                except UnicodeDecodeError:
+                    raise file_error(self.path, int(self.name_line[i]), f"the name "
+                                     f"{raw[a:a + n]!r} is not UTF-8 text. Save the file as "
+                                     "UTF-8 (or plain ASCII).") from None
+            return tuple(out)
+        text = raw.decode("ascii")
+        return tuple(text[a:a + n] for a, n in zip(starts, lens))
+
+
+def _cat(parts: list[np.ndarray], dtype: type = np.int64) -> np.ndarray:
+    if not parts:
+        return np.zeros(0, dtype)
+    return parts[0] if len(parts) == 1 else np.concatenate(parts)
+
+
+def _factorize_ints(src: np.ndarray, dst: np.ndarray, iso: np.ndarray
+                    ) -> tuple[tuple[str, ...], tuple[np.ndarray, np.ndarray]]:
+    """Dense ids in numeric order of the integer names (array code only)."""
+    total = src.size + dst.size + iso.size
+    if total == 0:
+        return (), (src, dst)
+    lo = min(int(a.min()) for a in (src, dst, iso) if a.size)
+    hi = max(int(a.max()) for a in (src, dst, iso) if a.size)
+    span = hi - lo + 1
+    if span <= 4 * total + (1 << 20):
+        present = np.zeros(span, bool)
+        for a in (src, dst, iso):
+            present[a - lo] = True
+        ids = np.cumsum(present, dtype=np.int64) - 1
+        uniq = np.flatnonzero(present) + lo
+        src, dst = ids[src - lo], ids[dst - lo]
+    else:
+        uniq, inv = np.unique(np.concatenate([src, dst, iso]), return_inverse=True)
+        src, dst = inv[:src.size].astype(np.int64), inv[src.size:src.size + dst.size].astype(
+            np.int64)
+    return tuple(uniq.astype(str).tolist()), (src, dst)
+
+
+def read_edge_arrays(path: str | os.PathLike[str], *,
+                     chunk_bytes: int = CHUNK_BYTES) -> EdgeArrays:
+    """Parse an edge list into index arrays and names, streaming in chunks.
+
+    Parameters
+    ----------
+    path : path-like
+        A text edge list, optionally gzip-compressed.
+    chunk_bytes : int
+        Bytes read at a time (memory is bounded by the output plus a few chunks).
+
+    Returns
+    -------
+    EdgeArrays
+
+    Raises
+    ------
+    NetworkFileError
+        With file and line: too many columns, a weight column on some lines only, a
+        weight that is not a finite number, a name that is not UTF-8, NUL bytes, UTF-16
+        text, a damaged or truncated gzip stream, an empty file.
+    MissingFileError
+        The file does not exist.
+
+    Notes
+    -----
+    One pass over the bytes, O(file size); a file whose first non-integer name comes
+    late is scanned twice (integer mode, then string mode).
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> p = pathlib.Path(tempfile.mkdtemp()) / "net.csv"
+    >>> _ = p.write_text("source,target\\n1,2\\n2,3\\n7\\n")
+    >>> e = read_edge_arrays(p)
+    >>> e.names, e.sources.tolist(), e.targets.tolist()
+    (('1', '2', '3', '7'), [0, 1], [1, 2])
+    """
+    scan = _Scan(path, _k.MODE_INT, chunk_bytes)
+    try:
+        scan.run()
+    except _NotInt:
+        scan = _Scan(path, _k.MODE_STR, chunk_bytes)
+        scan.run()
+    return scan.result()
 
 
 def read_edgelist(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
     """Read an edge list into a :class:`StructuredSystem` (no inputs).
 
+    Duplicate links are merged (weights summed) and links of weight 0 are left out, each
+    with a warning that counts them; self-loops are kept as self-dynamics.
+
     Raises
     ------
     NetworkFileError
-        With the file and line: a line with more than three columns, a weight that is
-        not a finite number, an empty file.
+        See :func:`read_edge_arrays`.
     MissingFileError
         The file does not exist.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> p = pathlib.Path(tempfile.mkdtemp()) / "net.tsv"
+    >>> _ = p.write_text("a\\tb\\t0.5\\nb\\tc\\t2\\n")
+    >>> s = read_edgelist(p)
+    >>> s.state_names, s.n_links, s.weighted
+    (('a', 'b', 'c'), 2, True)
     """
-    text = read_text(path)
-    src_names: list[str] = []
-    dst_names: list[str] = []
-    weights: list[float] = []
-    isolated: list[str] = []
-    has_weight: bool | None = None
-    header_seen = False
-    for lineno, raw in enumerate(text.splitlines(), start=1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
-            continue
-        f = _fields(line)
-        if not header_seen and not src_names and not isolated:
-            header_seen = True
-            if len(f) >= 2 and f[0].lower() in _HEADER_WORDS and f[1].lower() in _HEADER_WORDS:
-                if len(f) > 3:
-                    raise file_error(path, lineno, f"the header names {len(f)} columns "
-                                     f"({line!r}); expected 'source target [weight]'.")
-                continue
-        if len(f) == 1:
-            isolated.append(f[0])
-            continue
-        if len(f) > 3:
-            raise file_error(path, lineno, f"expected 'source target [weight]', found "
-                             f"{len(f)} columns in {raw.strip()!r}. Columns are separated by "
-                             "commas, tabs, semicolons or spaces; lines starting with '#' are "
-                             "skipped; names may not contain separators.")
-        this_weighted = len(f) == 3
-        if has_weight is None:
-            has_weight = this_weighted
-        elif has_weight != this_weighted:
-            raise file_error(path, lineno, f"this line has {len(f)} columns but earlier "
-                             f"lines have {3 if has_weight else 2}: {raw.strip()!r}. Give a "
-                             "weight on every line or on none.")
-        if this_weighted:
-            try:
-                w = float(f[2])
-            except ValueError:
-                raise file_error(path, lineno, f"the weight {f[2]!r} is not a number "
-                                 f"(line {raw.strip()!r}). Use a decimal number such as 0.5 "
-                                 "or 1e-3.") from None
-            if not np.isfinite(w):
-                raise file_error(path, lineno, f"the weight {f[2]!r} is not finite; give a "
-                                 "finite number.")
-            weights.append(w)
-        src_names.append(f[0])
-        dst_names.append(f[1])
-    if not src_names and not isolated:
-        raise file_error(path, None, "the file holds no links and no states. Expected lines "
-                         "'source target [weight]' (see docs/FORMATS.md).")
-    names, index = _order_names(src_names, dst_names, isolated)
-    src = np.fromiter((index[s] for s in src_names), np.int64, len(src_names))
-    dst = np.fromiter((index[t] for t in dst_names), np.int64, len(dst_names))
-    w = np.asarray(weights) if has_weight else None
-    if w is not None and np.any(w == 0):
-        k = int(np.count_nonzero(w == 0))
-        warnings.warn(f"{path}: {k} link(s) with weight 0 are not links and were left out.",
-                      stacklevel=2)
-        keep = w != 0
-        src, dst, w = src[keep], dst[keep], w[keep]
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")
-        system = StructuredSystem.from_edges(src, dst, len(names), weights=w,
-                                             state_names=names, model=model)
-    for c in caught:
-        warnings.warn(f"{path}: {c.message}", stacklevel=2)
-    return system
+    e = read_edge_arrays(path)
+    return _system_from_arrays(e, path, model=model)
 
 
-def _order_names(src: list[str], dst: list[str], isolated: list[str]
-                 ) -> tuple[list[str], dict[str, int]]:
-    """Integer names in numeric order; otherwise order of first appearance."""
-    seen: dict[str, None] = {}
-    for a, b in zip(src, dst):
-        seen.setdefault(a)
-        seen.setdefault(b)
-    for a in isolated:
-        seen.setdefault(a)
-    names = list(seen)
-    if all(_is_int(x) for x in names):
-        names.sort(key=int)
-    return names, {name: i for i, name in enumerate(names)}
-
-
-def _is_int(s: str) -> bool:
-    return s.isdigit() or (s[:1] == "-" and s[1:].isdigit())
+def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
+                        nodes: dict[str, np.ndarray] | None = None) -> StructuredSystem:
+    src, dst, w = e.sources, e.targets, e.weights
+    n = len(e.names)
+    if w is not None:
+        zero = w == 0
+        k = int(np.count_nonzero(zero))
+        if k:
+            where = f" (the first on line {e.first_zero_line})" if e.first_zero_line else ""
+            warnings.warn(f"{path}: {k} link{'s' if k > 1 else ''} with weight 0 "
+                          f"{'are' if k > 1 else 'is'} not a link and "
+                          f"{'were' if k > 1 else 'was'} left out{where}.", stacklevel=3)
+            keep = ~zero
+            src, dst, w = src[keep], dst[keep], w[keep]
+    data = np.ones(src.size) if w is None else w
+    A = sp.coo_array((data, (dst, src)), shape=(n, n)).tocsr()
+    A.sum_duplicates()
+    n_dup = src.size - A.nnz
+    if n_dup:
+        warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
+                      "merged" + (" (weights summed)" if w is not None else "") + ".",
+                      stacklevel=3)
+    if w is None:
+        A.data[:] = 1.0
+    else:
+        cancelled = int(np.count_nonzero(A.data == 0))
+        if cancelled:
+            warnings.warn(f"{path}: {cancelled} link{'s' if cancelled > 1 else ''} whose "
+                          "duplicate weights sum to 0 were left out.", stacklevel=3)
+    return StructuredSystem(A=A, B=None, C=None, state_names=e.names, input_names=(),
+                            output_names=(), nodes=nodes or {}, weighted=w is not None,
+                            model=model)
 
 
 def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     """Write ``A`` as a comma-separated edge list with a header (atomically).
 
     States with no link are written as single-name lines so nothing is lost; weights
-    are written when the system is weighted.
+    are written when the system is weighted (``repr``, so they read back exactly).
+    Inputs, outputs and the node table are not part of this format (use ``.toml``,
+    GraphML or node-link JSON to keep them).
     """
+    bad = [s for s in system.state_names if _SPLIT.search(s) or "#" in s or not s]
+    if bad:
+        from netctl.errors import InvalidSystemError
+        raise InvalidSystemError(f"the state name {bad[0]!r} contains a separator or '#', so "
+                                 "it cannot be written to an edge list; rename the state or "
+                                 "write GraphML or node-link JSON instead.")
     src, dst = system.edges()
-    names = system.state_names
+    names = np.array(system.state_names, dtype=object)
+    linked = np.zeros(system.n_states, bool)
+    linked[src] = True
+    linked[dst] = True
+    block = 1 << 18
     with atomic_write(path) as fh:
         fh.write("source,target,weight\n" if system.weighted else "source,target\n")
         vals = system.A.data
-        for k in range(src.size):
+        for a in range(0, src.size, block):
+            s_names = names[src[a:a + block]].tolist()
+            t_names = names[dst[a:a + block]].tolist()
             if system.weighted:
-                fh.write(f"{names[src[k]]},{names[dst[k]]},{vals[k]!r}\n")
+                ws = map(repr, vals[a:a + block].tolist())
+                fh.write("".join(f"{u},{v},{x}\n" for u, v, x in zip(s_names, t_names, ws)))
             else:
-                fh.write(f"{names[src[k]]},{names[dst[k]]}\n")
-        linked = np.zeros(system.n_states, bool)
-        linked[src] = True
-        linked[dst] = True
-        for i in np.flatnonzero(~linked):
-            fh.write(f"{names[i]}\n")
+                fh.write("".join(f"{u},{v}\n" for u, v in zip(s_names, t_names)))
+        lone = names[~linked].tolist()
+        if lone:
+            fh.write("\n".join(lone) + "\n")

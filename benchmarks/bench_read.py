@@ -1,0 +1,134 @@
+"""Edge-list reading speed: netctl's streaming reader against general CSV readers.
+
+Run by hand (not part of the test suite)::
+
+    python3 benchmarks/bench_read.py --lines 10000000 --repeat 3
+
+Writes synthetic edge lists (integer names; integer names with weights; string names)
+to a temporary directory, then times, side by side in one run:
+
+* ``netctl arrays``: :func:`netctl.io.edgelist.read_edge_arrays` (parse + dense ids),
+* ``netctl system``: :func:`netctl.io.read` (the above + CSR build, duplicates merged),
+* ``pyarrow``: ``pyarrow.csv.read_csv`` + conversion of the columns to numpy,
+* ``pandas-c`` / ``pandas-pyarrow``: ``pandas.read_csv`` with those engines.
+
+The ratio column is time / fastest general reader. pyarrow and pandas are optional (only
+this benchmark uses them); missing ones are skipped.
+"""
+
+from __future__ import annotations
+
+import argparse
+import gc
+import os
+import platform
+import tempfile
+import time
+from collections.abc import Callable
+
+import numpy as np
+
+
+def make_files(directory: str, n_lines: int, seed: int = 7) -> dict[str, str]:
+    rng = np.random.default_rng(seed)
+    n_nodes = max(10, n_lines // 10)
+    src = rng.integers(0, n_nodes, n_lines)
+    dst = rng.integers(0, n_nodes, n_lines)
+    w = np.round(rng.random(n_lines), 6)
+    files = {}
+    block = 1 << 20
+    for kind in ("int", "int+weight", "string"):
+        path = os.path.join(directory, f"edges-{kind}-{n_lines}.csv")
+        files[kind] = path
+        if os.path.exists(path):
+            continue
+        with open(path + ".tmp", "w") as fh:
+            fh.write("source,target,weight\n" if kind == "int+weight" else "source,target\n")
+            for a in range(0, n_lines, block):
+                s, t = src[a:a + block], dst[a:a + block]
+                if kind == "string":
+                    lines = [f"bus{u},bus{v}\n" for u, v in zip(s.tolist(), t.tolist())]
+                elif kind == "int":
+                    lines = [f"{u},{v}\n" for u, v in zip(s.tolist(), t.tolist())]
+                else:
+                    lines = [f"{u},{v},{x:g}\n" for u, v, x in
+                             zip(s.tolist(), t.tolist(), w[a:a + block].tolist())]
+                fh.write("".join(lines))
+        os.replace(path + ".tmp", path)
+    return files
+
+
+def readers() -> dict[str, Callable[[str], object]]:
+    from netctl.io import read
+    from netctl.io.edgelist import read_edge_arrays
+
+    out: dict[str, Callable[[str], object]] = {
+        "netctl arrays": read_edge_arrays,
+        "netctl system": lambda p: read(p, "edgelist"),
+    }
+    try:
+        import pyarrow.csv as pacsv
+
+        def _pa(p: str) -> object:
+            t = pacsv.read_csv(p)
+            return [c.to_numpy() for c in t.columns]
+        out["pyarrow"] = _pa
+    except ImportError:
+        pass
+    try:
+        import pandas as pd
+
+        out["pandas-c"] = lambda p: pd.read_csv(p, engine="c")
+        try:
+            import pyarrow  # noqa: F401
+            out["pandas-pyarrow"] = lambda p: pd.read_csv(p, engine="pyarrow")
+        except ImportError:
+            pass
+    except ImportError:
+        pass
+    return out
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--lines", type=int, default=1_000_000)
+    ap.add_argument("--repeat", type=int, default=3)
+    ap.add_argument("--dir", default=os.path.join(tempfile.gettempdir(), "netctl-bench"))
+    args = ap.parse_args()
+    os.makedirs(args.dir, exist_ok=True)
+    files = make_files(args.dir, args.lines)
+    rs = readers()
+    # warm up (numba compile / cache load) on a tiny file
+    tiny = os.path.join(args.dir, "tiny.csv")
+    with open(tiny, "w") as fh:
+        fh.write("1,2\n2,3\n")
+    for f in rs.values():
+        f(tiny)
+    with open(tiny, "w") as fh:
+        fh.write("a,b\nb,c\n")
+    for f in rs.values():
+        f(tiny)
+    print(f"# {platform.processor() or platform.machine()}, {os.cpu_count()} cpus, "
+          f"{args.lines} lines, best of {args.repeat}")
+    for kind, path in files.items():
+        size = os.path.getsize(path) / 1e6
+        times = {}
+        for name, f in rs.items():
+            best = np.inf
+            for _ in range(args.repeat):
+                gc.collect()
+                t0 = time.perf_counter()
+                r = f(path)
+                best = min(best, time.perf_counter() - t0)
+                del r
+            times[name] = best
+        general = [v for k, v in times.items() if not k.startswith("netctl")]
+        ref = min(general) if general else np.nan
+        print(f"\n## {kind} ({size:.0f} MB)\n\n| reader | seconds | ratio to fastest general |\n"
+              "|---|---|---|")
+        for name, t in times.items():
+            print(f"| {name} | {t:.2f} | {t / ref:.2f} |")
+
+
+if __name__ == "__main__":
+    main()

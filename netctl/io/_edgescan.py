@@ -1,0 +1,347 @@
+"""Compiled scanner for edge-list text: bytes in, integer arrays out (no per-line objects).
+
+The scanner works on one chunk of bytes that ends at a line break (or at the end of the
+file) and keeps all of its state in a small integer array, so the Python driver in
+:mod:`netctl.io.edgelist` can stream a file of any length in fixed-size chunks, stop at
+the first problem and report the exact line.
+
+Two name modes:
+
+* ``MODE_INT``: names are canonical decimal integers (``0``, ``17``, ``-3``; no sign
+  ``+``, no leading zeros, at most 18 digits). The integer values are stored directly and
+  factorized afterwards with array code. The first token that is not such an integer
+  stops the scan with ``STATUS_NOT_INT`` and the driver restarts in string mode.
+* ``MODE_STR``: every name is looked up in an open-addressing hash table (FNV-1a over the
+  bytes); new names are copied once into a growing byte buffer. Ids follow the order of
+  first appearance.
+
+Weights are parsed exactly for decimals with at most 15 significant digits and a
+decimal exponent within +-22 (Clinger's fast path: one correctly rounded IEEE operation
+on two exactly representable numbers). Other weight tokens (17-digit ``repr`` values,
+``nan``, ...) are recorded and converted by the driver with Python's ``float``.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+__all__ = ["scan_chunk", "rehash", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
+           "STATUS_NOT_INT", "STATUS_GROW", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ST_SIZE"]
+
+MODE_INT = 0
+MODE_STR = 1
+STATUS_DONE = 0
+STATUS_ERROR = 1
+STATUS_NOT_INT = 2
+STATUS_GROW = 3
+ERR_TOO_MANY = 1
+ERR_MIXED = 2
+ERR_WEIGHT = 3
+
+# state array slots
+_POS, _LINE, _NCOLS, _NE, _NI, _NFB, _NN, _NUSED, _NZERO, _ZLINE, _ERR, _ELS, _ELE = range(13)
+ST_SIZE = 16
+
+_POW10 = np.array([10.0 ** k for k in range(23)], dtype=np.float64)
+_FNV_OFFSET = np.uint64(14695981039346656037)
+_FNV_PRIME = np.uint64(1099511628211)
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _is_sep(c: np.uint8) -> bool:
+    return c == 44 or c == 9 or c == 59 or c == 32 or c == 13 or c == 11 or c == 12
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _parse_int(buf: np.ndarray, s: int, e: int) -> tuple[bool, int]:
+    neg = False
+    if buf[s] == 45:
+        neg = True
+        s += 1
+    n = e - s
+    if n <= 0 or n > 18:
+        return False, 0
+    if buf[s] == 48 and (n > 1 or neg):
+        return False, 0
+    v = 0
+    for i in range(s, e):
+        d = np.int64(buf[i]) - 48
+        if d < 0 or d > 9:
+            return False, 0
+        v = v * 10 + d
+    return True, -v if neg else v
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _parse_float(buf: np.ndarray, s: int, e: int) -> tuple[bool, float]:
+    """Exact for <= 15 significant digits and |decimal exponent| <= 22; else (False, 0)."""
+    neg = False
+    c = buf[s]
+    if c == 45 or c == 43:
+        neg = c == 45
+        s += 1
+    mant = 0
+    ndig = 0
+    exp10 = 0
+    seen_digit = False
+    seen_dot = False
+    i = s
+    while i < e:
+        c = buf[i]
+        if c >= 48 and c <= 57:
+            seen_digit = True
+            if mant == 0 and c == 48:
+                if seen_dot:
+                    exp10 -= 1
+            else:
+                if ndig >= 15:
+                    return False, 0.0
+                mant = mant * 10 + (np.int64(c) - 48)
+                ndig += 1
+                if seen_dot:
+                    exp10 -= 1
+        elif c == 46 and not seen_dot:
+            seen_dot = True
+        else:
+            break
+        i += 1
+    if not seen_digit:
+        return False, 0.0
+    if i < e:
+        c = buf[i]
+        if c != 101 and c != 69:
+            return False, 0.0
+        i += 1
+        if i >= e:
+            return False, 0.0
+        eneg = False
+        if buf[i] == 45 or buf[i] == 43:
+            eneg = buf[i] == 45
+            i += 1
+        if i >= e or e - i > 4:
+            return False, 0.0
+        ev = 0
+        while i < e:
+            d = np.int64(buf[i]) - 48
+            if d < 0 or d > 9:
+                return False, 0.0
+            ev = ev * 10 + d
+            i += 1
+        exp10 += -ev if eneg else ev
+    v = float(mant)
+    if mant != 0:
+        if exp10 > 22 or exp10 < -22:
+            return False, 0.0
+        if exp10 >= 0:
+            v = v * _POW10[exp10]
+        else:
+            v = v / _POW10[-exp10]
+    return True, -v if neg else v
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _fnv(buf: np.ndarray, s: int, e: int) -> np.uint64:
+    h = _FNV_OFFSET
+    for i in range(s, e):
+        h = (h ^ np.uint64(buf[i])) * _FNV_PRIME
+    # final avalanche (MurmurHash3 fmix64) so the low bits used as the slot are well mixed
+    h ^= h >> np.uint64(33)
+    h *= np.uint64(0xFF51AFD7ED558CCD)
+    h ^= h >> np.uint64(33)
+    h *= np.uint64(0xC4CEB9FE1A85EC53)
+    h ^= h >> np.uint64(33)
+    return h
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _key(buf: np.ndarray, s: int, e: int, h: np.uint64) -> int:
+    """The name itself packed into 64 bits when it has <= 8 bytes; else the hash."""
+    ln = e - s
+    if ln > 8:
+        return np.int64(h >> np.uint64(1))
+    v = np.uint64(0)
+    for i in range(ln):
+        v |= np.uint64(buf[s + i]) << np.uint64(8 * i)
+    return np.int64(v)
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _lookup(buf: np.ndarray, s: int, e: int, line: int, table: np.ndarray,
+            names_buf: np.ndarray, name_pos: np.ndarray, name_line: np.ndarray,
+            st: np.ndarray) -> int:
+    """Id of the name ``buf[s:e]``, inserting it if new (the caller guarantees room).
+
+    A table slot holds ``(length << 40 | id, key)`` (``id = -1``: empty); the key is the
+    name itself for names of at most 8 bytes, so those are found with one memory access;
+    longer names are confirmed against the stored bytes.
+    """
+    h = _fnv(buf, s, e)
+    ln = e - s
+    key = _key(buf, s, e, h)
+    tag = np.int64(ln) << 40
+    mask = np.int64(table.shape[0] - 1)
+    slot = np.int64(h & np.uint64(mask))
+    while True:
+        head = table[slot, 0]
+        if head < 0:
+            nid = st[_NN]
+            used = st[_NUSED]
+            names_buf[used:used + ln] = buf[s:e]
+            name_pos[nid, 0] = used
+            name_pos[nid, 1] = ln
+            name_line[nid] = line
+            st[_NUSED] = used + ln
+            st[_NN] = nid + 1
+            table[slot, 0] = tag | nid
+            table[slot, 1] = key
+            return nid
+        if table[slot, 1] == key and (head >> 40) == ln:
+            idx = head & 0xFFFFFFFFFF
+            if ln <= 8:
+                return idx
+            ns = name_pos[idx, 0]
+            same = True
+            for k in range(ln):
+                if names_buf[ns + k] != buf[s + k]:
+                    same = False
+                    break
+            if same:
+                return idx
+        slot = (slot + 1) & mask
+
+
+@njit(cache=True, nogil=True)
+def rehash(table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
+           n_names: int) -> None:
+    """Insert names ``0..n_names-1`` into the empty (``table[:, 0] == -1``) ``table``."""
+    mask = np.int64(table.shape[0] - 1)
+    for nid in range(n_names):
+        s = name_pos[nid, 0]
+        e = s + name_pos[nid, 1]
+        h = _fnv(names_buf, s, e)
+        slot = np.int64(h & np.uint64(mask))
+        while table[slot, 0] >= 0:
+            slot = (slot + 1) & mask
+        table[slot, 0] = (np.int64(e - s) << 40) | nid
+        table[slot, 1] = _key(names_buf, s, e, h)
+
+
+@njit(cache=True, nogil=True)
+def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
+               src: np.ndarray, dst: np.ndarray, w: np.ndarray, iso: np.ndarray,
+               fb_edge: np.ndarray, fb_line: np.ndarray, fb_start: np.ndarray,
+               fb_end: np.ndarray, table: np.ndarray, names_buf: np.ndarray,
+               name_pos: np.ndarray, name_line: np.ndarray) -> int:
+    """Scan ``buf`` from ``st[POS]``; append edges, isolated names and weight fallbacks.
+
+    Returns a status; on ``STATUS_ERROR`` the error code and the byte range of the bad
+    line are in ``st``; on ``STATUS_NOT_INT`` ``st[LINE]`` is the line of the token; on
+    ``STATUS_GROW`` (string mode) the name table or buffers must grow before the scan
+    resumes at ``st[POS]``.
+    Output arrays must have room for one entry per line of ``buf``.
+    """
+    n = buf.size
+    p = st[_POS]
+    line = st[_LINE]
+    ncols = st[_NCOLS]
+    starts = np.zeros(4, np.int64)
+    ends = np.zeros(4, np.int64)
+    ids = np.zeros(2, np.int64)
+    while p < n:
+        nf = 0
+        intok = False
+        q = p
+        while q < n:
+            c = buf[q]
+            if c == 10:
+                break
+            if c == 35:  # '#': comment to end of line
+                if intok and nf <= 4:
+                    ends[nf - 1] = q
+                intok = False
+                while q < n and buf[q] != 10:
+                    q += 1
+                break
+            if _is_sep(c):
+                if intok:
+                    if nf <= 4:
+                        ends[nf - 1] = q
+                    intok = False
+            elif not intok:
+                if nf < 4:
+                    starts[nf] = q
+                nf += 1
+                intok = True
+            q += 1
+        if intok and nf <= 4:
+            ends[nf - 1] = q
+        if nf > 3:
+            st[_ERR] = ERR_TOO_MANY
+            st[_ELS] = p
+            st[_ELE] = q
+            st[_POS] = p
+            st[_LINE] = line
+            st[_NCOLS] = ncols
+            return STATUS_ERROR
+        if nf >= 2:
+            if ncols == 0:
+                ncols = nf
+            elif ncols != nf:
+                st[_ERR] = ERR_MIXED
+                st[_ELS] = p
+                st[_ELE] = q
+                st[_POS] = p
+                st[_LINE] = line
+                st[_NCOLS] = ncols
+                return STATUS_ERROR
+        if nf >= 1 and mode == MODE_STR and (
+                (st[_NN] + 2) * 2 > table.shape[0] or st[_NN] + 2 > name_pos.shape[0]
+                or st[_NUSED] + (q - p) > names_buf.size):
+            st[_POS] = p
+            st[_LINE] = line
+            st[_NCOLS] = ncols
+            return STATUS_GROW
+        if nf >= 1:
+            for f in range(min(nf, 2)):
+                if mode == MODE_INT:
+                    ok, v = _parse_int(buf, starts[f], ends[f])
+                    if not ok:
+                        st[_POS] = p
+                        st[_LINE] = line
+                        st[_NCOLS] = ncols
+                        return STATUS_NOT_INT
+                    ids[f] = v
+                else:
+                    ids[f] = _lookup(buf, starts[f], ends[f], line, table, names_buf,
+                                     name_pos, name_line, st)
+            if nf == 1:
+                iso[st[_NI]] = ids[0]
+                st[_NI] += 1
+            else:
+                k = st[_NE]
+                src[k] = ids[0]
+                dst[k] = ids[1]
+                if nf == 3:
+                    ok, x = _parse_float(buf, starts[2], ends[2])
+                    if ok:
+                        w[k] = x
+                        if x == 0.0:
+                            if st[_NZERO] == 0:
+                                st[_ZLINE] = line
+                            st[_NZERO] += 1
+                    else:
+                        j = st[_NFB]
+                        fb_edge[j] = k
+                        fb_line[j] = line
+                        fb_start[j] = starts[2]
+                        fb_end[j] = ends[2]
+                        st[_NFB] = j + 1
+                        w[k] = 0.0
+                st[_NE] = k + 1
+        p = q + 1
+        line += 1
+    st[_POS] = p
+    st[_LINE] = line
+    st[_NCOLS] = ncols
+    return STATUS_DONE

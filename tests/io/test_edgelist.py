@@ -1,0 +1,265 @@
+"""Edge-list reader and writer.
+
+The compiled streaming reader is checked against a plain-Python reference parser written
+here (brute force, one line at a time) on random files, and against Python's own
+``float`` for every weight (the scanner's exact fast path must agree bit for bit).
+"""
+
+from __future__ import annotations
+
+import gzip
+import re
+
+import numpy as np
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from netctl.errors import MissingFileError, NetworkFileError
+from netctl.io.edgelist import read_edge_arrays, read_edgelist, write_edgelist
+from netctl.system import StructuredSystem
+
+
+def write(tmp_path, text, name="net.csv", data=None):
+    p = tmp_path / name
+    if data is not None:
+        p.write_bytes(data)
+    else:
+        p.write_text(text, encoding="utf-8")
+    return p
+
+
+# ---------------------------------------------------------------- reference parser
+_SEP = re.compile(r"[,\t; \r\v\f]+")
+
+
+def reference_parse(text):
+    """Line-by-line pure-Python reading of the documented format (independent code)."""
+    edges, weights, order = [], [], {}
+    first = True
+    for raw in text.split("\n"):
+        f = [x for x in _SEP.split(raw.split("#", 1)[0].strip()) if x]
+        if not f:
+            continue
+        if first:
+            first = False
+            if len(f) >= 2 and f[0].lower() in ("source", "from") and f[1].lower() in (
+                    "target", "to"):
+                continue
+        for x in f[:2]:
+            order.setdefault(x, len(order))
+        if len(f) >= 2:
+            edges.append((f[0], f[1]))
+            if len(f) == 3:
+                weights.append(float(f[2]))
+    names = list(order)
+    if all(re.fullmatch(r"-?(0|[1-9][0-9]*)", x) for x in names):
+        names.sort(key=int)
+    return names, edges, weights
+
+
+def as_named(e):
+    n = e.names
+    return [(n[a], n[b]) for a, b in zip(e.sources.tolist(), e.targets.tolist())]
+
+
+# ---------------------------------------------------------------- basics
+def test_header_comments_weights_isolated(tmp_path):
+    p = write(tmp_path, "# an invented network\nsource,target,weight\n1,2,0.5\n"
+              "2;3;2   # inline comment\n3\t1\t-1e-3\n\n9\n")
+    e = read_edge_arrays(p)
+    assert e.names == ("1", "2", "3", "9")
+    assert as_named(e) == [("1", "2"), ("2", "3"), ("3", "1")]
+    assert e.weights.tolist() == [0.5, 2.0, -0.001]
+    assert e.n_lines == 7
+
+
+def test_string_names_first_appearance_order(tmp_path):
+    p = write(tmp_path, "pump b\nb c\nlonely\nc pump\nzz_last_but_longer_than_8_bytes pump\n")
+    e = read_edge_arrays(p)
+    assert e.names == ("pump", "b", "c", "lonely", "zz_last_but_longer_than_8_bytes")
+    assert as_named(e)[-1] == ("zz_last_but_longer_than_8_bytes", "pump")
+
+
+def test_integer_names_with_leading_zeros_are_names_not_numbers(tmp_path):
+    # "007" and "7" are different names; all-integer names still sort numerically
+    p = write(tmp_path, "007 7\n7 10\n")
+    e = read_edge_arrays(p)
+    assert e.names == ("007", "7", "10")
+    assert as_named(e) == [("007", "7"), ("7", "10")]
+
+
+def test_crlf_bom_and_gzip(tmp_path):
+    text = "\ufeffa,b\r\nb,c\r\n"
+    plain = read_edge_arrays(write(tmp_path, text, "x.csv"))
+    gz = read_edge_arrays(write(tmp_path, "", "x.csv.gz", gzip.compress(text.encode())))
+    assert plain.names == gz.names == ("a", "b", "c")
+    assert as_named(plain) == as_named(gz) == [("a", "b"), ("b", "c")]
+
+
+def test_no_trailing_newline_and_negative_integers(tmp_path):
+    e = read_edge_arrays(write(tmp_path, "-3 0\n0 5"))
+    assert e.names == ("-3", "0", "5")
+    assert as_named(e) == [("-3", "0"), ("0", "5")]
+
+
+def test_late_string_name_switches_mode(tmp_path):
+    lines = [f"{i} {i + 1}" for i in range(3000)] + ["x 0"]
+    e = read_edge_arrays(write(tmp_path, "\n".join(lines) + "\n"), chunk_bytes=512)
+    names, edges, _ = reference_parse("\n".join(lines))
+    assert list(e.names) == names
+    assert as_named(e) == edges
+
+
+@pytest.mark.parametrize("chunk", [1, 5, 64, 1 << 20])
+def test_chunk_size_does_not_change_the_result(tmp_path, chunk):
+    rng = np.random.default_rng(3)
+    lines = ["# header comment", "from to"]
+    for _ in range(400):
+        u, v = rng.integers(0, 60, 2)
+        lines.append(f"n{u}\tn{v}" if rng.random() < 0.9 else f"n{u}")
+    text = "\n".join(lines) + "\n"
+    e = read_edge_arrays(write(tmp_path, text), chunk_bytes=chunk)
+    names, edges, _ = reference_parse(text)
+    assert list(e.names) == names
+    assert as_named(e) == edges
+
+
+_name = st.one_of(st.integers(-50, 500).map(str),
+                  st.text("abcdefghijklmnopqrstuvwxyz_0123456789.-:é", min_size=1, max_size=14)
+                  .filter(lambda s: s[0] != "#"))
+_weight = st.one_of(st.floats(allow_nan=False, allow_infinity=False, width=64).map(repr),
+                    st.decimals(allow_nan=False, allow_infinity=False, places=4).map(str),
+                    st.integers(-10**6, 10**6).map(str),
+                    st.floats(1e-30, 1e30).map(lambda x: f"{x:.6e}"))
+
+
+@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(edges=st.lists(st.tuples(_name, _name, _weight), min_size=1, max_size=40),
+       sep=st.sampled_from([",", "\t", " ", ";", " , "]), chunk=st.sampled_from([3, 17, 4096]))
+def test_matches_reference_parser(tmp_path, edges, sep, chunk):
+    text = "".join(f"{u}{sep}{v}{sep}{w}\n" for u, v, w in edges)
+    p = tmp_path / "h.csv"
+    p.write_text(text, encoding="utf-8")
+    e = read_edge_arrays(p, chunk_bytes=chunk)
+    names, ref_edges, ref_w = reference_parse(text)
+    assert list(e.names) == names
+    assert as_named(e) == ref_edges
+    # bit-for-bit equal to Python's correctly rounded float()
+    assert e.weights.tobytes() == np.array(ref_w, dtype=np.float64).tobytes()
+
+
+# ---------------------------------------------------------------- system building
+def test_duplicates_merged_with_count(tmp_path):
+    p = write(tmp_path, "a b 1\na b 2\nb c 1\na b 0.5\n")
+    with pytest.warns(UserWarning, match=r"net\.csv: 2 duplicate links were merged "
+                      r"\(weights summed\)"):
+        s = read_edgelist(p)
+    assert s.A[1, 0] == 3.5 and s.n_links == 2
+
+
+def test_zero_weights_warned_and_left_out(tmp_path):
+    p = write(tmp_path, "a b 1\nb c 0\nc a 0.0\n")
+    with pytest.warns(UserWarning, match=r"2 links with weight 0 are not a link and were "
+                      r"left out \(the first on line 2\)"):
+        s = read_edgelist(p)
+    assert s.n_links == 1 and s.n_states == 3  # the states stay
+
+
+def test_cancelling_duplicates_warned(tmp_path):
+    p = write(tmp_path, "a b 1\na b -1\nb a 1\n")
+    with pytest.warns(UserWarning) as rec:
+        s = read_edgelist(p)
+    msgs = [str(w.message) for w in rec]
+    assert any("duplicate weights sum to 0 were left out" in m for m in msgs)
+    assert s.n_links == 1
+
+
+def test_self_loops_and_isolated_kept(tmp_path):
+    s = read_edgelist(write(tmp_path, "a a\na b\nc\n"))
+    assert s.n_self_loops == 1 and s.state_names == ("a", "b", "c")
+
+
+@pytest.mark.parametrize("weighted", [False, True])
+def test_write_read_round_trip(tmp_path, weighted, rng):
+    n = 30
+    src = rng.integers(0, n, 80)
+    dst = rng.integers(0, n, 80)
+    w = rng.normal(size=80) if weighted else None
+    with pytest.warns(UserWarning, match="duplicate"):
+        s = StructuredSystem.from_edges(np.r_[src, 0], np.r_[dst, 0], n + 2,
+                                        weights=None if w is None else np.r_[w, 1.0],
+                                        state_names=[f"s{i}" for i in range(n + 2)])
+    p = tmp_path / "rt.csv"
+    write_edgelist(s, p)
+    t = read_edgelist(p)
+    order = t.index_of(s.state_names)
+    A = t.A.toarray()[np.ix_(order, order)]
+    assert np.array_equal(A, s.A.toarray())  # exact: weights written with repr
+    assert t.weighted == weighted and set(t.state_names) == set(s.state_names)
+
+
+def test_writer_refuses_names_with_separators(tmp_path):
+    s = StructuredSystem.from_edges([0], [1], 2, state_names=["a b", "c"])
+    with pytest.raises(ValueError, match=r"the state name 'a b' contains a separator"):
+        write_edgelist(s, tmp_path / "x.csv")
+    assert not (tmp_path / "x.csv").exists()
+
+
+# ---------------------------------------------------------------- bad input
+BAD = [
+    pytest.param("a b\nb c d e\n", r"net\.csv:2: expected 'source target \[weight\]', found 4 "
+                 r"columns in 'b c d e'\. Columns are separated", id="too-many-columns"),
+    pytest.param("a b\nb c 1\n", r"net\.csv:2: this line has 3 columns but earlier lines "
+                 r"have 2: 'b c 1'\. Give a weight on every link line", id="mixed-columns"),
+    pytest.param("1 2 0.5\n2 3 heavy\n", r"net\.csv:2: the weight 'heavy' is not a number\. "
+                 r"Use a decimal number", id="bad-weight"),
+    pytest.param("1 2 nan\n", r"net\.csv:1: the weight 'nan' is not a finite number",
+                 id="nan-weight"),
+    pytest.param("1 2 1\n\n2 3 -inf\n", r"net\.csv:3: the weight '-inf' is not a finite",
+                 id="inf-weight"),
+    pytest.param("# only a comment\n\n", r"net\.csv: the file holds no links and no states",
+                 id="empty"),
+    pytest.param("source,target,weight,colour\n1,2,3,red\n", r"net\.csv:1: the header names 4 "
+                 r"columns", id="wide-header"),
+]
+
+
+@pytest.mark.parametrize("text, message", BAD)
+def test_bad_input_messages(tmp_path, text, message):
+    with pytest.raises(NetworkFileError, match=message):
+        read_edgelist(write(tmp_path, text))
+
+
+def test_not_utf8_name_is_located(tmp_path):
+    p = write(tmp_path, "", data=b"a b\nb caf\xe9\n")
+    with pytest.raises(NetworkFileError, match=r"net\.csv:2: the name b'caf\\xe9' is not "
+                       r"UTF-8 text\. Save the file as UTF-8"):
+        read_edgelist(p)
+
+
+def test_utf16_file_is_refused(tmp_path):
+    p = write(tmp_path, "", data="a b\n".encode("utf-16"))
+    with pytest.raises(NetworkFileError, match=r"net\.csv:1: the file is UTF-16 text; save "
+                       "it as UTF-8"):
+        read_edgelist(p)
+
+
+def test_nul_byte_is_refused(tmp_path):
+    p = write(tmp_path, "", data=b"a b\nb c\n\x00\x01\x02")
+    with pytest.raises(NetworkFileError, match=r"net\.csv:3: found a NUL byte: this is not "
+                       "a text edge list"):
+        read_edgelist(p)
+
+
+def test_truncated_gzip(tmp_path):
+    data = gzip.compress(("".join(f"{i} {i + 1}\n" for i in range(20000))).encode())
+    p = write(tmp_path, "", "t.csv.gz", data[: len(data) // 2])
+    with pytest.raises(NetworkFileError, match=r"t\.csv\.gz:\d+: the gzip stream is damaged "
+                       r"or truncated here .*Compress the file again"):
+        read_edgelist(p)
+
+
+def test_missing_file(tmp_path):
+    with pytest.raises(MissingFileError, match=r"nope\.csv: no such file"):
+        read_edgelist(tmp_path / "nope.csv")
