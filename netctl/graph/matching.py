@@ -25,7 +25,8 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["maximum_matching", "matching_from_csr", "is_valid_matching", "transpose_csr"]
+__all__ = ["maximum_matching", "extend_matching", "matching_from_csr", "is_valid_matching",
+           "transpose_csr"]
 
 
 @njit(cache=True, nogil=True)
@@ -82,16 +83,27 @@ def _karp_sipser(indptr, indices, tptr, tind, n_cols, row_match, col_match):  # 
     n_rows = indptr.size - 1
     rdeg = np.zeros(n_rows, np.int64)
     cdeg = np.zeros(n_cols, np.int64)
+    fresh = True
     for r in range(n_rows):
-        if row_match[r] == -1:
-            for k in range(indptr[r], indptr[r + 1]):
-                if col_match[indices[k]] == -1:
-                    rdeg[r] += 1
-    for c in range(n_cols):
-        if col_match[c] == -1:
-            for k in range(tptr[c], tptr[c + 1]):
-                if row_match[tind[k]] == -1:
-                    cdeg[c] += 1
+        if row_match[r] != -1:
+            fresh = False
+            break
+    if fresh:
+        for r in range(n_rows):
+            rdeg[r] = indptr[r + 1] - indptr[r]
+        for c in range(n_cols):
+            cdeg[c] = tptr[c + 1] - tptr[c]
+    else:
+        for r in range(n_rows):
+            if row_match[r] == -1:
+                for k in range(indptr[r], indptr[r + 1]):
+                    if col_match[indices[k]] == -1:
+                        rdeg[r] += 1
+        for c in range(n_cols):
+            if col_match[c] == -1:
+                for k in range(tptr[c], tptr[c + 1]):
+                    if row_match[tind[k]] == -1:
+                        cdeg[c] += 1
     # queue of degree-one vertices: code r >= 0 for rows, -(c+1) for columns
     queue = np.empty(n_rows + n_cols + 1, np.int64)
     head = 0
@@ -245,8 +257,7 @@ def _pothen_fan(indptr, indices, n_cols, row_match, col_match):  # pragma: no co
 
 
 @njit(cache=True, nogil=True)
-def _matching_kernel(indptr, indices, n_cols, row_match, col_match):  # pragma: no cover
-    tptr, tind = transpose_csr(indptr, indices, n_cols)
+def _matching_kernel(indptr, indices, tptr, tind, n_cols, row_match, col_match):  # pragma: no cover
     _karp_sipser(indptr, indices, tptr, tind, n_cols, row_match, col_match)
     _pothen_fan(indptr, indices, n_cols, row_match, col_match)
 
@@ -258,6 +269,7 @@ def maximum_matching(
     *,
     row_match: np.ndarray | None = None,
     col_match: np.ndarray | None = None,
+    transpose: tuple[np.ndarray, np.ndarray] | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
     """Maximum matching of a bipartite graph given as CSR index arrays.
 
@@ -271,6 +283,9 @@ def maximum_matching(
         A valid (not necessarily maximum) matching to start from; it is completed, and
         every row and column matched in it stays matched (augmenting paths never unmatch
         a vertex). Copies are made.
+    transpose : (tptr, tind), optional
+        The column-wise adjacency (see :func:`transpose_csr`) when the caller already has
+        it; computed otherwise.
 
     Returns
     -------
@@ -291,8 +306,120 @@ def maximum_matching(
     rm = np.full(n_rows, -1, np.int64) if row_match is None else np.array(row_match, np.int64)
     cm = np.full(n_cols, -1, np.int64) if col_match is None else np.array(col_match, np.int64)
     if n_rows and n_cols and indices.size:
-        _matching_kernel(indptr, indices, np.int64(n_cols), rm, cm)
+        if transpose is None:
+            tptr, tind = transpose_csr(indptr, indices, np.int64(n_cols))
+        else:
+            tptr = np.ascontiguousarray(transpose[0], dtype=np.int64)
+            tind = np.ascontiguousarray(transpose[1], dtype=np.int64)
+        _matching_kernel(indptr, indices, tptr, tind, np.int64(n_cols), rm, cm)
     return rm, cm
+
+
+@njit(cache=True, nogil=True)
+def _extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match):  # pragma: no cover
+    """DFS from every free extra column; see :func:`extend_matching`."""
+    n_rows = row_match.size
+    n_x = xptr.size - 1
+    visited = np.full(n_rows, -1, np.int64)
+    stack_col = np.empty(n_rows + 1, np.int64)
+    stack_pos = np.empty(n_rows + 1, np.int64)
+    stack_row = np.empty(n_rows + 1, np.int64)
+    phase = 0
+    while True:
+        augmented = 0
+        for k in range(n_x):
+            if x_match[k] != -1:
+                continue
+            top = 0
+            stack_col[0] = n_cols + k
+            stack_pos[0] = xptr[k]
+            found = -1
+            while top >= 0:
+                c = stack_col[top]
+                if c < n_cols:
+                    end = tptr[c + 1]
+                    adj = tind
+                else:
+                    end = xptr[c - n_cols + 1]
+                    adj = xind
+                pos = stack_pos[top]
+                nxt = -1
+                while pos < end:
+                    r = adj[pos]
+                    pos += 1
+                    if visited[r] != phase and row_match[r] != c:
+                        nxt = r
+                        break
+                stack_pos[top] = pos
+                if nxt == -1:
+                    top -= 1
+                    continue
+                visited[nxt] = phase
+                stack_row[top] = nxt
+                c2 = row_match[nxt]
+                if c2 == -1:
+                    found = nxt
+                    break
+                top += 1
+                stack_col[top] = c2
+                stack_pos[top] = tptr[c2] if c2 < n_cols else xptr[c2 - n_cols]
+            if found != -1:
+                t = top
+                while t >= 0:
+                    c = stack_col[t]
+                    r = stack_row[t]
+                    row_match[r] = c
+                    if c < n_cols:
+                        col_match[c] = r
+                    else:
+                        x_match[c - n_cols] = r
+                    t -= 1
+                augmented += 1
+        if augmented == 0:
+            break
+        phase += 1
+
+
+def extend_matching(
+    transpose: tuple[np.ndarray, np.ndarray],
+    n_cols: int,
+    row_match: np.ndarray,
+    col_match: np.ndarray,
+    extra: tuple[np.ndarray, np.ndarray],
+    extra_match: np.ndarray,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Add extra columns to a *maximum* matching and match as many of them as possible.
+
+    Parameters
+    ----------
+    transpose : (tptr, tind)
+        Column-wise adjacency of the real columns (column ``c`` is adjacent to rows
+        ``tind[tptr[c]:tptr[c+1]]``).
+    row_match, col_match : ndarray
+        A maximum matching of the real graph; ``row_match[r] >= n_cols`` encodes a row
+        matched to extra column ``row_match[r] - n_cols``.
+    extra : (xptr, xind)
+        Adjacency of the extra columns (rows each one may take).
+    extra_match : ndarray
+        Row matched to each extra column, ``-1`` if free.
+
+    Returns
+    -------
+    row_match, col_match, extra_match
+        Copies, completed. Augmenting paths from the free extra columns never unmatch a
+        vertex and, because the real matching is maximum, never end at a free real column
+        from a free row; so the real part keeps its size and the number of matched extra
+        columns is the largest possible among matchings whose real part is maximum.
+    """
+    rm = np.array(row_match, np.int64)
+    cm = np.array(col_match, np.int64)
+    xm = np.array(extra_match, np.int64)
+    if xm.size and np.any(xm == -1):
+        _extend(np.ascontiguousarray(transpose[0], np.int64),
+                np.ascontiguousarray(transpose[1], np.int64), np.int64(n_cols), rm, cm,
+                np.ascontiguousarray(extra[0], np.int64),
+                np.ascontiguousarray(extra[1], np.int64), xm)
+    return rm, cm, xm
 
 
 def matching_from_csr(matrix: object) -> tuple[np.ndarray, np.ndarray]:

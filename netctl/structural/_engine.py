@@ -16,7 +16,7 @@ from netctl.graph.components import (
     reachable_from,
     strongly_connected_components,
 )
-from netctl.graph.matching import maximum_matching
+from netctl.graph.matching import extend_matching, maximum_matching, transpose_csr
 
 __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB"]
 
@@ -37,7 +37,7 @@ class Structure:
     """Graph facts of ``A`` that several analyses need, computed once."""
 
     n: int
-    out_indptr: np.ndarray  # successors of each state
+    out_indptr: np.ndarray  # successors of each state (the transpose of A's CSR)
     out_indices: np.ndarray
     n_scc: int
     scc: np.ndarray  # component label of each state (ordered by smallest member)
@@ -47,12 +47,12 @@ class Structure:
 def structure_of(A: sp.csr_array) -> Structure:
     """Out-adjacency, strongly connected components and source components of ``A``."""
     n = A.shape[0]
-    At = A.T.tocsr()
-    At.sort_indices()
-    k, labels = strongly_connected_components(A.indptr, A.indices)
-    src = condensation_sources(A.indptr, A.indices, labels, k)
-    return Structure(n=n, out_indptr=At.indptr.astype(np.int64),
-                     out_indices=At.indices.astype(np.int64), n_scc=k, scc=labels,
+    indptr = np.ascontiguousarray(A.indptr, np.int64)
+    indices = np.ascontiguousarray(A.indices, np.int64)
+    out_ptr, out_ind = transpose_csr(indptr, indices, np.int64(n))
+    k, labels = strongly_connected_components(indptr, indices)
+    src = condensation_sources(indptr, indices, labels, k)
+    return Structure(n=n, out_indptr=out_ptr, out_indices=out_ind, n_scc=k, scc=labels,
                      source_scc=src)
 
 
@@ -63,7 +63,8 @@ class Completion:
     ``states``: where to add them (sorted). ``unmatched``: the states left unmatched by
     the chosen maximum matching of ``[A B]`` (they need an input for the rank condition).
     ``representatives``: one state of each source component that is neither reached by
-    an existing input nor holds an unmatched state. ``row_match``: the chosen matching.
+    an existing input nor holds an unmatched state. ``row_match``: the chosen matching
+    (column of ``[A B]`` matched to each state, ``-1`` if none).
     """
 
     states: np.ndarray
@@ -81,15 +82,22 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None) ->
     Count = ``m_u + beta - alpha`` (Commault & Dion 2013; Pequito, Kar & Aguiar 2016):
     ``m_u`` unmatched states of a maximum matching of ``[A B]``, ``beta`` source
     components of ``A`` that no existing input reaches, ``alpha`` the largest number of
-    those that can hold an unmatched state at once. ``alpha`` comes from one more
-    matching: a slack column per unreached source component joined to its states, with
-    the maximum matching of ``[A B]`` as the warm start. Augmenting paths never unmatch
-    a vertex, so the real part stays maximum and the slack part is as large as it can be.
+    those that can hold an unmatched state at once, over all maximum matchings.
+
+    ``alpha`` is found by giving every unreached source component an extra column
+    adjacent to its states and extending the maximum matching with as many extra columns
+    as possible (:func:`netctl.graph.matching.extend_matching`). Components that already
+    hold an unmatched state start with their extra column matched to it; only the others
+    are searched for, so the usual case costs nothing beyond the first matching.
     """
     n = A.shape[0]
     st = st or structure_of(A)
     indptr, indices, n_cols = stack_AB(A, B)
-    row_match, col_match = maximum_matching(indptr, indices, n_cols)
+    if B.shape[1] == 0:
+        transpose = (st.out_indptr, st.out_indices)
+    else:
+        transpose = transpose_csr(indptr, indices, np.int64(n_cols))
+    row_match, col_match = maximum_matching(indptr, indices, n_cols, transpose=transpose)
     matching_size = int(np.count_nonzero(row_match >= 0))
     # source components with no existing input on them are unreached (nothing feeds them)
     driven_comp = np.zeros(st.n_scc, bool)
@@ -97,41 +105,42 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None) ->
         driven_comp[st.scc[_rows_with_entries(B)]] = True
     unreached = np.flatnonzero(st.source_scc & ~driven_comp)
     n_unreached = int(unreached.size)
-    if n_unreached:
-        # slack column s_k (index n_cols + k) adjacent to every state of unreached source k
-        slot = np.full(st.n_scc, -1, np.int64)
-        slot[unreached] = np.arange(n_unreached)
-        rows_slack = np.flatnonzero(slot[st.scc] >= 0)
-        slack_col = n_cols + slot[st.scc[rows_slack]]
-        counts = np.diff(indptr).copy()
-        counts[rows_slack] += 1
-        new_ptr = np.zeros(n + 1, np.int64)
-        np.cumsum(counts, out=new_ptr[1:])
-        new_ind = np.empty(new_ptr[-1], np.int64)
-        # real neighbours first, then the slack column (rows have at most one slack)
-        pos = new_ptr[:-1].copy()
-        lens = np.diff(indptr)
-        dest = np.repeat(pos, lens) + (np.arange(indices.size) - np.repeat(indptr[:-1], lens))
-        new_ind[dest] = indices
-        new_ind[new_ptr[rows_slack + 1] - 1] = slack_col
-        cm0 = np.concatenate([col_match, np.full(n_unreached, -1, np.int64)])
-        row_match, col_match = maximum_matching(new_ptr, new_ind, n_cols + n_unreached,
-                                                row_match=row_match, col_match=cm0)
-    real = (row_match >= 0) & (row_match < n_cols)
-    unmatched = np.flatnonzero(~real)
-    hit = np.zeros(st.n_scc, bool)
-    hit[st.scc[unmatched]] = True
-    missed = unreached[~hit[unreached]]
+    free_rows = np.flatnonzero(row_match < 0)
+    # an unreached source component already holding a free row: its extra column starts
+    # matched to the smallest such row
+    slot = np.full(st.n_scc, -1, np.int64)
+    slot[unreached] = np.arange(n_unreached)
+    x_match = np.full(n_unreached, -1, np.int64)
+    fr_slot = slot[st.scc[free_rows]]
+    keep = fr_slot >= 0
+    # reversed assignment so that the smallest free row of each component wins
+    x_match[fr_slot[keep][::-1]] = free_rows[keep][::-1]
+    if np.any(x_match == -1):
+        rm_ext = row_match.copy()
+        rm_ext[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
+        members = np.flatnonzero(slot[st.scc] >= 0)
+        order = np.argsort(slot[st.scc[members]], kind="stable")
+        members = members[order]
+        xptr = np.zeros(n_unreached + 1, np.int64)
+        np.cumsum(np.bincount(slot[st.scc[members]], minlength=n_unreached), out=xptr[1:])
+        rm_ext, col_match, x_match = extend_matching(transpose, n_cols, rm_ext, col_match,
+                                                     (xptr, members), x_match)
+        real = (rm_ext >= 0) & (rm_ext < n_cols)
+        row_match = np.where(real, rm_ext, -1)
+    unmatched = np.flatnonzero(row_match < 0)
+    missed = unreached[x_match == -1]
     # representative: the smallest state of each missed source component
-    first = np.full(st.n_scc, n, np.int64)
-    np.minimum.at(first, st.scc, np.arange(n, dtype=np.int64))
-    reps = np.sort(first[missed])
+    if missed.size:
+        idx = np.flatnonzero(np.isin(st.scc, missed))
+        _, first = np.unique(st.scc[idx], return_index=True)
+        reps = np.sort(idx[first])
+    else:
+        reps = np.zeros(0, np.int64)
     states = np.union1d(unmatched, reps).astype(np.int64)
     return Completion(states=states, unmatched=unmatched.astype(np.int64),
                       representatives=reps.astype(np.int64), matching_size=matching_size,
                       n_unreached_sources=n_unreached,
-                      n_sources_hit=n_unreached - int(missed.size),
-                      row_match=np.where(real, row_match, -1))
+                      n_sources_hit=n_unreached - int(missed.size), row_match=row_match)
 
 
 def accessible_states(st: Structure, B: sp.csr_array) -> np.ndarray:
