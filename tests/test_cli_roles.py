@@ -1,0 +1,174 @@
+"""The verbs roles, sweep, whatif and join through the entry point: exit codes, JSON
+keys, CSV files, messages, no tracebacks and no partial output files."""
+
+from __future__ import annotations
+
+import csv
+import json
+from pathlib import Path
+
+import pytest
+
+from netctl.cli import main
+
+ROOT = Path(__file__).resolve().parents[1]
+HEATING = str(ROOT / "networks" / "heating_loop.csv")
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def heating_design(capsys) -> str:
+    code, out, _ = run(capsys, "drivers", HEATING, "--dedicated", "--json")
+    assert code == 0
+    return ",".join(json.loads(out)["drivers"])
+
+
+def test_roles_json_and_csv(capsys, tmp_path):
+    out_csv = tmp_path / "roles.csv"
+    code, out, err = run(capsys, "roles", HEATING, "--json", "--csv", str(out_csv))
+    assert code == 0 and "Traceback" not in err
+    d = json.loads(out)
+    assert len(d["nodes"]) == 14
+    assert set(d["nodes"].values()) <= {"critical", "intermittent", "redundant"}
+    assert len(d["links"]) == 20
+    assert all(set(x) == {"source", "target", "role"} for x in d["links"])
+    assert {x["role"] for x in d["links"]} <= {"critical", "ordinary", "redundant"}
+    # in-degree-0 states are critical (Jia et al. 2013): the four with no feeder here
+    for s in ("fuel_valve", "outdoor_temp", "solar_collector", "bypass_valve"):
+        assert d["nodes"][s] == "critical"
+    rows = list(csv.DictReader(out_csv.read_text().splitlines()))
+    assert rows[0].keys() == {"element", "source", "target", "role"}
+    assert sum(r["element"] == "state" for r in rows) == 14
+    assert sum(r["element"] == "link" for r in rows) == 20
+
+
+def test_roles_text_mentions_caution(capsys):
+    code, out, _ = run(capsys, "roles", HEATING)
+    assert code == 0 and "critical states" in out and "Caution" in out
+
+
+def test_roles_bad_file_exit_2_no_output(capsys, tmp_path):
+    bad = tmp_path / "bad.csv"
+    bad.write_text("a,b,c,d\n")
+    target = tmp_path / "out.csv"
+    code, out, err = run(capsys, "roles", str(bad), "--csv", str(target))
+    assert code == 2 and "bad.csv:1" in err and "Traceback" not in err
+    assert not target.exists()
+    code, _, err = run(capsys, "roles", HEATING, "--csv", str(tmp_path / "no" / "x.csv"))
+    assert code == 2 and "cannot write" in err
+
+
+def test_sweep_single_losses_exit_codes(capsys, tmp_path):
+    design = heating_design(capsys)
+    out_csv = tmp_path / "sweep.csv"
+    code, out, err = run(capsys, "sweep", HEATING, "--inputs", design, "--json",
+                         "--csv", str(out_csv))
+    d = json.loads(out)
+    # the dedicated design has no spare: losing supply_header cuts pipe_north off (its
+    # only feeder), so some single loss breaks it and the exit status is 1
+    assert code == 1
+    assert "supply_header" in d["nodes"]["breaking"]
+    assert d["links"]["controllable_before"] is True
+    rows = list(csv.DictReader(out_csv.read_text().splitlines()))
+    assert len(rows) == 20 + 14
+    code, out, _ = run(capsys, "sweep", HEATING)
+    assert code == 0 and "single link losses (20)" in out
+
+
+def test_sweep_sampled_and_attack(capsys, tmp_path):
+    design = heating_design(capsys)
+    acsv = tmp_path / "attack.csv"
+    png = tmp_path / "attack.png"
+    code, out, err = run(capsys, "sweep", HEATING, "--inputs", design, "--k", "2",
+                         "--samples", "10", "--seed", "3", "--elements", "links",
+                         "--attack", "random,degree", "--steps", "4",
+                         "--attack-csv", str(acsv), "--plot", str(png), "--json")
+    d = json.loads(out)
+    assert d["links"]["k"] == 2 and d["links"]["n_samples"] == 10
+    assert code in (0, 1) and code == (1 if d["links"]["fraction_breaking"] > 0 else 0)
+    assert png.stat().st_size > 0
+    lines = acsv.read_text().splitlines()
+    assert lines[0].startswith("strategy,elements,n_removed")
+    assert len(lines) == 1 + 2 * 5
+    code, _, err = run(capsys, "sweep", HEATING, "--attack", "pagerank")
+    assert code == 2 and "unknown strategy 'pagerank'" in err
+    code, _, err = run(capsys, "sweep", HEATING, "--k", "99", "--elements", "links")
+    assert code == 2 and "--k 99 exceeds the number of links (20)" in err
+
+
+def test_whatif_breaks_and_keeps(capsys, tmp_path):
+    design = heating_design(capsys)
+    # removing supply_header leaves pipe_north without any feeder (Lin 1974: not
+    # accessible) -> exit 1
+    code, out, _ = run(capsys, "whatif", HEATING, "--inputs", design, "--remove-nodes",
+                       "supply_header")
+    assert code == 1 and "BREAKS" in out
+    # adding links cannot break structural controllability -> exit 0
+    links = tmp_path / "new.csv"
+    links.write_text("source,target\nstorage_tank,pipe_north\nboiler_temp,pipe_south\n")
+    code, out, _ = run(capsys, "whatif", HEATING, "--inputs", design, "--add-links",
+                       str(links), "--json")
+    d = json.loads(out)
+    assert code == 0 and d["after"]["controllable"] is True
+    assert d["change"]["added_links"] == [["storage_tank", "pipe_north"],
+                                          ["boiler_temp", "pipe_south"]]
+
+
+def test_whatif_usage_errors(capsys, tmp_path):
+    code, _, err = run(capsys, "whatif", HEATING)
+    assert code == 2 and "whatif needs a change" in err
+    bad = tmp_path / "links.csv"
+    bad.write_text("a,b,c\n")
+    code, _, err = run(capsys, "whatif", HEATING, "--remove-links", str(bad))
+    assert code == 2 and "links.csv:1: expected 'source,target'" in err
+    code, _, err = run(capsys, "whatif", HEATING, "--remove-links", "pump")
+    assert code == 2 and "neither a file nor a link 'a->b'" in err
+    # without inputs: exit 1 when the minimum number of inputs rises
+    code, out, _ = run(capsys, "whatif", HEATING, "--remove-nodes", "supply_header",
+                       "--json")
+    d = json.loads(out)
+    assert code == (1 if d["after"]["n_inputs"] > d["before"]["n_inputs"] else 0)
+
+
+@pytest.fixture
+def two_plants(tmp_path):
+    (tmp_path / "plant.csv").write_text("source,target\na,b\nb,c\n")
+    (tmp_path / "ctrl.csv").write_text("source,target\np,q\np,r\n")
+    ties = tmp_path / "ties.csv"
+    ties.write_text("from_system,from_state,to_system,to_state\nplant,c,ctrl,p\n")
+    return tmp_path
+
+
+def test_join_reports_dilation_and_fix(capsys, two_plants):
+    t = two_plants
+    code, out, err = run(capsys, "join", str(t / "plant.csv"), str(t / "ctrl.csv"),
+                         "--ties", str(t / "ties.csv"), "--inputs", "plant.a", "--json")
+    d = json.loads(out)
+    # ctrl.p feeds ctrl.q and ctrl.r alone: a dilation (Lin 1974) -> exit 1
+    assert code == 1 and d["controllable"] is False
+    by = {x["name"]: x for x in d["by_subsystem"]}
+    assert set(by["ctrl"]["in_dilation"]) >= {"q", "r"}
+    assert len(d["composite_report"]["fix"]["states"]) == 1
+    code, out, _ = run(capsys, "join", str(t / "plant.csv"), str(t / "ctrl.csv"),
+                       "--ties", str(t / "ties.csv"), "--inputs", "plant.a,ctrl.q")
+    assert code == 0 and "controllable: yes" in out
+
+
+def test_join_bad_ties_file(capsys, two_plants):
+    t = two_plants
+    bad = t / "bad.csv"
+    bad.write_text("from_system,from_state,to_system,to_state\nplant,c,ctrl\n")
+    code, _, err = run(capsys, "join", str(t / "plant.csv"), str(t / "ctrl.csv"),
+                       "--ties", str(bad))
+    assert code == 2 and "bad.csv:2: expected 4 comma-separated columns" in err
+    bad.write_text("from_system,from_state,to_system,to_state\nplant,zz,ctrl,p\n")
+    code, _, err = run(capsys, "join", str(t / "plant.csv"), str(t / "ctrl.csv"),
+                       "--ties", str(bad))
+    assert code == 2 and "unknown state name 'zz'" in err
+    code, _, err = run(capsys, "join", str(t / "plant.csv"), str(t / "plant.csv"),
+                       "--ties", str(t / "ties.csv"))
+    assert code == 2 and "NAME=PATH" in err
