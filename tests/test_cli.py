@@ -93,7 +93,7 @@ BAD = [
     pytest.param("a,b,1\nc,d\n", "2: this line has 2 columns but earlier lines have 3",
                  id="mixed-columns"),
     pytest.param("# only a comment\n\n", "the file holds no links and no states", id="empty"),
-    pytest.param(b"a,b\n\xff\xfe,c\n", "2: the bytes", id="bad-encoding"),
+    pytest.param(b"a,b\n\xff\xfe,c\n", "2: the name", id="bad-encoding"),
 ]
 
 
@@ -109,6 +109,8 @@ def test_bad_input_names_file_and_line_exit_2(capsys, tmp_path, content, message
     assert code == 2
     assert err.startswith("netctl: error: ")
     assert str(f) in err and message in err
+    if isinstance(content, bytes):
+        assert "is not UTF-8 text" in err
     assert "Traceback" not in err
     assert not out_file.exists()  # no partial output
     assert list(tmp_path.iterdir()) == [f]  # no temporary file left behind either
