@@ -43,6 +43,9 @@ from netctl.structural import (
     observability,
     summarize,
 )
+from netctl.structural.interconnect import interconnection
+from netctl.structural.robustness import contingency_sweep, what_if
+from netctl.structural.roles import LinkRoles, NodeRoles, link_roles, node_roles
 from netctl.system import StructuredSystem
 
 __version__ = "0.1.0"
@@ -51,10 +54,12 @@ __all__ = [
     "ControllabilityReport",
     "InputDesign",
     "InvalidSystemError",
+    "LinkRoles",
     "MissingFileError",
     "NetctlError",
     "NetworkFileError",
     "NetworkSummary",
+    "NodeRoles",
     "NullComparison",
     "OptionError",
     "StructuredSystem",
@@ -63,13 +68,18 @@ __all__ = [
     "cavity_driver_fraction",
     "compare_to_null",
     "configuration_model",
+    "contingency_sweep",
     "controllability",
     "degree_preserving_swaps",
+    "interconnection",
     "is_structurally_controllable",
     "is_structurally_observable",
+    "link_roles",
     "minimum_inputs",
     "minimum_sensors",
+    "node_roles",
     "observability",
     "run_tasks",
     "summarize",
+    "what_if",
 ]

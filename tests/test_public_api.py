@@ -11,6 +11,9 @@ EXPECTED = sorted([
     # ensemble (null models, cavity prediction, executor)
     "NullComparison", "cavity_driver_fraction", "compare_to_null", "configuration_model",
     "degree_preserving_swaps", "run_tasks",
+    # roles, robustness, interconnection
+    "LinkRoles", "NodeRoles", "contingency_sweep", "interconnection", "link_roles",
+    "node_roles", "what_if",
 ])
 
 
