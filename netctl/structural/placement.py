@@ -37,11 +37,12 @@ import scipy.sparse as sp
 from netctl.errors import NetworkFileError, OptionError
 from netctl.graph.dm import alternating_reach_rows
 from netctl.graph.matching import maximum_matching
-from netctl.structural._engine import Structure, stack_AB, structure_of
+from netctl.structural._engine import Structure, accessible_states, stack_AB, structure_of
 from netctl.system import StructuredSystem
 
 __all__ = [
     "Candidates",
+    "DIMENSION_MAX_STATES",
     "EXHAUSTIVE_MAX_CANDIDATES",
     "MILP_MAX_VARIABLES",
     "METHODS",
@@ -69,7 +70,12 @@ MILP_MAX_VARIABLES: int = 200_000
 #: design is found by trying every affordable subset with ``method="auto"``.
 EXHAUSTIVE_MAX_CANDIDATES: int = 12
 
+#: Largest system for which a failing design's generic controllable dimension is
+#: reported without being asked for (it costs one min-cost assignment).
+DIMENSION_MAX_STATES: int = 20_000
+
 _KINDS = ("actuator", "sensor")
+_MAX_LISTED = 20  # infeasible source components spelled out one by one
 
 
 # ====================================================================== site data
@@ -418,9 +424,11 @@ class Placement:
     gap : float
         Relative optimality gap: ``(cost - lower_bound) / cost`` for cost problems,
         ``(upper_bound - dimension) / upper_bound`` for best effort; 0 when optimal.
-    dimension : int
-        Generic controllable (observable) dimension of the design; for target problems
-        the generic rank of ``C_T [B AB ...]``.
+    dimension : int or None
+        Generic controllable (observable) dimension of the design (Hosoe); for target
+        problems the generic rank of ``C_T [B AB ...]``. ``None`` when the design fails
+        and the system has more than :data:`DIMENSION_MAX_STATES` states (the
+        dimension is then too costly to report by default).
     goal_dimension : int
         ``n``, or the number of targets.
     verified : bool or None
@@ -448,7 +456,7 @@ class Placement:
     upper_bound: float | None
     optimal: bool
     gap: float
-    dimension: int
+    dimension: int | None
     goal_dimension: int
     verified: bool | None
     inaccessible: np.ndarray
@@ -505,7 +513,7 @@ class Placement:
             "gap": float(self.gap),
             "lower_bound": self.lower_bound,
             "upper_bound": self.upper_bound,
-            "dimension": int(self.dimension),
+            "dimension": self.dimension,
             "goal_dimension": int(self.goal_dimension),
             "targets": None if self.targets is None else self.names(self.targets),
             "verified": self.verified,
@@ -873,14 +881,25 @@ def _infeasibility(work: StructuredSystem, prob: _Reduced, cands: Candidates) ->
     word = "site" if cands.dedicated else "candidate actuator"
     # accessibility: an unreached source component no candidate touches
     touched = np.diff(prob.cand_comp.tocsc().indptr) > 0
-    for slot in np.flatnonzero(~touched).tolist():
-        comp = int(prob.unreached[slot])
-        members = np.flatnonzero(prob.scc == comp)
-        reasons.append(
-            f"no eligible {word} {'is in' if cands.dedicated else 'acts on'} the source "
-            f"component {{{_short([names[i] for i in members])}}}: nothing else influences "
-            f"these states, so an actuator must act on one of them; make one of them "
-            f"eligible{' (or add a candidate acting on it)' if not cands.dedicated else ''}.")
+    bad_slots = np.flatnonzero(~touched)
+    named = np.zeros(prob.n, bool)
+    if bad_slots.size:
+        bad_comp = np.zeros(prob.scc.max(initial=-1) + 1, bool)
+        bad_comp[prob.unreached[bad_slots]] = True
+        named = bad_comp[prob.scc]
+        states = np.flatnonzero(named)
+        groups = np.split(states[np.argsort(prob.scc[states], kind="stable")],
+                          np.flatnonzero(np.diff(np.sort(prob.scc[states])))+1)
+        for members in groups[:_MAX_LISTED]:
+            reasons.append(
+                f"no eligible {word} {'is in' if cands.dedicated else 'acts on'} the source "
+                f"component {{{_short([names[i] for i in members])}}}: nothing else influences "
+                f"these states, so an actuator must act on one of them; make one of them "
+                f"eligible{' (or add a candidate acting on it)' if not cands.dedicated else ''}.")
+        if len(groups) > _MAX_LISTED:
+            reasons.append(f"... and {len(groups) - _MAX_LISTED} more source component(s) "
+                           f"with no eligible {word} ({len(groups)} in all; the JSON "
+                           "'inaccessible' list names every state no input reaches).")
     # rank: the D rows must be matchable into real columns plus all candidates
     if prob.deficiency:
         cD = prob.cand_D.tocsc()  # column r lists candidates acting on D row r
@@ -888,9 +907,6 @@ def _infeasibility(work: StructuredSystem, prob: _Reduced, cands: Candidates) ->
                                  prob.n_real)
         n_cols = prob.n_real + cands.n_candidates
         rm, cm = maximum_matching(ptr, ind, n_cols)
-        named = np.zeros(prob.n, bool)
-        for slot in np.flatnonzero(~touched).tolist():
-            named[prob.scc == prob.unreached[slot]] = True
         if np.any(rm < 0) and not np.all(named[prob.D[rm < 0]]):
             rows, cols = alternating_reach_rows(ptr, ind, n_cols, cm)
             S = prob.D[np.flatnonzero(rows)]
@@ -1271,25 +1287,36 @@ def _finish(system: StructuredSystem, work: StructuredSystem, kind: str, cands: 
     sites = np.unique(np.concatenate([cands.states_of(int(k)) for k in chosen])
                       if chosen.size else np.zeros(0, np.int64)).astype(np.int64)
     verified: bool | None = None
-    inacc = np.zeros(0, np.int64)
     dim = out.dimension
-    if verify or dim is None:
-        M = cands.matrix(chosen, n)
-        B = sp.hstack([work.B, M], format="csr") if work.n_inputs else M
-        rep = controllability(work._replace(
-            B=B, input_names=tuple(f"u{k}" for k in range(B.shape[1]))),
-            dimension=dim is None or out.best_effort or not out.feasible)
-        verified = bool(rep.controllable)
+    M = cands.matrix(chosen, n)
+    B = sp.hstack([work.B, M], format="csr") if work.n_inputs else M
+    design = work._replace(B=B, input_names=tuple(f"u{k}" for k in range(B.shape[1])))
+    claimed = out.feasible and not out.best_effort
+    if claimed:
+        # the independent check of a claimed design: Lin's test on the design installed
+        rep = controllability(design, dimension=False)
+        verified = bool(rep.controllable) if verify else None
         inacc = rep.inaccessible
-        if dim is None:
-            dim = rep.controllable_dimension if rep.controllable_dimension is not None else (
-                n if rep.controllable else 0)
-    assert dim is not None
+        ok = bool(rep.controllable)
+    else:
+        # no claim to check; accessibility and rank only (near-linear, any size)
+        st = structure_of(work.A)
+        acc = accessible_states(st, B)
+        inacc = np.flatnonzero(~acc).astype(np.int64)
+        indptr, indices, n_cols = stack_AB(work.A, B)
+        rm, _ = maximum_matching(indptr, indices, n_cols)
+        ok = bool(acc.all() and np.all(rm >= 0))
+    if dim is None:
+        if ok:
+            dim = n
+        elif n <= DIMENSION_MAX_STATES:
+            dim = controllability(design).controllable_dimension
     within = budget is None or out.cost <= budget * (1 + 1e-12) + 1e-12
     goal = bool(out.feasible and not out.best_effort and within)
     if out.best_effort:
         ub = out.upper_bound if out.upper_bound is not None else float(n)
-        gap = 0.0 if ub <= 0 else max(0.0, (ub - dim) / ub)
+        d0 = 0 if dim is None else dim
+        gap = 0.0 if ub <= 0 else max(0.0, (ub - d0) / ub)
         lower, upper = None, float(ub)
     elif not out.feasible:
         gap, lower, upper = float("inf"), None, None
@@ -1306,7 +1333,7 @@ def _finish(system: StructuredSystem, work: StructuredSystem, kind: str, cands: 
         kind=kind, problem=out.problem, method=out.method, feasible=out.feasible,
         goal_met=goal, best_effort=out.best_effort, sites=sites, chosen=chosen,
         cost=float(out.cost), lower_bound=lower, upper_bound=upper, optimal=optimal,
-        gap=float(gap), dimension=int(dim), goal_dimension=n, verified=verified,
+        gap=float(gap), dimension=None if dim is None else int(dim), goal_dimension=n, verified=verified,
         inaccessible=np.asarray(inacc, np.int64), reasons=tuple(out.reasons),
         guarantee=out.guarantee, budget=None if budget is None else float(budget),
         candidates=cands, state_names=system.state_names, model=system.model)
