@@ -15,6 +15,7 @@ from netctl.errors import OptionError
 from netctl.io._common import atomic_write
 from netctl.io.edgelist import read_edgelist, write_edgelist
 from netctl.io.mtx import read_mtx, write_mtx
+from netctl.io.system_spec import read_system, write_system
 from netctl.system import StructuredSystem
 
 __all__ = ["FORMATS", "atomic_write", "detect_format", "read", "read_state_list", "write"]
@@ -26,6 +27,7 @@ Writer = Callable[[StructuredSystem, "str | os.PathLike[str]"], None]
 FORMATS: dict[str, tuple[Reader, Writer | None, tuple[str, ...]]] = {
     "edgelist": (read_edgelist, write_edgelist, (".csv", ".tsv", ".txt", ".edges", ".el")),
     "mtx": (read_mtx, write_mtx, (".mtx", ".mm")),
+    "system": (read_system, write_system, (".toml",)),
 }
 
 

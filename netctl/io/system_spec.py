@@ -1,0 +1,660 @@
+"""The system description: a TOML file naming states, couplings, inputs, outputs,
+subsystems and the ties between them (schema in docs/FORMATS.md).
+
+``read_spec(path)`` returns a :class:`SystemSpec` (the flat system plus the subsystem
+structure); ``read_system(path)`` returns just the flat
+:class:`~netctl.system.StructuredSystem`, which is what ``netctl.io.read`` gives every
+verb for a ``.toml`` file. Orientation: a coupling ``[u, v]`` is the edge ``u -> v``,
+"u influences v" (``A[v, u] != 0``).
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+import math
+import os
+import re
+import sys
+import warnings
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sp
+
+from netctl.errors import MissingFileError
+from netctl.io._common import atomic_write, file_error, read_text
+from netctl.system import StructuredSystem
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover
+    import tomli as tomllib
+
+__all__ = ["SystemSpec", "read_spec", "read_system", "write_system", "TIE_KINDS",
+           "STATE_ATTRIBUTES"]
+
+#: Kinds of tie between subsystems: a ``state`` tie is a link from a state of one
+#: subsystem to a state of another; a ``signal`` tie feeds an output of one subsystem
+#: into an input of another (the input is then no longer external).
+TIE_KINDS: tuple[str, ...] = ("state", "signal")
+
+#: State attributes with a meaning (and a type check); any other scalar attribute is
+#: kept in the node table as it is.
+STATE_ATTRIBUTES: dict[str, str] = {
+    "x": "number (map coordinate)",
+    "y": "number (map coordinate)",
+    "actuator": "true/false: may host an actuator",
+    "actuator_cost": "number >= 0",
+    "sensor": "true/false: may host a sensor",
+    "sensor_cost": "number >= 0",
+    "self": "true/false or a number: self-dynamics (damping, decay) and its weight",
+}
+
+_SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "subsystems", "ties")
+_SYSTEM_KEYS = ("name", "description", "weighted")
+_COUPLING_KEYS = ("file", "links", "undirected")
+_TIE_KEYS = ("from", "to", "kind", "weight")
+
+
+@dataclass(frozen=True)
+class SystemSpec:
+    """A system description: the flat system and its subsystem structure.
+
+    Attributes
+    ----------
+    path : str
+        The TOML file read.
+    name, description : str
+    system : StructuredSystem
+        The whole system: every state, coupling, state tie and signal tie as links of
+        ``A``; the inputs not consumed by a signal tie as ``B``; every output as ``C``.
+    inputs, outputs : dict of str to tuple of str
+        Every named input (output) and the states it acts on (reads), including inputs
+        consumed by signal ties.
+    subsystems : dict of str to tuple of str
+        Subsystem name -> its state names, in declaration order.
+    ties : tuple of tuple
+        ``(from_subsystem, from_name, to_subsystem, to_name, kind)``: the ``[[ties]]``
+        in file order, then every coupling between states of two different subsystems
+        (a ``state`` tie, in edge order). For ``kind="state"`` the names are states, for
+        ``"signal"`` an output and an input.
+        This is the tuple form :func:`netctl.structural.interconnect.compose` accepts.
+    tie_weights : tuple of float or None
+        The weight of each tie (``None`` when not given).
+    unassigned : tuple of str
+        States that belong to no subsystem (empty when there are no subsystems); they
+        and their links are left out of :meth:`subsystem_systems`.
+    """
+
+    path: str
+    name: str
+    description: str
+    system: StructuredSystem
+    inputs: dict[str, tuple[str, ...]] = field(default_factory=dict)
+    outputs: dict[str, tuple[str, ...]] = field(default_factory=dict)
+    subsystems: dict[str, tuple[str, ...]] = field(default_factory=dict)
+    ties: tuple[tuple[str, str, str, str, str], ...] = ()
+    tie_weights: tuple[float | None, ...] = ()
+    unassigned: tuple[str, ...] = ()
+
+    def subsystem_of(self, state: str) -> str | None:
+        """The subsystem that ``state`` belongs to (``None`` when none)."""
+        for name, states in self.subsystems.items():
+            if state in states:
+                return name
+        return None
+
+    def subsystem_systems(self) -> dict[str, StructuredSystem]:
+        """Each subsystem as its own system: its states, the links among them, the
+        inputs (outputs) that act on (read) only its states, and its node table.
+
+        Together with :attr:`ties` this is what
+        :func:`netctl.structural.interconnect.compose` takes.
+        """
+        full = self.system
+        out: dict[str, StructuredSystem] = {}
+        for sub, states in self.subsystems.items():
+            idx = full.index_of(states)
+            pos = {s: k for k, s in enumerate(states)}
+            A = full.A[idx][:, idx]
+            ins = {u: [pos[s] for s in v] for u, v in self.inputs.items()
+                   if v and all(s in pos for s in v)}
+            outs = {y: [pos[s] for s in v] for y, v in self.outputs.items()
+                    if v and all(s in pos for s in v)}
+            s = StructuredSystem.from_matrices(
+                A, state_names=states, weighted=full.weighted, model=full.model,
+                nodes={k: np.asarray(c)[idx] for k, c in full.nodes.items()})
+            if ins:
+                s = s.with_inputs({u: [states[i] for i in v] for u, v in ins.items()})
+            if outs:
+                s = s.with_outputs({y: [states[i] for i in v] for y, v in outs.items()})
+            out[sub] = s
+        return out
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready summary (names only)."""
+        return {"path": self.path, "name": self.name, "description": self.description,
+                "n_states": self.system.n_states, "n_links": self.system.n_links,
+                "inputs": {k: list(v) for k, v in self.inputs.items()},
+                "outputs": {k: list(v) for k, v in self.outputs.items()},
+                "subsystems": {k: list(v) for k, v in self.subsystems.items()},
+                "ties": [list(t) for t in self.ties], "unassigned": list(self.unassigned)}
+
+
+# ---------------------------------------------------------------------- reading
+class _Doc:
+    """The parsed TOML text with helpers to locate keys for error messages."""
+
+    def __init__(self, path: str | os.PathLike[str]) -> None:
+        self.path = path
+        self.text = read_text(path)
+        try:
+            self.data = tomllib.loads(self.text)
+        except tomllib.TOMLDecodeError as exc:
+            msg = str(exc)
+            m = re.search(r"\(at line (\d+), column (\d+)\)", msg)
+            line = int(m.group(1)) if m else None
+            if m is None and "end of document" in msg:
+                line = self.text.count("\n") + 1
+            col = f", column {m.group(2)}" if m else ""
+            msg = re.sub(r"\s*\(at line \d+, column \d+\)", "", msg)
+            raise file_error(path, line, f"not valid TOML{col}: {msg}. Check quotes, "
+                             "brackets and '=' signs (see docs/FORMATS.md).") from None
+
+    def line_of(self, *words: str) -> int | None:
+        """Line of the first line mentioning every word (keys, names), or None."""
+        pats = [re.compile(r"(?<![\w-])" + re.escape(w) + r"(?![\w-])") for w in words if w]
+        for k, line in enumerate(self.text.splitlines(), start=1):
+            code = line.split("#", 1)[0] if '"' not in line else line
+            if all(p.search(code) for p in pats):
+                return k
+        return None
+
+    def error(self, message: str, *words: str) -> Exception:
+        return file_error(self.path, self.line_of(*words) if words else None, message)
+
+
+def _check_keys(doc: _Doc, table: Mapping[str, Any], allowed: Sequence[str], where: str,
+                *words: str) -> None:
+    for key in table:
+        if key not in allowed:
+            close = difflib.get_close_matches(key, allowed, n=1)
+            hint = f" Did you mean {close[0]!r}?" if close else ""
+            raise doc.error(f"unknown key {key!r} in {where}; expected one of "
+                            f"{', '.join(allowed)}.{hint}", key, *words)
+
+
+def _name_list(doc: _Doc, value: Any, where: str, key: str) -> list[str]:
+    if isinstance(value, str):
+        return [value]
+    if isinstance(value, list) and all(isinstance(v, str) for v in value):
+        return list(value)
+    raise doc.error(f"{where} must be a state name or a list of state names such as "
+                    f"[\"a\", \"b\"], found {value!r}.", key)
+
+
+def _number(v: Any) -> bool:
+    return isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v)
+
+
+def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSpec:
+    """Read a TOML system description.
+
+    Parameters
+    ----------
+    path : path-like
+        The ``.toml`` file; a coupling file it names is found relative to it.
+    model : str
+        Recorded as the system's model name.
+
+    Returns
+    -------
+    SystemSpec
+
+    Raises
+    ------
+    NetworkFileError
+        Not valid TOML (with line and column); an unknown section or key (with the
+        closest valid one); an attribute of the wrong type; a name that is not a
+        state, input, output or subsystem; a state in two subsystems; a tie inside one
+        subsystem; errors in the referenced edge list (named with its own file and line).
+    MissingFileError
+        The TOML file, or the coupling file it names, does not exist.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> p = pathlib.Path(tempfile.mkdtemp()) / "plant.toml"
+    >>> _ = p.write_text('''
+    ... [states]
+    ... tank = { x = 0.0, y = 1.0, sensor_cost = 2.5 }
+    ... pump = { actuator = true, self = true }
+    ... [couplings]
+    ... links = [["pump", "tank"], ["tank", "valve"]]
+    ... [inputs]
+    ... motor = ["pump"]
+    ... [subsystems]
+    ... supply = ["pump"]
+    ... storage = ["tank", "valve"]
+    ... ''')
+    >>> spec = read_spec(p)
+    >>> spec.system.state_names, spec.system.n_links, spec.system.input_names
+    (('tank', 'pump', 'valve'), 3, ('motor',))
+    >>> spec.ties
+    (('supply', 'pump', 'storage', 'tank', 'state'),)
+    """
+    doc = _Doc(path)
+    data = doc.data
+    _check_keys(doc, data, _SECTIONS, "the top level")
+    for sec in _SECTIONS:
+        if sec in data and sec != "ties" and not isinstance(data[sec], dict):
+            raise doc.error(f"[{sec}] must be a table (a section), found "
+                            f"{type(data[sec]).__name__}.", sec)
+    system_t = data.get("system", {})
+    _check_keys(doc, system_t, _SYSTEM_KEYS, "[system]")
+    name = system_t.get("name", Path(path).stem)
+    description = system_t.get("description", "")
+    if not isinstance(name, str) or not isinstance(description, str):
+        raise doc.error("[system] name and description must be strings.", "name")
+
+    names: list[str] = []
+    index: dict[str, int] = {}
+
+    def state_id(s: str) -> int:
+        i = index.get(s)
+        if i is None:
+            i = index[s] = len(names)
+            names.append(s)
+        return i
+
+    # ---- states and their attributes
+    states_t = data.get("states", {})
+    attrs: dict[str, dict[str, Any]] = {}
+    self_w: dict[str, float] = {}
+    any_self_weight = False
+    for s, a in states_t.items():
+        if not isinstance(a, dict):
+            raise doc.error(f"state {s!r} must be a table of attributes such as "
+                            f"{{ x = 1.0, actuator = true }} (or {{}}), found {a!r}.", s)
+        state_id(s)
+        row: dict[str, Any] = {}
+        for k, v in a.items():
+            if k in ("x", "y", "actuator_cost", "sensor_cost"):
+                if not _number(v) or (k.endswith("cost") and v < 0):
+                    raise doc.error(f"attribute {k!r} of state {s!r} must be a "
+                                    f"{STATE_ATTRIBUTES[k]}, found {v!r}.", s, k)
+                row[k] = float(v)
+            elif k in ("actuator", "sensor"):
+                if not isinstance(v, bool):
+                    raise doc.error(f"attribute {k!r} of state {s!r} must be true or false, "
+                                    f"found {v!r}.", s, k)
+                row[k] = v
+            elif k == "self":
+                if isinstance(v, bool):
+                    if v:
+                        self_w[s] = 1.0
+                elif _number(v) and v != 0:
+                    self_w[s] = float(v)
+                    any_self_weight = True
+                else:
+                    raise doc.error(f"attribute 'self' of state {s!r} must be true, false "
+                                    f"or a nonzero finite number (its weight), found {v!r}.",
+                                    s, k)
+            elif k == "subsystem":
+                raise doc.error(f"state {s!r}: put states into subsystems in the "
+                                "[subsystems] section, not with a 'subsystem' attribute.", s, k)
+            elif isinstance(v, (str, bool)) or _number(v):
+                row[k] = v
+            else:
+                raise doc.error(f"attribute {k!r} of state {s!r} has the type "
+                                f"{type(v).__name__} ({v!r}); node attributes must be "
+                                "numbers, strings or true/false.", s, k)
+        attrs[s] = row
+
+    # ---- couplings
+    coup = data.get("couplings", {})
+    _check_keys(doc, coup, _COUPLING_KEYS, "[couplings]")
+    undirected = coup.get("undirected", False)
+    if not isinstance(undirected, bool):
+        raise doc.error(f"[couplings] undirected must be true or false, found {undirected!r}.",
+                        "undirected")
+    src_parts: list[np.ndarray] = []
+    dst_parts: list[np.ndarray] = []
+    w_parts: list[np.ndarray | None] = []
+    if "file" in coup:
+        f = coup["file"]
+        if not isinstance(f, str):
+            raise doc.error(f"[couplings] file must be a path string, found {f!r}.", "file")
+        fpath = Path(f) if Path(f).is_absolute() else Path(path).parent / f
+        if not fpath.is_file():
+            raise MissingFileError(f"{path}:{doc.line_of('file')}: the coupling file {f!r} "
+                                   f"(looked for at {fpath}) does not exist; paths are "
+                                   "relative to the TOML file.")
+        from netctl.io.edgelist import read_edge_arrays
+
+        e = read_edge_arrays(fpath)
+        remap = np.fromiter((state_id(s) for s in e.names), np.int64, len(e.names))
+        src_parts.append(remap[e.sources])
+        dst_parts.append(remap[e.targets])
+        w_parts.append(e.weights)
+    links = coup.get("links", [])
+    if not isinstance(links, list):
+        raise doc.error("[couplings] links must be a list such as [[\"a\", \"b\"], "
+                        "[\"b\", \"c\", 0.5]].", "links")
+    if links:
+        ls, ld, lw = [], [], []
+        some_w = False
+        for item in links:
+            ok = (isinstance(item, list) and len(item) in (2, 3)
+                  and all(isinstance(x, str) for x in item[:2])
+                  and (len(item) == 2 or _number(item[2])))
+            if not ok:
+                raise doc.error(f"each coupling must be [\"source\", \"target\"] or "
+                                f"[\"source\", \"target\", weight], found {item!r}.",
+                                *(x for x in (item if isinstance(item, list) else [])
+                                  if isinstance(x, str)))
+            ls.append(state_id(item[0]))
+            ld.append(state_id(item[1]))
+            some_w |= len(item) == 3
+            lw.append(float(item[2]) if len(item) == 3 else math.nan)
+        src_parts.append(np.array(ls, np.int64))
+        dst_parts.append(np.array(ld, np.int64))
+        wa = np.array(lw)
+        if some_w and np.isnan(wa).any():
+            k = int(np.isnan(wa).sum())
+            warnings.warn(f"{path}: {k} coupling(s) without a weight were given the weight "
+                          "1.0 because other couplings have weights.", stacklevel=2)
+        w_parts.append(np.where(np.isnan(wa), 1.0, wa) if some_w else None)
+
+    # ---- subsystems
+    subs_t = data.get("subsystems", {})
+    subsystems: dict[str, tuple[str, ...]] = {}
+    owner: dict[str, str] = {}
+    for sub, val in subs_t.items():
+        if isinstance(val, dict):
+            _check_keys(doc, val, ("states",), f"subsystem {sub!r}", sub)
+            val = val.get("states", [])
+        members = _name_list(doc, val, f"subsystem {sub!r}", sub)
+        for s in members:
+            if s in owner:
+                raise doc.error(f"state {s!r} is in two subsystems ({owner[s]!r} and "
+                                f"{sub!r}); each state belongs to at most one.", s)
+            owner[s] = sub
+            state_id(s)
+        subsystems[sub] = tuple(members)
+
+    n_before_io = len(names)
+
+    def known_states(vals: list[str], where: str, key: str) -> list[str]:
+        for s in vals:
+            if s not in index:
+                close = difflib.get_close_matches(s, names, n=2)
+                hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
+                raise doc.error(f"{where} names {s!r}, which is not a state.{hint} Declare "
+                                "it under [states] or in a coupling.", key, s)
+        return vals
+
+    inputs: dict[str, tuple[str, ...]] = {}
+    for u, v in data.get("inputs", {}).items():
+        inputs[u] = tuple(known_states(_name_list(doc, v, f"input {u!r}", u),
+                                       f"input {u!r}", u))
+    outputs: dict[str, tuple[str, ...]] = {}
+    for y, v in data.get("outputs", {}).items():
+        outputs[y] = tuple(known_states(_name_list(doc, v, f"output {y!r}", y),
+                                        f"output {y!r}", y))
+    assert len(names) == n_before_io
+
+    # ---- ties
+    ties_t = data.get("ties", [])
+    if not isinstance(ties_t, list) or not all(isinstance(t, dict) for t in ties_t):
+        raise doc.error("ties are written as [[ties]] tables with from = [\"subsystem\", "
+                        "\"name\"] and to = [\"subsystem\", \"name\"].", "ties")
+    ties: list[tuple[str, str, str, str, str]] = []
+    tie_w: list[float | None] = []
+    consumed: set[str] = set()
+    ts, td, tw = [], [], []
+    for t in ties_t:
+        _check_keys(doc, t, _TIE_KEYS, "[[ties]]", "ties")
+        ends = []
+        for key in ("from", "to"):
+            v = t.get(key)
+            if not (isinstance(v, list) and len(v) == 2 and all(isinstance(x, str) for x in v)):
+                raise doc.error(f"a tie's {key!r} must be [\"subsystem\", \"name\"], found "
+                                f"{v!r}.", key)
+            if v[0] not in subsystems:
+                raise doc.error(f"a tie names the subsystem {v[0]!r}, which is not declared "
+                                f"under [subsystems] (declared: "
+                                f"{', '.join(map(repr, subsystems)) or 'none'}).", v[0])
+            ends.append((v[0], v[1]))
+        kind = t.get("kind", "state")
+        if kind not in TIE_KINDS:
+            raise doc.error(f"a tie's kind must be one of {', '.join(TIE_KINDS)}, found "
+                            f"{kind!r}.", "kind")
+        (fs, fn), (us, un) = ends
+        if fs == us:
+            raise doc.error(f"the tie {fs}.{fn} -> {us}.{un} stays inside subsystem {fs!r}; "
+                            "ties join two different subsystems (put links inside a "
+                            "subsystem under [couplings]).", fn)
+        weight = t.get("weight")
+        if weight is not None and (not _number(weight) or weight == 0):
+            raise doc.error(f"a tie's weight must be a nonzero finite number, found "
+                            f"{weight!r}.", "weight")
+        if kind == "state":
+            for s, sub in ((fn, fs), (un, us)):
+                if owner.get(s) != sub:
+                    raise doc.error(f"the tie names state {s!r} of subsystem {sub!r}, but "
+                                    f"{s!r} is not one of its states.", s)
+            ts.append([index[fn]])
+            td.append([index[un]])
+        else:
+            if fn not in outputs or any(owner.get(s) != fs for s in outputs[fn]):
+                raise doc.error(f"a signal tie starts at {fs}.{fn}: {fn!r} must be an "
+                                f"output under [outputs] reading only states of {fs!r}.", fn)
+            if un not in inputs or any(owner.get(s) != us for s in inputs[un]):
+                raise doc.error(f"a signal tie ends at {us}.{un}: {un!r} must be an input "
+                                f"under [inputs] acting only on states of {us!r}.", un)
+            if un in consumed:
+                raise doc.error(f"the input {un!r} is fed by two signal ties; give each "
+                                "input at most one.", un)
+            consumed.add(un)
+            a = [index[s] for s in outputs[fn]]
+            b = [index[s] for s in inputs[un]]
+            ts.append(np.repeat(a, len(b)).tolist())
+            td.append(np.tile(b, len(a)).tolist())
+        tw.append([1.0 if weight is None else float(weight)] * len(ts[-1]))
+        ties.append((fs, fn, us, un, kind))
+        tie_w.append(None if weight is None else float(weight))
+    if ts:
+        src_parts.append(np.array(sum(ts, []), np.int64))
+        dst_parts.append(np.array(sum(td, []), np.int64))
+        w_parts.append(np.array(sum(tw, []), np.float64)
+                       if any(w is not None for w in tie_w) else None)
+
+    # ---- assemble
+    n = len(names)
+    if n == 0:
+        raise doc.error("the description declares no states: add a [states] section, "
+                        "couplings, or a coupling file (see docs/FORMATS.md).")
+    weighted_given = system_t.get("weighted")
+    if weighted_given is not None and not isinstance(weighted_given, bool):
+        raise doc.error(f"[system] weighted must be true or false, found {weighted_given!r}.",
+                        "weighted")
+    weighted = any(w is not None for w in w_parts) or any_self_weight
+    if weighted_given is not None:
+        weighted = weighted_given
+    src = np.concatenate(src_parts) if src_parts else np.zeros(0, np.int64)
+    dst = np.concatenate(dst_parts) if dst_parts else np.zeros(0, np.int64)
+    w = np.concatenate([np.ones(s.size) if x is None else x for s, x in
+                        zip(src_parts, w_parts)]) if src_parts else np.zeros(0)
+    if undirected:
+        loop = src == dst
+        src, dst, w = (np.concatenate([src, dst[~loop]]), np.concatenate([dst, src[~loop]]),
+                       np.concatenate([w, w[~loop]]))
+    if self_w:
+        ids = np.array([index[s] for s in self_w], np.int64)
+        src = np.concatenate([src, ids])
+        dst = np.concatenate([dst, ids])
+        w = np.concatenate([w, np.array(list(self_w.values()))])
+    A = sp.coo_array((w, (dst, src)), shape=(n, n)).tocsr()
+    A.sum_duplicates()
+    n_dup = src.size - A.nnz
+    if n_dup:
+        warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
+                      "merged" + (" (weights summed)" if weighted else "") + ".", stacklevel=2)
+    if not weighted:
+        A.data[:] = 1.0
+    nodes = _node_table(attrs, names)
+    if subsystems:
+        col = np.empty(n, dtype=object)
+        for s, sub in owner.items():
+            col[index[s]] = sub
+        nodes["subsystem"] = col
+    system = StructuredSystem(A=A, B=None, C=None, state_names=tuple(names), input_names=(),
+                              output_names=(), nodes=nodes, weighted=weighted, model=model)
+    ext = {u: list(v) for u, v in inputs.items() if u not in consumed}
+    if ext:
+        system = system.with_inputs(ext)
+    if outputs:
+        system = system.with_outputs({y: list(v) for y, v in outputs.items()})
+    unassigned = tuple(s for s in names if s not in owner) if subsystems else ()
+    if subsystems:  # couplings between states of different subsystems are state ties too
+        sub_names = list(subsystems)
+        label = np.full(n, -1, np.int64)
+        for s, sub in owner.items():
+            label[index[s]] = sub_names.index(sub)
+        es, ed = system.edges()
+        cross = (label[es] >= 0) & (label[ed] >= 0) & (label[es] != label[ed])
+        have = {(t[1], t[3]) for t in ties if t[4] == "state"}
+        vals = system.A.data[cross]
+        for a, b, x in zip(es[cross].tolist(), ed[cross].tolist(), vals.tolist()):
+            if (names[a], names[b]) not in have:
+                ties.append((owner[names[a]], names[a], owner[names[b]], names[b], "state"))
+                tie_w.append(float(x) if weighted else None)
+    return SystemSpec(path=str(path), name=name, description=description, system=system,
+                      inputs=inputs, outputs=outputs, subsystems=subsystems, ties=tuple(ties),
+                      tie_weights=tuple(tie_w), unassigned=unassigned)
+
+
+def _node_table(attrs: dict[str, dict[str, Any]], names: list[str]) -> dict[str, np.ndarray]:
+    n = len(names)
+    if not any(attrs.values()):
+        return {}
+    index = {s: i for i, s in enumerate(names)}
+    keys: list[str] = []
+    for row in attrs.values():
+        keys.extend(k for k in row if k not in keys)
+    table: dict[str, np.ndarray] = {}
+    for k in keys:
+        if k in ("x", "y", "actuator_cost", "sensor_cost"):
+            col = np.full(n, np.nan)
+        elif k in ("actuator", "sensor"):
+            col = np.ones(n, bool)  # not said: allowed
+        else:
+            col = np.empty(n, dtype=object)
+        for s, row in attrs.items():
+            if k in row:
+                col[index[s]] = row[k]
+        table[k] = col
+    return table
+
+
+def read_system(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
+    """The flat :class:`StructuredSystem` of a TOML system description."""
+    return read_spec(path, model=model).system
+
+
+# ---------------------------------------------------------------------- writing
+_BARE = re.compile(r"[A-Za-z0-9_-]+\Z")
+
+#: Systems with more links than this are written with their couplings in an edge list
+#: beside the TOML file (``<name>.edges.csv``) instead of inline.
+INLINE_LINKS = 20_000
+
+
+def _key(s: str) -> str:
+    return s if _BARE.match(s) else json.dumps(s, ensure_ascii=False)
+
+
+def _val(v: Any) -> str:
+    if isinstance(v, np.generic):
+        v = v.item()
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, int):
+        return str(v)
+    if isinstance(v, float):
+        return repr(v)
+    return json.dumps(str(v), ensure_ascii=False)
+
+
+def write_system(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+    """Write ``system`` as a TOML system description (atomically).
+
+    States with their node-table attributes and self-dynamics, couplings (inline, or in
+    an edge list beside the file when there are more than :data:`INLINE_LINKS`), inputs,
+    outputs, and subsystems when the node table has a ``subsystem`` column. Links across
+    subsystems are written as couplings (they read back as state ties).
+    """
+    names = system.state_names
+    n = system.n_states
+    diag = system.A.diagonal()
+    lines = ["# netctl system description (schema: docs/FORMATS.md).",
+             "# A coupling [u, v] means state u influences state v (A[v, u] != 0).",
+             "", "[system]", f"name = {_val(Path(path).stem)}",
+             f"weighted = {_val(system.weighted)}", "", "[states]"]
+    cols = {k: v for k, v in system.nodes.items() if k != "subsystem"}
+    for i in range(n):
+        parts = []
+        for k, col in cols.items():
+            v = col[i]
+            if v is None or (isinstance(v, (float, np.floating)) and math.isnan(v)):
+                continue
+            parts.append(f"{_key(k)} = {_val(v)}")
+        if diag[i] != 0:
+            parts.append("self = " + (_val(float(diag[i])) if system.weighted else "true"))
+        lines.append(f"{_key(names[i])} = {{ {', '.join(parts)} }}" if parts
+                     else f"{_key(names[i])} = {{}}")
+    src, dst = system.edges()
+    vals = system.A.data
+    off = src != dst
+    lines += ["", "[couplings]"]
+    side = None
+    if int(off.sum()) > INLINE_LINKS:
+        side = Path(path).with_name(Path(path).stem + ".edges.csv")
+        lines.append(f"file = {_val(side.name)}")
+    else:
+        items = []
+        for a, b, x in zip(src[off].tolist(), dst[off].tolist(), vals[off].tolist()):
+            w = f", {x!r}" if system.weighted else ""
+            items.append(f"  [{_val(names[a])}, {_val(names[b])}{w}],")
+        lines += ["links = ["] + items + ["]"]
+    for kind, M, pool in (("inputs", system.B.tocsc(), system.input_names),
+                          ("outputs", system.C.T.tocsc(), system.output_names)):
+        if pool:
+            lines += ["", f"[{kind}]"]
+            for k, nm in enumerate(pool):
+                rows = M.indices[M.indptr[k]:M.indptr[k + 1]]
+                lines.append(f"{_key(nm)} = [{', '.join(_val(names[r]) for r in rows)}]")
+    if "subsystem" in system.nodes:
+        col = system.nodes["subsystem"]
+        groups: dict[str, list[str]] = {}
+        for i in range(n):
+            if col[i] is not None:
+                groups.setdefault(str(col[i]), []).append(names[i])
+        if groups:
+            lines += ["", "[subsystems]"]
+            for sub, members in groups.items():
+                lines.append(f"{_key(sub)} = [{', '.join(_val(s) for s in members)}]")
+    if side is not None:
+        from netctl.io.edgelist import write_edgelist
+
+        edges_only = system._replace(A=system.A - sp.dia_array((diag[None, :], [0]),
+                                                               shape=(n, n)),
+                                     B=None, C=None, input_names=(), output_names=(), nodes={})
+        write_edgelist(edges_only, side)
+    with atomic_write(path) as fh:
+        fh.write("\n".join(lines) + "\n")
