@@ -42,13 +42,13 @@ def system_with_inputs(args: argparse.Namespace) -> tuple[Any, str]:
 
 def resolve_weights(args: argparse.Namespace, system: Any) -> str:
     """``--weights``, or ``given`` for a weighted file; a usage error otherwise."""
-    from netctl.cli import UsageError
+    from netctl.errors import OptionError
 
     if args.weights is not None:
         return str(args.weights)
     if system.weighted:
         return "given"
-    raise UsageError(f"{args.file} carries no weights; choose which numbers to use with "
+    raise OptionError(f"{args.file} carries no weights; choose which numbers to use with "
                      f"--weights ({', '.join(k for k in PARAMETERIZATIONS if k != 'given')}).")
 
 
@@ -71,11 +71,12 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 
 
 def _cmd_verify(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, UsageError, emit
+    from netctl.cli import CAUTION, emit
+    from netctl.errors import OptionError
     from netctl.numeric.verify import verify
 
     if args.samples < 1:
-        raise UsageError(f"--samples must be at least 1, found {args.samples}; 3 to 10 "
+        raise OptionError(f"--samples must be at least 1, found {args.samples}; 3 to 10 "
                          "samples are usual.")
     system, where = system_with_inputs(args)
     v = verify(system, weights=args.weights, samples=args.samples, seed=args.seed,

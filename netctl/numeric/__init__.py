@@ -6,7 +6,15 @@ pattern; the analyses here use *numbers* -- the file's weights or weights sample
 a stated parameterization (:data:`PARAMETERIZATIONS`) -- and always say which.
 """
 
+from netctl.numeric.energy import (
+    ActuatorSelection,
+    EnergyReport,
+    energy,
+    gramian,
+    select_actuators,
+)
 from netctl.numeric.exact import ExactControllability, Multiplicity, exact_controllability
+from netctl.numeric.modal import ModalReport, ModeReach, modal_controllability
 from netctl.numeric.rank import (
     LostMode,
     RankTest,
@@ -19,16 +27,24 @@ from netctl.numeric.realize import PARAMETERIZATIONS, realize
 from netctl.numeric.verify import Verification, verify
 
 __all__ = [
+    "ActuatorSelection",
+    "EnergyReport",
     "ExactControllability",
     "LostMode",
+    "ModalReport",
+    "ModeReach",
     "Multiplicity",
     "PARAMETERIZATIONS",
     "RankTest",
     "Verification",
+    "energy",
     "exact_controllability",
+    "gramian",
+    "modal_controllability",
     "modular",
     "pbh",
     "realize",
+    "select_actuators",
     "sparse_certificate",
     "staircase",
     "verify",

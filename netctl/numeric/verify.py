@@ -239,7 +239,7 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
 
 
 def _fmt(z: complex) -> str:
-    z = complex(z)
+    z = complex(round(z.real, 12) + 0.0, round(z.imag, 12) + 0.0)
     if abs(z.imag) <= 1e-12 * max(1.0, abs(z)):
         return f"{z.real:.6g}"
     return f"{z.real:.6g}{z.imag:+.6g}j"
