@@ -115,8 +115,7 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
         total = system.n_links if kind == "links" else system.n_states
         if args.k == 1:
             sw = contingency_sweep(system, elements=kind)
-            d = sw.to_dict()
-            result[kind] = d
+            result[kind] = sw.to_dict(rows=bool(args.json or args.out))
             lines.append(f"  single {kind[:-1]} losses ({sw.n_elements}): "
                          f"{sw.costly.size} raise the minimum inputs above {sw.n_inputs}")
             if sw.has_design:
@@ -133,7 +132,7 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
                         lines.append(f"    - {sw.label(k)}: {'; '.join(sw.reasons(k))}")
                     if br.size > 20:
                         lines.append(f"    ... ({br.size - 20} more; --json lists all)")
-            for row in sw.rows():
+            for row in (sw.rows() if args.csv else ()):
                 csv_rows.append([kind[:-1] if kind == "links" else "state",
                                  row.get("source", row.get("state")),
                                  row.get("target", ""), row["role"], row["n_inputs_after"],

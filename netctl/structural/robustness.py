@@ -267,6 +267,10 @@ class ContingencySweep:
     model: str = "given"
     _dom_pre: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
     _dom_size: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
+    _dom_order: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
+
+    #: At most this many names per loss in :meth:`rows` (``cut_off`` has the full count).
+    MAX_LISTED = 50
 
     @property
     def n_elements(self) -> int:
@@ -292,15 +296,21 @@ class ContingencySweep:
         return names[int(self.sources[k])]
 
     def cut_off_states(self, k: int) -> np.ndarray:
-        """Sorted states that loss ``k`` cuts off from every input (removed state excluded)."""
+        """Sorted states that loss ``k`` cuts off from every input (removed state excluded).
+
+        The dominator subtree of the lost state (or of the lost link's target): a
+        contiguous range of the dominator-tree preorder, so the cost is its size.
+        """
         if not self.has_design or not self.cut_off[k]:
             return np.zeros(0, np.int64)
         head = int(self.targets[k])
-        inside = (self._dom_pre >= self._dom_pre[head]) & (
-            self._dom_pre < self._dom_pre[head] + self._dom_size[head])
+        lo = int(self._dom_pre[head])
+        hi = lo + int(self._dom_size[head])
+        inside = self._dom_order[lo:hi]
+        inside = inside[(inside < self.n_states)]
         if self.elements == "nodes":
-            inside[head] = False
-        return np.flatnonzero(inside[: self.n_states])
+            inside = inside[inside != head]
+        return np.sort(inside)
 
     def reasons(self, k: int) -> list[str]:
         """Why loss ``k`` breaks the design (empty when it does not)."""
@@ -310,10 +320,10 @@ class ContingencySweep:
                        "number of states (some states have fewer distinct feeders than "
                        "members)")
         if self.has_design and self.cut_off[k]:
-            names = [self.state_names[int(i)] for i in self.cut_off_states(k)]
-            shown = ", ".join(names[:8]) + (f", ... ({len(names) - 8} more)"
-                                             if len(names) > 8 else "")
-            out.append(f"cuts {len(names)} state(s) off every input: {shown}")
+            cut = self.cut_off_states(k)
+            names = [self.state_names[int(i)] for i in cut[:8]]
+            shown = ", ".join(names) + (f", ... ({cut.size - 8} more)" if cut.size > 8 else "")
+            out.append(f"cuts {cut.size} state(s) off every input: {shown}")
         return out
 
     def rows(self) -> list[dict[str, Any]]:
@@ -331,14 +341,16 @@ class ContingencySweep:
                 row["controllable_after"] = bool(self.controllable_after[k])
                 row["rank_lost"] = bool(self.rank_lost[k])
                 row["cut_off"] = int(self.cut_off[k])
-                row["cut_off_states"] = [names[int(i)] for i in self.cut_off_states(k)]
+                row["cut_off_states"] = [names[int(i)] for i in
+                                         self.cut_off_states(k)[: self.MAX_LISTED]]
                 row["reasons"] = self.reasons(k)
             out.append(row)
         return out
 
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready dictionary (names, not indices)."""
-        return {
+    def to_dict(self, *, rows: bool = True) -> dict[str, Any]:
+        """JSON-ready dictionary (names, not indices); ``rows=False`` leaves out the
+        per-element ``losses`` (large networks)."""
+        out = {
             "analysis": "contingency_sweep",
             "elements": self.elements,
             "n_states": self.n_states,
@@ -350,8 +362,10 @@ class ContingencySweep:
             "controllable_before": self.controllable_before,
             "n_breaking": int(self.breaking.size),
             "breaking": [self.label(k) for k in self.breaking.tolist()],
-            "losses": self.rows(),
         }
+        if rows:
+            out["losses"] = self.rows()
+        return out
 
 
 def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> ContingencySweep:
@@ -436,13 +450,16 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
     rank_lost = np.zeros(k, bool)
     cut = np.zeros(k, np.int64)
     ok_before: bool | None = None
-    dom_pre = dom_size = np.zeros(0, np.int64)
+    dom_pre = dom_size = dom_order = np.zeros(0, np.int64)
     if has_design:
         indptr, indices, n_cols = stack_AB(A, B)
         fAB = matching_facts(indptr, indices, n_cols)
         rank_ok = fAB.matching_size == n
         r = _reach_structure(A, B)
         dom_pre, dom_size = r.pre, np.concatenate([r.size, [n + 1]])
+        live = np.flatnonzero(r.pre >= 0)
+        dom_order = np.full(n + 1, n, np.int64)
+        dom_order[r.pre[live]] = live
         unreached = int(np.count_nonzero(~r.reachable))
         ok_before = bool(rank_ok and unreached == 0)
         if elements == "links":
@@ -463,7 +480,7 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
         n_inputs=_n_d(n, fA.matching_size), n_inputs_after=np.asarray(after, np.int64),
         has_design=has_design, controllable_before=ok_before, controllable_after=ok_after,
         rank_lost=rank_lost, cut_off=cut, state_names=system.state_names,
-        model=system.model, _dom_pre=dom_pre, _dom_size=dom_size)
+        model=system.model, _dom_pre=dom_pre, _dom_size=dom_size, _dom_order=dom_order)
 
 
 # ---------------------------------------------------------------------- k losses
