@@ -44,8 +44,10 @@ from netctl.structural import (
     summarize,
 )
 from netctl.structural.interconnect import interconnection
+from netctl.structural.placement import Placement, place_inputs, place_sensors
 from netctl.structural.robustness import contingency_sweep, what_if
 from netctl.structural.roles import LinkRoles, NodeRoles, link_roles, node_roles
+from netctl.structural.target import place_target_inputs
 from netctl.system import StructuredSystem
 
 __version__ = "0.1.0"
@@ -62,6 +64,7 @@ __all__ = [
     "NodeRoles",
     "NullComparison",
     "OptionError",
+    "Placement",
     "StructuredSystem",
     "UnknownNameError",
     "__version__",
@@ -79,6 +82,9 @@ __all__ = [
     "minimum_sensors",
     "node_roles",
     "observability",
+    "place_inputs",
+    "place_sensors",
+    "place_target_inputs",
     "run_tasks",
     "summarize",
     "what_if",

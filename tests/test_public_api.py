@@ -14,6 +14,8 @@ EXPECTED = sorted([
     # roles, robustness, interconnection
     "LinkRoles", "NodeRoles", "contingency_sweep", "interconnection", "link_roles",
     "node_roles", "what_if",
+    # placement under constraints, target control
+    "Placement", "place_inputs", "place_sensors", "place_target_inputs",
 ])
 
 

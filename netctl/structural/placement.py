@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import heapq
 import itertools
+import math
 import os
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -423,7 +424,8 @@ class Placement:
         Proven optimal (``gap == 0``).
     gap : float
         Relative optimality gap: ``(cost - lower_bound) / cost`` for cost problems,
-        ``(upper_bound - dimension) / upper_bound`` for best effort; 0 when optimal.
+        ``(upper_bound - dimension) / upper_bound`` for best effort; 0 when optimal;
+        ``inf`` when infeasible (``null`` in :meth:`to_dict`).
     dimension : int or None
         Generic controllable (observable) dimension of the design (Hosoe); for target
         problems the generic rank of ``C_T [B AB ...]``. ``None`` when the design fails
@@ -510,7 +512,7 @@ class Placement:
             "cost": float(self.cost),
             "budget": self.budget,
             "optimal": self.optimal,
-            "gap": float(self.gap),
+            "gap": float(self.gap) if math.isfinite(self.gap) else None,
             "lower_bound": self.lower_bound,
             "upper_bound": self.upper_bound,
             "dimension": self.dimension,

@@ -1,0 +1,136 @@
+"""``netctl place``: the cheapest actuator (sensor) design under site, cost and budget
+constraints, with its optimality status and an independent check.
+
+Exit status: 0 the design meets the goal (and the budget); 1 it cannot (infeasible, or
+the budget is too small: the best affordable design is shown); 2 bad usage or input.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+from typing import Any
+
+__all__ = ["register"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    """Add the ``place`` verb."""
+    from netctl.structural.placement import METHODS
+
+    p = subparsers.add_parser(
+        "place", parents=[common],
+        help="cheapest actuator (sensor) placement under eligible sites, costs and a "
+             "budget; exit 0 met, 1 not met")
+    p.add_argument("--sites", metavar="FILE", default=None,
+                   help="CSV 'state,cost' with a header: the states that may host one and "
+                        "their costs (a state not listed cannot). Default: the node table, "
+                        "else every state at cost 1")
+    p.add_argument("--candidates", metavar="FILE", default=None,
+                   help="CSV 'name,cost,states' with a header: candidate actuators (sensors) "
+                        "acting on (reading) several states, e.g. 'valve_2,3.5,t1 t2'")
+    p.add_argument("--budget", metavar="X", type=float, default=None,
+                   help="largest total cost; if too small, the affordable design with the "
+                        "largest generic controllable dimension is shown (exit 1)")
+    p.add_argument("--targets", metavar="NAMES|FILE", default=None,
+                   help="control only these states (target control): 'a,b,c' or a file, "
+                        "one name a line")
+    p.add_argument("--sensors", action="store_true",
+                   help="place sensors for observability instead of actuators")
+    p.add_argument("--method", choices=list(METHODS), default="auto",
+                   help="auto (exact where affordable, default), exact, or greedy")
+    p.add_argument("--time-limit", metavar="S", type=float, default=60.0,
+                   help="seconds the mixed-integer solver may use (default 60)")
+    p.set_defaults(func=_cmd_place)
+
+
+def _cmd_place(args: argparse.Namespace) -> int:
+    from netctl.cli import CAUTION, UsageError, emit, load_system, parse_names
+    from netctl.structural.placement import (
+        place_inputs,
+        place_sensors,
+        read_candidates,
+        read_sites,
+        sites_from_nodes,
+    )
+
+    if args.budget is not None and (not math.isfinite(args.budget) or args.budget < 0):
+        raise UsageError(f"--budget must be a finite number >= 0, found {args.budget!r}.")
+    if args.targets is not None and args.sensors:
+        raise UsageError("--targets works with actuators only: observing a subset of states "
+                         "is a different (functional observability) condition that netctl "
+                         "does not place for; drop --sensors or --targets.")
+    if args.targets is not None and (args.candidates or args.budget is not None):
+        raise UsageError("--targets places dedicated actuators at --sites; it does not take "
+                         "--candidates or --budget.")
+    if args.candidates and args.sites:
+        raise UsageError("give --sites (dedicated actuators) or --candidates (actuators "
+                         "acting on several states), not both.")
+    system = load_system(args)
+    kind = "sensor" if args.sensors else "actuator"
+    sites = (read_sites(args.sites, system, kind=kind) if args.sites
+             else sites_from_nodes(system, kind=kind))
+    cands = read_candidates(args.candidates, system) if args.candidates else None
+    if args.targets is not None:
+        from netctl.structural.target import place_target_inputs
+
+        targets = parse_names(system, args.targets, what="--targets")
+        result = place_target_inputs(system, targets, sites=sites, method=args.method)
+    else:
+        fn = place_sensors if args.sensors else place_inputs
+        result = fn(system, sites=None if cands else sites, candidates=cands,
+                    budget=args.budget, method=args.method, time_limit=args.time_limit)
+    d = result.to_dict()
+    d["file"] = args.file
+    d["site_data"] = (args.candidates if cands else args.sites) or sites.source
+    check_name = ("target rank of C_T [B AB ...] over F_p" if result.problem == "target" else
+                  "structural observability (Lin, dual)" if args.sensors else
+                  "structural controllability (Lin)")
+    d["check"] = {"method": check_name, "passed": result.verified}
+    d["caution"] = CAUTION
+    emit(args, d, _text(args, result, d, check_name, CAUTION))
+    return 0 if result.goal_met else 1
+
+
+def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
+          caution: str) -> str:
+    from netctl.cli import _names_line
+
+    noun = "sensors" if r.kind == "sensors" else "actuators"
+    what = {"dedicated": f"dedicated {noun}", "candidates": f"candidate {noun}",
+            "target": f"dedicated {noun} for {len(d['targets'] or [])} target state(s)"}
+    lines = [f"{args.file}: {len(r.state_names)} states, model {r.model}",
+             f"  placing {what[r.problem]} (site data: {d['site_data']})"
+             + (f", budget {r.budget:g}" if r.budget is not None else "")]
+    if r.chosen.size and r.problem == "candidates":
+        names = [a["name"] for a in d["actuators" if r.kind == "inputs" else "sensors"]]
+        lines.append(f"  chosen {noun} ({len(names)}): {_names_line(names)}")
+    lines.append(f"  sites ({r.sites.size}): {_names_line(r.site_names) or '(none)'}")
+    lines.append(f"  total cost: {r.cost:g}")
+    if not r.feasible:
+        status = "infeasible"
+    elif r.best_effort:
+        status = (f"best effort: generic {'observable' if r.kind == 'sensors' else 'controllable'}"
+                  f" dimension {r.dimension} of {r.goal_dimension}; "
+                  + ("optimal" if r.optimal else
+                     f"gap {100 * r.gap:.1f}% (upper bound {r.upper_bound:g})"))
+    elif r.optimal:
+        status = "optimal (proven)"
+    else:
+        status = f"not proven optimal: gap {100 * r.gap:.1f}% (lower bound {r.lower_bound:g})"
+    lines.append(f"  status: {status}; method {r.method}")
+    lines.append(f"  guarantee: {r.guarantee}")
+    if r.verified is not None:
+        lines.append(f"  check ({check_name}): {'passed' if r.verified else 'NOT passed'}")
+    if not r.goal_met:
+        lines.append("  goal NOT met:")
+        lines.extend(f"    - {x}" for x in r.reasons)
+        if r.inaccessible.size and r.problem != "target":
+            verb = "seen by no chosen sensor" if r.kind == "sensors" else \
+                "reached by no chosen actuator"
+            state = "unobservable" if r.kind == "sensors" else "uncontrollable"
+            lines.append(f"  stays {state}, {verb} ({r.inaccessible.size}): "
+                         f"{_names_line(r.names(r.inaccessible))}")
+    lines.append("  (one optimum of possibly many; ties broken by state order)")
+    lines.append("  " + caution)
+    return "\n".join(lines)
