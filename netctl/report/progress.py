@@ -1,0 +1,68 @@
+"""Step-by-step progress on stderr for long runs (only when stderr is a terminal)."""
+
+from __future__ import annotations
+
+import sys
+import time
+from collections.abc import Iterator
+from contextlib import contextmanager
+from typing import TextIO
+
+__all__ = ["Progress"]
+
+
+class Progress:
+    """Announce numbered steps and their duration on a terminal; silent otherwise.
+
+    Parameters
+    ----------
+    total : int
+        Number of steps expected (shown as ``[k/total]``).
+    stream : text stream, optional
+        Default ``sys.stderr``.
+    enabled : bool, optional
+        Default: whether ``stream`` is a terminal, so pipes, files and CI logs stay clean.
+
+    Examples
+    --------
+    >>> import io
+    >>> buf = io.StringIO()
+    >>> p = Progress(2, stream=buf, enabled=True)
+    >>> with p.step("reading"):
+    ...     pass
+    >>> buf.getvalue().startswith("netctl: [1/2] reading ...")
+    True
+    >>> quiet = io.StringIO()
+    >>> with Progress(1, stream=quiet).step("drawing"):
+    ...     pass
+    >>> quiet.getvalue()
+    ''
+    """
+
+    def __init__(self, total: int, *, stream: TextIO | None = None,
+                 enabled: bool | None = None) -> None:
+        self.total = total
+        self.stream = stream if stream is not None else sys.stderr
+        if enabled is None:
+            isatty = getattr(self.stream, "isatty", None)
+            enabled = bool(isatty and isatty())
+        self.enabled = enabled
+        self.done = 0
+
+    @contextmanager
+    def step(self, text: str) -> Iterator[None]:
+        """Context manager around one step: prints its name, then its duration."""
+        self.done += 1
+        if self.enabled:
+            self.stream.write(f"netctl: [{self.done}/{self.total}] {text} ...")
+            self.stream.flush()
+        start = time.perf_counter()
+        ok = False
+        try:
+            yield
+            ok = True
+        finally:
+            if self.enabled:
+                took = time.perf_counter() - start
+                self.stream.write(f" {'done' if ok else 'stopped'} ({took:.1f} s)\n")
+                self.stream.flush()

@@ -1,0 +1,246 @@
+"""What a network map shows, computed apart from drawing it (index arrays, no matplotlib)."""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.csgraph import connected_components
+
+from netctl.errors import OptionError
+from netctl.system import StructuredSystem
+
+__all__ = ["LAYERS", "MapMarks", "map_marks", "roles_available"]
+
+#: Optional layers a map can show on request (``show=``).
+LAYERS: tuple[str, ...] = ("roles", "critical-links")
+
+#: Role codes in :attr:`MapMarks.roles`.
+ROLE_NAMES: tuple[str, ...] = ("critical", "intermittent", "redundant")
+
+
+@dataclass(frozen=True)
+class MapMarks:
+    """Everything a network map marks, as sorted index arrays.
+
+    Attributes
+    ----------
+    design : {"minimum", "given", "chosen"}
+        Where the driver nodes come from: a minimum design computed here, the inputs of
+        the system itself, or states chosen by the caller.
+    drivers : ndarray of int
+        States an input acts on directly (driver nodes).
+    n_inputs : int
+        Number of input columns (a shared input may act on several drivers).
+    suggested : ndarray of int
+        Where to add dedicated inputs when the design is not structurally controllable
+        (the smallest fix); empty otherwise.
+    unreached : ndarray of int
+        States no input reaches.
+    dilation : ndarray of int
+        A dilation witness: states fed by fewer states/inputs than they number.
+    matched_sources, matched_targets : ndarray of int
+        The matched links ``u -> v`` of the chosen maximum matching of ``[A B]``: they
+        form disjoint control paths (stems, starting at a driver or at a state that no
+        input matches) and control cycles.
+    on_cycle : ndarray of bool
+        Per matched link: whether it lies on a cycle of matched links.
+    roles : ndarray of int8 or None
+        Per state: 0 critical, 1 intermittent, 2 redundant (see :data:`ROLE_NAMES`);
+        ``None`` when not asked for.
+    critical_sources, critical_targets : ndarray of int or None
+        Links in every maximum matching; ``None`` when not asked for.
+    """
+
+    n_states: int
+    design: str
+    drivers: np.ndarray
+    n_inputs: int
+    controllable: bool
+    suggested: np.ndarray
+    unreached: np.ndarray
+    dilation: np.ndarray
+    matched_sources: np.ndarray
+    matched_targets: np.ndarray
+    on_cycle: np.ndarray
+    roles: np.ndarray | None
+    critical_sources: np.ndarray | None
+    critical_targets: np.ndarray | None
+    model: str
+    state_names: tuple[str, ...] = field(repr=False)
+
+    def names(self, indices: Iterable[Any]) -> list[str]:
+        """State names for state indices."""
+        return [self.state_names[int(i)] for i in indices]
+
+    @property
+    def n_cycles_links(self) -> int:
+        """Number of matched links that lie on control cycles."""
+        return int(np.count_nonzero(self.on_cycle))
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready dictionary (names, not indices)."""
+        d: dict[str, Any] = {
+            "analysis": "map",
+            "n_states": self.n_states,
+            "model": self.model,
+            "design": self.design,
+            "n_inputs": self.n_inputs,
+            "controllable": self.controllable,
+            "drivers": self.names(self.drivers),
+            "suggested_inputs": self.names(self.suggested),
+            "unreached": self.names(self.unreached),
+            "dilation": self.names(self.dilation),
+            "control_links": [
+                {"source": self.state_names[int(u)], "target": self.state_names[int(v)],
+                 "cycle": bool(c)}
+                for u, v, c in zip(self.matched_sources, self.matched_targets, self.on_cycle)],
+        }
+        if self.roles is not None:
+            d["roles"] = {name: self.names(np.flatnonzero(self.roles == k))
+                          for k, name in enumerate(ROLE_NAMES)}
+        if self.critical_sources is not None and self.critical_targets is not None:
+            d["critical_links"] = [
+                {"source": self.state_names[int(u)], "target": self.state_names[int(v)]}
+                for u, v in zip(self.critical_sources, self.critical_targets)]
+        return d
+
+
+def roles_available() -> bool:
+    """Whether the node/link role analysis (:mod:`netctl.structural.roles`) is installed."""
+    import importlib.util
+
+    try:
+        return importlib.util.find_spec("netctl.structural.roles") is not None
+    except (ImportError, ValueError):
+        return False
+
+
+def map_marks(system: StructuredSystem, *, inputs: Any = None,
+              show: Iterable[str] = ()) -> MapMarks:
+    r"""Compute what a map of ``system`` marks: drivers, control paths, trouble spots.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+    inputs : None, "minimum" or sequence of state names or indices
+        ``None``: the system's own inputs when it has any, otherwise a minimum design
+        (:func:`netctl.structural.minimum_inputs`). ``"minimum"``: always a minimum
+        design. A sequence: a dedicated input on each of those states.
+    show : iterable of {"roles", "critical-links"}
+        Optional layers (they need :mod:`netctl.structural.roles`).
+
+    Returns
+    -------
+    MapMarks
+
+    Raises
+    ------
+    OptionError
+        Unknown layer in ``show``, or a layer whose analysis is not installed.
+
+    Notes
+    -----
+    The control paths are the links of one maximum matching of ``[A B]`` (Liu, Slotine,
+    Barabási [1]_): each state has at most one matched in-link and one matched out-link,
+    so the matched links split into disjoint paths and cycles. A path starts at a state
+    whose in-copy is matched to an input (a driver) or is unmatched. The maximum
+    matching is one of possibly many; the choice is deterministic. Trouble spots come
+    from Lin's test (:func:`netctl.structural.controllability`). Near-linear cost.
+
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+
+    Examples
+    --------
+    >>> from netctl import StructuredSystem
+    >>> path = StructuredSystem.from_edges([0, 1, 2], [1, 2, 3], 4)
+    >>> m = map_marks(path)
+    >>> m.design, m.names(m.drivers), m.matched_sources.tolist(), m.on_cycle.tolist()
+    ('minimum', ['x0'], [0, 1, 2], [False, False, False])
+    """
+    from netctl.structural import controllability, minimum_inputs
+    from netctl.structural._engine import completion
+
+    layers = _check_layers(show)
+    n = system.n_states
+    if isinstance(inputs, str) and inputs == "minimum":
+        design = "minimum"
+    elif inputs is None:
+        design = "given" if system.n_inputs else "minimum"
+    elif isinstance(inputs, str):
+        raise OptionError(f"inputs must be None, 'minimum' or a sequence of states, found "
+                          f"{inputs!r}.")
+    else:
+        design = "chosen"
+    if design == "minimum":
+        actuated = minimum_inputs(system).apply(system)
+    elif design == "chosen":
+        idx = system.index_of(list(inputs))
+        actuated = system.with_inputs(system.names_of(idx))
+    else:
+        actuated = system
+    report = controllability(actuated, dimension=False)
+    comp = completion(actuated.A, actuated.B)
+    rm = comp.row_match
+    state_pred = (rm >= 0) & (rm < n)
+    tgt = np.flatnonzero(state_pred).astype(np.int64)
+    src = rm[tgt].astype(np.int64)
+    # matched links form disjoint paths and cycles; a component of them is a cycle
+    # exactly when none of its states lacks a matched in-link from a state
+    if tgt.size:
+        g = sp.csr_array((np.ones(tgt.size), (src, tgt)), shape=(n, n))
+        _, lab = connected_components(sp.csr_matrix(g), directed=True, connection="weak")
+        has_head = np.zeros(n, bool)
+        has_head[lab[~state_pred]] = True
+        on_cycle = ~has_head[lab[tgt]]
+    else:
+        on_cycle = np.zeros(0, bool)
+    roles = crit_s = crit_t = None
+    if layers:
+        roles, crit_s, crit_t = _roles(system, layers)
+    return MapMarks(
+        n_states=n, design=design, drivers=actuated.driven_states(),
+        n_inputs=actuated.n_inputs, controllable=report.controllable,
+        suggested=np.asarray(report.fix, np.int64), unreached=report.inaccessible,
+        dilation=(report.dilation.states if report.dilation is not None
+                  else np.zeros(0, np.int64)),
+        matched_sources=src, matched_targets=tgt, on_cycle=on_cycle, roles=roles,
+        critical_sources=crit_s, critical_targets=crit_t, model=system.model,
+        state_names=system.state_names)
+
+
+def _check_layers(show: Iterable[str]) -> tuple[str, ...]:
+    if isinstance(show, str):
+        show = [s.strip() for s in show.split(",") if s.strip()]
+    layers = tuple(show)
+    for layer in layers:
+        if layer not in LAYERS:
+            raise OptionError(f"unknown map layer {layer!r}; choose from {', '.join(LAYERS)}.")
+    if layers and not roles_available():
+        raise OptionError(f"the layer(s) {', '.join(layers)} need the node and link role "
+                          "analysis (netctl.structural.roles), which is not available in "
+                          "this version of netctl; draw the map without --show.")
+    return layers
+
+
+def _roles(system: StructuredSystem, layers: tuple[str, ...]
+           ) -> tuple[np.ndarray | None, np.ndarray | None, np.ndarray | None]:
+    from netctl.structural import roles as roles_mod
+
+    roles = crit_s = crit_t = None
+    if "roles" in layers:
+        nr = roles_mod.node_roles(system)
+        # recode by name, so the map's order never depends on the analysis' codes
+        recode = np.array([ROLE_NAMES.index(name) for name in roles_mod.NODE_ROLES], np.int8)
+        roles = recode[np.asarray(nr.role, np.int64)]
+    if "critical-links" in layers:
+        lr = roles_mod.link_roles(system)
+        crit = np.asarray(lr.critical, np.int64)
+        crit_s, crit_t = lr.sources[crit].astype(np.int64), lr.targets[crit].astype(np.int64)
+    return roles, crit_s, crit_t

@@ -1,0 +1,331 @@
+"""Network maps: the states where they sit, the driver nodes, the control paths and
+the trouble spots, with a legend that explains every mark."""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from netctl.system import StructuredSystem
+from netctl.viz.marks import MapMarks, map_marks
+from netctl.viz.style import INK, MARKS, Mark
+
+if TYPE_CHECKING:  # pragma: no cover
+    from matplotlib.axes import Axes
+
+__all__ = ["GID_PREFIX", "draw_map"]
+
+#: Every artist of a map carries the gid ``GID_PREFIX + mark name`` (e.g.
+#: ``"netctl:driver"``), so programs and tests can find what was drawn.
+GID_PREFIX = "netctl:"
+
+#: Up to this many links, each link is an arrow; above, links are line segments.
+_ARROWS_UP_TO = 400
+#: Up to this many states, names are written next to the states.
+_LABELS_UP_TO = 60
+#: Above this many links, plain links are rasterized in vector output.
+_RASTER_ABOVE = 2000
+
+
+def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
+             positions: np.ndarray | None = None, ax: Axes | None = None,
+             labels: bool | None = None, legend: bool = True, title: str | None = None,
+             seed: int = 0) -> Axes:
+    r"""Draw a map of ``system`` with its driver nodes and control paths.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+    marks : MapMarks, optional
+        What to mark (default: :func:`~netctl.viz.map_marks` of ``system``).
+    positions : ndarray, shape (n, 2), optional
+        Where to draw each state (default: :func:`~netctl.viz.node_positions`: the node
+        table's coordinates, else a seeded layout).
+    ax : matplotlib Axes, optional
+        Draw into this axes (default: a new figure).
+    labels : bool, optional
+        Write state names (default: only up to 60 states).
+    legend : bool
+        Add the legend (outside the map, on the right).
+    title : str, optional
+        Title; by default the sizes, the design and the verdict.
+    seed : int
+        Layout seed when ``positions`` is not given.
+
+    Returns
+    -------
+    matplotlib.axes.Axes
+
+    Notes
+    -----
+    Marks follow :mod:`netctl.viz.style`: shape and fill carry the meaning, colour
+    repeats it. Every artist has a gid ``"netctl:<mark>"`` (``driver``, ``suggested``,
+    ``unreached``, ``dilation``, ``state``, ``chain``, ``cycle``, ``link``,
+    ``critical_link``, ``role_*``, ``label``). Up to 400 links each link is an arrow;
+    above that links are straight segments (one collection, rasterized in vector output
+    above 2000 links, made more transparent the denser the map), marker sizes shrink
+    with the number of states, and names are not written. Cost: linear in states and
+    links; a map of :math:`10^5` states draws in seconds.
+
+    Examples
+    --------
+    >>> import matplotlib
+    >>> matplotlib.use("Agg")
+    >>> from netctl import StructuredSystem
+    >>> s = StructuredSystem.from_edges([0, 1, 1], [1, 2, 3], 4)
+    >>> ax = draw_map(s)
+    >>> sorted(a.get_gid() for a in ax.collections)
+    ['netctl:driver', 'netctl:state']
+    >>> import matplotlib.pyplot as plt; plt.close(ax.figure)
+    """
+    import matplotlib.pyplot as plt
+    from matplotlib.collections import LineCollection
+
+    from netctl.viz.layout import node_positions
+
+    n = system.n_states
+    marks = marks if marks is not None else map_marks(system)
+    how = "given"
+    if positions is None:
+        positions, how = node_positions(system, seed=seed)
+    pos = np.asarray(positions, dtype=np.float64).reshape(n, 2)
+    if ax is None:
+        fig, ax = plt.subplots(figsize=_figure_size(pos), layout="constrained")
+    assert ax is not None
+    ax.set_aspect("equal", adjustable="box")
+    ax.set_axis_off()
+
+    src, dst = system.edges()
+    loops = src == dst
+    area = _base_area(n)
+    radius_pt = np.sqrt(area * MARKS["driver"].size) / 2 + 1.0
+    n_links = int(np.count_nonzero(~loops))
+    arrows = n_links <= _ARROWS_UP_TO
+    scale = 1.0 if n <= 2000 else 0.4
+
+    # links: plain ones first, then matched ones on top (chains and cycles)
+    m_src, m_dst = marks.matched_sources, marks.matched_targets
+    is_matched = _edge_mask(src, dst, m_src, m_dst, n)
+    plain = ~is_matched & ~loops
+    layers = [("link", plain, None)]
+    cyc_key = np.zeros(n, bool)
+    cyc_key[m_dst[marks.on_cycle]] = True  # matched link into v is on a cycle
+    layers.append(("chain", is_matched & ~loops & ~cyc_key[dst], None))
+    layers.append(("cycle", is_matched & ~loops & cyc_key[dst], None))
+    if marks.critical_sources is not None and marks.critical_targets is not None:
+        crit = _edge_mask(src, dst, marks.critical_sources, marks.critical_targets, n) & ~loops
+        layers.insert(1, ("critical_link", crit, None))
+    alpha_plain = float(np.clip(12.0 / np.sqrt(max(n_links, 1)), 0.12, 0.9))
+    for key, mask, _ in layers:
+        if not mask.any():
+            continue
+        mk = MARKS[key]
+        lw = mk.linewidth * scale
+        alpha = alpha_plain if key == "link" else 0.95
+        if arrows:
+            _draw_arrows(ax, pos, src[mask], dst[mask], mk, lw, alpha, radius_pt,
+                         head=key != "critical_link")
+        else:
+            segs = np.stack([pos[src[mask]], pos[dst[mask]]], axis=1)
+            lc = LineCollection(segs, colors=mk.edge, linewidths=lw, linestyles=mk.linestyle,
+                                alpha=alpha, zorder=mk.zorder, capstyle="round")
+            lc.set_gid(GID_PREFIX + key)
+            if key == "link" and mask.sum() > _RASTER_ABOVE:
+                lc.set_rasterized(True)
+            ax.add_collection(lc)
+
+    # self-loops: a small ring beside the state (shown up to a few hundred states)
+    loop_states = src[loops]
+    if loop_states.size and n <= 500:
+        on_cyc_loop = np.isin(loop_states, m_dst[marks.on_cycle & (m_src == m_dst)])
+        for key, sel in (("link", ~on_cyc_loop), ("cycle", on_cyc_loop)):
+            if sel.any():
+                mk = MARKS[key]
+                sc = ax.scatter(pos[loop_states[sel], 0], pos[loop_states[sel], 1],
+                                s=area * 4.0, marker="o", facecolors="none", edgecolors=mk.edge,
+                                linewidths=max(mk.linewidth * 0.8, 0.8),
+                                linestyles=mk.linestyle, zorder=1.5)
+                sc.set_gid(GID_PREFIX + ("self_loop" if key == "link" else "cycle_loop"))
+
+    # states: roles (when asked) replace the plain circle, then the point marks on top
+    if marks.roles is None:
+        _points(ax, pos, np.arange(n), MARKS["state"], area)
+    _points(ax, pos, marks.unreached, MARKS["unreached"], area)
+    _points(ax, pos, marks.dilation, MARKS["dilation"], area)
+    _points(ax, pos, marks.drivers, MARKS["driver"], area)
+    _points(ax, pos, marks.suggested, MARKS["suggested"], area)
+    if marks.roles is not None:
+        # the role sits inside every other mark, so a driver's role stays visible
+        for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
+            _points(ax, pos, np.flatnonzero(marks.roles == k), MARKS[key], area, zorder=7.0)
+
+    if labels if labels is not None else n <= _LABELS_UP_TO:
+        _labels(ax, pos, system.state_names, radius_pt)
+    if n:
+        lo, hi = pos.min(axis=0), pos.max(axis=0)
+        pad = np.maximum((hi - lo) * 0.06, 1e-9 + 0.5 * (hi - lo == 0))
+        ax.set_xlim(lo[0] - pad[0], hi[0] + pad[0])
+        ax.set_ylim(lo[1] - pad[1], hi[1] + pad[1])
+    ax.set_title(title if title is not None else _default_title(system, marks, how),
+                 loc="left", fontsize=10, color=INK)
+    if legend:
+        _legend(ax, system, marks, area, n_loops=int(loop_states.size),
+                loops_drawn=n <= 500, arrows=arrows)
+    return ax
+
+
+def _figure_size(pos: np.ndarray) -> tuple[float, float]:
+    """Figure size (inches) that fits the map's aspect, plus room for the legend."""
+    width = 8.0
+    if pos.shape[0] >= 2:
+        span = np.ptp(pos, axis=0)
+        aspect = float(span[1] / span[0]) if span[0] > 0 else 1.0
+    else:
+        aspect = 1.0
+    return width + 4.2, float(np.clip(width * aspect, 4.5, 9.0)) + 0.9
+
+
+def _base_area(n: int) -> float:
+    """Marker area (points^2) of a plain state: large on small maps, tiny on huge ones."""
+    return float(np.clip(2400.0 / max(n, 1), 1.0, 90.0))
+
+
+def _edge_mask(src: np.ndarray, dst: np.ndarray, s: np.ndarray, t: np.ndarray,
+               n: int) -> np.ndarray:
+    """Which links ``src[i] -> dst[i]`` are among the links ``s -> t`` (vectorized)."""
+    if s.size == 0 or src.size == 0:
+        return np.zeros(src.size, bool)
+    key = dst.astype(np.int64) * max(n, 1) + src
+    want = np.unique(t.astype(np.int64) * max(n, 1) + s)
+    return np.isin(key, want, assume_unique=False)
+
+
+def _points(ax: Axes, pos: np.ndarray, idx: np.ndarray, mk: Mark, area: float,
+            zorder: float | None = None) -> None:
+    if idx.size == 0:
+        return
+    assert mk.marker is not None
+    sc = ax.scatter(pos[idx, 0], pos[idx, 1], s=area * mk.size, marker=mk.marker,
+                    facecolors=mk.face, edgecolors=mk.edge,
+                    linewidths=mk.linewidth * (1.0 if area >= 20 else 0.5),
+                    linestyles=mk.linestyle, hatch=mk.hatch or None,
+                    zorder=mk.zorder if zorder is None else zorder)
+    sc.set_gid(GID_PREFIX + _mark_key(mk))
+    if idx.size > 20000:
+        sc.set_rasterized(True)
+
+
+def _draw_arrows(ax: Axes, pos: np.ndarray, s: np.ndarray, t: np.ndarray, mk: Mark,
+                 lw: float, alpha: float, shrink: float, *, head: bool) -> None:
+    # only for small maps (at most _ARROWS_UP_TO links): one patch per link
+    from matplotlib.patches import FancyArrowPatch
+
+    style = "-|>" if head else "-"
+    for u, v in zip(s.tolist(), t.tolist()):
+        p = FancyArrowPatch(pos[u], pos[v], arrowstyle=style, mutation_scale=11,
+                            color=mk.edge, linewidth=lw, linestyle=mk.linestyle, alpha=alpha,
+                            shrinkA=shrink, shrinkB=shrink, zorder=mk.zorder,
+                            connectionstyle="arc3,rad=0.08", capstyle="round")
+        p.set_gid(GID_PREFIX + _mark_key(mk))
+        ax.add_patch(p)
+
+
+def _mark_key(mk: Mark) -> str:
+    return next(k for k, v in MARKS.items() if v is mk)
+
+
+def _labels(ax: Axes, pos: np.ndarray, names: Sequence[str], radius_pt: float) -> None:
+    import matplotlib.patheffects as pe
+
+    halo = [pe.withStroke(linewidth=2.6, foreground="white")]
+    for i, name in enumerate(names):
+        text = name if len(name) <= 24 else name[:23] + "…"
+        t = ax.annotate(text, pos[i], xytext=(radius_pt * 0.7, radius_pt * 0.7),
+                        textcoords="offset points", fontsize=7.5, color=INK,
+                        ha="left", va="bottom", zorder=8, parse_math=False)
+        t.set_path_effects(halo)
+        t.set_gid(GID_PREFIX + "label")
+
+
+def _default_title(system: StructuredSystem, marks: MapMarks, how: str) -> str:
+    n = system.n_states
+    design = {"minimum": "a minimum input design (one of possibly many)",
+              "given": "the inputs in the file", "chosen": "the chosen inputs"}[marks.design]
+    verdict = ("structurally controllable" if marks.controllable
+               else f"NOT structurally controllable: {marks.suggested.size} more "
+                    "dedicated input(s) needed")
+    placed = {"coordinates": "states at their coordinates",
+              "coordinates+fr": "states at their coordinates (some placed by layout)",
+              "fr": "force-directed layout", "fr-grid": "force-directed layout (grid)",
+              "circle": "circular layout", "given": "given positions"}.get(how, how)
+    return (f"{n} states, {system.n_links} links, model {marks.model}: {marks.n_inputs} "
+            f"input(s) on {marks.drivers.size} driver node(s) from {design}\n"
+            f"{verdict}; {placed}")
+
+
+def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
+            n_loops: int, loops_drawn: bool, arrows: bool) -> None:
+    from matplotlib.lines import Line2D
+
+    def point(key: str, count: int) -> tuple[Any, str]:
+        mk = MARKS[key]
+        # a scatter made and removed at once is a legend handle that keeps the hatch
+        h = ax.scatter([], [], s=60.0 * min(mk.size, 2.6) / 1.6, marker=mk.marker,
+                       facecolors=mk.face, edgecolors=mk.edge, linewidths=mk.linewidth,
+                       linestyles=mk.linestyle, hatch=mk.hatch or None)
+        h.remove()
+        return h, f"{mk.label} ({count})"
+
+    def line(key: str, count: int) -> tuple[Any, str]:
+        mk = MARKS[key]
+        h = Line2D([], [], color=mk.edge, linewidth=mk.linewidth, linestyle=mk.linestyle)
+        return h, f"{mk.label} ({count})"
+
+    items: list[tuple[Any, str]] = []
+    items.append(point("driver", marks.drivers.size))
+    if marks.suggested.size:
+        items.append(point("suggested", marks.suggested.size))
+    if marks.unreached.size:
+        items.append(point("unreached", marks.unreached.size))
+    if marks.dilation.size:
+        items.append(point("dilation", marks.dilation.size))
+    if marks.roles is not None:
+        for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
+            items.append(point(key, int(np.count_nonzero(marks.roles == k))))
+    else:
+        items.append(point("state", system.n_states))
+    n_cyc = int(np.count_nonzero(marks.on_cycle))
+    items.append(line("chain", marks.on_cycle.size - n_cyc))
+    if n_cyc:
+        items.append(line("cycle", n_cyc))
+    items.append(line("link", system.n_links - marks.on_cycle.size - n_loops
+                      + int(np.count_nonzero(marks.on_cycle & (marks.matched_sources
+                                                               == marks.matched_targets)))))
+    if marks.critical_sources is not None:
+        from matplotlib.legend_handler import HandlerTuple
+
+        casing = Line2D([], [], color=MARKS["critical_link"].edge,
+                        linewidth=MARKS["critical_link"].linewidth)
+        inner = Line2D([], [], color=MARKS["chain"].edge, linewidth=MARKS["chain"].linewidth)
+        items.append(((casing, inner), f"{MARKS['critical_link'].label} "
+                                       f"({marks.critical_sources.size})"))
+    if n_loops:
+        items.append((Line2D([], [], marker="o", markerfacecolor="none", linestyle="none",
+                             markeredgecolor=MARKS["link"].edge, markersize=9),
+                      f"self-loop (self-dynamics) ({n_loops})" if loops_drawn
+                      else f"self-loops: {n_loops}, not drawn at this size"))
+    handles, texts = zip(*items)
+    kw: dict[str, Any] = {}
+    if marks.critical_sources is not None:
+        from matplotlib.legend_handler import HandlerTuple
+
+        kw["handler_map"] = {tuple: HandlerTuple(ndivide=1)}
+    note = ("links point from the influencing state to the influenced one"
+            if arrows else "links drawn without arrowheads at this size")
+    leg = ax.legend(handles, texts, loc="upper left", bbox_to_anchor=(1.01, 1.0),
+                    frameon=False, fontsize=8, title=f"Marks\n({note})",
+                    title_fontsize=8, alignment="left", scatterpoints=1, handlelength=2.6,
+                    borderaxespad=0.0, labelspacing=0.9, **kw)
+    leg.set_gid(GID_PREFIX + "legend")

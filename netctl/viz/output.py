@@ -1,0 +1,68 @@
+"""Saving figures: format from the file name, atomic write, reproducible bytes."""
+
+from __future__ import annotations
+
+import io
+import os
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from netctl.errors import OptionError
+from netctl.io import atomic_write
+
+if TYPE_CHECKING:  # pragma: no cover
+    from matplotlib.figure import Figure
+
+__all__ = ["FIGURE_FORMATS", "figure_bytes", "save_figure"]
+
+#: File suffixes :func:`save_figure` writes.
+FIGURE_FORMATS: tuple[str, ...] = ("png", "svg", "pdf")
+
+
+def figure_format(path: str | os.PathLike[str]) -> str:
+    """The figure format named by the suffix of ``path``; OptionError otherwise."""
+    suffix = Path(path).suffix.lower().lstrip(".")
+    if suffix not in FIGURE_FORMATS:
+        raise OptionError(f"cannot tell the figure format of {str(path)!r}: the file name "
+                          f"must end in one of {', '.join('.' + f for f in FIGURE_FORMATS)}.")
+    return suffix
+
+
+def figure_bytes(fig: Figure, format: str = "png", *, dpi: float = 150) -> bytes:
+    """The figure encoded as ``format``, with no time stamp (same figure, same bytes).
+
+    Examples
+    --------
+    >>> import matplotlib
+    >>> matplotlib.use("Agg")
+    >>> import matplotlib.pyplot as plt
+    >>> fig, ax = plt.subplots()
+    >>> figure_bytes(fig)[:4]
+    b'\\x89PNG'
+    >>> plt.close(fig)
+    """
+    if format not in FIGURE_FORMATS:
+        raise OptionError(f"unknown figure format {format!r}; choose one of "
+                          f"{', '.join(FIGURE_FORMATS)}.")
+    import matplotlib
+
+    meta = {"png": {"Software": None}, "svg": {"Date": None},
+            "pdf": {"CreationDate": None, "ModDate": None}}[format]
+    buf = io.BytesIO()
+    with matplotlib.rc_context({"svg.hashsalt": "netctl", "svg.fonttype": "path"}):
+        fig.savefig(buf, format=format, dpi=dpi, metadata=meta, facecolor="white",
+                    bbox_inches="tight", pad_inches=0.15)
+    return buf.getvalue()
+
+
+def save_figure(fig: Figure, path: str | os.PathLike[str], *, dpi: float = 150) -> None:
+    """Write ``fig`` to ``path`` (PNG, SVG or PDF by suffix), atomically.
+
+    Raises
+    ------
+    OptionError
+        The suffix names no supported format.
+    """
+    data = figure_bytes(fig, figure_format(path), dpi=dpi)
+    with atomic_write(path, "wb") as fh:
+        fh.write(data)

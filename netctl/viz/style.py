@@ -1,0 +1,105 @@
+"""The visual language of netctl maps and charts.
+
+Every mark is told apart by *shape and fill* first and by colour second, so a map keeps
+its meaning in grey print and for readers with any common colour-vision deficiency. The
+colours are our own assignment; they were chosen so that, after simulating protanopia,
+deuteranopia and tritanopia (Machado, Oliveira & Fernandes 2009), every pair that can sit
+next to each other on a map stays apart in CIELAB, and so that their lightness spreads
+across the grey scale (tests/viz/test_style.py checks both).
+
+=====================  ==========================  =========================================
+mark                   shape / fill                meaning
+=====================  ==========================  =========================================
+``state``              small circle, light fill    a state with nothing to report
+``driver``             large upward triangle,      an input acts on this state
+                       solid fill
+``suggested``          upward triangle, hollow,    add a dedicated input here (smallest fix)
+                       dashed outline
+``unreached``          square, cross-hatched       no input reaches this state
+``dilation``           diamond, hollow, heavy      these states are fed by fewer
+                       outline                     states/inputs than they number
+``chain``              heavy solid line            matched link on a control path (stem)
+``cycle``              heavy dashed line           matched link on a control cycle
+``link``               thin light line             any other link
+``critical_link``      dark casing around a link   link in every maximum matching
+``role_critical``      circle, dark solid fill     driver in every minimum driver set
+``role_intermittent``  circle, dotted hatch        driver in some minimum driver sets
+``role_redundant``     circle, white fill          driver in no minimum driver set
+=====================  ==========================  =========================================
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["INK", "MARKS", "Mark", "PAPER", "SERIES"]
+
+#: Text, outlines and axes.
+INK = "#262626"
+#: Figure background.
+PAPER = "#FFFFFF"
+
+
+@dataclass(frozen=True)
+class Mark:
+    """How one kind of map element is drawn.
+
+    ``marker`` is a matplotlib marker code for point marks (``None`` for line marks);
+    ``face`` the fill colour (``"none"`` for hollow), ``edge`` the outline colour,
+    ``hatch`` a matplotlib hatch pattern or ``""``, ``linestyle`` and ``linewidth`` the
+    outline (point marks) or the line (line marks); ``size`` a relative marker area
+    (1 = the size of a plain state); ``label`` the legend text.
+    """
+
+    label: str
+    marker: str | None
+    face: str
+    edge: str
+    hatch: str = ""
+    linestyle: str = "solid"
+    linewidth: float = 1.0
+    size: float = 1.0
+    zorder: float = 3.0
+
+
+_VERMILION = "#C44E0E"   # drivers (warm, dark enough to read on white and in grey)
+_BLUE = "#2464A8"        # control chains
+_AMBER = "#D99A1E"       # control cycles (light: kept apart from the blue in grey)
+_PLUM = "#7B3F8C"        # unreached states
+_TEAL = "#13806A"        # dilation sets
+_STATE = "#CFCFCF"
+_LINK = "#8A8A8A"
+
+MARKS: dict[str, Mark] = {
+    "state": Mark("state (nothing to flag)", "o", _STATE, "#5C5C5C", linewidth=0.6, size=1.0, zorder=3),
+    "driver": Mark("driver node: an input acts here", "^", _VERMILION, INK,
+                   linewidth=0.8, size=3.2, zorder=6),
+    "suggested": Mark("add a dedicated input here (smallest fix)", "^", "none", _VERMILION,
+                      linestyle="dashed", linewidth=1.6, size=5.0, zorder=6.5),
+    "unreached": Mark("no input reaches this state", "s", "#EBDDF0", _PLUM, hatch="xxxx",
+                      linewidth=1.2, size=2.2, zorder=4),
+    "dilation": Mark("dilation: fed by fewer states than they number", "D", "none", _TEAL,
+                     linewidth=2.0, size=3.0, zorder=5),
+    "chain": Mark("control path (matched link)", None, _BLUE, _BLUE, linewidth=2.4, zorder=2.2),
+    "cycle": Mark("control cycle (matched link)", None, _AMBER, _AMBER, linestyle="dashed",
+                  linewidth=2.4, zorder=2.3),
+    "link": Mark("other link", None, _LINK, _LINK, linewidth=0.7, zorder=1.0),
+    "critical_link": Mark("critical link (in every maximum matching)", None, INK, INK,
+                          linewidth=5.2, zorder=2.0),
+    "role_critical": Mark("critical: a driver in every minimum set", "o", "#333333", INK,
+                          linewidth=0.8, size=1.2, zorder=3.4),
+    "role_intermittent": Mark("intermittent: a driver in some minimum sets", "o", "#F2F2F2",
+                              INK, hatch="....", linewidth=0.8, size=1.2, zorder=3.3),
+    "role_redundant": Mark("redundant: a driver in no minimum set", "o", "#FFFFFF", INK,
+                           linewidth=0.8, size=1.2, zorder=3.2),
+}
+
+#: Colours for data series in charts (line charts also vary marker and line style).
+SERIES: tuple[tuple[str, str, str], ...] = (
+    (_BLUE, "o", "solid"),
+    (_VERMILION, "s", "dashed"),
+    (_TEAL, "^", "dashdot"),
+    (_PLUM, "D", "dotted"),
+    (INK, "v", (0, (5, 1, 1, 1))),  # type: ignore[arg-type]
+    (_AMBER, "P", (0, (1, 1))),  # type: ignore[arg-type]
+)
