@@ -14,7 +14,13 @@ from pathlib import Path
 from netctl.errors import OptionError
 from netctl.io._common import atomic_write
 from netctl.io.edgelist import read_edgelist, write_edgelist
+from netctl.io.gml import read_gml, write_gml
+from netctl.io.graphml import read_graphml, write_graphml
+from netctl.io.matrix_csv import read_matrix_csv, write_matrix_csv
 from netctl.io.mtx import read_mtx, write_mtx
+from netctl.io.nodelink import read_nodelink, write_nodelink
+from netctl.io.npy import read_npy, write_npy
+from netctl.io.npz import read_npz, write_npz
 from netctl.io.system_spec import read_system, write_system
 from netctl.system import StructuredSystem
 
@@ -28,21 +34,35 @@ FORMATS: dict[str, tuple[Reader, Writer | None, tuple[str, ...]]] = {
     "edgelist": (read_edgelist, write_edgelist, (".csv", ".tsv", ".txt", ".edges", ".el")),
     "mtx": (read_mtx, write_mtx, (".mtx", ".mm")),
     "system": (read_system, write_system, (".toml",)),
+    "npz": (read_npz, write_npz, (".npz",)),
+    "npy": (read_npy, write_npy, (".npy",)),
+    "matrix-csv": (read_matrix_csv, write_matrix_csv, (".matrix.csv", ".matrix.txt")),
+    "graphml": (read_graphml, write_graphml, (".graphml",)),
+    "gml": (read_gml, write_gml, (".gml",)),
+    "json": (read_nodelink, write_nodelink, (".json",)),
 }
 
 
 def detect_format(path: str | os.PathLike[str]) -> str:
     """The format name for ``path`` from its suffix (``.gz`` looked through).
 
-    Unknown suffixes are read as edge lists, the most common plain format.
+    The longest matching suffix wins (``x.matrix.csv`` is a dense matrix, ``x.csv`` an
+    edge list). Unknown suffixes are read as edge lists, the most common plain format.
+
+    Examples
+    --------
+    >>> detect_format("grid.matrix.csv"), detect_format("grid.csv.gz"), detect_format("p.toml")
+    ('matrix-csv', 'edgelist', 'system')
     """
     name = Path(path).name.lower()
     if name.endswith(".gz"):
         name = name[:-3]
+    best, best_len = "edgelist", 0
     for fmt, (_, _, suffixes) in FORMATS.items():
-        if any(name.endswith(s) for s in suffixes):
-            return fmt
-    return "edgelist"
+        for s in suffixes:
+            if name.endswith(s) and len(s) > best_len:
+                best, best_len = fmt, len(s)
+    return best
 
 
 def _check_format(format: str) -> None:
@@ -77,7 +97,29 @@ def write(system: StructuredSystem, path: str | os.PathLike[str], format: str | 
     if writer is None:
         raise OptionError(f"netctl cannot write the {fmt!r} format; choose one of "
                           f"{', '.join(sorted(k for k, v in FORMATS.items() if v[1]))}.")
-    writer(system, path)
+    if str(path).lower().endswith(".gz"):
+        _write_gzip(writer, system, path)
+    else:
+        writer(system, path)
+
+
+def _write_gzip(writer: Writer, system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+    """Write uncompressed beside the target, then gzip into place atomically."""
+    import gzip
+    import shutil
+    import tempfile
+
+    target = Path(path)
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.name[:-3],
+                               dir=target.parent if str(target.parent) else ".")
+    os.close(fd)
+    try:
+        writer(system, tmp)
+        with atomic_write(target, "wb") as out, open(tmp, "rb") as src, \
+                gzip.GzipFile(fileobj=out, mode="wb", mtime=0) as gz:
+            shutil.copyfileobj(src, gz)
+    finally:
+        os.unlink(tmp)
 
 
 def read_state_list(text_or_path: str) -> list[str]:

@@ -21,6 +21,8 @@ __all__ = ["read_mtx", "write_mtx"]
 
 #: Refuse headers that claim more entries than this (protects memory).
 MAX_ENTRIES = 2_000_000_000
+#: Refuse headers that claim more states than this (the row pointer alone would not fit).
+MAX_STATES = 500_000_000
 
 
 def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
@@ -72,14 +74,23 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         raise file_error(path, size_line_no, f"the matrix is {dims[0]} x {dims[1]}; a state "
                          "matrix A must be square (n x n).")
     claimed = dims[2] if fmt == "coordinate" else dims[0] * dims[1]
-    if claimed > MAX_ENTRIES or dims[0] > MAX_ENTRIES:
-        raise file_error(path, size_line_no, f"the header claims {claimed} entries, more than "
-                         f"netctl reads ({MAX_ENTRIES}); check the size line.")
+    if claimed > MAX_ENTRIES or dims[0] > MAX_STATES:
+        raise file_error(path, size_line_no, f"the header claims {dims[0]} states and {claimed} "
+                         f"entries, more than netctl reads ({MAX_STATES} states, {MAX_ENTRIES} "
+                         "entries); check the size line.")
+    room = len(data) // (4 if fmt == "coordinate" else 2) + 1
+    stored = claimed if fmt == "coordinate" or symmetry == "general" else \
+        dims[0] * (dims[0] + 1) // 2
+    if stored > room:
+        raise file_error(path, size_line_no, f"the header claims {stored} entries but the "
+                         f"file ({len(data)} bytes) has room for at most {room}; the size line "
+                         "is wrong or the file is truncated.")
     try:
         M = scipy.io.mmread(io.BytesIO(data))
     except Exception as exc:  # scipy raises ValueError/OverflowError/... without a line
-        raise file_error(path, None, f"could not read the entries: {exc}. Each entry line "
-                         "must be 'row col [value]' with 1-based indices.") from None
+        line, what = _locate(data, size_line_no, fmt, field, dims)
+        raise file_error(path, line, f"could not read the entries: {what or exc}. Each entry "
+                         "line must be 'row col [value]' with 1-based indices.") from None
     A = sp.csr_array(M) if sp.issparse(M) else sp.csr_array(np.asarray(M))
     if field == "pattern":
         A = sp.csr_array((np.ones(A.nnz), A.indices, A.indptr), shape=A.shape)
@@ -92,6 +103,37 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
                       f"{'y is' if n_zero == 1 else 'ies are'} not links and were left out.",
                       stacklevel=2)
     return StructuredSystem.from_matrices(A, weighted=field != "pattern", model=model)
+
+
+def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]
+            ) -> tuple[int | None, str | None]:
+    """Find the first bad entry line (only on the error path; plain Python)."""
+    want = (2 if field == "pattern" else 3) if fmt == "coordinate" else 1
+    count = 0
+    lines = data.split(b"\n")
+    for k in range(size_line, len(lines)):
+        s = lines[k].strip()
+        if not s or s.startswith(b"%"):
+            continue
+        parts = s.split()
+        count += 1
+        text = s[:80].decode("latin-1")
+        if len(parts) != want:
+            return k + 1, f"expected {want} numbers, found {text!r}"
+        try:
+            if fmt == "coordinate":
+                i, j = int(parts[0]), int(parts[1])
+                if not (1 <= i <= dims[0] and 1 <= j <= dims[1]):
+                    return k + 1, (f"the index ({i}, {j}) is outside 1..{dims[0]} "
+                                   f"(found {text!r})")
+            if want != 2:
+                float(parts[-1])
+        except ValueError:
+            return k + 1, f"expected numbers, found {text!r}"
+    claimed = dims[2] if fmt == "coordinate" else dims[0] * dims[1]
+    if count != claimed:
+        return None, f"the size line claims {claimed} entries but the file has {count}"
+    return None, None
 
 
 def write_mtx(system: StructuredSystem, path: str | os.PathLike[str]) -> None:

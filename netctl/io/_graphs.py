@@ -1,0 +1,130 @@
+"""Helpers shared by the graph-file formats (GraphML, GML, node-link JSON).
+
+Node attributes become the node table; the edge attribute ``weight`` becomes the link
+weight. Anything else is kept or warned about, never dropped silently.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Mapping, Sequence
+from typing import Any
+
+import numpy as np
+
+from netctl.io._common import file_error
+from netctl.system import StructuredSystem, _node_table_from_attrs
+
+__all__ = ["system_from_parts", "node_rows", "refuse_unsafe_xml", "warn_not_kept"]
+
+_SCALARS = (str, int, float, bool)
+_NUMERIC = ("x", "y", "actuator_cost", "sensor_cost")
+
+
+def _scalar(v: Any) -> bool:
+    return isinstance(v, _SCALARS) or isinstance(v, (np.integer, np.floating, np.bool_))
+
+
+def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mapping[str, Any]],
+                      sources: Sequence[int], targets: Sequence[int],
+                      weights: Sequence[Any] | None, directed: bool, *,
+                      model: str, what: str) -> StructuredSystem:
+    """Build a system from node names, node attribute dicts and edge index lists.
+
+    Raises NetworkFileError for non-scalar node attributes and non-numeric weights.
+    """
+    for name, a in zip(names, attrs):
+        for k, v in a.items():
+            if not _scalar(v):
+                raise file_error(path, None, f"attribute {k!r} of node {str(name)!r} has the "
+                                 f"type {type(v).__name__} ({v!r}); node attributes must be "
+                                 f"numbers, strings or booleans in a {what} file for netctl.")
+            if k in _NUMERIC and (isinstance(v, (bool, np.bool_)) or not _is_number(v)
+                                  or not math.isfinite(float(v))):
+                raise file_error(path, None, f"attribute {k!r} of node {str(name)!r} must be "
+                                 f"a finite number, found {v!r}.")
+    str_names = [str(x) for x in names]
+    if len(set(str_names)) != len(str_names):
+        seen: set[str] = set()
+        dup = next(x for x in str_names if x in seen or seen.add(x))  # type: ignore[func-returns-value]
+        raise file_error(path, None, f"two nodes have the name {dup!r} (as text); give every "
+                         "node a distinct id.")
+    src = np.asarray(sources, dtype=np.int64)
+    dst = np.asarray(targets, dtype=np.int64)
+    w = None
+    if weights is not None:
+        try:
+            w = np.array([1.0 if x is None else float(x) for x in weights], dtype=np.float64)
+        except (TypeError, ValueError):
+            bad = next(x for x in weights if not _is_number(x))
+            raise file_error(path, None, f"the edge weight {bad!r} is not a number; give "
+                             "numeric weights (or none).") from None
+        if not np.all(np.isfinite(w)):
+            raise file_error(path, None, "some edge weights are NaN or infinite; give finite "
+                             "weights.")
+        zero = w == 0
+        if zero.any():
+            k = int(zero.sum())
+            warnings.warn(f"{path}: {k} link{'s' if k > 1 else ''} with weight 0 "
+                          f"{'are' if k > 1 else 'is'} not a link and "
+                          f"{'were' if k > 1 else 'was'} left out.", stacklevel=3)
+            src, dst, w = src[~zero], dst[~zero], w[~zero]
+    if not directed:
+        loop = src == dst
+        src, dst = np.concatenate([src, dst[~loop]]), np.concatenate([dst, src[~loop]])
+        if w is not None:
+            w = np.concatenate([w, w[~loop]])
+    table = _node_table_from_attrs(list(attrs)) if any(attrs) else {}
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        system = StructuredSystem.from_edges(src, dst, len(str_names), weights=w,
+                                             state_names=str_names, nodes=table, model=model)
+    for c in caught:
+        warnings.warn(f"{path}: {c.message}", stacklevel=3)
+    return system
+
+
+def _is_number(x: Any) -> bool:
+    try:
+        float(x)
+        return True
+    except (TypeError, ValueError):
+        return False
+
+
+def node_rows(system: StructuredSystem) -> list[dict[str, Any]]:
+    """One dict of plain Python attribute values per state (missing values left out)."""
+    cols = list(system.nodes.items())
+    rows: list[dict[str, Any]] = [{} for _ in range(system.n_states)]
+    for k, col in cols:
+        vals = col.tolist()
+        for i, v in enumerate(vals):
+            if v is None or (isinstance(v, float) and math.isnan(v)):
+                continue
+            rows[i][k] = v
+    return rows
+
+
+def warn_not_kept(system: StructuredSystem, path: object, fmt: str) -> None:
+    """Warn that inputs and outputs cannot be stored in ``fmt``."""
+    if system.n_inputs or system.n_outputs:
+        warnings.warn(f"{path}: the {fmt} format holds the network only; the "
+                      f"{system.n_inputs} input(s) and {system.n_outputs} output(s) were not "
+                      "written (use a .toml system description to keep them).", stacklevel=3)
+
+
+def refuse_unsafe_xml(path: object, data: bytes) -> None:
+    """Refuse XML with a document type declaration (entity expansion, external entities)
+    and XML that is not UTF-8, before any parser sees it."""
+    if data[:2] in (b"\xff\xfe", b"\xfe\xff") or b"\x00" in data[:4096]:
+        raise file_error(path, 1, "the XML is not UTF-8 (UTF-16?); save it as UTF-8.")
+    low = data.lower()
+    for token in (b"<!doctype", b"<!entity"):
+        at = low.find(token)
+        if at >= 0:
+            line = data.count(b"\n", 0, at) + 1
+            raise file_error(path, line, "the file declares a document type or entities "
+                             "(<!DOCTYPE/<!ENTITY>), which netctl refuses: they allow entity "
+                             "expansion bombs and reading other files. Remove the declaration "
+                             "(GraphML does not need one).")

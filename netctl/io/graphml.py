@@ -1,0 +1,103 @@
+"""GraphML (``.graphml``): nodes with typed attributes, edges with weights.
+
+Read with networkx after a safety check: files that declare a document type or entities
+are refused before any XML parser sees them (no entity expansion, no external entities).
+Node attributes become the node table; the edge attribute ``weight`` the link weights.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import re
+import warnings
+from typing import Any
+
+from netctl.io._common import atomic_write, file_error, read_bytes
+from netctl.io._graphs import node_rows, refuse_unsafe_xml, system_from_parts, warn_not_kept
+from netctl.system import StructuredSystem
+
+__all__ = ["read_graphml", "write_graphml", "graph_to_system", "system_to_graph"]
+
+
+def graph_to_system(g: Any, path: object, *, model: str, what: str) -> StructuredSystem:
+    """A networkx graph (as read from ``path``) as a system; warns about what is not kept."""
+    nodes = list(g.nodes())
+    index = {v: i for i, v in enumerate(nodes)}
+    edges = list(g.edges(data=True))
+    extra = sorted({k for _, _, d in edges for k in d if k not in ("weight", "id", "key")})
+    dropped = sorted(k for k in g.graph if k not in ("node_default", "edge_default"))
+    if extra or dropped:
+        warnings.warn(f"{path}: " + "; ".join(x for x in (
+            f"edge attributes {', '.join(map(repr, extra))} are not kept (only 'weight' is)"
+            if extra else "",
+            f"graph attributes {', '.join(map(repr, dropped))} are not kept" if dropped else "")
+            if x) + ".", stacklevel=3)
+    weighted = any("weight" in d for _, _, d in edges)
+    return system_from_parts(
+        path, nodes, [dict(g.nodes[v]) for v in nodes],
+        [index[u] for u, _, _ in edges], [index[v] for _, v, _ in edges],
+        [d.get("weight") for _, _, d in edges] if weighted else None,
+        g.is_directed(), model=model, what=what)
+
+
+def system_to_graph(system: StructuredSystem) -> Any:
+    """A networkx ``DiGraph`` with the node table as node attributes and weights."""
+    import networkx as nx
+
+    g = nx.DiGraph()
+    names = system.state_names
+    for name, row in zip(names, node_rows(system)):
+        g.add_node(name, **row)
+    src, dst = system.edges()
+    if system.weighted:
+        g.add_weighted_edges_from(zip((names[i] for i in src.tolist()),
+                                      (names[i] for i in dst.tolist()),
+                                      system.A.data.tolist()))
+    else:
+        g.add_edges_from(zip((names[i] for i in src.tolist()),
+                             (names[i] for i in dst.tolist())))
+    return g
+
+
+def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
+    """Read a GraphML file (directed or undirected; undirected edges act both ways).
+
+    Raises
+    ------
+    NetworkFileError
+        A document type or entity declaration (refused for safety), malformed XML (with
+        line and column), an attribute type GraphML does not define, a non-scalar or
+        non-numeric attribute where a number is needed.
+    """
+    import xml.etree.ElementTree as ET
+
+    import networkx as nx
+
+    data = read_bytes(path)
+    refuse_unsafe_xml(path, data)
+    try:
+        g = nx.read_graphml(io.BytesIO(data))
+    except ET.ParseError as exc:
+        line, col = getattr(exc, "position", (None, None))
+        what = re.sub(r":? *line \d+, column \d+", "", str(exc))
+        raise file_error(path, line, f"malformed XML at column {col}: {what}. Check that every "
+                         "tag is closed and attribute values are quoted.") from None
+    except KeyError as exc:
+        raise file_error(path, None, f"unknown GraphML attribute type {exc.args[0]!r}; use "
+                         "boolean, int, long, float, double or string.") from None
+    except (nx.NetworkXError, ValueError, TypeError) as exc:
+        raise file_error(path, None, f"not a GraphML graph netctl can read: {exc}. See "
+                         "docs/FORMATS.md.") from None
+    return graph_to_system(g, path, model=model, what="GraphML")
+
+
+def write_graphml(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+    """Write the network and node table as GraphML (atomically)."""
+    import networkx as nx
+
+    warn_not_kept(system, path, "GraphML")
+    buf = io.BytesIO()
+    nx.write_graphml(system_to_graph(system), buf)
+    with atomic_write(path, "wb") as fh:
+        fh.write(buf.getvalue())

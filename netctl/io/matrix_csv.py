@@ -1,0 +1,111 @@
+"""Dense matrix as CSV (``.matrix.csv``): the square matrix ``A``, one row a line.
+
+An optional first line of state names (not numbers) labels the columns; a first column of
+names labels the rows (then the first line may start with an empty cell). Entry ``(i, j)``
+nonzero means state ``j`` influences state ``i`` (``A[i, j] != 0``). Separators: comma,
+semicolon, tab or spaces; ``#`` starts a comment.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+
+import numpy as np
+
+from netctl.io._common import atomic_write, file_error, read_text
+from netctl.system import StructuredSystem
+
+__all__ = ["read_matrix_csv", "write_matrix_csv"]
+
+_SPLIT = re.compile(r"\s*[,;\t]\s*|\s+")
+#: Dense text matrices beyond this many states are refused (use a sparse format).
+MAX_STATES = 20_000
+
+
+def _num(tok: str) -> float | None:
+    try:
+        return float(tok)
+    except ValueError:
+        return None
+
+
+def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
+    """Read a dense square matrix from text.
+
+    Raises
+    ------
+    NetworkFileError
+        A row of the wrong length, a cell that is not a number (with line and column), a
+        non-square matrix, NaN/inf, more than 20 000 states.
+    """
+    rows: list[list[float]] = []
+    col_names: list[str] | None = None
+    row_names: list[str] = []
+    first = True
+    for lineno, raw in enumerate(read_text(path).splitlines(), start=1):
+        line = raw.split("#", 1)[0].strip()
+        if not line:
+            continue
+        toks = [t for t in _SPLIT.split(line)]
+        toks = [t.strip() for t in toks]
+        if first:
+            first = False
+            if any(_num(t) is None for t in toks if t):
+                col_names = [t for t in toks if t]
+                continue
+        label = None
+        if toks and _num(toks[0]) is None:
+            label, toks = toks[0], toks[1:]
+        vals = []
+        for k, t in enumerate(toks, start=1):
+            v = _num(t)
+            if v is None or not np.isfinite(v):
+                raise file_error(path, lineno, f"column {k + (label is not None)}: expected a "
+                                 f"finite number, found {t!r}. Every cell of a matrix CSV is a "
+                                 "number (0 for no link).")
+            vals.append(v)
+        if rows and len(vals) != len(rows[0]):
+            raise file_error(path, lineno, f"this row has {len(vals)} numbers but the first "
+                             f"row has {len(rows[0])}; every row needs one number per state.")
+        if len(rows) >= MAX_STATES:
+            raise file_error(path, lineno, f"more than {MAX_STATES} rows: too large for a dense "
+                             "text matrix; use .mtx or .npz.")
+        rows.append(vals)
+        if label is not None:
+            row_names.append(label)
+    if not rows:
+        raise file_error(path, None, "the file holds no matrix rows.")
+    n = len(rows)
+    if len(rows[0]) != n:
+        raise file_error(path, None, f"the matrix is {n} x {len(rows[0])}; a state matrix A "
+                         "must be square (n x n).")
+    names = col_names if col_names is not None else (row_names if len(row_names) == n else None)
+    if names is not None and len(names) != n:
+        raise file_error(path, 1, f"the header names {len(names)} states but the matrix has "
+                         f"{n}; give one name per column.")
+    if col_names is not None and len(row_names) == n and row_names != col_names:
+        raise file_error(path, None, "the row labels differ from the column names; a state "
+                         "matrix has the same states on both sides.")
+    A = np.array(rows)
+    weighted = bool(np.any((A != 0) & (A != 1)))
+    return StructuredSystem.from_matrices(A, state_names=names, weighted=weighted, model=model)
+
+
+def write_matrix_csv(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+    """Write ``A`` densely with a header of state names (atomically)."""
+    from netctl.errors import InvalidSystemError
+
+    if system.n_states > MAX_STATES:
+        raise InvalidSystemError(f"{path}: {system.n_states} states are too many for a dense "
+                                 f"text matrix (limit {MAX_STATES}); write .mtx or .npz.")
+    bad = [s for s in system.state_names if _SPLIT.search(s) or "#" in s or _num(s) is not None]
+    if bad:
+        raise InvalidSystemError(f"the state name {bad[0]!r} is a number or contains a "
+                                 "separator, so it cannot label a matrix CSV column; rename it "
+                                 "or write .npz/.mtx.")
+    A = system.A.toarray()
+    with atomic_write(path) as fh:
+        fh.write(",".join(system.state_names) + "\n")
+        for row in A.tolist():
+            fh.write(",".join(repr(x) if x else "0" for x in row) + "\n")

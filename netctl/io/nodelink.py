@@ -1,0 +1,104 @@
+"""Node-link JSON (``.json``): ``{"directed": ..., "nodes": [...], "links": [...]}``.
+
+Each node is an object with an ``id`` and any scalar attributes (the node table); each
+link has ``source``, ``target`` and optionally ``weight``. ``"edges"`` is accepted in
+place of ``"links"``. ``"directed": false`` makes every link act both ways. This is the
+layout networkx's ``node_link_data`` writes.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import warnings
+from typing import Any
+
+from netctl.io._common import atomic_write, file_error, read_text
+from netctl.io._graphs import node_rows, system_from_parts, warn_not_kept
+from netctl.system import StructuredSystem
+
+__all__ = ["read_nodelink", "write_nodelink"]
+
+_TOP = ("directed", "multigraph", "graph", "nodes", "links", "edges")
+
+
+def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
+    """Read node-link JSON.
+
+    Raises
+    ------
+    NetworkFileError
+        Invalid JSON (with line and column), a missing ``nodes`` list, a node without
+        ``id``, a link naming an unknown node, non-scalar attributes, bad weights.
+    """
+    text = read_text(path)
+    try:
+        data = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise file_error(path, exc.lineno, f"invalid JSON at column {exc.colno}: {exc.msg}. "
+                         "Check commas, brackets and quotes.") from None
+    if not isinstance(data, dict) or not isinstance(data.get("nodes"), list):
+        raise file_error(path, None, "expected a JSON object with a \"nodes\" list and a "
+                         "\"links\" list (node-link layout, see docs/FORMATS.md).")
+    unknown = [k for k in data if k not in _TOP]
+    if unknown or data.get("graph"):
+        warnings.warn(f"{path}: the keys {', '.join(map(repr, unknown + (['graph'] if data.get('graph') else [])))} "
+                      "are not kept.", stacklevel=2)
+    links = data.get("links", data.get("edges", []))
+    if not isinstance(links, list):
+        raise file_error(path, None, "\"links\" must be a list of {\"source\", \"target\"} "
+                         "objects.")
+    names: list[Any] = []
+    attrs: list[dict[str, Any]] = []
+    for k, node in enumerate(data["nodes"]):
+        if not isinstance(node, dict) or "id" not in node:
+            raise file_error(path, None, f"node {k} ({node!r:.60}) has no \"id\"; every node "
+                             "is an object with an \"id\".")
+        if isinstance(node["id"], bool) or not isinstance(node["id"], (str, int)):
+            raise file_error(path, None, f"node {k} has the id {node['id']!r}; ids must be "
+                             "strings or integers.")
+        names.append(node["id"])
+        attrs.append({a: v for a, v in node.items() if a != "id"})
+    index = {v: i for i, v in enumerate(names)}
+    src, dst, wts = [], [], []
+    weighted = any(isinstance(e, dict) and "weight" in e for e in links)
+    extra: set[str] = set()
+    for k, e in enumerate(links):
+        if not isinstance(e, dict) or "source" not in e or "target" not in e:
+            raise file_error(path, None, f"link {k} ({e!r:.60}) needs \"source\" and "
+                             "\"target\".")
+        for end in ("source", "target"):
+            if not isinstance(e[end], (str, int)) or e[end] not in index:
+                raise file_error(path, None, f"link {k} names the {end} {e[end]!r}, which is "
+                                 "not in \"nodes\"; list every node.")
+        src.append(index[e["source"]])
+        dst.append(index[e["target"]])
+        if weighted:
+            wts.append(e.get("weight"))
+        extra.update(x for x in e if x not in ("source", "target", "weight", "key"))
+    if extra:
+        warnings.warn(f"{path}: link attributes {', '.join(map(repr, sorted(extra)))} are not "
+                      "kept (only 'weight' is).", stacklevel=2)
+    directed = data.get("directed", True)
+    if not isinstance(directed, bool):
+        raise file_error(path, None, f"\"directed\" must be true or false, found {directed!r}.")
+    return system_from_parts(path, names, attrs, src, dst, wts if weighted else None,
+                             directed, model=model, what="node-link JSON")
+
+
+def write_nodelink(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+    """Write node-link JSON (directed; node table as node attributes), atomically."""
+    warn_not_kept(system, path, "node-link JSON")
+    names = system.state_names
+    nodes = [{"id": n, **row} for n, row in zip(names, node_rows(system))]
+    src, dst = system.edges()
+    if system.weighted:
+        links = [{"source": names[a], "target": names[b], "weight": w} for a, b, w in
+                 zip(src.tolist(), dst.tolist(), system.A.data.tolist())]
+    else:
+        links = [{"source": names[a], "target": names[b]} for a, b in
+                 zip(src.tolist(), dst.tolist())]
+    doc = {"directed": True, "multigraph": False, "graph": {}, "nodes": nodes, "links": links}
+    with atomic_write(path) as fh:
+        json.dump(doc, fh, ensure_ascii=False, indent=1, allow_nan=False)
+        fh.write("\n")

@@ -1,0 +1,109 @@
+"""scipy sparse ``.npz`` files: the matrix ``A`` (``scipy.sparse.save_npz`` layout).
+
+Read with ``numpy.load(allow_pickle=False)``: a file holding pickled Python objects is
+refused, never executed. netctl writes the CSR arrays plus ``state_names`` and
+``weighted``; files written by ``scipy.sparse.save_npz`` (any of csr, csc, coo) read too.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import zipfile
+
+import numpy as np
+import scipy.sparse as sp
+
+from netctl.io._common import atomic_write, file_error, read_bytes
+from netctl.system import StructuredSystem
+
+__all__ = ["read_npz", "write_npz", "MAX_STATES"]
+
+#: Refuse matrices that claim more states than this (protects memory).
+MAX_STATES = 2_000_000_000
+
+
+def _load(path: object, data: bytes) -> dict[str, np.ndarray]:
+    try:
+        with np.load(io.BytesIO(data), allow_pickle=False) as z:
+            return {k: z[k] for k in z.files}
+    except ValueError as exc:
+        if "pickle" in str(exc).lower():
+            raise file_error(path, None, "the file holds pickled Python objects, which netctl "
+                             "never loads (they can run code). Save plain numeric arrays "
+                             "(scipy.sparse.save_npz does).") from None
+        raise file_error(path, None, f"not a readable .npz file: {exc}.") from None
+    except (zipfile.BadZipFile, OSError, EOFError) as exc:
+        raise file_error(path, None, f"not a readable .npz file ({exc}); is it damaged or "
+                         "truncated?") from None
+
+
+def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
+    """Read ``A`` from a scipy sparse ``.npz`` file.
+
+    Raises
+    ------
+    NetworkFileError
+        Pickled objects, missing arrays, a non-square or absurdly large shape, arrays
+        inconsistent with the shape.
+    """
+    z = _load(path, read_bytes(path))
+    need = ("format", "shape")
+    if any(k not in z for k in need):
+        raise file_error(path, None, f"expected the arrays of scipy.sparse.save_npz "
+                         f"(format, shape, data, ...); found {sorted(z)}.")
+    fmt = z["format"].item()
+    fmt = fmt.decode("ascii", "replace") if isinstance(fmt, bytes) else str(fmt)
+    shape = tuple(int(x) for x in np.asarray(z["shape"]).ravel())
+    if len(shape) != 2 or shape[0] != shape[1]:
+        raise file_error(path, None, f"the matrix has shape {shape}; a state matrix A must "
+                         "be square (n x n).")
+    n = shape[0]
+    if n < 0 or n > MAX_STATES:
+        raise file_error(path, None, f"the file claims {n} states, more than netctl reads "
+                         f"({MAX_STATES}); check the file.")
+    try:
+        data = z["data"]
+        if fmt in ("csr", "csc"):
+            if z["indptr"].size != n + 1 or z["indices"].size != data.size:
+                raise ValueError(f"indptr has {z['indptr'].size} entries for {n} rows and "
+                                 f"indices/data have {z['indices'].size}/{data.size}")
+            cls = sp.csr_array if fmt == "csr" else sp.csc_array
+            M = cls((data, z["indices"], z["indptr"]), shape=shape)
+        elif fmt == "coo":
+            row = z["row"] if "row" in z else z["coords"][0]
+            col = z["col"] if "col" in z else z["coords"][1]
+            M = sp.coo_array((data, (row, col)), shape=shape)
+        else:
+            raise ValueError(f"the sparse format {fmt!r} is not supported (use csr, csc or coo)")
+        M.check_format() if hasattr(M, "check_format") and fmt != "coo" else None
+    except (KeyError, ValueError, TypeError, IndexError) as exc:
+        raise file_error(path, None, f"the sparse arrays are inconsistent: {exc}.") from None
+    if not np.issubdtype(M.dtype, np.number) and M.dtype != np.bool_:
+        raise file_error(path, None, f"the values have dtype {M.dtype}; expected numbers.")
+    names = z["state_names"].tolist() if "state_names" in z else None
+    weighted = bool(z["weighted"]) if "weighted" in z else M.dtype != np.bool_
+    if names is not None and len(names) != n:
+        raise file_error(path, None, f"state_names has {len(names)} entries for {n} states.")
+    A = sp.csr_array(M, dtype=np.float64)
+    if A.nnz and not np.all(np.isfinite(A.data)):
+        raise file_error(path, None, "some values are NaN or infinite; give finite weights.")
+    zero = int(np.count_nonzero(A.data == 0))
+    if zero:
+        import warnings
+        warnings.warn(f"{path}: {zero} explicitly stored zero entr"
+                      f"{'y is' if zero == 1 else 'ies are'} not links and were left out.",
+                      stacklevel=2)
+    return StructuredSystem.from_matrices(A, state_names=names, weighted=weighted, model=model)
+
+
+def write_npz(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+    """Write ``A`` as a compressed CSR ``.npz`` (readable by ``scipy.sparse.load_npz``)."""
+    A = system.A
+    buf = io.BytesIO()
+    np.savez_compressed(buf, format=np.array(b"csr"), shape=np.array(A.shape),
+                        data=A.data, indices=A.indices, indptr=A.indptr,
+                        state_names=np.array(system.state_names, dtype=str),
+                        weighted=np.array(system.weighted))
+    with atomic_write(path, "wb") as fh:
+        fh.write(buf.getvalue())
