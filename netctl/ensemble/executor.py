@@ -103,8 +103,8 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
     Notes
     -----
     Local processes start through the ``forkserver`` method where the platform has it
-    (else ``spawn``), so workers never inherit threads of the caller; netctl is
-    preloaded into the fork server. Tasks are handed out in chunks of about
+    (else ``spawn``), so workers never inherit threads of the caller; netctl and its
+    compiled kernels are loaded once in the fork server, so workers start warm. Tasks are handed out in chunks of about
     ``len(items) / (4 * workers)``.
 
     Examples
@@ -133,7 +133,7 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
     ctx = mp.get_context("forkserver" if "forkserver" in mp.get_all_start_methods()
                          else "spawn")
     if ctx.get_start_method() == "forkserver":
-        ctx.set_forkserver_preload(["netctl.ensemble.executor", "netctl.structural"])
+        ctx.set_forkserver_preload(["netctl.ensemble._preload"])
     chunk = max(1, math.ceil(len(items) / (4 * n_workers)))
     with ProcessPoolExecutor(max_workers=n_workers, mp_context=ctx, initializer=_init_worker,
                              initargs=(shared,)) as pool:
