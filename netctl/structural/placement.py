@@ -117,13 +117,14 @@ def _check_kind(kind: str) -> None:
         raise OptionError(f"kind must be one of {', '.join(map(repr, _KINDS))}, found {kind!r}.")
 
 
-def _make_sites(kind: str, eligible: np.ndarray, cost: np.ndarray, names: tuple[str, ...],
+def _make_sites(kind: str, eligible: np.ndarray, cost: np.ndarray, names: Sequence[str],
                 source: str) -> Sites:
     eligible = np.asarray(eligible, bool).copy()
     cost = np.where(eligible, np.asarray(cost, np.float64), np.inf)
     eligible.setflags(write=False)
     cost.setflags(write=False)
-    return Sites(kind=kind, eligible=eligible, cost=cost, state_names=names, source=source)
+    return Sites(kind=kind, eligible=eligible, cost=cost, state_names=tuple(names),
+                 source=source)
 
 
 def sites_from_nodes(system: StructuredSystem, *, kind: str = "actuator") -> Sites:
@@ -299,7 +300,7 @@ class Candidates:
         return sp.csr_array((np.ones(rows.size), (rows, cidx)), shape=(n, len(cols)))
 
     @classmethod
-    def from_lists(cls, names: Sequence[str], states: Sequence[Sequence[int]],
+    def from_lists(cls, names: Sequence[str], states: Sequence[Any],
                    cost: Sequence[float], *, dedicated: bool = False) -> Candidates:
         cols = [np.unique(np.asarray(s, np.int64)) for s in states]
         indptr = np.zeros(len(cols) + 1, np.int64)
@@ -1177,7 +1178,7 @@ def _add_column(ptr: np.ndarray, ind: np.ndarray, rows: np.ndarray, col: int
 
 
 # ====================================================================== best effort
-def _dimension_of(work: StructuredSystem, cands: Candidates, chosen: Sequence[int]) -> int:
+def _dimension_of(work: StructuredSystem, cands: Candidates, chosen: Any) -> int:
     from netctl.structural.controllability import controllability
 
     n = work.n_states
@@ -1220,10 +1221,10 @@ def _best_effort(work: StructuredSystem, cands: Candidates, prob: _Reduced, budg
                         "(largest generic controllable dimension, then lowest cost)")
     # lazy cost-effectiveness greedy (CELF) + best single candidate
     f_S = base
-    S: list[int] = []
+    sel: list[int] = []
     spent = 0.0
     heap: list[tuple[float, int, int]] = []
-    gains0 = {}
+    gains0: dict[int, int] = {}
     for k in pool.tolist():
         g = _dimension_of(work, cands, [k]) - base
         gains0[k] = g
@@ -1235,26 +1236,26 @@ def _best_effort(work: StructuredSystem, cands: Candidates, prob: _Reduced, budg
         if spent + cost[k] > budget * (1 + 1e-12) + 1e-12:
             continue
         if stamp != it:
-            g = _dimension_of(work, cands, S + [k]) - f_S
+            g = _dimension_of(work, cands, sel + [k]) - f_S
             if g > 0:
                 heapq.heappush(heap, (-_ratio(g, cost[k]), k, it))
             continue
-        S.append(k)
+        sel.append(k)
         spent += float(cost[k])
-        f_S = _dimension_of(work, cands, S)
+        f_S = _dimension_of(work, cands, sel)
         it += 1
     best_single = max(pool.tolist(), key=lambda k: (gains0[k], -cost[k], -k))
     if base + gains0[best_single] > f_S:
-        S, f_S, spent = [best_single], base + gains0[best_single], float(cost[best_single])
-    # a-posteriori bound: f(OPT) <= f(S) + fractional knapsack of single gains at S
-    marg = {k: _dimension_of(work, cands, S + [k]) - f_S for k in pool.tolist() if k not in S}
+        sel, f_S, spent = [best_single], base + gains0[best_single], float(cost[best_single])
+    # a-posteriori bound: f(OPT) <= f(sel) + fractional knapsack of single gains at sel
+    marg = {k: _dimension_of(work, cands, sel + [k]) - f_S for k in pool.tolist() if k not in sel}
     ub = f_S + _fractional_knapsack([marg[k] for k in marg], [float(cost[k]) for k in marg],
                                     budget)
     ub = float(min(ub, top))
     equal = np.ptp(cost[pool]) == 0
     ratio_txt = ("1 - 1/e (equal costs; Nemhauser, Wolsey & Fisher 1978)" if equal else
                  "(1 - 1/e)/2 (knapsack budget; Khuller, Moss & Naor 1999, from memory)")
-    return _Outcome(problem, "greedy", True, True, np.array(sorted(S), np.int64), spent, None,
+    return _Outcome(problem, "greedy", True, True, np.array(sorted(sel), np.int64), spent, None,
                     ub, f_S, [], f"budgeted greedy on the submodular generic controllable "
                     f"dimension: at least {ratio_txt} of the optimum")
 
@@ -1338,4 +1339,4 @@ def _finish(system: StructuredSystem, work: StructuredSystem, kind: str, cands: 
         gap=float(gap), dimension=None if dim is None else int(dim), goal_dimension=n, verified=verified,
         inaccessible=np.asarray(inacc, np.int64), reasons=tuple(out.reasons),
         guarantee=out.guarantee, budget=None if budget is None else float(budget),
-        candidates=cands, state_names=system.state_names, model=system.model)
+        candidates=cands, state_names=tuple(system.state_names), model=system.model)

@@ -424,7 +424,7 @@ def place_target_inputs(
         lower_bound=lower, upper_bound=None, optimal=optimal, gap=float(gap),
         dimension=dim, goal_dimension=int(T.size), verified=verified,
         inaccessible=unreachable.astype(np.int64), reasons=tuple(reasons),
-        guarantee=guarantee, budget=None, candidates=cands, state_names=system.state_names,
+        guarantee=guarantee, budget=None, candidates=cands, state_names=tuple(system.state_names),
         targets=T, model=system.model)
 
 

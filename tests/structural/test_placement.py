@@ -383,3 +383,43 @@ def test_sensors_min_cost_equals_brute_force_on_the_dual():
             obs = observability(s.with_outputs(p.sites.tolist()), dimension=False)
             assert obs.controllable, trial
             assert p.verified is True
+
+
+def test_candidates_best_effort_equals_brute_force():
+    """Budget too small for candidate actuators: the largest affordable dimension,
+    brute force over affordable subsets with the F_p generic rank (tests/_reference.py)."""
+    rng = np.random.default_rng(6008)
+    ref_rng = np.random.default_rng(29)
+    checked = 0
+    for trial in range(80):
+        n = int(rng.integers(2, 6))
+        edges = random_pattern(rng, n, float(rng.uniform(0.1, 0.5)))
+        A = ref.pattern_from_edges(edges, n)
+        s = StructuredSystem.from_matrices(A, weighted=False)
+        cands = _random_candidates(rng, n, int(rng.integers(1, 6)))
+        budget = float(rng.integers(1, 5))
+        p = place_inputs(s, candidates=cands, budget=budget)
+        if p.goal_met:
+            assert p.cost <= budget and p.verified
+            continue
+        checked += 1
+        best = 0
+        for r in range(cands.n_candidates + 1):
+            for S in itertools.combinations(range(cands.n_candidates), r):
+                if cands.cost[list(S)].sum() <= budget:
+                    B = cands.matrix(np.array(S, np.int64), n).toarray() != 0
+                    best = max(best, ref.generic_controllable_dimension(A, B, ref_rng, trials=1))
+        assert p.best_effort and p.cost <= budget and p.reasons
+        assert p.dimension == best, (trial, edges.tolist(), budget)
+    assert checked > 20
+
+
+def test_sensor_candidates_and_budget():
+    # path 0 -> 1 -> 2: one sensor at the end suffices; a sensor reading {0, 1} does not
+    s = from_edges([(0, 1), (1, 2)], 3)
+    cands = Candidates.from_lists(["front", "end"], [[0, 1], [2]], [1.0, 4.0])
+    p = place_sensors(s, candidates=cands)
+    assert [cands.names[k] for k in p.chosen] == ["end"] and p.cost == 4.0 and p.optimal
+    q = place_sensors(s, candidates=cands, budget=2.0)
+    assert q.best_effort and not q.goal_met and q.cost == 1.0 and q.dimension == 2
+    assert observability(q.apply(s), dimension=True).controllable_dimension == 2
