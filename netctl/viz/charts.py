@@ -128,7 +128,7 @@ def plot_null_model(observed: float, null: Sequence[float], *, ax: Axes | None =
     --------
     >>> import matplotlib; matplotlib.use("Agg")
     >>> ax = plot_null_model(12, [10, 11, 11, 12, 13])
-    >>> "z = " in ax.get_title()
+    >>> "z = " in ax.get_title(loc="left")
     True
     >>> import matplotlib.pyplot as plt; plt.close(ax.figure)
     """
@@ -189,7 +189,7 @@ def plot_role_composition(composition: Mapping[str, Sequence[float]], *,
     --------
     >>> import matplotlib; matplotlib.use("Agg")
     >>> ax = plot_role_composition({"grid": [2, 5, 13]})
-    >>> [round(p.get_width(), 2) for p in ax.patches]
+    >>> [round(float(p.get_width()), 2) for p in ax.patches]
     [0.1, 0.25, 0.65]
     >>> import matplotlib.pyplot as plt; plt.close(ax.figure)
     """
