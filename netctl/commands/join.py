@@ -1,7 +1,9 @@
 """``netctl join A B ... --ties FILE``: compose subsystems and check the composite.
 
 Subsystems are network or system files (``NAME=PATH`` names one; otherwise the file name
-without its suffix). The ties file is CSV with the header
+without its suffix). A TOML system description that declares ``[subsystems]`` contributes
+each of its subsystems and its ``[[ties]]`` (see docs/FORMATS.md); one without subsystems
+is one subsystem with its own inputs. The ties file is CSV with the header
 ``from_system,from_state,to_system,to_state`` and an optional fifth column ``kind``
 (``state``, the default: a link between states; ``signal``: ``from_state`` names an
 output and ``to_state`` an input, fed by that output). ``#`` starts a comment.
@@ -33,8 +35,9 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
              "dilations, smallest fix, by subsystem")
     p.add_argument("more", nargs="*", metavar="FILE",
                    help="further subsystem files (NAME=PATH names a subsystem)")
-    p.add_argument("--ties", metavar="FILE", required=True,
-                   help="CSV: from_system,from_state,to_system,to_state[,kind]")
+    p.add_argument("--ties", metavar="FILE", default=None,
+                   help="CSV: from_system,from_state,to_system,to_state[,kind] (needed unless "
+                        "a TOML system description brings its own ties)")
     p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
                    help="composite states ('sub.state') with a dedicated input; replaces the "
                         "subsystems' own inputs")
@@ -83,20 +86,60 @@ def read_ties(path: str) -> list[Tie]:
     return ties
 
 
-def _cmd_join(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, UsageError, emit
-    from netctl.io import read, read_state_list
+def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any]:
+    """Subsystems (and ties) from one file: a TOML description with subsystems gives
+    several, any other file one."""
+    from netctl.io import read
     from netctl.models import apply_model
 
+    if Path(path).suffix.lower() == ".toml":
+        import importlib.util
+
+        if importlib.util.find_spec("netctl.io.system_spec") is not None:
+            from netctl.io.system_spec import read_spec
+
+            spec = read_spec(path, model=args.model)
+            if spec.subsystems:
+                if spec.unassigned:
+                    import warnings
+
+                    warnings.warn(f"{path}: {len(spec.unassigned)} state(s) belong to no "
+                                  "subsystem and are left out of the composite: "
+                                  + ", ".join(spec.unassigned[:10])
+                                  + (" ..." if len(spec.unassigned) > 10 else ""),
+                                  stacklevel=2)
+                subs = spec.subsystem_systems()
+                out: dict[str, Any] = {
+                    k: (apply_model(v, args.model), []) for k, v in subs.items()}
+                first = next(iter(out))
+                out[first] = (out[first][0], [Tie(*t) for t in spec.ties])
+                return out
+            return {name: (apply_model(spec.system, args.model), [])}
+    return {name: (apply_model(read(path, args.format), args.model), [])}
+
+
+def _cmd_join(args: argparse.Namespace) -> int:
+    from netctl.cli import CAUTION, UsageError, emit
+    from netctl.io import read_state_list
+
     systems: dict[str, Any] = {}
+    ties: list[Any] = []
     for spec in [args.file, *args.more]:
         name, _, path = spec.rpartition("=") if "=" in spec else ("", "", spec)
         name = name or Path(path).name.split(".")[0]
-        if name in systems:
-            raise UsageError(f"two subsystems are named {name!r}; name them with "
-                             "NAME=PATH, e.g. plant_a=a.csv.")
-        systems[name] = apply_model(read(path, args.format), args.model)
-    ties = read_ties(args.ties)
+        parts = _read_parts(path, name, args)
+        for sub, (system, sub_ties) in parts.items():
+            if sub in systems:
+                raise UsageError(f"two subsystems are named {sub!r}; name them with "
+                                 "NAME=PATH, e.g. plant_a=a.csv.")
+            systems[sub] = system
+            ties.extend(sub_ties)
+    if args.ties:
+        ties.extend(read_ties(args.ties))
+    if not ties and len(systems) > 1:
+        raise UsageError("join needs ties between the subsystems: --ties FILE (CSV "
+                         f"{','.join(TIES_HEADER)}[,kind]) or a TOML system description "
+                         "with [[ties]].")
     inputs = read_state_list(args.inputs) if args.inputs is not None else None
     if inputs is not None and not inputs:
         raise UsageError("--inputs names no state; give 'sub.state,...' or a file.")

@@ -263,7 +263,7 @@ class ContingencySweep:
     controllable_after: np.ndarray
     rank_lost: np.ndarray
     cut_off: np.ndarray
-    state_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
     model: str = "given"
     _dom_pre: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
     _dom_size: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
@@ -535,7 +535,7 @@ class SampledLosses:
     controllable_after: np.ndarray
     sources: np.ndarray = field(repr=False)
     targets: np.ndarray = field(repr=False)
-    state_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
 
     @property
     def n_samples(self) -> int:
@@ -999,7 +999,7 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     Bk = grown.B[keep].tocsr()
     used = np.diff(Bk.tocsc().indptr) > 0
     had = np.diff(grown.B.tocsc().indptr) > 0
-    lost_inputs = tuple(grown.input_names[j] for j in np.flatnonzero(had & ~used))
+    lost_inputs = tuple(grown.input_names[int(j)] for j in np.flatnonzero(had & ~used))
     Ck = grown.C[:, keep].tocsr()
     out = StructuredSystem(
         A=grown.A[keep][:, keep].tocsr(), B=Bk[:, used], C=Ck,

@@ -13,6 +13,7 @@ a state whose row no maximum-matching edge covers is a driver (Liu et al. 2011).
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -149,7 +150,7 @@ class NodeRoles:
     n_inputs: int
     matching_size: int
     basis: str
-    state_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
     model: str = "given"
 
     @property
@@ -224,7 +225,7 @@ class LinkRoles:
     n_inputs: int
     n_inputs_after_loss: np.ndarray
     matching_size: int
-    state_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
     model: str = "given"
 
     @property
