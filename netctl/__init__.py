@@ -47,6 +47,13 @@ from netctl.structural.interconnect import interconnection
 from netctl.structural.placement import Placement, place_inputs, place_sensors
 from netctl.structural.robustness import contingency_sweep, what_if
 from netctl.structural.roles import LinkRoles, NodeRoles, link_roles, node_roles
+from netctl.structural.strong import (
+    StrongInputDesign,
+    StrongReport,
+    is_strongly_controllable,
+    minimum_strong_inputs,
+    strong_controllability,
+)
 from netctl.structural.target import place_target_inputs
 from netctl.system import StructuredSystem
 
@@ -65,6 +72,8 @@ __all__ = [
     "NullComparison",
     "OptionError",
     "Placement",
+    "StrongInputDesign",
+    "StrongReport",
     "StructuredSystem",
     "UnknownNameError",
     "__version__",
@@ -75,17 +84,20 @@ __all__ = [
     "controllability",
     "degree_preserving_swaps",
     "interconnection",
+    "is_strongly_controllable",
     "is_structurally_controllable",
     "is_structurally_observable",
     "link_roles",
     "minimum_inputs",
     "minimum_sensors",
+    "minimum_strong_inputs",
     "node_roles",
     "observability",
     "place_inputs",
     "place_sensors",
     "place_target_inputs",
     "run_tasks",
+    "strong_controllability",
     "summarize",
     "what_if",
 ]

@@ -16,6 +16,9 @@ EXPECTED = sorted([
     "node_roles", "what_if",
     # placement under constraints, target control
     "Placement", "place_inputs", "place_sensors", "place_target_inputs",
+    # strong structural controllability
+    "StrongInputDesign", "StrongReport", "is_strongly_controllable",
+    "minimum_strong_inputs", "strong_controllability",
 ])
 
 

@@ -1,0 +1,101 @@
+"""``netctl strong FILE [--inputs ...] [--diagonal ...]``: strong structural controllability.
+
+With ``--inputs`` the dedicated inputs on those states are checked: are they enough for
+*every* nonzero value of every weight (exit 0), or do some weights make the design
+uncontrollable (exit 1; the states left unforced are listed)? Without ``--inputs`` a
+smallest set is searched for (exact integer program on small networks, greedy with a
+lower bound on large ones; the method and the gap are always reported).
+"""
+
+from __future__ import annotations
+
+import argparse
+import warnings
+from typing import Any
+
+__all__ = ["register"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    from netctl.structural.strong import DIAGONALS, EXACT_AUTO_LIMIT, METHODS
+
+    p = subparsers.add_parser(
+        "strong", parents=[common],
+        help="strong structural controllability: does a design hold for every nonzero "
+             "weight (exit 0 yes, 1 no), or the fewest inputs that do")
+    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
+                   help="states with a dedicated input: 'a,b,c' or a file, one name a line "
+                        "(default: search for a smallest set)")
+    p.add_argument("--diagonal", choices=list(DIAGONALS), default="as-given",
+                   help="what is assumed about the self-dynamics a_ii: " + "; ".join(
+                       f"{k} = {v}" for k, v in DIAGONALS.items()) + " (default: as-given)")
+    p.add_argument("--method", choices=list(METHODS), default="auto",
+                   help="search without --inputs: exact (integer program), greedy (fast, "
+                        f"with a lower bound), auto (exact up to {EXACT_AUTO_LIMIT} states)")
+    p.add_argument("--time-limit", type=float, default=60.0, metavar="SECONDS",
+                   help="time for the exact search (default 60); when it runs out the best "
+                        "set found and a proven lower bound are reported")
+    p.set_defaults(func=_cmd_strong)
+
+
+def _names_line(names: list[str], limit: int = 30) -> str:
+    if len(names) <= limit:
+        return ", ".join(names)
+    return ", ".join(names[:limit]) + f", ... ({len(names) - limit} more; --json lists all)"
+
+
+def _cmd_strong(args: argparse.Namespace) -> int:
+    from netctl.cli import CAUTION, emit, load_system, parse_names
+    from netctl.structural.strong import (
+        DIAGONALS,
+        minimum_strong_inputs,
+        strong_controllability,
+    )
+
+    system = load_system(args)
+    head = [f"{args.file}: {system.n_states} states, {system.n_links} links "
+            f"({system.n_self_loops} self-loops), model {system.model}",
+            f"  diagonal: {args.diagonal} ({DIAGONALS[args.diagonal]})"]
+    notes = []
+    if system.weighted:
+        notes.append("the file's weights are not used: the answer covers every nonzero "
+                     "value of every link")
+    if args.inputs is not None:
+        system = system.with_inputs(parse_names(system, args.inputs))
+        rep = strong_controllability(system, diagonal=args.diagonal)
+        d: dict[str, Any] = {"file": args.file, "mode": "check", **rep.to_dict(),
+                             "notes": notes, "caution": CAUTION}
+        lines = head + [f"  inputs ({rep.n_inputs}): {_names_line(rep.names(system.driven_states()))}",
+                        "  strongly structurally controllable: "
+                        + ("yes" if rep.strongly_controllable else "NO")]
+        for reason in rep.reasons():
+            lines.append(f"    - {reason}")
+        if not rep.strongly_controllable:
+            lines.append("  unforced states: " + _names_line(rep.unforced_names))
+        lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
+        emit(args, d, "\n".join(lines))
+        return 0 if rep.strongly_controllable else 1
+
+    if system.n_inputs:
+        notes.append(f"the file's {system.n_inputs} input(s) are not used by the search; "
+                     "pass --inputs to check a design")
+    design = minimum_strong_inputs(system, diagonal=args.diagonal, method=args.method,
+                                   time_limit=args.time_limit)
+    with warnings.catch_warnings():  # the search has already warned about the diagonal
+        warnings.simplefilter("ignore")
+        check = strong_controllability(design.apply(system), diagonal=args.diagonal)
+    d = {"file": args.file, "mode": "minimum", **design.to_dict(),
+         "strongly_controllable": check.strongly_controllable,
+         "unforced": check.unforced_names, "notes": notes, "caution": CAUTION}
+    quality = ("proven minimum" if design.optimal else
+               f"best found; at least {design.lower_bound} needed (gap {design.gap})")
+    lines = head + [
+        f"  fewest dedicated inputs for strong structural controllability: "
+        f"{design.n_inputs} ({quality})",
+        f"  method: {design.method}; lower bound {design.lower_bound} from "
+        f"{design.lower_bound_source}",
+        f"  driven states ({design.n_inputs}): {_names_line(design.driver_names)}",
+        "  (one set of possibly many)"]
+    lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
+    emit(args, d, "\n".join(lines))
+    return 0
