@@ -97,7 +97,8 @@ def worker(method: str, path: str) -> dict:
     n = int(data["n"])
     indptr = data["indptr"].astype(np.int64)
     indices = data["indices"].astype(np.int64)
-    A = sp.csr_array((np.ones(indices.size), indices, indptr), shape=(n, n))
+    A = sp.csr_array((n, n))  # int64 index arrays as netctl's readers produce (no downcast)
+    A.data, A.indices, A.indptr = np.ones(indices.size), indices, indptr
     if method == "netctl":
         from netctl import StructuredSystem, minimum_inputs
 

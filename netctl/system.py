@@ -18,7 +18,7 @@ import scipy.sparse as sp
 
 from netctl.errors import InvalidSystemError, UnknownNameError
 
-__all__ = ["StructuredSystem", "NODE_COLUMNS", "canonical_csr"]
+__all__ = ["StructuredSystem", "NameList", "NODE_COLUMNS", "canonical_csr"]
 
 #: Node-table columns netctl itself understands (others are carried along untouched).
 #: ``x``, ``y``: map coordinates (NaN when unknown); ``actuator`` / ``sensor``: whether the
@@ -32,6 +32,9 @@ def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> sp.csr_arra
     Canonical means: duplicates summed, explicitly stored zeros removed, column indices
     sorted. NaN or infinite entries are rejected with a message naming ``what``.
     """
+    shared = _share_canonical(matrix, shape)
+    if shared is not None:
+        return shared
     if sp.issparse(matrix):
         m = sp.csr_array(matrix, dtype=np.float64, copy=True)
     else:
@@ -59,9 +62,99 @@ def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> sp.csr_arra
     return m
 
 
-def _names(names: Sequence[object] | None, count: int, prefix: str, what: str) -> tuple[str, ...]:
+def _share_canonical(matrix: Any, shape: tuple[int, int]) -> sp.csr_array | None:
+    """Reuse the arrays of an already canonical float64/int64 CSR matrix (read-only views,
+    no copy), or return None. Saves a full copy of large networks at every step."""
+    if not (isinstance(matrix, (sp.csr_array, sp.csr_matrix)) and matrix.shape == shape
+            and matrix.dtype == np.float64 and matrix.indices.dtype == np.int64
+            and matrix.indptr.dtype == np.int64):
+        return None
+    if matrix.nnz and not (matrix.has_canonical_format and np.all(matrix.data != 0)
+                           and np.all(np.isfinite(matrix.data))):
+        return None
+    m = sp.csr_array(shape, dtype=np.float64)
+    m.data, m.indices, m.indptr = matrix.data.view(), matrix.indices.view(), matrix.indptr.view()
+    m.has_canonical_format = True
+    return m
+
+
+class NameList(Sequence[str]):
+    """A read-only sequence of names computed on demand, for very large systems.
+
+    ``NameList.prefixed("x", n)`` is ``("x0", ..., f"x{n-1}")`` and
+    ``NameList.from_ints(ids)`` is ``tuple(str(i) for i in ids)``, without materializing
+    millions of Python strings. It compares equal to the tuple it stands for.
+    """
+
+    __slots__ = ("_prefix", "_ids", "_n", "_lookup")
+
+    def __init__(self, prefix: str, ids: np.ndarray | None, n: int) -> None:
+        self._prefix = prefix
+        self._ids = ids
+        self._n = int(n)
+        self._lookup: dict[str, int] | None = None
+
+    @classmethod
+    def prefixed(cls, prefix: str, n: int) -> NameList:
+        return cls(prefix, None, n)
+
+    @classmethod
+    def from_ints(cls, ids: Any) -> NameList:
+        arr = np.asarray(ids, dtype=np.int64)
+        if arr.ndim != 1 or np.unique(arr).size != arr.size:
+            raise InvalidSystemError("integer names must be one-dimensional and unique.")
+        arr = arr.copy()
+        arr.setflags(write=False)
+        return cls("", arr, arr.size)
+
+    def __len__(self) -> int:
+        return self._n
+
+    def __getitem__(self, i: Any) -> Any:
+        if isinstance(i, slice):
+            return [self[k] for k in range(*i.indices(self._n))]
+        k = int(i)
+        if k < 0:
+            k += self._n
+        if not 0 <= k < self._n:
+            raise IndexError(f"name index {i} out of range for {self._n} names")
+        return f"{self._prefix}{k if self._ids is None else int(self._ids[k])}"
+
+    def position(self, name: str) -> int | None:
+        """Index of ``name``, or None (constant time for prefixed names)."""
+        if self._ids is None:
+            tail = name[len(self._prefix):] if name.startswith(self._prefix) else ""
+            if tail.isdigit() and (tail == "0" or not tail.startswith("0")):
+                k = int(tail)
+                return k if k < self._n else None
+            return None
+        if self._lookup is None:
+            self._lookup = {str(int(v)): k for k, v in enumerate(self._ids)}
+        return self._lookup.get(name)
+
+    def __eq__(self, other: object) -> bool:
+        if isinstance(other, NameList):
+            return tuple(self) == tuple(other)
+        if isinstance(other, (tuple, list)):
+            return len(other) == self._n and tuple(self) == tuple(other)
+        return NotImplemented
+
+    __hash__ = None  # type: ignore[assignment]
+
+    def __repr__(self) -> str:
+        head = ", ".join(repr(self[k]) for k in range(min(self._n, 3)))
+        return f"NameList([{head}{', ...' if self._n > 3 else ''}], n={self._n})"
+
+
+def _names(names: Sequence[object] | None, count: int, prefix: str, what: str
+           ) -> tuple[str, ...] | NameList:
     if names is None:
-        return tuple(f"{prefix}{i}" for i in range(count))
+        return NameList.prefixed(prefix, count) if count > 1000 else tuple(
+            f"{prefix}{i}" for i in range(count))
+    if isinstance(names, NameList):
+        if len(names) != count:
+            raise InvalidSystemError(f"{what}: expected {count} names, found {len(names)}.")
+        return names
     out = tuple(str(x) for x in names)
     if len(out) != count:
         raise InvalidSystemError(f"{what}: expected {count} names, found {len(out)}.")
@@ -110,6 +203,9 @@ class StructuredSystem:
     indices sorted). Instances are immutable: methods that change something return a
     new system.
 
+    Arrays of an input that is already a canonical float64 CSR matrix with int64 indices
+    are shared (as read-only views), not copied: do not modify them afterwards.
+
     Attributes
     ----------
     A, B, C : scipy.sparse.csr_array
@@ -129,9 +225,9 @@ class StructuredSystem:
     A: sp.csr_array
     B: sp.csr_array
     C: sp.csr_array
-    state_names: tuple[str, ...]
-    input_names: tuple[str, ...]
-    output_names: tuple[str, ...]
+    state_names: Sequence[str]
+    input_names: Sequence[str]
+    output_names: Sequence[str]
     nodes: Mapping[str, np.ndarray] = field(default_factory=dict)
     weighted: bool = False
     model: str = "given"
@@ -146,9 +242,12 @@ class StructuredSystem:
             self.C.shape[0] if hasattr(self.C, "shape") else np.asarray(self.C).shape[0])
         B = canonical_csr(sp.csr_array((n, m)) if self.B is None else self.B, (n, m), "B")
         C = canonical_csr(sp.csr_array((p, n)) if self.C is None else self.C, (p, n), "C")
-        states = _names(self.state_names or None, n, "x", "state names")
-        inputs = _names(self.input_names or None, m, "u", "input names")
-        outputs = _names(self.output_names or None, p, "y", "output names")
+        states = _names(self.state_names if len(self.state_names) else None, n, "x",
+                        "state names")
+        inputs = _names(self.input_names if len(self.input_names) else None, m, "u",
+                        "input names")
+        outputs = _names(self.output_names if len(self.output_names) else None, p, "y",
+                         "output names")
         nodes: dict[str, np.ndarray] = {}
         for key, col in dict(self.nodes).items():
             arr = np.array(col, copy=True)
@@ -261,7 +360,7 @@ class StructuredSystem:
         if not weighted:
             A.sum_duplicates()
             A.data[:] = 1.0
-        sys_ = cls(A=A, B=None, C=None, state_names=tuple(state_names or ()), input_names=(),
+        sys_ = cls(A=A, B=None, C=None, state_names=_seq(state_names), input_names=(),
                    output_names=(), nodes=dict(nodes or {}), weighted=weighted, model=model)
         if inputs is not None:
             sys_ = sys_.with_inputs(inputs)
@@ -328,8 +427,8 @@ class StructuredSystem:
             C = sp.csr_array((0, n))
         if _is_bool(A):
             weighted = False
-        return cls(A=A, B=B, C=C, state_names=tuple(state_names or ()),
-                   input_names=tuple(input_names or ()), output_names=tuple(output_names or ()),
+        return cls(A=A, B=B, C=C, state_names=_seq(state_names),
+                   input_names=_seq(input_names), output_names=_seq(output_names),
                    nodes=dict(nodes or {}), weighted=weighted, model=model)
 
     @classmethod
@@ -410,23 +509,24 @@ class StructuredSystem:
         if pool is None:
             raise InvalidSystemError(f"kind must be 'state', 'input' or 'output', found {kind!r}.")
         lookup = self._index.get(kind)
-        if lookup is None:
+        if lookup is None and not isinstance(pool, NameList):
             lookup = {name: i for i, name in enumerate(pool)}  # type: ignore[assignment]
             self._index[kind] = lookup  # type: ignore[assignment]
         out = []
         for name in names:
             key = str(name)
-            if key in lookup:  # type: ignore[operator]
-                out.append(lookup[key])  # type: ignore[index]
+            pos = pool.position(key) if isinstance(pool, NameList) else lookup.get(key)  # type: ignore[union-attr]
+            if pos is not None:
+                out.append(pos)
             elif isinstance(name, (int, np.integer)) and 0 <= int(name) < len(pool):
                 out.append(int(name))
             else:
                 import difflib
-                close = difflib.get_close_matches(key, pool, n=3)
+                close = difflib.get_close_matches(key, pool, n=3) if len(pool) <= 100_000 else []
                 hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
                 raise UnknownNameError(
                     f"unknown {kind} name {key!r}: the system has {len(pool)} {kind}s"
-                    f" (e.g. {', '.join(map(repr, pool[:3]))}).{hint}")
+                    f" (e.g. {', '.join(map(repr, list(pool[:3])))}).{hint}")
         return np.asarray(out, dtype=np.int64)
 
     def names_of(self, indices: Iterable[int], *, kind: str = "state") -> list[str]:
@@ -542,6 +642,15 @@ def _count_unique_pairs(rows: np.ndarray, cols: np.ndarray, n: int) -> int:
         return 0
     key = rows.astype(np.int64) * max(n, 1) + cols.astype(np.int64)
     return int(np.unique(key).size)
+
+
+def _seq(names: Any) -> Sequence[object]:
+    """Names as given (a NameList stays lazy), or an empty tuple for None."""
+    if names is None:
+        return ()
+    if isinstance(names, NameList):
+        return names
+    return tuple(names)
 
 
 def _shape(M: Any, what: str) -> tuple[int, ...]:

@@ -12,12 +12,13 @@ __all__ = ["strongly_connected_components", "condensation_sources", "reachable_f
 def _tarjan(indptr, indices):  # pragma: no cover - compiled
     """Iterative Tarjan; labels renumbered by each component's smallest vertex."""
     n = indptr.size - 1
-    index = np.full(n, -1, np.int64)
-    low = np.zeros(n, np.int64)
+    # vertex ids and DFS numbers fit in int32 (n < 2**31); edge positions stay int64
+    index = np.full(n, -1, np.int32)
+    low = np.zeros(n, np.int32)
     onstack = np.zeros(n, np.bool_)
-    stack = np.empty(n, np.int64)
+    stack = np.empty(n, np.int32)
     comp = np.full(n, -1, np.int64)
-    call_v = np.empty(n, np.int64)
+    call_v = np.empty(n, np.int32)
     call_pos = np.empty(n, np.int64)
     sp_ = 0
     ncomp = 0

@@ -167,12 +167,14 @@ def _karp_sipser(indptr, indices, tptr, tind, n_cols, row_match, col_match):  # 
 def _pothen_fan(indptr, indices, n_cols, row_match, col_match):  # pragma: no cover
     """Complete a matching to a maximum one: Pothen–Fan DFS with lookahead (PF+)."""
     n_rows = indptr.size - 1
+    # vertex ids and phase numbers fit in int32 (checked by the caller); positions into
+    # ``indices`` stay int64. This keeps the working memory near two CSR index arrays.
     lookahead = indptr[:-1].copy()
-    visited = np.full(n_cols, -1, np.int64)
-    stack_row = np.empty(n_rows + 1, np.int64)
+    visited = np.full(n_cols, -1, np.int32)
+    stack_row = np.empty(n_rows + 1, np.int32)
     stack_pos = np.empty(n_rows + 1, np.int64)
-    stack_col = np.empty(n_rows + 1, np.int64)
-    free = np.empty(n_rows, np.int64)
+    stack_col = np.empty(n_rows + 1, np.int32)
+    free = np.empty(n_rows, np.int32)
     n_free = 0
     for r in range(n_rows):
         if row_match[r] == -1 and indptr[r + 1] > indptr[r]:
@@ -303,6 +305,9 @@ def maximum_matching(
     indptr = np.ascontiguousarray(indptr, dtype=np.int64)
     indices = np.ascontiguousarray(indices, dtype=np.int64)
     n_rows = indptr.size - 1
+    if max(n_rows, n_cols) >= 2**31 - 1:
+        raise ValueError(f"the matching kernel handles fewer than 2**31 rows and columns, "
+                         f"found {n_rows} x {n_cols}.")
     rm = np.full(n_rows, -1, np.int64) if row_match is None else np.array(row_match, np.int64)
     cm = np.full(n_cols, -1, np.int64) if col_match is None else np.array(col_match, np.int64)
     if n_rows and n_cols and indices.size:
