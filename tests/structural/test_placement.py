@@ -155,7 +155,7 @@ def test_dedicated_min_cost_equals_brute_force():
     rng = np.random.default_rng(6001)
     n_infeasible = 0
     for trial in range(300):
-        s = _random_system(rng)
+        s = _random_system(rng, n_max=6)
         n = s.n_states
         eligible = rng.random(n) < 0.75
         cost = rng.integers(0, 6, n).astype(float)
