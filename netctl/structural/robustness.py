@@ -704,6 +704,12 @@ class AttackCurve:
                                                    self.n_inputs, self.driver_fraction)],
         }
 
+    def xy(self, *, fraction: bool = True) -> tuple[np.ndarray, np.ndarray]:
+        """``(share removed, N_D / states left)`` (or ``N_D`` with ``fraction=False``),
+        the ``(x, y)`` pair that :func:`netctl.viz.plot_attack_curves` draws."""
+        return self.fraction_removed, (self.driver_fraction if fraction else
+                                       self.n_inputs.astype(np.float64))
+
     CSV_HEADER = ("strategy,elements,n_removed,fraction_removed,states_left,links_left,"
                   "n_inputs,driver_fraction")
 
