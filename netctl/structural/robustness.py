@@ -952,8 +952,9 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     """The changed system, the names of new states, and the inputs left acting on nothing.
 
     Links are ``(source, target)`` state-name pairs; a name in ``add_links`` that the
-    system lacks becomes a new state (appended). Added links get weight 1.0 in a
-    weighted system. Removing a state removes its links and its input connections;
+    system lacks becomes a new state (appended); when every existing state has
+    self-dynamics (a self-loop, as under the ``self-loops`` model) the new states get one
+    too. Added links get weight 1.0 in a weighted system. Removing a state removes its links and its input connections;
     inputs left acting on no state are dropped.
     """
     names = list(system.state_names)
@@ -988,9 +989,12 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
             raise InvalidSystemError(f"add_links: the link {u!r} -> {v!r} is already there; "
                                      "list only new links.")
     N = len(all_names)
-    s2 = np.concatenate([src[keep_link], add_src])
-    t2 = np.concatenate([tgt[keep_link], add_tgt])
-    w2 = np.concatenate([_edge_weights(system)[keep_link], np.ones(add_src.size)])
+    n0 = system.n_states
+    loops = np.arange(n0, N, dtype=np.int64) if (
+        new and n0 and system.n_self_loops == n0) else np.zeros(0, np.int64)
+    s2 = np.concatenate([src[keep_link], add_src, loops])
+    t2 = np.concatenate([tgt[keep_link], add_tgt, loops])
+    w2 = np.concatenate([_edge_weights(system)[keep_link], np.ones(add_src.size + loops.size)])
     A = sp.coo_array((w2, (t2, s2)), shape=(N, N)).tocsr()
     B = sp.vstack([system.B, sp.csr_array((len(new), system.n_inputs))], format="csr")
     C = sp.hstack([system.C, sp.csr_array((system.n_outputs, len(new)))], format="csr")

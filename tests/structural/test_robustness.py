@@ -274,3 +274,15 @@ def test_what_if_errors_and_inputs_lost():
     assert w.inputs_lost == ("u:x0",) and w.controllable_after is False
     d = w.to_dict()
     assert d["change"]["inputs_lost"] == ["u:x0"] and d["breaks_design"] is True
+
+
+def test_what_if_new_states_follow_the_self_loop_model():
+    # Under self-dynamics on every state, a new unit gets its self-loop too; with a
+    # self-loop on every state A has a perfect matching, so N_D stays 1 (Liu et al. 2011).
+    s = directed_path(3).with_self_loops()
+    w = what_if(s, add_links=[("x2", "tank")])
+    A = w.after.A.toarray() != 0
+    assert A[3, 3] and A[3, 2] and w.after.n_links == s.n_links + 2
+    assert w.n_inputs_after == n_d(A) == 1
+    plain = what_if(directed_path(3), add_links=[("x2", "tank")])
+    assert plain.after.n_self_loops == 0
