@@ -47,8 +47,8 @@ class _Parser(argparse.ArgumentParser):
         raise SystemExit(2)
 
 
-def _common_parser() -> argparse.ArgumentParser:
-    common = argparse.ArgumentParser(add_help=False)
+def _common_parser() -> _Parser:
+    common = _Parser(add_help=False)
     common.add_argument("file", metavar="FILE", help="network or system file "
                         "(edge list, Matrix Market, ...; see docs/FORMATS.md)")
     common.add_argument("--format", choices=sorted(FORMATS), default=None,

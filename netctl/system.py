@@ -644,7 +644,7 @@ def _count_unique_pairs(rows: np.ndarray, cols: np.ndarray, n: int) -> int:
     return int(np.unique(key).size)
 
 
-def _seq(names: Any) -> Sequence[object]:
+def _seq(names: Any) -> Any:
     """Names as given (a NameList stays lazy), or an empty tuple for None."""
     if names is None:
         return ()
@@ -679,7 +679,7 @@ def _py(v: Any) -> Any:
     return v
 
 
-def _node_table_from_attrs(attrs: list[Mapping[str, Any]]) -> dict[str, np.ndarray]:
+def _node_table_from_attrs(attrs: Sequence[Mapping[str, Any]]) -> dict[str, np.ndarray]:
     """Turn per-node attribute dicts into node-table columns.
 
     Known numeric columns become float (NaN where missing); ``actuator``/``sensor``

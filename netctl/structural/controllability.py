@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -95,8 +96,8 @@ class ControllabilityReport:
     dilation: Dilation | None
     controllable_dimension: int | None
     fix: np.ndarray
-    state_names: tuple[str, ...] = field(repr=False)
-    input_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
+    input_names: Sequence[str] = field(repr=False)
     model: str = "given"
 
     @property

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -49,7 +50,7 @@ class InputDesign:
     matching_size: int
     n_source_components: int
     n_sources_with_unmatched: int
-    state_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
     model: str = "given"
 
     def names(self, indices: Any) -> list[str]:
