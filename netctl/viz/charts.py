@@ -228,8 +228,8 @@ def plot_role_composition(composition: Mapping[str, Sequence[float]], *,
     ax.set_xlim(0, 1)
     ax.set_xlabel("share")
     ax.set_title(title, loc="left", fontsize=10)
-    ax.legend(frameon=False, fontsize=8, ncols=len(roles), loc="lower left",
-              bbox_to_anchor=(0, 1.08), borderaxespad=0)
+    ax.legend(frameon=False, fontsize=8, loc="center left", bbox_to_anchor=(1.01, 0.5),
+              borderaxespad=0)
     return ax
 
 
