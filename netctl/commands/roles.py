@@ -56,8 +56,10 @@ def _cmd_roles(args: argparse.Namespace) -> int:
     d = {"analysis": "roles", "file": args.file, "n_states": nr.n_states,
          "n_links": lr.n_links, "model": system.model, "n_inputs": nr.n_inputs,
          "structural_rank_A": nr.matching_size, "perfect_matching": nr.perfect_matching,
-         "node_basis": nr.basis, "counts": {"nodes": nr.counts(), "links": lr.counts()},
-         "nodes": nr.to_dict()["nodes"], "links": lr.to_dict()["links"]}
+         "node_basis": nr.basis, "counts": {"nodes": nr.counts(), "links": lr.counts()}}
+    if args.json or args.out:  # the full tables only when they are printed or written
+        d["nodes"] = nr.to_dict()["nodes"]
+        d["links"] = lr.to_dict()["links"]
     nc, lc = nr.counts(), lr.counts()
     lines = [f"{args.file}: {nr.n_states} states, {lr.n_links} links, model {system.model}",
              f"  minimum inputs: {nr.n_inputs} (structural rank of A {nr.matching_size} of "
