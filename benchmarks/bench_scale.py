@@ -5,6 +5,7 @@ Run by hand (not part of the test suite)::
     python3 benchmarks/bench_scale.py e2e   --links 10000000 --nodes 3000000
     python3 benchmarks/bench_scale.py raw   --links 10000000 --nodes 3000000 --match-links 1000000
     python3 benchmarks/bench_scale.py batch --tasks 64 --workers 2 --batch-links 300000
+    python3 benchmarks/bench_scale.py compare --samples 4 --workers 2
 
 ``e2e`` generates a directed random network (uniform random link ends, no self-loops,
 no repeated links; states without links written as single-name lines so nothing is
@@ -393,6 +394,31 @@ def mode_batch(a: argparse.Namespace) -> dict[str, Any]:
     return res
 
 
+def mode_compare(a: argparse.Namespace) -> dict[str, Any]:
+    """``netctl compare`` on the big network: K configuration-model samples on W workers."""
+    d = Path(a.dir)
+    info = prepare(d, a.links, a.nodes)
+    res: dict[str, Any] = {"uptime_before": uptime(), "samples": a.samples,
+                           "workers": a.workers}
+    cmd = [sys.executable, "-m", "netctl.cli", "compare", info["npz"], "--samples",
+           str(a.samples), "--seed", "1", "--workers", str(a.workers), "--json"]
+    t = time.perf_counter()
+    r = subprocess.run(cmd, capture_output=True, text=True, cwd=ROOT, preexec_fn=_limit,
+                       env=dict(os.environ, PYTHONPATH=str(ROOT)))
+    res["seconds"] = time.perf_counter() - t
+    res["exit"] = r.returncode
+    res["children_peak_mib"] = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024
+    if r.returncode == 0:
+        out = json.loads(r.stdout)
+        res.update({k: out[k] for k in ("n_states", "n_links", "observed_n_inputs",
+                                        "null_mean", "null_std", "z_score",
+                                        "predicted_fraction", "observed_fraction")})
+    else:
+        res["stderr"] = r.stderr[-2000:]
+    res["uptime_after"] = uptime()
+    return res
+
+
 def main() -> None:
     if len(sys.argv) > 1 and sys.argv[1] == "_stage":
         kind, rest = sys.argv[2], sys.argv[3:]
@@ -407,7 +433,8 @@ def main() -> None:
         print(json.dumps(r))
         return
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    p.add_argument("mode", choices=["e2e", "raw", "batch"])
+    p.add_argument("mode", choices=["e2e", "raw", "batch", "compare"])
+    p.add_argument("--samples", type=int, default=4)
     p.add_argument("--links", type=int, default=10_000_000)
     p.add_argument("--nodes", type=int, default=3_000_000)
     p.add_argument("--match-links", type=int, default=1_000_000)
@@ -418,7 +445,8 @@ def main() -> None:
     a = p.parse_args()
     res = {"mode": a.mode, "python": platform.python_version(), "date": time.strftime(
         "%Y-%m-%d %H:%M:%S UTC", time.gmtime())}
-    res.update({"e2e": mode_e2e, "raw": mode_raw, "batch": mode_batch}[a.mode](a))
+    res.update({"e2e": mode_e2e, "raw": mode_raw, "batch": mode_batch,
+                "compare": mode_compare}[a.mode](a))
     print(json.dumps(res, indent=2))
 
 
