@@ -30,8 +30,10 @@ class InputDesign:
         The states acted on (read) directly, sorted.
     unmatched : ndarray of int
         The states left unmatched by the chosen maximum matching (Liu et al. 2011).
-    wiring : tuple of ndarray
-        For each input, the states it acts on.
+    wiring_indptr, wiring_states : ndarray of int
+        Input ``k`` acts on ``wiring_states[wiring_indptr[k]:wiring_indptr[k+1]]`` (CSR
+        form, so a design with 10^5 inputs holds two arrays, not 10^5 objects);
+        :attr:`wiring` gives the same as a tuple of arrays.
     matching_size : int
         Size of a maximum matching of ``A`` (its structural rank).
     n_source_components : int
@@ -46,7 +48,8 @@ class InputDesign:
     n_inputs: int
     drivers: np.ndarray
     unmatched: np.ndarray
-    wiring: tuple[np.ndarray, ...]
+    wiring_indptr: np.ndarray
+    wiring_states: np.ndarray
     matching_size: int
     n_source_components: int
     n_sources_with_unmatched: int
@@ -57,18 +60,26 @@ class InputDesign:
         return [self.state_names[int(i)] for i in indices]
 
     @property
+    def wiring(self) -> tuple[np.ndarray, ...]:
+        """For each input, the states it acts on (sorted)."""
+        p, w = self.wiring_indptr, self.wiring_states
+        return tuple(w[p[k]:p[k + 1]] for k in range(p.size - 1))
+
+    @property
     def driver_names(self) -> list[str]:
         return self.names(self.drivers)
 
     def apply(self, system: StructuredSystem) -> StructuredSystem:
         """``system`` with this design's inputs (or outputs, for sensors) installed."""
         n = system.n_states
-        rows = np.concatenate(self.wiring) if self.wiring else np.zeros(0, np.int64)
-        cols = np.repeat(np.arange(len(self.wiring)), [w.size for w in self.wiring])
-        M = sp.coo_array((np.ones(rows.size), (rows, cols)), shape=(n, len(self.wiring)))
+        k = self.wiring_indptr.size - 1
+        rows = self.wiring_states
+        cols = np.repeat(np.arange(k), np.diff(self.wiring_indptr))
+        M = sp.coo_array((np.ones(rows.size), (rows, cols)), shape=(n, k))
         prefix = "u" if self.kind == "inputs" else "y"
-        names = [f"{prefix}:{self.state_names[int(w[0])]}" if w.size == 1 else f"{prefix}{k}"
-                 for k, w in enumerate(self.wiring)]
+        sizes = np.diff(self.wiring_indptr)
+        names = [f"{prefix}:{self.state_names[int(rows[self.wiring_indptr[j]])]}"
+                 if sizes[j] == 1 else f"{prefix}{j}" for j in range(k)]
         if self.kind == "inputs":
             return system.with_inputs(M, names=names)
         return system.with_outputs(M.T, names=names)
@@ -162,17 +173,23 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
     comp = completion(system.A, sp.csr_array((n, 0)), st)
     drivers = comp.states
     unmatched = comp.unmatched
+    reps = comp.representatives
     if dedicated or n == 0:
-        wiring = tuple(np.array([i], np.int64) for i in drivers)
+        # one input per driven state
+        ptr = np.arange(drivers.size + 1, dtype=np.int64)
+        states = drivers.astype(np.int64)
     elif unmatched.size:
-        wiring_l = [np.array([i], np.int64) for i in unmatched]
-        wiring_l[0] = np.union1d(wiring_l[0], comp.representatives).astype(np.int64)
-        wiring = tuple(wiring_l)
+        # input k acts on unmatched state k; input 0 also on the unreached sources' states
+        first = np.union1d(unmatched[:1], reps).astype(np.int64)
+        states = np.concatenate([first, unmatched[1:]]).astype(np.int64)
+        ptr = np.concatenate([[0], first.size + np.arange(unmatched.size, dtype=np.int64)])
     else:
-        wiring = (comp.representatives.copy(),)
+        ptr = np.array([0, reps.size], np.int64)
+        states = reps.astype(np.int64)
     return InputDesign(
-        kind=kind, dedicated=dedicated, n_states=n, n_inputs=len(wiring), drivers=drivers,
-        unmatched=unmatched, wiring=wiring, matching_size=comp.matching_size,
+        kind=kind, dedicated=dedicated, n_states=n, n_inputs=int(ptr.size - 1),
+        drivers=drivers, unmatched=unmatched, wiring_indptr=ptr, wiring_states=states,
+        matching_size=comp.matching_size,
         n_source_components=int(np.count_nonzero(st.source_scc)),
         n_sources_with_unmatched=comp.n_sources_hit, state_names=system.state_names,
         model=system.model)
