@@ -94,8 +94,12 @@ def _cmd_verify(args: argparse.Namespace) -> int:
              f" (generic dimension {v.structural_dimension} of {v.n_states})"]
     for k, (sd, r) in enumerate(zip(v.seeds, v.samples)):
         dim = "inconclusive" if r.dimension is None else r.dimension
+        exact = v.exact_dimensions[k] if k < len(v.exact_dimensions) else None
+        note = (f" (close to rounding; exact over a prime field: {exact})" if exact is not None
+                else " (close to rounding: uncertain)" if v.sample_uncertain(k) else "")
         lines.append(f"  sample {k} (seed {sd}): dimension {dim}, margin "
-                     f"{r.margin:.3g} decades -- {'agrees' if v.sample_agrees(k) else 'DISAGREES'}")
+                     f"{r.margin:.3g} decades{note} -- "
+                     f"{'agrees' if v.sample_agrees(k) else 'DISAGREES'}")
     if not v.agrees:
         lines.append("  " + "!" * 72)
     for f in v.findings:

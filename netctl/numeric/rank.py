@@ -174,18 +174,21 @@ class _Decisions:
         return r
 
 
-def _apply_q(qr: np.ndarray, tau: np.ndarray, A: np.ndarray, k0: int) -> None:
-    """A <- Q^H A Q on the trailing index range ``k0:`` (Q from Householder ``qr``)."""
+def _apply_q(qr: np.ndarray, tau: np.ndarray, A: np.ndarray, k0: int, c0: int = 0) -> None:
+    """A <- Q^H A Q on the trailing index range ``k0:`` (Q from Householder ``qr``).
+
+    Rows ``k0:`` are zero left of column ``c0`` (staircase structure), so the left
+    product skips those columns."""
     cplx = np.iscomplexobj(A)
     name = "unmqr" if cplx else "ormqr"
     (mqr,) = la.get_lapack_funcs((name,), (A,))
     trans = "C" if cplx else "T"
-    rows = A[k0:, :]
-    lwork = max(1, 64 * max(rows.shape))
+    rows = A[k0:, c0:]
+    lwork = max(1, 64 * A.shape[0])
     out, _, info = mqr("L", trans, qr, tau, rows, lwork)
     if info != 0:  # pragma: no cover - LAPACK argument error
         raise RuntimeError(f"LAPACK {name} failed (info={info})")
-    A[k0:, :] = out
+    A[k0:, c0:] = out
     cols = A[:, k0:]
     out, _, info = mqr("R", "N", qr, tau, cols, lwork)
     if info != 0:  # pragma: no cover
@@ -207,6 +210,7 @@ def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
     dec = _Decisions()
     blocks: list[int] = []
     k0 = 0
+    c0 = 0  # first column of the current block (0 while the block is B)
     X = np.asarray(B, dtype=dtype)
     while k0 < n and X.shape[1] > 0:
         if X.shape[1] == 1:
@@ -218,7 +222,7 @@ def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
             break
         basis = X / s[0] if X.shape[1] == 1 else U[:, :r]
         (qr, tau), _ = la.qr(np.asarray(basis, order="F"), mode="raw")
-        _apply_q(qr, tau, A, k0)
+        _apply_q(qr, tau, A, k0, c0)
         blocks.append(r)
         k0 += r
         if r == 1 and k0 < n:
@@ -237,7 +241,8 @@ def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
             k0 += stop
             Au = H[1 + stop:, 1 + stop:] if k0 < n else np.zeros((0, 0), dtype)
             return k0, blocks, dec, Au
-        X = A[k0:, k0 - r:k0]
+        c0 = k0 - r
+        X = A[k0:, c0:k0]
     return k0, blocks, dec, A[k0:, k0:]
 
 

@@ -21,10 +21,12 @@ from netctl.numeric.rank import (
 from netctl.numeric.realize import PARAMETERIZATIONS, realize
 from netctl.system import StructuredSystem
 
-__all__ = ["Verification", "verify", "METHODS", "AUTO_DENSE_LIMIT"]
+__all__ = ["Verification", "verify", "METHODS", "AUTO_DENSE_LIMIT", "UNCERTAIN_DECADES"]
 
 METHODS = ("auto", "staircase", "pbh", "modular", "certificate")
 AUTO_DENSE_LIMIT = 3000
+UNCERTAIN_DECADES = 2.0
+EXACT_CHECK_LIMIT = 2000
 _DETERMINISTIC = ("uniform", "given")
 
 
@@ -41,6 +43,10 @@ class Verification:
         One numeric test per sample (sample ``k`` uses seed ``seed + k``).
     agrees : bool
         Every sample's numeric dimension equals the structural one.
+    exact_dimensions : tuple of int or None
+        For samples whose rank decision was close to rounding (margin below
+        ``UNCERTAIN_DECADES``): the exact dimension from :func:`modular` for the same
+        parameterization (``None`` where not run); it then decides agreement.
     lost_modes : tuple of LostMode
         For the first disagreeing sample: the uncontrollable modes and the states that
         carry them (PBH); empty when all agree.
@@ -62,6 +68,7 @@ class Verification:
     findings: tuple[str, ...]
     state_names: tuple[str, ...] = field(repr=False)
     input_names: tuple[str, ...] = field(repr=False)
+    exact_dimensions: tuple[int | None, ...] = ()
 
     def names(self, indices: Any) -> list[str]:
         """State names (of the realized system) for state indices."""
@@ -69,7 +76,15 @@ class Verification:
 
     def sample_agrees(self, k: int) -> bool:
         """Whether sample ``k`` agrees with the structural verdict."""
+        exact = self.exact_dimensions[k] if k < len(self.exact_dimensions) else None
+        if exact is not None:
+            return exact == self.structural_dimension
         return _agrees(self.samples[k], self.structural_dimension, self.n_states)
+
+    def sample_uncertain(self, k: int) -> bool:
+        """Whether sample ``k``'s rank decision lies within ``UNCERTAIN_DECADES`` of
+        rounding."""
+        return _uncertain(self.samples[k])
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready dictionary (names, not indices)."""
@@ -85,7 +100,11 @@ class Verification:
             "structural_controllable": self.structural_controllable,
             "structural_dimension": self.structural_dimension,
             "agrees": self.agrees,
-            "samples": [dict(seed=s, agrees=self.sample_agrees(k), **r.to_dict())
+            "samples": [dict(seed=s, agrees=self.sample_agrees(k),
+                             uncertain=self.sample_uncertain(k),
+                             exact_dimension=(self.exact_dimensions[k]
+                                              if k < len(self.exact_dimensions) else None),
+                             **r.to_dict())
                         for k, (s, r) in enumerate(zip(self.seeds, self.samples))],
             "lost_modes": [{"eigenvalue": [round(complex(m.eigenvalue).real, 12),
                                            round(complex(m.eigenvalue).imag, 12)],
@@ -93,6 +112,10 @@ class Verification:
                            for m in self.lost_modes],
             "findings": list(self.findings),
         }
+
+
+def _uncertain(r: RankTest) -> bool:
+    return r.method in ("staircase", "pbh") and r.margin < UNCERTAIN_DECADES
 
 
 def _agrees(r: RankTest, structural: int, n: int) -> bool:
@@ -191,7 +214,16 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
         else:
             results.append(sparse_certificate(system if weights == "independent" else real,
                                               seed=sd, weights=weights))
-    bad = [k for k, r in enumerate(results) if not _agrees(r, s_dim, n)]
+    # a rank decision close to rounding is settled by exact arithmetic where possible
+    exact: list[int | None] = []
+    for k, (sd, r) in enumerate(zip(seeds, results)):
+        if (_uncertain(r) and r.dimension != s_dim and weights in MODULAR_WEIGHTS
+                and n <= EXACT_CHECK_LIMIT):
+            exact.append(modular(system, weights=weights, seed=sd).dimension)
+        else:
+            exact.append(None)
+    bad = [k for k, r in enumerate(results)
+           if not (exact[k] == s_dim if exact[k] is not None else _agrees(r, s_dim, n))]
     lost: tuple[LostMode, ...] = ()
     findings: list[str] = []
     if bad:
@@ -201,6 +233,8 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
         if n <= DENSE_LIMIT:
             lost = pbh(real).lost_modes
         dim_text = "inconclusive" if r.dimension is None else str(r.dimension)
+        if exact[k] is not None:
+            dim_text += f" (exact over a prime field: {exact[k]})"
         findings.append(
             f"NUMERIC CHECK DISAGREES WITH THE STRUCTURAL VERDICT: under '{weights}' weights "
             f"sample {k} (seed {seeds[k]}) has controllable dimension {dim_text}, the "
@@ -214,7 +248,15 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
                 f"lost mode at eigenvalue {_fmt(m.eigenvalue)} ({m.n_lost} direction(s)), "
                 f"carried by states {{{shown}}}; an input acts on it only through these "
                 "states, and each lost direction needs its own input.")
-        if weights == "independent":
+        if _uncertain(r) and exact[k] is None:
+            findings.append(f"the rank decision is close to rounding (margin {r.margin:.3g} "
+                            "decades): nearly uncontrollable directions; the numeric "
+                            "dimension is uncertain, not necessarily wrong.")
+        if r.dimension is not None and r.dimension > s_dim:
+            findings.append("the numeric dimension exceeds the generic one, which no "
+                            "realization can do: this is rounding, not the network "
+                            f"(margin {r.margin:.3g} decades).")
+        elif weights == "independent":
             findings.append("with independent random weights a disagreement points at "
                             f"rounding: look at the margin ({r.margin:.3g} decades) and "
                             "try another method (pbh, modular).")
@@ -224,6 +266,13 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
                 "structure-induced: graph symmetries with identical or symmetric couplings "
                 "make modes unreachable although the pattern is structurally controllable "
                 "(Rahmani et al. 2009).")
+    if any(x is not None for x in exact):
+        findings.append(
+            f"{sum(x is not None for x in exact)} sample(s) had a rank decision within "
+            f"{UNCERTAIN_DECADES:g} decades of rounding (nearly uncontrollable directions); "
+            f"exact arithmetic over a prime field (same '{weights}' family) settled them.")
+    if bad:
+        pass
     elif structural.controllable:
         findings.append(f"all {k_samples} sample(s) confirm the structural verdict: "
                         f"controllable, dimension {n}.")
@@ -235,7 +284,8 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
         model=first.model, structural_controllable=structural.controllable,
         structural_dimension=s_dim, samples=tuple(results), seeds=seeds,
         agrees=not bad, lost_modes=tuple(lost), findings=tuple(findings),
-        state_names=first.state_names, input_names=first.input_names)
+        state_names=first.state_names, input_names=first.input_names,
+        exact_dimensions=tuple(exact))
 
 
 def _fmt(z: complex) -> str:
