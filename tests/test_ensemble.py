@@ -218,6 +218,17 @@ def test_compare_keeps_self_loops_and_says_so():
     assert r.to_dict()["n_self_loops"] == 1
 
 
+def test_compare_edge_cases_empty_and_linkless():
+    empty = compare_to_null(StructuredSystem.from_edges([], [], 0), samples=2, executor="serial")
+    assert empty.observed_n_inputs == 0 and empty.to_dict()["observed_fraction"] is None
+    json.dumps(empty.to_dict(), allow_nan=False)  # strict JSON: no NaN
+    lonely = compare_to_null(StructuredSystem.from_edges([], [], 3), samples=2,
+                             executor="serial")
+    assert lonely.observed_n_inputs == 3 and lonely.samples.tolist() == [3, 3]
+    assert lonely.prediction is None and "no links" in lonely.notes[0]
+    assert lonely.z_score is None
+
+
 def test_compare_option_errors():
     system = StructuredSystem.from_edges([0], [1], 2)
     with pytest.raises(OptionError, match=r"unknown null model 'rewire'; choose one of degree"):

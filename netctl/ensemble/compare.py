@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -60,7 +59,7 @@ class NullComparison:
     @property
     def mean(self) -> float:
         """Ensemble mean of the minimum inputs."""
-        return float(self.samples.mean()) if self.samples.size else math.nan
+        return float(self.samples.mean()) if self.samples.size else 0.0
 
     @property
     def std(self) -> float:
@@ -74,9 +73,9 @@ class NullComparison:
             return None
         return (self.observed_n_inputs - self.mean) / self.std
 
-    def fraction(self, count: float) -> float:
-        """``count / n_states`` (NaN without states)."""
-        return count / self.n_states if self.n_states else math.nan
+    def fraction(self, count: float) -> float | None:
+        """``count / n_states`` (``None`` without states)."""
+        return count / self.n_states if self.n_states else None
 
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready dictionary."""
