@@ -352,10 +352,15 @@ def _factorize_ints(src: np.ndarray, dst: np.ndarray, iso: np.ndarray
         ids = np.cumsum(present, dtype=np.int64) - 1
         uniq = np.flatnonzero(present) + lo
         src, dst = ids[src - lo], ids[dst - lo]
-    else:
-        uniq, inv = np.unique(np.concatenate([src, dst, iso]), return_inverse=True)
-        src, dst = inv[:src.size].astype(np.int64), inv[src.size:src.size + dst.size].astype(
-            np.int64)
+    else:  # sort-based factorization (np.unique's hash path is slower on large arrays)
+        allv = np.concatenate([src, dst, iso])
+        order = np.argsort(allv, kind="stable")
+        sv = allv[order]
+        new = np.concatenate([[True], sv[1:] != sv[:-1]])
+        uniq = sv[new]
+        inv = np.empty(allv.size, np.int64)
+        inv[order] = np.cumsum(new) - 1
+        src, dst = inv[:src.size], inv[src.size:src.size + dst.size]
     return tuple(uniq.astype(str).tolist()), (src, dst)
 
 
