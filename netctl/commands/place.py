@@ -92,6 +92,12 @@ def _cmd_place(args: argparse.Namespace) -> int:
     return 0 if result.goal_met else 1
 
 
+def _rank_limit() -> int:
+    from netctl.structural.target import TARGET_RANK_MAX_STATES
+
+    return TARGET_RANK_MAX_STATES
+
+
 def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
           caution: str) -> str:
     from netctl.cli import _names_line
@@ -122,6 +128,9 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
     lines.append(f"  guarantee: {r.guarantee}")
     if r.verified is not None:
         lines.append(f"  check ({check_name}): {'passed' if r.verified else 'NOT passed'}")
+    elif r.feasible and r.problem == "target":
+        lines.append(f"  check ({check_name}): skipped (dense rank limited to "
+                     f"{_rank_limit()} states)")
     if not r.goal_met:
         lines.append("  goal NOT met:")
         lines.extend(f"    - {x}" for x in r.reasons)

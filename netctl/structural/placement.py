@@ -704,6 +704,10 @@ def _resolve_candidates(system: StructuredSystem, kind: str, sites: Sites | None
         if not isinstance(candidates, Candidates):
             raise OptionError(f"candidates must be a Candidates object (see read_candidates), "
                               f"found {type(candidates).__name__}.")
+        c = np.asarray(candidates.cost, np.float64)
+        if c.shape != (candidates.n_candidates,) or not np.all(np.isfinite(c)) or np.any(c < 0):
+            raise OptionError(f"candidate costs must be one finite number >= 0 per candidate "
+                              f"({candidates.n_candidates}), found {c.tolist()[:5]!r}.")
         if candidates.indices.size and int(candidates.indices.max()) >= n:
             raise OptionError(f"candidates refer to state index {int(candidates.indices.max())}"
                               f" but the system has {n} states; build them for this system.")
@@ -897,8 +901,9 @@ def _infeasibility(work: StructuredSystem, prob: _Reduced, cands: Candidates) ->
             reasons.append(
                 f"no eligible {word} {'is in' if cands.dedicated else 'acts on'} the source "
                 f"component {{{_short([names[i] for i in members])}}}: nothing else influences "
-                f"these states, so an actuator must act on one of them; make one of them "
-                f"eligible{' (or add a candidate acting on it)' if not cands.dedicated else ''}.")
+                f"these states, so an actuator must act on one of them; "
+                + ("make one of them eligible." if cands.dedicated else
+                   "add a candidate actuator acting on one of them."))
         if len(groups) > _MAX_LISTED:
             reasons.append(f"... and {len(groups) - _MAX_LISTED} more source component(s) "
                            f"with no eligible {word} ({len(groups)} in all; the JSON "

@@ -423,3 +423,20 @@ def test_sensor_candidates_and_budget():
     q = place_sensors(s, candidates=cands, budget=2.0)
     assert q.best_effort and not q.goal_met and q.cost == 1.0 and q.dimension == 2
     assert observability(q.apply(s), dimension=True).controllable_dimension == 2
+
+
+def test_edge_cases_empty_isolated_and_self_loops():
+    empty = StructuredSystem.from_edges([], [], 0)
+    assert place_inputs(empty).goal_met and place_inputs(empty).cost == 0
+    isolated = StructuredSystem.from_edges([], [], 3)  # each state is its own source
+    assert place_inputs(isolated).site_names == ["x0", "x1", "x2"]
+    loops = StructuredSystem.from_edges([0, 1, 2], [0, 1, 2], 3)  # self-loops: rank full
+    assert place_inputs(loops).cost == 3  # still three source components
+    p = place_inputs(isolated, budget=0)
+    assert p.best_effort and p.cost == 0 and p.dimension == 0 and not p.goal_met
+    with pytest.raises(OptionError, match=r"candidate costs must be one finite number >= 0"):
+        place_inputs(isolated, candidates=Candidates.from_lists(["a"], [[0]], [np.inf]))
+    p = place_inputs(isolated, candidates=Candidates.from_lists(["a"], [[0]], [1.0]))
+    assert not p.feasible
+    assert "source component {x1}" in p.reasons[0]
+    assert "add a candidate actuator acting on one of them" in p.reasons[0]
