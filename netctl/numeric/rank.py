@@ -177,23 +177,22 @@ class _Decisions:
 def _apply_q(qr: np.ndarray, tau: np.ndarray, A: np.ndarray, k0: int, c0: int = 0) -> None:
     """A <- Q^H A Q on the trailing index range ``k0:`` (Q from Householder ``qr``).
 
-    Rows ``k0:`` are zero left of column ``c0`` (staircase structure), so the left
-    product skips those columns."""
-    cplx = np.iscomplexobj(A)
-    name = "unmqr" if cplx else "ormqr"
-    (mqr,) = la.get_lapack_funcs((name,), (A,))
-    trans = "C" if cplx else "T"
+    ``Q = I - V T V^H`` in compact WY form (``T`` by the LAPACK ``larft`` recurrence),
+    applied with matrix products (level-3 BLAS). Rows ``k0:`` are zero left of column
+    ``c0`` (staircase structure), so the left product skips those columns."""
+    r = tau.size
+    V = np.tril(qr, -1)
+    V[np.arange(r), np.arange(r)] = 1.0
+    T = np.zeros((r, r), dtype=V.dtype)
+    for j in range(r):
+        T[j, j] = tau[j]
+        if j:
+            T[:j, j] = -tau[j] * (T[:j, :j] @ (V[:, :j].conj().T @ V[:, j]))
+    Vh = V.conj().T
     rows = A[k0:, c0:]
-    lwork = max(1, 64 * A.shape[0])
-    out, _, info = mqr("L", trans, qr, tau, rows, lwork)
-    if info != 0:  # pragma: no cover - LAPACK argument error
-        raise RuntimeError(f"LAPACK {name} failed (info={info})")
-    A[k0:, c0:] = out
+    A[k0:, c0:] = rows - V @ (T.conj().T @ (Vh @ rows))
     cols = A[:, k0:]
-    out, _, info = mqr("R", "N", qr, tau, cols, lwork)
-    if info != 0:  # pragma: no cover
-        raise RuntimeError(f"LAPACK {name} failed (info={info})")
-    A[:, k0:] = out
+    A[:, k0:] = cols - ((cols @ V) @ T) @ Vh
 
 
 def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
