@@ -131,6 +131,15 @@ def prepare(directory: Path, n_links: int, n_nodes: int, seed: int = 1) -> dict[
 
 
 # ---------------------------------------------------------------------- child stages
+def _read_any(path: str) -> Any:
+    """netctl.io.read, or the plain-arrays fallback for .npz when netctl lacks the format."""
+    from netctl.io import FORMATS, read
+
+    if path.endswith(".npz") and "npz" not in FORMATS:
+        return _load_npz_fallback(path)
+    return read(path)
+
+
 def _load_npz_fallback(path: str) -> Any:
     from netctl import StructuredSystem
 
@@ -181,11 +190,10 @@ def stage_cli(verb: str, file: str, extra: list[str]) -> dict[str, Any]:
 def stage_roles_api(file: str) -> dict[str, Any]:
     """Node and link roles through the API, counts only (what ``batch --task roles``
     reports), without building the per-link JSON of the roles verb."""
-    from netctl.io import read
     from netctl.structural.roles import link_roles, node_roles
 
     t0 = time.perf_counter()
-    system = read(file) if not file.endswith(".npz") else _load_npz_fallback(file)
+    system = _read_any(file)
     t1 = time.perf_counter()
     nr = node_roles(system)
     t2 = time.perf_counter()
@@ -199,10 +207,9 @@ def stage_roles_api(file: str) -> dict[str, Any]:
 
 def stage_prep_inputs(file: str, names_out: str) -> dict[str, Any]:
     """Driver names of a minimum input design, one a line (for the check stage)."""
-    from netctl.io import read
     from netctl.structural import minimum_inputs
 
-    system = read(file) if not file.endswith(".npz") else _load_npz_fallback(file)
+    system = _read_any(file)
     d = minimum_inputs(system)
     Path(names_out).write_text("\n".join(d.driver_names) + "\n")
     return {"n_drivers": int(d.drivers.size), "n_inputs": d.n_inputs, "peak_mib": peak_mib()}
