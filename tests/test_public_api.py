@@ -19,6 +19,9 @@ EXPECTED = sorted([
     # strong structural controllability
     "StrongInputDesign", "StrongReport", "is_strongly_controllable",
     "minimum_strong_inputs", "strong_controllability",
+    # numeric confirmation, exact controllability, modes and energy
+    "EnergyReport", "ExactControllability", "ModalReport", "RankTest", "Verification",
+    "energy", "exact_controllability", "modal_controllability", "realize", "verify",
 ])
 
 

@@ -119,3 +119,17 @@ def test_unknown_parameterization_lists_choices():
     with pytest.raises(OptionError, match="unknown weights 'gaussian'; choose one of independent"):
         realize(s, weights="gaussian")
     assert set(PARAMETERIZATIONS) == set(SAMPLED) | {"given"}
+
+
+def test_swing_on_the_second_order_model_pattern():
+    # the second-order model of netctl.models (node:pos, node:vel) is realized in place
+    from netctl.models import apply_model
+
+    net = from_edges([(0, 1), (1, 0), (1, 2), (2, 1)], 3, inputs=[1])
+    pattern = apply_model(net, "second-order")
+    r = realize(pattern, weights="swing", seed=2)
+    assert r.state_names == pattern.state_names
+    assert r.B.toarray()[3, 0] > 0          # the input acts on x1:vel
+    assert set(zip(*r.A.nonzero())) <= set(zip(*pattern.A.nonzero()))
+    A = r.A.toarray()
+    np.testing.assert_allclose(A[1::2][:, 0::2].sum(axis=1), 0.0, atol=1e-12)
