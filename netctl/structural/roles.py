@@ -85,12 +85,7 @@ def matching_facts(indptr: np.ndarray, indices: np.ndarray, n_cols: int, *,
     else:
         cols_free = np.zeros(n_cols, bool)
     if with_cycles and n_rows:
-        row_of = np.repeat(np.arange(n_rows, dtype=np.int64), np.diff(indptr))
-        partner = col_match[indices]
-        keep = (partner >= 0) & (partner != row_of)
-        h_indptr = np.zeros(n_rows + 1, np.int64)
-        np.cumsum(np.bincount(row_of[keep], minlength=n_rows), out=h_indptr[1:])
-        h_indices = np.ascontiguousarray(partner[keep])
+        h_indptr, h_indices = _alternating_graph(indptr, indices, col_match)
         k, labels = strongly_connected_components(h_indptr, h_indices)
         sizes = np.bincount(labels, minlength=k).astype(np.int64)
     else:
@@ -102,6 +97,24 @@ def matching_facts(indptr: np.ndarray, indices: np.ndarray, n_cols: int, *,
                          rows_free=rows_free, cols_free=cols_free, h_indptr=h_indptr,
                          h_indices=h_indices, h_n_scc=int(k), h_scc=labels,
                          h_scc_size=sizes)
+
+
+@njit(cache=True, nogil=True)
+def _alternating_graph(indptr, indices, col_match):  # pragma: no cover - compiled
+    """CSR of ``r -> col_match[c]`` for every edge ``(r, c)`` with ``c`` matched to
+    another row (one pass)."""
+    n = indptr.size - 1
+    ptr = np.zeros(n + 1, np.int64)
+    out = np.empty(indices.size, np.int64)
+    pos = 0
+    for r in range(n):
+        for k in range(indptr[r], indptr[r + 1]):
+            p = col_match[indices[k]]
+            if p >= 0 and p != r:
+                out[pos] = p
+                pos += 1
+        ptr[r + 1] = pos
+    return ptr, out[:pos].copy()
 
 
 def edge_classes(f: MatchingFacts) -> np.ndarray:
