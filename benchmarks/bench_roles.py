@@ -6,8 +6,10 @@ Run by hand (not part of the test suite):
     python benchmarks/bench_roles.py                    # n = 10^6, <k_in> = 2 and 4
     python benchmarks/bench_roles.py --n 100000 --mean 2 --repeat 3
 
-Timings are the median of ``--repeat`` runs in this one process after a warm-up call
-(numba compilation excluded). Brute force is timed on ``--sample`` random elements --
+The machine is shared and noisy, so the methods run interleaved in ``--repeat`` rounds
+(one matching, node roles, link roles, the sweeps, then again) after a warm-up call
+(numba compilation excluded), and each is reported by its *minimum* over the rounds,
+the least disturbed run; ratios are ratios of minima. Brute force is timed on ``--sample`` random elements --
 for a node, delete its row and recompute a maximum matching from scratch; for a link,
 delete it and recompute -- and extrapolated linearly to all elements. Writes nothing;
 paste the printed Markdown table into benchmarks/RESULTS-roles.md.
@@ -16,7 +18,6 @@ paste the printed Markdown table into benchmarks/RESULTS-roles.md.
 from __future__ import annotations
 
 import argparse
-import statistics
 import time
 
 import numpy as np
@@ -40,14 +41,17 @@ def er_system(n: int, mean_in: float, seed: int) -> StructuredSystem:
                             output_names=())
 
 
-def timed(fn, repeat: int) -> float:
-    fn()  # warm-up (compilation, caches)
-    out = []
+def interleaved(fns: dict, repeat: int) -> dict:
+    """Minimum seconds of each function over ``repeat`` interleaved rounds."""
+    for fn in fns.values():
+        fn()  # warm-up (compilation, caches)
+    best = {k: float("inf") for k in fns}
     for _ in range(repeat):
-        t = time.perf_counter()
-        fn()
-        out.append(time.perf_counter() - t)
-    return statistics.median(out)
+        for k, fn in fns.items():
+            t = time.perf_counter()
+            fn()
+            best[k] = min(best[k], time.perf_counter() - t)
+    return best
 
 
 def brute_node(system: StructuredSystem, nodes: np.ndarray) -> float:
@@ -92,12 +96,16 @@ def main() -> None:
         s = er_system(n, mean, args.seed)
         design = s.with_inputs(node_roles(s).critical[:1].tolist() or [0])
         A = s.A
-        t_match = timed(lambda: maximum_matching(A.indptr, A.indices, n), args.repeat)
-        t_nodes = timed(lambda: node_roles(s), args.repeat)
-        t_links = timed(lambda: link_roles(s), args.repeat)
-        t_sweep_l = timed(lambda: contingency_sweep(s, elements="links"), args.repeat)
-        t_sweep_n = timed(lambda: contingency_sweep(s, elements="nodes"), args.repeat)
-        t_sweep_d = timed(lambda: contingency_sweep(design, elements="links"), 1)
+        t = interleaved({
+            "match": lambda: maximum_matching(A.indptr, A.indices, n),
+            "nodes": lambda: node_roles(s),
+            "links": lambda: link_roles(s),
+            "sweep_l": lambda: contingency_sweep(s, elements="links"),
+            "sweep_n": lambda: contingency_sweep(s, elements="nodes"),
+            "sweep_d": lambda: contingency_sweep(design, elements="links"),
+        }, args.repeat)
+        t_match, t_nodes, t_links = t["match"], t["nodes"], t["links"]
+        t_sweep_l, t_sweep_n, t_sweep_d = t["sweep_l"], t["sweep_n"], t["sweep_d"]
         rng = np.random.default_rng(args.seed)
         per_node = brute_node(s, rng.choice(n, args.sample, replace=False))
         per_link = brute_link(s, rng.choice(A.nnz, args.sample, replace=False))
@@ -106,7 +114,7 @@ def main() -> None:
                      t_sweep_n, t_sweep_d, per_node * n, per_link * A.nnz))
         print(f"mean {mean}: done", flush=True)
     print()
-    print(f"n = {n:,} states, directed Erdős–Rényi, median of {args.repeat} runs "
+    print(f"n = {n:,} states, directed Erdős–Rényi, minimum of {args.repeat} interleaved runs "
           f"(brute force: {args.sample} sampled elements, extrapolated)")
     print()
     print("| <k_in> | links | N_D | one matching (s) | node roles (s) | ratio | link roles (s) "
