@@ -3,7 +3,7 @@
 With ``--inputs`` the dedicated inputs on those states are checked: are they enough for
 *every* nonzero value of every weight (exit 0), or do some weights make the design
 uncontrollable (exit 1; the states left unforced are listed)? Without ``--inputs`` a
-smallest set is searched for (exact integer program on small networks, greedy with a
+smallest set is searched for (exact branch and bound on small networks, greedy with a
 lower bound on large ones; the method and the gap are always reported).
 """
 
@@ -30,8 +30,9 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
                    help="what is assumed about the self-dynamics a_ii: " + "; ".join(
                        f"{k} = {v}" for k, v in DIAGONALS.items()) + " (default: as-given)")
     p.add_argument("--method", choices=list(METHODS), default="auto",
-                   help="search without --inputs: exact (integer program), greedy (fast, "
-                        f"with a lower bound), auto (exact up to {EXACT_AUTO_LIMIT} states)")
+                   help="search without --inputs: exact (branch and bound over forts), "
+                        "greedy (fast, with a lower bound), auto (exact up to "
+                        f"{EXACT_AUTO_LIMIT} states)")
     p.add_argument("--time-limit", type=float, default=60.0, metavar="SECONDS",
                    help="time for the exact search (default 60); when it runs out the best "
                         "set found and a proven lower bound are reported")
@@ -65,7 +66,8 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         rep = strong_controllability(system, diagonal=args.diagonal)
         d: dict[str, Any] = {"file": args.file, "mode": "check", **rep.to_dict(),
                              "notes": notes, "caution": CAUTION}
-        lines = head + [f"  inputs ({rep.n_inputs}): {_names_line(rep.names(system.driven_states()))}",
+        driven = _names_line(rep.names(system.driven_states()))
+        lines = head + [f"  inputs ({rep.n_inputs}): {driven}",
                         "  strongly structurally controllable: "
                         + ("yes" if rep.strongly_controllable else "NO")]
         for reason in rep.reasons():

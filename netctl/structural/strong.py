@@ -89,19 +89,21 @@ __all__ = [
 DIAGONALS: dict[str, str] = {
     "as-given": "self-dynamics a_ii != 0 exactly where the pattern has a self-loop, "
                 "a_ii = 0 elsewhere",
-    "zero": "no self-dynamics: a_ii = 0 on every state (self-loops in the pattern ignored)",
+    "zero": "no self-dynamics: a_ii = 0 on every state; self-loops in the pattern are taken "
+            "as zero",
     "nonzero": "self-dynamics on every state: a_ii != 0",
     "free": "a_ii may take any value, zero included",
 }
 
 METHODS: dict[str, str] = {
     "auto": "exact when the network is small enough, greedy with a lower bound otherwise",
-    "exact": "integer program over forts (constraint generation, HiGHS via scipy)",
+    "exact": "branch and bound over minimal forts; fort-cover integer program bound "
+             "(HiGHS via scipy) when the time limit runs out",
     "greedy": "greedy forcing with a matching-based lower bound",
 }
 
-#: states up to which method="auto" runs the exact integer program
-EXACT_AUTO_LIMIT = 300
+#: states up to which method="auto" runs the exact search
+EXACT_AUTO_LIMIT = 200
 
 _CONDITION_LABEL = {"all": "every eigenvalue", "zero": "eigenvalue 0",
                     "nonzero": "nonzero eigenvalues"}
@@ -324,6 +326,115 @@ def _greedy_kernel(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black, w,
     return chosen[:n_chosen]
 
 
+@njit(cache=True, nogil=True)
+def _close_nb(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok,
+              black0):  # pragma: no cover - compiled
+    """Final colouring from ``black0`` (white counts computed here)."""
+    N = black0.size
+    black = black0.copy()
+    w = np.zeros(N, np.int64)
+    for j in range(N):
+        c = 0
+        for p in range(out_ptr[j], out_ptr[j + 1]):
+            if not black[out_idx[p]]:
+                c += 1
+        if closed[j] and not black[j]:
+            c += 1
+        w[j] = c
+    forcer = np.full(N, -1, np.int64)
+    _closure_kernel(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black, w, forcer)
+    return black
+
+
+@njit(cache=True, nogil=True)
+def _smallest_white(out_ptr, out_idx, in_ptr, in_idx, closed2, ok2, black0,
+                    n):  # pragma: no cover - compiled
+    """The smallest set of states some rule leaves white (empty: every rule forces)."""
+    best = np.zeros(n, np.bool_)
+    best_size = n + 1
+    for r in range(closed2.shape[0]):
+        black = _close_nb(out_ptr, out_idx, in_ptr, in_idx, closed2[r], ok2[r], black0)
+        k = 0
+        for v in range(n):
+            if not black[v]:
+                k += 1
+        if 0 < k < best_size:
+            best_size = k
+            for v in range(n):
+                best[v] = not black[v]
+    return best, (best_size if best_size <= n else 0)
+
+
+@njit(cache=True, nogil=True)
+def _minimal_fort(out_ptr, out_idx, in_ptr, in_idx, closed2, ok2, S, n,
+                  N):  # pragma: no cover - compiled
+    """A minimal fort disjoint from ``S`` (n-mask), or an empty mask when ``S`` forces
+    under every rule: the white set left by ``S``, shrunk by blackening everything
+    outside it plus one member and keeping what some rule still leaves white."""
+    black0 = np.ones(N, np.bool_)
+    for v in range(n):
+        black0[v] = S[v]
+    F, size = _smallest_white(out_ptr, out_idx, in_ptr, in_idx, closed2, ok2, black0, n)
+    if size == 0:
+        return F
+    k = 0
+    while k < size:
+        # the k-th member of F
+        u = -1
+        c = 0
+        for v in range(n):
+            if F[v]:
+                if c == k:
+                    u = v
+                    break
+                c += 1
+        for v in range(n):
+            black0[v] = not F[v]
+        black0[u] = True
+        F2, size2 = _smallest_white(out_ptr, out_idx, in_ptr, in_idx, closed2, ok2, black0,
+                                    n)
+        if size2 > 0:
+            F = F2
+            size = size2
+            k = 0
+        else:
+            k += 1
+    return F
+
+
+@njit(cache=True, nogil=True)
+def _packing(pool, order, S, forb, n):  # pragma: no cover - compiled
+    """Greedy number of pairwise disjoint forts of the pool (in ``order``, smallest
+    first) that ``S`` does not meet, after removing forbidden vertices; -1 when one of
+    them is left empty."""
+    used = np.zeros(n, np.bool_)
+    count = 0
+    for f in order:
+        hit = False
+        empty = True
+        clash = False
+        for v in range(n):
+            if pool[f, v]:
+                if S[v]:
+                    hit = True
+                    break
+                if not forb[v]:
+                    empty = False
+                    if used[v]:
+                        clash = True
+        if hit:
+            continue
+        if empty:
+            return -1
+        if clash:
+            continue
+        for v in range(n):
+            if pool[f, v] and not forb[v]:
+                used[v] = True
+        count += 1
+    return count
+
+
 def _closure(g: _Graph, rule: _Rule, black0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Final colouring and forcer of each forced vertex (-1 when not forced)."""
     black = black0.copy()
@@ -543,7 +654,8 @@ def strong_controllability(system: StructuredSystem, *,
     return StrongReport(strongly_controllable=unforced.size == 0, diagonal=diagonal,
                         n_states=n, n_inputs=system.n_inputs, unforced=unforced,
                         unforced_by_condition=by_cond, forced_by=forced_by,
-                        state_names=system.state_names, input_names=system.input_names,
+                        state_names=tuple(system.state_names),
+                        input_names=tuple(system.input_names),
                         model=system.model)
 
 
@@ -692,7 +804,7 @@ class StrongInputDesign:
     drivers : ndarray of int
         The states that get a dedicated input, sorted.
     method : str
-        ``"exact"`` (fort-cover integer program) or ``"greedy"``.
+        ``"exact"`` (branch and bound over forts) or ``"greedy"``.
     optimal : bool
         Whether ``n_inputs`` is proven minimum (``lower_bound == n_inputs``).
     lower_bound : int
@@ -829,96 +941,104 @@ def _lower_bound(system: StructuredSystem, g: _Graph, rules: list[_Rule],
     return gen, "generic minimum dedicated inputs (strong implies structural)"
 
 
-def _shrink_fort(g: _Graph, rules: list[_Rule], fort: np.ndarray, start: int) -> np.ndarray:
-    """A minimal fort inside ``fort``: blacken everything outside it plus one member;
-    whatever some rule still leaves white is a smaller fort (members tried in rotated
-    order from ``start``)."""
-    F = fort
-    k = 0
-    while k < F.size:
-        u = F[(start + k) % F.size]
-        black = np.ones(g.n, bool)
-        black[F] = False
-        black[u] = True
-        smaller = _all_forced(g, rules, np.flatnonzero(black))
-        if smaller:
-            F = min(smaller, key=lambda a: a.size)
-            k = 0
-            start = 0
-        else:
-            k += 1
-    return F
+class _OutOfTime(Exception):
+    pass
 
 
 def _exact(g: _Graph, rules: list[_Rule], upper: np.ndarray, lower: int,
            time_limit: float, t0: float) -> tuple[np.ndarray, int, bool, int]:
-    """Fort-cover integer program with constraint generation.
+    """Branch and bound over forts, then (if time ran out) an integer-program bound.
 
-    Returns (best set, proven lower bound, optimal, iterations)."""
+    Every forcing set meets every fort, so at a node with partial set ``S`` a minimal
+    fort ``F`` disjoint from ``S`` is found and the search branches on its members, the
+    i-th branch excluding the members before it (no set is visited twice). Nodes are
+    pruned by ``|S|`` plus a packing of pairwise disjoint forts from the pool that ``S``
+    misses. Returns (best set, proven lower bound, optimal, nodes explored)."""
+    n, N = g.n, g.n + g.m
+    closed2 = np.ascontiguousarray(np.stack([r.closed for r in rules]))
+    ok2 = np.ascontiguousarray(np.stack([r.white_ok for r in rules]))
+    state: dict[str, Any] = {"best": np.sort(upper).astype(np.int64),
+                             "pool": np.zeros((64, n), bool), "n_pool": 0, "nodes": 0,
+                             "order": np.zeros(0, np.int64), "sizes": np.zeros(64, np.int64)}
+    seen: set[bytes] = set()
+    deadline = t0 + 0.8 * time_limit
+
+    def add(mask: np.ndarray) -> None:
+        key = np.packbits(mask).tobytes()
+        if key in seen:
+            return
+        seen.add(key)
+        pool = state["pool"]
+        k = state["n_pool"]
+        if k == pool.shape[0]:
+            pool = np.concatenate([pool, np.zeros_like(pool)])
+            state["pool"] = pool
+            state["sizes"] = np.concatenate([state["sizes"], np.zeros_like(state["sizes"])])
+        pool[k] = mask
+        state["sizes"][k] = int(mask.sum())
+        state["n_pool"] = k + 1
+        # smallest forts first (re-sorted now and then; new ones appended meanwhile)
+        if (k + 1) & k == 0 or (k + 1) % 256 == 0:
+            state["order"] = np.argsort(state["sizes"][:k + 1], kind="stable")
+        else:
+            state["order"] = np.append(state["order"], k)
+
+    def rec(S: np.ndarray, size: int, forb: np.ndarray) -> None:
+        state["nodes"] += 1
+        if time.perf_counter() > deadline:
+            raise _OutOfTime
+        best = state["best"]
+        pk = _packing(state["pool"], state["order"], S, forb, n)
+        if pk < 0 or size + pk >= best.size:
+            return
+        F = _minimal_fort(g.out_ptr, g.out_idx, g.in_ptr, g.in_idx, closed2, ok2, S, n, N)
+        if not F.any():
+            state["best"] = np.flatnonzero(S).astype(np.int64)
+            return
+        add(F)
+        if size + 1 >= best.size:
+            return
+        fb = forb.copy()
+        for v in np.flatnonzero(F & ~forb):
+            S[v] = True
+            rec(S, size + 1, fb)
+            S[v] = False
+            fb = fb.copy()
+            fb[v] = True
+
+    try:
+        rec(np.zeros(n, bool), 0, np.zeros(n, bool))
+    except _OutOfTime:
+        pass
+    else:
+        best = state["best"]
+        return best, int(best.size), True, state["nodes"]
+    best = state["best"]
+    lb = max(lower, _packing(state["pool"], state["order"], np.zeros(n, bool),
+                             np.zeros(n, bool), n))
+    lb = max(lb, _fort_cover_bound(state["pool"][:state["n_pool"]],
+                                   max(0.05, time_limit - (time.perf_counter() - t0))))
+    return best, lb, best.size <= lb, state["nodes"]
+
+
+def _fort_cover_bound(pool: np.ndarray, seconds: float) -> int:
+    """Lower bound: the fewest states meeting every fort of ``pool`` (HiGHS; its dual
+    bound when the time runs out)."""
     from scipy.optimize import Bounds, LinearConstraint, milp
 
-    n = g.n
-    best = upper
-    rows: list[np.ndarray] = []
-    seen: set[bytes] = set()
-
-    def add(fort: np.ndarray) -> None:
-        key = fort.tobytes()
-        if key not in seen:
-            seen.add(key)
-            rows.append(fort)
-
-    # seed: the forts met by the empty set, and after each single greedy member
-    for f in _all_forced(g, rules, np.zeros(0, np.int64)):
-        add(f)
-    for v in upper:
-        for f in _all_forced(g, rules, np.array([v], np.int64)):
-            add(f)
-    lb = lower
-    it = 0
-    while True:
-        it += 1
-        remaining = time_limit - (time.perf_counter() - t0)
-        if remaining <= 0 or not rows:
-            return best, lb, best.size <= lb, it
-        indptr = np.zeros(len(rows) + 1, np.int64)
-        np.cumsum([r.size for r in rows], out=indptr[1:])
-        M = sp.csr_array((np.ones(indptr[-1]), np.concatenate(rows), indptr),
-                         shape=(len(rows), n))
-        res = milp(np.ones(n), constraints=LinearConstraint(M, lb=1, ub=np.inf),
-                   integrality=np.ones(n), bounds=Bounds(0, 1),
-                   options={"time_limit": max(remaining, 0.01), "disp": False})
-        if res.status not in (0, 1) or res.x is None:
-            bound = getattr(res, "mip_dual_bound", None)
-            if bound is not None and np.isfinite(bound):
-                lb = max(lb, int(np.ceil(bound - 1e-6)))
-            return best, lb, best.size <= lb, it
-        if res.status == 1:  # time limit inside the solver: keep its dual bound
-            bound = getattr(res, "mip_dual_bound", None)
-            if bound is not None and np.isfinite(bound):
-                lb = max(lb, int(np.ceil(bound - 1e-6)))
-            return best, lb, best.size <= lb, it
-        S = np.flatnonzero(res.x > 0.5).astype(np.int64)
-        lb = max(lb, S.size)
-        forts = _all_forced(g, rules, S)
-        if not forts:
-            if S.size <= best.size:
-                best = S
-            return best, lb, True, it
-        # more cuts: extend S to a forcing set, one member of a minimal fort at a time;
-        # every stall on the way leaves a fort disjoint from the current set
-        ext = S
-        while forts:
-            f = min(forts, key=lambda a: a.size)
-            add(f)
-            small = _shrink_fort(g, rules, f, it)
-            add(small)
-            ext = np.append(ext, small[it % small.size])
-            forts = _all_forced(g, rules, ext)
-        if ext.size < best.size:
-            best = np.sort(ext)
-        if lb >= best.size:
-            return best, lb, True, it
+    if pool.shape[0] == 0:
+        return 0
+    n = pool.shape[1]
+    res = milp(np.ones(n), constraints=LinearConstraint(sp.csr_array(pool.astype(float)),
+                                                        lb=1, ub=np.inf),
+               integrality=np.ones(n), bounds=Bounds(0, 1),
+               options={"time_limit": seconds, "disp": False})
+    if res.status == 0 and res.x is not None:
+        return int(round(res.fun))
+    bound = getattr(res, "mip_dual_bound", None)
+    if bound is not None and np.isfinite(bound):
+        return int(np.ceil(bound - 1e-6))
+    return 0
 
 
 def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given",
@@ -934,9 +1054,9 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
     diagonal : {"as-given", "zero", "nonzero", "free"}, default "as-given"
         See :data:`DIAGONALS`.
     method : {"auto", "exact", "greedy"}, default "auto"
-        ``exact``: integer program, proven optimal unless ``time_limit`` runs out (then
-        the best set found and the solver's bound are reported). ``greedy``: near-linear
-        heuristic with a lower bound. ``auto``: exact up to
+        ``exact``: branch and bound over forts, proven optimal unless ``time_limit``
+        runs out (then the best set found and a proven lower bound are reported).
+        ``greedy``: near-linear heuristic with a lower bound. ``auto``: exact up to
         :data:`EXACT_AUTO_LIMIT` states, greedy beyond.
     time_limit : float, default 60
         Seconds for the exact method (the greedy one always finishes).
@@ -954,11 +1074,16 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
     *Exact*: a set of black states forces everything iff it meets every *fort* -- a
     nonempty set ``F`` such that no vertex allowed to force has exactly one member of
     ``F`` in its neighbourhood [4]_, [5]_ -- and the set a rule leaves white is a fort.
-    The integer program ``min sum x_v`` subject to ``sum_{v in F} x_v >= 1`` over the
-    forts found so far is solved with HiGHS (``scipy.optimize.milp``); the forts left by
-    its solution are added and it is solved again, until the solution forces everything
-    (then it is optimal: every round solves a relaxation). For the two-condition
-    conventions the forts of both rules enter the same program.
+    Branch and bound: at a partial set ``S``, the white set left by ``S`` is shrunk to a
+    minimal fort (blacken all outside it plus one member; what some rule still leaves
+    white is a smaller fort), and the search branches on its members, the i-th branch
+    excluding the earlier ones; a node is cut when ``|S|`` plus a packing of disjoint
+    forts it misses reaches the best set known (the greedy one to start). A complete
+    search proves the minimum. If ``time_limit`` runs out first, the best set is
+    returned with the larger of the fort packing bound and the fort-cover integer
+    program ``min sum x_v`` s.t. ``sum_{v in F} x_v >= 1`` over every fort met (HiGHS via
+    ``scipy.optimize.milp``; a relaxation, hence a lower bound) as the proven bound. For
+    the two-condition conventions the forts of both rules are used together.
 
     *Greedy*: forcing runs until it stalls, then the white neighbour of an eligible
     vertex with the fewest white neighbours is made black, and so on (a binary heap;
@@ -998,7 +1123,8 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
     if isinstance(time_limit, bool) or not isinstance(time_limit, (int, float)) or \
             not time_limit > 0:
         raise OptionError(f"time_limit must be a positive number of seconds, found "
-                          f"{time_limit!r}.")
+                          f"{time_limit!r}; 60 is usual (the exact search then reports the "
+                          "best set found and a lower bound).")
     n = system.n_states
     g = _graph(system.A, None)
     rules = _rules(_loops(system, diagonal), diagonal, 0)
@@ -1012,10 +1138,11 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
     if run == "exact" and n and S.size > lower:
         S, lb, _, it = _exact(g, rules, S, lower, float(time_limit), t0)
         if lb > lower:
-            lower, source = lb, "integer program (fort cover)"
+            lower, source = lb, ("branch and bound over forts (complete search)"
+                                 if lb == S.size else "fort packing / fort cover bound")
     S = np.sort(S).astype(np.int64)
     return StrongInputDesign(n_states=n, n_inputs=int(S.size), drivers=S, diagonal=diagonal,
                              method=run, optimal=S.size == lower, lower_bound=int(lower),
                              lower_bound_source=source, iterations=it,
                              seconds=time.perf_counter() - t0,
-                             state_names=system.state_names, model=system.model)
+                             state_names=tuple(system.state_names), model=system.model)
