@@ -955,9 +955,53 @@ def _short(names: list[str], limit: int = 8) -> str:
 
 
 # ====================================================================== dedicated: exact
-def _dedicated_assignment(prob: _Reduced, cands: Candidates) -> _Outcome:
-    from scipy.sparse.csgraph import min_weight_full_bipartite_matching
+def _assignment_by_component(M: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:
+    """Row-perfect min-cost assignment of ``M``, solved per connected component.
 
+    Components of the bipartite graph are independent, and LAPJVsp is superlinear, so
+    the many small components of sparse networks are solved separately; a component
+    with one row takes its cheapest edge (ties: the smallest column).
+    """
+    from scipy.sparse.csgraph import connected_components, min_weight_full_bipartite_matching
+
+    n_rows, n_cols = M.shape
+    G = sp.bmat([[None, M], [M.T, None]], format="csr")
+    _, lab = connected_components(G, directed=False)
+    rlab = lab[:n_rows]
+    counts = np.bincount(rlab, minlength=lab.max(initial=-1) + 1)
+    col_of_row = np.full(n_rows, -1, np.int64)
+    single = counts[rlab] == 1
+    rows1 = np.flatnonzero(single)
+    if rows1.size:
+        take = _gather_ranges(M.indptr.astype(np.int64), rows1)
+        seg_row = np.repeat(rows1, np.diff(M.indptr)[rows1])
+        order = np.lexsort((M.indices[take], M.data[take], seg_row))
+        first = np.ones(order.size, bool)
+        first[1:] = seg_row[order][1:] != seg_row[order][:-1]
+        col_of_row[seg_row[order][first]] = M.indices[take][order][first]
+    multi = np.flatnonzero(~single)
+    if multi.size:
+        # permute rows and columns so that each component is one contiguous block
+        rows_p = multi[np.argsort(rlab[multi], kind="stable")]
+        col_lab = lab[n_rows:]
+        cols_p = np.argsort(col_lab, kind="stable")
+        P = M[rows_p][:, cols_p].tocsr()
+        P.sort_indices()
+        r_bounds = np.concatenate([[0], np.flatnonzero(np.diff(rlab[rows_p])) + 1,
+                                   [rows_p.size]])
+        c_starts = np.searchsorted(col_lab[cols_p], np.arange(counts.size + 1))
+        for r0, r1 in zip(r_bounds[:-1].tolist(), r_bounds[1:].tolist()):
+            c = int(rlab[rows_p[r0]])
+            c0, c1 = int(c_starts[c]), int(c_starts[c + 1])
+            a, b = int(P.indptr[r0]), int(P.indptr[r1])
+            sub = sp.csr_matrix((P.data[a:b], P.indices[a:b] - c0, P.indptr[r0:r1 + 1] - a),
+                                shape=(r1 - r0, c1 - c0))
+            r_i, c_i = min_weight_full_bipartite_matching(sub)
+            col_of_row[rows_p[r0 + r_i]] = cols_p[c0 + c_i]
+    return np.arange(n_rows, dtype=np.int64), col_of_row
+
+
+def _dedicated_assignment(prob: _Reduced, cands: Candidates) -> _Outcome:
     site_state = cands.indices  # candidate k acts on state site_state[k]
     cost = cands.cost
     n_u = prob.unreached.size
@@ -994,7 +1038,7 @@ def _dedicated_assignment(prob: _Reduced, cands: Candidates) -> _Outcome:
         n_cols = prob.n_real + elig.size + n_u
         M = sp.csr_matrix((w, (rows, cols)), shape=(nD, n_cols))
         M.sum_duplicates()
-        r_ind, c_ind = min_weight_full_bipartite_matching(M)
+        r_ind, c_ind = _assignment_by_component(M)
         priv = (c_ind >= prob.n_real) & (c_ind < prob.n_real + elig.size)
         srcm = c_ind >= prob.n_real + elig.size
         chosen_rows = np.sort(r_ind[priv | srcm])

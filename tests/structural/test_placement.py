@@ -440,3 +440,17 @@ def test_edge_cases_empty_isolated_and_self_loops():
     assert not p.feasible
     assert "source component {x1}" in p.reasons[0]
     assert "add a candidate actuator acting on one of them" in p.reasons[0]
+
+
+def test_milp_time_limit_still_gives_a_checked_design_and_valid_bound():
+    rng = np.random.default_rng(6009)
+    for trial in range(15):
+        s = _random_system(rng, n_max=6)
+        cands = _random_candidates(rng, s.n_states, 6)
+        best = _brute_candidates(s, cands)
+        p = place_inputs(s, candidates=cands, method="exact", time_limit=1e-9)
+        if best is None:
+            assert not p.feasible
+            continue
+        assert p.verified is True and p.cost >= best - 1e-9
+        assert p.lower_bound <= best + 1e-9 and p.method in ("milp", "greedy")
