@@ -172,3 +172,51 @@ def test_join_bad_ties_file(capsys, two_plants):
     code, _, err = run(capsys, "join", str(t / "plant.csv"), str(t / "plant.csv"),
                        "--ties", str(t / "ties.csv"))
     assert code == 2 and "NAME=PATH" in err
+
+
+SPEC = """
+[couplings]
+links = [["a1", "a2"], ["b1", "b2"], ["b1", "b3"]]
+
+[inputs]
+ua = ["a1"]
+ub = ["b3"]
+
+[outputs]
+ya = ["a2"]
+
+[subsystems]
+plant = ["a1", "a2"]
+ctrl = ["b1", "b2", "b3"]
+
+[[ties]]
+from = ["plant", "a2"]
+to = ["ctrl", "b1"]
+"""
+
+
+@pytest.mark.parametrize("signal", [False, True], ids=["state-tie", "signal-tie"])
+def test_join_toml_system_description_matches_flat_check(capsys, tmp_path, signal):
+    # The composite built from the subsystems and ties of a TOML description must get the
+    # same verdict as the flat system read from the same file (Lin 1974 on both).
+    text = SPEC if not signal else SPEC.replace(
+        'from = ["plant", "a2"]\nto = ["ctrl", "b1"]',
+        'from = ["plant", "ya"]\nto = ["ctrl", "ub"]\nkind = "signal"')
+    spec = tmp_path / "plant.toml"
+    spec.write_text(text)
+    code, out, err = run(capsys, "join", str(spec), "--json")
+    assert "Traceback" not in err
+    d = json.loads(out)
+    from netctl import controllability
+    from netctl.io import read
+
+    flat = controllability(read(spec))
+    assert d["controllable"] == flat.controllable
+    assert code == (0 if flat.controllable else 1)
+    if not signal:
+        # b1 feeds b2 and b3, one of which has an input: controllable
+        assert d["controllable"] is True
+    else:
+        # the signal tie consumes ub (it becomes the link a2 -> b3): nothing feeds b1
+        assert d["consumed_inputs"] == ["ctrl.ub"]
+        assert d["controllable"] is False
