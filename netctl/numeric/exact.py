@@ -195,6 +195,21 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
             if not chosen or np.max(np.abs(w[sorted(chosen)])) <= 1e-8:
                 chosen.add(int(np.argmax(np.abs(w))))
             continue
+        if symmetric:
+            # orthonormal eigenvectors: the eigenvectors vanishing on the chosen states
+            # span the null space of Y[chosen]; add the states where they are largest
+            Y = VL[:, idx].real
+            D = np.array(sorted(chosen), np.int64)
+            if D.size:
+                _, sv, Vh = la.svd(Y[D], full_matrices=True)
+                rank = int(np.count_nonzero(sv > 1e-8))
+                Z = Y @ Vh[rank:].T
+            else:
+                Z = Y
+            if Z.shape[1]:
+                _, _, piv = la.qr(Z.T, mode="economic", pivoting=True)
+                chosen.update(int(i) for i in piv[:Z.shape[1]])
+            continue
         rest = np.array(sorted(set(range(n)) - chosen), np.int64)
         Mi = A - mu * np.eye(n)
         if rest.size:
