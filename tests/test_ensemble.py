@@ -91,6 +91,32 @@ def test_swaps_keep_degrees_and_simplicity(seed):
     assert np.count_nonzero(t != dst) > 0.9 * t.size  # the links really moved
 
 
+def test_swaps_with_repeated_links_keep_degrees_and_add_no_repeats():
+    # a stub-matched multigraph repeats some links: the round-based path runs instead
+    rng = np.random.default_rng(3)
+    d = rng.poisson(4, 60)
+    src, dst = configuration_model(d, rng.permutation(d), seed=3)
+    keep = src != dst
+    src, dst = src[keep], dst[keep]
+    repeats = src.size - np.unique(src * 60 + dst).size
+    assert repeats > 0
+    s, t, accepted = degree_preserving_swaps(src, dst, 60, seed=1)
+    assert accepted > 0
+    np.testing.assert_array_equal(np.bincount(t, minlength=60), np.bincount(dst, minlength=60))
+    np.testing.assert_array_equal(np.bincount(s, minlength=60), np.bincount(src, minlength=60))
+    assert s.size - np.unique(s * 60 + t).size <= repeats
+    assert not np.any(s == t)
+
+
+def test_swaps_are_seeded():
+    sysm = _er_system(200, 3.0, 5)
+    src, dst = sysm.edges()
+    a = degree_preserving_swaps(src, dst, 200, seed=4)
+    b = degree_preserving_swaps(src, dst, 200, seed=4)
+    np.testing.assert_array_equal(a[1], b[1])
+    np.testing.assert_array_equal(dst, sysm.edges()[1])  # the input is not modified
+
+
 def test_swaps_option_errors():
     with pytest.raises(OptionError, match=r"n_swaps must be a whole number >= 0, found -1"):
         degree_preserving_swaps([0, 1], [1, 0], 2, n_swaps=-1)

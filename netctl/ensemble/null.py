@@ -13,6 +13,8 @@ from typing import Any
 
 import numpy as np
 
+from numba import njit
+
 from netctl.errors import InvalidSystemError, OptionError
 from netctl.graph.matching import maximum_matching
 
@@ -159,13 +161,14 @@ def degree_preserving_swaps(sources: Any, targets: Any, n_states: int, *,
 
     Notes
     -----
-    Swaps are proposed in rounds: a random permutation pairs up the links, every pair
-    proposes one swap, and a proposal is refused when one of its new links exists
-    before the round or is proposed twice within it. The proposals of a round touch
-    disjoint links, so the round is applied at once with array code; a round costs one
-    sort, ``O(L log L)``. This is the Markov-chain randomization of Maslov & Sneppen
-    [1]_ run in parallel rounds (the order of attempts differs from the one-at-a-time
-    chain; how close the result is to uniform is common practice, no proof here).
+    The Markov chain of Maslov & Sneppen [1]_: each attempt picks two links uniformly at
+    random, one at a time, in a compiled loop; an open-addressing hash set of the links
+    answers "does this link exist" in O(1), so the cost is O(attempts + L). How many
+    attempts make the result close to uniform is common practice (about 10 per link),
+    no proof here. When the input already repeats links, swaps run instead in parallel
+    rounds of array code (a random pairing of all links, one proposal per pair, refused
+    when a new link exists before the round or is proposed twice in it; O(L log L) a
+    round), which never adds a repeat.
 
     References
     ----------
@@ -190,11 +193,31 @@ def degree_preserving_swaps(sources: Any, targets: Any, n_states: int, *,
     if not isinstance(n_swaps, (int, np.integer)) or isinstance(n_swaps, bool) or n_swaps < 0:
         raise OptionError(f"n_swaps must be a whole number >= 0, found {n_swaps!r}.")
     rng = np.random.default_rng(seed)
-    pairs = links // 2
-    if pairs == 0 or n_swaps == 0:
+    if links < 2 or n_swaps == 0:
         return src, dst, 0
     n = np.int64(n_states)
-    rounds = math.ceil(int(n_swaps) / pairs)
+    if np.unique(src * n + dst).size < links:
+        return _swap_rounds(src, dst, n, int(n_swaps), rng)
+    bits = max(4, int(math.ceil(math.log2(4 * links))))
+    accepted = 0
+    left = int(n_swaps)
+    block = max(links, 1 << 20)
+    while left > 0:  # one hash table per block keeps tombstones from piling up
+        k = min(left, block)
+        table = _build_table(src * n + dst, bits)
+        pick_i = rng.integers(0, links, k)
+        pick_j = rng.integers(0, links, k)
+        accepted += int(_swap_block(src, dst, n, table, bits, pick_i, pick_j))
+        left -= k
+    return src, dst, accepted
+
+
+def _swap_rounds(src: np.ndarray, dst: np.ndarray, n: np.int64, n_swaps: int,
+                 rng: np.random.Generator) -> tuple[np.ndarray, np.ndarray, int]:
+    """Swaps in parallel rounds (array code); used when the input repeats links."""
+    links = src.size
+    pairs = links // 2
+    rounds = math.ceil(n_swaps / pairs)
     accepted = 0
     for _ in range(rounds):  # a handful of rounds; each round is array code over all links
         keys = np.sort(src * n + dst)
@@ -215,6 +238,79 @@ def degree_preserving_swaps(sources: Any, targets: Any, n_states: int, *,
         dst[e2[ok]] = b[ok]
         accepted += int(np.count_nonzero(ok))
     return src, dst, accepted
+
+
+_EMPTY = -1
+_TOMB = -2
+_GOLD = -7046029254386353131  # 0x9E3779B97F4A7C15 as a signed 64-bit integer
+
+
+@njit(cache=True, nogil=True)
+def _slot(key, bits):  # pragma: no cover - compiled
+    return ((key * _GOLD) >> (64 - bits)) & ((1 << bits) - 1)
+
+
+@njit(cache=True, nogil=True)
+def _build_table(keys, bits):  # pragma: no cover - compiled
+    """Open-addressing hash set (linear probing) of non-negative int64 keys."""
+    size = 1 << bits
+    table = np.full(size, _EMPTY, np.int64)
+    mask = size - 1
+    for key in keys:
+        h = _slot(key, bits)
+        while table[h] != _EMPTY:
+            h = (h + 1) & mask
+        table[h] = key
+    return table
+
+
+@njit(cache=True, nogil=True)
+def _find(table, key, bits):  # pragma: no cover - compiled
+    """Slot holding ``key``, or -1."""
+    mask = table.size - 1
+    h = _slot(key, bits)
+    while table[h] != _EMPTY:
+        if table[h] == key:
+            return h
+        h = (h + 1) & mask
+    return -1
+
+
+@njit(cache=True, nogil=True)
+def _insert(table, key, bits):  # pragma: no cover - compiled
+    """Insert an absent ``key``, reusing the first tombstone on its probe path."""
+    mask = table.size - 1
+    h = _slot(key, bits)
+    while table[h] >= 0:
+        h = (h + 1) & mask
+    table[h] = key
+
+
+@njit(cache=True, nogil=True)
+def _swap_block(src, dst, n, table, bits, pick_i, pick_j):  # pragma: no cover - compiled
+    """One Maslov-Sneppen attempt per pick: a->b, c->d become a->d, c->b when legal."""
+    accepted = 0
+    for t in range(pick_i.size):
+        i = pick_i[t]
+        j = pick_j[t]
+        a = src[i]
+        b = dst[i]
+        c = src[j]
+        d = dst[j]
+        if a == c or b == d or a == d or c == b:
+            continue  # no-op, or a self-loop would appear
+        k1 = a * n + d
+        k2 = c * n + b
+        if _find(table, k1, bits) >= 0 or _find(table, k2, bits) >= 0:
+            continue  # the link exists already
+        table[_find(table, a * n + b, bits)] = _TOMB
+        table[_find(table, c * n + d, bits)] = _TOMB
+        _insert(table, k1, bits)
+        _insert(table, k2, bits)
+        dst[i] = d
+        dst[j] = b
+        accepted += 1
+    return accepted
 
 
 def _member(values: np.ndarray, sorted_keys: np.ndarray) -> np.ndarray:
