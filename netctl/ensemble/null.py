@@ -30,7 +30,7 @@ __all__ = [
 NULL_MODELS: dict[str, str] = {
     "degree": "configuration model: random stub matching that keeps every state's in- and "
               "out-degree exactly; the few repeated links and self-loops it makes are kept",
-    "swap": "degree-preserving edge swaps of the observed links (10 attempts per link): "
+    "swap": "degree-preserving link swaps of the observed links (10 attempts per link): "
             "keeps every in- and out-degree exactly and never creates repeated links or "
             "self-loops",
 }
