@@ -332,7 +332,7 @@ def test_exhaustive_search_agrees_with_the_rules(diagonal, rng):
     when free) is uncontrollable. Declared not: one is, and it is found."""
     seen = {True: 0, False: 0}
     tried = 0
-    while tried < 45:
+    while tried < 36:
         s = _random_case(rng, int(rng.integers(2, 5)), 0.45,
                          with_loops=diagonal == "as-given")
         A_pat, B_pat = _patterns(s)
@@ -413,7 +413,7 @@ def test_declared_strong_stays_controllable_under_near_cancelling_weights(diagon
         n_designs += 1
         A_pat, B_pat = _patterns(s)
         n, m = B_pat.shape
-        for _ in range(25):
+        for _ in range(15):
             A = [[Fraction(0)] * n for _ in range(n)]
             for i, j in zip(*np.nonzero(A_pat)):
                 A[i][j] = pool[rng.integers(len(pool))]
@@ -437,7 +437,7 @@ def test_strong_implies_weak(diagonal, rng):
     """Every strongly controllable design is structurally controllable (Lin's test) for
     the pattern of its diagonal convention."""
     hits = 0
-    for _ in range(300):
+    for _ in range(150):
         s = _random_case(rng, int(rng.integers(2, 14)), 0.2,
                          with_loops=diagonal == "as-given")
         if not is_strongly_controllable(s, diagonal=diagonal):
@@ -454,7 +454,7 @@ def test_strong_implies_weak(diagonal, rng):
             t = s._replace(A=sp.csr_array(A.tocsr()))
         assert controllability(t, dimension=False).controllable, (diagonal, s.edges())
         assert t.n_states == n
-    assert hits >= 10
+    assert hits >= 8
 
 
 # ---------------------------------------------------------------- minimum sets
