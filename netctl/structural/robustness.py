@@ -954,42 +954,59 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     Links are ``(source, target)`` state-name pairs; a name in ``add_links`` that the
     system lacks becomes a new state (appended); when every existing state has
     self-dynamics (a self-loop, as under the ``self-loops`` model) the new states get one
-    too. Added links get weight 1.0 in a weighted system. Removing a state removes its links and its input connections;
-    inputs left acting on no state are dropped.
+    too. Added links get weight 1.0 in a weighted system. Removing a state removes its
+    links and its input connections; inputs left acting on no state are dropped.
     """
-    names = list(system.state_names)
-    index = {x: i for i, x in enumerate(names)}
     add = _pairs(add_links, "add_links")
     rem = _pairs(remove_links, "remove_links")
     rnodes = [str(x) for x in (remove_nodes or ())]
-    for x in rnodes:
-        if x not in index:
-            system.index_of([x])  # raises UnknownNameError with close matches
+    n0 = system.n_states
+
+    def known(x: str) -> int | None:
+        try:
+            return int(system.index_of([x])[0])
+        except UnknownNameError:
+            return None
+
+    rnode_idx = system.index_of(rnodes) if rnodes else np.zeros(0, np.int64)
     src, tgt = system.edges()
-    key = {(int(u), int(v)): k for k, (u, v) in enumerate(zip(src.tolist(), tgt.tolist()))}
+    keys = tgt * max(n0, 1) + src  # CSR order: sorted by target, then source
     keep_link = np.ones(src.size, bool)
+
+    def find(a: int, b: int) -> int | None:
+        if a >= n0 or b >= n0:
+            return None
+        kk = b * max(n0, 1) + a
+        pos = int(np.searchsorted(keys, kk))
+        return pos if pos < keys.size and keys[pos] == kk else None
+
     for u, v in rem:
-        iu, iv = system.index_of([u, v])
-        k = key.get((int(iu), int(iv)))
+        iu, iv = (int(i) for i in system.index_of([u, v]))
+        k = find(iu, iv)
         if k is None:
             raise UnknownNameError(f"remove_links: there is no link {u!r} -> {v!r} to remove; "
                                    "links are 'source -> target' (source influences target).")
         keep_link[k] = False
     new: list[str] = []
+    where: dict[str, int] = {}
     for u, v in add:
         for x in (u, v):
-            if x not in index and x not in new:
-                new.append(x)
-    all_names = names + new
-    idx = {x: i for i, x in enumerate(all_names)}
-    add_src = np.array([idx[u] for u, _ in add], np.int64)
-    add_tgt = np.array([idx[v] for _, v in add], np.int64)
+            if x not in where:
+                i = known(x)
+                if i is None:
+                    i = n0 + len(new)
+                    new.append(x)
+                where[x] = i
+    add_src = np.array([where[u] for u, _ in add], np.int64)
+    add_tgt = np.array([where[v] for _, v in add], np.int64)
     for (u, v), a, b in zip(add, add_src.tolist(), add_tgt.tolist()):
-        if (a, b) in key and keep_link[key[(a, b)]]:
+        k = find(a, b)
+        if k is not None and keep_link[k]:
             raise InvalidSystemError(f"add_links: the link {u!r} -> {v!r} is already there; "
                                      "list only new links.")
-    N = len(all_names)
-    n0 = system.n_states
+    all_names: Sequence[str] = (tuple(system.state_names) + tuple(new)) if new else \
+        system.state_names
+    N = n0 + len(new)
     loops = np.arange(n0, N, dtype=np.int64) if (
         new and n0 and system.n_self_loops == n0) else np.zeros(0, np.int64)
     s2 = np.concatenate([src[keep_link], add_src, loops])
@@ -999,13 +1016,13 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     B = sp.vstack([system.B, sp.csr_array((len(new), system.n_inputs))], format="csr")
     C = sp.hstack([system.C, sp.csr_array((system.n_outputs, len(new)))], format="csr")
     nodes = _extend_nodes(system.nodes, len(new))
-    grown = StructuredSystem(A=A, B=B, C=C, state_names=tuple(all_names),
+    grown = StructuredSystem(A=A, B=B, C=C, state_names=all_names,
                              input_names=system.input_names, output_names=system.output_names,
                              nodes=nodes, weighted=system.weighted, model=system.model)
     if not rnodes:
         return grown, tuple(new), ()
     keep = np.ones(N, bool)
-    keep[[idx[x] for x in rnodes]] = False
+    keep[rnode_idx] = False
     Bk = grown.B[keep].tocsr()
     used = np.diff(Bk.tocsc().indptr) > 0
     had = np.diff(grown.B.tocsc().indptr) > 0
@@ -1013,7 +1030,7 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     Ck = grown.C[:, keep].tocsr()
     out = StructuredSystem(
         A=grown.A[keep][:, keep].tocsr(), B=Bk[:, used], C=Ck,
-        state_names=tuple(x for x, k in zip(all_names, keep) if k),
+        state_names=tuple(all_names[int(i)] for i in np.flatnonzero(keep)),
         input_names=tuple(x for x, u in zip(grown.input_names, used) if u),
         output_names=grown.output_names,
         nodes={c: v[keep] for c, v in grown.nodes.items()}, weighted=system.weighted,
@@ -1096,21 +1113,33 @@ def what_if(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] |
     da = minimum_inputs(after)
     rb = node_roles(system)
     ra = node_roles(after)
-    changes: dict[str, tuple[str, str]] = {}
-    pos_after = {x: i for i, x in enumerate(after.state_names)}
-    for i, x in enumerate(system.state_names):
-        j = pos_after.get(x)
-        if j is not None and rb.role[i] != ra.role[j]:
-            changes[x] = (NODE_ROLES[int(rb.role[i])], NODE_ROLES[int(ra.role[j])])
+    # old state index -> new one (states kept in order, new states appended after them)
+    n0 = system.n_states
+    keep0 = np.ones(n0, bool)
+    if remove_nodes:
+        keep0[system.index_of([str(x) for x in remove_nodes])] = False
+    o2n = np.where(keep0, np.cumsum(keep0) - 1, -1)
+    kept = np.flatnonzero(keep0)
+    moved = np.flatnonzero(rb.role[kept] != ra.role[o2n[kept]])
+    changes: dict[str, tuple[str, str]] = {
+        system.state_names[int(kept[i])]: (NODE_ROLES[int(rb.role[kept[i]])],
+                                           NODE_ROLES[int(ra.role[o2n[kept[i]]])])
+        for i in moved}
     lb = link_roles(system)
     la = link_roles(after)
-    after_links = {(s, t): LINK_ROLES[int(r)] for (s, t), r in
-                   zip(la.link_names(range(la.n_links)), la.role.tolist())}
-    link_changes: dict[tuple[str, str], tuple[str, str]] = {}
-    for (s, t), r in zip(lb.link_names(range(lb.n_links)), lb.role.tolist()):
-        ra_ = after_links.get((s, t))
-        if ra_ is not None and ra_ != LINK_ROLES[int(r)]:
-            link_changes[(s, t)] = (LINK_ROLES[int(r)], ra_)
+    N = max(after.n_states, 1)
+    s_new, t_new = o2n[lb.sources], o2n[lb.targets]
+    ok = (s_new >= 0) & (t_new >= 0)
+    key_before = t_new * N + s_new
+    key_after = la.targets * N + la.sources  # sorted (CSR order)
+    pos = np.minimum(np.searchsorted(key_after, key_before), max(key_after.size - 1, 0))
+    found = ok & (key_after.size > 0)
+    if key_after.size:
+        found &= key_after[pos] == key_before
+    diff = np.flatnonzero(found & (lb.role != la.role[pos] if key_after.size else found))
+    link_changes: dict[tuple[str, str], tuple[str, str]] = {
+        (system.state_names[int(lb.sources[k])], system.state_names[int(lb.targets[k])]):
+        (LINK_ROLES[int(lb.role[k])], LINK_ROLES[int(la.role[pos[k]])]) for k in diff}
     return WhatIf(
         before=system, after=after, added_links=tuple(_pairs(add_links, "add_links")),
         removed_links=tuple(_pairs(remove_links, "remove_links")),

@@ -286,3 +286,29 @@ def test_what_if_new_states_follow_the_self_loop_model():
     assert w.n_inputs_after == n_d(A) == 1
     plain = what_if(directed_path(3), add_links=[("x2", "tank")])
     assert plain.after.n_self_loops == 0
+
+
+def test_what_if_role_changes_match_a_name_by_name_comparison():
+    from netctl.structural.roles import link_roles, node_roles
+
+    rng = np.random.default_rng(77)
+    for _ in range(60):
+        s = random_design(rng)
+        if s.n_states < 3 or s.n_links == 0:
+            continue
+        gone = s.state_names[int(rng.integers(s.n_states))]
+        src, tgt = s.edges()
+        k = int(rng.integers(src.size))
+        rem = (s.state_names[src[k]], s.state_names[tgt[k]])
+        w = what_if(s, remove_nodes=[gone], remove_links=[rem],
+                    add_links=[(s.state_names[0], s.state_names[-1])]
+                    if not s.A[s.n_states - 1, 0] and gone not in (
+                        s.state_names[0], s.state_names[-1]) else None)
+        nb, na = node_roles(s).to_dict()["nodes"], node_roles(w.after).to_dict()["nodes"]
+        expect = {x: (nb[x], na[x]) for x in nb if x in na and nb[x] != na[x]}
+        assert w.role_changes == expect
+        lb = {(d["source"], d["target"]): d["role"] for d in link_roles(s).to_dict()["links"]}
+        la = {(d["source"], d["target"]): d["role"]
+              for d in link_roles(w.after).to_dict()["links"]}
+        expect_l = {e: (lb[e], la[e]) for e in lb if e in la and lb[e] != la[e]}
+        assert w.link_role_changes == expect_l
