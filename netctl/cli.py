@@ -152,19 +152,26 @@ def _cmd_sensors(args: argparse.Namespace) -> int:
 def _cmd_check(args: argparse.Namespace) -> int:
     from netctl.structural import controllability, observability
 
-    if args.inputs is None and args.outputs is None:
-        raise UsageError("check needs --inputs (controllability) and/or --outputs "
-                          "(observability): comma-separated state names or a file with one "
-                          "name a line.")
     system = load_system(args)
+    check_inputs = args.inputs is not None
+    check_outputs = args.outputs is not None
+    if not check_inputs and not check_outputs:
+        # a system description may carry its own design
+        check_inputs = system.n_inputs > 0
+        check_outputs = system.n_outputs > 0
+        if not (check_inputs or check_outputs):
+            raise UsageError("check needs --inputs (controllability) and/or --outputs "
+                             "(observability): comma-separated state names or a file with "
+                             "one name a line (the file itself declares no inputs or "
+                             "outputs).")
     if args.inputs is not None:
         system = system.with_inputs(parse_names(system, args.inputs))
     if args.outputs is not None:
         system = system.with_outputs(parse_names(system, args.outputs, what="--outputs"))
     reports = []
-    if args.inputs is not None:
+    if check_inputs:
         reports.append(controllability(system, dimension=not args.no_dimension))
-    if args.outputs is not None:
+    if check_outputs:
         reports.append(observability(system, dimension=not args.no_dimension))
     lines = [f"{args.file}: {system.n_states} states, model {system.model}"]
     result: dict[str, Any] = {"file": args.file}
@@ -221,9 +228,11 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("check", parents=[common], help="is a given input (sensor) design "
                        "structurally controllable (observable)? exit 0 yes, 1 no")
     p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="states with a dedicated input: 'a,b,c' or a file, one name a line")
+                   help="states with a dedicated input: 'a,b,c' or a file, one name a line "
+                   "(default: the inputs the file declares)")
     p.add_argument("--outputs", metavar="NAMES|FILE", default=None,
-                   help="states with a dedicated sensor: 'a,b,c' or a file, one name a line")
+                   help="states with a dedicated sensor: 'a,b,c' or a file, one name a line "
+                   "(default: the outputs the file declares)")
     p.add_argument("--no-dimension", action="store_true",
                    help="skip the generic controllable dimension (faster on huge failing cases)")
     p.set_defaults(func=_cmd_check)

@@ -165,3 +165,12 @@ def test_console_script_entry_point():
     r = subprocess.run([sys.executable, "-m", "netctl.cli", "drivers", HEATING],
                        capture_output=True, text=True)
     assert r.returncode == 0 and "minimum inputs (shared)" in r.stdout
+
+
+def test_check_uses_the_design_a_system_file_declares(capsys):
+    plant = str(ROOT / "networks" / "chemical_plant.toml")
+    code, out, _ = run(capsys, "check", plant, "--json")
+    d = json.loads(out)
+    # the file declares both inputs and outputs, so both properties are checked
+    assert {"controllability", "observability"} <= set(d)
+    assert code == (0 if d["controllable"] and d["observable"] else 1)
