@@ -14,6 +14,7 @@ Independent references used here (no netctl forcing code):
 from __future__ import annotations
 
 import itertools
+from contextlib import nullcontext
 from fractions import Fraction
 
 import networkx as nx
@@ -455,6 +456,19 @@ def test_strong_implies_weak(diagonal, rng):
         assert controllability(t, dimension=False).controllable, (diagonal, s.edges())
         assert t.n_states == n
     assert hits >= 8
+
+
+def test_free_class_contains_the_others(rng):
+    """free contains every other class, so strong under free implies strong under all;
+    nonzero and free coincide (both reduce to the standard rule; the exhaustive test
+    above checks each against realizations independently)."""
+    for _ in range(100):
+        s = _random_case(rng, int(rng.integers(2, 10)), 0.25, with_loops=True)
+        with pytest.warns(UserWarning) if s.n_self_loops else nullcontext():
+            verdict = {d: is_strongly_controllable(s, diagonal=d) for d in CONVENTIONS}
+        if verdict["free"]:
+            assert all(verdict.values())
+        assert verdict["free"] == verdict["nonzero"]
 
 
 # ---------------------------------------------------------------- minimum sets
