@@ -210,8 +210,8 @@ def energy(system: StructuredSystem, *, horizon: float | None = None) -> EnergyR
     return EnergyReport(
         n_states=n, n_inputs=B.shape[1], horizon=T, horizon_note=note, lambda_min=lmin,
         lambda_max=lmax, trace=float(np.trace(W)), log_det=ld, average_energy=avg_energy,
-        average_controllability=avg, gramian=W, state_names=system.state_names,
-        input_names=system.input_names, weights=_weights_of(system))
+        average_controllability=avg, gramian=W, state_names=tuple(system.state_names),
+        input_names=tuple(system.input_names), weights=_weights_of(system))
 
 
 @dataclass(frozen=True)
@@ -359,4 +359,4 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
         structural=struct, structural_objective=_logdet(W_struct),
         structural_lambda_min=max(0.0, float(np.linalg.eigvalsh(W_struct - base)[0])) if n
         else 0.0,
-        epsilon=eps, horizon=T, horizon_note=note, state_names=system.state_names)
+        epsilon=eps, horizon=T, horizon_note=note, state_names=tuple(system.state_names))

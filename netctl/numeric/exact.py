@@ -153,7 +153,7 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
     symmetric = bool(np.array_equal(A, A.T))
     if n == 0:
         return ExactControllability(0, 0, 0j, np.zeros(0, np.int64), True, np.inf, (),
-                                    symmetric, system.state_names, _weights_of(system))
+                                    symmetric, tuple(system.state_names), _weights_of(system))
     if symmetric:
         lam_r, V = la.eigh(A)
         lam = lam_r.astype(complex)
@@ -232,4 +232,4 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         verified=bool(dim == n), verification_margin=margin,
         multiplicities=tuple(sorted(mults, key=lambda m: (m.eigenvalue.real,
                                                           m.eigenvalue.imag))),
-        symmetric=symmetric, state_names=system.state_names, weights=_weights_of(system))
+        symmetric=symmetric, state_names=tuple(system.state_names), weights=_weights_of(system))

@@ -137,7 +137,7 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
     nrm = max(1.0, float(np.linalg.norm(A)))
     radius = 1e-6 * nrm if cluster_tol is None else float(cluster_tol)
     if n == 0:
-        return ModalReport(0, m, (), tol, system.state_names, system.input_names,
+        return ModalReport(0, m, (), tol, tuple(system.state_names), tuple(system.input_names),
                            _weights_of(system))
     col_norm = np.linalg.norm(B, axis=0)
     Bn = B / np.where(col_norm > 0, col_norm, 1.0)
@@ -169,5 +169,5 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
         modes.append(ModeReach(mu, int(idx.size), g, min(reach, 1.0), per, _support(Y)))
     modes.sort(key=lambda md: (md.reach, md.eigenvalue.real, md.eigenvalue.imag))
     return ModalReport(n_states=n, n_inputs=m, modes=tuple(modes), tolerance=tol,
-                       state_names=system.state_names, input_names=system.input_names,
+                       state_names=tuple(system.state_names), input_names=tuple(system.input_names),
                        weights=_weights_of(system))

@@ -298,7 +298,7 @@ def staircase(system: StructuredSystem, *, tol: float | None = None) -> RankTest
     return RankTest(method="staircase", n_states=system.n_states, dimension=dim,
                     margin=_margin(dec.kept, dec.dropped, t), smallest_kept=dec.kept,
                     largest_dropped=dec.dropped, tolerance=t,
-                    blocks=np.asarray(blocks, np.int64), state_names=system.state_names,
+                    blocks=np.asarray(blocks, np.int64), state_names=tuple(system.state_names),
                     uncontrollable_eigenvalues=np.sort_complex(ev),
                     weights=_weights_of(system))
 
@@ -413,7 +413,7 @@ def pbh(system: StructuredSystem, *, tol: float | None = None,
     radius = 1e-6 * max(1.0, float(np.linalg.norm(A))) if cluster_tol is None else float(cluster_tol)
     if n == 0:
         return RankTest("pbh", 0, 0, np.inf, np.inf, 0.0, t, np.zeros(0, np.int64),
-                        system.state_names, weights=_weights_of(system))
+                        tuple(system.state_names), weights=_weights_of(system))
     lam, VL = la.eig(A, left=True, right=False)
     dec = _Decisions()
     lost: list[LostMode] = []
@@ -453,7 +453,7 @@ def pbh(system: StructuredSystem, *, tol: float | None = None,
     return RankTest(method="pbh", n_states=n, dimension=n - n_lost,
                     margin=_margin(dec.kept, dec.dropped, t), smallest_kept=dec.kept,
                     largest_dropped=dec.dropped, tolerance=t,
-                    blocks=np.asarray(sizes, np.int64), state_names=system.state_names,
+                    blocks=np.asarray(sizes, np.int64), state_names=tuple(system.state_names),
                     lost_modes=tuple(lost), uncontrollable_eigenvalues=ev,
                     weights=_weights_of(system))
 
@@ -622,7 +622,7 @@ def modular(system: StructuredSystem, *, weights: str = "independent", seed: int
     bound = None if weights == "uniform" else min(1.0, n * n / (prime - 1)) ** trials
     return RankTest(method="modular", n_states=n, dimension=best, margin=np.inf,
                     smallest_kept=np.inf, largest_dropped=0.0, tolerance=0.0,
-                    blocks=np.zeros(0, np.int64), state_names=system.state_names,
+                    blocks=np.zeros(0, np.int64), state_names=tuple(system.state_names),
                     failure_bound=bound, weights=weights,
                     note=f"exact rank over GF({prime}), {reps} trial(s)")
 
@@ -691,8 +691,8 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
     indptr, indices, n_cols = stack_AB(system.A, system.B)
     row_match, _ = maximum_matching(indptr, indices, n_cols)
     size = int(np.count_nonzero(row_match >= 0))
-    base = dict(method="certificate", n_states=n, blocks=np.zeros(0, np.int64),
-                state_names=system.state_names, weights=weights)
+    base: dict[str, Any] = dict(method="certificate", n_states=n, blocks=np.zeros(0, np.int64),
+                state_names=tuple(system.state_names), weights=weights)
     n_inacc = int(np.count_nonzero(~acc))
     if size < n or n_inacc:
         why = []

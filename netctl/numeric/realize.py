@@ -241,5 +241,5 @@ def _swing(system: StructuredSystem, rng: np.random.Generator, tag: str) -> Stru
                          shape=(system.n_outputs, n2))
         nodes = {key: np.repeat(np.asarray(col), 2) for key, col in system.nodes.items()}
     return StructuredSystem(A=A, B=B, C=C, state_names=state_names,
-                            input_names=system.input_names, output_names=system.output_names,
+                            input_names=tuple(system.input_names), output_names=system.output_names,
                             nodes=nodes, weighted=True, model=tag)

@@ -284,7 +284,7 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
         model=first.model, structural_controllable=structural.controllable,
         structural_dimension=s_dim, samples=tuple(results), seeds=seeds,
         agrees=not bad, lost_modes=tuple(lost), findings=tuple(findings),
-        state_names=first.state_names, input_names=first.input_names,
+        state_names=tuple(first.state_names), input_names=tuple(first.input_names),
         exact_dimensions=tuple(exact))
 
 
