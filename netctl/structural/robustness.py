@@ -38,6 +38,7 @@ from netctl.structural.roles import (
     link_roles,
     matching_facts,
     matching_loss_after_node_removal,
+    node_role_codes,
     node_roles,
 )
 from netctl.system import StructuredSystem
@@ -442,7 +443,8 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
     else:
         src = np.arange(n, dtype=np.int64)
         tgt = src.copy()
-        role = node_roles(system).role
+        role = node_role_codes(fA.indptr, fA.indices, fA.col_match)[0] if n else \
+            np.zeros(0, np.int8)
         loss = matching_loss_after_node_removal(fA, src) if n else np.zeros(0, np.int64)
         after = np.maximum(n - 1 - (fA.matching_size - loss), 1 if n > 1 else 0)
     k = src.size

@@ -290,6 +290,28 @@ def _n_d(n: int, size: int) -> int:
     return max(n - size, 1) if n else 0
 
 
+def node_role_codes(indptr: np.ndarray, indices: np.ndarray, col_match: np.ndarray,
+                    ) -> tuple[np.ndarray, int, str]:
+    """Role codes (see :data:`NODE_ROLES`), matching size and basis, given the CSR of a
+    square ``A`` and the column side of one of its maximum matchings."""
+    n = indptr.size - 1
+    size = int(np.count_nonzero(col_match >= 0))
+    indeg = np.diff(indptr)
+    role = np.full(n, 2, np.int8)
+    if size < n:
+        reached, _ = alternating_reach_rows(indptr, indices, n, col_match)
+        role[reached] = 1
+        role[indeg == 0] = 0
+        return role, size, "matching"
+    k, labels = strongly_connected_components(indptr, indices)
+    src = condensation_sources(indptr, indices, labels, k)
+    sizes = np.bincount(labels, minlength=k)
+    in_src = src[labels]
+    role[in_src] = 1
+    role[in_src & (sizes[labels] == 1)] = 0
+    return role, size, "source-components"
+
+
 def node_roles(system: StructuredSystem) -> NodeRoles:
     r"""Critical, intermittent and redundant states for control (Jia et al. [1]_).
 
@@ -351,27 +373,10 @@ def node_roles(system: StructuredSystem) -> NodeRoles:
     indptr = A.indptr.astype(np.int64)
     indices = A.indices.astype(np.int64)
     if n == 0:
-        role = np.zeros(0, np.int8)
-        size = 0
-        basis = "empty"
+        role, size, basis = np.zeros(0, np.int8), 0, "empty"
     else:
-        row_match, col_match = maximum_matching(indptr, indices, n)
-        size = int(np.count_nonzero(row_match >= 0))
-        indeg = np.diff(indptr)
-        role = np.full(n, 2, np.int8)
-        if size < n:
-            basis = "matching"
-            reached, _ = alternating_reach_rows(indptr, indices, n, col_match)
-            role[reached] = 1
-            role[indeg == 0] = 0
-        else:
-            basis = "source-components"
-            k, labels = strongly_connected_components(indptr, indices)
-            src = condensation_sources(indptr, indices, labels, k)
-            sizes = np.bincount(labels, minlength=k)
-            in_src = src[labels]
-            role[in_src] = 1
-            role[in_src & (sizes[labels] == 1)] = 0
+        _, col_match = maximum_matching(indptr, indices, n)
+        role, size, basis = node_role_codes(indptr, indices, col_match)
     return NodeRoles(
         n_states=n, role=role, critical=np.flatnonzero(role == 0),
         intermittent=np.flatnonzero(role == 1), redundant=np.flatnonzero(role == 2),
