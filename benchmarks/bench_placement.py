@@ -186,7 +186,7 @@ def main() -> None:
         part2([1000, 3000], min(a.time_limit, 20))
         part3(10_000)
     else:
-        part1([10_000, 100_000], [3.0, 8.0], with_unreduced=100_000)
+        part1([10_000, 100_000], [1.5, 3.0, 8.0], with_unreduced=100_000)
         part2([1000, 3000, 10_000, 30_000], a.time_limit)
         part3(100_000)
 

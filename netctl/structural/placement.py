@@ -67,7 +67,7 @@ METHODS: tuple[str, ...] = ("auto", "exact", "greedy")
 #: :func:`place_inputs`); larger problems use the greedy. See benchmarks/RESULTS-placement.md.
 MILP_MAX_VARIABLES: int = 200_000
 
-#: Largest number of useful candidates for which the best-effort (budget too small)
+#: Largest number of affordable candidates for which the best-effort (budget too small)
 #: design is found by trying every affordable subset with ``method="auto"``.
 EXHAUSTIVE_MAX_CANDIDATES: int = 12
 
@@ -618,7 +618,7 @@ def place_inputs(
     **Best effort under a budget.** For generic weights the controllable subspace of a
     set of input columns is the sum of their Krylov subspaces, so its dimension --
     generically Hosoe's dimension [2]_ -- is monotone submodular in the set of chosen
-    columns. Exhaustive search below :data:`EXHAUSTIVE_MAX_CANDIDATES` useful
+    columns. Exhaustive search below :data:`EXHAUSTIVE_MAX_CANDIDATES` affordable
     candidates; otherwise cost-effectiveness greedy plus the best single candidate,
     which reaches ``(1 - 1/e)/2`` of the optimum under a knapsack budget (Khuller, Moss
     & Naor [4]_; from memory) and ``1 - 1/e`` for equal costs (Nemhauser, Wolsey & Fisher
