@@ -76,7 +76,8 @@ class Completion:
     row_match: np.ndarray
 
 
-def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None) -> Completion:
+def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
+               prefer: np.ndarray | None = None) -> Completion:
     """Fewest dedicated inputs to add so that ``(A, [B, new])`` is structurally controllable.
 
     Count = ``m_u + beta - alpha`` (Commault & Dion 2013; Pequito, Kar & Aguiar 2016):
@@ -89,6 +90,10 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None) ->
     as possible (:func:`netctl.graph.matching.extend_matching`). Components that already
     hold an unmatched state start with their extra column matched to it; only the others
     are searched for, so the usual case costs nothing beyond the first matching.
+
+    ``prefer`` (boolean per state, e.g. the node table's ``actuator`` column) decides the
+    representative of a source component that still needs one: its smallest preferred
+    state, else its smallest state. It does not change the count.
     """
     n = A.shape[0]
     st = st or structure_of(A)
@@ -132,6 +137,9 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None) ->
     # representative: the smallest state of each missed source component
     if missed.size:
         idx = np.flatnonzero(np.isin(st.scc, missed))
+        if prefer is not None:
+            # preferred states first, each group in state order (stable sort)
+            idx = idx[np.argsort(~np.asarray(prefer, bool)[idx], kind="stable")]
         _, first = np.unique(st.scc[idx], return_index=True)
         reps = np.sort(idx[first])
     else:

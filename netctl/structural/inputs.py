@@ -129,7 +129,10 @@ def minimum_inputs(system: StructuredSystem, *, dedicated: bool = False) -> Inpu
     whose unmatched states lie in as many source components as possible (``alpha``), so
     the set of driven states is as small as possible (it is the dedicated optimum); with
     shared inputs, input 0 also acts on one state of each source component still
-    unreached. When ``n > 0`` at least one input is needed.
+    unreached. When ``n > 0`` at least one input is needed. Where a source component needs
+    a representative, a state the node table allows to host an actuator (column
+    ``actuator``; ``sensor`` for sensors) is preferred; constrained and cost-aware
+    placement proper is :mod:`netctl.structural.placement`.
 
     The minimum set is one of possibly many; ties are broken deterministically by the
     matching order (state indices). Cost: two maximum matchings and the strongly
@@ -170,7 +173,12 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
         raise OptionError(f"dedicated must be True or False, found {dedicated!r}.")
     n = system.n_states
     st = structure_of(system.A)
-    comp = completion(system.A, sp.csr_array((n, 0)), st)
+    # where a source component needs a representative, prefer states that may host one
+    eligible = system.nodes.get("actuator" if kind == "inputs" else "sensor")
+    prefer = None
+    if eligible is not None and eligible.dtype == bool and eligible.any():
+        prefer = eligible
+    comp = completion(system.A, sp.csr_array((n, 0)), st, prefer=prefer)
     drivers = comp.states
     unmatched = comp.unmatched
     reps = comp.representatives

@@ -164,3 +164,16 @@ def test_summary_counts():
     assert summ.n_sink_components == 2  # {2}, {4}
     assert summ.n_inputs == 5 - summ.structural_rank
     assert summ.n_dedicated_inputs == minimum_inputs(s, dedicated=True).n_inputs
+
+
+def test_representatives_prefer_eligible_states():
+    # second-order model: actuators may sit on velocity states only (netctl.models);
+    # the unconstrained count is unchanged, and the chosen states respect eligibility
+    from netctl.models import apply_model
+
+    ring = from_edges([(i, (i + 1) % 5) for i in range(5)] + [((i + 1) % 5, i) for i in range(5)], 5)
+    s = apply_model(ring, "second-order")
+    d = minimum_inputs(s)
+    assert d.n_inputs == minimum_inputs(s._replace(nodes={})).n_inputs
+    assert all(name.endswith(":vel") for name in d.driver_names)
+    assert controllability(d.apply(s)).controllable
