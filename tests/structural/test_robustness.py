@@ -312,3 +312,26 @@ def test_what_if_role_changes_match_a_name_by_name_comparison():
               for d in link_roles(w.after).to_dict()["links"]}
         expect_l = {e: (lb[e], la[e]) for e in lb if e in la and lb[e] != la[e]}
         assert w.link_role_changes == expect_l
+
+
+def test_dominators_equal_networkx():
+    # The dominator tree behind cut-off states, against networkx.immediate_dominators
+    # (Cooper, Harvey & Kennedy's algorithm there as well, written independently).
+    from netctl.structural.robustness import _reach_structure
+
+    rng = np.random.default_rng(9)
+    for _ in range(5):
+        n = 400
+        m = int(n * 1.3)
+        key = np.unique(rng.integers(0, n, m) * n + rng.integers(0, n, m))
+        s = StructuredSystem.from_edges(key % n, key // n, n)
+        drivers = rng.choice(n, 4, replace=False)
+        s = s.with_inputs(sorted(drivers.tolist()))
+        r = _reach_structure(s.A, s.B)
+        g = nx.DiGraph()
+        g.add_nodes_from(range(n + 1))
+        u, v = s.edges()
+        g.add_edges_from(zip(u.tolist(), v.tolist()))
+        g.add_edges_from((n, int(d)) for d in drivers)
+        idom = nx.immediate_dominators(g, n)
+        assert [idom.get(i, -1) for i in range(n)] == r.idom.tolist()
