@@ -190,9 +190,9 @@ def _apply_q(qr: np.ndarray, tau: np.ndarray, A: np.ndarray, k0: int, c0: int = 
             T[:j, j] = -tau[j] * (T[:j, :j] @ (V[:, :j].conj().T @ V[:, j]))
     Vh = V.conj().T
     rows = A[k0:, c0:]
-    A[k0:, c0:] = rows - V @ (T.conj().T @ (Vh @ rows))
+    rows -= V @ (T.conj().T @ (Vh @ rows))      # views: updated in place
     cols = A[:, k0:]
-    A[:, k0:] = cols - ((cols @ V) @ T) @ Vh
+    cols -= ((cols @ V) @ T) @ Vh
 
 
 def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
