@@ -34,10 +34,11 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
+from numba import njit
 
 from netctl.errors import NetworkFileError, OptionError
 from netctl.graph.dm import alternating_reach_rows
-from netctl.graph.matching import maximum_matching
+from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural._engine import Structure, accessible_states, stack_AB, structure_of
 from netctl.system import StructuredSystem
 
@@ -1141,8 +1142,58 @@ def _milp(prob: _Reduced, cands: Candidates, time_limit: float) -> _Outcome:
 
 
 # ====================================================================== candidates: greedy
+@njit(cache=True, nogil=True)
+def _augment_from(k_col, start_rows, tptr, tind, rm, cm, seen, stamp, parent, queue,
+                  dead, commit):  # pragma: no cover - compiled
+    """Is there an augmenting path from the new column ``k_col`` (adjacent to
+    ``start_rows``)? Breadth-first over rows: row -> its matched column -> that column's
+    rows, until an unmatched row. With ``commit`` the path is flipped (rank + 1).
+
+    Rows visited by a failed search cannot reach an unmatched row, and adding columns
+    never gives them one again (the over-determined block only shrinks), so they are
+    marked ``dead`` and skipped from then on: failed searches cost O(E) in total."""
+    tail = 0
+    for r in start_rows:
+        if seen[r] != stamp and not dead[r]:
+            seen[r] = stamp
+            parent[r] = k_col
+            queue[tail] = r
+            tail += 1
+    head = 0
+    while head < tail:
+        r = queue[head]
+        head += 1
+        c = rm[r]
+        if c < 0:
+            if commit:
+                while True:
+                    pc = parent[r]
+                    prev = cm[pc]
+                    rm[r] = pc
+                    cm[pc] = r
+                    if pc == k_col:
+                        break
+                    r = prev
+            return True
+        for p in range(tptr[c], tptr[c + 1]):
+            r2 = tind[p]
+            if seen[r2] != stamp and not dead[r2]:
+                seen[r2] = stamp
+                parent[r2] = c
+                queue[tail] = r2
+                tail += 1
+    for i in range(tail):
+        dead[queue[i]] = True
+    return False
+
+
 def _greedy_cover(prob: _Reduced, cands: Candidates) -> _Outcome:
-    """Cost-effectiveness greedy for the submodular cover g(S) = rank + sources touched."""
+    """Cost-effectiveness greedy for the submodular cover g(S) = rank + sources touched.
+
+    Lazy evaluation (stale gains are upper bounds by submodularity); the rank gain of a
+    candidate (0 or 1) is one augmenting-path search from its column, local to the part
+    of the graph it can reach.
+    """
     K = cands.n_candidates
     cost = cands.cost
     nD = prob.D.size
@@ -1150,47 +1201,56 @@ def _greedy_cover(prob: _Reduced, cands: Candidates) -> _Outcome:
     cc = prob.cand_comp
     covered = np.zeros(prob.unreached.size, bool)
     chosen: list[int] = []
-    taken = np.zeros(K, bool)
-    taken[~prob.useful] = True
-    # matching of D rows into real columns + chosen candidate columns
+    n_real = prob.n_real
+    # columns: real in-neighbours of D, then one per candidate; transpose = column -> rows
+    tptr_r, tind_r = transpose_csr(prob.sub_indptr, prob.sub_indices, np.int64(n_real))
+    tptr = np.concatenate([tptr_r, tptr_r[-1] + cD.indptr[1:].astype(np.int64)])
+    tind = np.concatenate([tind_r, cD.indices.astype(np.int64)])
     rm = np.full(nD, -1, np.int64)
     if nD:
-        rm, _ = maximum_matching(prob.sub_indptr, prob.sub_indices, prob.n_real)
-    matched = int(np.count_nonzero(rm >= 0))
-    need_rank = nD - matched
-    chosen_cols_rows: list[np.ndarray] = []
-    single = _segment_sum(np.ones(cD.nnz), cD.indptr) > 0
-    max_gain = int((single.astype(np.int64) + np.diff(cc.indptr)).max(initial=0))
-    ptr, ind = prob.sub_indptr, prob.sub_indices
-    while need_rank > 0 or not covered.all():
-        if need_rank > 0:
-            n_cols = prob.n_real + len(chosen_cols_rows)
-            cm = _col_match(rm, n_cols)
-            rows_reach, _ = alternating_reach_rows(ptr, ind, n_cols, cm)
-            g_rank = _segment_sum(rows_reach[cD.indices].astype(np.float64), cD.indptr) > 0
-        else:
-            g_rank = np.zeros(K, bool)
-        g_cov = _segment_sum((~covered)[cc.indices].astype(np.float64), cc.indptr)
-        gain = g_rank + g_cov
-        gain[taken] = 0
-        if not np.any(gain > 0):  # cannot happen when feasible
-            break
-        with np.errstate(divide="ignore", invalid="ignore"):
-            ratio = np.where(gain > 0, np.where(cost > 0, gain / np.where(cost > 0, cost, 1),
-                                                np.inf), -1.0)
-        k = int(np.argmax(ratio))
-        taken[k] = True
+        rm, _ = maximum_matching(prob.sub_indptr, prob.sub_indices, n_real)
+    cm = np.full(n_real + K, -1, np.int64)
+    mr = np.flatnonzero(rm >= 0)
+    cm[rm[mr]] = mr
+    need_rank = nD - int(mr.size)
+    seen = np.zeros(nD, np.int64)
+    parent = np.full(nD, -1, np.int64)
+    queue = np.empty(max(nD, 1), np.int64)
+    dead = np.zeros(nD, np.bool_)
+    stamp = 0
+    single = np.diff(cD.indptr) > 0
+    n_comp = np.diff(cc.indptr).astype(np.int64)
+    max_gain = int((single.astype(np.int64) + n_comp).max(initial=0))
+    rank_alive = single.copy()
+    heap = [(-_ratio(float(single[k]) + float(n_comp[k]), float(cost[k])), k)
+            for k in np.flatnonzero(prob.useful).tolist()]
+    heapq.heapify(heap)
+    while (need_rank > 0 or not covered.all()) and heap:
+        _, k = heapq.heappop(heap)
+        rows_k = cD.indices[cD.indptr[k]:cD.indptr[k + 1]].astype(np.int64)
+        cov = int(np.count_nonzero(~covered[cc.indices[cc.indptr[k]:cc.indptr[k + 1]]]))
+        rg = 0
+        if need_rank > 0 and rank_alive[k]:
+            stamp += 1
+            if _augment_from(np.int64(n_real + k), rows_k, tptr, tind, rm, cm, seen,
+                             np.int64(stamp), parent, queue, dead, False):
+                rg = 1
+            else:
+                rank_alive[k] = False  # the rank gain never comes back (submodularity)
+        g = rg + cov
+        if g == 0:
+            continue
+        r = _ratio(float(g), float(cost[k]))
+        if heap and r < -heap[0][0]:
+            heapq.heappush(heap, (-r, k))
+            continue
         chosen.append(k)
         covered[cc.indices[cc.indptr[k]:cc.indptr[k + 1]]] = True
-        if g_rank[k]:
-            rows_k = cD.indices[cD.indptr[k]:cD.indptr[k + 1]]
-            chosen_cols_rows.append(rows_k)
-            new_col = prob.n_real + len(chosen_cols_rows) - 1
-            ind, ptr = _add_column(ptr, ind, rows_k, new_col)
-            rm, _ = maximum_matching(ptr, ind, new_col + 1, row_match=rm,
-                                     col_match=_col_match(rm, new_col + 1))
-            matched = int(np.count_nonzero(rm >= 0))
-            need_rank = nD - matched
+        if rg:
+            stamp += 1
+            _augment_from(np.int64(n_real + k), rows_k, tptr, tind, rm, cm, seen,
+                          np.int64(stamp), parent, queue, dead, True)
+            need_rank -= 1
     chosen_a = np.array(sorted(chosen), np.int64)
     total = float(cost[chosen_a].sum())
     H = sum(1.0 / i for i in range(1, max(max_gain, 1) + 1))
@@ -1201,29 +1261,12 @@ def _greedy_cover(prob: _Reduced, cands: Candidates) -> _Outcome:
         if c_rank.size >= prob.deficiency:
             lb = max(lb, float(c_rank[:prob.deficiency].sum()))
     if prob.unreached.size:
-        ccs = cc.tocsc()
-        per = [float(cost[ccs.indices[ccs.indptr[j]:ccs.indptr[j + 1]]].min())
-               for j in range(min(prob.unreached.size, 10_000))]
-        lb = max(lb, max(per, default=0.0))
+        ccs = cc.tocsc()  # feasible: every unreached source has a candidate
+        per = np.minimum.reduceat(cost[ccs.indices], ccs.indptr[:-1])
+        lb = max(lb, float(per.max()))
     return _Outcome("candidates", "greedy", True, False, chosen_a, total, min(lb, total), None,
                     None, [], f"greedy submodular cover: cost <= H({max_gain}) = {H:.3f} x "
                     "the optimum (Wolsey 1982)")
-
-
-def _col_match(rm: np.ndarray, n_cols: int) -> np.ndarray:
-    cm = np.full(n_cols, -1, np.int64)
-    r = np.flatnonzero(rm >= 0)
-    cm[rm[r]] = r
-    return cm
-
-
-def _add_column(ptr: np.ndarray, ind: np.ndarray, rows: np.ndarray, col: int
-                ) -> tuple[np.ndarray, np.ndarray]:
-    ex_ptr = np.zeros(ptr.size, np.int64)
-    cnt = np.zeros(ptr.size - 1, np.int64)
-    cnt[rows] = 1
-    np.cumsum(cnt, out=ex_ptr[1:])
-    return _augment_rows(ptr, ind, ex_ptr, np.zeros(rows.size, np.int64), col)
 
 
 # ====================================================================== best effort
