@@ -146,3 +146,13 @@ def test_close_decisions_are_settled_exactly():
     assert any(x is not None for x in v.exact_dimensions)   # this case does need it
     d = v.to_dict()
     assert {"uncertain", "exact_dimension", "dimension", "margin"} <= set(d["samples"][0])
+
+
+def test_large_network_uses_the_certificate_and_refuses_constrained_families():
+    n = 3200
+    big = from_edges([(i, i + 1) for i in range(n - 1)], n, inputs=[0])
+    v = verify(big, samples=1)
+    assert v.method == "certificate" and v.agrees and v.samples[0].dimension == n
+    with pytest.raises(OptionError, match="the sparse certificate only covers 'independent' "
+                       "and 'given' weights"):
+        verify(big, weights="uniform")
