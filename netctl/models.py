@@ -94,15 +94,18 @@ def second_order(network: StructuredSystem) -> StructuredSystem:
         warnings.warn(f"second-order model: {k} self-loop{'s' if k > 1 else ''} of the "
                       "network are part of the own-position term of the velocity state.",
                       stacklevel=2)
-    rows, cols, vals = A.row[~loop].astype(np.int64), A.col[~loop].astype(np.int64), A.data[~loop]
+    rows, cols = A.row[~loop].astype(np.int64), A.col[~loop].astype(np.int64)
+    vals: np.ndarray = A.data[~loop]
     idx = np.arange(n, dtype=np.int64)
     pos, vel = 2 * idx, 2 * idx + 1
+    own: np.ndarray = np.ones(n)
+    damp: np.ndarray = np.ones(n)
+    couple: np.ndarray = np.ones(rows.size)
     if network.weighted:
         k_i = np.bincount(rows, weights=vals, minlength=n)
-        k_i = np.where(k_i == 0, 1.0, k_i)
-        own, damp, couple = -k_i, -np.ones(n), vals
-    else:
-        own, damp, couple = np.ones(n), np.ones(n), np.ones(rows.size)
+        own = -np.where(k_i == 0, 1.0, k_i)
+        damp = -damp
+        couple = vals.astype(np.float64)
     r = np.concatenate([pos, vel, vel, 2 * rows + 1])
     c = np.concatenate([vel, vel, pos, 2 * cols])
     d = np.concatenate([np.ones(n), damp, own, couple])

@@ -131,7 +131,7 @@ def read_state_list(text_or_path: str) -> list[str]:
 
     p = Path(text_or_path)
     if p.is_file():
-        out = []
+        out: list[str] = []
         for raw in read_text(p).splitlines():
             line = raw.split("#", 1)[0].strip()
             out.extend(x.strip() for x in line.split(",") if x.strip())

@@ -71,8 +71,8 @@ def atomic_write(path: str | os.PathLike[str], mode: str = "w") -> Iterator[IO]:
     directory = target.parent if str(target.parent) else Path(".")
     fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=directory)
     try:
-        with os.fdopen(fd, mode, **({} if "b" in mode else {"encoding": "utf-8",
-                                                            "newline": "\n"})) as fh:
+        kwargs: dict[str, str] = {} if "b" in mode else {"encoding": "utf-8", "newline": "\n"}
+        with os.fdopen(fd, mode, **kwargs) as fh:  # type: ignore[call-overload]
             yield fh
         os.replace(tmp, target)
     except BaseException:

@@ -26,7 +26,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["scan_chunk", "rehash", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
+__all__ = ["scan_chunk", "rehash", "mark_present", "remap", "int_names_text", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
            "STATUS_NOT_INT", "STATUS_GROW", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ST_SIZE"]
 
 MODE_INT = 0
@@ -46,11 +46,6 @@ ST_SIZE = 16
 _POW10 = np.array([10.0 ** k for k in range(23)], dtype=np.float64)
 _FNV_OFFSET = np.uint64(14695981039346656037)
 _FNV_PRIME = np.uint64(1099511628211)
-
-
-@njit(cache=True, nogil=True, inline="always")
-def _is_sep(c: np.uint8) -> bool:
-    return c == 44 or c == 9 or c == 59 or c == 32 or c == 13 or c == 11 or c == 12
 
 
 @njit(cache=True, nogil=True, inline="always")
@@ -227,43 +222,134 @@ def rehash(table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
         table[slot, 1] = _key(names_buf, s, e, h)
 
 
+# byte classes for the scanner: 0 other, 1 separator, 2 line break, 3 comment
+_CLASS = np.zeros(256, np.uint8)
+for _c in b",\t; \r\v\f":
+    _CLASS[_c] = 1
+_CLASS[10] = 2
+_CLASS[35] = 3
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _save(st: np.ndarray, p: int, line: int, ncols: int, ne: int, ni: int, nfb: int,
+          nzero: int, zline: int) -> None:
+    st[_POS] = p
+    st[_LINE] = line
+    st[_NCOLS] = ncols
+    st[_NE] = ne
+    st[_NI] = ni
+    st[_NFB] = nfb
+    st[_NZERO] = nzero
+    st[_ZLINE] = zline
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _fast_int(buf: np.ndarray, q: int, n: int) -> tuple[bool, int, int]:
+    """A canonical integer at ``q`` ending at a separator, '#', a line break or the end."""
+    neg = False
+    if q < n and buf[q] == 45:
+        neg = True
+        q += 1
+    ds = q
+    v = 0
+    while q < n:
+        d = np.int64(buf[q]) - 48
+        if d < 0 or d > 9:
+            break
+        v = v * 10 + d
+        q += 1
+    nd = q - ds
+    if nd == 0 or nd > 18 or (buf[ds] == 48 and (nd > 1 or neg)):
+        return False, 0, q
+    if q < n and _CLASS[buf[q]] == 0:
+        return False, 0, q
+    return True, -v if neg else v, q
+
+
 @njit(cache=True, nogil=True)
 def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                src: np.ndarray, dst: np.ndarray, w: np.ndarray, iso: np.ndarray,
                fb_edge: np.ndarray, fb_line: np.ndarray, fb_start: np.ndarray,
                fb_end: np.ndarray, table: np.ndarray, names_buf: np.ndarray,
                name_pos: np.ndarray, name_line: np.ndarray) -> int:
-    """Scan ``buf`` from ``st[POS]``; append edges, isolated names and weight fallbacks.
+    """Scan ``buf`` from ``st[POS]``; append links, single names and weight fallbacks.
 
-    Returns a status; on ``STATUS_ERROR`` the error code and the byte range of the bad
-    line are in ``st``; on ``STATUS_NOT_INT`` ``st[LINE]`` is the line of the token; on
-    ``STATUS_GROW`` (string mode) the name table or buffers must grow before the scan
-    resumes at ``st[POS]``.
-    Output arrays must have room for one entry per line of ``buf``.
+    Links go to ``src``/``dst``/``w`` from index ``st[NE]`` on; single-name lines to
+    ``iso`` and weight fallbacks to ``fb_*`` from index 0 (per chunk). Returns a status;
+    on ``STATUS_ERROR`` the error code and the byte range of the bad line are in ``st``;
+    on ``STATUS_NOT_INT`` ``st[LINE]`` is the line of the token; on ``STATUS_GROW``
+    (string mode) the name table or buffers must grow before the scan resumes at
+    ``st[POS]``. The arrays must have room for one entry per line of ``buf``.
     """
     n = buf.size
     p = st[_POS]
     line = st[_LINE]
     ncols = st[_NCOLS]
+    ne = st[_NE]
+    ni = st[_NI]
+    nfb = st[_NFB]
+    nzero = st[_NZERO]
+    zline = st[_ZLINE]
     starts = np.zeros(4, np.int64)
     ends = np.zeros(4, np.int64)
     ids = np.zeros(2, np.int64)
     while p < n:
+        if mode == MODE_INT:
+            # fast path: 'int sep int [sep weight] [seps] [# comment]' in one pass
+            q = p
+            while q < n and (buf[q] == 32 or buf[q] == 9):
+                q += 1
+            ok, a, q = _fast_int(buf, q, n)
+            if ok and q < n and _CLASS[buf[q]] == 1:
+                while q < n and _CLASS[buf[q]] == 1:
+                    q += 1
+                ok, b, q = _fast_int(buf, q, n)
+                if ok:
+                    while q < n and _CLASS[buf[q]] == 1:
+                        q += 1
+                    nf = 2
+                    x = 0.0
+                    if q < n and _CLASS[buf[q]] == 0:
+                        ws = q
+                        while q < n and _CLASS[buf[q]] == 0:
+                            q += 1
+                        ok, x = _parse_float(buf, ws, q)
+                        nf = 3
+                        while q < n and _CLASS[buf[q]] == 1:
+                            q += 1
+                    if ok and q < n and buf[q] == 35:
+                        while q < n and buf[q] != 10:
+                            q += 1
+                    if ok and (q >= n or buf[q] == 10) and (ncols == 0 or ncols == nf):
+                        ncols = nf
+                        src[ne] = a
+                        dst[ne] = b
+                        if nf == 3:
+                            w[ne] = x
+                            if x == 0.0:
+                                if nzero == 0:
+                                    zline = line
+                                nzero += 1
+                        ne += 1
+                        p = q + 1
+                        line += 1
+                        continue
+        # general path: tokenize the line, then interpret it
         nf = 0
         intok = False
         q = p
         while q < n:
-            c = buf[q]
-            if c == 10:
+            c = _CLASS[buf[q]]
+            if c == 2:
                 break
-            if c == 35:  # '#': comment to end of line
+            if c == 3:  # '#': comment to end of line
                 if intok and nf <= 4:
                     ends[nf - 1] = q
                 intok = False
                 while q < n and buf[q] != 10:
                     q += 1
                 break
-            if _is_sep(c):
+            if c == 1:
                 if intok:
                     if nf <= 4:
                         ends[nf - 1] = q
@@ -276,72 +362,94 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
             q += 1
         if intok and nf <= 4:
             ends[nf - 1] = q
-        if nf > 3:
-            st[_ERR] = ERR_TOO_MANY
+        if nf > 3 or (nf >= 2 and ncols != 0 and ncols != nf):
+            st[_ERR] = ERR_TOO_MANY if nf > 3 else ERR_MIXED
             st[_ELS] = p
             st[_ELE] = q
-            st[_POS] = p
-            st[_LINE] = line
-            st[_NCOLS] = ncols
+            _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
             return STATUS_ERROR
         if nf >= 2:
-            if ncols == 0:
-                ncols = nf
-            elif ncols != nf:
-                st[_ERR] = ERR_MIXED
-                st[_ELS] = p
-                st[_ELE] = q
-                st[_POS] = p
-                st[_LINE] = line
-                st[_NCOLS] = ncols
-                return STATUS_ERROR
+            ncols = nf
         if nf >= 1 and mode == MODE_STR and (
                 (st[_NN] + 2) * 2 > table.shape[0] or st[_NN] + 2 > name_pos.shape[0]
                 or st[_NUSED] + (q - p) > names_buf.size):
-            st[_POS] = p
-            st[_LINE] = line
-            st[_NCOLS] = ncols
+            _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
             return STATUS_GROW
         if nf >= 1:
             for f in range(min(nf, 2)):
                 if mode == MODE_INT:
                     ok, v = _parse_int(buf, starts[f], ends[f])
                     if not ok:
-                        st[_POS] = p
-                        st[_LINE] = line
-                        st[_NCOLS] = ncols
+                        _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
                         return STATUS_NOT_INT
                     ids[f] = v
                 else:
                     ids[f] = _lookup(buf, starts[f], ends[f], line, table, names_buf,
                                      name_pos, name_line, st)
             if nf == 1:
-                iso[st[_NI]] = ids[0]
-                st[_NI] += 1
+                iso[ni] = ids[0]
+                ni += 1
             else:
-                k = st[_NE]
-                src[k] = ids[0]
-                dst[k] = ids[1]
+                src[ne] = ids[0]
+                dst[ne] = ids[1]
                 if nf == 3:
                     ok, x = _parse_float(buf, starts[2], ends[2])
                     if ok:
-                        w[k] = x
+                        w[ne] = x
                         if x == 0.0:
-                            if st[_NZERO] == 0:
-                                st[_ZLINE] = line
-                            st[_NZERO] += 1
+                            if nzero == 0:
+                                zline = line
+                            nzero += 1
                     else:
-                        j = st[_NFB]
-                        fb_edge[j] = k
-                        fb_line[j] = line
-                        fb_start[j] = starts[2]
-                        fb_end[j] = ends[2]
-                        st[_NFB] = j + 1
-                        w[k] = 0.0
-                st[_NE] = k + 1
+                        fb_edge[nfb] = ne
+                        fb_line[nfb] = line
+                        fb_start[nfb] = starts[2]
+                        fb_end[nfb] = ends[2]
+                        nfb += 1
+                        w[ne] = 0.0
+                ne += 1
         p = q + 1
         line += 1
-    st[_POS] = p
-    st[_LINE] = line
-    st[_NCOLS] = ncols
+    _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
     return STATUS_DONE
+
+
+@njit(cache=True, nogil=True)
+def mark_present(a: np.ndarray, present: np.ndarray, lo: int) -> None:
+    """``present[v - lo] = True`` for every value ``v`` of ``a``."""
+    for i in range(a.size):
+        present[a[i] - lo] = True
+
+
+@njit(cache=True, nogil=True)
+def remap(a: np.ndarray, ids: np.ndarray, lo: int) -> None:
+    """``a[i] = ids[a[i] - lo]`` in place."""
+    for i in range(a.size):
+        a[i] = ids[a[i] - lo]
+
+
+@njit(cache=True, nogil=True)
+def int_names_text(values: np.ndarray) -> np.ndarray:
+    """The decimal text of ``values``, one a line, as bytes (for one fast decode)."""
+    out = np.empty(values.size * 21 + 1, np.uint8)
+    k = 0
+    digits = np.empty(20, np.uint8)
+    for i in range(values.size):
+        v = values[i]
+        if v < 0:
+            out[k] = 45
+            k += 1
+            v = -v
+        m = 0
+        while True:
+            digits[m] = 48 + v % 10
+            m += 1
+            v //= 10
+            if v == 0:
+                break
+        for j in range(m - 1, -1, -1):
+            out[k] = digits[j]
+            k += 1
+        out[k] = 10
+        k += 1
+    return out[:k]

@@ -65,10 +65,10 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
                              "weights.")
         zero = w == 0
         if zero.any():
-            k = int(zero.sum())
-            warnings.warn(f"{path}: {k} link{'s' if k > 1 else ''} with weight 0 "
-                          f"{'are' if k > 1 else 'is'} not a link and "
-                          f"{'were' if k > 1 else 'was'} left out.", stacklevel=3)
+            nz = int(zero.sum())
+            warnings.warn(f"{path}: {nz} link{'s' if nz > 1 else ''} with weight 0 "
+                          f"{'are' if nz > 1 else 'is'} not a link and "
+                          f"{'were' if nz > 1 else 'was'} left out.", stacklevel=3)
             src, dst, w = src[~zero], dst[~zero], w[~zero]
     if not directed:
         loop = src == dst

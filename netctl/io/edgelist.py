@@ -112,10 +112,16 @@ class _Scan:
         self.chunk_bytes = chunk_bytes
         self.st = np.zeros(_k.ST_SIZE, np.int64)
         self.st[1] = 1  # line number
-        self.src: list[np.ndarray] = []
-        self.dst: list[np.ndarray] = []
-        self.w: list[np.ndarray] = []
+        # link arrays shared by all chunks, grown by doubling (no per-chunk copies)
+        self.cap = 0
+        self.src = np.empty(0, np.int64)
+        self.dst = np.empty(0, np.int64)
+        self.w = np.empty(0, np.float64)
         self.iso: list[np.ndarray] = []
+        try:
+            self.size_hint = os.path.getsize(path)
+        except OSError:
+            self.size_hint = 0
         self.header_done = False
         self.chunk_len = 0
         # string-mode name table
@@ -174,10 +180,9 @@ class _Scan:
                 return
         n_lines = chunk.count(b"\n") + 1
         st[0] = pos
-        st[3] = st[4] = st[5] = 0
-        src = np.empty(n_lines, np.int64)
-        dst = np.empty(n_lines, np.int64)
-        w = np.empty(n_lines, np.float64)
+        st[4] = st[5] = 0
+        self._room(n_lines, len(chunk))
+        src, dst, w = self.src, self.dst, self.w
         iso = np.empty(n_lines, np.int64)
         fb_edge = np.empty(n_lines, np.int64)
         fb_line = np.empty(n_lines, np.int64)
@@ -196,14 +201,29 @@ class _Scan:
             raise _NotInt
         if status == _k.STATUS_ERROR:
             self._error(chunk)
-        ne, ni, nfb = int(st[3]), int(st[4]), int(st[5])
+        ni, nfb = int(st[4]), int(st[5])
         if nfb:
             self._fallback_weights(chunk, w, fb_edge[:nfb], fb_line[:nfb], fb_start[:nfb],
                                    fb_end[:nfb])
-        self.src.append(src[:ne])
-        self.dst.append(dst[:ne])
-        self.w.append(w[:ne])
-        self.iso.append(iso[:ni])
+        if ni:
+            self.iso.append(iso[:ni].copy())
+
+    def _room(self, n_lines: int, chunk_len: int) -> None:
+        """Make the link arrays hold at least ``n_lines`` more links."""
+        ne = int(self.st[3])
+        if ne + n_lines <= self.cap:
+            return
+        # first guess: the whole file at this chunk's line density; then doubling
+        guess = int(self.size_hint / max(chunk_len, 1) * n_lines * 1.05) if not self.cap else 0
+        cap = max(ne + n_lines, 2 * self.cap, guess)
+        weighted = self.st[2] == 3
+        for name in ("src", "dst", "w"):
+            old = getattr(self, name)
+            new = np.empty(cap, old.dtype)
+            if name != "w" or weighted:
+                new[:ne] = old[:ne]
+            setattr(self, name, new)
+        self.cap = cap
 
     def _header(self, chunk: bytes) -> int:
         """Skip comments up to the first content line; skip that line too if a header."""
@@ -288,11 +308,12 @@ class _Scan:
 
     # -------------------------------------------------------------- results
     def result(self) -> EdgeArrays:
-        src = _cat(self.src)
-        dst = _cat(self.dst)
+        ne = int(self.st[3])
+        src = self.src[:ne]
+        dst = self.dst[:ne]
         iso = _cat(self.iso)
         weighted = self.st[2] == 3
-        w = _cat(self.w, np.float64) if weighted else None
+        w = self.w[:ne] if weighted else None
         n_lines = int(self.st[1]) - 1
         if self.mode == _k.MODE_INT:
             names, (src, dst) = _factorize_ints(src, dst, iso)
@@ -338,7 +359,7 @@ def _cat(parts: list[np.ndarray], dtype: type = np.int64) -> np.ndarray:
 
 def _factorize_ints(src: np.ndarray, dst: np.ndarray, iso: np.ndarray
                     ) -> tuple[tuple[str, ...], tuple[np.ndarray, np.ndarray]]:
-    """Dense ids in numeric order of the integer names (array code only)."""
+    """Dense ids in numeric order of the integer names (``src``/``dst`` remapped in place)."""
     total = src.size + dst.size + iso.size
     if total == 0:
         return (), (src, dst)
@@ -346,12 +367,19 @@ def _factorize_ints(src: np.ndarray, dst: np.ndarray, iso: np.ndarray
     hi = max(int(a.max()) for a in (src, dst, iso) if a.size)
     span = hi - lo + 1
     if span <= 4 * total + (1 << 20):
-        present = np.zeros(span, bool)
+        present = np.zeros(span, np.bool_)
         for a in (src, dst, iso):
-            present[a - lo] = True
-        ids = np.cumsum(present, dtype=np.int64) - 1
-        uniq = np.flatnonzero(present) + lo
-        src, dst = ids[src - lo], ids[dst - lo]
+            _k.mark_present(a, present, lo)
+        if present.all():  # names are every integer lo..hi: ids are a shift
+            uniq = np.arange(lo, hi + 1, dtype=np.int64)
+            if lo:
+                np.subtract(src, lo, out=src)
+                np.subtract(dst, lo, out=dst)
+        else:
+            ids = np.cumsum(present, dtype=np.int64) - 1
+            uniq = np.flatnonzero(present) + lo
+            _k.remap(src, ids, lo)
+            _k.remap(dst, ids, lo)
     else:  # sort-based factorization (np.unique's hash path is slower on large arrays)
         allv = np.concatenate([src, dst, iso])
         order = np.argsort(allv, kind="stable")
@@ -361,7 +389,8 @@ def _factorize_ints(src: np.ndarray, dst: np.ndarray, iso: np.ndarray
         inv = np.empty(allv.size, np.int64)
         inv[order] = np.cumsum(new) - 1
         src, dst = inv[:src.size], inv[src.size:src.size + dst.size]
-    return tuple(uniq.astype(str).tolist()), (src, dst)
+    text = _k.int_names_text(uniq.astype(np.int64)).tobytes().decode("ascii")
+    return tuple(text.split("\n")[:-1]), (src, dst)
 
 
 def read_edge_arrays(path: str | os.PathLike[str], *,

@@ -636,8 +636,8 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str]) -> None
                           ("outputs", system.C.T.tocsc(), system.output_names)):
         if pool:
             lines += ["", f"[{kind}]"]
-            for k, nm in enumerate(pool):
-                rows = M.indices[M.indptr[k]:M.indptr[k + 1]]
+            for j, nm in enumerate(pool):
+                rows = M.indices[M.indptr[j]:M.indptr[j + 1]]
                 lines.append(f"{_key(nm)} = [{', '.join(_val(names[r]) for r in rows)}]")
     if "subsystem" in system.nodes:
         col = system.nodes["subsystem"]

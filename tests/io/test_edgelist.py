@@ -263,3 +263,14 @@ def test_truncated_gzip(tmp_path):
 def test_missing_file(tmp_path):
     with pytest.raises(MissingFileError, match=r"nope\.csv: no such file"):
         read_edgelist(tmp_path / "nope.csv")
+
+
+@pytest.mark.parametrize("text, names", [("5 6\n6 7\n8\n", ("5", "6", "7", "8")),  # dense
+                                         ("5 6\n6 7\n9\n", ("5", "6", "7", "9")),  # gap
+                                         ("5 6\n6 -7000000000000\n", ("-7000000000000", "5",
+                                                                      "6"))])  # sparse
+def test_integer_factorization_paths(tmp_path, text, names):
+    e = read_edge_arrays(write(tmp_path, text))
+    assert e.names == names
+    ref_names, ref_edges, _ = reference_parse(text)
+    assert list(e.names) == ref_names and as_named(e) == ref_edges
