@@ -613,8 +613,10 @@ def place_inputs(
     design works iff ``g(S) = n + beta``; cost-effectiveness greedy for submodular set
     cover costs at most ``H(max_k g({k}) - g(empty))`` times the optimum (Wolsey [3]_),
     ``H`` the harmonic number. The reported lower bound is the largest of ``cost / H``,
-    the cheapest candidates that can raise the rank (one rank each) and the cheapest
-    candidate touching each unreached source component.
+    the cheapest set of candidates restoring the term rank alone (exact: the columns
+    raising the rank form a matroid, whose cheapest basis the greedy in cost order
+    finds, Edmonds [6]_) and the cheapest candidate touching each unreached source
+    component.
 
     **Best effort under a budget.** For generic weights the controllable subspace of a
     set of input columns is the sum of their Krylov subspaces, so its dimension --
@@ -642,6 +644,8 @@ def place_inputs(
        Information Processing Letters 70(1):39-45, 1999.
     .. [5] G. L. Nemhauser, L. A. Wolsey, M. L. Fisher, "An analysis of approximations
        for maximizing submodular set functions I", Math. Programming 14:265-294, 1978.
+    .. [6] J. Edmonds, "Matroids and the greedy algorithm", Math. Programming
+       1:127-136, 1971.
 
     Examples
     --------
@@ -1255,11 +1259,11 @@ def _greedy_cover(prob: _Reduced, cands: Candidates) -> _Outcome:
     total = float(cost[chosen_a].sum())
     H = sum(1.0 / i for i in range(1, max(max_gain, 1) + 1))
     lb = total / H
-    # each candidate raises the rank by at most one: the deficiency needs that many
+    # the rank part alone is a matroid (columns that raise the term rank one each: the
+    # transversal matroid contracted by the existing columns); its cheapest basis, found
+    # exactly by the greedy in cost order (Edmonds 1971), is a lower bound
     if prob.deficiency:
-        c_rank = np.sort(cost[single & prob.useful])
-        if c_rank.size >= prob.deficiency:
-            lb = max(lb, float(c_rank[:prob.deficiency].sum()))
+        lb = max(lb, _min_cost_rank_basis(prob, cost, tptr, tind, single))
     if prob.unreached.size:
         ccs = cc.tocsc()  # feasible: every unreached source has a candidate
         per = np.minimum.reduceat(cost[ccs.indices], ccs.indptr[:-1])
@@ -1267,6 +1271,34 @@ def _greedy_cover(prob: _Reduced, cands: Candidates) -> _Outcome:
     return _Outcome("candidates", "greedy", True, False, chosen_a, total, min(lb, total), None,
                     None, [], f"greedy submodular cover: cost <= H({max_gain}) = {H:.3f} x "
                     "the optimum (Wolsey 1982)")
+
+
+def _min_cost_rank_basis(prob: _Reduced, cost: np.ndarray, tptr: np.ndarray,
+                         tind: np.ndarray, single: np.ndarray) -> float:
+    """Cheapest set of candidates that restores the term rank (ignoring accessibility)."""
+    nD, n_real = prob.D.size, prob.n_real
+    cD = prob.cand_D
+    rm, _ = maximum_matching(prob.sub_indptr, prob.sub_indices, n_real)
+    cm = np.full(tptr.size - 1, -1, np.int64)
+    mr = np.flatnonzero(rm >= 0)
+    cm[rm[mr]] = mr
+    need = nD - int(mr.size)
+    seen = np.zeros(nD, np.int64)
+    parent = np.full(nD, -1, np.int64)
+    queue = np.empty(max(nD, 1), np.int64)
+    dead = np.zeros(nD, np.bool_)
+    total = 0.0
+    order = np.flatnonzero(single)
+    order = order[np.argsort(cost[order], kind="stable")]
+    for stamp, k in enumerate(order.tolist(), start=1):
+        if need == 0:
+            break
+        rows_k = cD.indices[cD.indptr[k]:cD.indptr[k + 1]].astype(np.int64)
+        if _augment_from(np.int64(n_real + k), rows_k, tptr, tind, rm, cm, seen,
+                         np.int64(stamp), parent, queue, dead, True):
+            total += float(cost[k])
+            need -= 1
+    return total
 
 
 # ====================================================================== best effort
