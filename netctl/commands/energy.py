@@ -63,6 +63,9 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     if not r.controllable:
         lines.append("  !! the Gramian is singular: these inputs cannot steer every state "
                      "(see netctl verify / netctl modes)")
+    from netctl.numeric.energy import node_controllability
+
+    d["node_controllability"] = node_controllability(real).to_dict()
     if args.top and r.n_states:
         order = np.argsort(-r.average_controllability, kind="stable")[:args.top]
         lines.append("  highest average controllability (one input there): " + ", ".join(

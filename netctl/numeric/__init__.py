@@ -9,8 +9,10 @@ a stated parameterization (:data:`PARAMETERIZATIONS`) -- and always say which.
 from netctl.numeric.energy import (
     ActuatorSelection,
     EnergyReport,
+    NodeControllability,
     energy,
     gramian,
+    node_controllability,
     select_actuators,
 )
 from netctl.numeric.exact import ExactControllability, Multiplicity, exact_controllability
@@ -34,6 +36,7 @@ __all__ = [
     "ModalReport",
     "ModeReach",
     "Multiplicity",
+    "NodeControllability",
     "PARAMETERIZATIONS",
     "RankTest",
     "Verification",
@@ -42,6 +45,7 @@ __all__ = [
     "gramian",
     "modal_controllability",
     "modular",
+    "node_controllability",
     "pbh",
     "realize",
     "select_actuators",

@@ -209,3 +209,45 @@ def test_modal_unreached_count_matches_staircase(rng):
         lost = sum(m.multiplicity for m in r.unreached if m.multiplicity == 1)
         if all(m.multiplicity == 1 for m in r.modes):
             assert n - staircase(s).dimension == lost
+
+
+# ----------------------------------------------------------------- Gu et al. (2015)
+def test_node_controllability_path3_exact():
+    # Gu et al., Nat. Commun. 6:8414 (2015): A_s = A / (1 + sigma_max), average
+    # controllability sum_j v_ij^2 / (1 - l_j^2), modal phi_i = sum_j (1 - l_j^2) v_ij^2.
+    # REFERENCES.md §8 [C] values for P3, recomputed here in exact arithmetic (sympy).
+    import networkx as nx
+    import sympy
+
+    from netctl.numeric.energy import node_controllability
+
+    A = sympy.Matrix([[0, 1, 0], [1, 0, 1], [0, 1, 0]])
+    s2 = sympy.sqrt(2)
+    As = A / (1 + s2)
+    avg, phi = [0] * 3, [0] * 3
+    for lam, _, vecs in As.eigenvects():
+        for v in vecs:
+            v = v / sympy.sqrt((v.T * v)[0])
+            for i in range(3):
+                avg[i] += v[i] ** 2 / (1 - lam ** 2)
+                phi[i] += (1 - lam ** 2) * v[i] ** 2
+    avg = [float(sympy.nsimplify(x)) for x in avg]
+    phi = [float(sympy.simplify(x)) for x in phi]
+    r = node_controllability(StructuredSystem.from_networkx(nx.path_graph(3)))
+    np.testing.assert_allclose(r.modal, phi, rtol=1e-12)
+    np.testing.assert_allclose(r.average, avg, rtol=1e-12)
+    np.testing.assert_allclose(r.modal, [0.828427, 0.656854, 0.828427], atol=1e-6)
+    np.testing.assert_allclose(r.average, [1.261204, 1.522408, 1.261204], atol=1e-6)
+
+
+def test_node_average_controllability_against_truncated_sum(rng):
+    from netctl.numeric.energy import node_controllability
+
+    A = rng.normal(size=(5, 5))
+    r = node_controllability(StructuredSystem.from_matrices(A, np.zeros((5, 0))))
+    As = A / r.scale
+    total, P = np.zeros((5, 5)), np.eye(5)
+    for _ in range(400):           # sum_t (A_s^t)^T A_s^t, diagonal = tr W with B = e_i
+        total += P.T @ P
+        P = As @ P
+    np.testing.assert_allclose(r.average, np.diag(total), rtol=1e-10)
