@@ -115,20 +115,116 @@ def _table_coordinates(system: StructuredSystem) -> np.ndarray | None:
 
 
 def _force_layout(system: StructuredSystem, seed: int, *, grid: bool) -> np.ndarray:
-    import igraph
+    """Fruchterman–Reingold per large weak component, small components packed apart.
+
+    A force-directed layout of a graph with many components pushes the small ones to
+    the edge and squeezes the large one into a blob; so components of at least
+    ``_BIG`` states (at most ``_MAX_BIG`` of them) are laid out one by one, each
+    scaled to an area proportional to its size and placed in a row, and all smaller
+    components (isolated states, pairs, ...) are drawn as small rings on a grid below
+    them (vectorized; no per-component loop).
+    """
+    from scipy.sparse.csgraph import connected_components
 
     n = system.n_states
     src, dst = system.edges()
-    keep = src != dst
-    g = igraph.Graph(n=n, edges=np.column_stack([src[keep], dst[keep]]).tolist(),
-                     directed=False)
-    g.simplify()
+    A = system.A
+    k, lab = connected_components(A, directed=True, connection="weak")
+    sizes = np.bincount(lab, minlength=k)
+    order = np.lexsort((np.arange(k), -sizes))  # largest first, ties by label
+    big = order[sizes[order] >= _BIG][:_MAX_BIG]
+    if big.size == 0 and k:
+        big = order[:1]
+    pos = np.zeros((n, 2))
+    x_cursor = 0.0
+    height = 0.0
+    for c in big.tolist():
+        members = np.flatnonzero(lab == c)
+        local = np.full(n, -1, np.int64)
+        local[members] = np.arange(members.size)
+        keep = (lab[src] == c) & (src != dst)
+        sub = _fr(members.size, local[src[keep]], local[dst[keep]], seed,
+                  grid=grid and members.size > _GRID_ABOVE)
+        side = np.sqrt(members.size)
+        # a short run of the grid variant can leave a few states far out: scale to the
+        # central 99% and pull the stragglers onto a margin around it
+        if members.size > 1000:
+            sub = _pull_in(sub, local[src[keep]], local[dst[keep]], seed)
+        lo, hi = sub.min(axis=0), sub.max(axis=0)
+        span = np.where(hi - lo > 0, hi - lo, 1.0)
+        sub = (sub - lo) / span.max() * side
+        pos[members] = sub + np.array([x_cursor, 0.0])
+        x_cursor += float(sub[:, 0].max()) + 0.15 * side + 1.0
+        height = max(height, float(sub[:, 1].max()))
+    small = np.setdiff1d(order, big, assume_unique=True)
+    if small.size:
+        # rings of radius ~ sqrt(size) on a grid of cells, below the large components
+        rank = np.zeros(k, np.int64)
+        rank[small] = np.arange(small.size)
+        in_small = np.isin(lab, small)
+        idx = np.flatnonzero(in_small)
+        comp = lab[idx]
+        first = np.zeros(k, np.int64)
+        sort = np.argsort(comp, kind="stable")
+        sc = comp[sort]
+        starts = np.r_[0, np.flatnonzero(np.diff(sc)) + 1]
+        first[sc[starts]] = starts
+        within = np.empty(idx.size, np.int64)
+        within[sort] = np.arange(idx.size) - first[sc]
+        cell = 2.0 * np.sqrt(float(sizes[small].max())) / np.pi + 1.0
+        width = max(x_cursor - 1.0, np.sqrt(small.size) * cell, cell)
+        per_row = max(int(width // cell), 1)
+        r = rank[comp]
+        cx = (r % per_row) * cell + cell / 2
+        cy = -(r // per_row) * cell - cell / 2 - (0.1 * height + 1.0 if big.size else 0.0)
+        sz = sizes[comp]
+        theta = 2 * np.pi * within / np.maximum(sz, 1)
+        rad = np.where(sz > 1, 0.35 * cell * np.sqrt(sz / sizes[small].max()), 0.0)
+        pos[idx, 0] = cx + rad * np.cos(theta)
+        pos[idx, 1] = cy + rad * np.sin(theta)
+    return pos
+
+
+def _pull_in(xy: np.ndarray, src: np.ndarray, dst: np.ndarray, seed: int) -> np.ndarray:
+    """Move states outside the central 99% box next to their neighbours (vectorized)."""
+    import scipy.sparse as sp
+
+    n = xy.shape[0]
+    lo, hi = np.percentile(xy, 0.5, axis=0), np.percentile(xy, 99.5, axis=0)
+    out = np.any((xy < lo) | (xy > hi), axis=1)
+    if not out.any():
+        return xy
+    adj = sp.csr_array((np.ones(src.size), (src, dst)), shape=(n, n))
+    adj = (adj + adj.T).tocsr()
+    deg = np.maximum(np.asarray(adj.sum(axis=1)).ravel(), 1.0)
     rng = np.random.default_rng(seed)
-    start = (rng.random((n, 2)) * np.sqrt(max(n, 1))).tolist()
+    jitter = rng.normal(scale=0.01 * float(np.max(hi - lo)), size=(int(out.sum()), 2))
+    xy = xy.copy()
+    for _ in range(4):
+        mean = (adj @ xy) / deg[:, None]
+        xy[out] = mean[out] + jitter
+    return np.clip(xy, lo, hi)
+
+
+#: Weak components with at least this many states get a force-directed layout.
+_BIG = 12
+#: At most this many components get their own force-directed layout.
+_MAX_BIG = 24
+
+
+def _fr(n: int, src: np.ndarray, dst: np.ndarray, seed: int, *, grid: bool) -> np.ndarray:
+    import igraph
+
+    if n <= 2:
+        return np.column_stack([np.arange(n, dtype=float), np.zeros(n)])
+    g = igraph.Graph(n=n, edges=np.column_stack([src, dst]).tolist(), directed=False)
+    g.simplify()
     niter = 500 if not grid else int(np.clip(3e7 / max(n + g.ecount(), 1), 50, 500))
+    # igraph draws the start positions from its generator: a seeded one makes the
+    # layout reproducible (giving start positions instead slows the grid variant badly)
     igraph.set_random_number_generator(random.Random(seed))
     try:
-        lay = g.layout_fruchterman_reingold(seed=start, niter=niter, grid=grid)
+        lay = g.layout_fruchterman_reingold(niter=niter, grid=grid)
     finally:
         igraph.set_random_number_generator(random)
     return np.asarray(lay.coords, dtype=np.float64).reshape(n, 2)

@@ -25,7 +25,9 @@ GID_PREFIX = "netctl:"
 _ARROWS_UP_TO = 400
 #: Up to this many states, names are written next to the states.
 _LABELS_UP_TO = 60
-#: Above this many links, plain links are rasterized in vector output.
+#: Above this many states the map is an overview: links thin and see-through.
+_OVERVIEW_ABOVE = 20000
+#: Above this many links (of one kind), links are rasterized in vector output.
 _RASTER_ABOVE = 2000
 
 
@@ -91,6 +93,7 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
     if positions is None:
         positions, how = node_positions(system, seed=seed)
     pos = np.asarray(positions, dtype=np.float64).reshape(n, 2)
+    own = ax is None
     if ax is None:
         fig, ax = plt.subplots(figsize=_figure_size(pos), layout="constrained")
     assert ax is not None
@@ -124,6 +127,9 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
         mk = MARKS[key]
         lw = mk.linewidth * scale
         alpha = alpha_plain if key == "link" else 0.95
+        if n > _OVERVIEW_ABOVE:  # overview: matched links thin and see-through too
+            lw = mk.linewidth * 0.15
+            alpha = min(alpha, 0.05) if key == "link" else 0.3
         if arrows:
             _draw_arrows(ax, pos, src[mask], dst[mask], mk, lw, alpha, radius_pt,
                          head=key != "critical_link")
@@ -132,7 +138,7 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
             lc = LineCollection(segs, colors=mk.edge, linewidths=lw, linestyles=mk.linestyle,
                                 alpha=alpha, zorder=mk.zorder, capstyle="round")
             lc.set_gid(GID_PREFIX + key)
-            if key == "link" and mask.sum() > _RASTER_ABOVE:
+            if mask.sum() > _RASTER_ABOVE:
                 lc.set_rasterized(True)
             ax.add_collection(lc)
 
@@ -161,18 +167,20 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
         for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
             _points(ax, pos, np.flatnonzero(marks.roles == k), MARKS[key], area, zorder=7.0)
 
-    if labels if labels is not None else n <= _LABELS_UP_TO:
+    with_labels = labels if labels is not None else n <= _LABELS_UP_TO
+    if with_labels:
         _labels(ax, pos, system.state_names, radius_pt)
     if n:
         lo, hi = pos.min(axis=0), pos.max(axis=0)
         pad = np.maximum((hi - lo) * 0.06, 1e-9 + 0.5 * (hi - lo == 0))
-        ax.set_xlim(lo[0] - pad[0], hi[0] + pad[0])
-        ax.set_ylim(lo[1] - pad[1], hi[1] + pad[1])
+        top = pad[1] * (2.5 if with_labels else 1.0)  # room for the slanted names
+        ax.set_xlim(lo[0] - pad[0], hi[0] + pad[0] * (2.0 if with_labels else 1.0))
+        ax.set_ylim(lo[1] - pad[1], hi[1] + top)
     ax.set_title(title if title is not None else _default_title(system, marks, how),
                  loc="left", fontsize=10, color=INK)
     if legend:
         _legend(ax, system, marks, area, n_loops=int(loop_states.size),
-                loops_drawn=n <= 500, arrows=arrows)
+                loops_drawn=n <= 500, arrows=arrows, outside=own)
     return ax
 
 
@@ -209,7 +217,8 @@ def _points(ax: Axes, pos: np.ndarray, idx: np.ndarray, mk: Mark, area: float,
     assert mk.marker is not None
     sc = ax.scatter(pos[idx, 0], pos[idx, 1], s=area * mk.size, marker=mk.marker,
                     facecolors=mk.face, edgecolors=mk.edge,
-                    linewidths=mk.linewidth * (1.0 if area >= 20 else 0.5),
+                    linewidths=(0.0 if idx.size > _OVERVIEW_ABOVE
+                                else mk.linewidth * (1.0 if area >= 20 else 0.5)),
                     linestyles=mk.linestyle, hatch=mk.hatch or None,
                     zorder=mk.zorder if zorder is None else zorder)
     sc.set_gid(GID_PREFIX + _mark_key(mk))
@@ -244,7 +253,8 @@ def _labels(ax: Axes, pos: np.ndarray, names: Sequence[str], radius_pt: float) -
         text = name if len(name) <= 24 else name[:23] + "…"
         t = ax.annotate(text, pos[i], xytext=(radius_pt * 0.7, radius_pt * 0.7),
                         textcoords="offset points", fontsize=7.5, color=INK,
-                        ha="left", va="bottom", zorder=8, parse_math=False)
+                        ha="left", va="bottom", zorder=8, parse_math=False,
+                        rotation=25, rotation_mode="anchor")
         t.set_path_effects(halo)
         t.set_gid(GID_PREFIX + "label")
 
@@ -266,7 +276,7 @@ def _default_title(system: StructuredSystem, marks: MapMarks, how: str) -> str:
 
 
 def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
-            n_loops: int, loops_drawn: bool, arrows: bool) -> None:
+            n_loops: int, loops_drawn: bool, arrows: bool, outside: bool) -> None:
     from matplotlib.lines import Line2D
 
     def point(key: str, count: int) -> tuple[Any, str]:
@@ -322,10 +332,15 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
         from matplotlib.legend_handler import HandlerTuple
 
         kw["handler_map"] = {tuple: HandlerTuple(ndivide=1)}
-    note = ("links point from the influencing state to the influenced one"
-            if arrows else "links drawn without arrowheads at this size")
-    leg = ax.legend(handles, texts, loc="upper left", bbox_to_anchor=(1.01, 1.0),
-                    frameon=False, fontsize=8, title=f"Marks\n({note})",
-                    title_fontsize=8, alignment="left", scatterpoints=1, handlelength=2.6,
-                    borderaxespad=0.0, labelspacing=0.9, **kw)
+    note = ("links point from the influencing state to the influenced one" if arrows
+            else "overview: links thin and see-through, no arrowheads"
+            if system.n_states > _OVERVIEW_ABOVE else "links drawn without arrowheads")
+    common = dict(frameon=False, fontsize=8, title=f"Marks\n({note})", title_fontsize=8,
+                  alignment="left", scatterpoints=1, handlelength=2.6, labelspacing=0.9,
+                  **kw)
+    if outside:  # our own figure: the layout engine makes room beside the map
+        leg = ax.figure.legend(handles, texts, loc="outside right upper", **common)
+    else:
+        leg = ax.legend(handles, texts, loc="upper left", bbox_to_anchor=(1.01, 1.0),
+                        borderaxespad=0.0, **common)
     leg.set_gid(GID_PREFIX + "legend")

@@ -28,8 +28,13 @@ def figure_format(path: str | os.PathLike[str]) -> str:
     return suffix
 
 
-def figure_bytes(fig: Figure, format: str = "png", *, dpi: float = 150) -> bytes:
+def figure_bytes(fig: Figure, format: str = "png", *, dpi: float = 150,
+                 tight: bool | None = None) -> bytes:
     """The figure encoded as ``format``, with no time stamp (same figure, same bytes).
+
+    ``tight``: crop to the drawn content (default: only for figures without a layout
+    engine; netctl's own figures use constrained layout, and cropping would draw a
+    large map twice).
 
     Examples
     --------
@@ -46,12 +51,14 @@ def figure_bytes(fig: Figure, format: str = "png", *, dpi: float = 150) -> bytes
                           f"{', '.join(FIGURE_FORMATS)}.")
     import matplotlib
 
+    if tight is None:
+        tight = fig.get_layout_engine() is None
     meta = {"png": {"Software": None}, "svg": {"Date": None},
             "pdf": {"CreationDate": None, "ModDate": None}}[format]
     buf = io.BytesIO()
     with matplotlib.rc_context({"svg.hashsalt": "netctl", "svg.fonttype": "path"}):
         fig.savefig(buf, format=format, dpi=dpi, metadata=meta, facecolor="white",
-                    bbox_inches="tight", pad_inches=0.15)
+                    **({"bbox_inches": "tight", "pad_inches": 0.15} if tight else {}))
     return buf.getvalue()
 
 

@@ -71,7 +71,7 @@ _STATE = "#CFCFCF"
 _LINK = "#8A8A8A"
 
 MARKS: dict[str, Mark] = {
-    "state": Mark("state (nothing to flag)", "o", _STATE, "#5C5C5C", linewidth=0.6, size=1.0, zorder=3),
+    "state": Mark("state", "o", _STATE, "#5C5C5C", linewidth=0.6, size=1.0, zorder=3),
     "driver": Mark("driver node: an input acts here", "^", _VERMILION, INK,
                    linewidth=0.8, size=3.2, zorder=6),
     "suggested": Mark("add a dedicated input here (smallest fix)", "^", "none", _VERMILION,

@@ -25,7 +25,7 @@ from tests.conftest import directed_cycle, directed_path, from_edges, out_star, 
 
 ROOT = Path(__file__).resolve().parents[2]
 BUNDLED = sorted(p for p in (ROOT / "networks").glob("*")
-                 if p.is_file() and not p.name.lower().startswith("readme"))
+                 if p.is_file() and p.suffix.lower() not in (".py", ".md"))
 
 
 def _offsets(ax, key):
