@@ -147,5 +147,8 @@ def write_report(report: Report, path: str | os.PathLike[str]) -> None:
             "json": report.to_json}[fmt]()
     with atomic_write(path) as fh:
         fh.write(text)
+    from netctl.viz.output import usual_mode
+
+    usual_mode(path)
 
 

@@ -13,7 +13,7 @@ from netctl.io import atomic_write
 if TYPE_CHECKING:  # pragma: no cover
     from matplotlib.figure import Figure
 
-__all__ = ["FIGURE_FORMATS", "figure_bytes", "save_figure"]
+__all__ = ["FIGURE_FORMATS", "figure_bytes", "save_figure", "usual_mode"]
 
 #: File suffixes :func:`save_figure` writes.
 FIGURE_FORMATS: tuple[str, ...] = ("png", "svg", "pdf")
@@ -73,3 +73,15 @@ def save_figure(fig: Figure, path: str | os.PathLike[str], *, dpi: float = 150) 
     data = figure_bytes(fig, figure_format(path), dpi=dpi)
     with atomic_write(path, "wb") as fh:
         fh.write(data)
+    usual_mode(path)
+
+
+def usual_mode(path: str | os.PathLike[str]) -> None:
+    """Give a file written through a private temporary file the usual permissions
+    (``0o666`` less the umask), so a figure or report can be shared like any file."""
+    mask = os.umask(0)
+    os.umask(mask)
+    try:
+        os.chmod(path, 0o666 & ~mask)
+    except OSError:  # pragma: no cover - e.g. a file system without modes
+        pass
