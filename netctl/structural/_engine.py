@@ -18,7 +18,8 @@ from netctl.graph.components import (
 )
 from netctl.graph.matching import extend_matching, maximum_matching, transpose_csr
 
-__all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB"]
+__all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
+           "unreached_sources", "accessible_states"]
 
 
 def stack_AB(A: sp.csr_array, B: sp.csr_array) -> tuple[np.ndarray, np.ndarray, int]:
@@ -76,6 +77,48 @@ class Completion:
     row_match: np.ndarray
 
 
+def unreached_sources(A: sp.csr_array, out: tuple[np.ndarray, np.ndarray],
+                      driven: np.ndarray) -> tuple[int, np.ndarray, np.ndarray]:
+    """Source components of ``A`` that no driven state reaches, without a full SCC pass.
+
+    Returns ``(n_trivial, comp_ptr, members)``: ``n_trivial`` undriven states with no
+    in-link at all (each its own source component, always unmatched), and the other
+    unreached source components in CSR form (component ``k`` is
+    ``members[comp_ptr[k]:comp_ptr[k+1]]``, states sorted, components in order of their
+    smallest state).
+
+    Every other unreached source lies in ``W``, the states reached neither from a driven
+    state nor from an in-degree-zero state; ``W`` has no in-link from outside, so its
+    source components are sources of ``A``. Strongly connected components are computed
+    on ``W`` only, which is empty or small in most sparse networks.
+    """
+    n = A.shape[0]
+    empty_rows = np.diff(A.indptr) == 0
+    is_driven = np.zeros(n, bool)
+    is_driven[driven] = True
+    trivial = np.flatnonzero(empty_rows & ~is_driven)
+    seeds = np.concatenate([trivial, np.flatnonzero(is_driven)]).astype(np.int64)
+    reach = reachable_from(out[0], out[1], seeds)
+    W = np.flatnonzero(~reach)
+    if W.size == 0:
+        return int(trivial.size), np.zeros(1, np.int64), np.zeros(0, np.int64)
+    sub = A[W][:, W].tocsr()
+    sub.sort_indices()
+    sptr = np.ascontiguousarray(sub.indptr, np.int64)
+    sind = np.ascontiguousarray(sub.indices, np.int64)
+    k, labels = strongly_connected_components(sptr, sind)
+    src = condensation_sources(sptr, sind, labels, k)
+    src_ids = np.flatnonzero(src)  # labels are in order of smallest member
+    slot = np.full(k, -1, np.int64)
+    slot[src_ids] = np.arange(src_ids.size)
+    local = np.flatnonzero(slot[labels] >= 0)
+    order = np.argsort(slot[labels[local]], kind="stable")
+    members = W[local[order]].astype(np.int64)
+    ptr = np.zeros(src_ids.size + 1, np.int64)
+    np.cumsum(np.bincount(slot[labels[local]], minlength=src_ids.size), out=ptr[1:])
+    return int(trivial.size), ptr, members
+
+
 def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
                prefer: np.ndarray | None = None) -> Completion:
     """Fewest dedicated inputs to add so that ``(A, [B, new])`` is structurally controllable.
@@ -88,65 +131,57 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     ``alpha`` is found by giving every unreached source component an extra column
     adjacent to its states and extending the maximum matching with as many extra columns
     as possible (:func:`netctl.graph.matching.extend_matching`). Components that already
-    hold an unmatched state start with their extra column matched to it; only the others
-    are searched for, so the usual case costs nothing beyond the first matching.
+    hold an unmatched state start with their extra column matched to it (states with no
+    in-link always do); only the others are searched for, so the usual case costs nothing
+    beyond the first matching. The unreached source components come from
+    :func:`unreached_sources` (one breadth-first search, components only where needed).
 
     ``prefer`` (boolean per state, e.g. the node table's ``actuator`` column) decides the
     representative of a source component that still needs one: its smallest preferred
     state, else its smallest state. It does not change the count.
     """
     n = A.shape[0]
-    st = st or structure_of(A)
-    indptr, indices, n_cols = stack_AB(A, B)
-    if B.shape[1] == 0:
-        transpose = (st.out_indptr, st.out_indices)
+    if st is not None:
+        out = (st.out_indptr, st.out_indices)
     else:
-        transpose = transpose_csr(indptr, indices, np.int64(n_cols))
+        out = transpose_csr(np.ascontiguousarray(A.indptr, np.int64),
+                            np.ascontiguousarray(A.indices, np.int64), np.int64(n))
+    indptr, indices, n_cols = stack_AB(A, B)
+    transpose = out if B.shape[1] == 0 else transpose_csr(indptr, indices, np.int64(n_cols))
     row_match, col_match = maximum_matching(indptr, indices, n_cols, transpose=transpose)
     matching_size = int(np.count_nonzero(row_match >= 0))
-    # source components with no existing input on them are unreached (nothing feeds them)
-    driven_comp = np.zeros(st.n_scc, bool)
-    if B.nnz:
-        driven_comp[st.scc[_rows_with_entries(B)]] = True
-    unreached = np.flatnonzero(st.source_scc & ~driven_comp)
-    n_unreached = int(unreached.size)
+    n_trivial, cptr, members = unreached_sources(A, out, _rows_with_entries(B))
+    n_comp = cptr.size - 1
+    comp_of = np.full(n, -1, np.int64)
+    comp_of[members] = np.repeat(np.arange(n_comp, dtype=np.int64), np.diff(cptr))
     free_rows = np.flatnonzero(row_match < 0)
-    # an unreached source component already holding a free row: its extra column starts
-    # matched to the smallest such row
-    slot = np.full(st.n_scc, -1, np.int64)
-    slot[unreached] = np.arange(n_unreached)
-    x_match = np.full(n_unreached, -1, np.int64)
-    fr_slot = slot[st.scc[free_rows]]
-    keep = fr_slot >= 0
-    # reversed assignment so that the smallest free row of each component wins
-    x_match[fr_slot[keep][::-1]] = free_rows[keep][::-1]
+    # a component already holding a free row starts with its extra column matched to the
+    # smallest such row (reversed assignment: the smallest index is written last)
+    x_match = np.full(n_comp, -1, np.int64)
+    fr_comp = comp_of[free_rows]
+    keep = fr_comp >= 0
+    x_match[fr_comp[keep][::-1]] = free_rows[keep][::-1]
     if np.any(x_match == -1):
         rm_ext = row_match.copy()
         rm_ext[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
-        members = np.flatnonzero(slot[st.scc] >= 0)
-        order = np.argsort(slot[st.scc[members]], kind="stable")
-        members = members[order]
-        xptr = np.zeros(n_unreached + 1, np.int64)
-        np.cumsum(np.bincount(slot[st.scc[members]], minlength=n_unreached), out=xptr[1:])
         rm_ext, col_match, x_match = extend_matching(transpose, n_cols, rm_ext, col_match,
-                                                     (xptr, members), x_match)
+                                                     (cptr, members), x_match)
         real = (rm_ext >= 0) & (rm_ext < n_cols)
         row_match = np.where(real, rm_ext, -1)
     unmatched = np.flatnonzero(row_match < 0)
-    missed = unreached[x_match == -1]
-    # representative: the smallest state of each missed source component
-    if missed.size:
-        idx = np.flatnonzero(np.isin(st.scc, missed))
-        if prefer is not None:
-            # preferred states first, each group in state order (stable sort)
-            idx = idx[np.argsort(~np.asarray(prefer, bool)[idx], kind="stable")]
-        _, first = np.unique(st.scc[idx], return_index=True)
-        reps = np.sort(idx[first])
-    else:
-        reps = np.zeros(0, np.int64)
+    missed = np.flatnonzero(x_match == -1)
+    reps = np.empty(missed.size, np.int64)
+    pref = None if prefer is None else np.asarray(prefer, bool)
+    for j, c in enumerate(missed.tolist()):  # one per missed component (few)
+        group = members[cptr[c]:cptr[c + 1]]
+        if pref is not None and pref[group].any():
+            group = group[pref[group]]
+        reps[j] = group[0]
+    reps = np.sort(reps)
     states = np.union1d(unmatched, reps).astype(np.int64)
+    n_unreached = n_trivial + n_comp
     return Completion(states=states, unmatched=unmatched.astype(np.int64),
-                      representatives=reps.astype(np.int64), matching_size=matching_size,
+                      representatives=reps, matching_size=matching_size,
                       n_unreached_sources=n_unreached,
                       n_sources_hit=n_unreached - int(missed.size), row_match=row_match)
 

@@ -172,13 +172,12 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
         from netctl.errors import OptionError
         raise OptionError(f"dedicated must be True or False, found {dedicated!r}.")
     n = system.n_states
-    st = structure_of(system.A)
     # where a source component needs a representative, prefer states that may host one
     eligible = system.nodes.get("actuator" if kind == "inputs" else "sensor")
     prefer = None
     if eligible is not None and eligible.dtype == bool and eligible.any():
         prefer = eligible
-    comp = completion(system.A, sp.csr_array((n, 0)), st, prefer=prefer)
+    comp = completion(system.A, sp.csr_array((n, 0)), prefer=prefer)
     drivers = comp.states
     unmatched = comp.unmatched
     reps = comp.representatives
@@ -198,7 +197,7 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
         kind=kind, dedicated=dedicated, n_states=n, n_inputs=int(ptr.size - 1),
         drivers=drivers, unmatched=unmatched, wiring_indptr=ptr, wiring_states=states,
         matching_size=comp.matching_size,
-        n_source_components=int(np.count_nonzero(st.source_scc)),
+        n_source_components=comp.n_unreached_sources,  # no inputs: every source is unreached
         n_sources_with_unmatched=comp.n_sources_hit, state_names=system.state_names,
         model=system.model)
 
