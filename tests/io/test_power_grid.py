@@ -1,0 +1,95 @@
+"""pandapower network objects (optional extra ``power``).
+
+The IEEE cases come from pandapower.networks. Their published sizes (buses, branches =
+lines + transformers) are those of the MATPOWER case files (R. D. Zimmerman,
+C. E. Murillo-Sanchez, R. J. Thomas, "MATPOWER: steady-state operations, planning and
+analysis tools for power systems research and education", IEEE Trans. Power Syst.
+26(1):12-19, 2011), which transcribe the University of Washington Power Systems Test
+Case Archive; the counts below are from memory of those files.
+"""
+
+from __future__ import annotations
+
+import json
+import warnings
+
+import numpy as np
+import pytest
+
+import netctl
+from netctl.models import apply_model
+
+pd = pytest.importorskip("pandas", reason="pandas is needed to build pandapower-like tables")
+
+from netctl.io.power_grid import from_pandapower  # noqa: E402
+
+IEEE = [  # case, buses, branches (MATPOWER case files; from memory)
+    pytest.param("case14", 14, 20, id="ieee14"),
+    pytest.param("case30", 30, 41, id="ieee30"),
+    pytest.param("case57", 57, 80, id="ieee57"),
+    pytest.param("case118", 118, 186, id="ieee118"),
+    pytest.param("case300", 300, 411, id="ieee300"),
+]
+
+
+class FakeNet:
+    """The tables of a pandapower net that the reader looks at (built by hand)."""
+
+    def __init__(self):
+        self.bus = pd.DataFrame({"name": ["A", "B", "C", "D", "E"], "vn_kv": [110.0] * 5,
+                                 "in_service": [True, True, True, True, False],
+                                 "geo": [json.dumps({"type": "Point", "coordinates": [i, 2 * i]})
+                                         for i in range(5)]}, index=[10, 11, 12, 13, 14])
+        self.line = pd.DataFrame({"from_bus": [10, 11, 11, 12], "to_bus": [11, 12, 12, 14],
+                                  "in_service": [True, True, True, True]})
+        self.trafo = pd.DataFrame({"hv_bus": [12, 10], "lv_bus": [13, 13],
+                                   "in_service": [True, False]})
+        self.switch = pd.DataFrame({"bus": [10], "element": [12], "et": ["b"], "closed": [True]})
+        self.gen = pd.DataFrame({"bus": [10]})
+
+
+def test_fake_net_tables():
+    with pytest.warns(UserWarning) as rec:
+        s = from_pandapower(FakeNet())
+    msg = " ".join(str(w.message) for w in rec)
+    assert "1 out-of-service trafo element(s) left out" in msg
+    assert "1 out-of-service bus(es) kept as isolated states" in msg
+    assert "1 parallel branch(es) merged" in msg
+    assert s.state_names == ("A", "B", "C", "D", "E")
+    want = {("A", "B"), ("B", "C"), ("C", "D"), ("A", "C")}
+    got = {(s.state_names[a], s.state_names[b]) for a, b in zip(*s.edges())}
+    assert got == want | {(b, a) for a, b in want}
+    assert s.nodes["x"].tolist() == [0, 1, 2, 3, 4] and s.nodes["y"][4] == 8
+    assert s.nodes["generation"].tolist() == [True, False, False, False, False]
+
+
+def test_not_a_net():
+    with pytest.raises(ValueError, match="expected a pandapower network object, found dict"):
+        from_pandapower({})
+
+
+@pytest.mark.parametrize("case, n_bus, n_branch", IEEE)
+def test_ieee_cases(case, n_bus, n_branch):
+    pn = pytest.importorskip("pandapower.networks",
+                             reason="pandapower is not installed (pip install netctl[power])")
+    import networkx as nx
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # pandapower's own deprecation chatter
+        net = getattr(pn, case)()
+    assert len(net.bus) == n_bus
+    assert len(net.line) + len(net.trafo) == n_branch
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", UserWarning)  # parallel branches are announced
+        s = from_pandapower(net)
+    assert s.n_states == n_bus
+    # independent count of distinct bus pairs from the tables
+    g = nx.Graph()
+    g.add_edges_from(zip(net.line.from_bus, net.line.to_bus))
+    g.add_edges_from(zip(net.trafo.hv_bus, net.trafo.lv_bus))
+    assert s.n_links == 2 * g.number_of_edges()
+    # the analyses run: swing-type model, one input on a generator bus's frequency state
+    so = apply_model(s, "second-order")
+    design = netctl.minimum_inputs(so)
+    assert design.n_inputs >= 1
+    assert netctl.controllability(design.apply(so)).controllable
