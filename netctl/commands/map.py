@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
-from typing import Any
+from typing import Any, cast
 
 __all__ = ["register"]
 
@@ -82,7 +82,7 @@ def _cmd_map(args: argparse.Namespace) -> int:
             ax.set_title(_default_title(system, marks, how), loc="left", fontsize=10)
             save_figure(ax.figure, args.out, dpi=args.dpi)
         finally:
-            plt.close(ax.figure)
+            plt.close(cast(Any, ax.figure))
     d = marks.to_dict()
     d.update(file=args.file, figure=args.out, layout=how)
     if args.json:

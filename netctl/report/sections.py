@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, cast
 
 import numpy as np
 
@@ -203,7 +203,7 @@ def map_section(ctx: ReportContext) -> Section | None:
     try:
         png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
     finally:
-        plt.close(ax.figure)
+        plt.close(cast(Any, ax.figure))
     placed = ("states at the coordinates in the file" if how.startswith("coordinates")
               else "states placed by a seeded force-directed layout (positions carry no "
                    "meaning)")
@@ -341,7 +341,7 @@ def robustness_section(ctx: ReportContext) -> Section | None:
         try:
             png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
         finally:
-            plt.close(ax.figure)
+            plt.close(cast(Any, ax.figure))
         blocks.append(figure(png, "Attack curves: the share of the remaining states that "
                                   "need an input as states are removed, in random order "
                                   f"(seed {ctx.seed}) and highest total degree first."))

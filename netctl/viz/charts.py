@@ -7,7 +7,7 @@ returns the Axes, and tags its artists with gids ``"netctl:<what>"``.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, cast
 
 import numpy as np
 
@@ -136,15 +136,17 @@ def plot_null_model(observed: float, null: Sequence[float], *, ax: Axes | None =
     if sample.size == 0:
         raise OptionError("plot_null_model needs at least one null-model value.")
     ax = _new_axes(ax)
-    lo, hi = float(min(sample.min(), observed)), float(max(sample.max(), observed))
+    lo = min(float(sample.min()), float(observed))
+    hi = max(float(sample.max()), float(observed))
     integer = bool(np.all(sample == np.round(sample)))
+    bins: Any
     if integer and hi - lo <= 60:
         bins = np.arange(lo - 0.5, hi + 1.5)
     else:
         bins = min(40, max(5, int(np.sqrt(sample.size))))
     _, _, patches = ax.hist(sample, bins=bins, color="#CFCFCF", edgecolor="#5C5C5C",
                             hatch="///", linewidth=0.6, label="degree-preserving null model")
-    for p in patches:
+    for p in cast(Any, patches):
         p.set_gid("netctl:null")
     line = ax.axvline(observed, color=MARKS["driver"].face, linewidth=2.4,
                       label=_plain(label))

@@ -212,7 +212,7 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
                   else np.zeros(0, np.int64)),
         matched_sources=src, matched_targets=tgt, on_cycle=on_cycle, roles=roles,
         critical_sources=crit_s, critical_targets=crit_t, model=system.model,
-        state_names=system.state_names)
+        state_names=tuple(system.state_names))
 
 
 def _check_layers(show: Iterable[str]) -> tuple[str, ...]:

@@ -4,7 +4,7 @@ the trouble spots, with a legend that explains every mark."""
 from __future__ import annotations
 
 from collections.abc import Sequence
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, cast
 
 import numpy as np
 
@@ -135,7 +135,7 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
                          head=key != "critical_link")
         else:
             segs = np.stack([pos[src[mask]], pos[dst[mask]]], axis=1)
-            lc = LineCollection(segs, colors=mk.edge, linewidths=lw, linestyles=mk.linestyle,
+            lc = LineCollection(cast(Any, segs), colors=mk.edge, linewidths=lw, linestyles=mk.linestyle,
                                 alpha=alpha, zorder=mk.zorder, capstyle="round")
             lc.set_gid(GID_PREFIX + key)
             if mask.sum() > _RASTER_ABOVE:
@@ -248,7 +248,7 @@ def _mark_key(mk: Mark) -> str:
 def _labels(ax: Axes, pos: np.ndarray, names: Sequence[str], radius_pt: float) -> None:
     import matplotlib.patheffects as pe
 
-    halo = [pe.withStroke(linewidth=2.6, foreground="white")]
+    halo: list[pe.AbstractPathEffect] = [pe.withStroke(linewidth=2.6, foreground="white")]
     for i, name in enumerate(names):
         text = name if len(name) <= 24 else name[:23] + "…"
         t = ax.annotate(text, pos[i], xytext=(radius_pt * 0.7, radius_pt * 0.7),
@@ -290,7 +290,8 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
 
     def line(key: str, count: int) -> tuple[Any, str]:
         mk = MARKS[key]
-        h = Line2D([], [], color=mk.edge, linewidth=mk.linewidth, linestyle=mk.linestyle)
+        h = Line2D([], [], color=mk.edge, linewidth=mk.linewidth,
+                   linestyle=cast(Any, mk.linestyle))
         return h, f"{mk.label} ({count})"
 
     items: list[tuple[Any, str]] = []

@@ -5,7 +5,7 @@ from __future__ import annotations
 import io
 import os
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from netctl.errors import OptionError
 from netctl.io import atomic_write
@@ -28,7 +28,7 @@ def figure_format(path: str | os.PathLike[str]) -> str:
     return suffix
 
 
-def figure_bytes(fig: Figure, format: str = "png", *, dpi: float = 150,
+def figure_bytes(fig: Figure | Any, format: str = "png", *, dpi: float = 150,
                  tight: bool | None = None) -> bytes:
     """The figure encoded as ``format``, with no time stamp (same figure, same bytes).
 
@@ -53,16 +53,17 @@ def figure_bytes(fig: Figure, format: str = "png", *, dpi: float = 150,
 
     if tight is None:
         tight = fig.get_layout_engine() is None
-    meta = {"png": {"Software": None}, "svg": {"Date": None},
-            "pdf": {"CreationDate": None, "ModDate": None}}[format]
+    meta: dict[str, Any] = {"png": {"Software": None}, "svg": {"Date": None},
+                            "pdf": {"CreationDate": None, "ModDate": None}}[format]
+    crop: dict[str, Any] = {"bbox_inches": "tight", "pad_inches": 0.15} if tight else {}
     buf = io.BytesIO()
     with matplotlib.rc_context({"svg.hashsalt": "netctl", "svg.fonttype": "path"}):
         fig.savefig(buf, format=format, dpi=dpi, metadata=meta, facecolor="white",
-                    **({"bbox_inches": "tight", "pad_inches": 0.15} if tight else {}))
+                    **crop)
     return buf.getvalue()
 
 
-def save_figure(fig: Figure, path: str | os.PathLike[str], *, dpi: float = 150) -> None:
+def save_figure(fig: Figure | Any, path: str | os.PathLike[str], *, dpi: float = 150) -> None:
     """Write ``fig`` to ``path`` (PNG, SVG or PDF by suffix), atomically.
 
     Raises

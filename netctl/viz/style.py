@@ -31,6 +31,7 @@ mark                   shape / fill                meaning
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 __all__ = ["INK", "MARKS", "Mark", "PAPER", "SERIES"]
 
@@ -95,11 +96,11 @@ MARKS: dict[str, Mark] = {
 }
 
 #: Colours for data series in charts (line charts also vary marker and line style).
-SERIES: tuple[tuple[str, str, str], ...] = (
+SERIES: tuple[tuple[str, str, Any], ...] = (
     (_BLUE, "o", "solid"),
     (_VERMILION, "s", "dashed"),
     (_TEAL, "^", "dashdot"),
     (_PLUM, "D", "dotted"),
-    (INK, "v", (0, (5, 1, 1, 1))),  # type: ignore[arg-type]
-    (_AMBER, "P", (0, (1, 1))),  # type: ignore[arg-type]
+    (INK, "v", (0, (5, 1, 1, 1))),
+    (_AMBER, "P", (0, (1, 1))),
 )
