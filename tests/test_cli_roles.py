@@ -288,3 +288,20 @@ def test_join_chemical_plant_matches_flat_check(capsys):
     assert d["controllable"] == flat.controllable
     assert code == (0 if flat.controllable else 1)
     assert len(d["composite_report"]["fix"]["states"]) == flat.n_missing_inputs
+
+
+def test_whatif_names_checked_with_file_and_line(capsys, tmp_path):
+    links = tmp_path / "rm.csv"
+    links.write_text("source,target\nboiler_temp,supply_hdr\n")
+    code, out, err = run(capsys, "whatif", HEATING, "--remove-links", str(links))
+    assert code == 2 and out == ""
+    assert "rm.csv:2: unknown state name 'supply_hdr'" in err
+    assert "Did you mean 'supply_header'?" in err
+    code, _, err = run(capsys, "whatif", HEATING, "--remove-links",
+                       "boiler_tmp->supply_header")
+    assert code == 2 and "--remove-links: unknown state name 'boiler_tmp'" in err
+    # a new name in --add-links is a new unit, announced with a warning (never silent);
+    # nothing feeds it, so it needs its own input: the minimum rises and the exit is 1
+    code, out, err = run(capsys, "whatif", HEATING, "--add-links", "boiler_tmp->supply_header")
+    assert code == 1 and "new states boiler_tmp" in out
+    assert "warning: --add-links: 'boiler_tmp' is not one of the network's 14 states" in err

@@ -37,14 +37,15 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p.set_defaults(func=_cmd_whatif)
 
 
-def read_links(value: str, what: str) -> list[tuple[str, str]]:
-    """Links from an edge-list file (``source,target`` a line, ``#`` comments, optional
-    header) or from an inline list ``'a->b,c->d'``."""
+def read_links(value: str, what: str) -> list[tuple[str, str, int | None]]:
+    """Links ``(source, target, line)`` from an edge-list file (``source,target`` a line,
+    ``#`` comments, optional header) or from an inline list ``'a->b,c->d'`` (line
+    ``None``)."""
     from netctl.cli import UsageError
     from netctl.io._common import file_error, read_text
 
     path = Path(value)
-    out: list[tuple[str, str]] = []
+    out: list[tuple[str, str, int | None]] = []
     if path.is_file():
         for lineno, raw in enumerate(read_text(path).splitlines(), start=1):
             line = raw.split("#", 1)[0].strip()
@@ -57,7 +58,7 @@ def read_links(value: str, what: str) -> list[tuple[str, str]]:
                 raise file_error(value, lineno, f"expected 'source,target', found {len(f)} "
                                  f"column(s) in {raw.strip()!r}. One link a line; a link "
                                  "'a,b' means a influences b.")
-            out.append((f[0], f[1]))
+            out.append((f[0], f[1], lineno))
         if not out:
             raise file_error(value, None, f"{what}: the file lists no links; expected lines "
                              "'source,target'.")
@@ -71,9 +72,43 @@ def read_links(value: str, what: str) -> list[tuple[str, str]]:
         a, b = (x.strip() for x in item.split("->", 1))
         if not a or not b:
             raise UsageError(f"{what}: the link {item!r} lacks a state name; write 'a->b'.")
-        out.append((a, b))
+        out.append((a, b, None))
     if not out:
         raise UsageError(f"{what} names no link; write 'a->b,c->d' or give a file.")
+    return out
+
+
+def _checked(system: Any, value: str | None, what: str, *, new_ok: bool
+             ) -> list[tuple[str, str]] | None:
+    """Read links and check their state names: unknown names are errors for links to
+    remove (with the file and line), and new states (with a warning) for links to add."""
+    import difflib
+    import warnings
+
+    from netctl.errors import UnknownNameError
+    from netctl.io._common import file_error
+
+    if not value:
+        return None
+    known = set(system.state_names)
+    out = []
+    for a, b, line in read_links(value, what):
+        for x in (a, b):
+            if x in known:
+                continue
+            close = difflib.get_close_matches(x, list(known), n=3)
+            hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
+            if new_ok:
+                warnings.warn(f"{what}: {x!r} is not one of the network's {system.n_states} "
+                              f"states; it is added as a new state.{hint}", stacklevel=2)
+                known.add(x)
+            elif line is not None:
+                raise file_error(value, line, f"unknown state name {x!r} in the link "
+                                 f"{a!r} -> {b!r}.{hint} Links to remove must exist.")
+            else:
+                raise UnknownNameError(f"{what}: unknown state name {x!r} in the link "
+                                       f"{a}->{b}.{hint} Links to remove must exist.")
+        out.append((a, b))
     return out
 
 
@@ -87,8 +122,8 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     system = load_system(args)
     if args.inputs is not None:
         system = system.with_inputs(parse_names(system, args.inputs))
-    add = read_links(args.add_links, "--add-links") if args.add_links else None
-    rem = read_links(args.remove_links, "--remove-links") if args.remove_links else None
+    add = _checked(system, args.add_links, "--add-links", new_ok=True)
+    rem = _checked(system, args.remove_links, "--remove-links", new_ok=False)
     nodes = None
     if args.remove_nodes:
         nodes = read_state_list(args.remove_nodes)
