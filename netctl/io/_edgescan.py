@@ -26,7 +26,7 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-__all__ = ["scan_chunk", "rehash", "mark_present", "remap", "int_names_text", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
+__all__ = ["scan_chunk", "rehash", "mark_present", "remap", "int_names_text", "build_csr", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
            "STATUS_NOT_INT", "STATUS_GROW", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ST_SIZE"]
 
 MODE_INT = 0
@@ -453,3 +453,70 @@ def int_names_text(values: np.ndarray) -> np.ndarray:
         out[k] = 10
         k += 1
     return out[:k]
+
+
+@njit(cache=True, nogil=True)
+def build_csr(rows: np.ndarray, cols: np.ndarray, vals: np.ndarray, n: int,
+              weighted: bool) -> tuple[np.ndarray, np.ndarray, np.ndarray, int, int]:
+    """Canonical CSR of an ``n x n`` matrix from coordinates, in O(nnz + n).
+
+    Duplicates are summed (``weighted``) or merged to 1.0, column indices sorted,
+    entries that sum to exactly zero dropped. Returns ``(indptr, indices, data,
+    n_duplicates, n_cancelled)``.
+    """
+    m = rows.size
+    # counting sort by column, then a stable counting sort by row: sorted (row, col)
+    cnt = np.zeros(n + 1, np.int64)
+    for k in range(m):
+        cnt[cols[k] + 1] += 1
+    for i in range(n):
+        cnt[i + 1] += cnt[i]
+    by_col = np.empty(m, np.int64)
+    for k in range(m):
+        c = cols[k]
+        by_col[cnt[c]] = k
+        cnt[c] += 1
+    indptr = np.zeros(n + 1, np.int64)
+    for k in range(m):
+        indptr[rows[k] + 1] += 1
+    for i in range(n):
+        indptr[i + 1] += indptr[i]
+    fill = indptr[:-1].copy()
+    order = np.empty(m, np.int64)
+    for t in range(m):
+        k = by_col[t]
+        r = rows[k]
+        order[fill[r]] = k
+        fill[r] += 1
+    # merge duplicates row by row, compacting in place
+    indices = np.empty(m, np.int64)
+    data = np.empty(m, np.float64)
+    out = 0
+    n_dup = 0
+    n_cancel = 0
+    start = 0
+    for i in range(n):
+        end = indptr[i + 1]
+        row_start = out
+        t = start
+        while t < end:
+            k = order[t]
+            c = cols[k]
+            v = vals[k] if weighted else 1.0
+            t += 1
+            while t < end and cols[order[t]] == c:
+                if weighted:
+                    v += vals[order[t]]
+                n_dup += 1
+                t += 1
+            if weighted and v == 0.0:
+                n_cancel += 1
+                continue
+            indices[out] = c
+            data[out] = v
+            out += 1
+        start = end
+        indptr[i] = row_start
+    indptr[n] = out
+    # indptr[i] was overwritten with the start of row i in the compacted arrays
+    return indptr, indices[:out].copy(), data[:out].copy(), n_dup, n_cancel

@@ -480,21 +480,18 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
                           f"{'were' if k > 1 else 'was'} left out{where}.", stacklevel=3)
             keep = ~zero
             src, dst, w = src[keep], dst[keep], w[keep]
-    data = np.ones(src.size) if w is None else w
-    A = sp.coo_array((data, (dst, src)), shape=(n, n)).tocsr()
-    A.sum_duplicates()
-    n_dup = src.size - A.nnz
+    indptr, indices, data, n_dup, cancelled = _k.build_csr(
+        dst, src, np.empty(0) if w is None else w, n, w is not None)
+    A = sp.csr_array((data, indices, indptr), shape=(n, n))
+    A.has_sorted_indices = True
+    A.has_canonical_format = True
     if n_dup:
         warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
                       "merged" + (" (weights summed)" if w is not None else "") + ".",
                       stacklevel=3)
-    if w is None:
-        A.data[:] = 1.0
-    else:
-        cancelled = int(np.count_nonzero(A.data == 0))
-        if cancelled:
-            warnings.warn(f"{path}: {cancelled} link{'s' if cancelled > 1 else ''} whose "
-                          "duplicate weights sum to 0 were left out.", stacklevel=3)
+    if cancelled:
+        warnings.warn(f"{path}: {cancelled} link{'s' if cancelled > 1 else ''} whose "
+                      "duplicate weights sum to 0 were left out.", stacklevel=3)
     return StructuredSystem(A=A, B=None, C=None, state_names=e.names, input_names=(),
                             output_names=(), nodes=nodes or {}, weighted=w is not None,
                             model=model)

@@ -274,3 +274,28 @@ def test_integer_factorization_paths(tmp_path, text, names):
     assert e.names == names
     ref_names, ref_edges, _ = reference_parse(text)
     assert list(e.names) == ref_names and as_named(e) == ref_edges
+
+
+@pytest.mark.parametrize("weighted", [False, True])
+def test_compiled_csr_builder_matches_scipy(rng, weighted):
+    import scipy.sparse as sp
+
+    from netctl.io._edgescan import build_csr
+
+    for _ in range(20):
+        n = int(rng.integers(1, 30))
+        m = int(rng.integers(0, 120))
+        r, c = rng.integers(0, n, m), rng.integers(0, n, m)
+        v = rng.integers(-2, 3, m).astype(float)  # small integers: sums cancel exactly
+        v[v == 0] = 1.0
+        indptr, indices, data, n_dup, n_cancel = build_csr(r, c, v, n, weighted)
+        ref = sp.coo_array((v if weighted else np.ones(m), (r, c)), shape=(n, n)).tocsr()
+        ref.sum_duplicates()
+        assert n_dup == m - ref.nnz
+        if not weighted:
+            ref.data[:] = 1.0
+        ref.eliminate_zeros()
+        ref.sort_indices()
+        assert n_cancel == (m - n_dup) - ref.nnz
+        assert indptr.tolist() == ref.indptr.tolist()
+        assert indices.tolist() == ref.indices.tolist() and data.tolist() == ref.data.tolist()
