@@ -458,65 +458,73 @@ def int_names_text(values: np.ndarray) -> np.ndarray:
 @njit(cache=True, nogil=True)
 def build_csr(rows: np.ndarray, cols: np.ndarray, vals: np.ndarray, n: int,
               weighted: bool) -> tuple[np.ndarray, np.ndarray, np.ndarray, int, int]:
-    """Canonical CSR of an ``n x n`` matrix from coordinates, in O(nnz + n).
+    """Canonical CSR of an ``n x n`` matrix from coordinates, in O(nnz + n) for rows of
+    bounded length (rows longer than 32 entries are sorted with a comparison sort).
 
     Duplicates are summed (``weighted``) or merged to 1.0, column indices sorted,
     entries that sum to exactly zero dropped. Returns ``(indptr, indices, data,
     n_duplicates, n_cancelled)``.
     """
     m = rows.size
-    # counting sort by column, then a stable counting sort by row: sorted (row, col)
-    cnt = np.zeros(n + 1, np.int64)
-    for k in range(m):
-        cnt[cols[k] + 1] += 1
-    for i in range(n):
-        cnt[i + 1] += cnt[i]
-    by_col = np.empty(m, np.int64)
-    for k in range(m):
-        c = cols[k]
-        by_col[cnt[c]] = k
-        cnt[c] += 1
     indptr = np.zeros(n + 1, np.int64)
     for k in range(m):
         indptr[rows[k] + 1] += 1
     for i in range(n):
         indptr[i + 1] += indptr[i]
     fill = indptr[:-1].copy()
-    order = np.empty(m, np.int64)
-    for t in range(m):
-        k = by_col[t]
+    ci = np.empty(m, np.int64)
+    cv = np.empty(m if weighted else 0, np.float64)
+    for k in range(m):  # scatter, keeping file order within a row
         r = rows[k]
-        order[fill[r]] = k
+        ci[fill[r]] = cols[k]
+        if weighted:
+            cv[fill[r]] = vals[k]
         fill[r] += 1
-    # merge duplicates row by row, compacting in place
-    indices = np.empty(m, np.int64)
-    data = np.empty(m, np.float64)
     out = 0
     n_dup = 0
     n_cancel = 0
     start = 0
     for i in range(n):
         end = indptr[i + 1]
+        ln = end - start
+        if ln > 32:  # stable sort of a long row
+            o = np.argsort(ci[start:end], kind="mergesort")
+            ci[start:end] = ci[start:end][o]
+            if weighted:
+                cv[start:end] = cv[start:end][o]
+        else:  # insertion sort (stable)
+            for t in range(start + 1, end):
+                c = ci[t]
+                v = cv[t] if weighted else 0.0
+                u = t - 1
+                while u >= start and ci[u] > c:
+                    ci[u + 1] = ci[u]
+                    if weighted:
+                        cv[u + 1] = cv[u]
+                    u -= 1
+                ci[u + 1] = c
+                if weighted:
+                    cv[u + 1] = v
         row_start = out
         t = start
         while t < end:
-            k = order[t]
-            c = cols[k]
-            v = vals[k] if weighted else 1.0
+            c = ci[t]
+            v = cv[t] if weighted else 1.0
             t += 1
-            while t < end and cols[order[t]] == c:
+            while t < end and ci[t] == c:
                 if weighted:
-                    v += vals[order[t]]
+                    v += cv[t]
                 n_dup += 1
                 t += 1
             if weighted and v == 0.0:
                 n_cancel += 1
                 continue
-            indices[out] = c
-            data[out] = v
+            ci[out] = c  # out <= t - 1: compaction never overwrites unread entries
+            if weighted:
+                cv[out] = v
             out += 1
-        start = end
         indptr[i] = row_start
+        start = end
     indptr[n] = out
-    # indptr[i] was overwritten with the start of row i in the compacted arrays
-    return indptr, indices[:out].copy(), data[:out].copy(), n_dup, n_cancel
+    data = cv[:out].copy() if weighted else np.ones(out, np.float64)
+    return indptr, ci[:out].copy(), data, n_dup, n_cancel
