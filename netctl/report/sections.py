@@ -28,6 +28,9 @@ MAP_LIMIT = 200_000
 ATTACK_LIMIT = 50_000
 #: Up to this many states the report confirms the verdict numerically.
 NUMERIC_LIMIT = 20_000
+#: Up to this many states the numeric confirmation uses dense rank tests (the
+#: controllable dimension); above, the sparse certificate (full rank or not).
+NUMERIC_DENSE_LIMIT = 400
 #: Names listed per list (the JSON report lists all).
 LIST_LIMIT = 200
 
@@ -361,8 +364,9 @@ def numeric_section(ctx: ReportContext) -> Section | None:
                            "netctl verify)")
         return None
     system = ctx.actuated()
+    method = "auto" if n <= NUMERIC_DENSE_LIMIT else "certificate"
     v = ctx.cached("verify", lambda: verify(system, weights="independent", samples=2,
-                                            seed=ctx.seed))
+                                            seed=ctx.seed, method=method))
     blocks = [para(f"Weights drawn independently at random (the structured-system "
                    f"assumption), {len(v.samples)} sample(s), seeds {list(v.seeds)}, method "
                    f"{v.method}."), items(list(v.findings))]

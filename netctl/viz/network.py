@@ -135,8 +135,9 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
                          head=key != "critical_link")
         else:
             segs = np.stack([pos[src[mask]], pos[dst[mask]]], axis=1)
-            lc = LineCollection(cast(Any, segs), colors=mk.edge, linewidths=lw, linestyles=mk.linestyle,
-                                alpha=alpha, zorder=mk.zorder, capstyle="round")
+            lc = LineCollection(cast(Any, segs), colors=mk.edge, linewidths=lw,
+                                linestyles=mk.linestyle, alpha=alpha, zorder=mk.zorder,
+                                capstyle="round", antialiaseds=n <= _OVERVIEW_ABOVE)
             lc.set_gid(GID_PREFIX + key)
             if mask.sum() > _RASTER_ABOVE:
                 lc.set_rasterized(True)
@@ -156,7 +157,13 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
                 sc.set_gid(GID_PREFIX + ("self_loop" if key == "link" else "cycle_loop"))
 
     # states: roles (when asked) replace the plain circle, then the point marks on top
-    if marks.roles is None:
+    if marks.roles is None and n > _OVERVIEW_ABOVE:
+        # overview: every state as a dot (one marker path, drawn much faster)
+        (dots,) = ax.plot(pos[:, 0], pos[:, 1], linestyle="none", marker=".",
+                          markersize=1.2, markeredgewidth=0, color=MARKS["state"].edge,
+                          zorder=MARKS["state"].zorder, rasterized=True)
+        dots.set_gid(GID_PREFIX + "state")
+    elif marks.roles is None:
         _points(ax, pos, np.arange(n), MARKS["state"], area)
     _points(ax, pos, marks.unreached, MARKS["unreached"], area)
     _points(ax, pos, marks.dilation, MARKS["dilation"], area)
@@ -270,9 +277,12 @@ def _default_title(system: StructuredSystem, marks: MapMarks, how: str) -> str:
               "coordinates+fr": "states at their coordinates (some placed by layout)",
               "fr": "force-directed layout", "fr-grid": "force-directed layout (grid)",
               "circle": "circular layout", "given": "given positions"}.get(how, how)
-    return (f"{n} states, {system.n_links} links, model {marks.model}: {marks.n_inputs} "
-            f"input(s) on {marks.drivers.size} driver node(s) from {design}\n"
-            f"{verdict}; {placed}")
+    import textwrap
+
+    first = (f"{n} states, {system.n_links} links, model {marks.model}: {marks.n_inputs} "
+             f"input(s) on {marks.drivers.size} driver node(s) from {design}")
+    # wrapped to the map's width, so a long title never runs under the legend
+    return "\n".join(textwrap.wrap(first, 88) + textwrap.wrap(f"{verdict}; {placed}", 88))
 
 
 def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
