@@ -222,7 +222,10 @@ def _points(ax: Axes, pos: np.ndarray, idx: np.ndarray, mk: Mark, area: float,
     if idx.size == 0:
         return
     assert mk.marker is not None
-    sc = ax.scatter(pos[idx, 0], pos[idx, 1], s=area * mk.size, marker=mk.marker,
+    size = area * mk.size
+    if mk.size > 2.0 and idx.size <= 300:
+        size = max(size, 11.0 * mk.size)  # few flagged states stay visible on big maps
+    sc = ax.scatter(pos[idx, 0], pos[idx, 1], s=size, marker=mk.marker,
                     facecolors=mk.face, edgecolors=mk.edge,
                     linewidths=(0.0 if idx.size > _OVERVIEW_ABOVE
                                 else mk.linewidth * (1.0 if area >= 20 else 0.5)),
@@ -318,7 +321,8 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
     else:
         items.append(point("state", system.n_states))
     n_cyc = int(np.count_nonzero(marks.on_cycle))
-    items.append(line("chain", marks.on_cycle.size - n_cyc))
+    if marks.on_cycle.size - n_cyc or not n_cyc:
+        items.append(line("chain", marks.on_cycle.size - n_cyc))
     if n_cyc:
         items.append(line("cycle", n_cyc))
     items.append(line("link", system.n_links - marks.on_cycle.size - n_loops
@@ -329,7 +333,7 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
 
         casing = Line2D([], [], color=MARKS["critical_link"].edge,
                         linewidth=MARKS["critical_link"].linewidth)
-        inner = Line2D([], [], color=MARKS["chain"].edge, linewidth=MARKS["chain"].linewidth)
+        inner = Line2D([], [], color="white", linewidth=MARKS["chain"].linewidth * 0.8)
         items.append(((casing, inner), f"{MARKS['critical_link'].label} "
                                        f"({marks.critical_sources.size})"))
     if n_loops:
