@@ -18,6 +18,7 @@ from __future__ import annotations
 import gzip
 import os
 import re
+import threading
 import warnings
 import zlib
 from dataclasses import dataclass
@@ -37,6 +38,8 @@ __all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
 
 #: Bytes read per chunk; the scanner's working memory is a small multiple of this.
 CHUNK_BYTES = 1 << 24
+#: Chunks of integer-named links at least this large are scanned in two threads.
+PARALLEL_MIN_BYTES = 1 << 22
 
 _HEADER_WORDS = {"source", "target", "from", "to", "src", "dst", "weight", "u", "v", "tail",
                  "head", "node1", "node2", "origin", "destination", "w", "node", "name",
@@ -178,43 +181,109 @@ class _Scan:
             pos = self._header(chunk)
             if pos < 0:
                 return
-        n_lines = chunk.count(b"\n") + 1
-        st[0] = pos
-        st[4] = st[5] = 0
-        self._room(n_lines, len(chunk))
-        src, dst, w = self.src, self.dst, self.w
-        iso = np.empty(n_lines, np.int64)
-        fb_edge = np.empty(n_lines, np.int64)
-        fb_line = np.empty(n_lines, np.int64)
-        fb_start = np.empty(n_lines, np.int64)
-        fb_end = np.empty(n_lines, np.int64)
         arr = np.frombuffer(chunk, np.uint8)
         self.chunk_len = len(chunk)
+        split = -1
+        if (self.mode == _k.MODE_INT and len(chunk) - pos >= PARALLEL_MIN_BYTES
+                and (os.cpu_count() or 1) > 1):
+            m = chunk.find(b"\n", pos + (len(chunk) - pos) // 2)
+            if 0 <= m < len(chunk) - 1:
+                split = m + 1
+        if split < 0:
+            cap = (len(chunk) - pos) // 2 + 2  # a line that yields anything has >= 2 bytes
+            self._room(cap, chunk)
+            st[0] = pos
+            st[4] = st[5] = 0
+            status, iso, fb = self._run(arr, st, self.src, self.dst, self.w, cap)
+            self._finish(chunk, st, status, iso, fb, 0)
+            return
+        # integer names and a large chunk: scan the two halves in two threads (the
+        # compiled scanner releases the GIL), then append the second half's links
+        cap_a = (split - pos) // 2 + 2
+        cap_b = (len(chunk) - split) // 2 + 2
+        self._room(cap_a + cap_b, chunk)
+        st_b = st.copy()
+        st_b[0] = split
+        st_b[1] = st[1] + chunk.count(b"\n", pos, split)
+        st_b[3] = st_b[4] = st_b[5] = st_b[8] = st_b[9] = 0
+        st[0] = pos
+        st[4] = st[5] = 0
+        src_b = np.empty(cap_b, np.int64)
+        dst_b = np.empty(cap_b, np.int64)
+        w_b = np.empty(cap_b, np.float64)
+        out: dict[str, tuple[int, np.ndarray, tuple[np.ndarray, ...]]] = {}
+
+        def second_half() -> None:
+            out["b"] = self._run(arr, st_b, src_b, dst_b, w_b, cap_b)
+
+        worker = threading.Thread(target=second_half)
+        worker.start()
+        try:
+            status_a, iso_a, fb_a = self._run(arr[:split], st, self.src, self.dst, self.w,
+                                              cap_a)
+        finally:
+            worker.join()
+        self._finish(chunk, st, status_a, iso_a, fb_a, 0)
+        status_b, iso_b, fb_b = out["b"]
+        if status_b == _k.STATUS_NOT_INT:
+            raise _NotInt
+        if status_b == _k.STATUS_ERROR or (st[2] and st_b[2] and st[2] != st_b[2]):
+            # rescan the second half in order, so the first problem is the one reported
+            st[0] = split
+            st[4] = st[5] = 0
+            status, iso, fb = self._run(arr, st, self.src, self.dst, self.w, cap_b)
+            self._finish(chunk, st, status, iso, fb, 0)
+            return
+        ne, nb = int(st[3]), int(st_b[3])
+        self.src[ne:ne + nb] = src_b[:nb]
+        self.dst[ne:ne + nb] = dst_b[:nb]
+        if st_b[2] == 3:
+            self.w[ne:ne + nb] = w_b[:nb]
+        st[3] = ne + nb
+        st[1] = st_b[1]
+        if not st[2]:
+            st[2] = st_b[2]
+        if st_b[8]:
+            if not st[8]:
+                st[9] = st_b[9]
+            st[8] += st_b[8]
+        self._finish(chunk, st_b, _k.STATUS_DONE, iso_b, fb_b, ne)
+
+    def _run(self, arr: np.ndarray, st: np.ndarray, src: np.ndarray, dst: np.ndarray,
+             w: np.ndarray, cap: int) -> tuple[int, np.ndarray, tuple[np.ndarray, ...]]:
+        """Run the scanner over ``arr`` from ``st[0]`` (growing the name table as asked)."""
+        iso = np.empty(cap, np.int64)
+        fb = tuple(np.empty(cap, np.int64) for _ in range(4))
         while True:
-            status = _k.scan_chunk(arr, self.mode, st, src, dst, w, iso, fb_edge, fb_line,
-                                   fb_start, fb_end, self.table, self.names_buf,
-                                   self.name_pos, self.name_line)
+            status = _k.scan_chunk(arr, self.mode, st, src, dst, w, iso, fb[0], fb[1], fb[2],
+                                   fb[3], self.table, self.names_buf, self.name_pos,
+                                   self.name_line)
             if status != _k.STATUS_GROW:
-                break
+                return status, iso, fb
             self._grow()
+
+    def _finish(self, chunk: bytes, st: np.ndarray, status: int, iso: np.ndarray,
+                fb: tuple[np.ndarray, ...], offset: int) -> None:
+        """Raise for a failed scan; otherwise convert fallback weights, keep lone names."""
         if status == _k.STATUS_NOT_INT:
             raise _NotInt
         if status == _k.STATUS_ERROR:
-            self._error(chunk)
+            self._error(chunk, st)
         ni, nfb = int(st[4]), int(st[5])
         if nfb:
-            self._fallback_weights(chunk, w, fb_edge[:nfb], fb_line[:nfb], fb_start[:nfb],
-                                   fb_end[:nfb])
+            self._fallback_weights(chunk, self.w, fb[0][:nfb] + offset, fb[1][:nfb],
+                                   fb[2][:nfb], fb[3][:nfb])
         if ni:
             self.iso.append(iso[:ni].copy())
 
-    def _room(self, n_lines: int, chunk_len: int) -> None:
+    def _room(self, n_lines: int, chunk: bytes) -> None:
         """Make the link arrays hold at least ``n_lines`` more links."""
         ne = int(self.st[3])
         if ne + n_lines <= self.cap:
             return
-        # first guess: the whole file at this chunk's line density; then doubling
-        guess = int(self.size_hint / max(chunk_len, 1) * n_lines * 1.05) if not self.cap else 0
+        guess = 0
+        if not self.cap:  # first guess: the whole file at this chunk's line density
+            guess = int(self.size_hint / max(len(chunk), 1) * (chunk.count(b"\n") + 1) * 1.05)
         cap = max(ne + n_lines, 2 * self.cap, guess)
         weighted = self.st[2] == 3
         for name in ("src", "dst", "w"):
@@ -266,8 +335,7 @@ class _Scan:
             self.table = np.full((2 * self.table.shape[0], 2), -1, np.int64)
             _k.rehash(self.table, self.names_buf, self.name_pos, nn)
 
-    def _error(self, chunk: bytes) -> None:
-        st = self.st
+    def _error(self, chunk: bytes, st: np.ndarray) -> None:
         line = int(st[1])
         text = _line_text(chunk, int(st[11]), int(st[12]))
         nf = len(_fields(text))

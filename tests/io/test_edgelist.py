@@ -299,3 +299,44 @@ def test_compiled_csr_builder_matches_scipy(rng, weighted):
         assert n_cancel == (m - n_dup) - ref.nnz
         assert indptr.tolist() == ref.indptr.tolist()
         assert indices.tolist() == ref.indices.tolist() and data.tolist() == ref.data.tolist()
+
+
+PARALLEL_CASES = [
+    pytest.param("".join(f"{i} {i + 1}\n" for i in range(400)), None, id="plain"),
+    pytest.param("".join(f"{i} {i + 1} 0.{i}\n" for i in range(400)), None, id="weighted"),
+    pytest.param("".join(f"{i} {i + 1} {0.1 * i!r}\n" for i in range(400)) + "7\n", None,
+                 id="fallback-weights-and-lone-name"),
+    pytest.param("".join(f"{i} {i + 1}\n" for i in range(300)) + "5 6 1\n"
+                 + "".join(f"{i} {i + 1} 2\n" for i in range(100)),
+                 r"net\.csv:301: this line has 3 columns but earlier lines have 2",
+                 id="columns-change-in-second-half"),
+    pytest.param("".join(f"{i} {i + 1}\n" for i in range(300)) + "1 2 3 4\n"
+                 + "".join(f"{i} {i + 1} 2 3 4\n" for i in range(100)),
+                 r"net\.csv:301: expected 'source target \[weight\]', found 4", id="error-b"),
+    pytest.param("".join(f"{i} {i + 1}\n" for i in range(300)) + "x y\n", None,
+                 id="string-name-in-second-half"),
+]
+
+
+@pytest.mark.parametrize("text, error", PARALLEL_CASES)
+def test_two_thread_scan_equals_one_thread(tmp_path, monkeypatch, text, error):
+    import netctl.io.edgelist as mod
+
+    p = write(tmp_path, text)
+    monkeypatch.setattr(mod, "PARALLEL_MIN_BYTES", 1 << 30)
+    if error:
+        with pytest.raises(NetworkFileError, match=error):
+            read_edge_arrays(p, chunk_bytes=1000)
+        monkeypatch.setattr(mod, "PARALLEL_MIN_BYTES", 16)
+        with pytest.raises(NetworkFileError, match=error):
+            read_edge_arrays(p, chunk_bytes=1000)
+        return
+    one = read_edge_arrays(p, chunk_bytes=1000)
+    monkeypatch.setattr(mod, "PARALLEL_MIN_BYTES", 16)
+    two = read_edge_arrays(p, chunk_bytes=1000)
+    assert one.names == two.names and as_named(one) == as_named(two)
+    assert (one.weights is None) == (two.weights is None)
+    if one.weights is not None:
+        assert one.weights.tobytes() == two.weights.tobytes()
+    ref_names, ref_edges, ref_w = reference_parse(text)
+    assert list(two.names) == ref_names and as_named(two) == ref_edges
