@@ -251,3 +251,24 @@ def test_cli_map_bad_file_exits_2(tmp_path, capsys):
     assert code == 2
     assert "bad.csv:2" in capsys.readouterr().err
     assert not (tmp_path / "m.png").exists()
+
+
+def test_legend_explains_every_mark_drawn():
+    # the bundled plant has self-loops, chains, cycles, unreached states, a dilation and
+    # a fix; with roles and critical links every kind of mark is on the map
+    from netctl.viz.style import MARKS
+
+    path = ROOT / "networks" / "chemical_plant.toml"
+    if not path.exists():
+        pytest.skip("the bundled chemical plant is not in this checkout")
+    s = read(path)
+    ax = draw_map(s, map_marks(s, show=["roles", "critical-links"]))
+    drawn = {a.get_gid().removeprefix("netctl:")
+             for a in [*ax.collections, *ax.patches, *ax.lines]
+             if a.get_gid() and a.get_gid() != "netctl:label"}
+    legend_text = " | ".join(t.get_text() for leg in ax.figure.legends for t in leg.get_texts())
+    for key in drawn:
+        wanted = "self-loop" if key in ("self_loop", "cycle_loop") else MARKS[key].label
+        assert wanted in legend_text, (key, legend_text)
+    assert {"driver", "chain", "cycle", "unreached", "dilation", "suggested",
+            "critical_link", "self_loop"} <= drawn
