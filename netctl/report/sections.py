@@ -19,7 +19,8 @@ from netctl.report.document import Section, figure, items, note, para, table
 from netctl.system import StructuredSystem
 
 __all__ = ["SECTIONS", "ReportContext", "SectionBuilder", "cautions_section",
-           "design_section", "map_section", "minimum_inputs_section", "numeric_section",
+           "design_section", "map_section", "minimum_inputs_section", "modes_section",
+           "numeric_section",
            "robustness_section", "roles_section", "strong_section", "summary_section"]
 
 #: Up to this many states the report draws the map.
@@ -323,7 +324,7 @@ def robustness_section(ctx: ReportContext) -> Section | None:
         verdict = "no single link loss breaks the design"
     data: dict[str, Any] = {"links": sweep.to_dict(rows=False)}
     n = ctx.system.n_states
-    if 2 <= n <= ATTACK_LIMIT:
+    if 20 <= n <= ATTACK_LIMIT:  # fewer states give too few points to read a trend
         import matplotlib
 
         matplotlib.use("Agg")
@@ -377,6 +378,51 @@ def numeric_section(ctx: ReportContext) -> Section | None:
                             else "a numeric sample DISAGREES with the structural verdict"))
 
 
+def modes_section(ctx: ReportContext) -> Section | None:
+    """The weakest modes for the file's own weights (``netctl.numeric.modal``)."""
+    from netctl.numeric.modal import modal_controllability
+
+    system = ctx.actuated()
+    n = system.n_states
+    if not system.weighted or n == 0:
+        return None  # pattern only: modes need numbers (see the numeric confirmation)
+    if n > NUMERIC_DENSE_LIMIT:
+        ctx.missing.append(f"weakest modes (over {NUMERIC_DENSE_LIMIT} states; run "
+                           "netctl modes)")
+        return None
+    r = ctx.cached("modes", lambda: modal_controllability(system))
+    lam = np.array([m.eigenvalue for m in r.modes], dtype=np.complex128)
+    reach = np.array([m.reach for m in r.modes], dtype=np.float64)
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from netctl.viz import plot_weakest_modes
+    from netctl.viz.output import figure_bytes
+
+    ax = plot_weakest_modes(lam, reach, k=min(10, lam.size),
+                            quantity="reach of the inputs (cosine to the input subspace)")
+    try:
+        png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
+    finally:
+        plt.close(cast(Any, ax.figure))
+    rows = [(f"{complex(m.eigenvalue):.4g}", m.multiplicity, f"{m.reach:.3g}",
+             ", ".join(r.names(m.carriers[:8])) + (" ..." if m.carriers.size > 8 else ""))
+            for m in r.weakest(10)]
+    unreached = len(r.unreached)
+    return Section(
+        "modes", "Weakest modes (the file's weights)",
+        (para("How strongly the inputs reach each mode of A with the weights in the file: "
+              "the cosine between the mode's left eigenvector and the input subspace "
+              "(0: the mode cannot be moved). Small values mean large input energy."),
+         figure(png, "The weakest modes, smallest reach first (log scale)."),
+         table(("eigenvalue", "multiplicity", "reach", "states it lives on"), rows)),
+        data=r.to_dict(), status="warning" if unreached else "info",
+        badge=f"{unreached} unreached" if unreached else "",
+        verdict=(f"{unreached} mode(s) are not reached by the inputs" if unreached else ""))
+
+
 def strong_section(ctx: ReportContext) -> Section | None:
     """Strong structural controllability: for every nonzero weight (zero forcing)."""
     from netctl.structural.strong import strong_controllability
@@ -407,6 +453,7 @@ SECTIONS: list[SectionBuilder] = [
     roles_section,
     robustness_section,
     numeric_section,
+    modes_section,
     strong_section,
     cautions_section,
 ]
@@ -416,6 +463,7 @@ OPTIONAL: dict[SectionBuilder, str] = {
     roles_section: "roles of states and links",
     robustness_section: "robustness to losses",
     numeric_section: "numeric confirmation",
+    modes_section: "weakest modes",
     strong_section: "strong structural controllability",
 }
 

@@ -230,3 +230,23 @@ def test_report_renders_in_headless_chromium(tmp_path, heating_report):
     driver = np.mean((abs(img[..., 0] - 0xC4) < 30) & (abs(img[..., 1] - 0x4E) < 30)
                      & (abs(img[..., 2] - 0x0E) < 30))
     assert dark > 0.005 and driver > 0
+
+
+def test_weakest_modes_section_matches_pbh():
+    # weighted chain 0 -> 1 -> 2 plus a decoupled state 3 with its own dynamics; the
+    # input acts on 0. PBH (Hautus 1969): lambda is uncontrollable iff
+    # rank [A - lambda I, B] < n; recomputed here with numpy.
+    s = StructuredSystem.from_edges([0, 1, 3, 0], [1, 2, 3, 0], 4,
+                                    weights=[1.5, -0.7, -2.0, -1.0])
+    report = build_report(s, inputs=[0])
+    modes = report.section("modes")
+    A = s.A.toarray()
+    B = np.zeros((4, 1))
+    B[0, 0] = 1
+    lost = sum(np.linalg.matrix_rank(np.hstack([A - lam * np.eye(4), B])) < 4
+               for lam in np.unique(np.round(np.linalg.eigvals(A), 9)))
+    assert modes.data["n_unreached"] == lost >= 1
+    assert modes.status == "warning"
+    check_html(report.to_html())
+    # pattern only: modes need numbers, so the section is left out
+    assert "modes" not in [x.key for x in build_report(read(HEATING)).sections]
