@@ -10,6 +10,7 @@ from collections.abc import Mapping, Sequence
 from typing import TYPE_CHECKING, Any, cast
 
 import numpy as np
+from numpy.typing import ArrayLike
 
 from netctl.errors import OptionError
 from netctl.viz.style import INK, MARKS, SERIES
@@ -42,7 +43,7 @@ def _vector(values: Any, what: str) -> np.ndarray:
     return arr
 
 
-def plot_attack_curves(curves: Mapping[str, Sequence[Any]], *, ax: Axes | None = None,
+def plot_attack_curves(curves: Mapping[str, Sequence[ArrayLike]], *, ax: Axes | None = None,
                        xlabel: str = "fraction of links removed",
                        ylabel: str = "driver-node fraction $n_D$") -> Axes:
     r"""Attack (or failure) curves: a control measure as parts of the network are removed.
@@ -99,7 +100,7 @@ def plot_attack_curves(curves: Mapping[str, Sequence[Any]], *, ax: Axes | None =
     return ax
 
 
-def plot_null_model(observed: float, null: Sequence[float], *, ax: Axes | None = None,
+def plot_null_model(observed: float, null: ArrayLike, *, ax: Axes | None = None,
                     label: str = "this network",
                     quantity: str = "minimum number of inputs") -> Axes:
     r"""An observed value against its distribution in a degree-preserving null model.
@@ -165,7 +166,7 @@ def plot_null_model(observed: float, null: Sequence[float], *, ax: Axes | None =
 ROLE_ORDER: tuple[str, ...] = ("critical", "intermittent", "redundant")
 
 
-def plot_role_composition(composition: Mapping[str, Sequence[float]], *,
+def plot_role_composition(composition: Mapping[str, ArrayLike], *,
                           ax: Axes | None = None, roles: Sequence[str] = ROLE_ORDER,
                           title: str = "node roles") -> Axes:
     """Shares of critical, intermittent and redundant nodes (or links), one bar each.
@@ -235,7 +236,7 @@ def plot_role_composition(composition: Mapping[str, Sequence[float]], *,
     return ax
 
 
-def plot_weakest_modes(eigenvalues: Sequence[complex], measure: Sequence[float], *,
+def plot_weakest_modes(eigenvalues: ArrayLike, measure: ArrayLike, *,
                        k: int = 10, ax: Axes | None = None,
                        quantity: str = "modal controllability") -> Axes:
     r"""The ``k`` modes with the smallest control measure: the hardest to steer.
