@@ -117,6 +117,8 @@ def main() -> None:
     ap.add_argument("--lines", type=int, default=1_000_000)
     ap.add_argument("--repeat", type=int, default=3)
     ap.add_argument("--dir", default=os.path.join(tempfile.gettempdir(), "netctl-bench"))
+    ap.add_argument("--kinds", default="int,int+weight,string",
+                    help="comma-separated file kinds to time")
     args = ap.parse_args()
     os.makedirs(args.dir, exist_ok=True)
     files = make_files(args.dir, args.lines)
@@ -136,6 +138,8 @@ def main() -> None:
     print("Readers alternate within each round (the machine is shared and noisy); the "
           "best wall time and the CPU time of that run are kept per reader.")
     for kind, path in files.items():
+        if kind not in args.kinds.split(","):
+            continue
         size = os.path.getsize(path) / 1e6
         best = {name: (np.inf, np.inf) for name in rs}
         for _ in range(args.repeat):

@@ -127,6 +127,7 @@ class _Scan:
             self.size_hint = 0
         self.header_done = False
         self.chunk_len = 0
+        self.half: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None
         # string-mode name table
         self.table = np.full((1024, 2), -1, np.int64)
         self.names_buf = np.zeros(1 << 16, np.uint8)
@@ -208,9 +209,10 @@ class _Scan:
         st_b[3] = st_b[4] = st_b[5] = st_b[8] = st_b[9] = 0
         st[0] = pos
         st[4] = st[5] = 0
-        src_b = np.empty(cap_b, np.int64)
-        dst_b = np.empty(cap_b, np.int64)
-        w_b = np.empty(cap_b, np.float64)
+        if self.half is None or self.half[0].size < cap_b:  # reused across chunks
+            self.half = (np.empty(cap_b, np.int64), np.empty(cap_b, np.int64),
+                         np.empty(cap_b, np.float64))
+        src_b, dst_b, w_b = self.half
         out: dict[str, tuple[int, np.ndarray, tuple[np.ndarray, ...]]] = {}
 
         def second_half() -> None:
