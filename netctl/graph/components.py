@@ -9,8 +9,9 @@ __all__ = ["strongly_connected_components", "condensation_sources", "reachable_f
 
 
 @njit(cache=True, nogil=True)
-def _tarjan(indptr, indices):  # pragma: no cover - compiled
-    """Iterative Tarjan; labels renumbered by each component's smallest vertex."""
+def _tarjan(indptr, indices, mask):  # pragma: no cover - compiled
+    """Iterative Tarjan on the vertices with ``mask`` true (edges leaving the mask are
+    ignored; vertices outside get label -1); labels renumbered by smallest vertex."""
     n = indptr.size - 1
     # vertex ids and DFS numbers fit in int32 (n < 2**31); edge positions stay int64
     index = np.full(n, -1, np.int32)
@@ -24,7 +25,7 @@ def _tarjan(indptr, indices):  # pragma: no cover - compiled
     ncomp = 0
     counter = 0
     for s in range(n):
-        if index[s] != -1:
+        if index[s] != -1 or not mask[s]:
             continue
         index[s] = counter
         low[s] = counter
@@ -41,6 +42,8 @@ def _tarjan(indptr, indices):  # pragma: no cover - compiled
             if pos < indptr[v + 1]:
                 w = indices[pos]
                 call_pos[csp - 1] = pos + 1
+                if not mask[w]:
+                    continue
                 if index[w] == -1:
                     index[w] = counter
                     low[w] = counter
@@ -73,6 +76,8 @@ def _tarjan(indptr, indices):  # pragma: no cover - compiled
     nxt = 0
     for v in range(n):
         c = comp[v]
+        if c < 0:
+            continue
         if remap[c] == -1:
             remap[c] = nxt
             nxt += 1
@@ -80,19 +85,23 @@ def _tarjan(indptr, indices):  # pragma: no cover - compiled
     return ncomp, comp
 
 
-def strongly_connected_components(indptr: np.ndarray, indices: np.ndarray) -> tuple[int, np.ndarray]:
+def strongly_connected_components(indptr: np.ndarray, indices: np.ndarray,
+                                  mask: np.ndarray | None = None) -> tuple[int, np.ndarray]:
     """Strongly connected components of a directed graph given as CSR adjacency.
 
     Returns ``(n_components, labels)``. Components do not depend on the orientation, so
     either the out- or the in-adjacency may be passed. Labels are numbered in order of
-    each component's smallest vertex, so they are deterministic. Iterative Tarjan
-    (Tarjan 1972, SIAM J. Comput. 1(2):146-160), linear time, compiled.
+    each component's smallest vertex, so they are deterministic. With ``mask``, only the
+    subgraph induced by the masked vertices is decomposed (others get label -1), without
+    building it. Iterative Tarjan (Tarjan 1972, SIAM J. Comput. 1(2):146-160), linear
+    time, compiled.
     """
     n = indptr.size - 1
     if n == 0:
         return 0, np.zeros(0, np.int64)
+    m = np.ones(n, np.bool_) if mask is None else np.ascontiguousarray(mask, np.bool_)
     k, labels = _tarjan(np.ascontiguousarray(indptr, np.int64),
-                        np.ascontiguousarray(indices, np.int64))
+                        np.ascontiguousarray(indices, np.int64), m)
     return int(k), labels
 
 
@@ -101,8 +110,11 @@ def _sources(in_indptr, in_indices, labels, k):  # pragma: no cover - compiled
     has_in = np.zeros(k, np.bool_)
     for v in range(in_indptr.size - 1):
         cv = labels[v]
+        if cv < 0:
+            continue
         for e in range(in_indptr[v], in_indptr[v + 1]):
-            if labels[in_indices[e]] != cv:
+            lu = labels[in_indices[e]]
+            if lu >= 0 and lu != cv:
                 has_in[cv] = True
                 break
     return ~has_in
@@ -112,7 +124,8 @@ def condensation_sources(in_indptr: np.ndarray, in_indices: np.ndarray, labels: 
                          n_components: int) -> np.ndarray:
     """Boolean mask over components: True for *source* components.
 
-    A source component receives no edge from another component. ``in_indptr`` /
+    A source component receives no edge from another component (vertices labelled -1,
+    outside a masked decomposition, are ignored). ``in_indptr`` /
     ``in_indices`` is the in-adjacency (row ``v`` lists the ``u`` with ``u -> v``), which is
     exactly the CSR of a state matrix ``A``.
     """

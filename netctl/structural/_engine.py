@@ -102,20 +102,19 @@ def unreached_sources(A: sp.csr_array, out: tuple[np.ndarray, np.ndarray],
     W = np.flatnonzero(~reach)
     if W.size == 0:
         return int(trivial.size), np.zeros(1, np.int64), np.zeros(0, np.int64)
-    sub = A[W][:, W].tocsr()
-    sub.sort_indices()
-    sptr = np.ascontiguousarray(sub.indptr, np.int64)
-    sind = np.ascontiguousarray(sub.indices, np.int64)
-    k, labels = strongly_connected_components(sptr, sind)
-    src = condensation_sources(sptr, sind, labels, k)
+    indptr = np.ascontiguousarray(A.indptr, np.int64)
+    indices = np.ascontiguousarray(A.indices, np.int64)
+    k, labels = strongly_connected_components(indptr, indices, mask=~reach)
+    src = condensation_sources(indptr, indices, labels, k)
     src_ids = np.flatnonzero(src)  # labels are in order of smallest member
     slot = np.full(k, -1, np.int64)
     slot[src_ids] = np.arange(src_ids.size)
-    local = np.flatnonzero(slot[labels] >= 0)
-    order = np.argsort(slot[labels[local]], kind="stable")
+    lab_w = labels[W]
+    local = np.flatnonzero(slot[lab_w] >= 0)
+    order = np.argsort(slot[lab_w[local]], kind="stable")
     members = W[local[order]].astype(np.int64)
     ptr = np.zeros(src_ids.size + 1, np.int64)
-    np.cumsum(np.bincount(slot[labels[local]], minlength=src_ids.size), out=ptr[1:])
+    np.cumsum(np.bincount(slot[lab_w[local]], minlength=src_ids.size), out=ptr[1:])
     return int(trivial.size), ptr, members
 
 

@@ -162,3 +162,29 @@ def test_scc_and_sources_match_networkx():
         At = A.T.tocsr()
         mask = reachable_from(At.indptr, At.indices, np.array([0]))
         assert set(np.flatnonzero(mask).tolist()) == nx.descendants(g, 0) | {0}
+
+
+def test_masked_scc_equals_networkx_on_induced_subgraph():
+    rng = np.random.default_rng(9)
+    for _ in range(40):
+        n = int(rng.integers(2, 30))
+        dense = rng.random((n, n)) < 0.1
+        mask = rng.random(n) < 0.6
+        A = sp.csr_array(dense.astype(float))
+        k, labels = strongly_connected_components(A.indptr.astype(np.int64),
+                                                  A.indices.astype(np.int64), mask=mask)
+        g = nx.DiGraph()
+        g.add_nodes_from(np.flatnonzero(mask).tolist())
+        v_idx, u_idx = np.nonzero(dense)
+        g.add_edges_from((u, v) for u, v in zip(u_idx.tolist(), v_idx.tolist())
+                         if mask[u] and mask[v])
+        comps = list(nx.strongly_connected_components(g))
+        assert k == len(comps)
+        assert np.all(labels[~mask] == -1)
+        for c in comps:
+            assert len({labels[i] for i in c}) == 1
+        src = condensation_sources(A.indptr.astype(np.int64), A.indices.astype(np.int64), labels, k)
+        cond = nx.condensation(g, comps)
+        nx_sources = {frozenset(cond.nodes[c]["members"]) for c in cond if cond.in_degree(c) == 0}
+        ours = {frozenset(np.flatnonzero(labels == c).tolist()) for c in np.flatnonzero(src)}
+        assert ours == nx_sources
