@@ -20,6 +20,7 @@ from netctl.system import StructuredSystem
 
 __all__ = ["SECTIONS", "ReportContext", "SectionBuilder", "cautions_section",
            "design_section", "map_section", "minimum_inputs_section", "modes_section",
+           "null_model_section",
            "numeric_section",
            "robustness_section", "roles_section", "strong_section", "summary_section"]
 
@@ -32,6 +33,9 @@ NUMERIC_LIMIT = 20_000
 #: Up to this many states the numeric confirmation uses dense rank tests (the
 #: controllable dimension); above, the sparse certificate (full rank or not).
 NUMERIC_DENSE_LIMIT = 400
+#: Up to this many states the report compares with a null model, with this many samples.
+NULL_LIMIT = 20_000
+NULL_SAMPLES = 40
 #: Names listed per list (the JSON report lists all).
 LIST_LIMIT = 200
 
@@ -293,6 +297,53 @@ def roles_section(ctx: ReportContext) -> Section | None:
                                             for u, v in lr.link_names(lr.critical)]})
 
 
+def null_model_section(ctx: ReportContext) -> Section | None:
+    """Minimum inputs against a degree-preserving null model (``netctl.ensemble``)."""
+    from netctl.ensemble import compare_to_null
+
+    n = ctx.system.n_states
+    if n < 10 or ctx.system.n_links == 0:
+        return None
+    if n > NULL_LIMIT:
+        ctx.missing.append(f"null-model comparison (over {NULL_LIMIT} states; run "
+                           "netctl compare)")
+        return None
+    r = ctx.cached("null", lambda: compare_to_null(ctx.system, null="degree",
+                                                   samples=NULL_SAMPLES, seed=ctx.seed,
+                                                   executor="local", workers=1))
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from netctl.viz import plot_null_model
+    from netctl.viz.output import figure_bytes
+
+    ax = plot_null_model(r.observed_n_inputs, r.samples, label="this network",
+                         quantity="minimum number of inputs")
+    try:
+        png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
+    finally:
+        plt.close(cast(Any, ax.figure))
+    z = r.z_score
+    words = ("the same as" if z is None or abs(z) < 2 else
+             "more than" if z > 0 else "fewer than")
+    pred = ("" if r.prediction is None else
+            f" The cavity prediction for these degree distributions is "
+            f"{r.prediction.driver_fraction * n:.1f} input(s) (Liu, Slotine & Barabási "
+            "2011).")
+    return Section(
+        "null-model", "Against a degree-preserving null model",
+        (para(f"The network needs {r.observed_n_inputs} input(s); {r.n_samples} random "
+              f"networks with the same in- and out-degrees (configuration model, seed "
+              f"{r.seed}) need {r.mean:.1f} ± {r.std:.1f}: {words} expected from the "
+              f"degrees alone (|z| < 2 counts as the same; common practice, no source)."
+              + pred),
+         figure(png, "Minimum inputs of the randomized networks (hatched) and of this "
+                     "network (vertical line).")),
+        data=r.to_dict())
+
+
 def robustness_section(ctx: ReportContext) -> Section | None:
     """Single link losses against the design; attack curves."""
     from netctl.structural.robustness import attack_curve, contingency_sweep
@@ -452,6 +503,7 @@ SECTIONS: list[SectionBuilder] = [
     map_section,
     roles_section,
     robustness_section,
+    null_model_section,
     numeric_section,
     modes_section,
     strong_section,
@@ -462,6 +514,7 @@ SECTIONS: list[SectionBuilder] = [
 OPTIONAL: dict[SectionBuilder, str] = {
     roles_section: "roles of states and links",
     robustness_section: "robustness to losses",
+    null_model_section: "null-model comparison",
     numeric_section: "numeric confirmation",
     modes_section: "weakest modes",
     strong_section: "strong structural controllability",

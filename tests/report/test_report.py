@@ -250,3 +250,16 @@ def test_weakest_modes_section_matches_pbh():
     check_html(report.to_html())
     # pattern only: modes need numbers, so the section is left out
     assert "modes" not in [x.key for x in build_report(read(HEATING)).sections]
+
+
+def test_null_model_section_reports_the_ensemble():
+    pytest.importorskip("netctl.ensemble")
+    s = read(ROOT / "networks" / "water_network.graphml") \
+        if (ROOT / "networks" / "water_network.graphml").exists() else read(HEATING)
+    report = build_report(s)
+    sec = report.section("null-model")
+    samples = np.array(sec.data["samples"])
+    # the text quotes the ensemble's mean and spread (numpy, ddof=1)
+    assert f"need {samples.mean():.1f} ± {samples.std(ddof=1):.1f}" in sec.blocks[0].text
+    # the observed count is the minimum number of inputs (Liu, Slotine, Barabasi 2011)
+    assert sec.data["observed_n_inputs"] == max(minimum_inputs(s).n_inputs, 1)
