@@ -150,15 +150,22 @@ def _fnv(buf: np.ndarray, s: int, e: int) -> np.uint64:
 
 
 @njit(cache=True, nogil=True, inline="always")
-def _key(buf: np.ndarray, s: int, e: int, h: np.uint64) -> int:
-    """The name itself packed into 64 bits when it has <= 8 bytes; else the hash."""
-    ln = e - s
-    if ln > 8:
-        return np.int64(h >> np.uint64(1))
+def _pack(buf: np.ndarray, s: int, e: int) -> int:
+    """Up to 8 bytes packed little-endian into an int64 (0 for an empty range)."""
     v = np.uint64(0)
-    for i in range(ln):
-        v |= np.uint64(buf[s + i]) << np.uint64(8 * i)
+    for i in range(s, e):
+        v |= np.uint64(buf[i]) << np.uint64(8 * (i - s))
     return np.int64(v)
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _keys(buf: np.ndarray, s: int, e: int, h: np.uint64) -> tuple[int, int]:
+    """The name itself in two words when it has <= 16 bytes; else (hash, 0)."""
+    ln = e - s
+    if ln > 16:
+        return np.int64(h >> np.uint64(1)), 0
+    m = min(e, s + 8)
+    return _pack(buf, s, m), _pack(buf, m, e)
 
 
 @njit(cache=True, nogil=True, inline="always")
@@ -167,13 +174,13 @@ def _lookup(buf: np.ndarray, s: int, e: int, line: int, table: np.ndarray,
             st: np.ndarray) -> int:
     """Id of the name ``buf[s:e]``, inserting it if new (the caller guarantees room).
 
-    A table slot holds ``(length << 40 | id, key)`` (``id = -1``: empty); the key is the
-    name itself for names of at most 8 bytes, so those are found with one memory access;
-    longer names are confirmed against the stored bytes.
+    A table slot holds ``(length << 40 | id, key0, key1)`` (``id = -1``: empty); the keys
+    are the name itself for names of at most 16 bytes, so those are found with one
+    memory access; longer names are confirmed against the stored bytes.
     """
     h = _fnv(buf, s, e)
     ln = e - s
-    key = _key(buf, s, e, h)
+    k0, k1 = _keys(buf, s, e, h)
     tag = np.int64(ln) << 40
     mask = np.int64(table.shape[0] - 1)
     slot = np.int64(h & np.uint64(mask))
@@ -189,11 +196,12 @@ def _lookup(buf: np.ndarray, s: int, e: int, line: int, table: np.ndarray,
             st[_NUSED] = used + ln
             st[_NN] = nid + 1
             table[slot, 0] = tag | nid
-            table[slot, 1] = key
+            table[slot, 1] = k0
+            table[slot, 2] = k1
             return nid
-        if table[slot, 1] == key and (head >> 40) == ln:
+        if table[slot, 1] == k0 and table[slot, 2] == k1 and (head >> 40) == ln:
             idx = head & 0xFFFFFFFFFF
-            if ln <= 8:
+            if ln <= 16:
                 return idx
             ns = name_pos[idx, 0]
             same = True
@@ -219,7 +227,9 @@ def rehash(table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
         while table[slot, 0] >= 0:
             slot = (slot + 1) & mask
         table[slot, 0] = (np.int64(e - s) << 40) | nid
-        table[slot, 1] = _key(names_buf, s, e, h)
+        k0, k1 = _keys(names_buf, s, e, h)
+        table[slot, 1] = k0
+        table[slot, 2] = k1
 
 
 # byte classes for the scanner: 0 other, 1 separator, 2 line break, 3 comment

@@ -129,7 +129,7 @@ class _Scan:
         self.chunk_len = 0
         self.half: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None
         # string-mode name table
-        self.table = np.full((1024, 2), -1, np.int64)
+        self.table = np.full((1024, 3), -1, np.int64)
         self.names_buf = np.zeros(1 << 16, np.uint8)
         self.name_pos = np.zeros((256, 2), np.int64)
         self.name_line = np.zeros(256, np.int64)
@@ -334,7 +334,7 @@ class _Scan:
             buf[:used] = self.names_buf[:used]
             self.names_buf = buf
         if self.table.shape[0] < 2 * (nn + 2):
-            self.table = np.full((2 * self.table.shape[0], 2), -1, np.int64)
+            self.table = np.full((2 * self.table.shape[0], 3), -1, np.int64)
             _k.rehash(self.table, self.names_buf, self.name_pos, nn)
 
     def _error(self, chunk: bytes, st: np.ndarray) -> None:

@@ -340,3 +340,13 @@ def test_two_thread_scan_equals_one_thread(tmp_path, monkeypatch, text, error):
         assert one.weights.tobytes() == two.weights.tobytes()
     ref_names, ref_edges, ref_w = reference_parse(text)
     assert list(two.names) == ref_names and as_named(two) == ref_edges
+
+
+def test_names_of_every_length_around_the_inline_key_sizes(tmp_path):
+    # names of 1..40 bytes sharing prefixes: the hash table keeps names up to 16 bytes
+    # inline and compares longer ones byte by byte
+    names = ["n" * k for k in range(1, 41)] + ["n" * k + "x" for k in range(1, 40)]
+    text = "".join(f"{a} {b}\n" for a, b in zip(names, names[1:] + names[:1])) * 2
+    e = read_edge_arrays(write(tmp_path, text), chunk_bytes=64)
+    ref_names, ref_edges, _ = reference_parse(text)
+    assert list(e.names) == ref_names and as_named(e) == ref_edges
