@@ -20,7 +20,12 @@ from netctl.cli import CAUTION, main
 from netctl.io import read
 from netctl.report import SECTIONS, build_report, write_report
 from netctl.report.document import Section, para
-from netctl.report.sections import cautions_section, summary_section
+from netctl.report.sections import (
+    cautions_section,
+    modes_section,
+    null_model_section,
+    summary_section,
+)
 
 ROOT = Path(__file__).resolve().parents[2]
 HEATING = ROOT / "networks" / "heating_loop.csv"
@@ -238,7 +243,7 @@ def test_weakest_modes_section_matches_pbh():
     # rank [A - lambda I, B] < n; recomputed here with numpy.
     s = StructuredSystem.from_edges([0, 1, 3, 0], [1, 2, 3, 0], 4,
                                     weights=[1.5, -0.7, -2.0, -1.0])
-    report = build_report(s, inputs=[0])
+    report = build_report(s, inputs=[0], sections=[modes_section, cautions_section])
     modes = report.section("modes")
     A = s.A.toarray()
     B = np.zeros((4, 1))
@@ -256,7 +261,7 @@ def test_null_model_section_reports_the_ensemble():
     pytest.importorskip("netctl.ensemble")
     s = read(ROOT / "networks" / "water_network.graphml") \
         if (ROOT / "networks" / "water_network.graphml").exists() else read(HEATING)
-    report = build_report(s)
+    report = build_report(s, sections=[null_model_section])
     sec = report.section("null-model")
     samples = np.array(sec.data["samples"])
     # the text quotes the ensemble's mean and spread (numpy, ddof=1)
