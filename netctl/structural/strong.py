@@ -64,6 +64,7 @@ import heapq
 import time
 import warnings
 from dataclasses import dataclass, field
+from collections.abc import Sequence
 from typing import Any
 
 import numpy as np
@@ -103,7 +104,7 @@ METHODS: dict[str, str] = {
 }
 
 #: states up to which method="auto" runs the exact search
-EXACT_AUTO_LIMIT = 200
+EXACT_AUTO_LIMIT = 100
 
 _CONDITION_LABEL = {"all": "every eigenvalue", "zero": "eigenvalue 0",
                     "nonzero": "nonzero eigenvalues"}
@@ -167,29 +168,52 @@ class _Graph:
     in_idx: np.ndarray
 
 
-def _graph(A: sp.csr_array, B: sp.csr_array | None) -> _Graph:
-    n = A.shape[0]
-    coo = A.tocoo()
-    keep = coo.row != coo.col
-    rows = coo.row[keep].astype(np.int64)
-    cols = coo.col[keep].astype(np.int64)
-    m = 0
-    if B is not None and B.shape[1]:
-        b = B.tocoo()
-        m = B.shape[1]
-        rows = np.concatenate([rows, b.row.astype(np.int64)])
-        cols = np.concatenate([cols, b.col.astype(np.int64) + n])
+@njit(cache=True, nogil=True)
+def _in_adjacency(a_ptr, a_idx, b_ptr, b_idx, n, m):  # pragma: no cover - compiled
+    """In-adjacency of states (off-diagonal entries of row i of A, then the inputs
+    acting on i as vertices n + k); input vertices have none."""
     N = n + m
-    data = np.ones(rows.size, np.int8)
-    # in-adjacency: state i lists columns j with M[i, j] != 0
-    M_in = sp.csr_array((data, (rows, cols)), shape=(N, N))
-    M_in.sum_duplicates()
-    M_in.sort_indices()
-    M_out = M_in.T.tocsr()
-    M_out.sort_indices()
-    return _Graph(n=n, m=m, out_ptr=M_out.indptr.astype(np.int64),
-                  out_idx=M_out.indices.astype(np.int64),
-                  in_ptr=M_in.indptr.astype(np.int64), in_idx=M_in.indices.astype(np.int64))
+    ptr = np.zeros(N + 1, np.int64)
+    for i in range(n):
+        c = b_ptr[i + 1] - b_ptr[i]
+        for p in range(a_ptr[i], a_ptr[i + 1]):
+            if a_idx[p] != i:
+                c += 1
+        ptr[i + 1] = ptr[i] + c
+    for i in range(n, N):
+        ptr[i + 1] = ptr[i]
+    idx = np.empty(ptr[N], np.int64)
+    for i in range(n):
+        q = ptr[i]
+        for p in range(a_ptr[i], a_ptr[i + 1]):
+            if a_idx[p] != i:
+                idx[q] = a_idx[p]
+                q += 1
+        for p in range(b_ptr[i], b_ptr[i + 1]):
+            idx[q] = n + b_idx[p]
+            q += 1
+    return ptr, idx
+
+
+def _graph(A: sp.csr_array, B: sp.csr_array | None) -> _Graph:
+    """Adjacency arrays from canonical CSR patterns (sorted, no duplicates), O(n + E)."""
+    from netctl.graph import transpose_csr
+
+    n = A.shape[0]
+    m = 0 if B is None else B.shape[1]
+    if B is None or m == 0:
+        b_ptr = np.zeros(n + 1, np.int64)
+        b_idx = np.zeros(0, np.int64)
+    else:
+        B = sp.csr_array(B)
+        B.sum_duplicates()
+        b_ptr, b_idx = B.indptr, B.indices
+    A = sp.csr_array(A)
+    A.sum_duplicates()
+    in_ptr, in_idx = _in_adjacency(A.indptr, A.indices, b_ptr, b_idx, n, m)
+    out_ptr, out_idx = transpose_csr(in_ptr, in_idx, n + m)
+    return _Graph(n=n, m=m, out_ptr=out_ptr.astype(np.int64, copy=False),
+                  out_idx=out_idx, in_ptr=in_ptr, in_idx=in_idx)
 
 
 def _white_counts(g: _Graph, rule: _Rule, black: np.ndarray) -> np.ndarray:
@@ -521,8 +545,8 @@ class StrongReport:
     unforced: np.ndarray
     unforced_by_condition: dict[str, np.ndarray]
     forced_by: np.ndarray
-    state_names: tuple[str, ...] = field(repr=False)
-    input_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
+    input_names: Sequence[str] = field(repr=False)
     model: str = "given"
 
     def names(self, indices: Any) -> list[str]:
@@ -644,18 +668,18 @@ def strong_controllability(system: StructuredSystem, *,
     b0[n:] = True
     by_cond: dict[str, np.ndarray] = {}
     forced_by = np.full(n, -1, np.int64)
+    white_any = np.zeros(n, bool)
     for k, rule in enumerate(_rules(_loops(system, diagonal), diagonal, g.m)):
         black, forcer = _closure(g, rule, b0)
         by_cond[rule.condition] = np.flatnonzero(~black[:n]).astype(np.int64)
+        white_any |= ~black[:n]
         if k == 0:
             forced_by = forcer[:n]
-    unforced = (np.unique(np.concatenate(list(by_cond.values()))).astype(np.int64)
-                if by_cond else np.zeros(0, np.int64))
+    unforced = np.flatnonzero(white_any).astype(np.int64)
     return StrongReport(strongly_controllable=unforced.size == 0, diagonal=diagonal,
                         n_states=n, n_inputs=system.n_inputs, unforced=unforced,
                         unforced_by_condition=by_cond, forced_by=forced_by,
-                        state_names=tuple(system.state_names),
-                        input_names=tuple(system.input_names),
+                        state_names=system.state_names, input_names=system.input_names,
                         model=system.model)
 
 
@@ -825,7 +849,7 @@ class StrongInputDesign:
     lower_bound_source: str
     iterations: int
     seconds: float
-    state_names: tuple[str, ...] = field(repr=False)
+    state_names: Sequence[str] = field(repr=False)
     model: str = "given"
 
     @property
@@ -1145,4 +1169,4 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
                              method=run, optimal=S.size == lower, lower_bound=int(lower),
                              lower_bound_source=source, iterations=it,
                              seconds=time.perf_counter() - t0,
-                             state_names=tuple(system.state_names), model=system.model)
+                             state_names=system.state_names, model=system.model)
