@@ -46,6 +46,7 @@ PLAN = {
 
 
 def main(outdir: Path) -> None:
+    outdir.mkdir(parents=True, exist_ok=True)
     sources, targets = zip(*LINKS)
     names = list(PLAN)
     system = StructuredSystem.from_named_edges(
