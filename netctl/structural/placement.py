@@ -38,6 +38,7 @@ from numba import njit
 
 from netctl.errors import NetworkFileError, OptionError
 from netctl.graph.dm import alternating_reach_rows
+from netctl.graph.components import reachable_from
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural._engine import Structure, accessible_states, stack_AB, structure_of
 from netctl.system import StructuredSystem
@@ -1302,16 +1303,75 @@ def _min_cost_rank_basis(prob: _Reduced, cost: np.ndarray, tptr: np.ndarray,
 
 
 # ====================================================================== best effort
-def _dimension_of(work: StructuredSystem, cands: Candidates, chosen: Any) -> int:
-    from netctl.structural.controllability import controllability
+class _DimensionOracle:
+    """Generic controllable dimension (Hosoe 1980) of ``(A, [B, B_S])`` for many ``S``.
 
-    n = work.n_states
-    M = cands.matrix(np.asarray(chosen, np.int64), n)
-    B = sp.hstack([work.B, M], format="csr") if work.n_inputs else M
-    r = controllability(work._replace(B=B, input_names=tuple(f"u{k}" for k in
-                                                              range(B.shape[1]))))
-    assert r.controllable_dimension is not None
-    return int(r.controllable_dimension)
+    The same construction as :func:`netctl.structural.controllability` (a min-cost
+    assignment on the input-accessible states: real edges cost 1, a dummy edge from each
+    state to its own column cost 2, so matched real edges form stems from inputs and
+    cycles), without the rest of the report, and solved per connected component.
+    """
+
+    def __init__(self, work: StructuredSystem, cands: Candidates) -> None:
+        self.A = work.A
+        self.B = work.B
+        self.n = work.n_states
+        self.cands = cands
+        At = work.A.T.tocsr()
+        At.sort_indices()
+        self.out_ptr = At.indptr.astype(np.int64)
+        self.out_ind = At.indices.astype(np.int64)
+        self.base_driven = np.flatnonzero(np.diff(work.B.indptr)).astype(np.int64)
+        self.cache: dict[tuple[int, ...], int] = {}
+        self._reach: dict[int, int] = {}
+
+    def reach_size(self, k: int) -> int:
+        """Number of states candidate ``k`` reaches (bounds its Krylov dimension)."""
+        got = self._reach.get(k)
+        if got is None:
+            got = int(np.count_nonzero(reachable_from(self.out_ptr, self.out_ind,
+                                                      self.cands.states_of(int(k)))))
+            self._reach[k] = got
+        return got
+
+    def __call__(self, chosen: Any) -> int:
+        key = tuple(sorted(int(k) for k in chosen))
+        hit = self.cache.get(key)
+        if hit is not None:
+            return hit
+        n = self.n
+        M = self.cands.matrix(np.asarray(key, np.int64), n)
+        B = sp.hstack([self.B, M], format="csr") if self.B.shape[1] else M.tocsr()
+        driven = np.flatnonzero(np.diff(B.indptr))
+        acc = reachable_from(self.out_ptr, self.out_ind, driven.astype(np.int64))
+        R = np.flatnonzero(acc)
+        r = R.size
+        if r == 0:
+            self.cache[key] = 0
+            return 0
+        AR = self.A if r == n else self.A[R][:, R]
+        AB = sp.hstack([AR, B if r == n else B[R]], format="csr")
+        AB.sort_indices()
+        # real edges cost 1; a dummy (i, i) costs 2 unless i has a self-loop (then the
+        # loop itself covers i at cost 1)
+        rows_real = np.repeat(np.arange(r), np.diff(AB.indptr))
+        loop = np.zeros(r, bool)
+        loop[rows_real[AB.indices == rows_real]] = True
+        nd = np.flatnonzero(~loop)
+        cost = sp.csr_matrix(
+            (np.concatenate([np.ones(AB.nnz), np.full(nd.size, 2.0)]),
+             (np.concatenate([rows_real, nd]), np.concatenate([AB.indices, nd]))),
+            shape=AB.shape)
+        if r <= 5000:
+            from scipy.sparse.csgraph import min_weight_full_bipartite_matching
+
+            rows, cols = min_weight_full_bipartite_matching(cost)
+        else:
+            rows, cols = _assignment_by_component(cost)
+        used = np.asarray(cost[rows, cols]).ravel()
+        d = int(np.count_nonzero(used == 1.0))
+        self.cache[key] = d
+        return d
 
 
 def _best_effort(work: StructuredSystem, cands: Candidates, prob: _Reduced, budget: float,
@@ -1319,11 +1379,12 @@ def _best_effort(work: StructuredSystem, cands: Candidates, prob: _Reduced, budg
     cost = cands.cost
     pool = np.flatnonzero((cost <= budget * (1 + 1e-12) + 1e-12)).astype(np.int64)
     problem = "dedicated" if cands.dedicated else "candidates"
-    base = _dimension_of(work, cands, [])
+    dim_of = _DimensionOracle(work, cands)
+    base = dim_of([])
     if pool.size == 0:
         return _Outcome(problem, "exhaustive", True, True, np.zeros(0, np.int64), 0.0, None,
                         float(base), base, [], "no candidate is affordable")
-    top = _dimension_of(work, cands, pool)
+    top = dim_of(pool)
     exhaustive = method == "exact" or (method == "auto" and pool.size <= EXHAUSTIVE_MAX_CANDIDATES)
     if exhaustive:
         best: tuple[int, float, tuple[int, ...]] = (base, 0.0, ())
@@ -1334,7 +1395,7 @@ def _best_effort(work: StructuredSystem, cands: Candidates, prob: _Reduced, budg
                 if c > budget * (1 + 1e-12) + 1e-12:
                     continue
                 any_affordable = True
-                d = _dimension_of(work, cands, S)
+                d = dim_of(S)
                 if d > best[0] or (d == best[0] and c < best[1] - 1e-12):
                     best = (d, c, S)
             if not any_affordable:
@@ -1343,39 +1404,51 @@ def _best_effort(work: StructuredSystem, cands: Candidates, prob: _Reduced, budg
         return _Outcome(problem, "exhaustive", True, True, chosen, float(best[1]), None,
                         float(best[0]), best[0], [], "exact: every affordable subset tried "
                         "(largest generic controllable dimension, then lowest cost)")
-    # lazy cost-effectiveness greedy (CELF) + best single candidate
+    # lazy cost-effectiveness greedy (CELF) + best single candidate. Initial gains are
+    # bounded by the number of states each candidate reaches (its Krylov subspace lives
+    # there); every stale value is an upper bound on the current gain (submodularity).
+    oracle_reach = dim_of.reach_size
     f_S = base
     sel: list[int] = []
     spent = 0.0
+    last: dict[int, float] = {}
     heap: list[tuple[float, int, int]] = []
-    gains0: dict[int, int] = {}
     for k in pool.tolist():
-        g = _dimension_of(work, cands, [k]) - base
-        gains0[k] = g
-        if g > 0:
-            heapq.heappush(heap, (-_ratio(g, cost[k]), k, 0))
+        last[k] = float(min(oracle_reach(k), work.n_states - base))
+        if last[k] > 0:
+            heapq.heappush(heap, (-_ratio(last[k], cost[k]), k, -1))
     it = 0
+    cap = budget * (1 + 1e-12) + 1e-12
     while heap:
         negr, k, stamp = heapq.heappop(heap)
-        if spent + cost[k] > budget * (1 + 1e-12) + 1e-12:
+        if spent + cost[k] > cap:
             continue
         if stamp != it:
-            g = _dimension_of(work, cands, sel + [k]) - f_S
+            g = dim_of(sel + [k]) - f_S
+            last[k] = float(g)
             if g > 0:
                 heapq.heappush(heap, (-_ratio(g, cost[k]), k, it))
             continue
         sel.append(k)
+        last.pop(k, None)
         spent += float(cost[k])
-        f_S = _dimension_of(work, cands, sel)
+        f_S = dim_of(sel)
         it += 1
-    best_single = max(pool.tolist(), key=lambda k: (gains0[k], -cost[k], -k))
-    if base + gains0[best_single] > f_S:
-        sel, f_S, spent = [best_single], base + gains0[best_single], float(cost[best_single])
-    # a-posteriori bound: f(OPT) <= f(sel) + fractional knapsack of single gains at sel
-    marg = {k: _dimension_of(work, cands, sel + [k]) - f_S for k in pool.tolist() if k not in sel}
-    ub = f_S + _fractional_knapsack([marg[k] for k in marg], [float(cost[k]) for k in marg],
+    # a-posteriori bound on the optimum: f(OPT) <= f(G) + fractional knapsack of the
+    # (upper bounds on the) marginal gains at the greedy set G
+    ub = f_S + _fractional_knapsack(list(last.values()), [float(cost[k]) for k in last],
                                     budget)
     ub = float(min(ub, top))
+    # best single affordable candidate, lazily (reach sizes bound the single gains)
+    best_k, best_g = -1, -1
+    for k in sorted(pool.tolist(), key=lambda k: (-oracle_reach(k), k)):
+        if oracle_reach(k) <= best_g:
+            break
+        g = dim_of([k]) - base
+        if g > best_g:
+            best_k, best_g = k, g
+    if best_k >= 0 and base + best_g > f_S:
+        sel, f_S, spent = [best_k], base + best_g, float(cost[best_k])
     equal = np.ptp(cost[pool]) == 0
     ratio_txt = ("1 - 1/e (equal costs; Nemhauser, Wolsey & Fisher 1978)" if equal else
                  "(1 - 1/e)/2 (knapsack budget; Khuller, Moss & Naor 1999, from memory)")

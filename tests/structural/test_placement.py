@@ -454,3 +454,25 @@ def test_milp_time_limit_still_gives_a_checked_design_and_valid_bound():
             continue
         assert p.verified is True and p.cost >= best - 1e-9
         assert p.lower_bound <= best + 1e-9 and p.method in ("milp", "greedy")
+
+
+def test_dimension_oracle_matches_finite_field_reference():
+    """The best-effort oracle (Hosoe's assignment, per component) against the generic
+    rank of [B AB ...] over F_p (tests/_reference.py) and netctl's controllability."""
+    from netctl.structural.placement import _DimensionOracle
+
+    rng = np.random.default_rng(6010)
+    ref_rng = np.random.default_rng(31)
+    for trial in range(120):
+        n = int(rng.integers(1, 8))
+        edges = random_pattern(rng, n, float(rng.uniform(0.05, 0.5)), loops=bool(rng.random() < 0.4))
+        A = ref.pattern_from_edges(edges, n)
+        s = StructuredSystem.from_matrices(A, weighted=False)
+        cands = _random_candidates(rng, n, 4)
+        oracle = _DimensionOracle(s, cands)
+        S = sorted(rng.choice(4, size=int(rng.integers(0, 5)), replace=False).tolist())
+        B = cands.matrix(np.array(S, np.int64), n)
+        expected = ref.generic_controllable_dimension(A, B.toarray() != 0, ref_rng)
+        assert oracle(S) == expected, (trial, edges.tolist(), S)
+        if S:
+            assert controllability(s.with_inputs(B)).controllable_dimension == expected
