@@ -174,3 +174,12 @@ def test_check_uses_the_design_a_system_file_declares(capsys):
     # the file declares both inputs and outputs, so both properties are checked
     assert {"controllability", "observability"} <= set(d)
     assert code == (0 if d["controllable"] and d["observable"] else 1)
+
+
+def test_out_file_gets_ordinary_permissions(capsys, tmp_path):
+    import os
+    target = tmp_path / "r.json"
+    run(capsys, "drivers", HEATING, "--out", str(target))
+    umask = os.umask(0)
+    os.umask(umask)
+    assert (target.stat().st_mode & 0o777) == (0o666 & ~umask)

@@ -65,7 +65,8 @@ def atomic_write(path: str | os.PathLike[str], mode: str = "w") -> Iterator[IO]:
     """Write to a temporary file beside ``path`` and rename it into place on success.
 
     On any error the temporary file is removed and ``path`` is left untouched, so no
-    partial output file is ever seen.
+    partial output file is ever seen. The file gets the permissions ``open()`` would give
+    it (0666 less the umask).
     """
     target = Path(path)
     directory = target.parent if str(target.parent) else Path(".")
@@ -74,6 +75,10 @@ def atomic_write(path: str | os.PathLike[str], mode: str = "w") -> Iterator[IO]:
         kwargs: dict[str, str] = {} if "b" in mode else {"encoding": "utf-8", "newline": "\n"}
         with os.fdopen(fd, mode, **kwargs) as fh:  # type: ignore[call-overload]
             yield fh
+        # mkstemp creates the file private (0600); give it the mode a plain open() would
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
         os.replace(tmp, target)
     except BaseException:
         try:

@@ -128,7 +128,15 @@ class ControllabilityReport:
                     if g.downstream.size else "")
             out.append(f"no {what} {reach} the component {{{src}}}{tail}; "
                        f"put an {what} on any one of its states.")
-        if self.dilation is not None:
+        if self.dilation is not None and self.dilation.fed_by.size == 0:
+            d = self.dilation
+            link = "incoming link" if self.kind == "controllability" else "outgoing link"
+            out.append(
+                f"dilation: {{{_short(self.names(d.states))}}} has no {link} and no {what}, "
+                f"so it needs an {what} of its own; the structural rank of "
+                f"{'[A B]' if self.kind == 'controllability' else '[A; C]'} is "
+                f"{self.structural_rank} < {self.n_states}.")
+        elif self.dilation is not None:
             d = self.dilation
             verb = "are fed by" if self.kind == "controllability" else "feed"
             out.append(

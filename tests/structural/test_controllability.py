@@ -215,3 +215,12 @@ def test_report_to_dict_has_documented_keys():
     assert d["dilation"]["deficiency"] == 1
     assert d["n_states"] - d["structural_rank"] == 2
     assert d["fix"]["n_additional"] == 2
+
+
+def test_reason_for_a_state_with_no_incoming_link():
+    # two isolated states, one input on the first: the second is fed by nothing at all
+    r = controllability(StructuredSystem.from_edges([], [], 2).with_inputs([0]))
+    assert r.dilation is not None and r.dilation.fed_by.size == 0
+    text = " ".join(r.reasons())
+    assert "{x1} has no incoming link and no input, so it needs an input of its own" in text
+    assert "fed by only 0" not in text
