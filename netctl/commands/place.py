@@ -106,7 +106,9 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
     what = {"dedicated": f"dedicated {noun}", "candidates": f"candidate {noun}",
             "target": f"dedicated {noun} for {len(d['targets'] or [])} target state(s)"}
     lines = [f"{args.file}: {len(r.state_names)} states, model {r.model}",
-             f"  placing {what[r.problem]} (site data: {d['site_data']})"
+             f"  placing {what[r.problem]} (site data: "
+             + ("none given: every state eligible at cost 1" if d["site_data"] == "default"
+                else str(d["site_data"])) + ")"
              + (f", budget {r.budget:g}" if r.budget is not None else "")]
     if r.chosen.size and r.problem == "candidates":
         names = [a["name"] for a in d["actuators" if r.kind == "inputs" else "sensors"]]
