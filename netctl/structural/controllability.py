@@ -36,8 +36,10 @@ class InaccessibleGroup:
     """States no input reaches, grouped by the source component that feeds them.
 
     ``source`` holds the states of one source strongly connected component that no
-    input acts on; ``downstream`` the other inaccessible states it reaches (a state can
-    appear under several sources). One input on any state of ``source`` reaches them all.
+    input acts on; ``downstream`` the other inaccessible states it reaches first (each
+    inaccessible state is listed once, under the first source whose breadth-first search
+    reaches it, so the groups partition the inaccessible states). One input on any state
+    of ``source`` reaches ``downstream`` and possibly more.
     """
 
     source: np.ndarray
@@ -281,18 +283,24 @@ def _report(system: StructuredSystem, kind: str, dimension: bool) -> Controllabi
 
 
 def _inaccessible_groups(st: Structure, acc: np.ndarray) -> tuple[InaccessibleGroup, ...]:
-    from netctl.graph.components import reachable_from
+    from netctl.graph.components import label_reach
 
     comps = np.unique(st.scc[~acc])
     sources = comps[st.source_scc[comps]]
-    groups = []
-    for c in sources.tolist():
-        members = np.flatnonzero(st.scc == c)
-        reach = reachable_from(st.out_indptr, st.out_indices, members)
-        reach[members] = False
-        reach &= ~acc
-        groups.append(InaccessibleGroup(source=members, downstream=np.flatnonzero(reach)))
-    return tuple(groups)
+    # members of every unreached source component, grouped (one sort, not one scan each)
+    slot = np.full(st.n_scc, -1, np.int64)
+    slot[sources] = np.arange(sources.size)
+    members = np.flatnonzero(slot[st.scc] >= 0)
+    members = members[np.argsort(slot[st.scc[members]], kind="stable")]
+    bounds = np.searchsorted(slot[st.scc[members]], np.arange(sources.size + 1))
+    # one labelled search: each inaccessible state goes to the first source reaching it
+    labels = label_reach(st.out_indptr, st.out_indices, members, slot[st.scc[members]], ~acc)
+    down = np.flatnonzero((labels >= 0) & (slot[st.scc] < 0))
+    down = down[np.argsort(labels[down], kind="stable")]
+    dbounds = np.searchsorted(labels[down], np.arange(sources.size + 1))
+    return tuple(InaccessibleGroup(source=members[bounds[k]:bounds[k + 1]],
+                                   downstream=down[dbounds[k]:dbounds[k + 1]])
+                 for k in range(sources.size))
 
 
 def _dilation(A: sp.csr_array, B: sp.csr_array, row_match: np.ndarray) -> Dilation:

@@ -224,3 +224,30 @@ def test_reason_for_a_state_with_no_incoming_link():
     text = " ".join(r.reasons())
     assert "{x1} has no incoming link and no input, so it needs an input of its own" in text
     assert "fed by only 0" not in text
+
+
+def test_inaccessible_groups_partition_and_are_reachable():
+    """Groups partition the inaccessible states; every downstream state is reachable from
+    its group's source component and from no input (networkx as the reference)."""
+    import networkx as nx
+
+    rng = np.random.default_rng(21)
+    for _ in range(80):
+        n = int(rng.integers(2, 25))
+        edges = random_pattern(rng, n, 0.08)
+        s = from_edges(edges, n) if len(edges) else StructuredSystem.from_edges([], [], n)
+        inputs = sorted(set(rng.integers(0, n, int(rng.integers(0, 3))).tolist()))
+        r = controllability(s.with_inputs(inputs) if inputs else s)
+        g = nx.DiGraph()
+        g.add_nodes_from(range(n))
+        g.add_edges_from(map(tuple, edges.tolist()))
+        reached = set(inputs).union(*[nx.descendants(g, i) for i in inputs]) if inputs else set()
+        assert set(r.inaccessible.tolist()) == set(range(n)) - reached
+        listed = [i for grp in r.groups for i in grp.source.tolist() + grp.downstream.tolist()]
+        assert sorted(listed) == r.inaccessible.tolist()  # a partition
+        for grp in r.groups:
+            src = set(grp.source.tolist())
+            assert all(g.in_degree(v) == 0 or set(g.predecessors(v)) <= src for v in src) or \
+                len(src) > 1
+            reach = set().union(*[nx.descendants(g, v) for v in src])
+            assert set(grp.downstream.tolist()) <= reach
