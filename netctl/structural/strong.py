@@ -508,8 +508,13 @@ def forcing_closure(system: StructuredSystem, black: Any, *,
     diagonal = _check_diagonal(diagonal)
     n = system.n_states
     g = _graph(system.A, system.B)
+    idx = np.asarray(black, dtype=np.int64).reshape(-1)
+    if idx.size and (idx.min() < 0 or idx.max() >= n):
+        raise OptionError(f"black states must be indices 0..{n - 1}, found "
+                          f"{int(idx.min() if idx.min() < 0 else idx.max())}; use "
+                          "system.index_of(names) to turn names into indices.")
     b0 = np.zeros(n + g.m, bool)
-    b0[np.asarray(black, dtype=np.int64)] = True
+    b0[idx] = True
     b0[n:] = True
     out = {}
     for rule in _rules(_loops(system, diagonal), diagonal, g.m):

@@ -570,6 +570,12 @@ def test_unknown_diagonal_is_rejected_with_choices():
         minimum_strong_inputs(s, time_limit=-1)
 
 
+def test_forcing_closure_rejects_bad_indices():
+    s = StructuredSystem.from_edges([0], [1])
+    with pytest.raises(OptionError, match=r"indices 0\.\.1, found 5; use system.index_of"):
+        forcing_closure(s, [5])
+
+
 def test_zero_diagonal_warns_about_self_loops():
     s = StructuredSystem.from_edges([0, 1], [1, 1], 2, state_names=["p", "q"])
     with pytest.warns(UserWarning, match=r"1 self-loop\(s\) in the pattern \(q\)"):
