@@ -1122,8 +1122,9 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
     controllability, so it needs at least as many; Commault & Dion 2013) and, for the
     standard rule, the minimum out-degree.
 
-    One minimum set of possibly many; ties follow state order and the solver, which is
-    deterministic.
+    One minimum set of possibly many; ties follow state order, so a search that
+    finishes (or the greedy one) gives the same set on every run. A search cut short by
+    ``time_limit`` returns whatever it reached, which depends on the machine's speed.
 
     References
     ----------
