@@ -108,3 +108,17 @@ def test_weighted_file_note(tmp_path, capsys):
     assert main(["strong", f, "--inputs", "a", "--diagonal", "free", "--json"]) == 0
     d = json.loads(capsys.readouterr().out)
     assert any("weights are not used" in x for x in d["notes"])
+
+
+def test_strong_checks_the_design_a_system_file_declares(capsys):
+    # like `check`: a system description's own inputs are checked unless --search is given
+    from pathlib import Path
+
+    from netctl.cli import main
+    plant = str(Path(__file__).resolve().parents[1] / "networks" / "chemical_plant.toml")
+    code = main(["strong", plant, "--json"])
+    d = json.loads(capsys.readouterr().out)
+    assert d["mode"] == "check" and code == (0 if d["strongly_controllable"] else 1)
+    code = main(["strong", plant, "--search", "--method", "greedy", "--json"])
+    d = json.loads(capsys.readouterr().out)
+    assert d["mode"] == "minimum" and code == 0

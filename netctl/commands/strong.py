@@ -25,7 +25,10 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
              "weight (exit 0 yes, 1 no), or the fewest inputs that do")
     p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
                    help="states with a dedicated input: 'a,b,c' or a file, one name a line "
-                        "(default: search for a smallest set)")
+                        "(default: the inputs the file declares; if none, search for a "
+                        "smallest set)")
+    p.add_argument("--search", action="store_true",
+                   help="search for a smallest set even when the file declares inputs")
     p.add_argument("--diagonal", choices=list(DIAGONALS), default="as-given",
                    help="what is assumed about the self-dynamics a_ii: " + "; ".join(
                        f"{k} = {v}" for k, v in DIAGONALS.items()) + " (default: as-given)")
@@ -61,8 +64,10 @@ def _cmd_strong(args: argparse.Namespace) -> int:
     if system.weighted:
         notes.append("the file's weights are not used: the answer covers every nonzero "
                      "value of every link")
-    if args.inputs is not None:
-        system = system.with_inputs(parse_names(system, args.inputs))
+    if args.inputs is not None or (system.n_inputs and not args.search):
+        # check the given design, or the one a system description declares (as `check`)
+        if args.inputs is not None:
+            system = system.with_inputs(parse_names(system, args.inputs))
         rep = strong_controllability(system, diagonal=args.diagonal)
         d: dict[str, Any] = {"file": args.file, "mode": "check", **rep.to_dict(),
                              "notes": notes, "caution": CAUTION}
@@ -79,8 +84,8 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         return 0 if rep.strongly_controllable else 1
 
     if system.n_inputs:
-        notes.append(f"the file's {system.n_inputs} input(s) are not used by the search; "
-                     "pass --inputs to check a design")
+        notes.append(f"the file's {system.n_inputs} input(s) are not used by the search "
+                     "(--search); without --search they are checked")
     design = minimum_strong_inputs(system, diagonal=args.diagonal, method=args.method,
                                    time_limit=args.time_limit)
     with warnings.catch_warnings():  # the search has already warned about the diagonal
