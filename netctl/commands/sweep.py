@@ -19,7 +19,6 @@ from netctl.structural.robustness import (
     AttackCurve,
     attack_curve,
     contingency_sweep,
-    plot_attack_curves,
     sampled_losses,
 )
 
@@ -211,18 +210,13 @@ def _plot(curves: list[AttackCurve], path: str) -> None:
 
     fig, axes = plt.subplots(1, 2 if len({c.elements for c in curves}) > 1 else 1,
                              figsize=(10, 4), squeeze=False)
-    try:
-        from netctl.viz.charts import plot_attack_curves as chart
-    except ImportError:  # pragma: no cover - the chart module is optional
-        chart = None
+    from netctl.viz.charts import plot_attack_curves as chart
+
     for ax, kind in zip(axes[0], sorted({c.elements for c in curves})):
         mine = [c for c in curves if c.elements == kind]
-        if chart is not None:
-            what = "links" if kind == "links" else "states"
-            chart({c.strategy: c.xy() for c in mine}, ax=ax,
-                  xlabel=f"share of {what} removed", ylabel="minimum inputs / states left")
-        else:
-            plot_attack_curves(mine, ax=ax)
+        what = "links" if kind == "links" else "states"
+        chart({c.strategy: c.xy() for c in mine}, ax=ax,
+              xlabel=f"share of {what} removed", ylabel="minimum inputs / states left")
     fig.tight_layout()
     suffix = os.path.splitext(path)[1] or ".png"
     directory = os.path.dirname(path) or "."
