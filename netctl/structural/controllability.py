@@ -305,7 +305,6 @@ def _inaccessible_groups(st: Structure, acc: np.ndarray) -> tuple[InaccessibleGr
 
 def _dilation(A: sp.csr_array, B: sp.csr_array, row_match: np.ndarray) -> Dilation:
     indptr, indices, n_cols = stack_AB(A, B)
-    n = A.shape[0]
     col_match = np.full(n_cols, -1, np.int64)
     rows = np.flatnonzero(row_match >= 0)
     col_match[row_match[rows]] = rows

@@ -329,8 +329,6 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
                       + int(np.count_nonzero(marks.on_cycle & (marks.matched_sources
                                                                == marks.matched_targets)))))
     if marks.critical_sources is not None:
-        from matplotlib.legend_handler import HandlerTuple
-
         casing = Line2D([], [], color=MARKS["critical_link"].edge,
                         linewidth=MARKS["critical_link"].linewidth)
         inner = Line2D([], [], color="white", linewidth=MARKS["chain"].linewidth * 0.8)
