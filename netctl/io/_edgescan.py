@@ -27,7 +27,7 @@ import numpy as np
 from numba import njit
 
 __all__ = ["scan_chunk", "rehash", "mark_present", "remap", "int_names_text", "build_csr", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
-           "STATUS_NOT_INT", "STATUS_GROW", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ST_SIZE"]
+           "STATUS_NOT_INT", "STATUS_GROW", "STATUS_FULL", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ST_SIZE"]
 
 MODE_INT = 0
 MODE_STR = 1
@@ -35,6 +35,7 @@ STATUS_DONE = 0
 STATUS_ERROR = 1
 STATUS_NOT_INT = 2
 STATUS_GROW = 3
+STATUS_FULL = 4
 ERR_TOO_MANY = 1
 ERR_MIXED = 2
 ERR_WEIGHT = 3
@@ -288,8 +289,9 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
     ``iso`` and weight fallbacks to ``fb_*`` from index 0 (per chunk). Returns a status;
     on ``STATUS_ERROR`` the error code and the byte range of the bad line are in ``st``;
     on ``STATUS_NOT_INT`` ``st[LINE]`` is the line of the token; on ``STATUS_GROW``
-    (string mode) the name table or buffers must grow before the scan resumes at
-    ``st[POS]``. The arrays must have room for one entry per line of ``buf``.
+    (string mode) the name table or buffers must grow, on ``STATUS_FULL`` ``iso`` or the
+    ``fb_*`` arrays, before the scan resumes at ``st[POS]``. ``src``/``dst``/``w`` must
+    have room for one entry per line of ``buf``.
     """
     n = buf.size
     p = st[_POS]
@@ -380,6 +382,9 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
             return STATUS_ERROR
         if nf >= 2:
             ncols = nf
+        if (nf == 1 and ni >= iso.size) or (nf == 3 and nfb >= fb_edge.size):
+            _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
+            return STATUS_FULL
         if nf >= 1 and mode == MODE_STR and (
                 (st[_NN] + 2) * 2 > table.shape[0] or st[_NN] + 2 > name_pos.shape[0]
                 or st[_NUSED] + (q - p) > names_buf.size):

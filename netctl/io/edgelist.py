@@ -191,7 +191,7 @@ class _Scan:
             if 0 <= m < len(chunk) - 1:
                 split = m + 1
         if split < 0:
-            cap = (len(chunk) - pos) // 2 + 2  # a line that yields anything has >= 2 bytes
+            cap = chunk.count(b"\n", pos) + 1
             self._room(cap, chunk)
             st[0] = pos
             st[4] = st[5] = 0
@@ -200,12 +200,12 @@ class _Scan:
             return
         # integer names and a large chunk: scan the two halves in two threads (the
         # compiled scanner releases the GIL), then append the second half's links
-        cap_a = (split - pos) // 2 + 2
-        cap_b = (len(chunk) - split) // 2 + 2
+        cap_a = chunk.count(b"\n", pos, split) + 1
+        cap_b = chunk.count(b"\n", split) + 1
         self._room(cap_a + cap_b, chunk)
         st_b = st.copy()
         st_b[0] = split
-        st_b[1] = st[1] + chunk.count(b"\n", pos, split)
+        st_b[1] = st[1] + cap_a - 1
         st_b[3] = st_b[4] = st_b[5] = st_b[8] = st_b[9] = 0
         st[0] = pos
         st[4] = st[5] = 0
@@ -253,16 +253,23 @@ class _Scan:
 
     def _run(self, arr: np.ndarray, st: np.ndarray, src: np.ndarray, dst: np.ndarray,
              w: np.ndarray, cap: int) -> tuple[int, np.ndarray, tuple[np.ndarray, ...]]:
-        """Run the scanner over ``arr`` from ``st[0]`` (growing the name table as asked)."""
-        iso = np.empty(cap, np.int64)
-        fb = tuple(np.empty(cap, np.int64) for _ in range(4))
+        """Run the scanner over ``arr`` from ``st[0]``, growing the name table and the
+        (small, rarely used) single-name and weight-fallback arrays as it asks."""
+        iso = np.empty(256, np.int64)
+        fb = tuple(np.empty(256, np.int64) for _ in range(4))
         while True:
             status = _k.scan_chunk(arr, self.mode, st, src, dst, w, iso, fb[0], fb[1], fb[2],
                                    fb[3], self.table, self.names_buf, self.name_pos,
                                    self.name_line)
-            if status != _k.STATUS_GROW:
+            if status == _k.STATUS_GROW:
+                self._grow()
+            elif status == _k.STATUS_FULL:
+                if st[4] >= iso.size:
+                    iso = np.concatenate([iso, np.empty(iso.size, np.int64)])
+                if st[5] >= fb[0].size:
+                    fb = tuple(np.concatenate([a, np.empty(a.size, np.int64)]) for a in fb)
+            else:
                 return status, iso, fb
-            self._grow()
 
     def _finish(self, chunk: bytes, st: np.ndarray, status: int, iso: np.ndarray,
                 fb: tuple[np.ndarray, ...], offset: int) -> None:
@@ -285,7 +292,7 @@ class _Scan:
             return
         guess = 0
         if not self.cap:  # first guess: the whole file at this chunk's line density
-            guess = int(self.size_hint / max(len(chunk), 1) * (chunk.count(b"\n") + 1) * 1.05)
+            guess = int(self.size_hint / max(len(chunk), 1) * n_lines * 1.05)
         cap = max(ne + n_lines, 2 * self.cap, guess)
         weighted = self.st[2] == 3
         for name in ("src", "dst", "w"):
