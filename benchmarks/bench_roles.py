@@ -12,7 +12,7 @@ The machine is shared and noisy, so the methods run interleaved in ``--repeat`` 
 the least disturbed run; ratios are ratios of minima. Brute force is timed on ``--sample`` random elements --
 for a node, delete its row and recompute a maximum matching from scratch; for a link,
 delete it and recompute -- and extrapolated linearly to all elements. Writes nothing;
-paste the printed Markdown table into benchmarks/RESULTS-roles.md.
+paste the printed Markdown table into benchmarks/RESULTS.md.
 """
 
 from __future__ import annotations

@@ -386,9 +386,13 @@ def mode_batch(a: argparse.Namespace) -> dict[str, Any]:
         cmd = [sys.executable, "-m", "netctl.cli", "batch", str(d), "--task", "drivers",
                "--out", str(Path(a.dir) / f"batch-{label}.csv"), *extra]
         t = time.perf_counter()
+        before = resource.getrusage(resource.RUSAGE_CHILDREN)
         r = subprocess.run(cmd, capture_output=True, text=True, cwd=ROOT,
                            env=dict(os.environ, PYTHONPATH=str(ROOT)))
         res[f"{label}_seconds"] = time.perf_counter() - t
+        after = resource.getrusage(resource.RUSAGE_CHILDREN)
+        res[f"{label}_cpu_seconds"] = (after.ru_utime - before.ru_utime
+                                       + after.ru_stime - before.ru_stime)
         res[f"{label}_exit"] = r.returncode
         print(label, res[f"{label}_seconds"], r.stdout.strip().splitlines()[:2],
               file=sys.stderr)

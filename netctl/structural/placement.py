@@ -66,7 +66,7 @@ METHODS: tuple[str, ...] = ("auto", "exact", "greedy")
 
 #: Largest mixed-integer programme ``method="auto"`` hands to HiGHS (continuous matching
 #: variables plus binary actuator variables, after the reduction described in
-#: :func:`place_inputs`); larger problems use the greedy. See benchmarks/RESULTS-placement.md.
+#: :func:`place_inputs`); larger problems use the greedy. See benchmarks/RESULTS.md.
 MILP_MAX_VARIABLES: int = 200_000
 
 #: Largest number of affordable candidates for which the best-effort (budget too small)
