@@ -102,9 +102,10 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
 
     Notes
     -----
-    Local processes start through the ``forkserver`` method where the platform has it
-    (else ``spawn``), so workers never inherit threads of the caller; netctl and its
-    compiled kernels are loaded once in the fork server, so workers start warm. Tasks are handed out in chunks of about
+    Local processes start by ``fork`` when that is safe (POSIX, Python < 3.12, the
+    caller runs no other Python thread): netctl's compiled kernels are loaded once in the
+    caller and every worker inherits them. Otherwise through a ``forkserver`` (loaded
+    once, so workers still start warm), else ``spawn``. Tasks are handed out in chunks of about
     ``len(items) / (4 * workers)``.
 
     Examples
@@ -130,14 +131,28 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
     n_workers = min(workers or default_workers(), len(items))
     if executor == "serial" or n_workers == 1:
         return [func(item, s, shared) for item, s in zip(items, seeds)]
-    ctx = mp.get_context("forkserver" if "forkserver" in mp.get_all_start_methods()
-                         else "spawn")
-    if ctx.get_start_method() == "forkserver":
+    ctx = _context()
+    if ctx.get_start_method() == "fork":
+        import netctl.ensemble._preload  # noqa: F401  (warm kernels once; workers inherit)
+    elif ctx.get_start_method() == "forkserver":
         ctx.set_forkserver_preload(["netctl.ensemble._preload"])
     chunk = max(1, math.ceil(len(items) / (4 * n_workers)))
     with ProcessPoolExecutor(max_workers=n_workers, mp_context=ctx, initializer=_init_worker,
                              initargs=(shared,)) as pool:
         return list(pool.map(_call_local, repeat(func), items, seeds, chunksize=chunk))
+
+
+def _context() -> Any:
+    """``fork`` where it is safe and quiet (POSIX, Python < 3.12, no other Python
+    thread): workers start instantly with everything loaded. Else ``forkserver`` (a clean
+    server preloaded once), else ``spawn``."""
+    import sys
+    import threading
+
+    methods = mp.get_all_start_methods()
+    if "fork" in methods and sys.version_info < (3, 12) and threading.active_count() == 1:
+        return mp.get_context("fork")
+    return mp.get_context("forkserver" if "forkserver" in methods else "spawn")
 
 
 def _init_worker(shared: Any) -> None:
