@@ -280,6 +280,19 @@ def test_executor_same_results_serial_and_two_processes():
     assert other != serial
 
 
+def test_executor_forkserver_path_gives_the_same_results(monkeypatch):
+    # the start method used on Python >= 3.12 or when the caller runs threads
+    import multiprocessing as mp
+
+    if "forkserver" not in mp.get_all_start_methods():
+        pytest.skip("no forkserver start method on this platform")
+    monkeypatch.setattr("netctl.ensemble.executor._context",
+                        lambda: mp.get_context("forkserver"))
+    items = list(range(7))
+    serial = run_tasks(_task_draws, items, seed=1, shared=None, executor="serial")
+    assert run_tasks(_task_draws, items, seed=1, shared=None, workers=2) == serial
+
+
 def test_compare_same_samples_on_every_local_executor():
     system = _er_system(2000, 3.0, seed=2)
     a = compare_to_null(system, samples=6, seed=9, executor="serial")
