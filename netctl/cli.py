@@ -79,12 +79,20 @@ def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs")
         raise type(exc)(f"{what}: {exc}") from None
 
 
-def emit(args: argparse.Namespace, result: dict[str, Any], text: str) -> None:
-    """Print ``text`` (or the JSON with ``--json``) and write ``--out`` atomically."""
-    payload = json.dumps(result, indent=2, sort_keys=False, default=_json_default) + "\n"
-    if getattr(args, "out", None):
-        with atomic_write(args.out) as fh:
-            fh.write(payload)
+def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[str, Any]],
+         text: str) -> None:
+    """Print ``text`` (or the JSON with ``--json``) and write ``--out`` atomically.
+
+    ``result`` may be a callable returning the dictionary, so that the full JSON of a
+    very large result is only built when ``--json`` or ``--out`` asks for it.
+    """
+    want_out = bool(getattr(args, "out", None))
+    if args.json or want_out:
+        data = result() if callable(result) else result
+        payload = json.dumps(data, indent=2, sort_keys=False, default=_json_default) + "\n"
+        if want_out:
+            with atomic_write(args.out) as fh:
+                fh.write(payload)
     sys.stdout.write(payload if args.json else text.rstrip("\n") + "\n")
 
 
@@ -96,10 +104,17 @@ def _json_default(o: Any) -> Any:
     raise TypeError(f"not JSON serialisable: {type(o).__name__}")
 
 
-def _names_line(names: Sequence[str], limit: int = 30) -> str:
-    if len(names) <= limit:
-        return ", ".join(names)
-    return ", ".join(names[:limit]) + f", ... ({len(names) - limit} more; --json lists all)"
+_SHOWN = 30
+
+
+def _names_line(names: Sequence[str], limit: int = _SHOWN, total: int | None = None) -> str:
+    """At most ``limit`` names, then how many more (``total`` when only a prefix of the
+    names was built)."""
+    total = len(names) if total is None else total
+    shown = list(names[:limit])
+    if total <= limit:
+        return ", ".join(shown)
+    return ", ".join(shown) + f", ... ({total - limit} more; --json lists all)"
 
 
 # ---------------------------------------------------------------------- verbs
@@ -129,19 +144,22 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
 
     system = load_system(args)
     design = (minimum_sensors if sensors else minimum_inputs)(system, dedicated=args.dedicated)
-    d = design.to_dict()
-    d["file"] = args.file
+
+    def full() -> dict[str, Any]:
+        return {**design.to_dict(), "file": args.file}
+
     noun = "sensors" if sensors else "inputs"
     kind = "dedicated" if args.dedicated else "shared"
     where = "read" if sensors else "driven"
     lines = [f"{args.file}: {design.n_states} states, model {design.model}",
              f"  minimum {noun} ({kind}): {design.n_inputs}",
-             f"  {where} states ({design.drivers.size}): {_names_line(design.driver_names)}"]
+             f"  {where} states ({design.drivers.size}): "
+             + _names_line(design.names(design.drivers[:_SHOWN]), total=design.drivers.size)]
     if not args.dedicated and design.n_inputs < design.drivers.size:
         lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which states each "
                      f"{noun[:-1]} {'reads' if sensors else 'acts on'}")
     lines.append("  (one minimum set of possibly many; ties broken by state order)")
-    emit(args, d, "\n".join(lines))
+    emit(args, full, "\n".join(lines))
     return 0
 
 
@@ -174,10 +192,8 @@ def _cmd_check(args: argparse.Namespace) -> int:
     if check_outputs:
         reports.append(observability(system, dimension=not args.no_dimension))
     lines = [f"{args.file}: {system.n_states} states, model {system.model}"]
-    result: dict[str, Any] = {"file": args.file}
     ok = True
     for r in reports:
-        d = r.to_dict()
         ok &= r.controllable
         word = "controllable" if r.kind == "controllability" else "observable"
         what = "inputs" if r.kind == "controllability" else "sensors"
@@ -185,20 +201,27 @@ def _cmd_check(args: argparse.Namespace) -> int:
         lines.append(f"  structurally {word}: {'yes' if r.controllable else 'NO'}"
                      + (f" (generic {word} dimension {dim} of {r.n_states})"
                         if dim is not None and not r.controllable else ""))
-        for reason in r.reasons():
-            lines.append(f"    - {reason}")
+        reasons = r.reasons()
+        lines.extend(f"    - {reason}" for reason in reasons[:_SHOWN])
+        if len(reasons) > _SHOWN:
+            lines.append(f"    ... ({len(reasons) - _SHOWN} more reasons; --json lists all)")
         if not r.controllable:
             lines.append(f"  smallest fix: add {r.n_missing_inputs} dedicated {what} at "
-                         f"{_names_line(r.names(r.fix))}")
-        if len(reports) == 1:
-            result.update(d)
-        else:
-            result[r.kind] = d
-    if len(reports) == 2:
-        result["controllable"] = reports[0].controllable
-        result["observable"] = reports[1].controllable
+                         + _names_line(r.names(r.fix[:_SHOWN]), total=r.fix.size))
     lines.append("  " + CAUTION)
-    emit(args, result, "\n".join(lines))
+
+    def full() -> dict[str, Any]:
+        result: dict[str, Any] = {"file": args.file}
+        if len(reports) == 1:
+            result.update(reports[0].to_dict())
+        else:
+            for r in reports:
+                result[r.kind] = r.to_dict()
+            result["controllable"] = reports[0].controllable
+            result["observable"] = reports[1].controllable
+        return result
+
+    emit(args, full, "\n".join(lines))
     return 0 if ok else 1
 
 
