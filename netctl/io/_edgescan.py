@@ -477,7 +477,8 @@ def build_csr(rows: np.ndarray, cols: np.ndarray, vals: np.ndarray, n: int,
     bounded length (rows longer than 32 entries are sorted with a comparison sort).
 
     Duplicates are summed (``weighted``) or merged to 1.0, column indices sorted,
-    entries that sum to exactly zero dropped. Returns ``(indptr, indices, data,
+    entries of weight zero skipped (not counted as duplicates), sums that cancel to
+    exactly zero dropped. Returns ``(indptr, indices, data,
     n_duplicates, n_cancelled)``.
     """
     m = rows.size
@@ -523,11 +524,17 @@ def build_csr(rows: np.ndarray, cols: np.ndarray, vals: np.ndarray, n: int,
         row_start = out
         t = start
         while t < end:
+            if weighted and cv[t] == 0.0:  # a link of weight 0 is not a link
+                t += 1
+                continue
             c = ci[t]
             v = cv[t] if weighted else 1.0
             t += 1
             while t < end and ci[t] == c:
                 if weighted:
+                    if cv[t] == 0.0:
+                        t += 1
+                        continue
                     v += cv[t]
                 n_dup += 1
                 t += 1

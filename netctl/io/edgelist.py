@@ -555,8 +555,6 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
             warnings.warn(f"{path}: {k} link{'s' if k > 1 else ''} with weight 0 "
                           f"{'are' if k > 1 else 'is'} not a link and "
                           f"{'were' if k > 1 else 'was'} left out{where}.", stacklevel=3)
-            keep = ~zero
-            src, dst, w = src[keep], dst[keep], w[keep]
     indptr, indices, data, n_dup, cancelled = _k.build_csr(
         dst, src, np.empty(0) if w is None else w, n, w is not None)
     A = sp.csr_array((data, indices, indptr), shape=(n, n))
