@@ -155,7 +155,10 @@ def _names(names: Sequence[object] | None, count: int, prefix: str, what: str
         if len(names) != count:
             raise InvalidSystemError(f"{what}: expected {count} names, found {len(names)}.")
         return names
-    out = tuple(str(x) for x in names)
+    if isinstance(names, tuple) and all(type(x) is str for x in names):
+        out = names  # already what we store; skip rebuilding a million strings
+    else:
+        out = tuple(str(x) for x in names)
     if len(out) != count:
         raise InvalidSystemError(f"{what}: expected {count} names, found {len(out)}.")
     if len(set(out)) != len(out):
@@ -640,8 +643,8 @@ class StructuredSystem:
 def _count_unique_pairs(rows: np.ndarray, cols: np.ndarray, n: int) -> int:
     if rows.size == 0:
         return 0
-    key = rows.astype(np.int64) * max(n, 1) + cols.astype(np.int64)
-    return int(np.unique(key).size)
+    key = np.sort(rows.astype(np.int64) * max(n, 1) + cols.astype(np.int64))
+    return int(1 + np.count_nonzero(key[1:] != key[:-1]))  # sort-based: faster than unique
 
 
 def _seq(names: Any) -> Any:
