@@ -137,42 +137,19 @@ def condensation_sources(in_indptr: np.ndarray, in_indices: np.ndarray, labels: 
                     np.ascontiguousarray(labels, np.int64), np.int64(n_components))
 
 
-@njit(cache=True, nogil=True)
-def _bfs(indptr, indices, sources, mask):  # pragma: no cover - compiled
-    n = indptr.size - 1
-    queue = np.empty(n, np.int64)
-    tail = 0
-    for s in sources:
-        if not mask[s]:
-            mask[s] = True
-            queue[tail] = s
-            tail += 1
-    head = 0
-    while head < tail:
-        u = queue[head]
-        head += 1
-        for k in range(indptr[u], indptr[u + 1]):
-            v = indices[k]
-            if not mask[v]:
-                mask[v] = True
-                queue[tail] = v
-                tail += 1
-    return mask
-
-
 def reachable_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.ndarray) -> np.ndarray:
     """Boolean mask of the vertices reachable from ``sources`` (sources included).
 
     ``out_indptr`` / ``out_indices`` is the out-adjacency: ``indices[indptr[u]:indptr[u+1]]``
-    are the successors of ``u``. Linear time.
+    are the successors of ``u``. Linear time (one :func:`label_reach` with one label).
     """
     n = out_indptr.size - 1
-    mask = np.zeros(n, dtype=np.bool_)
     src = np.ascontiguousarray(sources, dtype=np.int64)
     if n == 0 or src.size == 0:
-        return mask
-    return _bfs(np.ascontiguousarray(out_indptr, np.int64),
-                np.ascontiguousarray(out_indices, np.int64), src, mask)
+        return np.zeros(n, dtype=np.bool_)
+    labels = label_reach(out_indptr, out_indices, src, np.zeros(src.size, np.int64),
+                         np.ones(n, np.bool_))
+    return labels >= 0
 
 
 @njit(cache=True, nogil=True)
