@@ -147,15 +147,17 @@ def reachable_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.
     src = np.ascontiguousarray(sources, dtype=np.int64)
     if n == 0 or src.size == 0:
         return np.zeros(n, dtype=np.bool_)
-    labels = label_reach(out_indptr, out_indices, src, np.zeros(src.size, np.int64),
-                         np.ones(n, np.bool_))
+    labels = np.full(n, -1, np.int32)  # int32 work array: this runs on every analysis
+    _label_bfs(np.ascontiguousarray(out_indptr, np.int64),
+               np.ascontiguousarray(out_indices, np.int64), src,
+               np.zeros(src.size, np.int32), np.ones(n, np.bool_), labels)
     return labels >= 0
 
 
 @njit(cache=True, nogil=True)
 def _label_bfs(indptr, indices, seeds, seed_labels, allowed, labels):  # pragma: no cover
     n = indptr.size - 1
-    queue = np.empty(n, np.int64)
+    queue = np.empty(n, np.int32)  # vertex ids fit in int32 (n < 2**31)
     tail = 0
     for k in range(seeds.size):
         s = seeds[k]

@@ -31,21 +31,26 @@ __all__ = ["maximum_matching", "extend_matching", "matching_from_csr", "is_valid
 
 @njit(cache=True, nogil=True)
 def transpose_csr(indptr, indices, n_cols):  # pragma: no cover - compiled
-    """CSR index arrays of the transpose (columns -> rows), indices sorted."""
+    """CSR index arrays of the transpose (columns -> rows), indices sorted.
+
+    No work arrays beyond the output: the pointer array is used as the fill cursor and
+    shifted back afterwards.
+    """
     n_rows = indptr.size - 1
-    counts = np.zeros(n_cols + 1, np.int64)
+    tptr = np.zeros(n_cols + 1, np.int64)
     for k in range(indices.size):
-        counts[indices[k] + 1] += 1
+        tptr[indices[k] + 1] += 1
     for c in range(n_cols):
-        counts[c + 1] += counts[c]
-    tptr = counts.copy()
-    fill = counts[:-1].copy()
+        tptr[c + 1] += tptr[c]
     tind = np.empty(indices.size, np.int64)
     for r in range(n_rows):
         for k in range(indptr[r], indptr[r + 1]):
             c = indices[k]
-            tind[fill[c]] = r
-            fill[c] += 1
+            tind[tptr[c]] = r
+            tptr[c] += 1
+    for c in range(n_cols, 0, -1):
+        tptr[c] = tptr[c - 1]
+    tptr[0] = 0
     return tptr, tind
 
 
@@ -327,10 +332,11 @@ def _extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match):  # p
     """DFS from every free extra column; see :func:`extend_matching`."""
     n_rows = row_match.size
     n_x = xptr.size - 1
-    visited = np.full(n_rows, -1, np.int64)
-    stack_col = np.empty(n_rows + 1, np.int64)
+    # ids and phase numbers fit in int32 (checked by maximum_matching); positions int64
+    visited = np.full(n_rows, -1, np.int32)
+    stack_col = np.empty(n_rows + 1, np.int32)
     stack_pos = np.empty(n_rows + 1, np.int64)
-    stack_row = np.empty(n_rows + 1, np.int64)
+    stack_row = np.empty(n_rows + 1, np.int32)
     phase = 0
     while True:
         augmented = 0
@@ -394,6 +400,8 @@ def extend_matching(
     col_match: np.ndarray,
     extra: tuple[np.ndarray, np.ndarray],
     extra_match: np.ndarray,
+    *,
+    inplace: bool = False,
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Add extra columns to a *maximum* matching and match as many of them as possible.
 
@@ -410,17 +418,24 @@ def extend_matching(
     extra_match : ndarray
         Row matched to each extra column, ``-1`` if free.
 
+    inplace : bool, default False
+        Complete the given int64 arrays in place instead of copies (saves memory when
+        the caller owns them).
+
     Returns
     -------
     row_match, col_match, extra_match
-        Copies, completed. Augmenting paths from the free extra columns never unmatch a
+        Completed (copies unless ``inplace``). Augmenting paths from the free extra columns never unmatch a
         vertex and, because the real matching is maximum, never end at a free real column
         from a free row; so the real part keeps its size and the number of matched extra
         columns is the largest possible among matchings whose real part is maximum.
     """
-    rm = np.array(row_match, np.int64)
-    cm = np.array(col_match, np.int64)
-    xm = np.array(extra_match, np.int64)
+    if inplace:
+        rm, cm, xm = row_match, col_match, extra_match
+    else:
+        rm = np.array(row_match, np.int64)
+        cm = np.array(col_match, np.int64)
+        xm = np.array(extra_match, np.int64)
     if xm.size and np.any(xm == -1):
         _extend(np.ascontiguousarray(transpose[0], np.int64),
                 np.ascontiguousarray(transpose[1], np.int64), np.int64(n_cols), rm, cm,

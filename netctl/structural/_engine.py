@@ -161,12 +161,12 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     keep = fr_comp >= 0
     x_match[fr_comp[keep][::-1]] = free_rows[keep][::-1]
     if np.any(x_match == -1):
-        rm_ext = row_match.copy()
-        rm_ext[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
-        rm_ext, col_match, x_match = extend_matching(transpose, n_cols, rm_ext, col_match,
-                                                     (cptr, members), x_match)
-        real = (rm_ext >= 0) & (rm_ext < n_cols)
-        row_match = np.where(real, rm_ext, -1)
+        # row_match and col_match are ours (fresh from the matching): extend in place;
+        # rows matched to an extra column are then marked unmatched again
+        row_match[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
+        extend_matching(transpose, n_cols, row_match, col_match, (cptr, members), x_match,
+                        inplace=True)
+        row_match[row_match >= n_cols] = -1
     unmatched = np.flatnonzero(row_match < 0)
     missed = np.flatnonzero(x_match == -1)
     reps = np.empty(missed.size, np.int64)
