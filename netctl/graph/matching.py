@@ -26,23 +26,29 @@ import numpy as np
 from numba import njit
 
 __all__ = ["maximum_matching", "extend_matching", "matching_from_csr", "is_valid_matching",
-           "transpose_csr"]
+           "transpose_csr", "transpose_index", "index_dtype", "matching_work"]
+
+
+def index_dtype(n_rows: int, n_cols: int, nnz: int) -> type:
+    """Integer type of the kernels' work arrays: int32 while every vertex id, edge
+    position and encoded state fits (halves the bytes each random access pulls into
+    cache), int64 beyond."""
+    return np.int32 if max(n_rows, n_cols, nnz) < 2**31 - 4 else np.int64
 
 
 @njit(cache=True, nogil=True)
-def transpose_csr(indptr, indices, n_cols):  # pragma: no cover - compiled
-    """CSR index arrays of the transpose (columns -> rows), indices sorted.
+def _transpose_fill(indptr, indices, tptr, tind):  # pragma: no cover - compiled
+    """Fill ``tptr`` (zeros, size n_cols + 1) and ``tind`` with the transpose.
 
     No work arrays beyond the output: the pointer array is used as the fill cursor and
-    shifted back afterwards.
+    shifted back afterwards. Works for any integer types of the outputs.
     """
     n_rows = indptr.size - 1
-    tptr = np.zeros(n_cols + 1, np.int64)
+    n_cols = tptr.size - 1
     for k in range(indices.size):
         tptr[indices[k] + 1] += 1
     for c in range(n_cols):
         tptr[c + 1] += tptr[c]
-    tind = np.empty(indices.size, np.int64)
     for r in range(n_rows):
         for k in range(indptr[r], indptr[r + 1]):
             c = indices[k]
@@ -51,140 +57,328 @@ def transpose_csr(indptr, indices, n_cols):  # pragma: no cover - compiled
     for c in range(n_cols, 0, -1):
         tptr[c] = tptr[c - 1]
     tptr[0] = 0
+
+
+def transpose_index(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
+                    dtype: type | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """CSR index arrays of the transpose (columns -> rows), indices sorted, of ``dtype``
+    (default: :func:`index_dtype` of the sizes)."""
+    n_rows = indptr.size - 1
+    if dtype is None:
+        dtype = index_dtype(n_rows, int(n_cols), indices.size)
+    tptr = np.zeros(int(n_cols) + 1, dtype)
+    tind = np.empty(indices.size, dtype)
+    if indices.size:
+        _transpose_fill(indptr, indices, tptr, tind)
     return tptr, tind
 
 
+def transpose_csr(indptr: np.ndarray, indices: np.ndarray,
+                  n_cols: int) -> tuple[np.ndarray, np.ndarray]:
+    """CSR index arrays (int64) of the transpose (columns -> rows), indices sorted."""
+    return transpose_index(np.asarray(indptr), np.asarray(indices), int(n_cols), np.int64)
+
+
 @njit(cache=True, nogil=True)
-def _ks_match(r, c, indptr, indices, tptr, tind, row_match, col_match, rdeg, cdeg,
-              queue, tail):  # pragma: no cover - compiled
-    """Match r-c and lower the degrees of their unmatched neighbours; returns new tail."""
-    row_match[r] = c
-    col_match[c] = r
+def _ks_match(r, c, indptr, indices, tptr, tind, rst, cst, queue, tail):  # pragma: no cover
+    """Match r-c and lower the degrees of their unmatched neighbours; returns new tail.
+
+    ``rst``/``cst`` hold one word per vertex: the number of unmatched neighbours (>= 0)
+    while unmatched, ``-(mate + 2)`` once matched, so each neighbour costs one random
+    access instead of two (match array and degree array).
+    """
+    rst[r] = -(c + 2)
+    cst[c] = -(r + 2)
     for k in range(indptr[r], indptr[r + 1]):
         c2 = indices[k]
-        if col_match[c2] == -1:
-            cdeg[c2] -= 1
-            if cdeg[c2] == 1:
+        s = cst[c2]
+        if s > 0:
+            s -= 1
+            cst[c2] = s
+            if s == 1:
                 queue[tail] = -(c2 + 1)
                 tail += 1
     for k in range(tptr[c], tptr[c + 1]):
         r2 = tind[k]
-        if row_match[r2] == -1:
-            rdeg[r2] -= 1
-            if rdeg[r2] == 1:
+        s = rst[r2]
+        if s > 0:
+            s -= 1
+            rst[r2] = s
+            if s == 1:
                 queue[tail] = r2
                 tail += 1
     return tail
 
 
+# Karp–Sipser is bound by memory latency: every match leads to a chain of dependent
+# random loads (queue entry -> pointers -> neighbour list -> neighbour states -> the
+# mate's pointers -> ...). The kernel below keeps the algorithm's order but, before
+# working through the next _WINDOW queue entries (or greedy rows), walks the same chains
+# for all of them level by level with loads only, so that the loads of one level are
+# independent of each other and overlap in the memory system (the "group prefetching"
+# idea of Chen, Ailamaki, Gibbons, Mowry, ACM TODS 32(3), 2007). When no degree-one
+# vertex is left, _GREEDY greedy choices are made at once, so that their cascades share
+# windows. The walks pay off only once the arrays no longer fit in cache: below
+# _PREFETCH_BYTES of kernel arrays they cost more than they save. The constants were
+# chosen with benchmarks/bench_drivers.py on the project's machine kind (2 MiB L2 per
+# core; common practice, no source).
+_WINDOW = 16
+_GREEDY = 16
+_PREFETCH_BYTES = 16 * 2**20
+
+
 @njit(cache=True, nogil=True)
-def _karp_sipser(indptr, indices, tptr, tind, n_cols, row_match, col_match):  # pragma: no cover
+def _touch_queue(queue, lo, hi, indptr, indices, tptr, tind, rst, cst, a0, a1,
+                 mate):  # pragma: no cover - compiled
+    """Loads only (no state changes): the data queue[lo:hi] will need, level by level."""
+    w = hi - lo
+    acc = 0
+    for j in range(w):  # level 1: own state and pointers
+        code = queue[lo + j]
+        if code >= 0:
+            a0[j] = indptr[code]
+            a1[j] = indptr[code + 1]
+            acc += rst[code]
+        else:
+            c = -code - 1
+            a0[j] = tptr[c]
+            a1[j] = tptr[c + 1]
+            acc += cst[c]
+    for j in range(w):  # level 2: the neighbour lists
+        if a1[j] > a0[j]:
+            acc += indices[a0[j]] if queue[lo + j] >= 0 else tind[a0[j]]
+    for j in range(w):  # level 3: neighbour states; the likely mate
+        code = queue[lo + j]
+        m = -1
+        if code >= 0:
+            for k in range(a0[j], a1[j]):
+                if cst[indices[k]] >= 0:
+                    m = indices[k]
+                    break
+        else:
+            for k in range(a0[j], a1[j]):
+                if rst[tind[k]] >= 0:
+                    m = tind[k]
+                    break
+        mate[j] = m
+    acc += _touch_mates(queue, lo, w, indptr, indices, tptr, tind, rst, cst, a0, a1, mate)
+    return acc
+
+
+@njit(cache=True, nogil=True)
+def _touch_mates(queue, lo, w, indptr, indices, tptr, tind, rst, cst, a0, a1,
+                 mate):  # pragma: no cover - compiled
+    """Loads only: pointers, lists and neighbour states of the likely mates.
+    ``queue`` None-like (lo < 0) means the entries are rows lo..lo+w (greedy rows)."""
+    acc = 0
+    for j in range(w):  # level 4: the mate's pointers
+        m = mate[j]
+        if m >= 0:
+            if lo < 0 or queue[lo + j] >= 0:
+                a0[j] = tptr[m]
+                a1[j] = tptr[m + 1]
+            else:
+                a0[j] = indptr[m]
+                a1[j] = indptr[m + 1]
+    for j in range(w):  # level 5: the mate's neighbour list
+        m = mate[j]
+        if m >= 0 and a1[j] > a0[j]:
+            acc += tind[a0[j]] if (lo < 0 or queue[lo + j] >= 0) else indices[a0[j]]
+    for j in range(w):  # level 6: the states of the mate's neighbours
+        m = mate[j]
+        if m >= 0:
+            if lo < 0 or queue[lo + j] >= 0:
+                for k in range(a0[j], a1[j]):
+                    acc += rst[tind[k]]
+            else:
+                for k in range(a0[j], a1[j]):
+                    acc += cst[indices[k]]
+    return acc
+
+
+@njit(cache=True, nogil=True)
+def _touch_rows(queue, lo, hi, indptr, indices, tptr, tind, rst, cst, a0, a1,
+                mate):  # pragma: no cover - compiled
+    """Loads only: the data the greedy rows lo..hi will need."""
+    w = hi - lo
+    for j in range(w):  # rows are consecutive: their lists stream in
+        r = lo + j
+        m = -1
+        if rst[r] > 0:
+            for k in range(indptr[r], indptr[r + 1]):
+                if cst[indices[k]] >= 0:
+                    m = indices[k]
+                    break
+        mate[j] = m
+    return _touch_mates(queue, -1, w, indptr, indices, tptr, tind, rst, cst, a0, a1, mate)
+
+
+@njit(cache=True, nogil=True)
+def _karp_sipser(indptr, indices, tptr, tind, row_match, col_match, fresh,
+                 visited, core_row, prefetch):  # pragma: no cover - compiled
     """Karp–Sipser: match degree-one vertices first (optimal), else greedily.
 
-    Degrees count unmatched neighbours only; a vertex's degree only falls, so it enters
-    the queue at most once (when its degree is or becomes one). Rows and columns already
-    matched on entry are respected.
+    Works in place on ``row_match``/``col_match`` (-1 = unmatched), which are turned into
+    state words for the duration (see :func:`_ks_match`) and back. Degrees count
+    unmatched neighbours only; a vertex's degree only falls, so it enters the queue at
+    most once (when its degree is or becomes one). Rows and columns already matched on
+    entry are respected (``fresh`` False).
+
+    The degree-one reductions made before the first greedy choice belong to some maximum
+    matching (Karp & Sipser), so a maximum matching of the whole graph is those pairs plus
+    a maximum matching of the rest (the *core*). At the first greedy choice this records
+    the core for the augmenting phase: ``visited[c] = -1`` for core columns and a value
+    larger than any phase number for the others (they then always look visited), and
+    ``core_row[r]`` for the unmatched rows that still have an unmatched neighbour.
+    Returns False when no greedy choice was needed: the matching is then maximum.
+    With ``fresh`` False (a given start matching, not made of such reductions) the
+    whole graph is the core from the start.
     """
     n_rows = indptr.size - 1
-    # degrees and queue codes fit in int32 (fewer than 2**31 rows and columns, checked by
-    # the caller); half-size arrays keep more of the random accesses in cache
-    rdeg = np.zeros(n_rows, np.int32)
-    cdeg = np.zeros(n_cols, np.int32)
-    fresh = True
-    for r in range(n_rows):
-        if row_match[r] != -1:
-            fresh = False
-            break
+    n_cols = tptr.size - 1
+    rst = row_match
+    cst = col_match
     if fresh:
         for r in range(n_rows):
-            rdeg[r] = indptr[r + 1] - indptr[r]
+            rst[r] = indptr[r + 1] - indptr[r]
         for c in range(n_cols):
-            cdeg[c] = tptr[c + 1] - tptr[c]
+            cst[c] = tptr[c + 1] - tptr[c]
     else:
+        # matched -> -(mate + 2); unmatched stay -1 until their degree is counted
         for r in range(n_rows):
-            if row_match[r] == -1:
-                for k in range(indptr[r], indptr[r + 1]):
-                    if col_match[indices[k]] == -1:
-                        rdeg[r] += 1
+            if rst[r] >= 0:
+                rst[r] = -(rst[r] + 2)
         for c in range(n_cols):
-            if col_match[c] == -1:
+            if cst[c] >= 0:
+                cst[c] = -(cst[c] + 2)
+        for r in range(n_rows):
+            if rst[r] == -1:
+                d = 0
+                for k in range(indptr[r], indptr[r + 1]):
+                    if cst[indices[k]] >= -1:
+                        d += 1
+                rst[r] = d
+        for c in range(n_cols):
+            if cst[c] == -1:
+                d = 0
                 for k in range(tptr[c], tptr[c + 1]):
-                    if row_match[tind[k]] == -1:
-                        cdeg[c] += 1
+                    if rst[tind[k]] >= 0:
+                        d += 1
+                cst[c] = d
+    snapshot = not fresh
+    if snapshot:
+        # a start matching that is not maximum may need paths through any vertex
+        for c in range(n_cols):
+            visited[c] = -1
+        for r in range(n_rows):
+            core_row[r] = True
     # queue of degree-one vertices: code r >= 0 for rows, -(c+1) for columns
-    queue = np.empty(n_rows + n_cols + 1, np.int32)
+    queue = np.empty(n_rows + n_cols + 1, rst.dtype)
+    a0 = np.empty(_WINDOW, indptr.dtype)
+    a1 = np.empty(_WINDOW, indptr.dtype)
+    mate = np.empty(_WINDOW, rst.dtype)
     head = 0
     tail = 0
     for r in range(n_rows):
-        if row_match[r] == -1 and rdeg[r] == 1:
+        if rst[r] == 1:
             queue[tail] = r
             tail += 1
     for c in range(n_cols):
-        if col_match[c] == -1 and cdeg[c] == 1:
+        if cst[c] == 1:
             queue[tail] = -(c + 1)
             tail += 1
     next_greedy = 0
+    touched_q = 0
+    touched_g = 0
+    acc = 0
+    big = np.iinfo(np.int32).max
     while True:
         while head < tail:
+            if prefetch and head >= touched_q:
+                touched_q = min(head + _WINDOW, tail)
+                acc += _touch_queue(queue, head, touched_q, indptr, indices, tptr, tind,
+                                    rst, cst, a0, a1, mate)
             code = queue[head]
             head += 1
             if code >= 0:
                 r = code
-                if row_match[r] != -1:
+                if rst[r] <= 0:
                     continue
                 c = -1
                 for k in range(indptr[r], indptr[r + 1]):
-                    if col_match[indices[k]] == -1:
+                    if cst[indices[k]] >= 0:
                         c = indices[k]
                         break
                 if c == -1:
                     continue
             else:
                 c = -code - 1
-                if col_match[c] != -1:
+                if cst[c] <= 0:
                     continue
                 r = -1
                 for k in range(tptr[c], tptr[c + 1]):
-                    if row_match[tind[k]] == -1:
+                    if rst[tind[k]] >= 0:
                         r = tind[k]
                         break
                 if r == -1:
                     continue
-            tail = _ks_match(r, c, indptr, indices, tptr, tind, row_match, col_match,
-                             rdeg, cdeg, queue, tail)
-        # no degree-one vertex left: one greedy choice, then back to the reductions
-        progressed = False
-        while next_greedy < n_rows and not progressed:
+            tail = _ks_match(r, c, indptr, indices, tptr, tind, rst, cst, queue, tail)
+        # no degree-one vertex left: a few greedy choices, then back to the reductions
+        progressed = 0
+        while next_greedy < n_rows and progressed < _GREEDY:
+            if prefetch and next_greedy >= touched_g:
+                touched_g = min(next_greedy + _WINDOW, n_rows)
+                acc += _touch_rows(queue, next_greedy, touched_g, indptr, indices, tptr,
+                                   tind, rst, cst, a0, a1, mate)
             r = next_greedy
             next_greedy += 1
-            if row_match[r] != -1 or rdeg[r] == 0:
+            if rst[r] <= 0:
                 continue
             for k in range(indptr[r], indptr[r + 1]):
                 c = indices[k]
-                if col_match[c] == -1:
-                    tail = _ks_match(r, c, indptr, indices, tptr, tind, row_match,
-                                     col_match, rdeg, cdeg, queue, tail)
-                    progressed = True
+                if cst[c] >= 0:
+                    if not snapshot:
+                        snapshot = True
+                        for c2 in range(n_cols):
+                            visited[c2] = -1 if cst[c2] >= 0 else big
+                        for r2 in range(n_rows):
+                            core_row[r2] = rst[r2] > 0
+                    tail = _ks_match(r, c, indptr, indices, tptr, tind, rst, cst, queue,
+                                     tail)
+                    progressed += 1
                     break
-        if not progressed:
+        if progressed == 0:
             break
+    for r in range(n_rows):
+        s = rst[r]
+        rst[r] = -s - 2 if s < 0 else -1
+    for c in range(n_cols):
+        s = cst[c]
+        cst[c] = -s - 2 if s < 0 else -1
+    # the loads above must not be optimised away: their sum decides nothing
+    return snapshot or acc == -1
 
 
 @njit(cache=True, nogil=True)
-def _pothen_fan(indptr, indices, n_cols, row_match, col_match):  # pragma: no cover
-    """Complete a matching to a maximum one: Pothen–Fan DFS with lookahead (PF+)."""
+def _pothen_fan(indptr, indices, row_match, col_match, visited,
+                core_row):  # pragma: no cover - compiled
+    """Complete a matching to a maximum one: Pothen–Fan DFS with lookahead (PF+).
+
+    Searches start from the free rows with ``core_row`` set and only enter columns whose
+    ``visited`` is below the phase number (see :func:`_karp_sipser` for the core).
+    """
     n_rows = indptr.size - 1
     # vertex ids and phase numbers fit in int32 (checked by the caller); positions into
-    # ``indices`` stay int64. This keeps the working memory near two CSR index arrays.
+    # ``indices`` have the pointer type. This keeps the working memory near two CSR
+    # index arrays.
     lookahead = indptr[:-1].copy()
-    visited = np.full(n_cols, -1, np.int32)
     stack_row = np.empty(n_rows + 1, np.int32)
-    stack_pos = np.empty(n_rows + 1, np.int64)
+    stack_pos = np.empty(n_rows + 1, indptr.dtype)
     stack_col = np.empty(n_rows + 1, np.int32)
     free = np.empty(n_rows, np.int32)
     n_free = 0
     for r in range(n_rows):
-        if row_match[r] == -1 and indptr[r + 1] > indptr[r]:
+        if row_match[r] == -1 and core_row[r] and indptr[r + 1] > indptr[r]:
             free[n_free] = r
             n_free += 1
     phase = 0
@@ -218,7 +412,7 @@ def _pothen_fan(indptr, indices, n_cols, row_match, col_match):  # pragma: no co
                     while pos < end:
                         c = indices[pos]
                         pos += 1
-                        if visited[c] != phase:
+                        if visited[c] < phase:
                             nxt = c
                             break
                     stack_pos[top] = pos
@@ -228,7 +422,7 @@ def _pothen_fan(indptr, indices, n_cols, row_match, col_match):  # pragma: no co
                     while pos >= beg:
                         c = indices[pos]
                         pos -= 1
-                        if visited[c] != phase:
+                        if visited[c] < phase:
                             nxt = c
                             break
                     stack_pos[top] = pos
@@ -266,9 +460,46 @@ def _pothen_fan(indptr, indices, n_cols, row_match, col_match):  # pragma: no co
 
 
 @njit(cache=True, nogil=True)
-def _matching_kernel(indptr, indices, tptr, tind, n_cols, row_match, col_match):  # pragma: no cover
-    _karp_sipser(indptr, indices, tptr, tind, n_cols, row_match, col_match)
-    _pothen_fan(indptr, indices, n_cols, row_match, col_match)
+def _matching_kernel(indptr, indices, tptr, tind, row_match, col_match, fresh):  # pragma: no cover
+    n_cols = tptr.size - 1
+    n_rows = indptr.size - 1
+    visited = np.empty(n_cols, np.int32)
+    core_row = np.empty(n_rows, np.bool_)
+    footprint = (indptr.itemsize * n_rows + indices.itemsize * indices.size
+                 + tptr.itemsize * n_cols + tind.itemsize * tind.size
+                 + 2 * row_match.itemsize * (n_rows + n_cols))
+    if _karp_sipser(indptr, indices, tptr, tind, row_match, col_match, fresh, visited,
+                    core_row, footprint > _PREFETCH_BYTES):
+        _pothen_fan(indptr, indices, row_match, col_match, visited, core_row)
+
+
+def matching_work(
+    indptr: np.ndarray,
+    indices: np.ndarray,
+    n_cols: int,
+    transpose: tuple[np.ndarray, np.ndarray] | None = None,
+    row_match: np.ndarray | None = None,
+    col_match: np.ndarray | None = None,
+    dtype: type | None = None,
+) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`maximum_matching` for callers that keep their arrays across kernels.
+
+    ``indptr``/``indices`` are used as given (int64 as a system stores them; no copy);
+    the transpose and the matching are of the work type ``dtype`` (default:
+    :func:`index_dtype` of the sizes), and the matching is returned in that type.
+    ``row_match``/``col_match``, when given, must be of that type and are completed in
+    place.
+    """
+    n_rows = indptr.size - 1
+    dt = index_dtype(n_rows, int(n_cols), indices.size) if dtype is None else dtype
+    fresh = row_match is None
+    rm = np.full(n_rows, -1, dt) if row_match is None else row_match
+    cm = np.full(int(n_cols), -1, dt) if col_match is None else col_match
+    if n_rows and n_cols and indices.size:
+        if transpose is None:
+            transpose = transpose_index(indptr, indices, int(n_cols), dt)
+        _matching_kernel(indptr, indices, transpose[0], transpose[1], rm, cm, fresh)
+    return rm, cm
 
 
 def maximum_matching(
@@ -284,11 +515,11 @@ def maximum_matching(
 
     Parameters
     ----------
-    indptr, indices : ndarray of int64
+    indptr, indices : ndarray of int
         Row ``r`` is adjacent to columns ``indices[indptr[r]:indptr[r+1]]``.
     n_cols : int
         Number of columns.
-    row_match, col_match : ndarray of int64, optional
+    row_match, col_match : ndarray of int, optional
         A valid (not necessarily maximum) matching to start from; it is completed, and
         every row and column matched in it stays matched (augmenting paths never unmatch
         a vertex). Copies are made.
@@ -307,24 +538,33 @@ def maximum_matching(
     -----
     Exact. Deterministic: the same arrays give the same matching. Maximum matchings are
     not unique; which one is returned depends on the order of rows and columns.
-    Worst case O(V E); near-linear on the sparse networks netctl targets.
+    Worst case O(V E); near-linear on the sparse networks netctl targets. The index
+    arrays are read as int64; the transpose and the work arrays are int32 whenever the
+    sizes allow (less memory traffic); the result is int64.
     """
-    indptr = np.ascontiguousarray(indptr, dtype=np.int64)
-    indices = np.ascontiguousarray(indices, dtype=np.int64)
-    n_rows = indptr.size - 1
-    if max(n_rows, n_cols) >= 2**31 - 1:
-        raise ValueError(f"the matching kernel handles fewer than 2**31 rows and columns, "
-                         f"found {n_rows} x {n_cols}.")
-    rm = np.full(n_rows, -1, np.int64) if row_match is None else np.array(row_match, np.int64)
-    cm = np.full(n_cols, -1, np.int64) if col_match is None else np.array(col_match, np.int64)
-    if n_rows and n_cols and indices.size:
-        if transpose is None:
-            tptr, tind = transpose_csr(indptr, indices, np.int64(n_cols))
-        else:
-            tptr = np.ascontiguousarray(transpose[0], dtype=np.int64)
-            tind = np.ascontiguousarray(transpose[1], dtype=np.int64)
-        _matching_kernel(indptr, indices, tptr, tind, np.int64(n_cols), rm, cm)
-    return rm, cm
+    n_rows = np.asarray(indptr).size - 1
+    n_cols = int(n_cols)
+    if max(n_rows, n_cols) >= 2**31 - 4:
+        raise ValueError(f"the matching kernel handles fewer than 2**31 - 4 rows and "
+                         f"columns, found {n_rows} x {n_cols}.")
+    dt = index_dtype(n_rows, n_cols, np.asarray(indices).size)
+    ptr = np.ascontiguousarray(indptr, dtype=np.int64)
+    ind = np.ascontiguousarray(indices, dtype=np.int64)
+    rm = None if row_match is None else np.array(row_match, dt)
+    cm = None if col_match is None else np.array(col_match, dt)
+    if rm is not None and cm is None:
+        cm = np.full(n_cols, -1, dt)
+        rows = np.flatnonzero(rm >= 0)
+        cm[rm[rows]] = rows
+    elif cm is not None and rm is None:
+        rm = np.full(n_rows, -1, dt)
+        cols = np.flatnonzero(cm >= 0)
+        rm[cm[cols]] = cols
+    tr = None
+    if transpose is not None:
+        tr = (np.ascontiguousarray(transpose[0], dt), np.ascontiguousarray(transpose[1], dt))
+    rm, cm = matching_work(ptr, ind, n_cols, tr, rm, cm, dt)
+    return rm.astype(np.int64), cm.astype(np.int64)
 
 
 @njit(cache=True, nogil=True)
@@ -419,8 +659,8 @@ def extend_matching(
         Row matched to each extra column, ``-1`` if free.
 
     inplace : bool, default False
-        Complete the given int64 arrays in place instead of copies (saves memory when
-        the caller owns them).
+        Complete the given arrays (all of one integer type) in place instead of int64
+        copies (saves memory when the caller owns them).
 
     Returns
     -------
@@ -437,10 +677,12 @@ def extend_matching(
         cm = np.array(col_match, np.int64)
         xm = np.array(extra_match, np.int64)
     if xm.size and np.any(xm == -1):
-        _extend(np.ascontiguousarray(transpose[0], np.int64),
-                np.ascontiguousarray(transpose[1], np.int64), np.int64(n_cols), rm, cm,
-                np.ascontiguousarray(extra[0], np.int64),
-                np.ascontiguousarray(extra[1], np.int64), xm)
+        # every array in the type of the matching (int32 work arrays stay int32)
+        dt = rm.dtype
+        _extend(np.ascontiguousarray(transpose[0], dt),
+                np.ascontiguousarray(transpose[1], dt), dt.type(n_cols), rm, cm,
+                np.ascontiguousarray(extra[0], dt),
+                np.ascontiguousarray(extra[1], dt), xm)
     return rm, cm, xm
 
 
