@@ -6,7 +6,16 @@ import numpy as np
 from numba import njit
 
 __all__ = ["strongly_connected_components", "condensation_sources", "reachable_from",
-           "label_reach"]
+           "label_reach", "induced_subgraph"]
+
+
+def _index(a: np.ndarray) -> np.ndarray:
+    """Contiguous integer index array: int32 and int64 pass as they are (the kernels are
+    compiled for both), anything else becomes int64."""
+    a = np.asarray(a)
+    if a.dtype == np.int32 or a.dtype == np.int64:
+        return np.ascontiguousarray(a)
+    return np.ascontiguousarray(a, np.int64)
 
 
 @njit(cache=True, nogil=True)
@@ -101,8 +110,7 @@ def strongly_connected_components(indptr: np.ndarray, indices: np.ndarray,
     if n == 0:
         return 0, np.zeros(0, np.int64)
     m = np.ones(n, np.bool_) if mask is None else np.ascontiguousarray(mask, np.bool_)
-    k, labels = _tarjan(np.ascontiguousarray(indptr, np.int64),
-                        np.ascontiguousarray(indices, np.int64), m)
+    k, labels = _tarjan(_index(indptr), _index(indices), m)
     return int(k), labels
 
 
@@ -132,8 +140,7 @@ def condensation_sources(in_indptr: np.ndarray, in_indices: np.ndarray, labels: 
     """
     if n_components == 0:
         return np.zeros(0, bool)
-    return _sources(np.ascontiguousarray(in_indptr, np.int64),
-                    np.ascontiguousarray(in_indices, np.int64),
+    return _sources(_index(in_indptr), _index(in_indices),
                     np.ascontiguousarray(labels, np.int64), np.int64(n_components))
 
 
@@ -144,14 +151,36 @@ def reachable_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.
     are the successors of ``u``. Linear time (one :func:`label_reach` with one label).
     """
     n = out_indptr.size - 1
-    src = np.ascontiguousarray(sources, dtype=np.int64)
+    src = _index(sources)
     if n == 0 or src.size == 0:
         return np.zeros(n, dtype=np.bool_)
-    labels = np.full(n, -1, np.int32)  # int32 work array: this runs on every analysis
-    _label_bfs(np.ascontiguousarray(out_indptr, np.int64),
-               np.ascontiguousarray(out_indices, np.int64), src,
-               np.zeros(src.size, np.int32), np.ones(n, np.bool_), labels)
-    return labels >= 0
+    seen = np.zeros(n, np.bool_)
+    _reach_bfs(_index(out_indptr), _index(out_indices), src, seen)
+    return seen
+
+
+@njit(cache=True, nogil=True)
+def _reach_bfs(indptr, indices, seeds, seen):  # pragma: no cover - compiled
+    """Breadth-first search marking ``seen``; one byte per vertex plus an int32 queue."""
+    n = indptr.size - 1
+    queue = np.empty(n, np.int32)  # vertex ids fit in int32 (n < 2**31)
+    tail = 0
+    for k in range(seeds.size):
+        s = seeds[k]
+        if not seen[s]:
+            seen[s] = True
+            queue[tail] = s
+            tail += 1
+    head = 0
+    while head < tail:
+        u = queue[head]
+        head += 1
+        for e in range(indptr[u], indptr[u + 1]):
+            v = indices[e]
+            if not seen[v]:
+                seen[v] = True
+                queue[tail] = v
+                tail += 1
 
 
 @njit(cache=True, nogil=True)
@@ -190,8 +219,42 @@ def label_reach(out_indptr: np.ndarray, out_indices: np.ndarray, seeds: np.ndarr
     labels = np.full(n, -1, np.int64)
     if n == 0 or np.asarray(seeds).size == 0:
         return labels
-    return _label_bfs(np.ascontiguousarray(out_indptr, np.int64),
-                      np.ascontiguousarray(out_indices, np.int64),
+    return _label_bfs(_index(out_indptr), _index(out_indices),
                       np.ascontiguousarray(seeds, np.int64),
                       np.ascontiguousarray(seed_labels, np.int64),
                       np.ascontiguousarray(allowed, np.bool_), labels)
+
+
+@njit(cache=True, nogil=True)
+def _induced(indptr, indices, vertices, local):  # pragma: no cover - compiled
+    n_sub = vertices.size
+    ptr = np.zeros(n_sub + 1, np.int64)
+    for i in range(n_sub):
+        v = vertices[i]
+        cnt = 0
+        for e in range(indptr[v], indptr[v + 1]):
+            if local[indices[e]] >= 0:
+                cnt += 1
+        ptr[i + 1] = ptr[i] + cnt
+    ind = np.empty(ptr[n_sub], np.int64)
+    for i in range(n_sub):
+        v = vertices[i]
+        k = ptr[i]
+        for e in range(indptr[v], indptr[v + 1]):
+            w = local[indices[e]]
+            if w >= 0:
+                ind[k] = w
+                k += 1
+    return ptr, ind
+
+
+def induced_subgraph(indptr: np.ndarray, indices: np.ndarray,
+                     vertices: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """CSR index arrays (int64) of the subgraph induced by ``vertices`` (sorted, distinct),
+    renumbered ``0..len(vertices)-1`` in their order. Linear in the links of those
+    vertices plus one int32 array over all vertices."""
+    n = np.asarray(indptr).size - 1
+    verts = np.ascontiguousarray(vertices, np.int64)
+    local = np.full(n, -1, np.int32)
+    local[verts] = np.arange(verts.size, dtype=np.int32)
+    return _induced(_index(indptr), _index(indices), verts, local)

@@ -6,6 +6,7 @@ public analyses attach names at their result boundary.
 
 from __future__ import annotations
 
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 
 import numpy as np
@@ -13,13 +14,20 @@ import scipy.sparse as sp
 
 from netctl.graph.components import (
     condensation_sources,
+    induced_subgraph,
     reachable_from,
     strongly_connected_components,
 )
-from netctl.graph.matching import extend_matching, maximum_matching, transpose_csr
+from netctl.graph.matching import (
+    extend_matching,
+    index_dtype,
+    matching_work,
+    transpose_csr,
+    transpose_index,
+)
 
 __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
-           "unreached_sources", "accessible_states"]
+           "unreached_sources", "accessible_states", "union_sorted"]
 
 
 def stack_AB(A: sp.csr_array, B: sp.csr_array) -> tuple[np.ndarray, np.ndarray, int]:
@@ -77,9 +85,13 @@ class Completion:
     row_match: np.ndarray
 
 
-def unreached_sources(A: sp.csr_array, out: tuple[np.ndarray, np.ndarray],
+def unreached_sources(A: sp.csr_array | tuple[np.ndarray, np.ndarray],
+                      out: tuple[np.ndarray, np.ndarray],
                       driven: np.ndarray) -> tuple[int, np.ndarray, np.ndarray]:
     """Source components of ``A`` that no driven state reaches, without a full SCC pass.
+
+    ``A`` is the state matrix or its CSR index arrays ``(indptr, indices)``; ``out`` the
+    out-adjacency (its transpose).
 
     Returns ``(n_trivial, comp_ptr, members)``: ``n_trivial`` undriven states with no
     in-link at all (each its own source component, always unmatched), and the other
@@ -92,30 +104,38 @@ def unreached_sources(A: sp.csr_array, out: tuple[np.ndarray, np.ndarray],
     source components are sources of ``A``. Strongly connected components are computed
     on ``W`` only, which is empty or small in most sparse networks.
     """
-    n = A.shape[0]
-    empty_rows = np.diff(A.indptr) == 0
+    indptr, indices = (A.indptr, A.indices) if sp.issparse(A) else A  # type: ignore[union-attr]
+    n = indptr.size - 1
+    empty_rows = indptr[1:] == indptr[:-1]
     is_driven = np.zeros(n, bool)
     is_driven[driven] = True
     trivial = np.flatnonzero(empty_rows & ~is_driven)
-    seeds = np.concatenate([trivial, np.flatnonzero(is_driven)]).astype(np.int64)
-    reach = reachable_from(out[0], out[1], seeds)
+    is_driven |= empty_rows
+    reach = reachable_from(out[0], out[1], np.flatnonzero(is_driven))
+    del is_driven, empty_rows
     W = np.flatnonzero(~reach)
     if W.size == 0:
         return int(trivial.size), np.zeros(1, np.int64), np.zeros(0, np.int64)
-    indptr = np.ascontiguousarray(A.indptr, np.int64)
-    indices = np.ascontiguousarray(A.indices, np.int64)
-    k, labels = strongly_connected_components(indptr, indices, mask=~reach)
-    src = condensation_sources(indptr, indices, labels, k)
+    del reach
+    # components of the subgraph induced by W (W has no in-link from outside it)
+    w_ptr, w_ind = induced_subgraph(indptr, indices, W)
+    k, labels = strongly_connected_components(w_ptr, w_ind)
+    src = condensation_sources(w_ptr, w_ind, labels, k)
     src_ids = np.flatnonzero(src)  # labels are in order of smallest member
     slot = np.full(k, -1, np.int64)
     slot[src_ids] = np.arange(src_ids.size)
-    lab_w = labels[W]
-    local = np.flatnonzero(slot[lab_w] >= 0)
-    order = np.argsort(slot[lab_w[local]], kind="stable")
+    local = np.flatnonzero(slot[labels] >= 0)
+    order = np.argsort(slot[labels[local]], kind="stable")
     members = W[local[order]].astype(np.int64)
     ptr = np.zeros(src_ids.size + 1, np.int64)
-    np.cumsum(np.bincount(slot[lab_w[local]], minlength=src_ids.size), out=ptr[1:])
+    np.cumsum(np.bincount(slot[labels[local]], minlength=src_ids.size), out=ptr[1:])
     return int(trivial.size), ptr, members
+
+
+# Above this many links the breadth-first search for unreached sources runs in a second
+# thread while the matching runs (both kernels release the GIL); below it, starting a
+# thread costs more than it saves (measured with benchmarks/bench_drivers.py).
+_THREAD_MIN_LINKS = 200_000
 
 
 def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
@@ -133,33 +153,54 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     hold an unmatched state start with their extra column matched to it (states with no
     in-link always do); only the others are searched for, so the usual case costs nothing
     beyond the first matching. The unreached source components come from
-    :func:`unreached_sources` (one breadth-first search, components only where needed).
+    :func:`unreached_sources` (one breadth-first search, components only where needed),
+    which on large systems runs in a second thread beside the matching.
 
     ``prefer`` (boolean per state, e.g. the node table's ``actuator`` column) decides the
     representative of a source component that still needs one: its smallest preferred
     state, else its smallest state. It does not change the count.
     """
     n = A.shape[0]
+    # index arrays int64 as the system stores them (no copies); every work array of one
+    # integer type, int32 unless the sizes need int64
+    ab_ptr, ab_ind, n_cols = stack_AB(A, B)
+    ab_ptr = np.ascontiguousarray(ab_ptr, np.int64)
+    ab_ind = np.ascontiguousarray(ab_ind, np.int64)
+    dt = index_dtype(n, n_cols, ab_ind.size)
+    if B.shape[1] == 0:
+        a_arrays = (ab_ptr, ab_ind)
+    else:
+        a_arrays = (np.ascontiguousarray(A.indptr, np.int64),
+                    np.ascontiguousarray(A.indices, np.int64))
+    transpose = transpose_index(ab_ptr, ab_ind, n_cols, dt)
     if st is not None:
         out = (st.out_indptr, st.out_indices)
+    elif B.shape[1] == 0:
+        out = transpose
     else:
-        out = transpose_csr(np.ascontiguousarray(A.indptr, np.int64),
-                            np.ascontiguousarray(A.indices, np.int64), np.int64(n))
-    indptr, indices, n_cols = stack_AB(A, B)
-    transpose = out if B.shape[1] == 0 else transpose_csr(indptr, indices, np.int64(n_cols))
-    row_match, col_match = maximum_matching(indptr, indices, n_cols, transpose=transpose)
+        out = transpose_index(a_arrays[0], a_arrays[1], n, dt)
+    driven = _rows_with_entries(B)
+    if ab_ind.size >= _THREAD_MIN_LINKS:
+        with ThreadPoolExecutor(max_workers=1) as pool:
+            job = pool.submit(unreached_sources, a_arrays, out, driven)
+            row_match, col_match = matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)
+            n_trivial, cptr, members = job.result()
+    else:
+        row_match, col_match = matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)
+        n_trivial, cptr, members = unreached_sources(a_arrays, out, driven)
+    del out
     matching_size = int(np.count_nonzero(row_match >= 0))
-    n_trivial, cptr, members = unreached_sources(A, out, _rows_with_entries(B))
     n_comp = cptr.size - 1
     comp_of = np.full(n, -1, np.int64)
     comp_of[members] = np.repeat(np.arange(n_comp, dtype=np.int64), np.diff(cptr))
     free_rows = np.flatnonzero(row_match < 0)
     # a component already holding a free row starts with its extra column matched to the
     # smallest such row (reversed assignment: the smallest index is written last)
-    x_match = np.full(n_comp, -1, np.int64)
+    x_match = np.full(n_comp, -1, dt)
     fr_comp = comp_of[free_rows]
     keep = fr_comp >= 0
     x_match[fr_comp[keep][::-1]] = free_rows[keep][::-1]
+    del comp_of, fr_comp, keep
     if np.any(x_match == -1):
         # row_match and col_match are ours (fresh from the matching): extend in place;
         # rows matched to an extra column are then marked unmatched again
@@ -167,6 +208,7 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
         extend_matching(transpose, n_cols, row_match, col_match, (cptr, members), x_match,
                         inplace=True)
         row_match[row_match >= n_cols] = -1
+    del transpose, col_match
     unmatched = np.flatnonzero(row_match < 0)
     missed = np.flatnonzero(x_match == -1)
     reps = np.empty(missed.size, np.int64)
@@ -177,12 +219,31 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
             group = group[pref[group]]
         reps[j] = group[0]
     reps = np.sort(reps)
-    states = np.union1d(unmatched, reps).astype(np.int64)
+    states = union_sorted(unmatched, reps, n)
     n_unreached = n_trivial + n_comp
     return Completion(states=states, unmatched=unmatched.astype(np.int64),
                       representatives=reps, matching_size=matching_size,
                       n_unreached_sources=n_unreached,
-                      n_sources_hit=n_unreached - int(missed.size), row_match=row_match)
+                      n_sources_hit=n_unreached - int(missed.size),
+                      row_match=row_match.astype(np.int64, copy=False))
+
+
+def union_sorted(a: np.ndarray, b: np.ndarray, n: int) -> np.ndarray:
+    """Sorted union (int64) of two sorted arrays of distinct indices below ``n``.
+
+    A mask of ``n`` bytes instead of :func:`numpy.union1d`'s sort, which is the slower
+    choice once the arrays hold a sizeable fraction of ``n``.
+    """
+    if b.size == 0:
+        return np.asarray(a, np.int64)
+    if a.size == 0:
+        return np.unique(np.asarray(b, np.int64))
+    if a.size + b.size < n // 64:
+        return np.union1d(a, b).astype(np.int64)
+    mask = np.zeros(n, bool)
+    mask[a] = True
+    mask[b] = True
+    return np.flatnonzero(mask)
 
 
 def accessible_states(st: Structure, B: sp.csr_array) -> np.ndarray:
@@ -193,4 +254,6 @@ def accessible_states(st: Structure, B: sp.csr_array) -> np.ndarray:
 
 def _rows_with_entries(M: sp.csr_array) -> np.ndarray:
     """Indices of the rows of a CSR matrix that hold at least one entry."""
+    if M.nnz == 0:
+        return np.zeros(0, np.int64)
     return np.flatnonzero(np.diff(M.indptr)).astype(np.int64)
