@@ -7,6 +7,8 @@ state v", i.e. ``A[v, u] != 0``; ``B[i, k] != 0`` means input k acts on state i;
 
 from __future__ import annotations
 
+import functools
+
 import math
 import warnings
 from collections.abc import Iterable, Mapping, Sequence
@@ -35,6 +37,8 @@ def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> sp.csr_arra
     shared = _share_canonical(matrix, shape)
     if shared is not None:
         return shared
+    if sp.issparse(matrix) and matrix.nnz == 0 and matrix.shape == shape:
+        return _empty_csr(shape)
     if sp.issparse(matrix):
         m = sp.csr_array(matrix, dtype=np.float64, copy=True)
     else:
@@ -76,6 +80,20 @@ def _share_canonical(matrix: Any, shape: tuple[int, int]) -> sp.csr_array | None
     m.data, m.indices, m.indptr = matrix.data.view(), matrix.indices.view(), matrix.indptr.view()
     m.has_canonical_format = True
     return m
+
+
+@functools.lru_cache(maxsize=32)
+def _empty_csr(shape: tuple[int, int]) -> sp.csr_array:
+    """A canonical CSR array without entries, frozen and shared between systems of the
+    same sizes (read-only, so sharing is safe). Its pointer array comes from
+    ``np.zeros``, whose pages the operating system maps lazily: an empty ``B`` of a
+    10^7-state system costs no memory until something writes to it (nothing can)."""
+    m = sp.csr_array(shape, dtype=np.float64)
+    m.data = np.zeros(0, np.float64)
+    m.indices = np.zeros(0, np.int64)
+    m.indptr = np.zeros(shape[0] + 1, np.int64)
+    m.has_canonical_format = True
+    return _freeze(m)
 
 
 class NameList(Sequence[str]):
@@ -243,8 +261,8 @@ class StructuredSystem:
             self.B.shape[1] if hasattr(self.B, "shape") else np.asarray(self.B).shape[1])
         p = len(self.output_names) if self.C is None else (
             self.C.shape[0] if hasattr(self.C, "shape") else np.asarray(self.C).shape[0])
-        B = canonical_csr(sp.csr_array((n, m)) if self.B is None else self.B, (n, m), "B")
-        C = canonical_csr(sp.csr_array((p, n)) if self.C is None else self.C, (p, n), "C")
+        B = _empty_csr((n, m)) if self.B is None else canonical_csr(self.B, (n, m), "B")
+        C = _empty_csr((p, n)) if self.C is None else canonical_csr(self.C, (p, n), "C")
         states = _names(self.state_names if len(self.state_names) else None, n, "x",
                         "state names")
         inputs = _names(self.input_names if len(self.input_names) else None, m, "u",
