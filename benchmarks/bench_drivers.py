@@ -92,7 +92,7 @@ def _rss_bytes() -> int:
     return 0
 
 
-def _best_of(fn, budget: float = 1.0, max_reps: int = 5) -> tuple[float, object]:
+def _best_of(fn, budget: float = 1.0, max_reps: int = 20) -> tuple[float, object]:
     """Minimum wall time over repeats (until ``budget`` seconds are spent); small graphs
     are timed several times so that scheduler noise does not decide a ratio."""
     best = float("inf")
