@@ -459,17 +459,26 @@ def _pothen_fan(indptr, indices, row_match, col_match, visited,
         phase += 1
 
 
+def _prefetch_pays(indptr: np.ndarray, indices: np.ndarray, tptr: np.ndarray,
+                   tind: np.ndarray, row_match: np.ndarray) -> bool:
+    """Whether the kernel arrays outgrow the caches (module constant read at call time,
+    so tests can force either path)."""
+    n_rows, n_cols = indptr.size - 1, tptr.size - 1
+    footprint = (indptr.itemsize * n_rows + indices.itemsize * indices.size
+                 + tptr.itemsize * n_cols + tind.itemsize * tind.size
+                 + 2 * row_match.itemsize * (n_rows + n_cols))
+    return bool(footprint > _PREFETCH_BYTES)
+
+
 @njit(cache=True, nogil=True)
-def _matching_kernel(indptr, indices, tptr, tind, row_match, col_match, fresh):  # pragma: no cover
+def _matching_kernel(indptr, indices, tptr, tind, row_match, col_match, fresh,
+                     prefetch):  # pragma: no cover - compiled
     n_cols = tptr.size - 1
     n_rows = indptr.size - 1
     visited = np.empty(n_cols, np.int32)
     core_row = np.empty(n_rows, np.bool_)
-    footprint = (indptr.itemsize * n_rows + indices.itemsize * indices.size
-                 + tptr.itemsize * n_cols + tind.itemsize * tind.size
-                 + 2 * row_match.itemsize * (n_rows + n_cols))
     if _karp_sipser(indptr, indices, tptr, tind, row_match, col_match, fresh, visited,
-                    core_row, footprint > _PREFETCH_BYTES):
+                    core_row, prefetch):
         _pothen_fan(indptr, indices, row_match, col_match, visited, core_row)
 
 
@@ -498,7 +507,8 @@ def matching_work(
     if n_rows and n_cols and indices.size:
         if transpose is None:
             transpose = transpose_index(indptr, indices, int(n_cols), dt)
-        _matching_kernel(indptr, indices, transpose[0], transpose[1], rm, cm, fresh)
+        _matching_kernel(indptr, indices, transpose[0], transpose[1], rm, cm, fresh,
+                         _prefetch_pays(indptr, indices, transpose[0], transpose[1], rm))
     return rm, cm
 
 

@@ -188,3 +188,76 @@ def test_masked_scc_equals_networkx_on_induced_subgraph():
         nx_sources = {frozenset(cond.nodes[c]["members"]) for c in cond if cond.in_degree(c) == 0}
         ours = {frozenset(np.flatnonzero(labels == c).tolist()) for c in np.flatnonzero(src)}
         assert ours == nx_sources
+
+
+def _heavy_tailed_csr(rng, n, mean_deg, gamma=2.5):
+    """Chung-Lu style bipartite graph: endpoint probabilities ~ i^(-1/(gamma-1))."""
+    nnz = rng.poisson(mean_deg * n)
+    w = np.arange(1, n + 1, dtype=float) ** (-1.0 / (gamma - 1.0))
+    cdf = np.cumsum(w) / w.sum()
+    r = np.minimum(np.searchsorted(cdf, rng.random(nnz)), n - 1)
+    c = rng.permutation(n)[np.minimum(np.searchsorted(cdf, rng.random(nnz)), n - 1)]
+    m = sp.csr_array((np.ones(nnz), (r, c)), shape=(n, n))
+    m.sum_duplicates()
+    m.sort_indices()
+    return m
+
+
+@pytest.mark.parametrize("prefetch_bytes", [0, 2**62], ids=["prefetch-walks", "no-walks"])
+def test_both_kernel_paths_give_maximum_matchings(monkeypatch, prefetch_bytes):
+    """The prefetch walks (used above a size threshold) only load data; the matching
+    must be a valid maximum matching with them forced on and forced off. Sizes against
+    scipy (Hopcroft-Karp) and igraph. Mean degrees below, at and above e, where the
+    Karp-Sipser degree-one phase alone is or is not exact (Karp & Sipser 1981)."""
+    from netctl.graph import matching
+
+    monkeypatch.setattr(matching, "_PREFETCH_BYTES", prefetch_bytes)
+    rng = np.random.default_rng(11)
+    graphs = [_random_csr(rng, 3000, 3000, d) for d in (1.0, 2.0, 2.72, 3.0, 4.0, 6.0)]
+    graphs += [_random_csr(rng, 2500, 3100, 3.0), _random_csr(rng, 3100, 2500, 3.0)]
+    graphs += [_heavy_tailed_csr(rng, 3000, 3.0), _heavy_tailed_csr(rng, 3000, 6.0)]
+    # a perfect matching hidden under noise (every row matched in the maximum)
+    perm = sp.csr_array((np.ones(3000), (np.arange(3000), rng.permutation(3000))),
+                        shape=(3000, 3000))
+    graphs.append(((perm + _random_csr(rng, 3000, 3000, 2.0)) > 0).astype(float).tocsr())
+    for m in graphs:
+        m.sort_indices()
+        rm, cm = maximum_matching(m.indptr, m.indices, m.shape[1])
+        assert is_valid_matching(m.indptr, m.indices, rm, cm)
+        size = int((rm >= 0).sum())
+        assert size == _scipy_size(m)
+        assert size == _igraph_size(m)
+
+
+@pytest.mark.parametrize("prefetch_bytes", [0, 2**62], ids=["prefetch-walks", "no-walks"])
+def test_repeated_entries_and_warm_starts_on_both_paths(monkeypatch, prefetch_bytes):
+    """Rows listing a column twice (non-canonical input) and a greedy start matching:
+    still a maximum matching (size against scipy on the merged pattern), start pairs
+    kept matched."""
+    from netctl.graph import matching
+
+    monkeypatch.setattr(matching, "_PREFETCH_BYTES", prefetch_bytes)
+    rng = np.random.default_rng(12)
+    for trial in range(6):
+        m = _random_csr(rng, 1500, 1500, float(rng.uniform(1.0, 5.0)))
+        # repeat every third entry of each row in place
+        rows = np.repeat(np.arange(1500), np.diff(m.indptr))
+        rep = np.ones(m.indices.size, np.int64)
+        rep[::3] = 2
+        indices = np.repeat(m.indices, rep)
+        per_row = np.bincount(rows, weights=rep, minlength=1500).astype(np.int64)
+        indptr = np.concatenate([[0], np.cumsum(per_row)])
+        rm, cm = maximum_matching(indptr, indices, 1500)
+        assert is_valid_matching(indptr, indices, rm, cm)
+        assert int((rm >= 0).sum()) == _scipy_size(m)
+        rm0 = np.full(1500, -1, np.int64)
+        cm0 = np.full(1500, -1, np.int64)
+        for r in range(trial, 1500, 4):
+            for c in m.indices[m.indptr[r]:m.indptr[r + 1]]:
+                if cm0[c] == -1:
+                    rm0[r], cm0[c] = c, r
+                    break
+        rm, cm = maximum_matching(m.indptr, m.indices, 1500, row_match=rm0, col_match=cm0)
+        assert is_valid_matching(m.indptr, m.indices, rm, cm)
+        assert np.all(rm[rm0 >= 0] >= 0) and np.all(cm[cm0 >= 0] >= 0)
+        assert int((rm >= 0).sum()) == _scipy_size(m)

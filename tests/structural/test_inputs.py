@@ -177,3 +177,55 @@ def test_representatives_prefer_eligible_states():
     assert d.n_inputs == minimum_inputs(s._replace(nodes={})).n_inputs
     assert all(name.endswith(":vel") for name in d.driver_names)
     assert controllability(d.apply(s)).controllable
+
+
+@pytest.mark.parametrize("thread_min_links", [0, 10**12], ids=["two-threads", "one-thread"])
+def test_design_on_both_engine_paths(monkeypatch, thread_min_links):
+    """Large systems search for unreached sources in a second thread beside the matching.
+    Either way: the dedicated count equals brute force on small graphs; on larger sparse
+    graphs the shared count is max(n - |M|, 1) with |M| from scipy's maximum matching,
+    the dedicated driver set passes Lin's two conditions checked independently (scipy
+    matching of [A B], networkx reachability; Lin 1974), and it is no smaller than the
+    lower bounds n - |M| and the number of source components (networkx condensation)."""
+    import networkx as nx
+    import scipy.sparse as sp
+    from scipy.sparse.csgraph import maximum_bipartite_matching
+
+    from netctl.structural import _engine
+
+    monkeypatch.setattr(_engine, "_THREAD_MIN_LINKS", thread_min_links)
+    rng = np.random.default_rng(31)
+    ref_rng = np.random.default_rng(32)
+    for _ in range(40):
+        n = int(rng.integers(1, 7))
+        edges = random_pattern(rng, n, float(rng.uniform(0.05, 0.5)), loops=bool(rng.random() < 0.3))
+        A = ref.pattern_from_edges(edges, n)
+        d = minimum_inputs(StructuredSystem.from_matrices(A, weighted=False), dedicated=True)
+        assert d.n_inputs == ref.brute_force_min_dedicated(A, ref_rng)
+
+    def scipy_size(M):
+        M = sp.csr_matrix(M)
+        return 0 if M.nnz == 0 else int((maximum_bipartite_matching(M, perm_type="column") >= 0).sum())
+
+    for trial in range(12):
+        n = int(rng.integers(200, 3000))
+        k = rng.poisson(float(rng.uniform(0.5, 4.0)) * n)
+        code = np.unique(rng.integers(0, n, k) * n + rng.integers(0, n, k))
+        src, dst = code // n, code % n
+        s = StructuredSystem.from_edges(src, dst, n)
+        g = nx.DiGraph()
+        g.add_nodes_from(range(n))
+        g.add_edges_from(zip(src.tolist(), dst.tolist()))
+        size = scipy_size(s.A)
+        assert minimum_inputs(s).n_inputs == max(n - size, 1)
+        d = minimum_inputs(s, dedicated=True)
+        B = sp.csr_array((np.ones(d.drivers.size), (d.drivers, np.arange(d.drivers.size))),
+                         shape=(n, d.drivers.size))
+        assert scipy_size(sp.hstack([s.A, B])) == n  # no dilation
+        reach = set(d.drivers.tolist())
+        for v in d.drivers.tolist():
+            reach |= nx.descendants(g, v)
+        assert len(reach) == n  # every state accessible
+        cond = nx.condensation(g)
+        n_sources = sum(1 for c in cond.nodes if cond.in_degree(c) == 0)
+        assert d.n_inputs >= max(n - size, n_sources), trial
