@@ -330,18 +330,22 @@ class _Scan:
         """Double whichever of the name table and buffers is short of room."""
         st = self.st
         nn, used = int(st[6]), int(st[7])
-        if self.name_pos.shape[0] < nn + 2:
-            pos = np.zeros((2 * self.name_pos.shape[0], 2), np.int64)
+        room = nn + 2 * _k.STR_BATCH + 2  # a fast-path batch may add two names a line
+        if self.name_pos.shape[0] < room:
+            pos = np.zeros((max(2 * self.name_pos.shape[0], room), 2), np.int64)
             pos[:nn] = self.name_pos[:nn]
             line = np.zeros(pos.shape[0], np.int64)
             line[:nn] = self.name_line[:nn]
             self.name_pos, self.name_line = pos, line
-        if self.names_buf.size < used + self.chunk_len:
-            buf = np.zeros(max(2 * self.names_buf.size, used + self.chunk_len + 1), np.uint8)
+        if self.names_buf.size < used + self.chunk_len + 2:  # names + their line breaks
+            buf = np.zeros(max(2 * self.names_buf.size, used + self.chunk_len + 2), np.uint8)
             buf[:used] = self.names_buf[:used]
             self.names_buf = buf
-        if self.table.shape[0] < 2 * (nn + 2):
-            self.table = np.full((2 * self.table.shape[0], 3), -1, np.int64)
+        if self.table.shape[0] < 2 * room:
+            size = 2 * self.table.shape[0]
+            while size < 2 * room:
+                size *= 2
+            self.table = np.full((size, 3), -1, np.int64)
             _k.rehash(self.table, self.names_buf, self.name_pos, nn)
 
     def _error(self, chunk: bytes, st: np.ndarray) -> None:
@@ -410,22 +414,22 @@ class _Scan:
         return EdgeArrays(src, dst, w, names, n_lines, int(self.st[9]))
 
     def _decode_names(self) -> tuple[str, ...]:
+        """The names in id order: the buffer holds each name followed by a line break, so
+        one decode and one split make them all."""
         nn, used = int(self.st[6]), int(self.st[7])
         raw = self.names_buf[:used].tobytes()
-        starts = self.name_pos[:nn, 0].tolist()
-        lens = self.name_pos[:nn, 1].tolist()
-        if not raw.isascii():
-            out = []
-            for i, (a, n) in enumerate(zip(starts, lens)):
-                try:
-                    out.append(raw[a:a + n].decode("utf-8"))
-                except UnicodeDecodeError:
-                    raise file_error(self.path, int(self.name_line[i]), f"the name "
-                                     f"{raw[a:a + n]!r} is not UTF-8 text. Save the file as "
-                                     "UTF-8 (or plain ASCII).") from None
-            return tuple(out)
-        text = raw.decode("ascii")
-        return tuple(text[a:a + n] for a, n in zip(starts, lens))
+        try:
+            text = raw.decode("ascii") if raw.isascii() else raw.decode("utf-8")
+        except UnicodeDecodeError as exc:
+            starts = self.name_pos[:nn, 0]
+            i = int(np.searchsorted(starts, exc.start, side="right")) - 1
+            a, n = int(starts[i]), int(self.name_pos[i, 1])
+            raise file_error(self.path, int(self.name_line[i]), f"the name "
+                             f"{raw[a:a + n]!r} is not UTF-8 text. Save the file as "
+                             "UTF-8 (or plain ASCII).") from None
+        names = text.split("\n")
+        names.pop()  # after the last line break
+        return tuple(names)
 
 
 def _cat(parts: list[np.ndarray], dtype: type = np.int64) -> np.ndarray:

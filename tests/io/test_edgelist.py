@@ -352,3 +352,52 @@ def test_names_of_every_length_around_the_inline_key_sizes(tmp_path):
     e = read_edge_arrays(write(tmp_path, text), chunk_bytes=64)
     ref_names, ref_edges, _ = reference_parse(text)
     assert list(e.names) == ref_names and as_named(e) == ref_edges
+
+
+@pytest.mark.parametrize("chunk", [97, 4096, 1 << 20])
+def test_many_string_names_through_batches_and_table_growth(tmp_path, chunk):
+    """Thousands of names (the name table doubles many times, in the middle of the
+    batched fast path), short and long (> 16 bytes: the general path) names, comment
+    and single-name lines, weights (some only Python's float reads exactly), CRLF line
+    ends: same names, order of first appearance, links and weights as the reference
+    parser."""
+    rng = np.random.default_rng(17)
+    pool = [f"st{k}" for k in range(6000)] + [f"long-station-name-{k:05d}" for k in range(800)]
+    lines = ["source,target,weight"]
+    for i in range(20000):
+        u, v = rng.integers(0, len(pool), 2)
+        w = repr(float(rng.random())) if rng.random() < 0.1 else f"{rng.random():.4f}"
+        lines.append(f"{pool[u]},{pool[v]},{w}")
+        if i % 997 == 0:
+            lines.append("# a comment line")
+        if i % 1499 == 0:
+            lines.append(f"{pool[rng.integers(0, len(pool))]}")
+    text = "\r\n".join(lines) + "\r\n"
+    e = read_edge_arrays(write(tmp_path, text), chunk_bytes=chunk)
+    names, ref_edges, ref_w = reference_parse(text)
+    assert list(e.names) == names
+    assert as_named(e) == ref_edges
+    assert e.weights.tobytes() == np.array(ref_w, dtype=np.float64).tobytes()
+
+
+def test_name_buffer_growth_alone(tmp_path, monkeypatch):
+    """Start with a name table large enough for every name and a name buffer of a few
+    bytes, so that the buffer's own room check is the only thing that makes it grow."""
+    from netctl.io import edgelist
+
+    init = edgelist._Scan.__init__
+
+    def small_buffer(self, *args, **kwargs):
+        init(self, *args, **kwargs)
+        self.names_buf = np.zeros(8, np.uint8)
+        self.table = np.full((1 << 15, 3), -1, np.int64)
+        self.name_pos = np.zeros((1 << 14, 2), np.int64)
+        self.name_line = np.zeros(1 << 14, np.int64)
+
+    monkeypatch.setattr(edgelist._Scan, "__init__", small_buffer)
+    rng = np.random.default_rng(18)
+    text = "".join(f"node-{u:07d} node-{v:07d}\n" for u, v in rng.integers(0, 10**6, (3000, 2)))
+    for chunk in (256, 1 << 20):
+        e = read_edge_arrays(write(tmp_path, text), chunk_bytes=chunk)
+        names, ref_edges, _ = reference_parse(text)
+        assert list(e.names) == names and as_named(e) == ref_edges
