@@ -164,8 +164,20 @@ class NameList(Sequence[str]):
         return f"NameList([{head}{', ...' if self._n > 3 else ''}], n={self._n})"
 
 
+class DistinctNames(tuple):  # type: ignore[type-arg]
+    """A tuple of names that its maker has already checked: ``str``, distinct. Readers
+    that build names from a hash table or a factorization return one, so that a system
+    of 10^6 states does not check a million strings a second time."""
+
+    __slots__ = ()
+
+
 def _names(names: Sequence[object] | None, count: int, prefix: str, what: str
            ) -> tuple[str, ...] | NameList:
+    if type(names) is DistinctNames:
+        if len(names) != count:
+            raise InvalidSystemError(f"{what}: expected {count} names, found {len(names)}.")
+        return names
     if names is None:
         return NameList.prefixed(prefix, count) if count > 1000 else tuple(
             f"{prefix}{i}" for i in range(count))

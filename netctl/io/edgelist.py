@@ -31,7 +31,7 @@ import scipy.sparse as sp
 from netctl.errors import MissingFileError
 from netctl.io import _edgescan as _k
 from netctl.io._common import atomic_write, file_error
-from netctl.system import StructuredSystem
+from netctl.system import DistinctNames, StructuredSystem
 
 __all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
            "CHUNK_BYTES"]
@@ -411,7 +411,8 @@ class _Scan:
         if not names:
             raise file_error(self.path, None, "the file holds no links and no states. "
                              "Expected lines 'source target [weight]' (see docs/FORMATS.md).")
-        return EdgeArrays(src, dst, w, names, n_lines, int(self.st[9]))
+        # distinct str by construction (hash table or factorization of the values)
+        return EdgeArrays(src, dst, w, DistinctNames(names), n_lines, int(self.st[9]))
 
     def _decode_names(self) -> tuple[str, ...]:
         """The names in id order: the buffer holds each name followed by a line break, so
@@ -561,7 +562,10 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
                           f"{'were' if k > 1 else 'was'} left out{where}.", stacklevel=3)
     indptr, indices, data, n_dup, cancelled = _k.build_csr(
         dst, src, np.empty(0) if w is None else w, n, w is not None)
-    A = sp.csr_array((data, indices, indptr), shape=(n, n))
+    # the arrays as built (int64, canonical): no index-type round trip through scipy's
+    # constructor, and the system shares them instead of copying
+    A = sp.csr_array((n, n))
+    A.data, A.indices, A.indptr = data, indices, indptr
     A.has_sorted_indices = True
     A.has_canonical_format = True
     if n_dup:
