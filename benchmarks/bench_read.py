@@ -135,15 +135,21 @@ def main() -> None:
         f(tiny)
     print(f"# {platform.processor() or platform.machine()}, {os.cpu_count()} cpus, "
           f"{args.lines} lines, best of {args.repeat}")
-    print("Readers alternate within each round (the machine is shared and noisy); the "
-          "best wall time and the CPU time of that run are kept per reader.")
+    print("Readers alternate within each round, in an order rotated every round (the "
+          "machine is shared and noisy); the best wall time and the CPU time of that run "
+          "are kept per reader.")
     for kind, path in files.items():
         if kind not in args.kinds.split(","):
             continue
         size = os.path.getsize(path) / 1e6
         best = {name: (np.inf, np.inf) for name in rs}
-        for _ in range(args.repeat):
-            for name, f in rs.items():
+        names = list(rs)
+        for rnd in range(args.repeat):
+            # rotate the order each round: the first reader of a round finds the memory
+            # the previous round freed cold (page faults), which would otherwise always
+            # penalise the same reader
+            for name in names[rnd % len(names):] + names[:rnd % len(names)]:
+                f = rs[name]
                 gc.collect()
                 c0, t0 = time.process_time(), time.perf_counter()
                 r = f(path)
