@@ -154,33 +154,10 @@ def reachable_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.
     src = _index(sources)
     if n == 0 or src.size == 0:
         return np.zeros(n, dtype=np.bool_)
-    seen = np.zeros(n, np.bool_)
-    _reach_bfs(_index(out_indptr), _index(out_indices), src, seen)
-    return seen
-
-
-@njit(cache=True, nogil=True)
-def _reach_bfs(indptr, indices, seeds, seen):  # pragma: no cover - compiled
-    """Breadth-first search marking ``seen``; one byte per vertex plus an int32 queue."""
-    n = indptr.size - 1
-    queue = np.empty(n, np.int32)  # vertex ids fit in int32 (n < 2**31)
-    tail = 0
-    for k in range(seeds.size):
-        s = seeds[k]
-        if not seen[s]:
-            seen[s] = True
-            queue[tail] = s
-            tail += 1
-    head = 0
-    while head < tail:
-        u = queue[head]
-        head += 1
-        for e in range(indptr[u], indptr[u + 1]):
-            v = indices[e]
-            if not seen[v]:
-                seen[v] = True
-                queue[tail] = v
-                tail += 1
+    labels = np.full(n, -1, np.int8)  # one byte per vertex: this runs on every analysis
+    _label_bfs(_index(out_indptr), _index(out_indices), src, np.zeros(src.size, np.int8),
+               np.ones(n, np.bool_), labels)
+    return labels >= 0
 
 
 @njit(cache=True, nogil=True)

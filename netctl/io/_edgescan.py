@@ -146,7 +146,13 @@ def _fnv(buf: np.ndarray, s: int, e: int) -> np.uint64:
     h = _FNV_OFFSET
     for i in range(s, e):
         h = (h ^ np.uint64(buf[i])) * _FNV_PRIME
-    # final avalanche (MurmurHash3 fmix64) so the low bits used as the slot are well mixed
+    return _fmix(h)
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _fmix(h: np.uint64) -> np.uint64:
+    """MurmurHash3's fmix64 avalanche, so that the low bits used as the slot are well
+    mixed."""
     h ^= h >> np.uint64(33)
     h *= np.uint64(0xFF51AFD7ED558CCD)
     h ^= h >> np.uint64(33)
@@ -170,12 +176,7 @@ def _mix(k0: int, k1: int, ln: int) -> np.uint64:
     the fmix64 avalanche), far cheaper than a byte-wise hash."""
     h = (np.uint64(k0) * np.uint64(0x9E3779B97F4A7C15)) ^ (
         (np.uint64(k1) + np.uint64(ln)) * np.uint64(0xC2B2AE3D27D4EB4F))
-    h ^= h >> np.uint64(33)
-    h *= np.uint64(0xFF51AFD7ED558CCD)
-    h ^= h >> np.uint64(33)
-    h *= np.uint64(0xC4CEB9FE1A85EC53)
-    h ^= h >> np.uint64(33)
-    return h
+    return _fmix(h)
 
 
 @njit(cache=True, nogil=True, inline="always")
@@ -203,41 +204,52 @@ def _lookup(buf: np.ndarray, s: int, e: int, line: int, table: np.ndarray,
 
 
 @njit(cache=True, nogil=True, inline="always")
+def _insert(buf: np.ndarray, s: int, e: int, k0: int, k1: int, slot: int, line: int,
+            table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
+            name_line: np.ndarray, st: np.ndarray) -> int:
+    """Give the name ``buf[s:e]`` the next id in the empty table ``slot``. The name is
+    appended to ``names_buf`` followed by a line break (names never hold one), so the
+    whole buffer decodes and splits in one step."""
+    ln = e - s
+    nid = st[_NN]
+    used = st[_NUSED]
+    for k in range(ln):
+        names_buf[used + k] = buf[s + k]
+    names_buf[used + ln] = 10
+    name_pos[nid, 0] = used
+    name_pos[nid, 1] = ln
+    name_line[nid] = line
+    st[_NUSED] = used + ln + 1
+    st[_NN] = nid + 1
+    table[slot, 0] = (np.int64(ln) << 40) | nid
+    table[slot, 1] = k0
+    table[slot, 2] = k1
+    return nid
+
+
+@njit(cache=True, nogil=True, inline="always")
 def _lookup_k(buf: np.ndarray, s: int, e: int, h: np.uint64, k0: int, k1: int, line: int,
               table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
               name_line: np.ndarray, st: np.ndarray) -> int:
     """:func:`_lookup` with the name's hash and keys (:func:`_name_key`) at hand.
 
     A table slot holds ``(length << 40 | id, key0, key1)`` (``id = -1``: empty), so names
-    of at most 16 bytes are found with one memory access; longer names are confirmed
-    against the stored bytes. New names are appended to ``names_buf`` followed by a line
-    break (names never hold one), so the whole buffer decodes and splits in one step.
+    of at most 16 bytes are found with one memory access (:func:`_lookup_short`); longer
+    names are confirmed against the stored bytes.
     """
     ln = e - s
-    tag = np.int64(ln) << 40
+    if ln <= 16:
+        return _lookup_short(buf, s, e, h, k0, k1, line, table, names_buf, name_pos,
+                             name_line, st)
     mask = np.int64(table.shape[0] - 1)
     slot = np.int64(h & np.uint64(mask))
     while True:
         head = table[slot, 0]
         if head < 0:
-            nid = st[_NN]
-            used = st[_NUSED]
-            for k in range(ln):
-                names_buf[used + k] = buf[s + k]
-            names_buf[used + ln] = 10
-            name_pos[nid, 0] = used
-            name_pos[nid, 1] = ln
-            name_line[nid] = line
-            st[_NUSED] = used + ln + 1
-            st[_NN] = nid + 1
-            table[slot, 0] = tag | nid
-            table[slot, 1] = k0
-            table[slot, 2] = k1
-            return nid
+            return _insert(buf, s, e, k0, k1, slot, line, table, names_buf, name_pos,
+                           name_line, st)
         if table[slot, 1] == k0 and table[slot, 2] == k1 and (head >> 40) == ln:
             idx = head & 0xFFFFFFFFFF
-            if ln <= 16:
-                return idx
             ns = name_pos[idx, 0]
             same = True
             for k in range(ln):
@@ -262,20 +274,8 @@ def _lookup_short(buf: np.ndarray, s: int, e: int, h: np.uint64, k0: int, k1: in
     while True:
         head = table[slot, 0]
         if head < 0:
-            nid = st[_NN]
-            used = st[_NUSED]
-            for k in range(ln):
-                names_buf[used + k] = buf[s + k]
-            names_buf[used + ln] = 10
-            name_pos[nid, 0] = used
-            name_pos[nid, 1] = ln
-            name_line[nid] = line
-            st[_NUSED] = used + ln + 1
-            st[_NN] = nid + 1
-            table[slot, 0] = (np.int64(ln) << 40) | nid
-            table[slot, 1] = k0
-            table[slot, 2] = k1
-            return nid
+            return _insert(buf, s, e, k0, k1, slot, line, table, names_buf, name_pos,
+                           name_line, st)
         if table[slot, 1] == k0 and table[slot, 2] == k1 and (head >> 40) == ln:
             return head & 0xFFFFFFFFFF
         slot = (slot + 1) & mask
@@ -358,6 +358,31 @@ def _fast_int(buf: np.ndarray, q: int, n: int) -> tuple[bool, int, int]:
     return True, -v if neg else v, q
 
 
+@njit(cache=True, nogil=True, inline="always")
+def _line_tail(buf: np.ndarray, q: int, n: int) -> tuple[int, int, bool, float]:
+    """The rest of a fast-path line after its second name: separators, an optional
+    weight, separators, an optional comment. Returns ``(q, n_fields, ok, weight)`` with
+    ``q`` at the line break (or the end, or where reading stopped); ``ok`` is False when
+    the weight needs the general path."""
+    while q < n and _CLASS[buf[q]] == 1:
+        q += 1
+    nf = 2
+    x = 0.0
+    ok = True
+    if q < n and _CLASS[buf[q]] == 0:
+        ws = q
+        while q < n and _CLASS[buf[q]] == 0:
+            q += 1
+        ok, x = _parse_float(buf, ws, q)
+        nf = 3
+        while q < n and _CLASS[buf[q]] == 1:
+            q += 1
+    if ok and q < n and buf[q] == 35:
+        while q < n and buf[q] != 10:
+            q += 1
+    return q, nf, ok, x
+
+
 @njit(cache=True, nogil=True)
 def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                src: np.ndarray, dst: np.ndarray, w: np.ndarray, iso: np.ndarray,
@@ -402,21 +427,7 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                     q += 1
                 ok, b, q = _fast_int(buf, q, n)
                 if ok:
-                    while q < n and _CLASS[buf[q]] == 1:
-                        q += 1
-                    nf = 2
-                    x = 0.0
-                    if q < n and _CLASS[buf[q]] == 0:
-                        ws = q
-                        while q < n and _CLASS[buf[q]] == 0:
-                            q += 1
-                        ok, x = _parse_float(buf, ws, q)
-                        nf = 3
-                        while q < n and _CLASS[buf[q]] == 1:
-                            q += 1
-                    if ok and q < n and buf[q] == 35:
-                        while q < n and buf[q] != 10:
-                            q += 1
+                    q, nf, ok, x = _line_tail(buf, q, n)
                     if ok and (q >= n or buf[q] == 10) and (ncols == 0 or ncols == nf):
                         ncols = nf
                         src[ne] = a
@@ -459,22 +470,7 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                 e1 = q
                 if e1 == s1:
                     break
-                while q < n and _CLASS[buf[q]] == 1:
-                    q += 1
-                nf = 2
-                x = 0.0
-                ok = True
-                if q < n and _CLASS[buf[q]] == 0:
-                    ws = q
-                    while q < n and _CLASS[buf[q]] == 0:
-                        q += 1
-                    ok, x = _parse_float(buf, ws, q)
-                    nf = 3
-                    while q < n and _CLASS[buf[q]] == 1:
-                        q += 1
-                if ok and q < n and buf[q] == 35:
-                    while q < n and buf[q] != 10:
-                        q += 1
+                q, nf, ok, x = _line_tail(buf, q, n)
                 if not ok or not (q >= n or buf[q] == 10) or (bcols != 0 and bcols != nf):
                     break
                 if e0 - s0 > 16 or e1 - s1 > 16:
