@@ -3,6 +3,7 @@
 Run by hand (not part of the test suite)::
 
     python3 benchmarks/bench_read.py --lines 10000000 --repeat 3
+    python3 benchmarks/bench_read.py --lines 10000000 --repeat 3 --fresh   # one read a process
 
 Writes synthetic edge lists (integer names; integer names with weights; string names)
 to a temporary directory, then times, side by side in one run:
@@ -112,6 +113,52 @@ def readers() -> dict[str, Callable[[str], object]]:
     return out
 
 
+def _one(reader: str, path: str, tiny_dir: str) -> None:
+    """Child of ``--fresh``: warm the reader up on tiny files (imports, compiled-code
+    cache), then time one read of ``path`` and print ``wall cpu``."""
+    rs = readers()
+    f = rs[reader]
+    for text in ("1,2\n2,3\n", "a,b\nb,c\n", "1,2,0.5\n2,3,1.5\n"):
+        tiny = os.path.join(tiny_dir, f"tiny-{os.getpid()}.csv")
+        with open(tiny, "w") as fh:
+            fh.write(text)
+        f(tiny)
+        os.remove(tiny)
+    c0, t0 = time.process_time(), time.perf_counter()
+    f(path)
+    print(f"{time.perf_counter() - t0} {time.process_time() - c0}")
+
+
+def _fresh(files: dict[str, str], kinds: list[str], repeat: int, tiny_dir: str) -> None:
+    """Each read in a new process, as on the command line (one read per process): the
+    reader's memory is new to the process, which costs page faults on every reader."""
+    import subprocess
+    import sys
+
+    names = list(readers())
+    for kind, path in files.items():
+        if kind not in kinds:
+            continue
+        times: dict[str, list[tuple[float, float]]] = {k: [] for k in names}
+        for rnd in range(repeat):
+            for name in names[rnd % len(names):] + names[:rnd % len(names)]:
+                out = subprocess.run([sys.executable, __file__, "--one", name, path,
+                                      "--dir", tiny_dir], capture_output=True, text=True,
+                                     check=True).stdout.split()
+                times[name].append((float(out[-2]), float(out[-1])))
+        best = {k: min(v) for k, v in times.items()}
+        med = {k: float(np.median([t for t, _ in v])) for k, v in times.items()}
+        general = [v[0] for k, v in best.items() if not k.startswith("netctl")]
+        ref = min(general) if general else np.nan
+        size = os.path.getsize(path) / 1e6
+        print(f"\n## {kind} ({size:.0f} MB), one read per fresh process, best of {repeat}"
+              "\n\n| reader | wall s (best) | wall s (median) | CPU s | wall ratio to fastest "
+              "general reader |\n|---|---|---|---|---|")
+        for name, (t, c) in best.items():
+            print(f"| {name} | {t:.2f} | {med[name]:.2f} | {c:.2f} | {t / ref:.2f} |",
+                  flush=True)
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--lines", type=int, default=1_000_000)
@@ -119,9 +166,20 @@ def main() -> None:
     ap.add_argument("--dir", default=os.path.join(tempfile.gettempdir(), "netctl-bench"))
     ap.add_argument("--kinds", default="int,int+weight,string",
                     help="comma-separated file kinds to time")
+    ap.add_argument("--fresh", action="store_true",
+                    help="time every read in a new process (one read per process)")
+    ap.add_argument("--one", nargs=2, metavar=("READER", "PATH"), help=argparse.SUPPRESS)
     args = ap.parse_args()
     os.makedirs(args.dir, exist_ok=True)
+    if args.one:
+        _one(args.one[0], args.one[1], args.dir)
+        return
     files = make_files(args.dir, args.lines)
+    if args.fresh:
+        print(f"# {platform.processor() or platform.machine()}, {os.cpu_count()} cpus, "
+              f"{args.lines} lines")
+        _fresh(files, args.kinds.split(","), args.repeat, args.dir)
+        return
     rs = readers()
     # warm up (numba compile / cache load) on a tiny file
     tiny = os.path.join(args.dir, "tiny.csv")
