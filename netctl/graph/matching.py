@@ -66,8 +66,8 @@ def transpose_index(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     n_rows = indptr.size - 1
     if dtype is None:
         dtype = index_dtype(n_rows, int(n_cols), indices.size)
-    tptr = np.zeros(int(n_cols) + 1, dtype)
-    tind = np.empty(indices.size, dtype)
+    tptr: np.ndarray = np.zeros(int(n_cols) + 1, dtype)
+    tind: np.ndarray = np.empty(indices.size, dtype)
     if indices.size:
         _transpose_fill(indptr, indices, tptr, tind)
     return tptr, tind
@@ -560,8 +560,8 @@ def maximum_matching(
     dt = index_dtype(n_rows, n_cols, np.asarray(indices).size)
     ptr = np.ascontiguousarray(indptr, dtype=np.int64)
     ind = np.ascontiguousarray(indices, dtype=np.int64)
-    rm = None if row_match is None else np.array(row_match, dt)
-    cm = None if col_match is None else np.array(col_match, dt)
+    rm: np.ndarray | None = None if row_match is None else np.array(row_match, dt)
+    cm: np.ndarray | None = None if col_match is None else np.array(col_match, dt)
     if rm is not None and cm is None:
         cm = np.full(n_cols, -1, dt)
         rows = np.flatnonzero(rm >= 0)
@@ -570,7 +570,7 @@ def maximum_matching(
         rm = np.full(n_rows, -1, dt)
         cols = np.flatnonzero(cm >= 0)
         rm[cm[cols]] = cols
-    tr = None
+    tr: tuple[np.ndarray, np.ndarray] | None = None
     if transpose is not None:
         tr = (np.ascontiguousarray(transpose[0], dt), np.ascontiguousarray(transpose[1], dt))
     rm, cm = matching_work(ptr, ind, n_cols, tr, rm, cm, dt)

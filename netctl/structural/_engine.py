@@ -196,7 +196,7 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     free_rows = np.flatnonzero(row_match < 0)
     # a component already holding a free row starts with its extra column matched to the
     # smallest such row (reversed assignment: the smallest index is written last)
-    x_match = np.full(n_comp, -1, dt)
+    x_match: np.ndarray = np.full(n_comp, -1, dt)
     fr_comp = comp_of[free_rows]
     keep = fr_comp >= 0
     x_match[fr_comp[keep][::-1]] = free_rows[keep][::-1]
