@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
+from numba import njit
 
 from netctl.graph.components import (
     condensation_sources,
@@ -31,14 +32,37 @@ __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
 
 
 def stack_AB(A: sp.csr_array, B: sp.csr_array) -> tuple[np.ndarray, np.ndarray, int]:
-    """CSR index arrays of the pattern ``[A B]``: rows are states, columns are the ``n``
-    states followed by the ``m`` inputs."""
+    """CSR index arrays (int64) of the pattern ``[A B]``: rows are states, columns are the
+    ``n`` states followed by the ``m`` inputs; column indices sorted."""
     n, m = A.shape[0], B.shape[1]
     if m == 0:
         return A.indptr, A.indices, n
+    if A.has_sorted_indices and B.has_sorted_indices:
+        # each row: A's columns, then B's shifted by n (sorted when both are); one pass,
+        # where scipy's general hstack took seconds at 10^7 entries
+        return (*_hstack_rows(np.ascontiguousarray(A.indptr, np.int64),
+                              np.ascontiguousarray(A.indices, np.int64),
+                              np.ascontiguousarray(B.indptr, np.int64),
+                              np.ascontiguousarray(B.indices, np.int64), np.int64(n)), n + m)
     AB = sp.hstack([A, B], format="csr")
     AB.sort_indices()
     return AB.indptr.astype(np.int64), AB.indices.astype(np.int64), n + m
+
+
+@njit(cache=True, nogil=True)
+def _hstack_rows(a_ptr, a_ind, b_ptr, b_ind, n):  # pragma: no cover - compiled
+    rows = a_ptr.size - 1
+    ptr = a_ptr + b_ptr
+    ind = np.empty(ptr[rows], np.int64)
+    for r in range(rows):
+        k = ptr[r]
+        for e in range(a_ptr[r], a_ptr[r + 1]):
+            ind[k] = a_ind[e]
+            k += 1
+        for e in range(b_ptr[r], b_ptr[r + 1]):
+            ind[k] = b_ind[e] + n
+            k += 1
+    return ptr, ind
 
 
 @dataclass(frozen=True)

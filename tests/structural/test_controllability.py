@@ -250,3 +250,28 @@ def test_inaccessible_groups_partition_and_are_reachable():
             assert all(set(g.predecessors(v)) <= src for v in src)  # a source component
             reach = set().union(*[nx.descendants(g, v) for v in src])
             assert set(grp.downstream.tolist()) <= reach
+
+
+def test_stacked_pattern_equals_scipy_hstack():
+    """[A B] index arrays built row by row equal scipy.sparse.hstack's (sorted), for
+    canonical inputs (fast path) and for unsorted ones (scipy path)."""
+    import scipy.sparse as sp
+
+    from netctl.structural._engine import stack_AB
+
+    rng = np.random.default_rng(41)
+    for trial in range(20):
+        n, m = int(rng.integers(1, 60)), int(rng.integers(1, 8))
+        A = sp.random_array((n, n), density=float(rng.uniform(0, 0.3)), rng=rng, format="csr")
+        B = sp.random_array((n, m), density=float(rng.uniform(0, 0.5)), rng=rng, format="csr")
+        if trial % 2:  # shuffle the column order inside rows: not sorted any more
+            for M in (A, B):
+                for r in range(n):
+                    seg = slice(M.indptr[r], M.indptr[r + 1])
+                    M.indices[seg] = rng.permutation(M.indices[seg])
+                M.has_sorted_indices = False
+        ref = sp.hstack([A, B], format="csr")
+        ref.sort_indices()
+        ptr, ind, n_cols = stack_AB(A, B)
+        assert n_cols == n + m
+        assert np.array_equal(ptr, ref.indptr) and np.array_equal(ind, ref.indices)
