@@ -127,6 +127,9 @@ _GREEDY = 16
 _PREFETCH_BYTES = 16 * 2**20
 
 
+_NO_MATE = -(2**31)  # "no likely mate" in the walks' code arrays (fits int32 and int64)
+
+
 @njit(cache=True, nogil=True)
 def _touch_queue(queue, lo, hi, indptr, indices, tptr, tind, rst, cst, a0, a1,
                  mate):  # pragma: no cover - compiled
@@ -147,13 +150,13 @@ def _touch_queue(queue, lo, hi, indptr, indices, tptr, tind, rst, cst, a0, a1,
     for j in range(w):  # level 2: the neighbour lists
         if a1[j] > a0[j]:
             acc += indices[a0[j]] if queue[lo + j] >= 0 else tind[a0[j]]
-    for j in range(w):  # level 3: neighbour states; the likely mate
+    for j in range(w):  # level 3: neighbour states; the likely mate, as a queue code
         code = queue[lo + j]
-        m = -1
+        m = _NO_MATE
         if code >= 0:
             for k in range(a0[j], a1[j]):
                 if cst[indices[k]] >= 0:
-                    m = indices[k]
+                    m = -(indices[k] + 1)
                     break
         else:
             for k in range(a0[j], a1[j]):
@@ -161,56 +164,53 @@ def _touch_queue(queue, lo, hi, indptr, indices, tptr, tind, rst, cst, a0, a1,
                     m = tind[k]
                     break
         mate[j] = m
-    acc += _touch_mates(queue, lo, w, indptr, indices, tptr, tind, rst, cst, a0, a1, mate)
-    return acc
+    return acc + _touch_mates(w, indptr, indices, tptr, tind, rst, cst, a0, a1, mate)
 
 
 @njit(cache=True, nogil=True)
-def _touch_mates(queue, lo, w, indptr, indices, tptr, tind, rst, cst, a0, a1,
+def _touch_mates(w, indptr, indices, tptr, tind, rst, cst, a0, a1,
                  mate):  # pragma: no cover - compiled
-    """Loads only: pointers, lists and neighbour states of the likely mates.
-    ``queue`` None-like (lo < 0) means the entries are rows lo..lo+w (greedy rows)."""
+    """Loads only: pointers, lists and neighbour states of the likely mates
+    ``mate[:w]`` (codes as in the queue: row ``r >= 0``, column ``-(c+1)``)."""
     acc = 0
     for j in range(w):  # level 4: the mate's pointers
         m = mate[j]
         if m >= 0:
-            if lo < 0 or queue[lo + j] >= 0:
-                a0[j] = tptr[m]
-                a1[j] = tptr[m + 1]
-            else:
-                a0[j] = indptr[m]
-                a1[j] = indptr[m + 1]
+            a0[j] = indptr[m]
+            a1[j] = indptr[m + 1]
+        elif m != _NO_MATE:
+            a0[j] = tptr[-m - 1]
+            a1[j] = tptr[-m]
     for j in range(w):  # level 5: the mate's neighbour list
         m = mate[j]
-        if m >= 0 and a1[j] > a0[j]:
-            acc += tind[a0[j]] if (lo < 0 or queue[lo + j] >= 0) else indices[a0[j]]
+        if m != _NO_MATE and a1[j] > a0[j]:
+            acc += indices[a0[j]] if m >= 0 else tind[a0[j]]
     for j in range(w):  # level 6: the states of the mate's neighbours
         m = mate[j]
         if m >= 0:
-            if lo < 0 or queue[lo + j] >= 0:
-                for k in range(a0[j], a1[j]):
-                    acc += rst[tind[k]]
-            else:
-                for k in range(a0[j], a1[j]):
-                    acc += cst[indices[k]]
+            for k in range(a0[j], a1[j]):
+                acc += cst[indices[k]]
+        elif m != _NO_MATE:
+            for k in range(a0[j], a1[j]):
+                acc += rst[tind[k]]
     return acc
 
 
 @njit(cache=True, nogil=True)
-def _touch_rows(queue, lo, hi, indptr, indices, tptr, tind, rst, cst, a0, a1,
+def _touch_rows(lo, hi, indptr, indices, tptr, tind, rst, cst, a0, a1,
                 mate):  # pragma: no cover - compiled
     """Loads only: the data the greedy rows lo..hi will need."""
     w = hi - lo
     for j in range(w):  # rows are consecutive: their lists stream in
         r = lo + j
-        m = -1
+        m = _NO_MATE
         if rst[r] > 0:
             for k in range(indptr[r], indptr[r + 1]):
                 if cst[indices[k]] >= 0:
-                    m = indices[k]
+                    m = -(indices[k] + 1)
                     break
         mate[j] = m
-    return _touch_mates(queue, -1, w, indptr, indices, tptr, tind, rst, cst, a0, a1, mate)
+    return _touch_mates(w, indptr, indices, tptr, tind, rst, cst, a0, a1, mate)
 
 
 @njit(cache=True, nogil=True)
@@ -276,7 +276,7 @@ def _karp_sipser(indptr, indices, tptr, tind, row_match, col_match, fresh,
     queue = np.empty(n_rows + n_cols + 1, rst.dtype)
     a0 = np.empty(_WINDOW, indptr.dtype)
     a1 = np.empty(_WINDOW, indptr.dtype)
-    mate = np.empty(_WINDOW, rst.dtype)
+    mate = np.empty(_WINDOW, np.int64)
     head = 0
     tail = 0
     for r in range(n_rows):
@@ -328,8 +328,8 @@ def _karp_sipser(indptr, indices, tptr, tind, row_match, col_match, fresh,
         while next_greedy < n_rows and progressed < _GREEDY:
             if prefetch and next_greedy >= touched_g:
                 touched_g = min(next_greedy + _WINDOW, n_rows)
-                acc += _touch_rows(queue, next_greedy, touched_g, indptr, indices, tptr,
-                                   tind, rst, cst, a0, a1, mate)
+                acc += _touch_rows(next_greedy, touched_g, indptr, indices, tptr, tind,
+                                   rst, cst, a0, a1, mate)
             r = next_greedy
             next_greedy += 1
             if rst[r] <= 0:
@@ -500,6 +500,9 @@ def matching_work(
     place.
     """
     n_rows = indptr.size - 1
+    if max(n_rows, int(n_cols)) >= 2**31 - 4:  # vertex ids on the search stacks are int32
+        raise ValueError(f"the matching kernel handles fewer than 2**31 - 4 rows and "
+                         f"columns, found {n_rows} x {n_cols}.")
     dt = index_dtype(n_rows, int(n_cols), indices.size) if dtype is None else dtype
     fresh = row_match is None
     rm = np.full(n_rows, -1, dt) if row_match is None else row_match
@@ -554,9 +557,6 @@ def maximum_matching(
     """
     n_rows = np.asarray(indptr).size - 1
     n_cols = int(n_cols)
-    if max(n_rows, n_cols) >= 2**31 - 4:
-        raise ValueError(f"the matching kernel handles fewer than 2**31 - 4 rows and "
-                         f"columns, found {n_rows} x {n_cols}.")
     dt = index_dtype(n_rows, n_cols, np.asarray(indices).size)
     ptr = np.ascontiguousarray(indptr, dtype=np.int64)
     ind = np.ascontiguousarray(indices, dtype=np.int64)

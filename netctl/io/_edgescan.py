@@ -383,6 +383,27 @@ def _line_tail(buf: np.ndarray, q: int, n: int) -> tuple[int, int, bool, float]:
     return q, nf, ok, x
 
 
+@njit(cache=True, nogil=True, inline="always")
+def _zero_count(x: float, line: int, nzero: int, zline: int) -> tuple[int, int]:
+    """Count a weight of 0 (not a link; the driver warns) and keep the first one's line."""
+    if x == 0.0:
+        if nzero == 0:
+            zline = line
+        nzero += 1
+    return nzero, zline
+
+
+@njit(cache=True, nogil=True, inline="always")
+def _short_of_room(st: np.ndarray, new_names: int, new_bytes: int, table: np.ndarray,
+                   name_pos: np.ndarray, names_buf: np.ndarray) -> bool:
+    """Whether ``new_names`` more names of ``new_bytes`` bytes (line breaks included)
+    could overfill the name table (kept at most half full), the name positions or the
+    name buffer; the driver's ``_grow`` makes room for a fast-path batch."""
+    nn = st[_NN] + new_names
+    return (nn * 2 > table.shape[0] or nn > name_pos.shape[0]
+            or st[_NUSED] + new_bytes > names_buf.size)
+
+
 @njit(cache=True, nogil=True)
 def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                src: np.ndarray, dst: np.ndarray, w: np.ndarray, iso: np.ndarray,
@@ -434,20 +455,18 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                         dst[ne] = b
                         if nf == 3:
                             w[ne] = x
-                            if x == 0.0:
-                                if nzero == 0:
-                                    zline = line
-                                nzero += 1
+                            nzero, zline = _zero_count(x, line, nzero, zline)
                         ne += 1
                         p = q + 1
                         line += 1
                         continue
         elif mode == MODE_STR:
             # fast path in batches: up to STR_BATCH lines 'name sep name [sep weight]
-            # [seps] [# comment]' with names of at most 16 bytes are tokenized and their names hashed first, then the
-            # name-table slots of all of them are loaded (independent loads that overlap
-            # in the memory system), then the names are looked up in file order. A line of any other form
-            # ends the batch and goes through the general path below.
+            # [seps] [# comment]' with names of at most 16 bytes are tokenized and their
+            # names hashed first, then the name-table slots of all of them are loaded
+            # (independent loads that overlap in the memory system), then the names are
+            # looked up in file order. A line of any other form ends the batch and goes
+            # through the general path below.
             nb = 0
             q = p
             pend = p  # just past the last line taken into the batch
@@ -499,9 +518,7 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                         + table[np.int64(b_hash[j, 1] & tmask), 0])
             st[_SINK] = acc
             if nb > 0:
-                if ((st[_NN] + 2 * nb + 2) * 2 > table.shape[0]
-                        or st[_NN] + 2 * nb + 2 > name_pos.shape[0]
-                        or st[_NUSED] + nbytes > names_buf.size):
+                if _short_of_room(st, 2 * nb + 2, nbytes, table, name_pos, names_buf):
                     _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
                     return STATUS_GROW
                 ncols = bcols
@@ -513,12 +530,8 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                                             b_key[j, 2], b_key[j, 3], line, table,
                                             names_buf, name_pos, name_line, st)
                     if bcols == 3:
-                        x = b_w[j]
-                        w[ne] = x
-                        if x == 0.0:
-                            if nzero == 0:
-                                zline = line
-                            nzero += 1
+                        w[ne] = b_w[j]
+                        nzero, zline = _zero_count(b_w[j], line, nzero, zline)
                     ne += 1
                     line += 1
                 p = min(pend, n)
@@ -562,9 +575,8 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
         if (nf == 1 and ni >= iso.size) or (nf == 3 and nfb >= fb_edge.size):
             _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
             return STATUS_FULL
-        if nf >= 1 and mode == MODE_STR and (
-                (st[_NN] + 2) * 2 > table.shape[0] or st[_NN] + 2 > name_pos.shape[0]
-                or st[_NUSED] + (q - p) + 2 > names_buf.size):
+        if nf >= 1 and mode == MODE_STR and _short_of_room(st, 2, (q - p) + 2, table,
+                                                           name_pos, names_buf):
             _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)
             return STATUS_GROW
         if nf >= 1:
@@ -588,10 +600,7 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                     ok, x = _parse_float(buf, starts[2], ends[2])
                     if ok:
                         w[ne] = x
-                        if x == 0.0:
-                            if nzero == 0:
-                                zline = line
-                            nzero += 1
+                        nzero, zline = _zero_count(x, line, nzero, zline)
                     else:
                         fb_edge[nfb] = ne
                         fb_line[nfb] = line
