@@ -213,10 +213,7 @@ def _plot(curves: list[AttackCurve], path: str) -> None:
     from netctl.viz.charts import plot_attack_curves as chart
 
     for ax, kind in zip(axes[0], sorted({c.elements for c in curves})):
-        mine = [c for c in curves if c.elements == kind]
-        what = "links" if kind == "links" else "states"
-        chart({c.strategy: c.xy() for c in mine}, ax=ax,
-              xlabel=f"share of {what} removed", ylabel="minimum inputs / states left")
+        chart([c for c in curves if c.elements == kind], ax=ax)
     fig.tight_layout()
     suffix = os.path.splitext(path)[1] or ".png"
     directory = os.path.dirname(path) or "."

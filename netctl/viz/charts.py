@@ -7,7 +7,7 @@ returns the Axes, and tags its artists with gids ``"netctl:<what>"``.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
-from typing import TYPE_CHECKING, Any, cast
+from typing import TYPE_CHECKING, Any, Protocol, cast
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -43,19 +43,40 @@ def _vector(values: Any, what: str) -> np.ndarray:
     return arr
 
 
-def plot_attack_curves(curves: Mapping[str, Sequence[ArrayLike]], *, ax: Axes | None = None,
-                       xlabel: str = "fraction of links removed",
-                       ylabel: str = "driver-node fraction $n_D$") -> Axes:
+class _AttackCurveLike(Protocol):
+    """What :func:`plot_attack_curves` reads from a result such as
+    :class:`netctl.structural.robustness.AttackCurve` (no import of the analyses)."""
+
+    @property
+    def strategy(self) -> str: ...
+
+    @property
+    def elements(self) -> str: ...
+
+    def xy(self, *, fraction: bool = True) -> tuple[np.ndarray, np.ndarray]: ...
+
+
+def plot_attack_curves(curves: Mapping[str, Sequence[ArrayLike]] | Sequence[_AttackCurveLike],
+                       *, ax: Axes | None = None, xlabel: str | None = None,
+                       ylabel: str | None = None, fraction: bool = True) -> Axes:
     r"""Attack (or failure) curves: a control measure as parts of the network are removed.
 
     Parameters
     ----------
-    curves : mapping of str to (x, y) or (x, y, low, high)
+    curves : mapping of str to (x, y) or (x, y, low, high), or sequence of AttackCurve
         One curve per attack strategy: removed fraction ``x`` and the measure ``y``
         (e.g. the fraction of driver nodes); optional ``low`` / ``high`` draw a band
-        (e.g. the spread over repeated random removals).
+        (e.g. the spread over repeated random removals). Or results of
+        :func:`netctl.structural.robustness.attack_curve` (anything with ``strategy``,
+        ``elements`` and ``xy(fraction=...)``), labelled by strategy (and by element
+        kind when the kinds differ).
     ax : matplotlib Axes, optional
-    xlabel, ylabel : str
+    xlabel, ylabel : str, optional
+        Axis labels. Defaults: "fraction of links removed" and "driver-node fraction
+        $n_D$" for a mapping; "share of states (links) removed" and "minimum inputs /
+        states left" (or "minimum inputs") for results.
+    fraction : bool, default True
+        For results: plot ``N_D`` divided by the states left (True) or ``N_D`` itself.
 
     Returns
     -------
@@ -76,8 +97,28 @@ def plot_attack_curves(curves: Mapping[str, Sequence[ArrayLike]], *, ax: Axes | 
     if not curves:
         raise OptionError("plot_attack_curves needs at least one curve, e.g. "
                           "{'random': (x, y)}.")
+    items: list[tuple[str, Sequence[ArrayLike]]]
+    if isinstance(curves, Mapping):
+        items = list(curves.items())
+        xlabel = "fraction of links removed" if xlabel is None else xlabel
+        ylabel = "driver-node fraction $n_D$" if ylabel is None else ylabel
+    else:
+        results = list(curves)
+        for c in results:
+            if not (hasattr(c, "xy") and hasattr(c, "strategy") and hasattr(c, "elements")):
+                raise OptionError("plot_attack_curves takes a mapping of name to (x, y) or "
+                                  "a sequence of attack_curve results, found "
+                                  f"{type(c).__name__}.")
+        kinds = {c.elements for c in results}
+        items = [(c.strategy if len(kinds) == 1 else f"{c.strategy} ({c.elements})",
+                  c.xy(fraction=fraction)) for c in results]
+        kind = next(iter(kinds)) if len(kinds) == 1 else ""
+        what = {"links": "links", "nodes": "states"}.get(kind, "elements")
+        xlabel = f"share of {what} removed" if xlabel is None else xlabel
+        if ylabel is None:
+            ylabel = "minimum inputs / states left" if fraction else "minimum inputs"
     ax = _new_axes(ax)
-    for k, (label, data) in enumerate(curves.items()):
+    for k, (label, data) in enumerate(items):
         if len(data) not in (2, 4):
             raise OptionError(f"curve {label!r} must be (x, y) or (x, y, low, high), found "
                               f"{len(data)} arrays.")

@@ -22,10 +22,10 @@ from netctl.io import read
 from netctl.structural.robustness import (
     attack_curve,
     contingency_sweep,
-    plot_attack_curves,
     sampled_losses,
     what_if,
 )
+from netctl.viz import plot_attack_curves
 from tests.conftest import directed_cycle, directed_path, from_edges
 
 matplotlib.use("Agg")
@@ -317,7 +317,7 @@ def test_what_if_role_changes_match_a_name_by_name_comparison():
 def test_dominators_equal_networkx():
     # The dominator tree behind cut-off states, against networkx.immediate_dominators
     # (Cooper, Harvey & Kennedy's algorithm there as well, written independently).
-    from netctl.structural.robustness import _reach_structure
+    from netctl.structural.robustness.contingency import _reach_structure
 
     rng = np.random.default_rng(9)
     for _ in range(5):

@@ -1,0 +1,36 @@
+"""What a failure or a proposed change does: contingency sweeps, attack curves, what-if.
+
+* :func:`contingency_sweep` -- every single link (or state) lost in turn: the minimum
+  number of inputs afterwards and, when the system carries an input design, whether the
+  design stays structurally controllable and why not. Computed from one maximum matching
+  of ``A`` (and one of ``[A B]``) plus dominators of the input-reachability graph, not by
+  one recomputation per element.
+* :func:`sampled_losses` -- ``k > 1`` simultaneous losses, sampled with a seed and
+  recomputed exactly.
+* :func:`attack_curve` -- the minimum number of inputs as states or links are removed at
+  random or by a targeting rule (drawn by :func:`netctl.viz.plot_attack_curves`).
+* :func:`what_if` -- before and after a proposed change (links added or removed, states
+  removed), side by side.
+
+Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
+"""
+
+from netctl.structural.robustness._common import ELEMENTS
+from netctl.structural.robustness.attack import ATTACK_STRATEGIES, AttackCurve, attack_curve
+from netctl.structural.robustness.contingency import ContingencySweep, contingency_sweep
+from netctl.structural.robustness.sampled import SampledLosses, sampled_losses
+from netctl.structural.robustness.whatif import WhatIf, apply_change, what_if
+
+__all__ = [
+    "ATTACK_STRATEGIES",
+    "AttackCurve",
+    "ContingencySweep",
+    "ELEMENTS",
+    "SampledLosses",
+    "WhatIf",
+    "apply_change",
+    "attack_curve",
+    "contingency_sweep",
+    "sampled_losses",
+    "what_if",
+]
