@@ -161,9 +161,10 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
     .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
        networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
     .. [2] M. E. J. Newman, S. H. Strogatz, D. J. Watts, "Random graphs with arbitrary
-       degree distributions and their applications", Phys. Rev. E 64:026118, 2001.
+       degree distributions and their applications", Phys. Rev. E 64:026118, 2001
+       (details from memory).
     .. [3] S. Maslov, K. Sneppen, "Specificity and stability in topology of protein
-       networks", Science 296:910-913, 2002.
+       networks", Science 296:910-913, 2002 (details from memory).
 
     Examples
     --------

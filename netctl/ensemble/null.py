@@ -102,10 +102,11 @@ def configuration_model(out_degree: Any, in_degree: Any, *,
     References
     ----------
     .. [1] B. Bollobás, "A probabilistic proof of an asymptotic formula for the number
-       of labelled regular graphs", Eur. J. Combin. 1(4):311-316, 1980.
+       of labelled regular graphs", Eur. J. Combin. 1(4):311-316, 1980
+       (details from memory).
     .. [2] M. E. J. Newman, S. H. Strogatz, D. J. Watts, "Random graphs with arbitrary
        degree distributions and their applications", Phys. Rev. E 64:026118, 2001.
-       doi:10.1103/PhysRevE.64.026118
+       doi:10.1103/PhysRevE.64.026118 (details from memory)
     .. [3] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
        networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
 
@@ -327,6 +328,11 @@ def n_unmatched(sources: Any, targets: Any, n_states: int) -> int:
 
     The minimum number of inputs is ``max(n - |M*|, 1)`` for ``n > 0`` (Liu, Slotine &
     Barabási 2011). Repeated links count once; a self-loop may match its own state.
+
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
 
     Examples
     --------

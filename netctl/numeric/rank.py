@@ -202,6 +202,12 @@ def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
     Returns ``(dimension, block sizes, decisions, A_u)`` where ``A_u`` is the
     uncontrollable block of the staircase form (its eigenvalues are the lost modes).
     Works for real and complex input; ``A`` is copied.
+
+    References
+    ----------
+    .. [1] P. Van Dooren, "The generalized eigenstructure problem in linear system
+       theory", IEEE TAC 26(1):111-129, 1981. doi:10.1109/TAC.1981.1102559
+       (details from memory)
     """
     dtype = np.result_type(A, B, float)
     A = np.array(A, dtype=dtype, order="F", copy=True)

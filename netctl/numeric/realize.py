@@ -126,6 +126,20 @@ def realize(system: StructuredSystem, *, weights: str = "independent",
     self-loops on every state with an in-link, and the structural verdict to compare
     with is the one for that pattern. O(nnz).
 
+    The ``independent`` family is the structured-system assumption of [1]_ (every
+    nonzero a free parameter). Constrained families (symmetric, diffusive, equal
+    weights) can lose controllability the pattern has generically, e.g. through graph
+    symmetries [2]_; that is what comparing the two is for. The distributions
+    themselves are netctl's choices (common practice, no source).
+
+    References
+    ----------
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
+    .. [2] A. Rahmani, M. Ji, M. Mesbahi, M. Egerstedt, "Controllability of multi-agent
+       systems from a graph-theoretic perspective", SIAM J. Control Optim.
+       48(1):162-186, 2009. doi:10.1137/060674909 (details from memory)
+
     Examples
     --------
     >>> from netctl import StructuredSystem

@@ -219,11 +219,12 @@ def controllability(system: StructuredSystem, *, dimension: bool = True) -> Cont
 
     References
     ----------
-    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
     .. [2] R. W. Shields, J. B. Pearson, "Structural controllability of multiinput linear
        systems", IEEE TAC 21(2):203-212, 1976.
     .. [3] S. Hosoe, "Determination of generic dimensions of controllable subspaces and
-       its application", IEEE TAC 25(6):1192-1196, 1980.
+       its application", IEEE TAC 25(6):1192-1196, 1980 (details from memory).
 
     Examples
     --------
@@ -242,18 +243,38 @@ def observability(system: StructuredSystem, *, dimension: bool = True) -> Contro
     Every state must have a directed path *to* a measured state, and the generic rank of
     ``[A; C]`` must be ``n``. The report's ``fix`` lists where to add dedicated sensors;
     ``inaccessible`` the states no output sees, grouped by *sink* component.
-    See :func:`controllability` for the method and references.
+    See :func:`controllability` for the method.
+
+    References
+    ----------
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
+    .. [2] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Observability of complex
+       systems", PNAS 110(7):2460-2465, 2013 (details from memory): the dual view,
+       one sensor per root component of the inference diagram.
     """
     return _report(system.dual(), "observability", dimension)
 
 
 def is_structurally_controllable(system: StructuredSystem) -> bool:
-    """True when ``(A, B)`` is structurally controllable (no reasons computed)."""
+    """True when ``(A, B)`` is structurally controllable (no reasons computed).
+
+    References
+    ----------
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
+    """
     return controllability(system, dimension=False).controllable
 
 
 def is_structurally_observable(system: StructuredSystem) -> bool:
-    """True when ``(A, C)`` is structurally observable."""
+    """True when ``(A, C)`` is structurally observable (Lin's test on the dual).
+
+    References
+    ----------
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
+    """
     return observability(system, dimension=False).controllable
 
 

@@ -143,10 +143,11 @@ def minimum_inputs(system: StructuredSystem, *, dedicated: bool = False) -> Inpu
     .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
        networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
     .. [2] C. Commault, J.-M. Dion, "Input addition and leader selection for the
-       controllability of graph-based systems", Automatica 49(11):3322-3328, 2013.
+       controllability of graph-based systems", Automatica 49(11):3322-3328, 2013
+       (details from memory).
     .. [3] S. Pequito, S. Kar, A. P. Aguiar, "A framework for structural input/output
        and control configuration selection in large-scale systems", IEEE TAC
-       61(2):303-318, 2016.
+       61(2):303-318, 2016 (volume and pages from memory). arXiv:1309.5868
 
     Examples
     --------
@@ -163,6 +164,14 @@ def minimum_sensors(system: StructuredSystem, *, dedicated: bool = False) -> Inp
 
     The dual of :func:`minimum_inputs`: computed on ``(A^T, C^T)``, so *sink* components
     (no edge leaving them) must each hold a sensor. Existing outputs are ignored.
+
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+    .. [2] S. Pequito, S. Kar, A. P. Aguiar, "A framework for structural input/output
+       and control configuration selection in large-scale systems", IEEE TAC
+       61(2):303-318, 2016 (volume and pages from memory). arXiv:1309.5868
     """
     return _design(system.dual(), "sensors", dedicated)
 
@@ -234,6 +243,13 @@ def summarize(system: StructuredSystem) -> NetworkSummary:
     The minimum counts are those of :func:`minimum_inputs` (shared inputs and
     dedicated) and :func:`minimum_sensors` (dedicated sensors = shared, see Notes
     there), each one near-linear.
+
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+    .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
     """
     from scipy.sparse.csgraph import connected_components
 

@@ -423,9 +423,10 @@ def link_roles(system: StructuredSystem) -> LinkRoles:
     .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
        networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
     .. [2] A. L. Dulmage, N. S. Mendelsohn, "Coverings of bipartite graphs", Canad. J.
-       Math. 10:517-534, 1958.
+       Math. 10:517-534, 1958 (details from memory).
     .. [3] T. Tassa, "Finding all maximally-matchable edges in a bipartite graph",
        Theor. Comput. Sci. 423:50-58, 2012. doi:10.1016/j.tcs.2011.12.071
+       (details from memory)
 
     Examples
     --------

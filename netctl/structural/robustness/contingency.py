@@ -369,12 +369,13 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
     ----------
     .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
        networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
-    .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
+    .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
     .. [3] K. D. Cooper, T. J. Harvey, K. Kennedy, "A simple, fast dominance algorithm",
-       Software Practice & Experience 4:1-10, 2001.
+       Software Practice & Experience 4:1-10, 2001 (details from memory).
     .. [4] G. F. Italiano, L. Laura, F. Santaroni, "Finding strong bridges and strong
        articulation points in linear time", Theor. Comput. Sci. 447:74-84, 2012.
-       doi:10.1016/j.tcs.2011.11.011
+       doi:10.1016/j.tcs.2011.11.011 (details from memory)
 
     Examples
     --------

@@ -121,6 +121,15 @@ def sampled_losses(system: StructuredSystem, *, elements: str = "links", k: int 
     recomputes one maximum matching of ``A`` (warm-started from the intact matching for
     link losses), and, with a design, one of ``[A B]`` and a breadth-first search:
     ``samples`` near-linear recomputations. Exact per sample; the shares are estimates.
+    Sampling ``k`` losses uniformly is common practice in robustness studies (no
+    single source).
+
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+    .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
 
     Examples
     --------

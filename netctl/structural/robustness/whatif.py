@@ -246,7 +246,8 @@ def what_if(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] |
 
     References
     ----------
-    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
+       (issue number from memory).
     .. [2] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
        networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
     .. [3] T. Jia et al., "Emergence of bimodality in controlling complex networks",

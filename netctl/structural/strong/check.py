@@ -59,6 +59,15 @@ def forcing_closure(system: StructuredSystem, black: Any, *,
         Condition name (``"all"``, or ``"zero"`` and ``"nonzero"`` for the eigenvalue 0 /
         nonzero eigenvalue conditions) to a boolean mask over the states.
 
+    References
+    ----------
+    .. [1] N. Monshizadeh, S. Zhang, M. K. Camlibel, "Zero forcing sets and
+       controllability of dynamical systems defined on graphs", IEEE Trans. Automat.
+       Control 59(9):2562-2567, 2014. doi:10.1109/TAC.2014.2308619
+    .. [2] M. Trefois, J.-C. Delvenne, "Zero forcing number, constrained matchings and
+       strong structural controllability", Linear Algebra Appl. 484:199-218, 2015.
+       arXiv:1405.6222
+
     Examples
     --------
     >>> from netctl import StructuredSystem
@@ -194,7 +203,7 @@ def strong_controllability(system: StructuredSystem, *,
     References
     ----------
     .. [1] H. Mayeda, T. Yamada, "Strong structural controllability", SIAM J. Control
-       Optim. 17(1):123-138, 1979. doi:10.1137/0317010
+       Optim. 17(1):123-138, 1979. doi:10.1137/0317010 (DOI from memory)
     .. [2] N. Monshizadeh, S. Zhang, M. K. Camlibel, "Zero forcing sets and
        controllability of dynamical systems defined on graphs", IEEE Trans. Automat.
        Control 59(9):2562-2567, 2014. doi:10.1109/TAC.2014.2308619
@@ -237,6 +246,14 @@ def strong_controllability(system: StructuredSystem, *,
 def is_strongly_controllable(system: StructuredSystem, *, diagonal: str = "as-given") -> bool:
     """``strong_controllability(system, diagonal=diagonal).strongly_controllable``.
 
+    References
+    ----------
+    .. [1] H. Mayeda, T. Yamada, "Strong structural controllability", SIAM J. Control
+       Optim. 17(1):123-138, 1979. doi:10.1137/0317010 (DOI from memory)
+    .. [2] N. Monshizadeh, S. Zhang, M. K. Camlibel, "Zero forcing sets and
+       controllability of dynamical systems defined on graphs", IEEE Trans. Automat.
+       Control 59(9):2562-2567, 2014. doi:10.1109/TAC.2014.2308619
+
     Examples
     --------
     >>> from netctl import StructuredSystem
@@ -270,7 +287,18 @@ def strong_witness(system: StructuredSystem, *,
     so that every column equation of ``q^T [A - lambda I, B] = 0`` holds; integers only,
     ``lambda`` is 0 or 1. The diagonal obeys the convention (``zero``: all 0; ``nonzero``:
     all nonzero; ``as-given``: nonzero exactly on self-loops; ``free``: anything).
-    Vectorised, O(n + m + E).
+    Vectorised, O(n + m + E). The construction is netctl's own reading of the
+    necessity direction of [1]_ and [2]_ (the papers prove the rules; the integer
+    weights here are ours) and is checked in the tests by the PBH equations.
+
+    References
+    ----------
+    .. [1] N. Monshizadeh, S. Zhang, M. K. Camlibel, "Zero forcing sets and
+       controllability of dynamical systems defined on graphs", IEEE Trans. Automat.
+       Control 59(9):2562-2567, 2014. doi:10.1109/TAC.2014.2308619
+    .. [2] M. Trefois, J.-C. Delvenne, "Zero forcing number, constrained matchings and
+       strong structural controllability", Linear Algebra Appl. 484:199-218, 2015.
+       arXiv:1405.6222
 
     Examples
     --------

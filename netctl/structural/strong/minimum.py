@@ -352,14 +352,17 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
 
     References
     ----------
-    .. [1] H. Mayeda, T. Yamada, SIAM J. Control Optim. 17(1):123-138, 1979.
+    .. [1] H. Mayeda, T. Yamada, "Strong structural controllability", SIAM J. Control
+       Optim. 17(1):123-138, 1979.
     .. [2] N. Monshizadeh, S. Zhang, M. K. Camlibel, IEEE TAC 59(9):2562-2567, 2014.
        doi:10.1109/TAC.2014.2308619
     .. [3] M. Trefois, J.-C. Delvenne, Linear Algebra Appl. 484:199-218, 2015.
     .. [4] C. C. Fast, I. V. Hicks, "Effects of vertex degrees on the zero-forcing number
-       and propagation time of a graph", Discrete Appl. Math. 250:215-226, 2018.
+       and propagation time of a graph", Discrete Appl. Math. 250:215-226, 2018
+       (details from memory).
     .. [5] B. Brimkov, C. C. Fast, I. V. Hicks, "Computational approaches for zero
-       forcing and related problems", European J. Oper. Res. 273(3):889-903, 2019.
+       forcing and related problems", European J. Oper. Res. 273(3):889-903, 2019
+       (details from memory).
 
     Examples
     --------
