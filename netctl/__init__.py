@@ -67,7 +67,7 @@ from netctl.structural.strong import (
     strong_controllability,
 )
 from netctl.structural.target import place_target_inputs
-from netctl.system import StructuredSystem
+from netctl.system import Station, StructuredSystem, make_stations
 
 __version__ = "0.1.0"
 
@@ -88,6 +88,7 @@ __all__ = [
     "OptionError",
     "Placement",
     "RankTest",
+    "Station",
     "StrongInputDesign",
     "StrongReport",
     "StructuredSystem",
@@ -107,6 +108,7 @@ __all__ = [
     "is_structurally_controllable",
     "is_structurally_observable",
     "link_roles",
+    "make_stations",
     "minimum_inputs",
     "minimum_sensors",
     "minimum_strong_inputs",

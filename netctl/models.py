@@ -9,8 +9,8 @@
   damping (a self-loop), by the node's own ``pos`` and by the ``pos`` of every node that
   influences it in the network (a link ``j -> i`` gives ``j:pos -> i:vel``). This is the
   pattern of mechanical networks (masses, springs, dampers) and of swing-type power-grid
-  dynamics. Inputs act on velocity states (forces, power injections); outputs read
-  position states.
+  dynamics. Inputs and disturbances act on velocity states (forces, power injections,
+  loads); measured and regulated outputs read position states.
 
 Self-dynamics change the answer drastically (with a self-loop on every state, one input
 is generically enough for a strongly connected network), so the choice is explicit and
@@ -116,6 +116,12 @@ def second_order(network: StructuredSystem) -> StructuredSystem:
     C = network.C.tocoo()
     C2 = sp.coo_array((C.data, (C.row, 2 * C.col.astype(np.int64))),
                       shape=(network.n_outputs, 2 * n)).tocsr()
+    E = network.E.tocoo()
+    E2 = sp.coo_array((E.data, (2 * E.row.astype(np.int64) + 1, E.col)),
+                      shape=(2 * n, network.n_disturbances)).tocsr()
+    H = network.H.tocoo()
+    H2 = sp.coo_array((H.data, (H.row, 2 * H.col.astype(np.int64))),
+                      shape=(network.n_regulated, 2 * n)).tocsr()
     names = tuple(f"{s}:{part}" for s in network.state_names for part in ("pos", "vel"))
     nodes = {k: np.repeat(np.asarray(v), 2) for k, v in network.nodes.items()}
     act = nodes.get("actuator", np.ones(2 * n, bool)).astype(bool).copy()
@@ -129,4 +135,7 @@ def second_order(network: StructuredSystem) -> StructuredSystem:
     nodes.setdefault("part", part)
     return StructuredSystem(A=A2, B=B2, C=C2, state_names=names,
                             input_names=network.input_names, output_names=network.output_names,
-                            nodes=nodes, weighted=network.weighted, model="second-order")
+                            nodes=nodes, weighted=network.weighted, model="second-order",
+                            E=E2, H=H2, disturbance_names=network.disturbance_names,
+                            regulated_names=network.regulated_names,
+                            disturbance_nodes=network.disturbance_nodes)

@@ -1,8 +1,12 @@
-"""The structured linear system ``dx/dt = A x + B u, y = C x``.
+"""The structured linear system ``dx/dt = A x + B u + E w, y = C x, z = H x``.
 
 Orientation (used everywhere in netctl): an edge ``u -> v`` means "state u influences
 state v", i.e. ``A[v, u] != 0``; ``B[i, k] != 0`` means input k acts on state i;
-``C[r, i] != 0`` means output r reads state i.
+``C[r, i] != 0`` means output r reads state i. Disturbances ``w`` (what the plant
+suffers: weather, feeds, demands, utilities) enter through ``E`` (``E[i, j] != 0``:
+disturbance j acts on state i); they are never states, so no link enters them.
+Regulated outputs ``z = H x`` (``H[r, i] != 0``: regulated output r depends on state i)
+are what disturbances must be kept from; measured outputs ``y = C x`` are what sensors read.
 """
 
 from __future__ import annotations
@@ -20,7 +24,8 @@ import scipy.sparse as sp
 
 from netctl.errors import InvalidSystemError, UnknownNameError
 
-__all__ = ["StructuredSystem", "NameList", "NODE_COLUMNS", "canonical_csr"]
+__all__ = ["StructuredSystem", "Station", "NameList", "NODE_COLUMNS", "canonical_csr",
+           "make_stations", "check_stations"]
 
 #: Node-table columns netctl itself understands (others are carried along untouched).
 #: ``x``, ``y``: map coordinates (NaN when unknown); ``actuator`` / ``sensor``: whether the
@@ -229,7 +234,7 @@ def _freeze(a: sp.csr_array) -> sp.csr_array:
 
 @dataclass(frozen=True, eq=False)
 class StructuredSystem:
-    """A structured linear system ``dx/dt = A x + B u, y = C x``.
+    """A structured linear system ``dx/dt = A x + B u + E w, y = C x, z = H x``.
 
     Build it with one of the ``from_*`` class methods; the constructor validates and
     canonicalizes whatever it is given (duplicates summed, explicit zeros removed,
@@ -253,6 +258,18 @@ class StructuredSystem:
         How the state-space pattern was obtained from the network (``"given"`` when the
         matrices were given directly). Reports state it, since self-dynamics change the
         answer.
+    E : scipy.sparse.csr_array
+        ``n x q`` disturbance pattern: ``E[i, j] != 0`` means disturbance ``j`` acts on
+        state ``i``. Disturbances are exogenous: they are not states, never driver or
+        sensor sites, and for controllability they are simply not inputs. Empty (``q = 0``)
+        unless given, which leaves every analysis exactly as without them.
+    H : scipy.sparse.csr_array
+        ``r x n`` regulated-output pattern (``z = H x``); empty unless given.
+    disturbance_names, regulated_names : tuple of str
+    disturbance_nodes : mapping of str to numpy array
+        Node-table columns of the disturbances (one value per disturbance: map
+        coordinates and any other attribute the file gave them), kept so writers
+        round-trip them.
     """
 
     A: sp.csr_array
@@ -264,6 +281,11 @@ class StructuredSystem:
     nodes: Mapping[str, np.ndarray] = field(default_factory=dict)
     weighted: bool = False
     model: str = "given"
+    E: Any = None
+    H: Any = None
+    disturbance_names: Sequence[str] = ()
+    regulated_names: Sequence[str] = ()
+    disturbance_nodes: Mapping[str, np.ndarray] = field(default_factory=dict)
     _index: dict[str, int] = field(default_factory=dict, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -281,15 +303,29 @@ class StructuredSystem:
                         "input names")
         outputs = _names(self.output_names if len(self.output_names) else None, p, "y",
                          "output names")
-        nodes: dict[str, np.ndarray] = {}
-        for key, col in dict(self.nodes).items():
-            arr = np.array(col, copy=True)
-            if arr.shape != (n,):
+        nodes = _table(self.nodes, n, "node table", "state")
+        q = len(self.disturbance_names) if self.E is None else (
+            self.E.shape[1] if hasattr(self.E, "shape") else np.asarray(self.E).shape[1])
+        r = len(self.regulated_names) if self.H is None else (
+            self.H.shape[0] if hasattr(self.H, "shape") else np.asarray(self.H).shape[0])
+        E = _empty_csr((n, q)) if self.E is None else canonical_csr(self.E, (n, q), "E")
+        H = _empty_csr((r, n)) if self.H is None else canonical_csr(self.H, (r, n), "H")
+        disturbances = _names(self.disturbance_names if len(self.disturbance_names) else None,
+                              q, "w", "disturbance names")
+        regulated = _names(self.regulated_names if len(self.regulated_names) else None,
+                           r, "z", "regulated output names")
+        if q and len(states):
+            clash = _first_common(disturbances, states)
+            if clash is not None:
                 raise InvalidSystemError(
-                    f"node table column {key!r} must have one value per state ({n}), "
-                    f"found shape {arr.shape}.")
-            arr.setflags(write=False)
-            nodes[str(key)] = arr
+                    f"{clash!r} is both a state and a disturbance; a disturbance is never a "
+                    "state: rename one of them.")
+        dnodes = _table(self.disturbance_nodes, q, "disturbance table", "disturbance")
+        object.__setattr__(self, "E", _freeze(E))
+        object.__setattr__(self, "H", _freeze(H))
+        object.__setattr__(self, "disturbance_names", disturbances)
+        object.__setattr__(self, "regulated_names", regulated)
+        object.__setattr__(self, "disturbance_nodes", dnodes)
         object.__setattr__(self, "A", _freeze(A))
         object.__setattr__(self, "B", _freeze(B))
         object.__setattr__(self, "C", _freeze(C))
@@ -314,6 +350,16 @@ class StructuredSystem:
     def n_outputs(self) -> int:
         """Number of output rows ``p``."""
         return int(self.C.shape[0])
+
+    @property
+    def n_disturbances(self) -> int:
+        """Number of disturbance columns ``q`` (of ``E``)."""
+        return int(self.E.shape[1])
+
+    @property
+    def n_regulated(self) -> int:
+        """Number of regulated output rows ``r`` (of ``H``)."""
+        return int(self.H.shape[0])
 
     @property
     def n_links(self) -> int:
@@ -537,10 +583,7 @@ class StructuredSystem:
         Integers are accepted as indices. Raises :class:`UnknownNameError` naming the
         first unknown name and a few close matches.
         """
-        pool = {"state": self.state_names, "input": self.input_names,
-                "output": self.output_names}.get(kind)
-        if pool is None:
-            raise InvalidSystemError(f"kind must be 'state', 'input' or 'output', found {kind!r}.")
+        pool = self._pool(kind)
         lookup = self._index.get(kind)
         if lookup is None and not isinstance(pool, NameList):
             lookup = {name: i for i, name in enumerate(pool)}  # type: ignore[assignment]
@@ -554,6 +597,12 @@ class StructuredSystem:
             elif isinstance(name, (int, np.integer)) and 0 <= int(name) < len(pool):
                 out.append(int(name))
             else:
+                if kind == "state" and key in self.disturbance_names:
+                    raise UnknownNameError(
+                        f"{key!r} is a disturbance, not a state: the plant suffers it and "
+                        "nobody commands it, so no input or sensor is ever placed on it; "
+                        f"name a state it acts on instead (e.g. "
+                        f"{', '.join(map(repr, self.disturbed_by(key)[:3]))}).")
                 import difflib
                 close = difflib.get_close_matches(key, pool, n=3) if len(pool) <= 100_000 else []
                 hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
@@ -564,9 +613,29 @@ class StructuredSystem:
 
     def names_of(self, indices: Iterable[int], *, kind: str = "state") -> list[str]:
         """Names for the given indices."""
-        pool = {"state": self.state_names, "input": self.input_names,
-                "output": self.output_names}[kind]
+        pool = self._pool(kind)
         return [pool[int(i)] for i in indices]
+
+    _KINDS = ("state", "input", "output", "disturbance", "regulated")
+
+    def _pool(self, kind: str) -> Sequence[str]:
+        pool = {"state": self.state_names, "input": self.input_names,
+                "output": self.output_names, "disturbance": self.disturbance_names,
+                "regulated": self.regulated_names}.get(kind)
+        if pool is None:
+            raise InvalidSystemError(
+                f"kind must be one of {', '.join(map(repr, self._KINDS))}, found {kind!r}.")
+        return pool
+
+    def disturbed_states(self) -> np.ndarray:
+        """Sorted indices of the states some disturbance acts on directly."""
+        return np.flatnonzero(np.diff(self.E.indptr)).astype(np.int64)
+
+    def disturbed_by(self, disturbance: object) -> list[str]:
+        """Names of the states the disturbance (a name or an index) acts on directly."""
+        j = int(self.index_of([disturbance], kind="disturbance")[0])
+        rows = np.flatnonzero(self.E[:, [j]].toarray().ravel())
+        return [self.state_names[int(i)] for i in rows]
 
     def driven_states(self) -> np.ndarray:
         """Sorted indices of the states some input acts on directly (driver nodes)."""
@@ -606,6 +675,11 @@ class StructuredSystem:
     def with_outputs(self, outputs: Any, *, names: Sequence[object] | None = None) -> StructuredSystem:
         """A copy with new output rows: state names/indices (one dedicated sensor each),
         a mapping ``output name -> states it reads``, or a ``p x n`` matrix."""
+        if isinstance(outputs, Mapping):
+            for v in outputs.values():
+                self.index_of(_as_list(v))  # errors name this system's states
+        elif not (sp.issparse(outputs) or isinstance(outputs, np.ndarray)):
+            self.index_of(_as_list(outputs))
         dual = self.dual().with_inputs(
             outputs.T if sp.issparse(outputs) or isinstance(outputs, np.ndarray) else outputs,
             names=names)
@@ -615,15 +689,125 @@ class StructuredSystem:
                 "y:" + s[2:] for s in dual.input_names))
         return dual.dual()
 
+    def with_disturbances(self, disturbances: Any, *, names: Sequence[object] | None = None,
+                          nodes: Mapping[str, Any] | None = None) -> StructuredSystem:
+        """A copy with new disturbance columns ``E`` (replacing any existing ones).
+
+        ``disturbances`` may be: a sequence of state names or indices (one disturbance
+        acting on each, named ``w:<state>``); a mapping ``disturbance name -> states it
+        acts on``; or an ``n x q`` matrix. ``nodes`` is the disturbances' own node table
+        (one value per disturbance in each column).
+        """
+        E, dnames = self._columns(disturbances, names, "w")
+        return self._replace(E=E, disturbance_names=dnames, disturbance_nodes=dict(nodes or {}))
+
+    def with_regulated(self, regulated: Any, *, names: Sequence[object] | None = None
+                       ) -> StructuredSystem:
+        """A copy with new regulated outputs ``z = H x``: state names/indices (one each,
+        named ``z:<state>``), a mapping ``name -> states it depends on``, or an ``r x n``
+        matrix."""
+        if sp.issparse(regulated) or isinstance(regulated, np.ndarray):
+            H, znames = self._columns(regulated.T, names, "z")
+        else:
+            H, znames = self._columns(regulated, names, "z")
+        return self._replace(H=sp.csr_array(H).T.tocsr(), regulated_names=znames)
+
+    def states_to_disturbances(self, names: Iterable[object]) -> StructuredSystem:
+        """A copy in which the named states become disturbances.
+
+        Readers call this for nodes a file marks as disturbances: each one leaves the
+        state set, its outgoing links become its column of ``E`` (weights kept), and its
+        node-table row moves to :attr:`disturbance_nodes`. New disturbances come after
+        any existing ones, in the order given.
+
+        Raises
+        ------
+        InvalidSystemError
+            A named state has incoming links (self-loops included: a disturbance is
+            exogenous), an input acts on it, or a sensor or regulated output reads it;
+            the message names it.
+        """
+        idx = self.index_of(list(names))
+        if idx.size == 0:
+            return self
+        if np.unique(idx).size != idx.size:
+            dup = self.state_names[int(np.flatnonzero(np.bincount(idx) > 1)[0])]
+            raise InvalidSystemError(f"the disturbance {dup!r} is named twice.")
+        n = self.n_states
+        indeg = np.diff(self.A.indptr)
+        for i in idx.tolist():
+            if indeg[i]:
+                src = self.state_names[int(self.A.indices[self.A.indptr[i]])]
+                what = "a self-loop" if src == self.state_names[i] else f"a link from {src!r}"
+                raise InvalidSystemError(
+                    f"{self.state_names[i]!r} is marked as a disturbance but has {indeg[i]} "
+                    f"incoming link{'s' if indeg[i] > 1 else ''} ({what}); a disturbance is "
+                    "exogenous, nothing in the plant acts on it: remove the links into it, or "
+                    "model it as a state.")
+        for M, what in ((self.B, "an input acts on"), (self.C.T.tocsr(), "a sensor reads"),
+                        (self.H.T.tocsr(), "a regulated output reads")):
+            hit = idx[np.diff(M.indptr)[idx] > 0]
+            if hit.size:
+                raise InvalidSystemError(
+                    f"{self.state_names[int(hit[0])]!r} is marked as a disturbance, but {what} "
+                    "it; inputs, sensors and regulated outputs belong on states only.")
+        keep = np.ones(n, bool)
+        keep[idx] = False
+        kept = np.flatnonzero(keep)
+        A = self.A[kept][:, kept]
+        E_new = self.A[kept][:, idx]
+        E = sp.hstack([self.E[kept], E_new], format="csr")
+        dnames = tuple(self.disturbance_names) + tuple(self.state_names[int(i)] for i in idx)
+        cols = set(self.nodes) | set(self.disturbance_nodes)
+        dnodes: dict[str, np.ndarray] = {}
+        for c in sorted(cols):
+            old = self.disturbance_nodes.get(c)
+            new = self.nodes.get(c)
+            old_arr = np.asarray(old) if old is not None else _missing(self.n_disturbances, new)
+            new_arr = np.asarray(new)[idx] if new is not None else _missing(idx.size, old)
+            dnodes[c] = np.concatenate([old_arr, new_arr]) if old_arr.size else new_arr
+        names_kept: Any = [self.state_names[int(i)] for i in kept]
+        return self._replace(
+            A=A, B=self.B[kept], C=self.C[:, kept], H=self.H[:, kept], E=E,
+            state_names=tuple(names_kept), disturbance_names=dnames,
+            nodes={c: v[kept] for c, v in self.nodes.items()}, disturbance_nodes=dnodes)
+
+    def _columns(self, spec: Any, names: Sequence[object] | None, prefix: str
+                 ) -> tuple[Any, tuple[str, ...]]:
+        """Columns over the states from a mapping, a list of states or a matrix."""
+        n = self.n_states
+        if isinstance(spec, Mapping):
+            cols = [self.index_of(_as_list(v)) for v in spec.values()]
+            rows = np.concatenate(cols) if cols else np.zeros(0, np.int64)
+            colidx = np.repeat(np.arange(len(cols)), [c.size for c in cols])
+            M = sp.coo_array((np.ones(rows.size), (rows, colidx)), shape=(n, len(cols)))
+            return M, tuple(str(k) for k in spec.keys())
+        if sp.issparse(spec) or (isinstance(spec, np.ndarray) and spec.ndim == 2):
+            k = spec.shape[1]
+            return spec, (tuple(str(x) for x in names) if names is not None
+                          else tuple(f"{prefix}{j}" for j in range(k)))
+        idx = self.index_of(_as_list(spec))
+        M = sp.coo_array((np.ones(idx.size), (idx, np.arange(idx.size))), shape=(n, idx.size))
+        return M, (tuple(str(x) for x in names) if names is not None
+                   else tuple(f"{prefix}:{self.state_names[i]}" for i in idx))
+
     def dual(self) -> StructuredSystem:
         """The dual system ``(A^T, C^T, B^T)``: inputs become outputs and vice versa.
 
         Observability of ``self`` is controllability of ``self.dual()``. Edges reverse.
+        Disturbances and regulated outputs swap the same way (``E`` becomes ``H^T`` and
+        ``H`` becomes ``E^T``), so the dual's transfer matrix from disturbances to
+        regulated outputs is the transpose of the original one, and ``dual().dual()``
+        is the original system. The disturbances' node table does not survive the
+        swap (regulated outputs have none).
         """
         return StructuredSystem(A=self.A.T.tocsr(), B=self.C.T.tocsr(), C=self.B.T.tocsr(),
                                 state_names=self.state_names, input_names=self.output_names,
                                 output_names=self.input_names, nodes=self.nodes,
-                                weighted=self.weighted, model=self.model)
+                                weighted=self.weighted, model=self.model,
+                                E=self.H.T.tocsr(), H=self.E.T.tocsr(),
+                                disturbance_names=self.regulated_names,
+                                regulated_names=self.disturbance_names)
 
     def with_self_loops(self) -> StructuredSystem:
         """A copy with self-dynamics on every state (existing diagonal weights kept)."""
@@ -659,14 +843,144 @@ class StructuredSystem:
     def _replace(self, **changes: Any) -> StructuredSystem:
         base = dict(A=self.A, B=self.B, C=self.C, state_names=self.state_names,
                     input_names=self.input_names, output_names=self.output_names,
-                    nodes=self.nodes, weighted=self.weighted, model=self.model)
+                    nodes=self.nodes, weighted=self.weighted, model=self.model,
+                    E=self.E, H=self.H, disturbance_names=self.disturbance_names,
+                    regulated_names=self.regulated_names,
+                    disturbance_nodes=self.disturbance_nodes)
         base.update(changes)
         return StructuredSystem(**base)
 
+    def same_as(self, other: StructuredSystem) -> bool:
+        """Whether ``other`` has the same parts: patterns and weights of ``A, B, C, E, H``,
+        all names, the node tables, ``weighted`` and ``model``."""
+        def eq_matrix(a: sp.csr_array, b: sp.csr_array) -> bool:
+            return a.shape == b.shape and a.nnz == b.nnz and bool(
+                np.array_equal(a.indptr, b.indptr) and np.array_equal(a.indices, b.indices)
+                and np.array_equal(a.data, b.data))
+
+        def eq_table(a: Mapping[str, np.ndarray], b: Mapping[str, np.ndarray]) -> bool:
+            return set(a) == set(b) and all(
+                np.array_equal(np.asarray(a[k]), np.asarray(b[k]), equal_nan=a[k].dtype.kind == "f")
+                if a[k].dtype.kind == "f" else list(a[k]) == list(b[k]) for k in a)
+
+        return (isinstance(other, StructuredSystem)
+                and all(eq_matrix(getattr(self, k), getattr(other, k)) for k in "ABCEH")
+                and all(tuple(getattr(self, k)) == tuple(getattr(other, k)) for k in (
+                    "state_names", "input_names", "output_names", "disturbance_names",
+                    "regulated_names"))
+                and eq_table(self.nodes, other.nodes)
+                and eq_table(self.disturbance_nodes, other.disturbance_nodes)
+                and self.weighted == other.weighted and self.model == other.model)
+
+    def parts(self) -> dict[str, Any]:
+        """Sizes and names of every part, JSON-ready (for ``inspect``-style summaries)."""
+        return {"n_states": self.n_states, "n_links": self.n_links,
+                "n_inputs": self.n_inputs, "n_outputs": self.n_outputs,
+                "n_disturbances": self.n_disturbances, "n_regulated": self.n_regulated,
+                "disturbances": list(self.disturbance_names),
+                "regulated": list(self.regulated_names),
+                "model": self.model, "weighted": self.weighted}
+
     def __repr__(self) -> str:
+        extra = ""
+        if self.n_disturbances or self.n_regulated:
+            extra = (f"n_disturbances={self.n_disturbances}, "
+                     f"n_regulated={self.n_regulated}, ")
         return (f"StructuredSystem(n_states={self.n_states}, n_links={self.n_links}, "
-                f"n_inputs={self.n_inputs}, n_outputs={self.n_outputs}, model={self.model!r}, "
-                f"weighted={self.weighted})")
+                f"n_inputs={self.n_inputs}, n_outputs={self.n_outputs}, {extra}"
+                f"model={self.model!r}, weighted={self.weighted})")
+
+
+@dataclass(frozen=True)
+class Station:
+    """A control station of decentralized control: the inputs it drives and the measured
+    outputs it reads (indices into the system's inputs and outputs, sorted, distinct).
+
+    A station's local feedback runs from each of its outputs to each of its inputs; one
+    station holding every input and output is centralized control. Build them from names
+    with :func:`make_stations`, which checks them against a system.
+    """
+
+    name: str
+    inputs: tuple[int, ...]
+    outputs: tuple[int, ...]
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "name", str(self.name))
+        object.__setattr__(self, "inputs", tuple(sorted(int(i) for i in self.inputs)))
+        object.__setattr__(self, "outputs", tuple(sorted(int(i) for i in self.outputs)))
+        for part in ("inputs", "outputs"):
+            vals = getattr(self, part)
+            if len(set(vals)) != len(vals) or any(v < 0 for v in vals):
+                raise InvalidSystemError(
+                    f"station {self.name!r}: its {part} must be distinct indices >= 0, "
+                    f"found {vals!r}.")
+
+    def to_dict(self, system: StructuredSystem | None = None) -> dict[str, Any]:
+        """JSON-ready: indices, plus names when ``system`` is given."""
+        out: dict[str, Any] = {"name": self.name, "inputs": list(self.inputs),
+                               "outputs": list(self.outputs)}
+        if system is not None:
+            out["input_names"] = system.names_of(self.inputs, kind="input")
+            out["output_names"] = system.names_of(self.outputs, kind="output")
+        return out
+
+
+def make_stations(system: StructuredSystem,
+                  groups: Mapping[str, Mapping[str, Iterable[object]]]) -> tuple[Station, ...]:
+    """Stations from names: ``{station: {"inputs": [...], "outputs": [...]}}``.
+
+    Raises
+    ------
+    UnknownNameError
+        A station names an input or output the system does not have (the message names
+        the station and the item).
+    InvalidSystemError
+        Two stations share an input or an output (stations must not overlap).
+    """
+    out = []
+    for name, parts in groups.items():
+        unknown = set(parts) - {"inputs", "outputs"}
+        if unknown:
+            raise InvalidSystemError(
+                f"station {name!r}: unknown part {sorted(unknown)[0]!r}; a station lists "
+                "'inputs' and 'outputs'.")
+        idx: dict[str, list[int]] = {}
+        for part, kind in (("inputs", "input"), ("outputs", "output")):
+            idx[part] = []
+            for item in _as_list(parts.get(part, ())):
+                try:
+                    idx[part].append(int(system.index_of([item], kind=kind)[0]))
+                except UnknownNameError as exc:
+                    raise UnknownNameError(f"station {name!r}: {exc}") from None
+        out.append(Station(name, tuple(idx["inputs"]), tuple(idx["outputs"])))
+    check_stations(system, out)
+    return tuple(out)
+
+
+def check_stations(system: StructuredSystem, stations: Sequence[Station]) -> None:
+    """Check that ``stations`` fit ``system``: indices in range, distinct station names,
+    no input or output held by two stations. Raises :class:`InvalidSystemError` naming
+    the item and both stations."""
+    seen_names: set[str] = set()
+    owner: dict[tuple[str, int], str] = {}
+    for st in stations:
+        if st.name in seen_names:
+            raise InvalidSystemError(f"the station name {st.name!r} is used twice.")
+        seen_names.add(st.name)
+        for part, kind, count in (("inputs", "input", system.n_inputs),
+                                  ("outputs", "output", system.n_outputs)):
+            for i in getattr(st, part):
+                if i >= count:
+                    raise InvalidSystemError(
+                        f"station {st.name!r}: {kind} index {i} is out of range; the system "
+                        f"has {count} {kind}s.")
+                prev = owner.setdefault((kind, i), st.name)
+                if prev != st.name:
+                    raise InvalidSystemError(
+                        f"stations {prev!r} and {st.name!r} overlap: both hold the {kind} "
+                        f"{system.names_of([i], kind=kind)[0]!r}; each input and output "
+                        "belongs to at most one station.")
 
 
 # ---------------------------------------------------------------------- helpers
@@ -675,6 +989,39 @@ def _count_unique_pairs(rows: np.ndarray, cols: np.ndarray, n: int) -> int:
         return 0
     key = np.sort(rows.astype(np.int64) * max(n, 1) + cols.astype(np.int64))
     return int(1 + np.count_nonzero(key[1:] != key[:-1]))  # sort-based: faster than unique
+
+
+def _table(columns: Mapping[str, Any], count: int, what: str, per: str
+           ) -> dict[str, np.ndarray]:
+    out: dict[str, np.ndarray] = {}
+    for key, col in dict(columns).items():
+        arr = np.array(col, copy=True)
+        if arr.shape != (count,):
+            raise InvalidSystemError(
+                f"{what} column {key!r} must have one value per {per} ({count}), "
+                f"found shape {arr.shape}.")
+        arr.setflags(write=False)
+        out[str(key)] = arr
+    return out
+
+
+def _first_common(a: Sequence[str], b: Sequence[str]) -> str | None:
+    if isinstance(b, NameList):
+        return next((x for x in a if b.position(x) is not None), None)
+    pool = set(b)
+    return next((x for x in a if x in pool), None)
+
+
+def _missing(count: int, like: Any) -> np.ndarray:
+    """Filler for a node-table column one side lacks: NaN for numbers, None otherwise."""
+    arr = np.asarray(like) if like is not None else np.zeros(0)
+    if arr.dtype.kind == "f":
+        return np.full(count, np.nan)
+    if arr.dtype.kind == "b":
+        return np.ones(count, bool)
+    out = np.empty(count, dtype=object)
+    out[:] = None
+    return out
 
 
 def _seq(names: Any) -> Any:

@@ -8,6 +8,8 @@ EXPECTED = sorted([
     "UnknownNameError", "__version__", "controllability", "is_structurally_controllable",
     "is_structurally_observable", "minimum_inputs", "minimum_sensors", "observability",
     "summarize",
+    # disturbances, regulated outputs and control stations
+    "Station", "make_stations",
     # ensemble (null models, cavity prediction, executor)
     "NullComparison", "cavity_driver_fraction", "compare_to_null", "configuration_model",
     "degree_preserving_swaps", "run_tasks",
