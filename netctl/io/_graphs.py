@@ -14,6 +14,7 @@ from typing import Any
 import numpy as np
 
 from netctl.io._common import file_error
+from netctl.io._signals import apply_node_kinds, regulated_not_kept
 from netctl.system import StructuredSystem, _node_table_from_attrs
 
 __all__ = ["system_from_parts", "node_rows", "refuse_unsafe_xml", "warn_not_kept"]
@@ -82,7 +83,7 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
                                              state_names=str_names, nodes=table, model=model)
     for c in caught:
         warnings.warn(f"{path}: {c.message}", stacklevel=3)
-    return system
+    return apply_node_kinds(system, path)
 
 
 def _is_number(x: Any) -> bool:
@@ -107,11 +108,16 @@ def node_rows(system: StructuredSystem) -> list[dict[str, Any]]:
 
 
 def warn_not_kept(system: StructuredSystem, path: object, fmt: str) -> None:
-    """Warn that inputs and outputs cannot be stored in ``fmt``."""
+    """Warn that inputs and outputs (and regulated outputs other than ``z:<state>``
+    marks) cannot be stored in ``fmt``."""
     if system.n_inputs or system.n_outputs:
         warnings.warn(f"{path}: the {fmt} format holds the network only; the "
                       f"{system.n_inputs} input(s) and {system.n_outputs} output(s) were not "
                       "written (use a .toml system description to keep them).", stacklevel=3)
+    lost = regulated_not_kept(system)
+    if lost:
+        warnings.warn(f"{path}: {lost} (use a .toml system description to keep them).",
+                      stacklevel=3)
 
 
 def refuse_unsafe_xml(path: object, data: bytes) -> None:

@@ -545,7 +545,60 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     (('a', 'b', 'c'), 2, True)
     """
     e = read_edge_arrays(path)
-    return _system_from_arrays(e, path, model=model)
+    system = _system_from_arrays(e, path, model=model)
+    marks = _header_marks(path)
+    if marks:
+        system = _apply_marks(system, marks, path)
+    return system
+
+
+#: Comment lines at the top of an edge list that mark signals (``# disturbances: a, b``).
+MARKS: tuple[str, ...] = ("disturbances", "regulated")
+_MARK = re.compile(r"#\s*(disturbances|regulated)\s*:(.*)\Z", re.IGNORECASE)
+
+
+def _header_marks(path: str | os.PathLike[str]) -> dict[str, list[tuple[str, int]]]:
+    """``{mark: [(name, line), ...]}`` from the comment lines before the first link."""
+    out: dict[str, list[tuple[str, int]]] = {}
+    with _open(path) as fh:
+        for lineno, raw in enumerate(fh, start=1):
+            line = raw.decode("utf-8", "replace").strip()
+            if not line:
+                continue
+            if not line.startswith("#"):
+                break  # the header row or the first link: marks come before it
+            m = _MARK.match(line)
+            if m:
+                names = [x.strip() for x in m.group(2).split(",") if x.strip()]
+                out.setdefault(m.group(1).lower(), []).extend((x, lineno) for x in names)
+            if lineno > 10_000:
+                break
+    return out
+
+
+def _apply_marks(system: StructuredSystem, marks: dict[str, list[tuple[str, int]]],
+                 path: object) -> StructuredSystem:
+    from netctl.io._signals import mark_disturbances
+
+    known = set(system.state_names)
+    for mark in ("regulated", "disturbances"):
+        for name, line in marks.get(mark, []):
+            if name not in known:
+                raise file_error(path, line, f"the '# {mark}:' line names {name!r}, which is "
+                                 "not a node of this edge list; name nodes that appear in "
+                                 "a link (or on a line of their own).")
+    reg = [x for x, _ in marks.get("regulated", [])]
+    if reg:
+        system = system.with_regulated(reg)
+    dist = marks.get("disturbances", [])
+    if not dist:
+        return system
+    try:
+        return system.states_to_disturbances([x for x, _ in dist])
+    except Exception:  # find the offending name's own line for the message
+        for name, line in dist:
+            mark_disturbances(system, [name], path, line)
+        return mark_disturbances(system, [x for x, _ in dist], path, dist[0][1])
 
 
 def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
@@ -585,8 +638,10 @@ def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> No
 
     States with no link are written as single-name lines so nothing is lost; weights
     are written when the system is weighted (``repr``, so they read back exactly).
-    Inputs, outputs and the node table are not part of this format (use ``.toml``,
-    GraphML or node-link JSON to keep them).
+    Disturbances are written as nodes named on a ``# disturbances:`` line at the top,
+    with their links; regulated outputs that each read one state and are named
+    ``z:<state>`` as a ``# regulated:`` line. Inputs, outputs and the node table are not
+    part of this format (use ``.toml``, GraphML or node-link JSON to keep them).
     """
     bad = [s for s in system.state_names if _SPLIT.search(s) or "#" in s or not s]
     if bad:
@@ -600,7 +655,27 @@ def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> No
     linked[src] = True
     linked[dst] = True
     block = 1 << 18
+    from netctl.io._signals import dedicated_regulated, disturbance_links
+
+    head = ""
+    if system.n_disturbances:
+        bad = [s for s in system.disturbance_names if _SPLIT.search(s) or "#" in s or not s]
+        if bad:
+            from netctl.errors import InvalidSystemError
+            raise InvalidSystemError(f"the disturbance name {bad[0]!r} contains a separator "
+                                     "or '#', so it cannot be written to an edge list; "
+                                     "rename it or write a .toml description instead.")
+        head += f"# disturbances: {', '.join(system.disturbance_names)}\n"
+    reg = dedicated_regulated(system)
+    if reg:
+        head += f"# regulated: {', '.join(reg)}\n"
+    elif reg is None:
+        import warnings as _w
+        _w.warn(f"{path}: the {system.n_regulated} regulated output(s) are not all "
+                "'z:<state>' reading one state each, so they were not written (use a .toml "
+                "system description to keep them).", stacklevel=2)
     with atomic_write(path) as fh:
+        fh.write(head)
         fh.write("source,target,weight\n" if system.weighted else "source,target\n")
         vals = system.A.data
         for a in range(0, src.size, block):
@@ -611,6 +686,8 @@ def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> No
                 fh.write("".join(f"{u},{v},{x}\n" for u, v, x in zip(s_names, t_names, ws)))
             else:
                 fh.write("".join(f"{u},{v}\n" for u, v in zip(s_names, t_names)))
+        for u, v, x in disturbance_links(system):
+            fh.write(f"{u},{v},{x!r}\n" if system.weighted else f"{u},{v}\n")
         lone = names[~linked].tolist()
         if lone:
             fh.write("\n".join(lone) + "\n")

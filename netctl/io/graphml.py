@@ -3,6 +3,8 @@
 Read with networkx after a safety check: files that declare a document type or entities
 are refused before any XML parser sees them (no entity expansion, no external entities).
 Node attributes become the node table; the edge attribute ``weight`` the link weights.
+A node with ``disturbance = true`` is a disturbance and ``regulated = true`` adds a
+regulated output reading the node (see :mod:`netctl.io._signals`).
 """
 
 from __future__ import annotations
@@ -15,6 +17,7 @@ from typing import Any
 
 from netctl.io._common import atomic_write, file_error, read_bytes
 from netctl.io._graphs import node_rows, refuse_unsafe_xml, system_from_parts, warn_not_kept
+from netctl.io._signals import dedicated_regulated, disturbance_links, disturbance_rows
 from netctl.system import StructuredSystem
 
 __all__ = ["read_graphml", "write_graphml", "graph_to_system", "system_to_graph"]
@@ -47,16 +50,23 @@ def system_to_graph(system: StructuredSystem) -> Any:
 
     g = nx.DiGraph()
     names = system.state_names
+    regulated = set(dedicated_regulated(system) or ())
     for name, row in zip(names, node_rows(system)):
+        if name in regulated:
+            row["regulated"] = True
+        g.add_node(name, **row)
+    for name, row in zip(system.disturbance_names, disturbance_rows(system)):
         g.add_node(name, **row)
     src, dst = system.edges()
     if system.weighted:
         g.add_weighted_edges_from(zip((names[i] for i in src.tolist()),
                                       (names[i] for i in dst.tolist()),
                                       system.A.data.tolist()))
+        g.add_weighted_edges_from(disturbance_links(system))
     else:
         g.add_edges_from(zip((names[i] for i in src.tolist()),
                              (names[i] for i in dst.tolist())))
+        g.add_edges_from((w, x) for w, x, _ in disturbance_links(system))
     return g
 
 

@@ -15,6 +15,7 @@ from typing import Any
 
 from netctl.io._common import atomic_write, file_error, read_text
 from netctl.io._graphs import node_rows, system_from_parts, warn_not_kept
+from netctl.io._signals import dedicated_regulated, disturbance_links, disturbance_rows
 from netctl.system import StructuredSystem
 
 __all__ = ["read_nodelink", "write_nodelink"]
@@ -90,14 +91,21 @@ def write_nodelink(system: StructuredSystem, path: str | os.PathLike[str]) -> No
     """Write node-link JSON (directed; node table as node attributes), atomically."""
     warn_not_kept(system, path, "node-link JSON")
     names = system.state_names
-    nodes = [{"id": n, **row} for n, row in zip(names, node_rows(system))]
+    regulated = set(dedicated_regulated(system) or ())
+    nodes = [{"id": n, **row, **({"regulated": True} if n in regulated else {})}
+             for n, row in zip(names, node_rows(system))]
+    nodes += [{"id": n, **row} for n, row in zip(system.disturbance_names,
+                                                 disturbance_rows(system))]
     src, dst = system.edges()
     if system.weighted:
         links = [{"source": names[a], "target": names[b], "weight": w} for a, b, w in
                  zip(src.tolist(), dst.tolist(), system.A.data.tolist())]
+        links += [{"source": a, "target": b, "weight": w}
+                  for a, b, w in disturbance_links(system)]
     else:
         links = [{"source": names[a], "target": names[b]} for a, b in
                  zip(src.tolist(), dst.tolist())]
+        links += [{"source": a, "target": b} for a, b, _ in disturbance_links(system)]
     doc = {"directed": True, "multigraph": False, "graph": {}, "nodes": nodes, "links": links}
     with atomic_write(path) as fh:
         json.dump(doc, fh, ensure_ascii=False, indent=1, allow_nan=False)

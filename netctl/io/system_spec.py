@@ -1,5 +1,6 @@
 """The system description: a TOML file naming states, couplings, inputs, outputs,
-subsystems and the ties between them (schema in docs/FORMATS.md).
+disturbances, regulated outputs, control stations, subsystems and the ties between them
+(schema in docs/FORMATS.md).
 
 ``read_spec(path)`` returns a :class:`SystemSpec` (the flat system plus the subsystem
 structure); ``read_system(path)`` returns just the flat
@@ -27,7 +28,7 @@ import scipy.sparse as sp
 
 from netctl.errors import MissingFileError
 from netctl.io._common import atomic_write, file_error, read_text
-from netctl.system import StructuredSystem
+from netctl.system import Station, StructuredSystem, make_stations
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -52,9 +53,12 @@ STATE_ATTRIBUTES: dict[str, str] = {
     "sensor": "true/false: may host a sensor",
     "sensor_cost": "number >= 0",
     "self": "true/false or a number: self-dynamics (damping, decay) and its weight",
+    "disturbance": "true/false: the node is a disturbance (not a state); its couplings "
+                   "are how it acts on states",
 }
 
-_SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "subsystems", "ties")
+_SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "disturbances", "regulated",
+             "stations", "subsystems", "ties")
 _SYSTEM_KEYS = ("name", "description", "weighted")
 _COUPLING_KEYS = ("file", "links", "undirected")
 _TIE_KEYS = ("from", "to", "kind", "weight")
@@ -88,6 +92,8 @@ class SystemSpec:
     unassigned : tuple of str
         States that belong to no subsystem (empty when there are no subsystems); they
         and their links are left out of :meth:`subsystem_systems`.
+    stations : dict of str to (tuple of str, tuple of str)
+        Control station name -> (its input names, its output names), from ``[stations]``.
     """
 
     path: str
@@ -100,6 +106,13 @@ class SystemSpec:
     ties: tuple[tuple[str, str, str, str, str], ...] = ()
     tie_weights: tuple[float | None, ...] = ()
     unassigned: tuple[str, ...] = ()
+    stations: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = field(default_factory=dict)
+
+    def station_records(self) -> tuple[Station, ...]:
+        """The ``[stations]`` as typed :class:`~netctl.system.Station` records (checked
+        against :attr:`system`; the reader has already refused unknown or shared items)."""
+        return make_stations(self.system, {k: {"inputs": v[0], "outputs": v[1]}
+                                           for k, v in self.stations.items()})
 
     def subsystem_of(self, state: str) -> str | None:
         """The subsystem that ``state`` belongs to (``None`` when none)."""
@@ -142,7 +155,11 @@ class SystemSpec:
                 "inputs": {k: list(v) for k, v in self.inputs.items()},
                 "outputs": {k: list(v) for k, v in self.outputs.items()},
                 "subsystems": {k: list(v) for k, v in self.subsystems.items()},
-                "ties": [list(t) for t in self.ties], "unassigned": list(self.unassigned)}
+                "ties": [list(t) for t in self.ties], "unassigned": list(self.unassigned),
+                "disturbances": list(self.system.disturbance_names),
+                "regulated": list(self.system.regulated_names),
+                "stations": {k: {"inputs": list(v[0]), "outputs": list(v[1])}
+                             for k, v in self.stations.items()}}
 
 
 # ---------------------------------------------------------------------- reading
@@ -276,6 +293,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     attrs: dict[str, dict[str, Any]] = {}
     self_w: dict[str, float] = {}
     any_self_weight = False
+    kinds: list[str] = []  # nodes marked disturbance = true, in file order
     for s, a in states_t.items():
         if not isinstance(a, dict):
             raise doc.error(f"state {s!r} must be a table of attributes such as "
@@ -304,6 +322,12 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
                     raise doc.error(f"attribute 'self' of state {s!r} must be true, false "
                                     f"or a nonzero finite number (its weight), found {v!r}.",
                                     s, k)
+            elif k == "disturbance":
+                if not isinstance(v, bool):
+                    raise doc.error(f"attribute 'disturbance' of {s!r} must be true or false, "
+                                    f"found {v!r}.", s, k)
+                if v:
+                    kinds.append(s)
             elif k == "subsystem":
                 raise doc.error(f"state {s!r}: put states into subsystems in the "
                                 "[subsystems] section, not with a 'subsystem' attribute.", s, k)
@@ -406,6 +430,19 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     for y, v in data.get("outputs", {}).items():
         outputs[y] = tuple(known_states(_name_list(doc, v, f"output {y!r}", y),
                                         f"output {y!r}", y))
+    signals: dict[str, dict[str, tuple[str, ...]]] = {}
+    for sec in ("disturbances", "regulated"):
+        signals[sec] = {}
+        for z, v in data.get(sec, {}).items():
+            if z in index:
+                raise doc.error(f"{sec} {z!r} has the name of a state; give it its own name "
+                                "(or mark the node with disturbance = true).", z)
+            signals[sec][z] = tuple(known_states(_name_list(doc, v, f"{sec} {z!r}", z),
+                                                 f"{sec} {z!r}", z))
+    for s in kinds:
+        if s in owner:
+            raise doc.error(f"{s!r} is a disturbance but is listed in subsystem {owner[s]!r}; "
+                            "subsystems hold states only.", s)
     assert len(names) == n_before_io
 
     # ---- ties
@@ -474,6 +511,11 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         w_parts.append(np.array(sum(tw, []), np.float64)
                        if any(w is not None for w in tie_w) else None)
 
+    # ---- control stations
+    stations = _read_stations_table(doc, data.get("stations", {}),
+                                    [u for u in inputs if u not in consumed], list(outputs),
+                                    consumed)
+
     # ---- assemble
     n = len(names)
     if n == 0:
@@ -520,7 +562,12 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         system = system.with_inputs(ext)
     if outputs:
         system = system.with_outputs({y: list(v) for y, v in outputs.items()})
-    unassigned = tuple(s for s in names if s not in owner) if subsystems else ()
+    if signals["disturbances"]:
+        system = system.with_disturbances({z: list(v) for z, v in signals["disturbances"].items()})
+    if signals["regulated"]:
+        system = system.with_regulated({z: list(v) for z, v in signals["regulated"].items()})
+    unassigned = tuple(s for s in names if s not in owner and s not in kinds) if subsystems \
+        else ()
     if subsystems:  # couplings between states of different subsystems are state ties too
         sub_names = list(subsystems)
         label = np.full(n, -1, np.int64)
@@ -534,9 +581,63 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
             if (names[a], names[b]) not in have:
                 ties.append((owner[names[a]], names[a], owner[names[b]], names[b], "state"))
                 tie_w.append(float(x) if weighted else None)
+    for s in kinds:  # each marked state leaves the states; errors name it and its line
+        try:
+            system.states_to_disturbances([s])
+        except (ValueError, KeyError) as exc:
+            raise doc.error(str(exc), s) from None
+    if kinds:
+        system = system.states_to_disturbances(kinds)
     return SystemSpec(path=str(path), name=name, description=description, system=system,
                       inputs=inputs, outputs=outputs, subsystems=subsystems, ties=tuple(ties),
-                      tie_weights=tuple(tie_w), unassigned=unassigned)
+                      tie_weights=tuple(tie_w), unassigned=unassigned, stations=stations)
+
+
+def _read_stations_table(doc: _Doc, table: Any, input_names: Sequence[str],
+                         output_names: Sequence[str], consumed: set[str] = set()
+                         ) -> dict[str, tuple[tuple[str, ...], tuple[str, ...]]]:
+    """``[stations]``: ``name = { inputs = [...], outputs = [...] }``, checked: every item
+    a known (external) input or output, and no item in two stations."""
+    if not isinstance(table, dict):
+        raise doc.error("[stations] must be a table of stations such as "
+                        "area1 = { inputs = [\"u1\"], outputs = [\"y1\"] }.", "stations")
+    out: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {}
+    owner: dict[tuple[str, str], str] = {}
+    pools = {"inputs": set(input_names), "outputs": set(output_names)}
+    for st, val in table.items():
+        if not isinstance(val, dict):
+            raise doc.error(f"station {st!r} must be a table such as "
+                            f"{{ inputs = [\"u1\"], outputs = [\"y1\"] }}, found {val!r}.", st)
+        _check_keys(doc, val, ("inputs", "outputs"), f"station {st!r}", st)
+        parts: dict[str, tuple[str, ...]] = {}
+        for part in ("inputs", "outputs"):
+            v = val.get(part, [])
+            items = [v] if isinstance(v, str) else v
+            if not (isinstance(items, list) and all(isinstance(x, str) for x in items)):
+                raise doc.error(f"station {st!r}: {part} must be a list of names, found "
+                                f"{v!r}.", st)
+            kind = part[:-1]
+            for x in items:
+                if x not in pools[part]:
+                    pool = sorted(pools[part])
+                    close = difflib.get_close_matches(x, pool, n=2)
+                    hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
+                    why = (" (it is fed by a signal tie, so no station drives it)"
+                           if x in consumed else "")
+                    raise doc.error(f"station {st!r} names the {kind} {x!r}, which is not an "
+                                    f"{kind} of this system{why}.{hint} List it under "
+                                    f"[{part}] first.", st, x)
+                prev = owner.setdefault((part, x), st)
+                if prev != st:
+                    raise doc.error(f"stations {prev!r} and {st!r} overlap: both hold the "
+                                    f"{kind} {x!r}; each {kind} belongs to at most one "
+                                    "station.", st, x)
+            if len(set(items)) != len(items):
+                dup = next(x for k, x in enumerate(items) if x in items[:k])
+                raise doc.error(f"station {st!r} lists the {kind} {dup!r} twice.", st, dup)
+            parts[part] = tuple(items)
+        out[st] = (parts["inputs"], parts["outputs"])
+    return out
 
 
 def _node_table(attrs: dict[str, dict[str, Any]], names: list[str]) -> dict[str, np.ndarray]:
@@ -591,13 +692,17 @@ def _val(v: Any) -> str:
     return json.dumps(str(v), ensure_ascii=False)
 
 
-def write_system(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
+def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
+                 stations: Sequence[Station] = ()) -> None:
     """Write ``system`` as a TOML system description (atomically).
 
     States with their node-table attributes and self-dynamics, couplings (inline, or in
     an edge list beside the file when there are more than :data:`INLINE_LINKS`), inputs,
     outputs, and subsystems when the node table has a ``subsystem`` column. Links across
-    subsystems are written as couplings (they read back as state ties).
+    subsystems are written as couplings (they read back as state ties). Disturbances are
+    written as nodes with ``disturbance = true`` (and their own attributes) whose
+    couplings are the entries of ``E``; regulated outputs under ``[regulated]``; the
+    given ``stations`` under ``[stations]``.
     """
     names = system.state_names
     n = system.n_states
@@ -618,6 +723,11 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str]) -> None
             parts.append("self = " + (_val(float(diag[i])) if system.weighted else "true"))
         lines.append(f"{_key(names[i])} = {{ {', '.join(parts)} }}" if parts
                      else f"{_key(names[i])} = {{}}")
+    from netctl.io._signals import disturbance_links, disturbance_rows
+
+    for dname, row in zip(system.disturbance_names, disturbance_rows(system)):
+        lines.append(f"{_key(dname)} = {{ "
+                     + ", ".join(f"{_key(k)} = {_val(v)}" for k, v in row.items()) + " }")
     src, dst = system.edges()
     vals = system.A.data
     off = src != dst
@@ -631,9 +741,13 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str]) -> None
         for a, b, x in zip(src[off].tolist(), dst[off].tolist(), vals[off].tolist()):
             w = f", {x!r}" if system.weighted else ""
             items.append(f"  [{_val(names[a])}, {_val(names[b])}{w}],")
+        for a_name, b_name, x in disturbance_links(system):
+            w = f", {x!r}" if system.weighted else ""
+            items.append(f"  [{_val(a_name)}, {_val(b_name)}{w}],")
         lines += ["links = ["] + items + ["]"]
     for kind, M, pool in (("inputs", system.B.tocsc(), system.input_names),
-                          ("outputs", system.C.T.tocsc(), system.output_names)):
+                          ("outputs", system.C.T.tocsc(), system.output_names),
+                          ("regulated", system.H.T.tocsc(), system.regulated_names)):
         if pool:
             lines += ["", f"[{kind}]"]
             for j, nm in enumerate(pool):
@@ -649,12 +763,22 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str]) -> None
             lines += ["", "[subsystems]"]
             for sub, members in groups.items():
                 lines.append(f"{_key(sub)} = [{', '.join(_val(s) for s in members)}]")
+    if stations:
+        from netctl.system import check_stations
+
+        check_stations(system, stations)
+        lines += ["", "[stations]"]
+        for st in stations:
+            ins = ", ".join(_val(system.input_names[i]) for i in st.inputs)
+            outs = ", ".join(_val(system.output_names[i]) for i in st.outputs)
+            lines.append(f"{_key(st.name)} = {{ inputs = [{ins}], outputs = [{outs}] }}")
     if side is not None:
         from netctl.io.edgelist import write_edgelist
 
         edges_only = system._replace(A=system.A - sp.dia_array((diag[None, :], [0]),
                                                                shape=(n, n)),
-                                     B=None, C=None, input_names=(), output_names=(), nodes={})
+                                     B=None, C=None, input_names=(), output_names=(), nodes={},
+                                     H=None, regulated_names=())
         write_edgelist(edges_only, side)
     with atomic_write(path) as fh:
         fh.write("\n".join(lines) + "\n")
