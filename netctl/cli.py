@@ -28,7 +28,7 @@ from netctl.models import MODELS, apply_model
 from netctl.system import StructuredSystem
 
 __all__ = ["main", "build_parser", "load_system", "emit", "CAUTION", "parse_names",
-           "UsageError"]
+           "UsageError", "disturbance_summary"]
 
 CAUTION = ("Caution: results concern a linear(ized) structural model, not the plant itself; "
            "a structurally controllable design can still need impractically large inputs. "
@@ -63,8 +63,35 @@ def _common_parser() -> _Parser:
 
 
 def load_system(args: argparse.Namespace) -> StructuredSystem:
-    """Read ``args.file`` and apply ``args.model``."""
-    return apply_model(read(args.file, args.format), args.model)
+    """Read ``args.file`` and apply ``args.model``.
+
+    When the file declares disturbances, they are noted on ``args`` so that :func:`emit`
+    reports them separately in every verb's output (they are never states, never driven
+    and never sensed)."""
+    system = apply_model(read(args.file, args.format), args.model)
+    if system.n_disturbances:
+        args._disturbances = disturbance_summary(system)
+    return system
+
+
+def disturbance_summary(system: StructuredSystem) -> dict[str, Any]:
+    """JSON-ready description of a system's disturbances and regulated outputs."""
+    return {"n_disturbances": system.n_disturbances,
+            "disturbances": {w: system.disturbed_by(j)
+                             for j, w in enumerate(system.disturbance_names)},
+            "regulated": {z: system.names_of(system.H.indices[system.H.indptr[r]:
+                                                              system.H.indptr[r + 1]])
+                          for r, z in enumerate(system.regulated_names)},
+            "note": "disturbances are exogenous (weather, feeds, utilities): not states, "
+                    "never driven or sensed, not counted in minimum inputs or sensors"}
+
+
+def _disturbance_text(info: dict[str, Any]) -> str:
+    parts = [f"{w} -> {', '.join(on[:4])}{', ...' if len(on) > 4 else ''}"
+             for w, on in list(info["disturbances"].items())[:_SHOWN]]
+    more = info["n_disturbances"] - len(parts)
+    return (f"  disturbances ({info['n_disturbances']}; not states, never driven or sensed): "
+            + "; ".join(parts) + (f"; ... ({more} more; --json lists all)" if more > 0 else ""))
 
 
 def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs") -> np.ndarray:
@@ -87,8 +114,14 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
     very large result is only built when ``--json`` or ``--out`` asks for it.
     """
     want_out = bool(getattr(args, "out", None))
+    info = getattr(args, "_disturbances", None)
+    if info is not None and text:
+        head, _, rest = text.partition("\n")
+        text = head + "\n" + _disturbance_text(info) + ("\n" + rest if rest else "")
     if args.json or want_out:
         data = result() if callable(result) else result
+        if info is not None and isinstance(data, dict):
+            data = {**data, "disturbances": info}
         payload = json.dumps(data, indent=2, sort_keys=False, default=_json_default) + "\n"
         if want_out:
             with atomic_write(args.out) as fh:
