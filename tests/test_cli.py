@@ -43,17 +43,17 @@ def test_check_exit_codes_and_reasons(capsys, tmp_path):
     assert code == 0 and "structurally controllable: yes" in out
     code, out, _ = run(capsys, "check", HEATING, "--inputs", "fuel_valve")
     assert code == 1
-    assert "no input reaches the component {solar_collector}" in out
+    assert "no input reaches the component {bypass_valve}" in out
     assert "smallest fix: add" in out
     assert "licensed engineers" in out  # the caution is shown
     # --inputs from a file, --json keys
     f = tmp_path / "inputs.txt"
-    f.write_text("# our actuators\nfuel_valve\noutdoor_temp\n")
+    f.write_text("# our actuators\nfuel_valve\nsubstation_park\n")
     code, out, _ = run(capsys, "check", HEATING, "--inputs", str(f), "--json")
     d = json.loads(out)
     assert code == 1
     assert {"controllable", "controllable_dimension", "inaccessible", "dilation"} <= set(d)
-    assert d["controllable"] is False and "solar_collector" in d["inaccessible"]
+    assert d["controllable"] is False and "bypass_valve" in d["inaccessible"]
 
 
 def test_sensors_json(capsys):

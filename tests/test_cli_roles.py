@@ -32,18 +32,18 @@ def test_roles_json_and_csv(capsys, tmp_path):
     code, out, err = run(capsys, "roles", HEATING, "--json", "--csv", str(out_csv))
     assert code == 0 and "Traceback" not in err
     d = json.loads(out)
-    assert len(d["nodes"]) == 14
+    assert len(d["nodes"]) == 12  # outdoor_temp, solar_collector are disturbances
     assert set(d["nodes"].values()) <= {"critical", "intermittent", "redundant"}
-    assert len(d["links"]) == 20
+    assert len(d["links"]) == 16
     assert all(set(x) == {"source", "target", "role"} for x in d["links"])
     assert {x["role"] for x in d["links"]} <= {"critical", "ordinary", "redundant"}
-    # in-degree-0 states are critical (Jia et al. 2013): the four with no feeder here
-    for s in ("fuel_valve", "outdoor_temp", "solar_collector", "bypass_valve"):
+    # in-degree-0 states are critical (Jia et al. 2013): the two with no feeder here
+    for s in ("fuel_valve", "bypass_valve"):
         assert d["nodes"][s] == "critical"
     rows = list(csv.DictReader(out_csv.read_text().splitlines()))
     assert rows[0].keys() == {"element", "source", "target", "role"}
-    assert sum(r["element"] == "state" for r in rows) == 14
-    assert sum(r["element"] == "link" for r in rows) == 20
+    assert sum(r["element"] == "state" for r in rows) == 12
+    assert sum(r["element"] == "link" for r in rows) == 16
 
 
 def test_roles_text_mentions_caution(capsys):
@@ -74,9 +74,9 @@ def test_sweep_single_losses_exit_codes(capsys, tmp_path):
     assert "supply_header" in d["nodes"]["breaking"]
     assert d["links"]["controllable_before"] is True
     rows = list(csv.DictReader(out_csv.read_text().splitlines()))
-    assert len(rows) == 20 + 14
+    assert len(rows) == 16 + 12  # 16 links, 12 states (2 disturbances are not states)
     code, out, _ = run(capsys, "sweep", HEATING)
-    assert code == 0 and "single link losses (20)" in out
+    assert code == 0 and "single link losses (16)" in out
 
 
 def test_sweep_sampled_and_attack(capsys, tmp_path):
@@ -97,7 +97,7 @@ def test_sweep_sampled_and_attack(capsys, tmp_path):
     code, _, err = run(capsys, "sweep", HEATING, "--attack", "pagerank")
     assert code == 2 and "unknown strategy 'pagerank'" in err
     code, _, err = run(capsys, "sweep", HEATING, "--k", "99", "--elements", "links")
-    assert code == 2 and "--k 99 exceeds the number of links (20)" in err
+    assert code == 2 and "--k 99 exceeds the number of links (16)" in err
 
 
 def test_whatif_breaks_and_keeps(capsys, tmp_path):
@@ -304,4 +304,4 @@ def test_whatif_names_checked_with_file_and_line(capsys, tmp_path):
     # nothing feeds it, so it needs its own input: the minimum rises and the exit is 1
     code, out, err = run(capsys, "whatif", HEATING, "--add-links", "boiler_tmp->supply_header")
     assert code == 1 and "new states boiler_tmp" in out
-    assert "warning: --add-links: 'boiler_tmp' is not one of the network's 14 states" in err
+    assert "warning: --add-links: 'boiler_tmp' is not one of the network's 12 states" in err

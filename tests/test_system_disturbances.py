@@ -79,6 +79,7 @@ def test_with_disturbances_and_with_regulated_forms():
 
 def test_dual_swaps_disturbances_and_regulated_outputs_and_is_an_involution():
     s = _plant().with_regulated({"z": ["c"]}).with_inputs(["a"]).with_outputs(["b"])
+    assert s.E.nnz == 2 and s.H.nnz == 1  # with_outputs (through the dual) keeps them
     d = s.dual()
     assert d.disturbance_names == ("z",) and d.regulated_names == ("w", "w2")
     assert (d.E.toarray() == s.H.toarray().T).all() and (d.H.toarray() == s.E.toarray().T).all()

@@ -90,7 +90,7 @@ def assert_self_contained(text, parser):
 @pytest.fixture(scope="module")
 def heating_report():
     system = read(HEATING)
-    return system, build_report(system, inputs=["fuel_valve", "outdoor_temp"],
+    return system, build_report(system, inputs=["fuel_valve", "substation_park"],
                                 source=str(HEATING))
 
 
@@ -113,7 +113,7 @@ def test_report_carries_the_analyses(heating_report):
     assert keys[:4] == ["summary", "minimum-inputs", "design", "map"]
     assert keys[-1] == "cautions"
     # the reasons are those of Lin's test on the same design, word for word
-    r = controllability(system.with_inputs(["fuel_valve", "outdoor_temp"]))
+    r = controllability(system.with_inputs(["fuel_valve", "substation_park"]))
     design = report.section("design")
     assert design.status == "fail" and design.data["reasons"] == r.reasons()
     text = report.to_html()
