@@ -23,7 +23,7 @@ def test_drivers_json_keys(capsys):
     code, out, err = run(capsys, "drivers", HEATING, "--json")
     assert code == 0 and "Traceback" not in err
     d = json.loads(out)
-    assert d["n_states"] == 14
+    assert d["n_states"] == 12  # outdoor_temp, solar_collector are disturbances
     assert d["n_inputs"] == len(d["wiring"])
     assert set(d["drivers"]) >= set(d["unmatched"])
 
@@ -33,7 +33,7 @@ def test_inspect_json_keys(capsys):
     d = json.loads(out)
     assert code == 0
     assert {"n_states", "n_links", "structural_rank", "n_inputs"} <= set(d)
-    assert d["n_links"] == 20
+    assert d["n_links"] == 16  # the 4 links out of the disturbances are E, not A
 
 
 def test_check_exit_codes_and_reasons(capsys, tmp_path):
