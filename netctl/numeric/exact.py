@@ -8,21 +8,47 @@ from typing import Any
 import numpy as np
 import scipy.linalg as la
 
-from netctl.numeric.rank import _dense, _weights_of, eigen_clusters, staircase_dimension
+from netctl.errors import OptionError
+from netctl.numeric.rank import (
+    MERSENNE_61,
+    _dense,
+    _weights_of,
+    krylov_dimension_mod_p,
+    staircase_dimension,
+)
+from netctl.numeric.spectrum import (
+    EXACT_LIMIT,
+    Cluster,
+    exact_spectrum,
+    jordan_clusters,
+    rational_matrix,
+)
 from netctl.system import StructuredSystem
 
-__all__ = ["ExactControllability", "Multiplicity", "exact_controllability"]
+__all__ = ["ExactControllability", "Multiplicity", "exact_controllability", "ARITHMETIC",
+           "CERTAIN_DECADES"]
 
 _EPS = float(np.finfo(float).eps)
+#: how exact_controllability computes: auto = exact rationals where possible
+ARITHMETIC = ("auto", "exact", "float")
+#: a float rank decision with a margin below this many decades is not certified
+#: (common practice, no source)
+CERTAIN_DECADES = 2.0
+_MODULAR_CERT_LIMIT = 2000
+_PRIME_2 = 2**31 - 1
 
 
 @dataclass(frozen=True)
 class Multiplicity:
-    """An eigenvalue (cluster mean) with algebraic and geometric multiplicity."""
+    """An eigenvalue (cluster mean) with algebraic and geometric multiplicity.
+
+    ``margin``: decades of the rank decision that gave ``geometric`` (``inf`` when exact).
+    """
 
     eigenvalue: complex
     algebraic: int
     geometric: int
+    margin: float = np.inf
 
 
 @dataclass(frozen=True)
@@ -33,7 +59,8 @@ class ExactControllability:
     ----------
     n_inputs : int
         Minimum number of inputs (independent columns of ``B``) for controllability
-        with these weights: the largest geometric multiplicity, at least 1.
+        with these weights: the largest geometric multiplicity, at least 1. Never more
+        than ``n_drivers``.
     eigenvalue : complex
         The eigenvalue attaining it (``lambda_M``).
     drivers : ndarray of int
@@ -41,7 +68,19 @@ class ExactControllability:
         ``A - lambda_M I`` that depend on the others, plus any state another eigenvalue
         still needed (``n_drivers >= n_inputs``; equal in the usual case).
     verified : bool
-        The staircase test confirms full dimension with dedicated inputs at ``drivers``.
+        The driver set is certified: dedicated inputs at ``drivers`` pass PBH at every
+        eigenvalue -- exactly (Krylov rank modulo a prime of the integer-scaled matrix,
+        which never exceeds the rank over the rationals) or by the staircase with a
+        margin of at least ``CERTAIN_DECADES``. ``certificate`` says which, or why not.
+    count_certain : bool
+        ``n_inputs`` is exact (rational arithmetic) or every multiplicity decision has a
+        margin of at least ``CERTAIN_DECADES``.
+    arithmetic : str
+        ``"exact"`` (rational multiplicities) or ``"float"`` (Jordan-aware clusters).
+    mixing : ndarray or None
+        A ``n_drivers x n_inputs`` integer matrix ``R`` such that ``n_inputs`` shared
+        inputs ``B = E_drivers R`` are certified to control the system (the count is
+        attained), or ``None`` when that could not be certified.
     multiplicities : tuple of Multiplicity
         Every eigenvalue cluster with algebraic multiplicity above one.
     """
@@ -56,6 +95,11 @@ class ExactControllability:
     symmetric: bool
     state_names: tuple[str, ...] = field(repr=False)
     weights: str = "given"
+    certificate: str = ""
+    count_certain: bool = True
+    count_margin: float = np.inf
+    arithmetic: str = "float"
+    mixing: np.ndarray | None = field(default=None, repr=False)
 
     @property
     def n_drivers(self) -> int:
@@ -78,14 +122,29 @@ class ExactControllability:
             "drivers": self.names(self.drivers),
             "n_drivers": self.n_drivers,
             "verified": self.verified,
-            "verification_margin": self.verification_margin,
+            "verification_margin": _jf(self.verification_margin),
+            "certificate": self.certificate,
+            "arithmetic": self.arithmetic,
+            "count_certain": self.count_certain,
+            "count_margin": _jf(self.count_margin),
+            "shared_inputs": (None if self.mixing is None else [
+                {self.state_names[int(d)]: int(self.mixing[r, c])
+                 for r, d in enumerate(self.drivers.tolist())}
+                for c in range(self.mixing.shape[1])]),
             "symmetric": self.symmetric,
             "multiplicities": [
                 {"eigenvalue": [round(complex(m.eigenvalue).real, 12),
                                 round(complex(m.eigenvalue).imag, 12)],
-                 "algebraic": m.algebraic, "geometric": m.geometric}
+                 "algebraic": m.algebraic, "geometric": m.geometric,
+                 "margin": _jf(m.margin)}
                 for m in self.multiplicities],
         }
+
+
+def _jf(x: float) -> float | str:
+    return float(x) if np.isfinite(x) else ("inf" if x > 0 else "-inf")
+
+
 
 
 def _dependent_rows(M: np.ndarray, rows: np.ndarray, count: int) -> np.ndarray:
@@ -96,25 +155,70 @@ def _dependent_rows(M: np.ndarray, rows: np.ndarray, count: int) -> np.ndarray:
     return np.sort(rows[piv[rows.size - count:]]).astype(np.int64)
 
 
+def _exact_dependent_rows(Mint: Any, value: Any, rows: list[int]) -> list[int]:
+    """Rows (among ``rows``) of ``Mint - value I`` dependent on the earlier ones (exact)."""
+    import flint
+
+    n = Mint.nrows()
+    if not rows:
+        return []
+    q = flint.fmpq(value.numerator, value.denominator)
+    ents = Mint.tolist()
+    sub = [[flint.fmpq(int(ents[i][j])) - (q if i == j else 0) for j in range(n)]
+           for i in rows]
+    T = flint.fmpq_mat(sub).transpose()  # columns = the chosen rows
+    R, r = T.rref()
+    pivots: set[int] = set()
+    col = 0
+    for i in range(int(r)):
+        while col < len(rows) and R[i, col] == 0:
+            col += 1
+        pivots.add(col)
+        col += 1
+    return [rows[k] for k in range(len(rows)) if k not in pivots]
+
+
+def _modular_rank(Mint: Any, D: np.ndarray, R: np.ndarray | None = None) -> int:
+    """Krylov dimension of ``(M, E_D R)`` modulo two primes (the larger of the two).
+
+    Never above the rank over the rationals, so ``== n`` certifies controllability."""
+    n = Mint.nrows()
+    M = np.array([[int(x) for x in row] for row in Mint.tolist()], dtype=object)
+    B = np.zeros((n, D.size), dtype=object)
+    B[D, np.arange(D.size)] = 1
+    if R is not None:
+        B = B.dot(R.astype(object))
+    best = 0
+    for p in (MERSENNE_61, _PRIME_2):
+        Ap = np.array((M % p).tolist(), dtype=np.int64) if n else np.zeros((0, 0), np.int64)
+        Bp = np.array((B % p).tolist(), dtype=np.int64).reshape(n, -1)
+        best = max(best, krylov_dimension_mod_p(Ap, Bp, p))
+        if best == n:
+            break
+    return best
+
+
 def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
-                          cluster_tol: float | None = None) -> ExactControllability:
+                          arithmetic: str = "auto", seed: int = 0) -> ExactControllability:
     r"""Minimum inputs and a driver set for the *given* weights (exact controllability).
 
     By the PBH test, ``(A, B)`` is controllable iff ``rank [A - lambda I, B] = n`` at
     every eigenvalue, so ``B`` needs at least ``mu(lambda) = n - rank(A - lambda I)``
     columns (the geometric multiplicity) at each eigenvalue; the minimum number of
-    inputs is ``N_D = max_lambda mu(lambda)`` [1]_. For symmetric ``A`` the geometric
-    and algebraic multiplicities coincide.
+    inputs is ``N_D = max_lambda mu(lambda)`` [1]_.
 
     Parameters
     ----------
     system : StructuredSystem
         Weighted (the stored values are used; see :func:`netctl.numeric.realize`).
     tol : float, optional
-        Rank tolerance; default ``n * eps * max(1, ||A||_F)`` (and at least ten times
-        the spread of the eigenvalue cluster).
-    cluster_tol : float, optional
-        Eigenvalues closer than this are one eigenvalue; default ``1e-6 max(1, ||A||_F)``.
+        Rank tolerance of the float driver checks; default ``1e3 n eps ||A||_2``.
+    arithmetic : {"auto", "exact", "float"}
+        ``auto``: exact rational multiplicities when every entry of ``A`` is a ratio of
+        small integers and ``n <= 200``, else floating point. ``exact`` insists (usage
+        error when not possible).
+    seed : int
+        Seed of the integer mixing matrix that shows the count is attained.
 
     Returns
     -------
@@ -122,14 +226,23 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
 
     Notes
     -----
-    Drivers [1]_: the rows of ``A - lambda_M I`` that are linearly dependent on the others
-    (here: the rows that QR with column pivoting of ``(A - lambda_M I)^H`` selects last,
-    a numerically stable stand-in for the column echelon form). Dedicated inputs there
-    give ``rank [A - lambda_M I, B] = n``; every other eigenvalue is then checked
-    (left eigenvector on the drivers, or row rank outside the drivers for clusters) and
-    a state is added where one still falls short; the staircase test confirms the
-    final set (``verified``). One of many driver sets; deterministic (pivot order).
-    Dense, ``O(n^3)`` plus one SVD per repeated eigenvalue.
+    *Multiplicities.* Exact: the characteristic polynomial of the integer-scaled matrix
+    is factored over the integers and ``rank_Q p(A)`` gives each geometric multiplicity
+    (python-flint). Float: eigenvalues are clustered with a radius that grows like
+    ``eps^(1/k)`` for a cluster of ``k`` (a Jordan block of size ``k`` splits that
+    far under rounding), and ``n - rank(A - mu I)`` at the cluster mean is decided by
+    the singular values, with the margin reported (:func:`netctl.numeric.spectrum.jordan_clusters`).
+
+    *Drivers* [1]_: the rows of ``A - lambda_M I`` that depend on the others (exact row
+    echelon form, or QR with column pivoting in floating point). Then at every other
+    eigenvalue the rows outside the drivers must stay independent (PBH with dedicated
+    inputs); where they do not, the dependent ones become drivers too. So
+    ``n_drivers >= n_inputs``; when larger, ``n_inputs`` *shared* inputs (columns mixing
+    the drivers, ``mixing``) still suffice, and that is certified too. The final set is
+    certified exactly (Krylov rank modulo two primes of the integer-scaled matrix; the
+    rank modulo a prime never exceeds the rational rank) when ``A`` is rational,
+    otherwise by the staircase with its margin; ``certificate`` says which, or that it
+    could not be certified. One of many driver sets; deterministic. Dense, ``O(n^3)``.
 
     References
     ----------
@@ -142,94 +255,134 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
     >>> from netctl import StructuredSystem
     >>> k5 = StructuredSystem.from_networkx(nx.complete_graph(5))
     >>> r = exact_controllability(k5)
-    >>> r.n_inputs, round(r.eigenvalue.real, 9), r.verified
-    (4, -1.0, True)
+    >>> r.n_inputs, round(r.eigenvalue.real, 9), r.verified, r.arithmetic
+    (4, -1.0, True, 'exact')
     """
+    if arithmetic not in ARITHMETIC:
+        raise OptionError(f"unknown arithmetic {arithmetic!r}; choose one of "
+                          f"{', '.join(ARITHMETIC)}.")
     A, _ = _dense(system)
     n = A.shape[0]
-    nrm = max(1.0, float(np.linalg.norm(A)))
-    base_tol = n * _EPS * nrm if tol is None else float(tol)
-    radius = 1e-6 * nrm if cluster_tol is None else float(cluster_tol)
+    names = tuple(system.state_names)
+    weights = _weights_of(system)
+    if not np.all(np.isfinite(A)):
+        bad = np.argwhere(~np.isfinite(A))[0]
+        raise OptionError(f"A[{names[bad[0]]}, {names[bad[1]]}] is {A[bad[0], bad[1]]!r}; "
+                          "exact controllability needs finite weights. Fix the weight in "
+                          "the file or choose sampled --weights.")
     symmetric = bool(np.array_equal(A, A.T))
     if n == 0:
         return ExactControllability(0, 0, 0j, np.zeros(0, np.int64), True, np.inf, (),
-                                    symmetric, tuple(system.state_names), _weights_of(system))
-    if symmetric:
-        lam_r, V = la.eigh(A)
-        lam = lam_r.astype(complex)
-        VL = V.astype(complex)
+                                    symmetric, names, weights, "empty system", True, np.inf,
+                                    "exact")
+    scale = max(float(la.norm(A, 2)), 1e-300)
+    t = 1e3 * n * _EPS * scale if tol is None else float(tol)
+    rat = rational_matrix(A) if arithmetic != "float" else None
+    use_exact = rat is not None and n <= EXACT_LIMIT
+    if arithmetic == "exact" and not use_exact:
+        raise OptionError(
+            f"exact arithmetic needs integer or rational weights (denominator <= 10^6) and "
+            f"at most {EXACT_LIMIT} states; found {n} states"
+            f"{'' if rat is not None else ' with non-rational weights'}. Use 'auto'.")
+    if use_exact:
+        assert rat is not None
+        clusters = exact_spectrum(rat[0], rat[1])
     else:
-        lam, VL = la.eig(A, left=True, right=False)
-    clusters = eigen_clusters(lam, radius)
-    info: list[tuple[complex, int, int, np.ndarray]] = []
-    for idx in clusters:
-        mu = complex(np.mean(lam[idx]))
-        if idx.size == 1:
-            info.append((mu, 1, 1, idx))
-            continue
-        if symmetric:
-            geo = int(idx.size)
+        clusters = jordan_clusters(A, symmetric=symmetric)
+    count_margin = min((c.margin for c in clusters if c.algebraic > 1), default=np.inf)
+    count_certain = use_exact or count_margin >= CERTAIN_DECADES
+    order = sorted(range(len(clusters)), key=lambda i: (-clusters[i].geometric,
+                                                        clusters[i].eigenvalue.real,
+                                                        clusters[i].eigenvalue.imag))
+    top = clusters[order[0]]
+    n_inputs = max(1, top.geometric)
+    chosen: set[int] = set()
+    if top.geometric > 1:
+        if top.rational is not None and rat is not None:
+            chosen.update(_exact_dependent_rows(rat[0], top.rational * rat[1],
+                                                list(range(n))))
         else:
-            spread = float(np.max(np.abs(lam[idx] - mu)))
-            s = la.svd(A - mu * np.eye(n), compute_uv=False)
-            geo = int(np.count_nonzero(s <= max(base_tol, 10 * spread)))
-            geo = max(1, min(geo, int(idx.size)))
-        info.append((mu, int(idx.size), geo, idx))
-    # lambda_M: largest geometric multiplicity; ties by (real, imag) ascending
-    order = sorted(range(len(info)), key=lambda i: (-info[i][2], info[i][0].real,
-                                                    info[i][0].imag))
-    lam_m, _, geo_m, _ = info[order[0]]
-    n_inputs = max(1, geo_m)
-    M = A - lam_m * np.eye(n)
-    drivers = _dependent_rows(M, np.arange(n), geo_m)
-    if drivers.size == 0:
-        # all eigenvalues simple: one input; start from the state the first mode
-        # reaches best and let the checks below add what is missing
-        drivers = np.zeros(0, np.int64)
-    chosen = set(drivers.tolist())
-    for i in order:
-        mu, alg, geo, idx = info[i]
-        if alg == 1:
-            w = VL[:, idx[0]]
-            w = w / np.linalg.norm(w)
-            if not chosen or np.max(np.abs(w[sorted(chosen)])) <= 1e-8:
-                chosen.add(int(np.argmax(np.abs(w))))
-            continue
-        if symmetric:
-            # orthonormal eigenvectors: the eigenvectors vanishing on the chosen states
-            # span the null space of Y[chosen]; add the states where they are largest
-            Y = VL[:, idx].real
-            D = np.array(sorted(chosen), np.int64)
-            if D.size:
-                _, sv, Vh = la.svd(Y[D], full_matrices=True)
-                rank = int(np.count_nonzero(sv > 1e-8))
-                Z = Y @ Vh[rank:].T
-            else:
-                Z = Y
-            if Z.shape[1]:
-                _, _, piv = la.qr(Z.T, mode="economic", pivoting=True)
-                chosen.update(int(i) for i in piv[:Z.shape[1]])
-            continue
-        rest = np.array(sorted(set(range(n)) - chosen), np.int64)
-        Mi = A - mu * np.eye(n)
-        if rest.size:
-            s = la.svd(Mi[rest], compute_uv=False)
-            spread = float(np.max(np.abs(lam[idx] - mu)))
-            deficit = int(np.count_nonzero(s <= max(base_tol, 10 * spread)))
-            deficit += max(0, rest.size - s.size)
-            chosen.update(_dependent_rows(Mi, rest, deficit).tolist())
+            M = A - top.eigenvalue * np.eye(n)
+            chosen.update(_dependent_rows(M, np.arange(n), top.geometric).tolist())
+    # every other eigenvalue: rows outside the drivers must stay independent (PBH)
+    if use_exact and rat is not None:
+        for c in clusters:
+            if c.rational is None:
+                continue
+            rest = sorted(set(range(n)) - chosen)
+            chosen.update(_exact_dependent_rows(rat[0], c.rational * rat[1], rest))
+    certificate, verified = "", False
+    if rat is not None and n <= _MODULAR_CERT_LIMIT and chosen:
+        if _modular_rank(rat[0], np.array(sorted(chosen), np.int64)) == n:
+            certificate, verified = "exact (Krylov rank modulo a prime, integer-scaled A)", True
+    if not verified:
+        chosen = _float_pbh_fill(A, clusters, chosen, t, symmetric)
+        if rat is not None and n <= _MODULAR_CERT_LIMIT:
+            if _modular_rank(rat[0], np.array(sorted(chosen), np.int64)) == n:
+                certificate, verified = ("exact (Krylov rank modulo a prime, "
+                                         "integer-scaled A)"), True
     drivers = np.array(sorted(chosen), np.int64)
     Bd = np.zeros((n, drivers.size))
     Bd[drivers, np.arange(drivers.size)] = 1.0
     nrm_ab = float(np.sqrt(np.linalg.norm(A) ** 2 + drivers.size))
-    t = n * _EPS * max(nrm_ab, 1.0)
-    dim, _, dec, _ = staircase_dimension(A, Bd, t)
-    kept = dec.kept if np.isfinite(dec.kept) else t
-    margin = float(np.log10(kept / max(dec.dropped, t))) if kept > 0 else -np.inf
-    mults = tuple(Multiplicity(mu, alg, geo) for mu, alg, geo, _ in info if alg > 1)
+    ts = n * _EPS * max(nrm_ab, 1.0)
+    dim, _, dec, _ = staircase_dimension(A, Bd, ts)
+    kept = dec.kept if np.isfinite(dec.kept) else ts
+    margin = float(np.log10(kept / max(dec.dropped, ts))) if kept > 0 else -np.inf
+    if not verified:
+        if dim == n and margin >= CERTAIN_DECADES:
+            certificate, verified = f"staircase, margin {margin:.3g} decades", True
+        elif dim == n:
+            certificate = (f"could not be certified: the staircase finds full dimension "
+                           f"only {margin:.3g} decades above rounding")
+        else:
+            certificate = (f"could not be certified: the staircase finds dimension {dim} "
+                           f"of {n} with these drivers")
+    mixing = None
+    if verified and drivers.size > n_inputs and rat is not None and n <= _MODULAR_CERT_LIMIT:
+        rng = np.random.default_rng(seed)
+        R = rng.integers(1, 2**20, size=(drivers.size, n_inputs)).astype(np.int64)
+        if _modular_rank(rat[0], drivers, R) == n:
+            mixing = R
+    elif verified and drivers.size == n_inputs:
+        mixing = np.eye(n_inputs, dtype=np.int64)
+    mults = tuple(Multiplicity(c.eigenvalue, c.algebraic, c.geometric, c.margin)
+                  for c in clusters if c.algebraic > 1)
     return ExactControllability(
-        n_states=n, n_inputs=n_inputs, eigenvalue=complex(lam_m), drivers=drivers,
-        verified=bool(dim == n), verification_margin=margin,
-        multiplicities=tuple(sorted(mults, key=lambda m: (m.eigenvalue.real,
-                                                          m.eigenvalue.imag))),
-        symmetric=symmetric, state_names=tuple(system.state_names), weights=_weights_of(system))
+        n_states=n, n_inputs=n_inputs, eigenvalue=complex(top.eigenvalue), drivers=drivers,
+        verified=verified, verification_margin=margin, multiplicities=mults,
+        symmetric=symmetric, state_names=names, weights=weights, certificate=certificate,
+        count_certain=bool(count_certain), count_margin=float(count_margin),
+        arithmetic="exact" if use_exact else "float", mixing=mixing)
+
+
+def _float_pbh_fill(A: np.ndarray, clusters: list[Cluster], chosen: set[int], tol: float,
+                    symmetric: bool) -> set[int]:
+    """Add drivers until the rows of ``A - mu I`` outside them are independent at every
+    cluster (floating point): simple eigenvalues by their left eigenvector, repeated
+    ones by the singular values of the remaining rows."""
+    n = A.shape[0]
+    chosen = set(chosen)
+    if symmetric:
+        lam_r, V = la.eigh(A)
+        lam, VL = lam_r.astype(complex), V.astype(complex)
+    else:
+        lam, VL = la.eig(A, left=True, right=False)
+    for c in sorted(clusters, key=lambda c: (-c.geometric, c.eigenvalue.real,
+                                             c.eigenvalue.imag)):
+        if c.algebraic == 1:
+            i = int(c.indices[0]) if c.indices.size else int(np.argmin(np.abs(lam - c.eigenvalue)))
+            w = VL[:, i] / np.linalg.norm(VL[:, i])
+            if not chosen or np.max(np.abs(w[sorted(chosen)])) <= 1e-8:
+                chosen.add(int(np.argmax(np.abs(w))))
+            continue
+        rest = np.array(sorted(set(range(n)) - chosen), np.int64)
+        if rest.size == 0:
+            continue
+        Mi = A - c.eigenvalue * np.eye(n)
+        s = la.svd(Mi[rest], compute_uv=False)
+        deficit = int(np.count_nonzero(s <= tol)) + max(0, rest.size - s.size)
+        chosen.update(_dependent_rows(Mi, rest, deficit).tolist())
+    if not chosen:
+        chosen.add(0)
+    return chosen

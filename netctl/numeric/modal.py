@@ -9,6 +9,7 @@ import numpy as np
 import scipy.linalg as la
 
 from netctl.numeric.rank import _dense, _weights_of, cluster_subspace, eigen_clusters
+from netctl.numeric.spectrum import jordan_clusters
 from netctl.system import StructuredSystem
 
 __all__ = ["ModeReach", "ModalReport", "modal_controllability"]
@@ -105,7 +106,9 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
     system : StructuredSystem
         Weighted (stored values used).
     cluster_tol : float, optional
-        Eigenvalues closer than this form one cluster (default ``1e-6 max(1, ||A||_F)``).
+        Eigenvalues closer than this form one cluster. Default: clusters sized for
+        Jordan blocks (:func:`netctl.numeric.spectrum.jordan_clusters`), so a defective
+        eigenvalue split by rounding stays one mode.
     tol : float, default 1e-10
         Reach at or below this counts as not reached.
 
@@ -144,7 +147,9 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
     Q = la.orth(B) if m else np.zeros((n, 0))
     lam, VL = la.eig(A, left=True, right=False)
     modes: list[ModeReach] = []
-    for idx in eigen_clusters(lam, radius):
+    groups = (eigen_clusters(lam, radius) if cluster_tol is not None
+              else [c.indices for c in jordan_clusters(A, lam)])
+    for idx in groups:
         mu = complex(np.mean(lam[idx]))
         if idx.size == 1:
             w = VL[:, idx[0]]
@@ -153,11 +158,11 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
             reach = float(np.linalg.norm(Q.conj().T @ w)) if Q.shape[1] else 0.0
             modes.append(ModeReach(mu, 1, 1, min(reach, 1.0), per, _support(w)))
             continue
-        W, S = cluster_subspace(A, lam, idx, radius)
+        spread = float(np.max(np.abs(lam[idx] - mu)))
+        W, S = cluster_subspace(A, lam, idx, max(radius, 2 * spread))
         k = S.shape[0]
         U, sv, _ = la.svd(S - mu * np.eye(k))
-        spread = float(np.max(np.abs(lam[idx] - mu)))
-        null = sv <= max(10 * spread, n * np.finfo(float).eps * nrm)
+        null = sv <= max(1e3 * n * np.finfo(float).eps * nrm, 10 * spread ** idx.size)
         if not null.any():
             null[-1] = True
         Y = W @ U[:, null]              # orthonormal basis of the left eigenspace
