@@ -15,12 +15,18 @@ AUTO_SELECT_LIMIT = 200
 def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p = subparsers.add_parser(
         "energy", parents=[common],
-        help="control energy of an input design (Gramian: smallest eigenvalue, trace, "
-             "log det, average energy), average controllability per state, greedy "
-             "log-det actuator choice; exit 1 when the Gramian is singular")
+        help="control energy of an input design (Gramian from its Cholesky factor: "
+             "smallest eigenvalue, condition, trace, log det, average energy), average "
+             "controllability ranking, greedy log-det actuators among structurally "
+             "controllable sets; exit 1 when uncontrollable for every weight (structural) "
+             "or for these weights (numeric rank test)")
     add_weight_options(p, default=None)
     p.add_argument("--horizon", type=float, default=None, metavar="T",
-                   help="control time (default: infinite for a stable system, else 1)")
+                   help="control time (default: infinite for a stable system, else 1; "
+                        "'inf' insists on the infinite horizon)")
+    p.add_argument("--precision", type=int, default=None, metavar="N",
+                   help="also compute the Gramian's smallest eigenvalue with N decimal "
+                        "digits (mpmath; up to 200 states)")
     p.add_argument("--select", type=int, default=None, metavar="K",
                    help="greedy log-det choice of K actuators, compared with the structural "
                         "minimum set (default: as many as that set, up to "
@@ -48,27 +54,38 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     system, where = system_with_inputs(args)
     weights = resolve_weights(args, system)
     real = realize(system, weights=weights, seed=args.seed)
-    r = energy(real, horizon=args.horizon)
+    r = energy(real, horizon=args.horizon, precision=args.precision)
     d = r.to_dict()
     d["file"] = args.file
     d["inputs_from"] = where
     d["distribution"] = PARAMETERIZATIONS[weights]
+    resolved = r.lambda_min > max(r.n_states, 1) * 2.220446049250313e-16 * r.lambda_max
+    if resolved:
+        small = (f"smallest eigenvalue {r.lambda_min:.4g} (hardest unit target needs energy "
+                 f"{1 / r.lambda_min:.4g})")
+    else:
+        small = (f"smallest eigenvalue below {r.lambda_min_upper:.3g}, not resolved in "
+                 f"double precision (hardest unit target needs energy >= "
+                 f"{r.worst_energy_bound:.3g})")
     lines = [f"{args.file}: {r.n_states} states, {r.n_inputs} input(s), model {real.model}",
              f"  {where}; weights: {weights} (seed {args.seed})",
-             f"  Gramian: {r.horizon_note}",
-             f"  smallest eigenvalue {r.lambda_min:.4g} (hardest unit target needs energy "
-             f"{'inf' if r.lambda_min <= 0 else f'{1 / r.lambda_min:.4g}'}), largest "
-             f"{r.lambda_max:.4g}, trace {r.trace:.4g}, log det {r.log_det:.4g}",
+             f"  Gramian: {r.horizon_note}; from its Cholesky factor",
+             f"  {small}, largest {r.lambda_max:.4g}, trace {r.trace:.4g}, log det "
+             f"{'<= ' if not resolved else ''}{r.log_det:.4g}",
              f"  average minimum energy over unit targets: {r.average_energy:.4g}"]
-    if not r.controllable:
-        lines.append("  !! the Gramian is singular: these inputs cannot steer every state "
-                     "(see netctl verify / netctl modes)")
-    from netctl.numeric.energy import node_controllability
+    if r.precision is not None:
+        pr = r.precision
+        lines.append(f"  with {pr.digits} digits: smallest eigenvalue {pr.smallest} "
+                     f"(largest {pr.largest})" if pr.resolved else
+                     f"  with {pr.digits} digits: smallest eigenvalue below {pr.bound}, not "
+                     f"resolved; rerun with --precision {pr.digits_needed}")
+    lines.append(("  !! " if r.verdict.failing else "  ") + r.verdict.line())
+    from netctl.numeric.energy import AVERAGE_NOTE, node_controllability
 
     d["node_controllability"] = node_controllability(real).to_dict()
     if args.top and r.n_states:
         order = np.argsort(-r.average_controllability, kind="stable")[:args.top]
-        lines.append("  highest average controllability (one input there): " + ", ".join(
+        lines.append(f"  average controllability ({AVERAGE_NOTE}): " + ", ".join(
             f"{real.state_names[i]} {r.average_controllability[i]:.4g}" for i in order))
     budget = args.select
     if budget is None and r.n_states <= AUTO_SELECT_LIMIT:
@@ -77,11 +94,15 @@ def _cmd_energy(args: argparse.Namespace) -> int:
         sel = select_actuators(real, budget=None if budget == -1 else budget,
                                horizon=args.horizon)
         d["selection"] = sel.to_dict()
-        lines.append(f"  greedy log-det choice of {sel.selected.size}: "
-                     f"{', '.join(sel.names(sel.selected))} (log det {sel.objective:.4g}, "
-                     f"smallest eigenvalue {sel.lambda_min:.3g})")
+        lines.append(f"  greedy log-det choice of {sel.selected.size} among structurally "
+                     f"controllable sets: {', '.join(sel.names(sel.selected))} (log det "
+                     f"{sel.objective:.4g}, smallest eigenvalue <= {sel.lambda_min:.3g})")
+        if not sel.structurally_controllable:
+            lines.append("  !! the eligible actuator sites cannot make the system "
+                         "structurally controllable: this set is uncontrollable for every "
+                         "weight (structural)")
         lines.append(f"  structural minimum set: {', '.join(sel.names(sel.structural))} "
-                     f"(log det {sel.structural_objective:.4g}, smallest eigenvalue "
+                     f"(log det {sel.structural_objective:.4g}, smallest eigenvalue <= "
                      f"{sel.structural_lambda_min:.3g}); log det uses +{sel.epsilon:.2g} I")
     elif r.n_states > AUTO_SELECT_LIMIT and args.select is None:
         lines.append(f"  (greedy selection skipped above {AUTO_SELECT_LIMIT} states; ask "
@@ -89,4 +110,4 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     lines.append("  " + CAUTION)
     d["caution"] = CAUTION
     emit(args, d, "\n".join(lines))
-    return 0 if r.controllable else 1
+    return 1 if r.verdict.failing else 0

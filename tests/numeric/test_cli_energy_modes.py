@@ -41,10 +41,11 @@ def test_energy_given_weights_closed_form(diag_file, capsys):
     assert "licensed engineers" in d["caution"]
 
 
-def test_energy_singular_gramian_exit_1(diag_file, capsys):
+def test_energy_structural_verdict_exit_1(diag_file, capsys):
+    # b is not reached from a: uncontrollable for every weight (Lin 1974)
     assert main(["energy", str(diag_file), "--inputs", "a", "--select", "0"]) == 1
     out = capsys.readouterr().out
-    assert "the Gramian is singular" in out
+    assert "verdict: uncontrollable for every weight (structural)" in out
 
 
 def test_energy_selection_against_structural(star_file, capsys):
