@@ -72,10 +72,39 @@ def _cmd_modes(args: argparse.Namespace) -> int:
         for m in r.weakest(args.weakest):
             lines.append(f"    {_ev(m.eigenvalue):>24}  x{m.multiplicity}  reach "
                          f"{m.reach:.3g}  on {{{_short(r.names(m.carriers), 6)}}}")
-    lines.append(f"  exact controllability (these weights): at least {x.n_inputs} input(s) "
-                 f"(largest geometric multiplicity, at eigenvalue {_ev(x.eigenvalue)}); "
-                 f"dedicated inputs at {{{_short(x.names(x.drivers))}}} "
-                 f"{'suffice (staircase-verified)' if x.verified else 'did NOT verify'}")
+    count = (f"exactly {x.n_inputs}" if x.count_certain else
+             f"{x.n_inputs} (uncertain: multiplicity margin {x.count_margin:.3g} decades)")
+    lines.append(f"  minimum inputs for these weights: {count} (largest geometric "
+                 f"multiplicity, at eigenvalue {_ev(x.eigenvalue)}; {x.arithmetic} "
+                 "arithmetic)")
+    shared = ("" if x.n_drivers == x.n_inputs else
+              f"; {x.n_inputs} shared input(s) mixing them also suffice"
+              if x.mixing is not None else
+              f"; more drivers than the count of {x.n_inputs}: dedicated inputs need "
+              f"{x.n_drivers}")
+    lines.append(f"  driver set ({x.n_drivers}): {{{_short(x.names(x.drivers))}}} -- "
+                 + (f"certified: {x.certificate}{shared}" if x.verified else
+                    x.certificate))
+    from netctl.numeric.verdict import judge
+    from netctl.structural import controllability
+
+    st = controllability(real, dimension=True)
+    s_dim = int(st.controllable_dimension if st.controllable_dimension is not None
+                else r.n_states * int(st.controllable))
+    from netctl.numeric.rank import staircase
+
+    rt = staircase(real) if r.n_states else None
+    num_dim = rt.dimension if rt is not None else 0
+    if r.unreached and num_dim == r.n_states:  # the modal test is the sharper one here
+        num_dim = r.n_states - sum(m.geometric for m in r.unreached)
+    weakest = r.modes[0].reach if r.modes else 1.0
+    verdict = judge(n=r.n_states, structural_dimension=s_dim,
+                    numeric_dimension=num_dim,
+                    numeric_margin=float(rt.margin) if rt is not None else None,
+                    condition=(1.0 / weakest if weakest > 0 else None) if weakest < 1e-8
+                    else None)
+    d["verdict"] = verdict.to_dict()
+    lines.append(("  !! " if verdict.failing else "  ") + verdict.line())
     lines.append("  " + CAUTION)
     emit(args, d, "\n".join(lines))
-    return 1 if r.unreached else 0
+    return 1 if (r.unreached or verdict.failing) else 0

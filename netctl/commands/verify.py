@@ -58,7 +58,8 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p = subparsers.add_parser(
         "verify", parents=[common],
         help="confirm the structural verdict on sampled or given weights; exit 1 when a "
-             "sample disagrees (e.g. symmetries under identical links)")
+             "sample disagrees (e.g. symmetries under identical links) or the design is "
+             "uncontrollable for every weight (structural) or for these weights")
     add_weight_options(p, default="independent")
     p.add_argument("--samples", type=int, default=3, metavar="K",
                    help="number of sampled realizations (default 3; uniform and given "
@@ -106,6 +107,8 @@ def _cmd_verify(args: argparse.Namespace) -> int:
         lines.append(("  !! " if not v.agrees else "  ") + f)
     if not v.agrees:
         lines.append("  " + "!" * 72)
+    verdict = v.verdict
+    lines.append(("  !! " if verdict.failing else "  ") + verdict.line())
     lines.append("  " + CAUTION)
     emit(args, d, "\n".join(lines))
-    return 0 if v.agrees else 1
+    return 0 if v.agrees and not verdict.failing else 1

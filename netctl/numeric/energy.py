@@ -319,6 +319,8 @@ def energy(system: StructuredSystem, *, horizon: float | None = None,
     verdict = judge(n=n, structural_dimension=s_dim, numeric_dimension=num_dim,
                     numeric_margin=margin, condition=cond,
                     worst_energy_bound=(1.0 / upper if upper > 0 else np.inf))
+    if verdict.failing:  # uncontrollable: the Gramian is singular, whatever rounding shows
+        ld, avg_energy = -np.inf, np.inf
     prec = smallest_eigenvalue_mp(A, B, T, int(precision)) if precision is not None else None
     return EnergyReport(
         n_states=n, n_inputs=B.shape[1], horizon=T, horizon_note=note, lambda_min=lmin,

@@ -70,6 +70,23 @@ class Verification:
     input_names: tuple[str, ...] = field(repr=False)
     exact_dimensions: tuple[int | None, ...] = ()
 
+    @property
+    def verdict(self) -> Any:
+        """The verdict (:mod:`netctl.numeric.verdict`) over all samples: structural
+        when the pattern fails Lin's condition; numeric when a sample loses a direction;
+        ill-conditioned when every sample is full but some only close to rounding."""
+        from netctl.numeric.verdict import judge
+
+        dims = [self.exact_dimensions[k] if k < len(self.exact_dimensions)
+                and self.exact_dimensions[k] is not None else r.dimension
+                for k, r in enumerate(self.samples)]
+        known = [d for d in dims if d is not None]
+        worst = min(known) if known else None
+        margins = [r.margin for r in self.samples if r.method in ("staircase", "pbh")]
+        return judge(n=self.n_states, structural_dimension=self.structural_dimension,
+                     numeric_dimension=worst,
+                     numeric_margin=min(margins) if margins else None)
+
     def names(self, indices: Any) -> list[str]:
         """State names (of the realized system) for state indices."""
         return [self.state_names[int(i)] for i in indices]
@@ -111,6 +128,7 @@ class Verification:
                             "n_lost": m.n_lost, "states": self.names(m.states)}
                            for m in self.lost_modes],
             "findings": list(self.findings),
+            "verdict": self.verdict.to_dict(),
         }
 
 

@@ -71,7 +71,7 @@ def test_modes_uniform_star_unreached_exit_1(star_file, capsys):
     out = capsys.readouterr().out
     assert "!! mode -1 (multiplicity 2, 2 eigenvector(s)) is not reached; it lives on " \
            "{leaf1, leaf2, leaf3}" in out
-    assert "at least 2 input(s)" in out     # Yuan et al. 2013: star K_{1,3} needs N - 2
+    assert "minimum inputs for these weights: exactly 2" in out     # Yuan et al. 2013: star K_{1,3} needs N - 2
 
 
 def test_modes_json_and_agreeing_case(star_file, tmp_path, capsys):
