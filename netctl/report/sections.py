@@ -421,7 +421,7 @@ def numeric_section(ctx: ReportContext) -> Section | None:
                                             seed=ctx.seed, method=method))
     blocks = [para(f"Weights drawn independently at random (the structured-system "
                    f"assumption), {len(v.samples)} sample(s), seeds {list(v.seeds)}, method "
-                   f"{v.method}."), items(list(v.findings))]
+                   f"{v.method}."), items(list(v.findings)), para(v.verdict.line())]
     return Section("numeric", "Numeric confirmation", tuple(blocks), data=v.to_dict(),
                    status="ok" if v.agrees else "warning",
                    badge="agrees" if v.agrees else "disagrees",
