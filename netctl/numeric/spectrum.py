@@ -140,7 +140,13 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
 
 def rational_matrix(A: np.ndarray) -> tuple[Any, int] | None:
     """``(integer fmpz_mat, denominator)`` when every entry of ``A`` is a ratio of small
-    integers (denominator <= 10^6, round-tripping the stored float), else ``None``."""
+    integers (denominator <= 10^6, round-tripping the stored float), else ``None``.
+
+    References
+    ----------
+    .. [1] W. B. Hart, FLINT: Fast Library for Number Theory, https://flintlib.org
+       (exact integer matrices through python-flint).
+    """
     import flint
 
     A = np.asarray(A)
@@ -171,6 +177,11 @@ def exact_spectrum(M: Any, denominator: int = 1) -> list[Cluster]:
     Rational eigenvalues are listed as one cluster each; an irrational factor as one
     cluster per root (numeric value), all marked exact. ``M`` is ``denominator * A``;
     the eigenvalues returned are those of ``A``.
+
+    References
+    ----------
+    .. [1] Z. Yuan, C. Zhao, Z. Di, W.-X. Wang, Y.-C. Lai, "Exact controllability of
+       complex networks", Nat. Commun. 4:2447, 2013. doi:10.1038/ncomms3447
     """
     import flint
 

@@ -69,6 +69,11 @@ def judge(*, n: int, structural_dimension: int, numeric_dimension: int | None,
     """Pick the verdict from the structural dimension, a numeric rank test and (when
     known) the Gramian's condition number.
 
+    References
+    ----------
+    .. [1] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
+       doi:10.1109/TAC.1974.1100557
+
     Examples
     --------
     >>> judge(n=3, structural_dimension=2, numeric_dimension=2).text
