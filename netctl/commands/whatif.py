@@ -8,16 +8,11 @@ number of inputs, else 0. 2 on bad usage or input.
 from __future__ import annotations
 
 import argparse
-import re
-from pathlib import Path
 from typing import Any
 
 from netctl.structural.robustness import what_if
 
-__all__ = ["register", "read_links"]
-
-_SPLIT = re.compile(r"[,\t; ]+")
-_HEADER = {"source", "target", "from", "to", "src", "dst", "u", "v"}
+__all__ = ["register"]
 
 
 def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
@@ -37,47 +32,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p.set_defaults(func=_cmd_whatif)
 
 
-def read_links(value: str, what: str) -> list[tuple[str, str, int | None]]:
-    """Links ``(source, target, line)`` from an edge-list file (``source,target`` a line,
-    ``#`` comments, optional header) or from an inline list ``'a->b,c->d'`` (line
-    ``None``)."""
-    from netctl.cli import UsageError
-    from netctl.io._common import file_error, read_text
-
-    path = Path(value)
-    out: list[tuple[str, str, int | None]] = []
-    if path.is_file():
-        for lineno, raw in enumerate(read_text(path).splitlines(), start=1):
-            line = raw.split("#", 1)[0].strip()
-            if not line:
-                continue
-            f = [x for x in _SPLIT.split(line) if x]
-            if not out and len(f) == 2 and f[0].lower() in _HEADER and f[1].lower() in _HEADER:
-                continue
-            if len(f) != 2:
-                raise file_error(value, lineno, f"expected 'source,target', found {len(f)} "
-                                 f"column(s) in {raw.strip()!r}. One link a line; a link "
-                                 "'a,b' means a influences b.")
-            out.append((f[0], f[1], lineno))
-        if not out:
-            raise file_error(value, None, f"{what}: the file lists no links; expected lines "
-                             "'source,target'.")
-        return out
-    for item in (x.strip() for x in value.split(",")):
-        if not item:
-            continue
-        if "->" not in item:
-            raise UsageError(f"{what}: {item!r} is neither a file nor a link 'a->b'; give an "
-                             "edge-list file or links such as 'pump->tank,tank->valve'.")
-        a, b = (x.strip() for x in item.split("->", 1))
-        if not a or not b:
-            raise UsageError(f"{what}: the link {item!r} lacks a state name; write 'a->b'.")
-        out.append((a, b, None))
-    if not out:
-        raise UsageError(f"{what} names no link; write 'a->b,c->d' or give a file.")
-    return out
-
-
 def _checked(system: Any, value: str | None, what: str, *, new_ok: bool
              ) -> list[tuple[str, str]] | None:
     """Read links and check their state names: unknown names are errors for links to
@@ -87,12 +41,14 @@ def _checked(system: Any, value: str | None, what: str, *, new_ok: bool
 
     from netctl.errors import UnknownNameError
     from netctl.io._common import file_error
+    from netctl.io.changes import read_link_changes
 
     if not value:
         return None
     known = set(system.state_names)
     out = []
-    for a, b, line in read_links(value, what):
+    for change in read_link_changes(value, what):
+        a, b, line = change.source, change.target, change.line
         for x in (a, b):
             if x in known:
                 continue
@@ -103,7 +59,7 @@ def _checked(system: Any, value: str | None, what: str, *, new_ok: bool
                               f"states; it is added as a new state.{hint}", stacklevel=2)
                 known.add(x)
             elif line is not None:
-                raise file_error(value, line, f"unknown state name {x!r} in the link "
+                raise file_error(change.origin, line, f"unknown state name {x!r} in the link "
                                  f"{a!r} -> {b!r}.{hint} Links to remove must exist.")
             else:
                 raise UnknownNameError(f"{what}: unknown state name {x!r} in the link "
