@@ -33,11 +33,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from netctl import StructuredSystem, minimum_inputs  # noqa: E402
 from netctl.structural._engine import structure_of  # noqa: E402
-from netctl.structural.placement import (  # noqa: E402
-    Candidates,
-    _make_sites,
-    place_inputs,
-)
+from netctl.records import Candidates, Sites  # noqa: E402
+from netctl.structural.placement import place_inputs  # noqa: E402
 from netctl.structural.target import gao_greedy_drivers  # noqa: E402
 
 
@@ -96,7 +93,7 @@ def part1(sizes: list[int], degrees: list[float], with_unreduced: int) -> None:
             indeg = np.diff(s.A.indptr)
             forbid = (rng.random(n) < 0.1) & (indeg >= 2)
             for label, elig in (("all", np.ones(n, bool)), ("-10%", ~forbid)):
-                sites = _make_sites("actuator", elig, cost, s.state_names, "bench")
+                sites = Sites.from_arrays("actuator", elig, cost, s.state_names, "bench")
                 t = time.perf_counter()
                 p = place_inputs(s, sites=sites)
                 t_place = time.perf_counter() - t
@@ -151,8 +148,8 @@ def _part2_rows(sizes: list[int], time_limit: float, k: float) -> None:
         t = time.perf_counter()
         g = place_inputs(s, candidates=cands, method="greedy", verify=False)
         t_g = time.perf_counter() - t
-        from netctl.structural.placement import _reduce
-        size = _reduce(s.A, s.B, structure_of(s.A), cands).milp_size()
+        from netctl.structural.placement.reduced import reduce_problem
+        size = reduce_problem(s.A, s.B, structure_of(s.A), cands).milp_size()
         t = time.perf_counter()
         m = place_inputs(s, candidates=cands, method="exact", time_limit=time_limit,
                          verify=False)

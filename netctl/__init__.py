@@ -56,7 +56,12 @@ from netctl.structural import (
     summarize,
 )
 from netctl.structural.interconnect import interconnection
-from netctl.structural.placement import Placement, place_inputs, place_sensors
+from netctl.structural.placement import (
+    Placement,
+    place_inputs,
+    place_sensors,
+    place_target_inputs,
+)
 from netctl.structural.robustness import contingency_sweep, what_if
 from netctl.structural.roles import LinkRoles, NodeRoles, link_roles, node_roles
 from netctl.structural.strong import (
@@ -66,7 +71,6 @@ from netctl.structural.strong import (
     minimum_strong_inputs,
     strong_controllability,
 )
-from netctl.structural.target import place_target_inputs
 from netctl.system import Station, StructuredSystem, make_stations
 
 __version__ = "0.1.0"

@@ -46,11 +46,11 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 
 def _cmd_place(args: argparse.Namespace) -> int:
     from netctl.cli import CAUTION, UsageError, emit, load_system, parse_names
+    from netctl.io.sites import read_candidates, read_sites
     from netctl.structural.placement import (
         place_inputs,
         place_sensors,
-        read_candidates,
-        read_sites,
+        place_target_inputs,
         sites_from_nodes,
     )
 
@@ -72,8 +72,6 @@ def _cmd_place(args: argparse.Namespace) -> int:
              else sites_from_nodes(system, kind=kind))
     cands = read_candidates(args.candidates, system) if args.candidates else None
     if args.targets is not None:
-        from netctl.structural.target import place_target_inputs
-
         targets = parse_names(system, args.targets, what="--targets")
         result = place_target_inputs(system, targets, sites=sites, method=args.method)
     else:

@@ -7,9 +7,11 @@ driver states ``S`` when the generic rank of ``C_T [B, AB, ..., A^{n-1}B]`` is `
 
 * :func:`target_rank` -- that generic rank, by exact arithmetic modulo the prime
   ``2^31 - 1`` on random weights (one-sided error, Schwartz--Zippel).
-* :func:`place_target_inputs` -- fewest (cheapest) drivers for ``T``: exhaustive over
-  the eligible sites on small cases (exact), the greedy of Gao et al. on large ones
-  (an upper bound, with a proven lower bound and gap).
+* :func:`gao_greedy_drivers` -- drivers for ``T`` by the greedy of Gao et al. (an
+  upper bound on the fewest).
+
+Choosing the fewest (cheapest) drivers under eligible sites and costs is
+:func:`netctl.structural.placement.place_target_inputs`.
 
 Results concern a linear(ized) structural model; they do not replace the operator's
 procedures, applicable codes or licensed engineers (see ``netctl.cli.CAUTION``).
@@ -17,22 +19,13 @@ procedures, applicable codes or licensed engineers (see ``netctl.cli.CAUTION``).
 
 from __future__ import annotations
 
-import itertools
 from collections.abc import Iterable
 
 import numpy as np
 import scipy.sparse as sp
 
 from netctl.errors import OptionError
-from netctl.graph.components import reachable_from
 from netctl.graph.matching import maximum_matching
-from netctl.structural.placement import (
-    METHODS,
-    Placement,
-    Sites,
-    candidates_from_sites,
-    sites_from_nodes,
-)
 from netctl.system import StructuredSystem
 
 __all__ = [
@@ -41,7 +34,7 @@ __all__ = [
     "TARGET_RANK_MAX_STATES",
     "gao_greedy_drivers",
     "is_target_controllable",
-    "place_target_inputs",
+    "target_index",
     "target_rank",
 ]
 
@@ -49,7 +42,8 @@ __all__ = [
 #: residues fit in int64).
 PRIME: int = 2**31 - 1
 
-#: ``method="auto"`` tries every subset of eligible sites up to this many sites.
+#: With ``method="auto"``, target placement tries every subset of eligible sites up to
+#: this many sites.
 TARGET_EXHAUSTIVE_MAX_SITES: int = 14
 
 #: Largest system whose target rank is computed (dense Krylov arithmetic, O(n^2 m |T|)
@@ -129,7 +123,7 @@ def target_rank(system: StructuredSystem, targets: Iterable[object], *,
     1
     """
     n = system.n_states
-    T = _target_index(system, targets)
+    T = target_index(system, targets)
     if n > TARGET_RANK_MAX_STATES:
         raise OptionError(f"the target rank is computed densely up to "
                           f"{TARGET_RANK_MAX_STATES} states; this system has {n}.")
@@ -168,11 +162,12 @@ def target_rank(system: StructuredSystem, targets: Iterable[object], *,
 def is_target_controllable(system: StructuredSystem, targets: Iterable[object], *,
                            drivers: Iterable[int] | None = None, seed: int = 0) -> bool:
     """True when ``targets`` are structurally target controllable (see :func:`target_rank`)."""
-    T = _target_index(system, targets)
+    T = target_index(system, targets)
     return target_rank(system, T, drivers=drivers, seed=seed) == T.size
 
 
-def _target_index(system: StructuredSystem, targets: Iterable[object]) -> np.ndarray:
+def target_index(system: StructuredSystem, targets: Iterable[object]) -> np.ndarray:
+    """Sorted unique state indices of ``targets`` (names, or an integer index array)."""
     if isinstance(targets, np.ndarray) and np.issubdtype(targets.dtype, np.integer):
         T = targets.astype(np.int64)
         if T.size and (T.min() < 0 or T.max() >= system.n_states):
@@ -217,7 +212,7 @@ def gao_greedy_drivers(system: StructuredSystem, targets: Iterable[object]) -> n
     >>> gao_greedy_drivers(s, [2, 3]).tolist()
     [0]
     """
-    T = _target_index(system, targets)
+    T = target_index(system, targets)
     n = system.n_states
     A = system.A
     drivers = np.zeros(n, bool)
@@ -241,226 +236,3 @@ def gao_greedy_drivers(system: StructuredSystem, targets: Iterable[object]) -> n
         step += 1
     drivers[C] = True
     return np.flatnonzero(drivers).astype(np.int64)
-
-
-def _lower_bound_count(system: StructuredSystem, T: np.ndarray) -> int:
-    """Drivers needed inside ``T``: ``|T| - term rank A[T, :]`` (and at least one).
-
-    ``rank C_T[B, AK] <= rank C_T B + rank C_T A``; with dedicated inputs ``rank C_T B``
-    counts the drivers in ``T`` and ``rank C_T A`` is at most the term rank of the rows
-    ``T`` of ``A``.
-    """
-    if T.size == 0:
-        return 0
-    sub = system.A[T]
-    rm, _ = maximum_matching(sub.indptr.astype(np.int64), sub.indices.astype(np.int64),
-                             system.n_states)
-    return max(1, int(np.count_nonzero(rm < 0)))
-
-
-# ====================================================================== placement
-def place_target_inputs(
-    system: StructuredSystem,
-    targets: Iterable[object],
-    *,
-    sites: Sites | None = None,
-    method: str = "auto",
-    verify: bool = True,
-    seed: int = 0,
-) -> Placement:
-    r"""Cheapest dedicated drivers that make ``targets`` structurally target controllable.
-
-    Parameters
-    ----------
-    system : StructuredSystem
-        Existing inputs are ignored (the design is built from scratch).
-    targets : iterable of state names or indices
-    sites : Sites, optional
-        Eligible states and costs (default: the node table, else every state at unit
-        cost).
-    method : {"auto", "exact", "greedy"}
-        ``"exact"``: every subset of eligible sites, cheapest first (up to
-        :data:`TARGET_EXHAUSTIVE_MAX_SITES` sites with ``"auto"``). ``"greedy"``: the
-        greedy of Gao et al. [1]_ when every state is an eligible site at equal cost;
-        otherwise a cost-effectiveness greedy on the target rank, which is monotone
-        submodular in the set of drivers (the dimension of a projection of a sum of
-        Krylov subspaces), so it costs at most ``H(|T|)`` times the optimum
-        (Wolsey 1982); that greedy needs the target rank and is limited to
-        :data:`TARGET_RANK_MAX_STATES` states.
-    verify : bool, default True
-        Check the design with :func:`target_rank` (up to
-        :data:`TARGET_RANK_MAX_STATES` states).
-    seed : int
-        Seed of the random weights of the rank computations.
-
-    Returns
-    -------
-    Placement
-        ``problem="target"``; ``dimension`` is the target rank of the design,
-        ``goal_dimension`` the number of targets. ``lower_bound``: the cheapest way to
-        place ``|T| - term rank A[T, :]`` drivers inside ``T`` (see Notes).
-
-    Notes
-    -----
-    Lower bound: ``rank C_T[B, AB, ...] <= rank C_T B + rank C_T A``, so at least
-    ``|T| - term rank(A[T, :])`` drivers lie in ``T`` (and at least one in all).
-
-    References
-    ----------
-    .. [1] J. Gao, Y.-Y. Liu, R. M. D'Souza, A.-L. Barabási, "Target control of complex
-       networks", Nat. Commun. 5:5415, 2014. doi:10.1038/ncomms6415
-
-    Examples
-    --------
-    >>> from netctl import StructuredSystem
-    >>> from netctl.structural.target import place_target_inputs
-    >>> s = StructuredSystem.from_edges([0, 1, 0], [1, 2, 3], 4)   # 0->1->2, 0->3
-    >>> p = place_target_inputs(s, ["x2", "x3"])
-    >>> p.site_names, p.optimal, p.verified
-    (['x0'], True, True)
-    """
-    if method not in METHODS:
-        raise OptionError(f"unknown method {method!r}; choose one of "
-                          f"{', '.join(map(repr, METHODS))}.")
-    T = _target_index(system, targets)
-    if T.size == 0:
-        raise OptionError("targets is empty; name at least one state to control.")
-    n = system.n_states
-    base = system._replace(B=sp.csr_array((n, 0)), input_names=())
-    if sites is None:
-        sites = sites_from_nodes(system, kind="actuator")
-    if not isinstance(sites, Sites) or sites.kind != "actuator":
-        raise OptionError("sites must be actuator Sites (see read_sites / sites_from_nodes).")
-    cands = candidates_from_sites(sites)
-    site_state = cands.indices
-    cost = cands.cost
-    # feasibility: every target must be reachable from some eligible site
-    reach = reachable_from(*_out_adj(system), site_state)
-    unreachable = T[~reach[T]]
-    n_lb = _lower_bound_count(system, T)
-    lb_cost = _cheapest_inside(T, site_state, cost, n_lb)
-    reasons: list[str] = []
-    if unreachable.size:
-        reasons.append(f"no eligible site reaches the target state(s) "
-                       f"{{{', '.join(system.state_names[int(i)] for i in unreachable[:20])}}}"
-                       f"{' ...' if unreachable.size > 20 else ''}: make a state upstream of "
-                       "them eligible.")
-    uniform = bool(sites.eligible.all() and np.ptp(cost) == 0)
-    exhaustive = method == "exact" or (method == "auto" and
-                                       site_state.size <= TARGET_EXHAUSTIVE_MAX_SITES)
-    chosen_states: np.ndarray
-    dim: int | None = None
-    if reasons:
-        chosen_states = np.zeros(0, np.int64)
-        method_used, optimal, lower = "none", False, None
-        guarantee = "no design within the eligible sites controls the targets"
-        feasible = False
-    elif exhaustive:
-        if n > TARGET_RANK_MAX_STATES:
-            raise OptionError(f"the exact target method needs the target rank, limited to "
-                              f"{TARGET_RANK_MAX_STATES} states; use method='greedy'.")
-        best: tuple[float, tuple[int, ...]] | None = None
-        idx = list(range(site_state.size))
-        for r in range(1, len(idx) + 1):
-            for S in itertools.combinations(idx, r):
-                c = float(cost[list(S)].sum())
-                if best is not None and c >= best[0] - 1e-12:
-                    continue
-                if target_rank(base, T, drivers=site_state[list(S)], seed=seed) == T.size:
-                    best = (c, S)
-        feasible = best is not None
-        if best is None:
-            chosen_states = np.zeros(0, np.int64)
-            reasons.append("no subset of the eligible sites controls the targets (dilation "
-                           "among the targets' upstream states that no eligible site fixes).")
-            method_used, optimal, lower = "exhaustive", False, None
-            guarantee = "exact: every subset of eligible sites tried; none works"
-        else:
-            chosen_states = np.sort(site_state[list(best[1])])
-            method_used, optimal, lower = "exhaustive", True, best[0]
-            guarantee = "exact: every subset of eligible sites tried"
-            dim = T.size
-    elif uniform:
-        chosen_states = gao_greedy_drivers(base, T)
-        feasible = True
-        method_used, optimal = "target-greedy", False
-        lower = lb_cost
-        guarantee = ("greedy of Gao et al. (2014): an upper bound; lower bound |T| - term "
-                     "rank A[T,:]")
-    else:
-        if n > TARGET_RANK_MAX_STATES:
-            raise OptionError(
-                f"target placement with restricted sites or unequal costs needs the target "
-                f"rank, limited to {TARGET_RANK_MAX_STATES} states (this system has {n}); "
-                "drop the site restrictions to use the greedy of Gao et al.")
-        chosen_states, feasible = _rank_greedy(base, T, site_state, cost, seed)
-        method_used, optimal = "greedy", False
-        lower = lb_cost
-        H = sum(1.0 / i for i in range(1, T.size + 1))
-        guarantee = f"greedy on the submodular target rank: cost <= H({T.size}) = {H:.3f} x optimum"
-        if not feasible:
-            reasons.append("the eligible sites together do not control the targets (a "
-                           "dilation among the targets' upstream states that no eligible "
-                           "site fixes).")
-    total = float(cost[np.searchsorted(site_state, chosen_states)].sum()) \
-        if chosen_states.size else 0.0
-    verified: bool | None = None
-    if verify and n <= TARGET_RANK_MAX_STATES:
-        dim = target_rank(base, T, drivers=chosen_states, seed=seed + 1)
-        verified = dim == T.size if feasible else None
-    if lower is not None and total > 0:
-        lower = min(lower, total)
-        gap = max(0.0, (total - lower) / total)
-        if gap < 1e-12:
-            gap = 0.0
-    else:
-        gap = 0.0 if (feasible and optimal) else float("inf") if not feasible else 0.0
-    optimal = bool(feasible and gap == 0.0)
-    goal = bool(feasible and verified is not False)
-    chosen = np.searchsorted(site_state, chosen_states).astype(np.int64)
-    return Placement(
-        kind="inputs", problem="target", method=method_used, feasible=feasible,
-        goal_met=goal, best_effort=False, sites=chosen_states, chosen=chosen, cost=total,
-        lower_bound=lower, upper_bound=None, optimal=optimal, gap=float(gap),
-        dimension=dim, goal_dimension=int(T.size), verified=verified,
-        inaccessible=unreachable.astype(np.int64), reasons=tuple(reasons),
-        guarantee=guarantee, budget=None, candidates=cands, state_names=tuple(system.state_names),
-        targets=T, model=system.model)
-
-
-def _out_adj(system: StructuredSystem) -> tuple[np.ndarray, np.ndarray]:
-    At = system.A.T.tocsr()
-    At.sort_indices()
-    return At.indptr.astype(np.int64), At.indices.astype(np.int64)
-
-
-def _cheapest_inside(T: np.ndarray, site_state: np.ndarray, cost: np.ndarray, k: int) -> float:
-    """Cost of the ``k`` cheapest eligible sites inside ``T`` (a lower bound)."""
-    inside = np.isin(site_state, T)
-    c = np.sort(cost[inside])
-    if k <= c.size:
-        return float(c[:k].sum())
-    return float(c.sum())
-
-
-def _rank_greedy(base: StructuredSystem, T: np.ndarray, site_state: np.ndarray,
-                 cost: np.ndarray, seed: int) -> tuple[np.ndarray, bool]:
-    chosen: list[int] = []
-    current = 0
-    while current < T.size:
-        best_k, best_ratio, best_rank = -1, -1.0, current
-        for k in range(site_state.size):
-            if k in chosen:
-                continue
-            r = target_rank(base, T, drivers=site_state[chosen + [k]], seed=seed)
-            gain = r - current
-            if gain <= 0:
-                continue
-            ratio = float("inf") if cost[k] <= 0 else gain / cost[k]
-            if ratio > best_ratio:
-                best_k, best_ratio, best_rank = k, ratio, r
-        if best_k < 0:
-            return np.sort(site_state[chosen]).astype(np.int64), False
-        chosen.append(best_k)
-        current = best_rank
-    return np.sort(site_state[chosen]).astype(np.int64), True

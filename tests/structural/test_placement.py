@@ -27,13 +27,11 @@ from netctl import (
     minimum_sensors,
     observability,
 )
+from netctl.io.sites import parse_candidates, parse_sites, read_sites
 from netctl.structural.placement import (
     Candidates,
-    parse_candidates,
-    parse_sites,
     place_inputs,
     place_sensors,
-    read_sites,
     sites_from_nodes,
 )
 from tests import _reference as ref
@@ -459,7 +457,7 @@ def test_milp_time_limit_still_gives_a_checked_design_and_valid_bound():
 def test_dimension_oracle_matches_finite_field_reference():
     """The best-effort oracle (Hosoe's assignment, per component) against the generic
     rank of [B AB ...] over F_p (tests/_reference.py) and netctl's controllability."""
-    from netctl.structural.placement import _DimensionOracle
+    from netctl.structural.placement.budget import DimensionOracle as _DimensionOracle
 
     rng = np.random.default_rng(6010)
     ref_rng = np.random.default_rng(31)

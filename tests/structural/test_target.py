@@ -15,11 +15,11 @@ import numpy as np
 import pytest
 
 from netctl import OptionError, StructuredSystem
-from netctl.structural.placement import parse_sites
+from netctl.io.sites import parse_sites
+from netctl.structural.placement import place_target_inputs
 from netctl.structural.target import (
     gao_greedy_drivers,
     is_target_controllable,
-    place_target_inputs,
     target_rank,
 )
 from tests import _reference as ref
