@@ -167,3 +167,38 @@ def test_bad_target_options():
         place_target_inputs(s, ["x1"], method="fast")
     with pytest.raises(KeyError, match="unknown state name 'zz'"):
         place_target_inputs(s, ["zz"])
+
+
+def test_full_target_set_costs_what_full_control_costs():
+    # T = all states: target control is full structural controllability (Lin 1974), so
+    # the exhaustive target-rank search and the min-cost assignment of place_inputs
+    # (Pequito, Kar & Aguiar 2016) -- two independent solvers behind the one placement
+    # loop -- must report the same minimum cost, feasibility, gap and goal.
+    from netctl import place_inputs
+    rng = np.random.default_rng(7005)
+    for trial in range(60):
+        n = int(rng.integers(1, 7))
+        s = StructuredSystem.from_matrices(
+            ref.pattern_from_edges(random_pattern(rng, n, 0.3), n), weighted=False)
+        names = s.state_names
+        elig = rng.random(n) < 0.7
+        cost = rng.integers(0, 4, n)
+        text = "state,cost\n" + "".join(f"{names[i]},{cost[i]}\n" for i in range(n) if elig[i])
+        sites = parse_sites(text, s)
+        t = place_target_inputs(s, list(range(n)), sites=sites, method="exact")
+        p = place_inputs(s, sites=sites)
+        assert (t.feasible, t.goal_met, t.optimal) == (p.feasible, p.goal_met, p.optimal), trial
+        assert t.gap == p.gap, trial
+        if p.feasible:  # exact on both sides: proven optimal, gap 0
+            assert t.cost == p.cost == t.lower_bound and t.optimal and t.gap == 0, trial
+        else:  # Placement contract: no design at any cost -> gap inf, no bound
+            assert t.gap == float("inf") and t.lower_bound is None and not t.goal_met, trial
+
+
+def test_target_sites_are_checked_like_placement_sites():
+    s = from_edges([(0, 1), (1, 2)], 3)
+    other = from_edges([(0, 1), (1, 2), (2, 3), (3, 4)], 5)
+    with pytest.raises(OptionError, match="sites cover 5 states but the system has 3"):
+        place_target_inputs(s, ["x2"], sites=parse_sites("state\nx0", other))
+    with pytest.raises(OptionError, match="these are sensor sites but inputs are being placed"):
+        place_target_inputs(s, ["x2"], sites=parse_sites("state\nx0", s, kind="sensor"))
