@@ -148,7 +148,7 @@ def _part2_rows(sizes: list[int], time_limit: float, k: float) -> None:
         t = time.perf_counter()
         g = place_inputs(s, candidates=cands, method="greedy", verify=False)
         t_g = time.perf_counter() - t
-        from netctl.structural.placement.reduced import reduce_problem
+        from netctl.structural.placement._reduced import reduce_problem
         size = reduce_problem(s.A, s.B, structure_of(s.A), cands).milp_size()
         t = time.perf_counter()
         m = place_inputs(s, candidates=cands, method="exact", time_limit=time_limit,

@@ -30,21 +30,15 @@ NOT_ANALYSES: dict[str, str] = {
     "run_tasks": "process executor",
     "spawn_seeds": "seed bookkeeping for the executor",
     "default_workers": "executor setting",
-    # readers of sites and candidates, on their way to netctl.io (issue 14, item 1)
+    # site data from the node table (the file readers are in netctl.io.sites)
     "candidates_from_sites": "input handling, not an analysis",
-    "parse_candidates": "input handling, not an analysis",
-    "parse_sites": "input handling, not an analysis",
-    "read_candidates": "input handling, not an analysis",
-    "read_sites": "input handling, not an analysis",
     "sites_from_nodes": "input handling, not an analysis",
+    "target_index": "turns target names into state indices",
 }
 
 #: Analyses whose modules are being restructured by another change at the same time;
 #: strict xfail, so adding their References turns these into failures to remove here.
-PENDING: dict[str, str] = {
-    "place_sensors": "structural/placement.py is split in a parallel change (issue 14)",
-    "is_target_controllable": "structural/target.py is reworked in a parallel change",
-}
+PENDING: dict[str, str] = {}
 
 _REFERENCES = re.compile(r"^References\n-{10,}\n(?:\s*\n)*\.\. \[1\] \S", re.MULTILINE)
 

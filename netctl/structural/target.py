@@ -161,7 +161,27 @@ def target_rank(system: StructuredSystem, targets: Iterable[object], *,
 
 def is_target_controllable(system: StructuredSystem, targets: Iterable[object], *,
                            drivers: Iterable[int] | None = None, seed: int = 0) -> bool:
-    """True when ``targets`` are structurally target controllable (see :func:`target_rank`)."""
+    """True when ``targets`` are structurally target controllable by dedicated inputs at
+    ``drivers`` (plus the system's own inputs): the generic rank of
+    ``C_T [B, AB, ..., A^{n-1} B]`` is ``|T|`` [1]_, decided by :func:`target_rank`
+    (one-sided error: a ``False`` is wrong with probability at most ``(n^2 / p)^2``,
+    ``p = 2^31 - 1``, by the Schwartz--Zippel bound [2]_).
+
+    References
+    ----------
+    .. [1] J. Gao, Y.-Y. Liu, R. M. D'Souza, A.-L. Barabási, "Target control of complex
+       networks", Nat. Commun. 5:5415, 2014. doi:10.1038/ncomms6415
+    .. [2] J. T. Schwartz, "Fast probabilistic algorithms for verification of
+       polynomial identities", J. ACM 27(4):701-717, 1980.
+
+    Examples
+    --------
+    >>> from netctl import StructuredSystem
+    >>> from netctl.structural.target import is_target_controllable
+    >>> s = StructuredSystem.from_edges([0, 1, 0], [1, 2, 3], 4)   # 0->1->2, 0->3
+    >>> is_target_controllable(s, ["x2", "x3"], drivers=[0])
+    True
+    """
     T = target_index(system, targets)
     return target_rank(system, T, drivers=drivers, seed=seed) == T.size
 

@@ -457,7 +457,7 @@ def test_milp_time_limit_still_gives_a_checked_design_and_valid_bound():
 def test_dimension_oracle_matches_finite_field_reference():
     """The best-effort oracle (Hosoe's assignment, per component) against the generic
     rank of [B AB ...] over F_p (tests/_reference.py) and netctl's controllability."""
-    from netctl.structural.placement.budget import DimensionOracle as _DimensionOracle
+    from netctl.structural.placement._budget import DimensionOracle as _DimensionOracle
 
     rng = np.random.default_rng(6010)
     ref_rng = np.random.default_rng(31)

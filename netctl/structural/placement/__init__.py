@@ -20,12 +20,13 @@ Problems solved (see :func:`place_inputs` for the methods and their guarantees):
 * **target** -- the cheapest dedicated drivers for a set of target states
   (:func:`place_target_inputs`; Gao, Liu, D'Souza & Barabási 2014).
 
-One module a job, all through one loop (:mod:`.loop`): eligibility and costs
-(:mod:`.sites`), the reduced problem (:mod:`.reduced`), exact minimum cost for dedicated
-actuators (:mod:`.assignment`), the MILP for shared candidate columns (:mod:`.milp`),
-the greedy cover (:mod:`.cover`), best effort under a budget (:mod:`.budget`), the
-result (:mod:`.result`), actuators (:mod:`.inputs`), the sensor dual (:mod:`.sensors`)
-and target placement (:mod:`.target`). Site and candidate files are read by
+One module a job, all through one loop (``_loop``). Public: eligibility and costs
+(:mod:`.sites`), the result (:mod:`.result`), actuators (:mod:`.inputs`), the sensor
+dual (:mod:`.sensors`) and target placement (:mod:`.target`). Private: the reduced
+problem (``_reduced``), exact minimum cost for dedicated actuators (``_assignment``),
+the MILP for shared candidate columns (``_milp``), the greedy cover (``_cover``), best
+effort under a budget (``_budget``) and the choice among them with Lin's check
+(``_design``). Site and candidate files are read by
 :mod:`netctl.io.sites` into the records of :mod:`netctl.records`.
 
 Results concern a linear(ized) structural model; they do not replace the operator's
@@ -33,13 +34,10 @@ procedures, applicable codes or licensed engineers (see ``netctl.cli.CAUTION``).
 """
 
 from netctl.records import Candidates, Sites
-from netctl.structural.placement.budget import EXHAUSTIVE_MAX_CANDIDATES
-from netctl.structural.placement.inputs import (
-    DIMENSION_MAX_STATES,
-    MILP_MAX_VARIABLES,
-    place_inputs,
-)
-from netctl.structural.placement.loop import METHODS
+from netctl.structural.placement._budget import EXHAUSTIVE_MAX_CANDIDATES
+from netctl.structural.placement._design import DIMENSION_MAX_STATES, MILP_MAX_VARIABLES
+from netctl.structural.placement._loop import METHODS
+from netctl.structural.placement.inputs import place_inputs
 from netctl.structural.placement.result import Placement
 from netctl.structural.placement.sensors import place_sensors
 from netctl.structural.placement.sites import candidates_from_sites, sites_from_nodes

@@ -1,10 +1,10 @@
 """Actuator placement: the cheapest design that makes a system structurally controllable,
 under eligible sites, costs, candidate actuators acting on several states, and a budget.
 
-This module picks the solver (exact assignment, MILP, greedy cover, best effort) and
-checks the design with Lin's test; :func:`~netctl.structural.placement.loop.run_placement`
-does the rest. Convention: edge ``u -> v`` iff ``A[v, u] != 0``; a dedicated actuator at
-state ``i`` adds the input column ``e_i`` to ``B``.
+The solvers and Lin's check are in the private modules of this package (``_design``
+picks among ``_assignment``, ``_milp``, ``_cover`` and ``_budget``; ``_loop`` is the
+outer loop every placement shares). Convention: edge ``u -> v`` iff ``A[v, u] != 0``;
+a dedicated actuator at state ``i`` adds the input column ``e_i`` to ``B``.
 
 Results concern a linear(ized) structural model; they do not replace the operator's
 procedures, applicable codes or licensed engineers (see ``netctl.cli.CAUTION``).
@@ -12,37 +12,12 @@ procedures, applicable codes or licensed engineers (see ``netctl.cli.CAUTION``).
 
 from __future__ import annotations
 
-import numpy as np
-import scipy.sparse as sp
-
-from netctl.errors import OptionError
-from netctl.graph.matching import maximum_matching
 from netctl.records import Candidates, Sites
-from netctl.structural._engine import accessible_states, stack_AB, structure_of
-from netctl.structural.placement.assignment import dedicated_assignment
-from netctl.structural.placement.budget import best_effort_design
-from netctl.structural.placement.cover import greedy_cover
-from netctl.structural.placement.loop import Check, check_method, run_placement
-from netctl.structural.placement.milp import solve_milp
-from netctl.structural.placement.reduced import Outcome, infeasibility, reduce_problem
+from netctl.structural.placement._design import place_design
 from netctl.structural.placement.result import Placement
 from netctl.system import StructuredSystem
 
-__all__ = [
-    "DIMENSION_MAX_STATES",
-    "MILP_MAX_VARIABLES",
-    "place_design",
-    "place_inputs",
-]
-
-#: Largest mixed-integer programme ``method="auto"`` hands to HiGHS (continuous matching
-#: variables plus binary actuator variables, after the reduction described in
-#: :func:`place_inputs`); larger problems use the greedy. See benchmarks/RESULTS.md.
-MILP_MAX_VARIABLES: int = 200_000
-
-#: Largest system for which a failing design's generic controllable dimension is
-#: reported without being asked for (it costs one min-cost assignment).
-DIMENSION_MAX_STATES: int = 20_000
+__all__ = ["place_inputs"]
 
 
 def place_inputs(
@@ -75,8 +50,8 @@ def place_inputs(
         (``best_effort=True``, ``goal_met=False``).
     method : {"auto", "exact", "greedy"}
         ``"auto"``: exact where the problem allows (always for dedicated actuators; the
-        MILP up to :data:`MILP_MAX_VARIABLES`; exhaustive best effort up to
-        :data:`EXHAUSTIVE_MAX_CANDIDATES`), greedy beyond. ``"exact"`` forces the exact
+        MILP up to :data:`~netctl.structural.placement.MILP_MAX_VARIABLES`; exhaustive best effort up to
+        :data:`~netctl.structural.placement.EXHAUSTIVE_MAX_CANDIDATES`), greedy beyond. ``"exact"`` forces the exact
         method whatever the size (it may take long); ``"greedy"`` forces the greedy.
     time_limit : float, default 60
         Seconds HiGHS may spend on the MILP; when reached, its best design is returned
@@ -138,7 +113,7 @@ def place_inputs(
     **Best effort under a budget.** For generic weights the controllable subspace of a
     set of input columns is the sum of their Krylov subspaces, so its dimension --
     generically Hosoe's dimension [2]_ -- is monotone submodular in the set of chosen
-    columns. Exhaustive search below :data:`EXHAUSTIVE_MAX_CANDIDATES` affordable
+    columns. Exhaustive search below :data:`~netctl.structural.placement.EXHAUSTIVE_MAX_CANDIDATES` affordable
     candidates; otherwise cost-effectiveness greedy plus the best single candidate,
     which reaches ``(1 - 1/e)/2`` of the optimum under a knapsack budget (Khuller, Moss
     & Naor [4]_; from memory) and ``1 - 1/e`` for equal costs (Nemhauser, Wolsey & Fisher
@@ -179,104 +154,3 @@ def place_inputs(
 
 
 # ====================================================================== dispatcher
-def _validate(method: str, budget: float | None, time_limit: float) -> None:
-    check_method(method)
-    if budget is not None:
-        if isinstance(budget, bool) or not isinstance(budget, (int, float, np.number)) or \
-                not np.isfinite(budget) or budget < 0:
-            raise OptionError(f"budget must be a finite number >= 0, found {budget!r}; omit it "
-                              "for no budget.")
-    if not isinstance(time_limit, (int, float)) or not time_limit > 0:
-        raise OptionError(f"time_limit must be a number of seconds > 0, found {time_limit!r}.")
-
-
-def place_design(system: StructuredSystem, kind: str, sites: Sites | None,
-                 candidates: Candidates | None, budget: float | None, method: str,
-                 time_limit: float, verify: bool) -> Placement:
-    """:func:`place_inputs` (``kind="inputs"``) or its dual on ``system.dual()``
-    (``kind="sensors"``), through the shared loop."""
-    _validate(method, budget, time_limit)
-    work = system if kind == "inputs" else system.dual()
-    return run_placement(
-        system, kind, sites, candidates,
-        solve=lambda cands: _solve(work, cands, budget, method, float(time_limit)),
-        check=lambda cands, out: _lin_check(work, cands, out, verify), budget=budget)
-
-
-def _solve(work: StructuredSystem, cands: Candidates, budget: float | None, method: str,
-           time_limit: float) -> Outcome:
-    A, B = work.A, work.B
-    n = work.n_states
-    st = structure_of(A)
-    prob = reduce_problem(A, B, st, cands)
-    problem = "dedicated" if cands.dedicated else "candidates"
-    reasons = infeasibility(work, prob, cands)
-    if reasons:
-        out = Outcome(problem, "none", False, False, np.zeros(0, np.int64), 0.0, None, None,
-                       None, reasons, "no design within the given sites or candidates makes "
-                       "the system structurally controllable")
-        if budget is not None:
-            be = best_effort_design(work, cands, prob, budget, method)
-            be.feasible = False
-            be.reasons = reasons
-            return be
-        return out
-    if cands.dedicated and method != "greedy":
-        out = dedicated_assignment(prob, cands)
-    elif method == "greedy" or (method == "auto" and prob.milp_size() > MILP_MAX_VARIABLES):
-        out = greedy_cover(prob, cands)
-    else:
-        out = solve_milp(prob, cands, time_limit)
-    out.problem = problem
-    if budget is not None and out.cost > budget * (1 + 1e-12) + 1e-12:
-        lb = out.lower_bound if out.lower_bound is not None else 0.0
-        be = best_effort_design(work, cands, prob, budget, method)
-        proven = lb > budget * (1 + 1e-12) + 1e-12
-        be.reasons = [
-            f"the budget {budget:g} is below the cheapest controlling design found "
-            f"(cost {out.cost:g}"
-            + (", proven minimal)" if proven and lb >= out.cost * (1 - 1e-9)
-               else f"; proven lower bound {lb:g})" if proven
-               else f"; a cheaper one may exist: proven lower bound {lb:g})")
-            + f"; the design shown reaches generic dimension {be.dimension} of {n}."]
-        if not proven:
-            be.reasons.append("the budget may suffice for a design the heuristic did not find; "
-                              "retry with method='exact'.")
-        return be
-    return out
-
-
-# ====================================================================== the check
-def _lin_check(work: StructuredSystem, cands: Candidates, out: Outcome, verify: bool) -> Check:
-    """Lin's test on ``work`` with the design installed (a claimed design), or only
-    accessibility and rank (no claim); the generic dimension when it fails."""
-    from netctl.structural.controllability import controllability
-
-    n = work.n_states
-    chosen = np.asarray(out.chosen, np.int64)
-    verified: bool | None = None
-    dim = out.dimension
-    M = cands.matrix(chosen, n)
-    B = sp.hstack([work.B, M], format="csr") if work.n_inputs else M
-    design = work._replace(B=B, input_names=tuple(f"u{k}" for k in range(B.shape[1])))
-    claimed = out.feasible and not out.best_effort
-    if claimed:
-        # the independent check of a claimed design: Lin's test on the design installed
-        rep = controllability(design, dimension=False)
-        verified = bool(rep.controllable) if verify else None
-        inacc = rep.inaccessible
-        ok = bool(rep.controllable)
-    else:
-        # no claim to check; accessibility and rank only (near-linear, any size)
-        st = structure_of(work.A)
-        acc = accessible_states(st, B)
-        inacc = np.flatnonzero(~acc).astype(np.int64)
-        indptr, indices, n_cols = stack_AB(work.A, B)
-        rm, _ = maximum_matching(indptr, indices, n_cols)
-        ok = bool(acc.all() and np.all(rm >= 0))
-    if dim is None:
-        if ok:
-            dim = n
-        elif n <= DIMENSION_MAX_STATES:
-            dim = controllability(design).controllable_dimension
-    return Check(verified, dim, np.asarray(inacc, np.int64))

@@ -10,7 +10,7 @@ row ``e_i^T`` to ``C``.
 from __future__ import annotations
 
 from netctl.records import Candidates, Sites
-from netctl.structural.placement.inputs import place_design
+from netctl.structural.placement._design import place_design
 from netctl.structural.placement.result import Placement
 from netctl.system import StructuredSystem
 
@@ -29,7 +29,7 @@ def place_sensors(
 ) -> Placement:
     """Cheapest sensor design that makes ``system`` structurally observable.
 
-    The dual of :func:`place_inputs`, computed on ``system.dual()`` (edges reversed, so
+    The dual of :func:`~netctl.structural.placement.place_inputs`, computed on ``system.dual()`` (edges reversed, so
     *sink* components each need a sensor). ``sites`` default to the node table's
     ``sensor`` / ``sensor_cost`` columns; ``candidates`` are sensors reading several
     states (rows of ``C``). The check uses :func:`netctl.structural.observability`.

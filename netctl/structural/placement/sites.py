@@ -13,11 +13,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from netctl.errors import InvalidSystemError, OptionError
+from netctl.errors import InvalidSystemError
 from netctl.records import Candidates, Sites, check_site_kind
 from netctl.system import StructuredSystem
 
-__all__ = ["candidates_from_sites", "resolve_candidates", "sites_from_nodes"]
+__all__ = ["candidates_from_sites", "sites_from_nodes"]
 
 
 def sites_from_nodes(system: StructuredSystem, *, kind: str = "actuator") -> Sites:
@@ -81,44 +81,3 @@ def candidates_from_sites(sites: Sites) -> Candidates:
     return Candidates(names=tuple(prefix + sites.state_names[int(i)] for i in idx),
                       indptr=np.arange(idx.size + 1, dtype=np.int64), indices=idx,
                       cost=sites.cost[idx].astype(np.float64), dedicated=True)
-
-
-def resolve_candidates(system: StructuredSystem, kind: str, sites: Sites | None,
-                       candidates: Candidates | None) -> Candidates:
-    """The candidate columns to choose from: ``candidates`` when given (checked against
-    ``system``), else one dedicated candidate per eligible site of ``sites`` (default:
-    :func:`sites_from_nodes`). ``kind`` is ``"inputs"`` or ``"sensors"``.
-
-    Raises
-    ------
-    OptionError
-        Not a :class:`~netctl.records.Candidates` / :class:`~netctl.records.Sites`
-        object, costs that are not finite and >= 0, data built for another system, or
-        sites of the wrong kind.
-    """
-    site_kind = "actuator" if kind == "inputs" else "sensor"
-    n = system.n_states
-    if candidates is not None:
-        if not isinstance(candidates, Candidates):
-            raise OptionError(f"candidates must be a Candidates object (see read_candidates), "
-                              f"found {type(candidates).__name__}.")
-        c = np.asarray(candidates.cost, np.float64)
-        if c.shape != (candidates.n_candidates,) or not np.all(np.isfinite(c)) or np.any(c < 0):
-            raise OptionError(f"candidate costs must be one finite number >= 0 per candidate "
-                              f"({candidates.n_candidates}), found {c.tolist()[:5]!r}.")
-        if candidates.indices.size and int(candidates.indices.max()) >= n:
-            raise OptionError(f"candidates refer to state index {int(candidates.indices.max())}"
-                              f" but the system has {n} states; build them for this system.")
-        return candidates
-    if sites is None:
-        sites = sites_from_nodes(system, kind=site_kind)
-    if not isinstance(sites, Sites):
-        raise OptionError(f"sites must be a Sites object (see read_sites / sites_from_nodes), "
-                          f"found {type(sites).__name__}.")
-    if sites.kind != site_kind:
-        raise OptionError(f"these are {sites.kind} sites but {kind} are being placed; pass "
-                          f"{site_kind} sites (kind={site_kind!r}).")
-    if sites.eligible.shape != (n,):
-        raise OptionError(f"sites cover {sites.eligible.size} states but the system has {n}; "
-                          "build them for this system.")
-    return candidates_from_sites(sites)

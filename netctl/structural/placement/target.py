@@ -23,8 +23,8 @@ from netctl.errors import OptionError
 from netctl.graph.components import reachable_from
 from netctl.graph.matching import maximum_matching
 from netctl.records import Candidates, Sites
-from netctl.structural.placement.loop import Check, check_method, run_placement
-from netctl.structural.placement.reduced import Outcome
+from netctl.structural.placement._loop import Check, check_method, run_placement
+from netctl.structural.placement._reduced import Outcome
 from netctl.structural.placement.result import Placement
 from netctl.structural.target import (
     TARGET_EXHAUSTIVE_MAX_SITES,

@@ -25,8 +25,8 @@ import scipy.sparse as sp
 
 from netctl.graph.components import reachable_from
 from netctl.records import Candidates
-from netctl.structural.placement.assignment import assignment_by_component
-from netctl.structural.placement.reduced import Outcome, Reduced, gain_per_cost
+from netctl.structural.placement._assignment import assignment_by_component
+from netctl.structural.placement._reduced import Outcome, Reduced, gain_per_cost
 from netctl.system import StructuredSystem
 
 __all__ = ["DimensionOracle", "EXHAUSTIVE_MAX_CANDIDATES", "best_effort_design"]

@@ -18,7 +18,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.records import Candidates
-from netctl.structural.placement.reduced import Outcome, Reduced, gather_ranges
+from netctl.structural.placement._reduced import Outcome, Reduced, gather_ranges
 
 __all__ = ["assignment_by_component", "dedicated_assignment"]
 

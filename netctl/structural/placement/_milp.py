@@ -18,8 +18,8 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.records import Candidates
-from netctl.structural.placement.cover import greedy_cover
-from netctl.structural.placement.reduced import Outcome, Reduced
+from netctl.structural.placement._cover import greedy_cover
+from netctl.structural.placement._reduced import Outcome, Reduced
 
 __all__ = ["solve_milp"]
 

@@ -18,12 +18,12 @@ import numpy as np
 
 from netctl.errors import OptionError
 from netctl.records import Candidates, Sites
-from netctl.structural.placement.reduced import Outcome
+from netctl.structural.placement._reduced import Outcome
 from netctl.structural.placement.result import Placement
-from netctl.structural.placement.sites import resolve_candidates
+from netctl.structural.placement.sites import candidates_from_sites, sites_from_nodes
 from netctl.system import StructuredSystem
 
-__all__ = ["Check", "METHODS", "check_method", "run_placement"]
+__all__ = ["Check", "METHODS", "check_method", "resolve_candidates", "run_placement"]
 
 #: ``method`` choices of every placement.
 METHODS: tuple[str, ...] = ("auto", "exact", "greedy")
@@ -129,3 +129,44 @@ def run_placement(
         guarantee=out.guarantee, budget=None if budget is None else float(budget),
         candidates=cands, state_names=tuple(system.state_names), targets=targets,
         model=system.model)
+
+
+def resolve_candidates(system: StructuredSystem, kind: str, sites: Sites | None,
+                       candidates: Candidates | None) -> Candidates:
+    """The candidate columns to choose from: ``candidates`` when given (checked against
+    ``system``), else one dedicated candidate per eligible site of ``sites`` (default:
+    :func:`sites_from_nodes`). ``kind`` is ``"inputs"`` or ``"sensors"``.
+
+    Raises
+    ------
+    OptionError
+        Not a :class:`~netctl.records.Candidates` / :class:`~netctl.records.Sites`
+        object, costs that are not finite and >= 0, data built for another system, or
+        sites of the wrong kind.
+    """
+    site_kind = "actuator" if kind == "inputs" else "sensor"
+    n = system.n_states
+    if candidates is not None:
+        if not isinstance(candidates, Candidates):
+            raise OptionError(f"candidates must be a Candidates object (see read_candidates), "
+                              f"found {type(candidates).__name__}.")
+        c = np.asarray(candidates.cost, np.float64)
+        if c.shape != (candidates.n_candidates,) or not np.all(np.isfinite(c)) or np.any(c < 0):
+            raise OptionError(f"candidate costs must be one finite number >= 0 per candidate "
+                              f"({candidates.n_candidates}), found {c.tolist()[:5]!r}.")
+        if candidates.indices.size and int(candidates.indices.max()) >= n:
+            raise OptionError(f"candidates refer to state index {int(candidates.indices.max())}"
+                              f" but the system has {n} states; build them for this system.")
+        return candidates
+    if sites is None:
+        sites = sites_from_nodes(system, kind=site_kind)
+    if not isinstance(sites, Sites):
+        raise OptionError(f"sites must be a Sites object (see read_sites / sites_from_nodes), "
+                          f"found {type(sites).__name__}.")
+    if sites.kind != site_kind:
+        raise OptionError(f"these are {sites.kind} sites but {kind} are being placed; pass "
+                          f"{site_kind} sites (kind={site_kind!r}).")
+    if sites.eligible.shape != (n,):
+        raise OptionError(f"sites cover {sites.eligible.size} states but the system has {n}; "
+                          "build them for this system.")
+    return candidates_from_sites(sites)

@@ -21,7 +21,7 @@ from numba import njit
 
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.records import Candidates
-from netctl.structural.placement.reduced import Outcome, Reduced, gain_per_cost
+from netctl.structural.placement._reduced import Outcome, Reduced, gain_per_cost
 
 __all__ = ["greedy_cover"]
 
