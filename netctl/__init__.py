@@ -15,65 +15,127 @@ Results concern a linear(ized) model, not the plant: they do not replace the ope
 procedures, applicable codes or the judgement of licensed engineers.
 """
 
-from netctl.ensemble import (
-    NullComparison,
-    cavity_driver_fraction,
-    compare_to_null,
-    configuration_model,
-    degree_preserving_swaps,
-    run_tasks,
-)
-from netctl.errors import (
-    InvalidSystemError,
-    MissingFileError,
-    NetctlError,
-    NetworkFileError,
-    OptionError,
-    UnknownNameError,
-)
-from netctl.numeric import (
-    EnergyReport,
-    ExactControllability,
-    ModalReport,
-    RankTest,
-    Verification,
-    energy,
-    exact_controllability,
-    modal_controllability,
-    realize,
-    verify,
-)
-from netctl.structural import (
-    ControllabilityReport,
-    InputDesign,
-    NetworkSummary,
-    controllability,
-    is_structurally_controllable,
-    is_structurally_observable,
-    minimum_inputs,
-    minimum_sensors,
-    observability,
-    summarize,
-)
-from netctl.structural.interconnect import interconnection
-from netctl.structural.placement import (
-    Placement,
-    place_inputs,
-    place_sensors,
-    place_target_inputs,
-)
-from netctl.structural.robustness import contingency_sweep, what_if
-from netctl.structural.roles import LinkRoles, NodeRoles, link_roles, node_roles
-from netctl.structural.strong import (
-    StrongInputDesign,
-    StrongReport,
-    is_strongly_controllable,
-    minimum_strong_inputs,
-    strong_controllability,
-)
-from netctl.system import Station, StructuredSystem, make_stations
+from __future__ import annotations
 
-__version__ = "0.1.0"
+import importlib
+from typing import TYPE_CHECKING, Any
+
+from netctl._meta import __version__
+
+if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
+    from netctl.ensemble import (
+        NullComparison,
+        cavity_driver_fraction,
+        compare_to_null,
+        configuration_model,
+        degree_preserving_swaps,
+        run_tasks,
+    )
+    from netctl.errors import (
+        InvalidSystemError,
+        MissingFileError,
+        NetctlError,
+        NetworkFileError,
+        OptionError,
+        UnknownNameError,
+    )
+    from netctl.numeric import (
+        EnergyReport,
+        ExactControllability,
+        ModalReport,
+        RankTest,
+        Verification,
+        energy,
+        exact_controllability,
+        modal_controllability,
+        realize,
+        verify,
+    )
+    from netctl.structural import (
+        ControllabilityReport,
+        InputDesign,
+        NetworkSummary,
+        controllability,
+        is_structurally_controllable,
+        is_structurally_observable,
+        minimum_inputs,
+        minimum_sensors,
+        observability,
+        summarize,
+    )
+    from netctl.structural.interconnect import interconnection
+    from netctl.structural.placement import (
+        Placement,
+        place_inputs,
+        place_sensors,
+        place_target_inputs,
+    )
+    from netctl.structural.robustness import contingency_sweep, what_if
+    from netctl.structural.roles import LinkRoles, NodeRoles, link_roles, node_roles
+    from netctl.structural.strong import (
+        StrongInputDesign,
+        StrongReport,
+        is_strongly_controllable,
+        minimum_strong_inputs,
+        strong_controllability,
+    )
+    from netctl.system import Station, StructuredSystem, make_stations
+
+#: public name -> the module that defines it. Submodules are imported on first access
+#: (PEP 562), so ``import netctl`` stays fast and loads no SciPy, Numba or Matplotlib.
+_LAZY: dict[str, str] = {
+    "ControllabilityReport": "netctl.structural",
+    "EnergyReport": "netctl.numeric",
+    "ExactControllability": "netctl.numeric",
+    "InputDesign": "netctl.structural",
+    "InvalidSystemError": "netctl.errors",
+    "LinkRoles": "netctl.structural.roles",
+    "MissingFileError": "netctl.errors",
+    "ModalReport": "netctl.numeric",
+    "NetctlError": "netctl.errors",
+    "NetworkFileError": "netctl.errors",
+    "NetworkSummary": "netctl.structural",
+    "NodeRoles": "netctl.structural.roles",
+    "NullComparison": "netctl.ensemble",
+    "OptionError": "netctl.errors",
+    "Placement": "netctl.structural.placement",
+    "RankTest": "netctl.numeric",
+    "Station": "netctl.system",
+    "StrongInputDesign": "netctl.structural.strong",
+    "StrongReport": "netctl.structural.strong",
+    "StructuredSystem": "netctl.system",
+    "UnknownNameError": "netctl.errors",
+    "Verification": "netctl.numeric",
+    "cavity_driver_fraction": "netctl.ensemble",
+    "compare_to_null": "netctl.ensemble",
+    "configuration_model": "netctl.ensemble",
+    "contingency_sweep": "netctl.structural.robustness",
+    "controllability": "netctl.structural",
+    "degree_preserving_swaps": "netctl.ensemble",
+    "energy": "netctl.numeric",
+    "exact_controllability": "netctl.numeric",
+    "interconnection": "netctl.structural.interconnect",
+    "is_strongly_controllable": "netctl.structural.strong",
+    "is_structurally_controllable": "netctl.structural",
+    "is_structurally_observable": "netctl.structural",
+    "link_roles": "netctl.structural.roles",
+    "make_stations": "netctl.system",
+    "minimum_inputs": "netctl.structural",
+    "minimum_sensors": "netctl.structural",
+    "minimum_strong_inputs": "netctl.structural.strong",
+    "modal_controllability": "netctl.numeric",
+    "node_roles": "netctl.structural.roles",
+    "observability": "netctl.structural",
+    "place_inputs": "netctl.structural.placement",
+    "place_sensors": "netctl.structural.placement",
+    "place_target_inputs": "netctl.structural.placement",
+    "realize": "netctl.numeric",
+    "run_tasks": "netctl.ensemble",
+    "strong_controllability": "netctl.structural.strong",
+    "summarize": "netctl.structural",
+    "verify": "netctl.numeric",
+    "what_if": "netctl.structural.robustness",
+}
 
 __all__ = [
     "ControllabilityReport",
@@ -129,3 +191,24 @@ __all__ = [
     "verify",
     "what_if",
 ]
+
+
+#: subpackages and modules reachable as attributes (``netctl.structural``) without an
+#: explicit import, as when the package root imported them eagerly
+_SUBMODULES = frozenset({"cli", "commands", "ensemble", "errors", "generate", "graph", "io",
+                         "models", "numeric", "report", "structural", "system", "viz"})
+
+
+def __getattr__(name: str) -> Any:
+    module = _LAZY.get(name)
+    if module is None:
+        if name in _SUBMODULES:
+            return importlib.import_module(f"netctl.{name}")
+        raise AttributeError(f"module 'netctl' has no attribute {name!r}")
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value  # later look-ups skip this function
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))

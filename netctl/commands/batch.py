@@ -18,8 +18,20 @@ import warnings
 from pathlib import Path
 from typing import Any
 
-import numpy as np
 
+from netctl.commands._options import (
+    CAUTION,
+    UsageError,
+    add_executor_options,
+    add_format,
+    add_inputs,
+    add_json,
+    add_model,
+    add_out,
+    add_outputs,
+    add_quiet,
+    parse_names,
+)
 from netctl.errors import NetctlError
 
 __all__ = ["register", "TASKS", "COLUMNS", "batch_row", "find_network_files"]
@@ -53,14 +65,9 @@ def _roles_module() -> Any:
     return roles
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    from netctl.commands.compare import add_executor_options
-    from netctl.io import FORMATS
-    from netctl.models import MODELS
-
-    p = subparsers.add_parser(
-        "batch", help="one analysis over many network files, one CSV row a file "
-                      "(local processes or a Dask cluster)")
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``batch`` verb (its own FILE argument: a folder or glob)."""
+    p = subparsers.add_parser(name, help=help)
     p.add_argument("file", metavar="DIR_OR_GLOB",
                    help="a folder (its network files), a quoted glob such as 'cases/*.csv', "
                         "or one file")
@@ -68,19 +75,17 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
                    help="drivers: minimum inputs; check: does the --inputs design control "
                         "each network; roles: counts of critical/intermittent/redundant "
                         "states and links")
-    p.add_argument("--out", metavar="FILE", required=True,
-                   help="CSV to write (atomically): one row a file, problems in 'error'")
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="check: states with a dedicated input, the same in every file")
-    p.add_argument("--outputs", metavar="NAMES|FILE", default=None,
-                   help="check: states with a dedicated sensor, the same in every file")
-    p.add_argument("--format", choices=sorted(FORMATS), default=None,
-                   help="file format of every file (default: from each file name; a folder "
-                        "then contributes only files with a known suffix)")
-    p.add_argument("--model", choices=list(MODELS), default="first-order",
-                   help="how each network becomes a state-space pattern (default first-order)")
-    p.add_argument("--json", action="store_true",
-                   help="print the rows as JSON instead of the summary")
+    add_out(p, required=True,
+            help="CSV to write (atomically): one row a file, problems in 'error'")
+    add_inputs(p, default=None, what="check: states with a dedicated input, the same in "
+               "every file")
+    add_outputs(p, default=None, what="check: states with a dedicated sensor, the same in "
+                "every file")
+    add_format(p, help="file format of every file (default: from each file name; a folder "
+                       "then contributes only files with a known suffix)")
+    add_model(p, help="how each network becomes a state-space pattern (default first-order)")
+    add_json(p, help="print the rows as JSON instead of the summary")
+    add_quiet(p)
     add_executor_options(p)
     p.set_defaults(func=_cmd_batch)
 
@@ -102,8 +107,6 @@ def find_network_files(pattern: str, *, format: str | None = None
     ``format`` only those with a known network-file suffix. A glob contributes every
     regular file it matches; a plain path names one file.
     """
-    from netctl.cli import UsageError
-
     p = Path(pattern)
     if p.is_dir():
         entries = sorted(str(x) for x in p.iterdir() if x.is_file() and not x.name.startswith("."))
@@ -129,8 +132,6 @@ def batch_row(path: str, seed: Any, shared: dict[str, Any]) -> dict[str, Any]:
     Never raises for a bad file: the message goes to ``error`` (``file:line: ...`` where
     the reader knows the line).
     """
-    from netctl.cli import UsageError
-
     task = shared["task"]
     row: dict[str, Any] = {"file": path, "task": task, "model": shared["model"]}
     with warnings.catch_warnings(record=True) as caught:
@@ -167,7 +168,6 @@ def _analyse(path: str, shared: dict[str, Any]) -> dict[str, Any]:
                 "structural_rank_A": d.matching_size,
                 "n_source_components": d.n_source_components}
     if task == "check":
-        from netctl.cli import parse_names
         from netctl.structural import controllability, observability
 
         out: dict[str, Any] = {"n_states": n, "n_links": system.n_links}
@@ -196,6 +196,8 @@ def _analyse(path: str, shared: dict[str, Any]) -> dict[str, Any]:
 
 
 def _cell(v: Any) -> Any:
+    import numpy as np
+
     if v is None:
         return ""
     if isinstance(v, (bool, np.bool_)):
@@ -206,7 +208,6 @@ def _cell(v: Any) -> Any:
 
 
 def _cmd_batch(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, UsageError
     from netctl.ensemble import default_workers, run_tasks
     from netctl.io import atomic_write
 

@@ -5,35 +5,29 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.ensemble import EXECUTORS, NULL_MODELS
+from netctl.commands._options import (
+    UsageError,
+    add_executor_options,
+    add_samples,
+    add_seed,
+    emit,
+    load_system,
+)
 
-__all__ = ["register", "add_executor_options"]
-
-
-def add_executor_options(p: argparse.ArgumentParser) -> None:
-    """``--executor``, ``--workers``, ``--scheduler`` (shared with ``netctl batch``)."""
-    p.add_argument("--executor", choices=list(EXECUTORS), default="local",
-                   help="what runs the independent tasks: local processes (default), serial, "
-                        "or dask (a running scheduler with --scheduler, else a local cluster)")
-    p.add_argument("--workers", type=int, default=None, metavar="W",
-                   help="worker processes (default: the CPUs available; dask local cluster: 2)")
-    p.add_argument("--scheduler", default=None, metavar="ADDRESS",
-                   help="Dask scheduler address, e.g. tcp://10.0.0.5:8786 (with --executor dask)")
+__all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "compare", parents=[common],
-        help="minimum inputs against a degree-preserving null model and the analytic "
-             "prediction (mean, spread, z-score)")
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``compare`` verb."""
+    from netctl.ensemble.null import NULL_MODELS
+
+    p = subparsers.add_parser(name, parents=[common], help=help)
     p.add_argument("--null", choices=list(NULL_MODELS), default="degree",
                    help="null model: degree = configuration model (stub matching; default), "
                         "swap = degree-preserving link swaps of the network itself")
-    p.add_argument("--samples", type=int, default=100, metavar="K",
-                   help="null-model samples (default 100)")
-    p.add_argument("--seed", type=int, default=None, metavar="N",
-                   help="random seed; the same seed gives the same samples on any executor "
-                        "(default: fresh, printed so the run can be repeated)")
+    add_samples(p, default=100, help="null-model samples (default 100)")
+    add_seed(p, default=None, help="random seed; the same seed gives the same samples on any "
+             "executor (default: fresh, printed so the run can be repeated)")
     add_executor_options(p)
     p.set_defaults(func=_cmd_compare)
 
@@ -43,7 +37,6 @@ def _fmt(x: float | None, digits: int = 4) -> str:
 
 
 def _cmd_compare(args: argparse.Namespace) -> int:
-    from netctl.cli import UsageError, emit, load_system
     from netctl.ensemble import compare_to_null
 
     if args.samples < 1:

@@ -11,14 +11,16 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._options import emit, load_system
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``convert`` verb."""
     from netctl.io import FORMATS
 
-    p = subparsers.add_parser("convert", parents=[common], help="rewrite a network or "
-                              "system file in another format (see docs/FORMATS.md)")
+    p = subparsers.add_parser(name, parents=[common], help=help)
     p.add_argument("output", metavar="OUT", help="file to write; its format comes from the "
                    "name (.csv .toml .mtx .npz .npy .matrix.csv .graphml .gml .json, "
                    "optionally .gz) or from --to")
@@ -28,7 +30,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 
 
 def _cmd_convert(args: argparse.Namespace) -> int:
-    from netctl.cli import emit, load_system
     from netctl.io import detect_format, write
 
     system = load_system(args)

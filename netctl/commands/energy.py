@@ -5,22 +5,28 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands.verify import add_weight_options, resolve_weights, system_with_inputs
+from netctl.commands._options import (
+    CAUTION,
+    NUMERIC_INPUTS_DEFAULT,
+    add_inputs,
+    add_seed,
+    add_weights,
+    emit,
+    resolve_weights,
+    system_with_inputs,
+)
 
 __all__ = ["register"]
 
 AUTO_SELECT_LIMIT = 200
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "energy", parents=[common],
-        help="control energy of an input design (Gramian from its Cholesky factor: "
-             "smallest eigenvalue, condition, trace, log det, average energy), average "
-             "controllability ranking, greedy log-det actuators among structurally "
-             "controllable sets; exit 1 when uncontrollable for every weight (structural) "
-             "or for these weights (numeric rank test)")
-    add_weight_options(p, default=None)
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``energy`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p, default=NUMERIC_INPUTS_DEFAULT)
+    add_weights(p, default=None)
+    add_seed(p, help="random seed of the sampled weights (default 0)")
     p.add_argument("--horizon", type=float, default=None, metavar="T",
                    help="control time (default: infinite for a stable system, else 1; "
                         "'inf' insists on the infinite horizon)")
@@ -39,7 +45,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 def _cmd_energy(args: argparse.Namespace) -> int:
     import numpy as np
 
-    from netctl.cli import CAUTION, emit
     from netctl.errors import OptionError
     from netctl.numeric.energy import energy, select_actuators
     from netctl.numeric.realize import PARAMETERIZATIONS, realize

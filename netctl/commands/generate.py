@@ -10,15 +10,17 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._options import add_json, add_seed, emit
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``generate`` verb (no input file)."""
     from netctl.generate import GENERATORS
     from netctl.io import FORMATS
 
-    p = subparsers.add_parser("generate", help="write a seeded synthetic network "
-                              "(Erdos-Renyi, scale-free, grid, small-world)")
+    p = subparsers.add_parser(name, help=help)
     p.add_argument("kind", choices=list(GENERATORS), metavar="KIND",
                    help="; ".join(f"{k}: {v}" for k, v in GENERATORS.items()))
     p.add_argument("output", metavar="OUT", help="file to write (.csv, .mtx, .npz, ...)")
@@ -31,15 +33,14 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
                    help="ring neighbours k, even (small-world)")
     p.add_argument("--rewire", type=float, default=0.1,
                    help="rewiring probability (small-world)")
-    p.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
+    add_seed(p)
     p.add_argument("--to", choices=sorted(k for k, v in FORMATS.items() if v[1]),
                    default=None, help="output format (default: from OUT's name)")
-    p.add_argument("--json", action="store_true", help="print the summary as JSON")
+    add_json(p, help="print the summary as JSON")
     p.set_defaults(func=_cmd_generate, out=None)
 
 
 def _cmd_generate(args: argparse.Namespace) -> int:
-    from netctl.cli import emit
     from netctl.generate import generate
     from netctl.io import detect_format, write
 

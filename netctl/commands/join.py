@@ -19,28 +19,28 @@ import argparse
 import csv
 import io
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-from netctl.structural.interconnect import TIE_KINDS, Tie, interconnection
+from netctl.commands._options import CAUTION, UsageError, add_inputs, emit
+
+if TYPE_CHECKING:
+    from netctl.structural.interconnect import Tie
 
 __all__ = ["register", "read_ties"]
 
 TIES_HEADER = ("from_system", "from_state", "to_system", "to_state")
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "join", parents=[common],
-        help="compose subsystems with ties and check the composite: unreachable states, "
-             "dilations, smallest fix, by subsystem")
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``join`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
     p.add_argument("more", nargs="*", metavar="FILE",
                    help="further subsystem files (NAME=PATH names a subsystem)")
     p.add_argument("--ties", metavar="FILE", default=None,
                    help="CSV: from_system,from_state,to_system,to_state[,kind] (needed unless "
                         "a TOML system description brings its own ties)")
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="composite states ('sub.state') with a dedicated input; replaces the "
-                        "subsystems' own inputs")
+    add_inputs(p, default="the subsystems' own inputs",
+               what="composite states ('sub.state') with a dedicated input")
     p.add_argument("--separator", default=".",
                    help="between subsystem and state in composite names (default '.')")
     p.set_defaults(func=_cmd_join)
@@ -49,6 +49,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 def read_ties(path: str) -> list[Tie]:
     """Ties from a CSV file (see the module docstring); errors name the file and line."""
     from netctl.io._common import file_error, read_text
+    from netctl.structural.interconnect import TIE_KINDS, Tie
 
     text = read_text(path)
     ties: list[Tie] = []
@@ -91,6 +92,7 @@ def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any
     several, any other file one."""
     from netctl.io import read
     from netctl.models import apply_model
+    from netctl.structural.interconnect import Tie
 
     if Path(path).suffix.lower() == ".toml":
         import importlib.util
@@ -119,8 +121,8 @@ def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any
 
 
 def _cmd_join(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, UsageError, emit
     from netctl.io import read_state_list
+    from netctl.structural.interconnect import interconnection
 
     systems: dict[str, Any] = {}
     ties: list[Any] = []

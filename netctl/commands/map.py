@@ -7,23 +7,28 @@ import json
 import sys
 from typing import Any, cast
 
+from netctl.commands._options import (
+    UsageError,
+    add_inputs,
+    add_seed,
+    load_system,
+    parse_names,
+    progress_enabled,
+)
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``map`` verb."""
     p = subparsers.add_parser(
-        "map", parents=[common],
-        help="draw the network: driver nodes, control paths, unreached states and "
-             "dilations (--out map.png|svg|pdf); exit 0 controllable, 1 not",
+        name, parents=[common], help=help,
         description="Draw the network with its driver nodes, the control paths (matched "
                     "links: chains and cycles), the states no input reaches and the "
                     "dilation sets; --out names the figure (PNG, SVG or PDF). Exit status "
                     "0 when the drawn design is structurally controllable, 1 when not.")
     group = p.add_mutually_exclusive_group()
-    group.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                       help="states with a dedicated input: 'a,b,c' or a file, one name a "
-                            "line (default: the file's inputs, else --auto)")
+    add_inputs(group, default="the file's inputs, else --auto")
     group.add_argument("--auto", action="store_true",
                        help="draw a minimum input design (one of possibly many)")
     p.add_argument("--show", metavar="LAYERS", default="",
@@ -32,7 +37,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
                    choices=("auto", "coordinates", "fr", "fr-grid", "circle"),
                    help="where states go (default: the file's x/y coordinates, else a "
                         "seeded force-directed layout)")
-    p.add_argument("--seed", type=int, default=0, help="layout seed (default 0)")
+    add_seed(p, help="layout seed (default 0)")
     labels = p.add_mutually_exclusive_group()
     labels.add_argument("--labels", dest="labels", action="store_true", default=None,
                         help="write every state's name (default: up to 60 states)")
@@ -43,7 +48,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 
 
 def _cmd_map(args: argparse.Namespace) -> int:
-    from netctl.cli import UsageError, load_system, parse_names
     from netctl.report.progress import Progress
     from netctl.viz.output import figure_format
 
@@ -54,7 +58,7 @@ def _cmd_map(args: argparse.Namespace) -> int:
     if not (args.dpi > 0):
         raise UsageError(f"--dpi must be positive, found {args.dpi!r}.")
     show = [s.strip() for s in args.show.split(",") if s.strip()]
-    progress = Progress(4)
+    progress = Progress(4, enabled=progress_enabled(args))
 
     import matplotlib
 

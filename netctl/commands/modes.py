@@ -5,18 +5,26 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands.verify import add_weight_options, resolve_weights, system_with_inputs
+from netctl.commands._options import (
+    CAUTION,
+    NUMERIC_INPUTS_DEFAULT,
+    add_inputs,
+    add_seed,
+    add_weights,
+    emit,
+    resolve_weights,
+    system_with_inputs,
+)
 
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "modes", parents=[common],
-        help="how strongly the inputs reach each mode (weakest first) and the minimum "
-             "inputs for these weights (largest eigenvalue multiplicity); exit 1 when a "
-             "mode is not reached")
-    add_weight_options(p, default=None)
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``modes`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p, default=NUMERIC_INPUTS_DEFAULT)
+    add_weights(p, default=None)
+    add_seed(p, help="random seed of the sampled weights (default 0)")
     p.add_argument("--weakest", type=int, default=5, metavar="K",
                    help="modes listed, weakest first (default 5; --json lists all)")
     p.set_defaults(func=_cmd_modes)
@@ -35,7 +43,6 @@ def _short(names: list[str], limit: int = 10) -> str:
 
 
 def _cmd_modes(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, emit
     from netctl.errors import OptionError
     from netctl.numeric.exact import exact_controllability
     from netctl.numeric.modal import modal_controllability

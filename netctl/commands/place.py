@@ -11,24 +11,27 @@ import argparse
 import math
 from typing import Any
 
+from netctl.commands._options import (
+    CAUTION,
+    UsageError,
+    add_candidates,
+    add_sites,
+    emit,
+    load_system,
+    names_line,
+    parse_names,
+)
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``place`` verb."""
     from netctl.structural.placement import METHODS
 
-    p = subparsers.add_parser(
-        "place", parents=[common],
-        help="cheapest actuator (sensor) placement under eligible sites, costs and a "
-             "budget; exit 0 met, 1 not met")
-    p.add_argument("--sites", metavar="FILE", default=None,
-                   help="CSV 'state,cost' with a header: the states that may host one and "
-                        "their costs (a state not listed cannot). Default: the node table, "
-                        "else every state at cost 1")
-    p.add_argument("--candidates", metavar="FILE", default=None,
-                   help="CSV 'name,cost,states' with a header: candidate actuators (sensors) "
-                        "acting on (reading) several states, e.g. 'valve_2,3.5,t1 t2'")
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_sites(p)
+    add_candidates(p)
     p.add_argument("--budget", metavar="X", type=float, default=None,
                    help="largest total cost; if too small, the affordable design with the "
                         "largest generic controllable dimension is shown (exit 1)")
@@ -45,7 +48,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 
 
 def _cmd_place(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, UsageError, emit, load_system, parse_names
     from netctl.io.sites import read_candidates, read_sites
     from netctl.structural.placement import (
         place_inputs,
@@ -98,8 +100,6 @@ def _rank_limit() -> int:
 
 def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
           caution: str) -> str:
-    from netctl.cli import _names_line
-
     noun = "sensors" if r.kind == "sensors" else "actuators"
     what = {"dedicated": f"dedicated {noun}", "candidates": f"candidate {noun}",
             "target": f"dedicated {noun} for {len(d['targets'] or [])} target state(s)"}
@@ -110,8 +110,8 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
              + (f", budget {r.budget:g}" if r.budget is not None else "")]
     if r.chosen.size and r.problem == "candidates":
         names = [a["name"] for a in d["actuators" if r.kind == "inputs" else "sensors"]]
-        lines.append(f"  chosen {noun} ({len(names)}): {_names_line(names)}")
-    lines.append(f"  sites ({r.sites.size}): {_names_line(r.site_names) or '(none)'}")
+        lines.append(f"  chosen {noun} ({len(names)}): {names_line(names)}")
+    lines.append(f"  sites ({r.sites.size}): {names_line(r.site_names) or '(none)'}")
     lines.append(f"  total cost: {r.cost:g}")
     if not r.feasible:
         status = "infeasible"
@@ -139,7 +139,7 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
                 "reached by no chosen actuator"
             state = "unobservable" if r.kind == "sensors" else "uncontrollable"
             lines.append(f"  stays {state}, {verb} ({r.inaccessible.size}): "
-                         f"{_names_line(r.names(r.inaccessible))}")
+                         f"{names_line(r.names(r.inaccessible))}")
     lines.append("  (one optimum of possibly many; ties broken by state order)")
     lines.append("  " + caution)
     return "\n".join(lines)

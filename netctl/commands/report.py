@@ -6,16 +6,22 @@ import argparse
 import sys
 from typing import Any
 
+from netctl.commands._options import (
+    UsageError,
+    add_inputs,
+    add_seed,
+    load_system,
+    parse_names,
+    progress_enabled,
+)
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``report`` verb."""
     p = subparsers.add_parser(
-        "report", parents=[common],
-        help="one self-contained report (--out report.html|report.md|report.json): "
-             "summary, minimum inputs, why a design fails, map, roles, robustness, "
-             "numeric and strong checks, cautions; exit 0 design holds, 1 not",
+        name, parents=[common], help=help,
         description="Write one self-contained report about the network: summary, minimum "
                     "inputs and where, why a given design fails, the map, and the further "
                     "analyses installed (roles, robustness, numeric confirmation, strong "
@@ -23,23 +29,19 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
                     "its suffix picks HTML, Markdown or JSON. Figures are embedded; nothing "
                     "is fetched when the report is opened. Exit status 0 when the design in "
                     "the report is structurally controllable, 1 when not.")
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="a design to check: states with a dedicated input, 'a,b,c' or a "
-                        "file with one name a line (default: the file's inputs, else the "
-                        "minimum design)")
-    p.add_argument("--seed", type=int, default=0,
-                   help="seed of the layout and sampled checks (default 0)")
+    add_inputs(p, default="the file's inputs, else the minimum design",
+               what="a design to check: states with a dedicated input")
+    add_seed(p, help="seed of the layout and sampled checks (default 0)")
     p.set_defaults(func=_cmd_report)
 
 
 def _cmd_report(args: argparse.Namespace) -> int:
-    from netctl.cli import UsageError, load_system, parse_names
     from netctl.report import SECTIONS, Progress, build_report, report_format, write_report
 
     if not args.out:
         raise UsageError("report needs --out FILE ending in .html, .md or .json.")
     fmt = report_format(args.out)  # reject a bad suffix before any work
-    progress = Progress(len(SECTIONS) + 2)
+    progress = Progress(len(SECTIONS) + 2, enabled=progress_enabled(args))
     with progress.step(f"reading {args.file}"):
         system = load_system(args)
         inputs = None

@@ -7,17 +7,14 @@ import argparse
 import csv
 from typing import Any
 
-from netctl.structural.roles import LINK_ROLES, link_roles, node_roles
+from netctl.commands._options import CAUTION, emit, load_system, safe_write
 
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "roles", parents=[common],
-        help="which states every minimum driver set needs (critical / intermittent / "
-             "redundant) and which links every maximum matching needs (critical / "
-             "ordinary / redundant)")
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``roles`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
     p.add_argument("--csv", metavar="FILE", default=None,
                    help="also write the roles as CSV: element,source,target,role (one row a "
                         "state with an empty target, one row a link)")
@@ -26,18 +23,13 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 
 def write_roles_csv(path: str, nodes: Any, links: Any) -> None:
     """Write node and link roles to ``path`` atomically."""
-    from netctl.cli import UsageError
-    from netctl.io import atomic_write
-
-    try:
-        with atomic_write(path) as fh:
-            _write_rows(fh, nodes, links)
-    except OSError as exc:
-        raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
-                         "directory exists and is writable.") from None
+    with safe_write(path) as fh:
+        _write_rows(fh, nodes, links)
 
 
 def _write_rows(fh: Any, nodes: Any, links: Any) -> None:
+    from netctl.structural.roles import LINK_ROLES
+
     w = csv.writer(fh, lineterminator="\n")
     w.writerow(["element", "source", "target", "role"])
     for name, role in nodes.to_dict()["nodes"].items():
@@ -48,7 +40,7 @@ def _write_rows(fh: Any, nodes: Any, links: Any) -> None:
 
 
 def _cmd_roles(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, emit, load_system
+    from netctl.structural.roles import link_roles, node_roles
 
     system = load_system(args)
     nr = node_roles(system)

@@ -13,20 +13,24 @@ import argparse
 import warnings
 from typing import Any
 
+from netctl.commands._options import (
+    CAUTION,
+    add_inputs,
+    emit,
+    load_system,
+    names_line,
+    parse_names,
+)
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``strong`` verb."""
     from netctl.structural.strong import DIAGONALS, EXACT_AUTO_LIMIT, METHODS
 
-    p = subparsers.add_parser(
-        "strong", parents=[common],
-        help="strong structural controllability: does a design hold for every nonzero "
-             "weight (exit 0 yes, 1 no), or the fewest inputs that do")
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="states with a dedicated input: 'a,b,c' or a file, one name a line "
-                        "(default: the inputs the file declares; if none, search for a "
-                        "smallest set)")
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p, default="the inputs the file declares; if none, search for a smallest set")
     p.add_argument("--search", action="store_true",
                    help="search for a smallest set even when the file declares inputs")
     p.add_argument("--diagonal", choices=list(DIAGONALS), default="as-given",
@@ -42,14 +46,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p.set_defaults(func=_cmd_strong)
 
 
-def _names_line(names: list[str], limit: int = 30) -> str:
-    if len(names) <= limit:
-        return ", ".join(names)
-    return ", ".join(names[:limit]) + f", ... ({len(names) - limit} more; --json lists all)"
-
-
 def _cmd_strong(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, emit, load_system, parse_names
     from netctl.structural.strong import (
         DIAGONALS,
         minimum_strong_inputs,
@@ -71,14 +68,14 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         rep = strong_controllability(system, diagonal=args.diagonal)
         d: dict[str, Any] = {"file": args.file, "mode": "check", **rep.to_dict(),
                              "notes": notes, "caution": CAUTION}
-        driven = _names_line(rep.names(system.driven_states()))
+        driven = names_line(rep.names(system.driven_states()))
         lines = head + [f"  inputs ({rep.n_inputs}): {driven}",
                         "  strongly structurally controllable: "
                         + ("yes" if rep.strongly_controllable else "NO")]
         for reason in rep.reasons():
             lines.append(f"    - {reason}")
         if not rep.strongly_controllable:
-            lines.append("  unforced states: " + _names_line(rep.unforced_names))
+            lines.append("  unforced states: " + names_line(rep.unforced_names))
         lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
         emit(args, d, "\n".join(lines))
         return 0 if rep.strongly_controllable else 1
@@ -101,7 +98,7 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         f"{design.n_inputs} ({quality})",
         f"  method: {design.method}; lower bound {design.lower_bound} from "
         f"{design.lower_bound_source}",
-        f"  driven states ({design.n_inputs}): {_names_line(design.driver_names)}",
+        f"  driven states ({design.n_inputs}): {names_line(design.driver_names)}",
         "  (one set of possibly many)"]
     lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
     emit(args, d, "\n".join(lines))

@@ -10,38 +10,40 @@ from __future__ import annotations
 import argparse
 import csv
 import sys
-from collections.abc import Callable, Iterator
-from contextlib import contextmanager
-from typing import IO, Any
+from collections.abc import Callable
+from typing import TYPE_CHECKING, Any
 
-from netctl.structural.robustness import (
-    ATTACK_STRATEGIES,
-    AttackCurve,
-    attack_curve,
-    contingency_sweep,
-    sampled_losses,
+from netctl.commands._options import (
+    CAUTION,
+    UsageError,
+    add_inputs,
+    add_samples,
+    add_seed,
+    emit,
+    load_system,
+    parse_names,
+    safe_write,
 )
 
-__all__ = ["register", "progress_printer", "safe_write"]
+if TYPE_CHECKING:
+    from netctl.structural.robustness import AttackCurve
+
+__all__ = ["register", "progress_printer"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "sweep", parents=[common],
-        help="lose every link / state in turn (or k at a time, sampled): minimum inputs "
-             "and whether a given design survives; attack curves")
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="states with a dedicated input (the design to check): 'a,b' or a "
-                        "file, one name a line")
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``sweep`` verb."""
+    from netctl.structural.robustness import ATTACK_STRATEGIES
+
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p, default=None, what="states with a dedicated input (the design to check)")
     p.add_argument("--elements", choices=("links", "nodes", "both"), default="both",
                    help="lose links, states (nodes) or both (default: both)")
     p.add_argument("--k", type=int, default=1, metavar="K",
                    help="elements lost at once (default 1: every single loss, exactly; "
                         "K > 1: sampled)")
-    p.add_argument("--samples", type=int, default=100, metavar="S",
-                   help="samples for K > 1 (default 100)")
-    p.add_argument("--seed", type=int, default=0, metavar="N",
-                   help="seed for sampling and random attack orders (default 0)")
+    add_samples(p, default=100, metavar="S", help="samples for K > 1 (default 100)")
+    add_seed(p, help="seed for sampling and random attack orders (default 0)")
     p.add_argument("--csv", metavar="FILE", default=None,
                    help="write one row per single loss (K = 1) or per sample (K > 1)")
     p.add_argument("--attack", metavar="STRATEGIES", default=None,
@@ -55,9 +57,11 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p.set_defaults(func=_cmd_sweep)
 
 
-def progress_printer(label: str) -> Callable[[int, int], None] | None:
-    """A ``progress(done, total)`` callback printing to stderr when it is a terminal."""
-    if not sys.stderr.isatty():
+def progress_printer(label: str, *, quiet: bool = False
+                     ) -> Callable[[int, int], None] | None:
+    """A ``progress(done, total)`` callback printing to stderr when it is a terminal
+    (never with ``quiet``)."""
+    if quiet or not sys.stderr.isatty():
         return None
 
     def show(done: int, total: int) -> None:
@@ -67,22 +71,14 @@ def progress_printer(label: str) -> Callable[[int, int], None] | None:
     return show
 
 
-@contextmanager
-def safe_write(path: str) -> Iterator[IO[str]]:
-    """:func:`netctl.io.atomic_write`, with write failures reported as usage errors."""
-    from netctl.cli import UsageError
-    from netctl.io import atomic_write
-
-    try:
-        with atomic_write(path) as fh:
-            yield fh
-    except OSError as exc:
-        raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
-                         "directory exists and is writable.") from None
-
-
 def _cmd_sweep(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, UsageError, emit, load_system, parse_names
+    from netctl.structural.robustness import (
+        ATTACK_STRATEGIES,
+        AttackCurve,
+        attack_curve,
+        contingency_sweep,
+        sampled_losses,
+    )
 
     if args.k < 1:
         raise UsageError(f"--k must be at least 1, found {args.k}.")
@@ -141,7 +137,8 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
             if args.k > total:
                 raise UsageError(f"--k {args.k} exceeds the number of {kind} ({total}).")
             sl = sampled_losses(system, elements=kind, k=args.k, samples=args.samples,
-                                seed=args.seed, progress=progress_printer(f"sampling {kind}"))
+                                seed=args.seed, progress=progress_printer(f"sampling {kind}",
+                                                          quiet=args.quiet))
             result[kind] = sl.to_dict()
             lines.append(f"  {args.k} {kind} lost at once, {sl.n_samples} samples (seed "
                          f"{args.seed}): minimum inputs rise in "
@@ -164,7 +161,8 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
         for kind in kinds:
             c = attack_curve(system, elements=kind, strategy=strat, steps=args.steps,
                              seed=args.seed,
-                             progress=progress_printer(f"attack {strat} on {kind}"))
+                             progress=progress_printer(f"attack {strat} on {kind}",
+                                                       quiet=args.quiet))
             curves.append(c)
     if curves:
         result["attack_curves"] = [c.to_dict() for c in curves]
@@ -205,8 +203,6 @@ def _plot(curves: list[AttackCurve], path: str) -> None:
 
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
-
-    from netctl.cli import UsageError
 
     fig, axes = plt.subplots(1, 2 if len({c.elements for c in curves}) > 1 else 1,
                              figsize=(10, 4), squeeze=False)

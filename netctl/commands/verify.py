@@ -5,65 +5,30 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.numeric.realize import PARAMETERIZATIONS
+from netctl.commands._options import (
+    CAUTION,
+    NUMERIC_INPUTS_DEFAULT,
+    add_inputs,
+    add_samples,
+    add_seed,
+    add_weights,
+    emit,
+    system_with_inputs,
+)
 
-__all__ = ["register", "add_weight_options", "system_with_inputs"]
-
-
-def add_weight_options(p: argparse.ArgumentParser, *, default: str | None) -> None:
-    """``--inputs``, ``--weights``, ``--seed`` (shared by verify, energy, modes)."""
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="states with a dedicated input: 'a,b,c' or a file, one name a line "
-                        "(default: the file's inputs, else a minimum dedicated input set)")
-    p.add_argument("--weights", choices=list(PARAMETERIZATIONS), default=default,
-                   help="which numbers to use: " + "; ".join(
-                       f"{k} = {v}" for k, v in PARAMETERIZATIONS.items())
-                   + (f" (default: {default})" if default else
-                      " (default: given when the file has weights)"))
-    p.add_argument("--seed", type=int, default=0, metavar="N",
-                   help="random seed of the sampled weights (default 0)")
+__all__ = ["register"]
 
 
-def system_with_inputs(args: argparse.Namespace) -> tuple[Any, str]:
-    """The system with ``--inputs`` (or the file's, or a minimum set) and a note."""
-    from netctl.cli import load_system, parse_names
-    from netctl.structural import minimum_inputs
-
-    system = load_system(args)
-    if args.inputs is not None:
-        return system.with_inputs(parse_names(system, args.inputs)), "inputs: --inputs"
-    if system.n_inputs:
-        return system, "inputs: from the file"
-    design = minimum_inputs(system, dedicated=True)
-    return (design.apply(system),
-            f"inputs: none given, so a minimum dedicated set ({design.drivers.size}) "
-            "from the structural analysis")
-
-
-def resolve_weights(args: argparse.Namespace, system: Any) -> str:
-    """``--weights``, or ``given`` for a weighted file; a usage error otherwise."""
-    from netctl.errors import OptionError
-
-    if args.weights is not None:
-        return str(args.weights)
-    if system.weighted:
-        return "given"
-    raise OptionError(f"{args.file} carries no weights; choose which numbers to use with "
-                     f"--weights ({', '.join(k for k in PARAMETERIZATIONS if k != 'given')}).")
-
-
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``verify`` verb."""
     from netctl.numeric.verify import METHODS
 
-    p = subparsers.add_parser(
-        "verify", parents=[common],
-        help="confirm the structural verdict on sampled or given weights; exit 1 when a "
-             "sample disagrees (e.g. symmetries under identical links) or the design is "
-             "uncontrollable for every weight (structural) or for these weights")
-    add_weight_options(p, default="independent")
-    p.add_argument("--samples", type=int, default=3, metavar="K",
-                   help="number of sampled realizations (default 3; uniform and given "
-                        "weights are deterministic and use one)")
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p, default=NUMERIC_INPUTS_DEFAULT)
+    add_weights(p, default="independent")
+    add_seed(p, help="random seed of the sampled weights (default 0)")
+    add_samples(p, default=3, help="number of sampled realizations (default 3; uniform and "
+                "given weights are deterministic and use one)")
     p.add_argument("--method", choices=list(METHODS), default="auto",
                    help="rank test: staircase (dense, default up to 3000 states), pbh, "
                         "modular (exact, over a prime field), certificate (sparse, large "
@@ -72,8 +37,8 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 
 
 def _cmd_verify(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, emit
     from netctl.errors import OptionError
+    from netctl.numeric.realize import PARAMETERIZATIONS
     from netctl.numeric.verify import verify
 
     if args.samples < 1:

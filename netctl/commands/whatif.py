@@ -10,18 +10,22 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.structural.robustness import what_if
+from netctl.commands._options import (
+    CAUTION,
+    UsageError,
+    add_inputs,
+    emit,
+    load_system,
+    parse_names,
+)
 
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "whatif", parents=[common],
-        help="compare before and after adding links, removing links or removing states: "
-             "controllability of a design, minimum inputs, drivers, roles")
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="states with a dedicated input (the design to check)")
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``whatif`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p, default=None, what="states with a dedicated input (the design to check)")
     p.add_argument("--add-links", metavar="FILE|LINKS", default=None,
                    help="links to add: an edge-list file (source,target a line) or "
                         "'a->b,c->d'; unknown names become new states")
@@ -69,8 +73,8 @@ def _checked(system: Any, value: str | None, what: str, *, new_ok: bool
 
 
 def _cmd_whatif(args: argparse.Namespace) -> int:
-    from netctl.cli import CAUTION, UsageError, emit, load_system, parse_names
     from netctl.io import read_state_list
+    from netctl.structural.robustness import what_if
 
     if not (args.add_links or args.remove_links or args.remove_nodes):
         raise UsageError("whatif needs a change: --add-links, --remove-links and/or "

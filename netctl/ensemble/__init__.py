@@ -9,16 +9,42 @@
   per-task seeds that make results independent of the executor.
 """
 
-from netctl.ensemble.cavity import CavityPrediction, cavity_driver_fraction, degree_distribution
-from netctl.ensemble.compare import NullComparison, compare_to_null, null_sample_inputs
-from netctl.ensemble.executor import EXECUTORS, default_workers, run_tasks, spawn_seeds
-from netctl.ensemble.null import (
-    NULL_MODELS,
-    configuration_model,
-    degree_preserving_swaps,
-    degree_sequences,
-    n_unmatched,
-)
+from __future__ import annotations
+
+import importlib
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from netctl.ensemble.cavity import CavityPrediction, cavity_driver_fraction, degree_distribution
+    from netctl.ensemble.compare import NullComparison, compare_to_null, null_sample_inputs
+    from netctl.ensemble.executor import EXECUTORS, default_workers, run_tasks, spawn_seeds
+    from netctl.ensemble.null import (
+        NULL_MODELS,
+        configuration_model,
+        degree_preserving_swaps,
+        degree_sequences,
+        n_unmatched,
+    )
+
+#: name -> submodule; loaded on first access (the cavity prediction needs scipy.optimize,
+#: the null models numba: neither should load for ``--help`` or the executor alone)
+_LAZY: dict[str, str] = {
+    "CavityPrediction": "netctl.ensemble.cavity",
+    "EXECUTORS": "netctl.ensemble.executor",
+    "NULL_MODELS": "netctl.ensemble.null",
+    "NullComparison": "netctl.ensemble.compare",
+    "cavity_driver_fraction": "netctl.ensemble.cavity",
+    "compare_to_null": "netctl.ensemble.compare",
+    "configuration_model": "netctl.ensemble.null",
+    "default_workers": "netctl.ensemble.executor",
+    "degree_distribution": "netctl.ensemble.cavity",
+    "degree_preserving_swaps": "netctl.ensemble.null",
+    "degree_sequences": "netctl.ensemble.null",
+    "n_unmatched": "netctl.ensemble.null",
+    "null_sample_inputs": "netctl.ensemble.compare",
+    "run_tasks": "netctl.ensemble.executor",
+    "spawn_seeds": "netctl.ensemble.executor",
+}
 
 __all__ = [
     "EXECUTORS",
@@ -37,3 +63,16 @@ __all__ = [
     "run_tasks",
     "spawn_seeds",
 ]
+
+
+def __getattr__(name: str) -> Any:
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module 'netctl.ensemble' has no attribute {name!r}")
+    value = getattr(importlib.import_module(module), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(__all__))

@@ -1,6 +1,9 @@
-"""Imported once by the local executor's fork server: loads netctl and its compiled
-kernels there, so that every worker forked from it starts warm (no per-worker import or
-kernel loading). Never raises: a failure here only costs the workers their warm start."""
+"""Imported once by the local executor's fork server: loads netctl's readers, models,
+analyses and compiled kernels there, so that every worker forked from it starts warm (no
+per-worker import or kernel loading). The module of the task itself is preloaded beside
+this one by the executor (never imported from here: the ensemble layer does not import
+the command line). Never raises: a failure here only costs the workers their warm
+start."""
 
 from __future__ import annotations
 
@@ -12,10 +15,10 @@ def _warm() -> None:
     import tempfile
     import warnings
 
-    import netctl.cli  # noqa: F401  (verbs, readers, models)
-    from netctl import StructuredSystem
+    import netctl.models  # noqa: F401  (readers, models and analyses a task may use)
     from netctl.io import read
     from netctl.structural import controllability, minimum_inputs
+    from netctl.system import StructuredSystem
 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")

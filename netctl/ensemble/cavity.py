@@ -7,7 +7,6 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy.optimize import brentq
 
 from netctl.errors import InvalidSystemError, OptionError
 
@@ -82,6 +81,8 @@ class _Gen:
 
 def _roots(f: Callable[[float], float]) -> list[float]:
     """All sign-change roots of ``f`` on [0, 1], bracketed by a grid, refined by Brent."""
+    from scipy.optimize import brentq  # here: scipy.optimize costs ~0.4 s to import
+
     xs = np.linspace(0.0, 1.0, _GRID)
     fs = np.array([f(x) for x in xs])
     roots = [float(x) for x, v in zip(xs, fs) if v == 0.0]

@@ -135,7 +135,11 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
     if ctx.get_start_method() == "fork":
         import netctl.ensemble._preload  # noqa: F401  (warm kernels once; workers inherit)
     elif ctx.get_start_method() == "forkserver":
-        ctx.set_forkserver_preload(["netctl.ensemble._preload"])
+        # the task's own module too when it is netctl's (e.g. a verb's task), so that
+        # this layer never has to import the layers above it to warm them
+        task_module = getattr(func, "__module__", None) or ""
+        ctx.set_forkserver_preload(["netctl.ensemble._preload"] + (
+            [task_module] if task_module.startswith("netctl.") else []))
     chunk = max(1, math.ceil(len(items) / (4 * n_workers)))
     with ProcessPoolExecutor(max_workers=n_workers, mp_context=ctx, initializer=_init_worker,
                              initargs=(shared,)) as pool:

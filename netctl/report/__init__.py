@@ -70,7 +70,7 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
     >>> "<script" in r.to_html()
     False
     """
-    import netctl
+    from netctl._meta import __version__
 
     builders = list(SECTIONS if sections is None else sections)
     idx = None
@@ -109,7 +109,7 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
     facts += [("states / links", f"{system.n_states} / {system.n_links}"),
               ("model", system.model),
               ("design in this report", ctx.design_words()),
-              ("netctl", netctl.__version__)]
+              ("netctl", __version__)]
     if ctx.design_kind != "minimum":
         facts.insert(4, ("inputs", ", ".join(_short(system.names_of(
             ctx.actuated().driven_states())))))

@@ -229,7 +229,7 @@ def map_section(ctx: ReportContext) -> Section | None:
 
 def cautions_section(ctx: ReportContext) -> Section:
     """The usual cautions, the model used, and what this report could not include."""
-    from netctl.cli import CAUTION
+    from netctl._meta import CAUTION
 
     blocks = [note(CAUTION),
               para(f"Model used: {ctx.system.model}. Structural results hold for almost all "

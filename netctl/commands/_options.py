@@ -1,0 +1,318 @@
+"""Command-line options and helpers shared by every verb of ``netctl``.
+
+One place defines each option a verb may take (its name, meaning and default), and the
+helpers every handler uses: :func:`load_system`, :func:`parse_names`, :func:`emit`,
+:func:`names_line`, :data:`CAUTION` and :class:`UsageError`. Verb modules import from
+here, never from :mod:`netctl.cli` (which only builds the parser and dispatches).
+
+Everything at module level is light (argparse and the standard library): the readers,
+models and analyses are imported inside the functions, so that ``netctl --help`` and the
+parsing of one verb's options load nothing a verb does not need.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Callable, Iterator, Sequence
+from contextlib import contextmanager
+from typing import IO, TYPE_CHECKING, Any
+
+from netctl._meta import CAUTION
+
+if TYPE_CHECKING:
+    import numpy as np
+
+    from netctl.system import StructuredSystem
+
+__all__ = [
+    "CAUTION", "NUMERIC_INPUTS_DEFAULT", "SHOWN", "UsageError", "add_candidates", "add_common", "add_executor_options",
+    "add_format",
+    "add_inputs", "add_json", "add_model", "add_out", "add_outputs", "add_quiet",
+    "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
+    "disturbance_summary", "emit",
+    "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
+    "safe_write", "system_with_inputs",
+]
+
+#: names listed in a text summary before "... (N more; --json lists all)"
+SHOWN = 30
+
+_NAMES_HELP = "'a,b,c' or a file, one name a line"
+
+#: ``--inputs`` default of the numeric verbs (verify, energy, modes)
+NUMERIC_INPUTS_DEFAULT = "the file's inputs, else a minimum dedicated input set"
+
+
+class UsageError(Exception):
+    """Bad command-line usage that argparse cannot see (exit status 2)."""
+
+
+# ---------------------------------------------------------------------- options
+def add_format(p: Any, *, help: str = "file format (default: from the file name)") -> None:
+    """``--format``: one of :data:`netctl.io.FORMATS` (default: from the file name)."""
+    from netctl.io import FORMATS
+
+    p.add_argument("--format", choices=sorted(FORMATS), default=None, help=help)
+
+
+def add_model(p: Any, *, help: str = (
+        "how a plain network becomes a state-space pattern (default: first-order; "
+        "self-loops adds self-dynamics to every state)")) -> None:
+    """``--model``: one of :data:`netctl.models.MODELS` (default ``first-order``)."""
+    from netctl.models import MODELS
+
+    p.add_argument("--model", choices=list(MODELS), default="first-order", help=help)
+
+
+def add_json(p: Any, *, help: str = "print the full result as JSON") -> None:
+    """``--json``: print the full result as JSON instead of the summary."""
+    p.add_argument("--json", action="store_true", help=help)
+
+
+def add_out(p: Any, *, required: bool = False, help: str = (
+        "also write the full result as JSON to FILE (atomically)")) -> None:
+    """``--out FILE``: write the full result (atomically)."""
+    p.add_argument("--out", metavar="FILE", default=None, required=required, help=help)
+
+
+def add_quiet(p: Any) -> None:
+    """``--quiet``: no progress on stderr (progress is shown only on a terminal anyway)."""
+    p.add_argument("--quiet", action="store_true",
+                   help="show no progress on stderr (default: progress for long steps when "
+                        "stderr is a terminal)")
+
+
+def add_common(p: argparse.ArgumentParser) -> None:
+    """FILE, ``--format``, ``--model``, ``--json``, ``--out``, ``--quiet``."""
+    p.add_argument("file", metavar="FILE", help="network or system file "
+                   "(edge list, Matrix Market, ...; see docs/FORMATS.md)")
+    add_format(p)
+    add_model(p)
+    add_json(p)
+    add_out(p)
+    add_quiet(p)
+
+
+def common_parser(parser_class: type[argparse.ArgumentParser] = argparse.ArgumentParser
+                  ) -> argparse.ArgumentParser:
+    """The parent parser of every verb that reads one network file (:func:`add_common`)."""
+    common = parser_class(add_help=False)
+    add_common(common)
+    return common
+
+
+def add_inputs(p: Any, *, default: str | None = "the inputs the file declares",
+               what: str = "states with a dedicated input") -> None:
+    """``--inputs NAMES|FILE``: the states that carry a dedicated input (a design)."""
+    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
+                   help=f"{what}: {_NAMES_HELP}" + (f" (default: {default})" if default else ""))
+
+
+def add_outputs(p: Any, *, default: str | None = "the outputs the file declares",
+                what: str = "states with a dedicated sensor") -> None:
+    """``--outputs NAMES|FILE``: the states that carry a dedicated sensor."""
+    p.add_argument("--outputs", metavar="NAMES|FILE", default=None,
+                   help=f"{what}: {_NAMES_HELP}" + (f" (default: {default})" if default else ""))
+
+
+def add_sites(p: Any) -> None:
+    """``--sites FILE``: eligible states and their costs."""
+    p.add_argument("--sites", metavar="FILE", default=None,
+                   help="CSV 'state,cost' with a header: the states that may host one and "
+                        "their costs (a state not listed cannot). Default: the node table, "
+                        "else every state at cost 1")
+
+
+def add_candidates(p: Any) -> None:
+    """``--candidates FILE``: candidate actuators (sensors) acting on several states."""
+    p.add_argument("--candidates", metavar="FILE", default=None,
+                   help="CSV 'name,cost,states' with a header: candidate actuators (sensors) "
+                        "acting on (reading) several states, e.g. 'valve_2,3.5,t1 t2'")
+
+
+def add_weights(p: Any, *, default: str | None) -> None:
+    """``--weights``: which numbers a numeric check uses
+    (:data:`netctl.numeric.realize.PARAMETERIZATIONS`)."""
+    from netctl.numeric.realize import PARAMETERIZATIONS
+
+    p.add_argument("--weights", choices=list(PARAMETERIZATIONS), default=default,
+                   help="which numbers to use: " + "; ".join(
+                       f"{k} = {v}" for k, v in PARAMETERIZATIONS.items())
+                   + (f" (default: {default})" if default else
+                      " (default: given when the file has weights)"))
+
+
+def add_seed(p: Any, *, default: int | None = 0,
+             help: str = "random seed (default 0)") -> None:
+    """``--seed N``: the random seed (a whole number)."""
+    p.add_argument("--seed", type=int, default=default, metavar="N", help=help)
+
+
+def add_samples(p: Any, *, default: int, help: str, metavar: str = "K") -> None:
+    """``--samples K``: how many samples (sampled weights, null-model draws, losses)."""
+    p.add_argument("--samples", type=int, default=default, metavar=metavar, help=help)
+
+
+def add_executor_options(p: argparse.ArgumentParser) -> None:
+    """``--executor``, ``--workers``, ``--scheduler``: what runs many independent tasks."""
+    from netctl.ensemble.executor import EXECUTORS
+
+    p.add_argument("--executor", choices=list(EXECUTORS), default="local",
+                   help="what runs the independent tasks: local processes (default), serial, "
+                        "or dask (a running scheduler with --scheduler, else a local cluster)")
+    p.add_argument("--workers", type=int, default=None, metavar="W",
+                   help="worker processes (default: the CPUs available; dask local cluster: 2)")
+    p.add_argument("--scheduler", default=None, metavar="ADDRESS",
+                   help="Dask scheduler address, e.g. tcp://10.0.0.5:8786 (with --executor dask)")
+
+
+# ---------------------------------------------------------------------- helpers
+def load_system(args: argparse.Namespace) -> StructuredSystem:
+    """Read ``args.file`` and apply ``args.model``.
+
+    When the file declares disturbances, they are noted on ``args`` so that :func:`emit`
+    reports them separately in every verb's output (they are never states, never driven
+    and never sensed)."""
+    from netctl.io import read
+    from netctl.models import apply_model
+
+    system = apply_model(read(args.file, args.format), args.model)
+    if system.n_disturbances:
+        args._disturbances = disturbance_summary(system)
+    return system
+
+
+def disturbance_summary(system: StructuredSystem) -> dict[str, Any]:
+    """JSON-ready description of a system's disturbances and regulated outputs."""
+    return {"n_disturbances": system.n_disturbances,
+            "disturbances": {w: system.disturbed_by(j)
+                             for j, w in enumerate(system.disturbance_names)},
+            "regulated": {z: system.names_of(system.H.indices[system.H.indptr[r]:
+                                                              system.H.indptr[r + 1]])
+                          for r, z in enumerate(system.regulated_names)},
+            "note": "disturbances are exogenous (weather, feeds, utilities): not states, "
+                    "never driven or sensed, not counted in minimum inputs or sensors"}
+
+
+def _disturbance_text(info: dict[str, Any]) -> str:
+    parts = [f"{w} -> {', '.join(on[:4])}{', ...' if len(on) > 4 else ''}"
+             for w, on in list(info["disturbances"].items())[:SHOWN]]
+    more = info["n_disturbances"] - len(parts)
+    return (f"  disturbances ({info['n_disturbances']}; not states, never driven or sensed): "
+            + "; ".join(parts) + (f"; ... ({more} more; --json lists all)" if more > 0 else ""))
+
+
+def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs") -> np.ndarray:
+    """State indices from a comma-separated list or a file with one name a line."""
+    from netctl.errors import NetctlError
+    from netctl.io import read_state_list
+
+    names = read_state_list(value)
+    if not names:
+        raise UsageError(f"{what} names no state; give comma-separated state names or a "
+                         "file with one name a line.")
+    try:
+        return system.index_of(names)
+    except NetctlError as exc:
+        raise type(exc)(f"{what}: {exc}") from None
+
+
+def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[str, Any]],
+         text: str) -> None:
+    """Print ``text`` (or the JSON with ``--json``) and write ``--out`` atomically.
+
+    ``result`` may be a callable returning the dictionary, so that the full JSON of a
+    very large result is only built when ``--json`` or ``--out`` asks for it.
+    """
+    want_out = bool(getattr(args, "out", None))
+    info = getattr(args, "_disturbances", None)
+    if info is not None and text:
+        head, _, rest = text.partition("\n")
+        text = head + "\n" + _disturbance_text(info) + ("\n" + rest if rest else "")
+    if args.json or want_out:
+        data = result() if callable(result) else result
+        if info is not None and isinstance(data, dict):
+            data = {**data, "disturbances": info}
+        payload = json.dumps(data, indent=2, sort_keys=False, default=_json_default) + "\n"
+        if want_out:
+            from netctl.io import atomic_write
+
+            with atomic_write(args.out) as fh:
+                fh.write(payload)
+    sys.stdout.write(payload if args.json else text.rstrip("\n") + "\n")
+
+
+def _json_default(o: Any) -> Any:
+    import numpy as np
+
+    if isinstance(o, np.generic):
+        return o.item()
+    if isinstance(o, np.ndarray):
+        return o.tolist()
+    raise TypeError(f"not JSON serialisable: {type(o).__name__}")
+
+
+def system_with_inputs(args: argparse.Namespace) -> tuple[StructuredSystem, str]:
+    """The system with ``--inputs`` (or the file's, or a minimum dedicated set) and a note
+    saying which."""
+    from netctl.structural import minimum_inputs
+
+    system = load_system(args)
+    if args.inputs is not None:
+        return system.with_inputs(parse_names(system, args.inputs)), "inputs: --inputs"
+    if system.n_inputs:
+        return system, "inputs: from the file"
+    design = minimum_inputs(system, dedicated=True)
+    return (design.apply(system),
+            f"inputs: none given, so a minimum dedicated set ({design.drivers.size}) "
+            "from the structural analysis")
+
+
+def resolve_weights(args: argparse.Namespace, system: StructuredSystem) -> str:
+    """``--weights``, or ``given`` for a weighted file; an option error otherwise."""
+    from netctl.errors import OptionError
+    from netctl.numeric.realize import PARAMETERIZATIONS
+
+    if args.weights is not None:
+        return str(args.weights)
+    if system.weighted:
+        return "given"
+    raise OptionError(f"{args.file} carries no weights; choose which numbers to use with "
+                      f"--weights ({', '.join(k for k in PARAMETERIZATIONS if k != 'given')}).")
+
+
+def names_line(names: Sequence[str], limit: int = SHOWN, total: int | None = None) -> str:
+    """At most ``limit`` names, then how many more (``total`` when only a prefix of the
+    names was built).
+
+    Examples
+    --------
+    >>> names_line(["a", "b", "c"], limit=2)
+    'a, b, ... (1 more; --json lists all)'
+    """
+    total = len(names) if total is None else total
+    shown = list(names[:limit])
+    if total <= limit:
+        return ", ".join(shown)
+    return ", ".join(shown) + f", ... ({total - limit} more; --json lists all)"
+
+
+def progress_enabled(args: argparse.Namespace) -> bool | None:
+    """``False`` with ``--quiet``; else ``None`` (progress shows when stderr is a
+    terminal)."""
+    return False if getattr(args, "quiet", False) else None
+
+
+@contextmanager
+def safe_write(path: str) -> Iterator[IO[str]]:
+    """:func:`netctl.io.atomic_write`, with write failures reported as usage errors."""
+    from netctl.io import atomic_write
+
+    try:
+        with atomic_write(path) as fh:
+            yield fh
+    except OSError as exc:
+        raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
+                         "directory exists and is writable.") from None

@@ -1,0 +1,89 @@
+"""``netctl check FILE --inputs ... [--outputs ...]``: is a given design structurally
+controllable (observable)? Exit 0 yes, 1 no."""
+
+from __future__ import annotations
+
+import argparse
+from typing import Any
+
+from netctl.commands._options import (
+    CAUTION,
+    SHOWN,
+    UsageError,
+    add_inputs,
+    add_outputs,
+    emit,
+    load_system,
+    names_line,
+    parse_names,
+)
+
+__all__ = ["register"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``check`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p)
+    add_outputs(p)
+    p.add_argument("--no-dimension", action="store_true",
+                   help="skip the generic controllable dimension (faster on huge failing cases)")
+    p.set_defaults(func=_cmd_check)
+
+
+def _cmd_check(args: argparse.Namespace) -> int:
+    from netctl.structural import controllability, observability
+
+    system = load_system(args)
+    check_inputs = args.inputs is not None
+    check_outputs = args.outputs is not None
+    if not check_inputs and not check_outputs:
+        # a system description may carry its own design
+        check_inputs = system.n_inputs > 0
+        check_outputs = system.n_outputs > 0
+        if not (check_inputs or check_outputs):
+            raise UsageError("check needs --inputs (controllability) and/or --outputs "
+                             "(observability): comma-separated state names or a file with "
+                             "one name a line (the file itself declares no inputs or "
+                             "outputs).")
+    if args.inputs is not None:
+        system = system.with_inputs(parse_names(system, args.inputs))
+    if args.outputs is not None:
+        system = system.with_outputs(parse_names(system, args.outputs, what="--outputs"))
+    reports = []
+    if check_inputs:
+        reports.append(controllability(system, dimension=not args.no_dimension))
+    if check_outputs:
+        reports.append(observability(system, dimension=not args.no_dimension))
+    lines = [f"{args.file}: {system.n_states} states, model {system.model}"]
+    ok = True
+    for r in reports:
+        ok &= r.controllable
+        word = "controllable" if r.kind == "controllability" else "observable"
+        what = "inputs" if r.kind == "controllability" else "sensors"
+        dim = r.controllable_dimension
+        lines.append(f"  structurally {word}: {'yes' if r.controllable else 'NO'}"
+                     + (f" (generic {word} dimension {dim} of {r.n_states})"
+                        if dim is not None and not r.controllable else ""))
+        reasons = r.reasons()
+        lines.extend(f"    - {reason}" for reason in reasons[:SHOWN])
+        if len(reasons) > SHOWN:
+            lines.append(f"    ... ({len(reasons) - SHOWN} more reasons; --json lists all)")
+        if not r.controllable:
+            lines.append(f"  smallest fix: add {r.n_missing_inputs} dedicated {what} at "
+                         + names_line(r.names(r.fix[:SHOWN]), total=r.fix.size))
+    lines.append("  " + CAUTION)
+
+    def full() -> dict[str, Any]:
+        result: dict[str, Any] = {"file": args.file}
+        if len(reports) == 1:
+            result.update(reports[0].to_dict())
+        else:
+            for r in reports:
+                result[r.kind] = r.to_dict()
+            result["controllable"] = reports[0].controllable
+            result["observable"] = reports[1].controllable
+        return result
+
+    emit(args, full, "\n".join(lines))
+    return 0 if ok else 1

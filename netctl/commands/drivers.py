@@ -1,0 +1,53 @@
+"""``netctl drivers FILE`` and ``netctl sensors FILE``: minimum inputs (sensors) and
+where to put them."""
+
+from __future__ import annotations
+
+import argparse
+from typing import Any
+
+from netctl.commands._options import SHOWN, emit, load_system, names_line
+
+__all__ = ["register"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``drivers`` or the ``sensors`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    if name == "sensors":
+        p.add_argument("--dedicated", action="store_true",
+                       help="each sensor reads exactly one state (default: may be shared)")
+        p.set_defaults(func=_cmd_sensors)
+    else:
+        p.add_argument("--dedicated", action="store_true",
+                       help="each input acts on exactly one state (default: inputs may be "
+                            "shared)")
+        p.set_defaults(func=_cmd_drivers)
+
+
+def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
+    from netctl.structural import minimum_inputs, minimum_sensors
+
+    system = load_system(args)
+    design = (minimum_sensors if sensors else minimum_inputs)(system, dedicated=args.dedicated)
+
+    def full() -> dict[str, Any]:
+        return {**design.to_dict(), "file": args.file}
+
+    noun = "sensors" if sensors else "inputs"
+    kind = "dedicated" if args.dedicated else "shared"
+    where = "read" if sensors else "driven"
+    lines = [f"{args.file}: {design.n_states} states, model {design.model}",
+             f"  minimum {noun} ({kind}): {design.n_inputs}",
+             f"  {where} states ({design.drivers.size}): "
+             + names_line(design.names(design.drivers[:SHOWN]), total=design.drivers.size)]
+    if not args.dedicated and design.n_inputs < design.drivers.size:
+        lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which states each "
+                     f"{noun[:-1]} {'reads' if sensors else 'acts on'}")
+    lines.append("  (one minimum set of possibly many; ties broken by state order)")
+    emit(args, full, "\n".join(lines))
+    return 0
+
+
+def _cmd_sensors(args: argparse.Namespace) -> int:
+    return _cmd_drivers(args, sensors=True)
