@@ -8,7 +8,6 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
-from scipy.sparse.csgraph import min_weight_full_bipartite_matching
 
 from netctl.graph.dm import alternating_reach_rows
 from netctl.structural._engine import (
@@ -337,6 +336,9 @@ def _dilation(A: sp.csr_array, B: sp.csr_array, row_match: np.ndarray) -> Dilati
 
 
 def _hosoe_dimension(A: sp.csr_array, B: sp.csr_array, acc: np.ndarray) -> int:
+    # imported here: scipy.sparse.csgraph pulls in scipy.linalg (~0.1 s at start-up)
+    from scipy.sparse.csgraph import min_weight_full_bipartite_matching
+
     R = np.flatnonzero(acc)
     r = R.size
     if r == 0:
