@@ -1,5 +1,5 @@
 """Typed records that readers return and analyses take: site data, candidate actuators
-(sensors), and link changes.
+(sensors), link changes, and ties between subsystems.
 
 They sit beside :mod:`netctl.system`, below both the readers (:mod:`netctl.io`) and the
 analyses (:mod:`netctl.structural`), so that neither of those imports the other: a reader
@@ -26,6 +26,8 @@ __all__ = [
     "LinkChange",
     "SITE_KINDS",
     "Sites",
+    "TIE_KINDS",
+    "Tie",
     "check_site_kind",
 ]
 
@@ -153,3 +155,27 @@ class LinkChange:
     def pair(self) -> tuple[str, str]:
         """``(source, target)``."""
         return (self.source, self.target)
+
+
+#: Kinds of tie: ``state`` (state -> state link) or ``signal`` (output -> input).
+TIE_KINDS: tuple[str, ...] = ("state", "signal")
+
+
+@dataclass(frozen=True)
+class Tie:
+    """One tie from ``from_system.from_name`` to ``to_system.to_name``.
+
+    ``kind="state"``: both names are states. ``kind="signal"``: ``from_name`` is an
+    output of ``from_system`` and ``to_name`` an input of ``to_system``.
+    """
+
+    from_system: str
+    from_name: str
+    to_system: str
+    to_name: str
+    kind: str = "state"
+
+    def label(self) -> str:
+        """``"S.a -> T.b"`` for a state tie, ``"S.y => T.u"`` for a signal tie."""
+        arrow = "->" if self.kind == "state" else "=>"
+        return f"{self.from_system}.{self.from_name} {arrow} {self.to_system}.{self.to_name}"

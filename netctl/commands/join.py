@@ -16,19 +16,12 @@ Exit status: 0 when the composite is structurally controllable with its external
 from __future__ import annotations
 
 import argparse
-import csv
-import io
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from netctl.commands._options import CAUTION, UsageError, add_inputs, emit
 
-if TYPE_CHECKING:
-    from netctl.structural.interconnect import Tie
-
-__all__ = ["register", "read_ties"]
-
-TIES_HEADER = ("from_system", "from_state", "to_system", "to_state")
+__all__ = ["register"]
 
 
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
@@ -46,53 +39,12 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     p.set_defaults(func=_cmd_join)
 
 
-def read_ties(path: str) -> list[Tie]:
-    """Ties from a CSV file (see the module docstring); errors name the file and line."""
-    from netctl.io._common import file_error, read_text
-    from netctl.structural.interconnect import TIE_KINDS, Tie
-
-    text = read_text(path)
-    ties: list[Tie] = []
-    header_seen = False
-    for lineno, raw in enumerate(text.splitlines(), start=1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
-            continue
-        fields = [f.strip() for f in next(csv.reader(io.StringIO(line)))]
-        if not header_seen:
-            low = [f.lower() for f in fields]
-            if tuple(low[:4]) != TIES_HEADER or len(low) > 5 or (
-                    len(low) == 5 and low[4] != "kind"):
-                raise file_error(path, lineno, f"expected the header "
-                                 f"'{','.join(TIES_HEADER)}[,kind]', found {line!r}.")
-            header_seen = True
-            n_cols = len(low)
-            continue
-        if len(fields) not in (4, n_cols) or len(fields) > 5:
-            raise file_error(path, lineno, f"expected {n_cols} comma-separated columns "
-                             f"({','.join(TIES_HEADER)}{',kind' if n_cols == 5 else ''}), "
-                             f"found {len(fields)} in {raw.strip()!r}.")
-        if any(not f for f in fields[:4]):
-            raise file_error(path, lineno, f"empty field in {raw.strip()!r}; every tie names "
-                             "two subsystems and two states.")
-        kind = fields[4].lower() if len(fields) == 5 and fields[4] else "state"
-        if kind not in TIE_KINDS:
-            raise file_error(path, lineno, f"kind {fields[4]!r} is not one of "
-                             f"{', '.join(TIE_KINDS)}; 'state' links two states, 'signal' "
-                             "feeds an output into an input.")
-        ties.append(Tie(fields[0], fields[1], fields[2], fields[3], kind))
-    if not header_seen:
-        raise file_error(path, None, f"the file is empty; expected the header "
-                         f"'{','.join(TIES_HEADER)}[,kind]' and one tie a line.")
-    return ties
-
-
 def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any]:
     """Subsystems (and ties) from one file: a TOML description with subsystems gives
     several, any other file one."""
     from netctl.io import read
     from netctl.models import apply_model
-    from netctl.structural.interconnect import Tie
+    from netctl.records import Tie
 
     if Path(path).suffix.lower() == ".toml":
         import importlib.util
@@ -137,10 +89,12 @@ def _cmd_join(args: argparse.Namespace) -> int:
             systems[sub] = system
             ties.extend(sub_ties)
     if args.ties:
+        from netctl.io.ties import read_ties
+
         ties.extend(read_ties(args.ties))
     if not ties and len(systems) > 1:
         raise UsageError("join needs ties between the subsystems: --ties FILE (CSV "
-                         f"{','.join(TIES_HEADER)}[,kind]) or a TOML system description "
+                         "from_system,from_state,to_system,to_state[,kind]) or a TOML system description "
                          "with [[ties]].")
     inputs = read_state_list(args.inputs) if args.inputs is not None else None
     if inputs is not None and not inputs:

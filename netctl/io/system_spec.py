@@ -28,6 +28,7 @@ import scipy.sparse as sp
 
 from netctl.errors import MissingFileError
 from netctl.io._common import atomic_write, file_error, read_text
+from netctl.records import TIE_KINDS
 from netctl.system import Station, StructuredSystem, make_stations
 
 if sys.version_info >= (3, 11):
@@ -41,7 +42,6 @@ __all__ = ["SystemSpec", "read_spec", "read_system", "write_system", "TIE_KINDS"
 #: Kinds of tie between subsystems: a ``state`` tie is a link from a state of one
 #: subsystem to a state of another; a ``signal`` tie feeds an output of one subsystem
 #: into an input of another (the input is then no longer external).
-TIE_KINDS: tuple[str, ...] = ("state", "signal")
 
 #: State attributes with a meaning (and a type check); any other scalar attribute is
 #: kept in the node table as it is.

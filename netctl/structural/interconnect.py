@@ -19,35 +19,13 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.errors import InvalidSystemError, OptionError, UnknownNameError
+from netctl.records import TIE_KINDS, Tie
 from netctl.structural.controllability import ControllabilityReport, controllability
 from netctl.structural.inputs import minimum_inputs
 from netctl.system import StructuredSystem
 
 __all__ = ["TIE_KINDS", "Tie", "Composite", "InterconnectionReport", "compose",
            "interconnection"]
-
-#: Kinds of tie: ``state`` (state -> state link) or ``signal`` (output -> input).
-TIE_KINDS: tuple[str, ...] = ("state", "signal")
-
-
-@dataclass(frozen=True)
-class Tie:
-    """One tie from ``from_system.from_name`` to ``to_system.to_name``.
-
-    ``kind="state"``: both names are states. ``kind="signal"``: ``from_name`` is an
-    output of ``from_system`` and ``to_name`` an input of ``to_system``.
-    """
-
-    from_system: str
-    from_name: str
-    to_system: str
-    to_name: str
-    kind: str = "state"
-
-    def label(self) -> str:
-        arrow = "->" if self.kind == "state" else "=>"
-        return f"{self.from_system}.{self.from_name} {arrow} {self.to_system}.{self.to_name}"
-
 
 @dataclass(frozen=True)
 class Composite:

@@ -1,0 +1,58 @@
+"""Ties between subsystems from a CSV file (``netctl join --ties``).
+
+One header line ``from_system,from_state,to_system,to_state[,kind]`` then one tie a line;
+``kind`` is ``state`` (a link from one subsystem's state to another's, the default) or
+``signal`` (an output of one subsystem feeds an input of another). Lines starting with
+``#`` and blank lines are skipped. Errors name the file, the line and the fix.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+
+from netctl.io._common import file_error, read_text
+from netctl.records import TIE_KINDS, Tie
+
+__all__ = ["TIES_HEADER", "read_ties"]
+
+#: The columns a ties file starts with.
+TIES_HEADER = ("from_system", "from_state", "to_system", "to_state")
+
+
+def read_ties(path: str) -> list[Tie]:
+    """Ties from a CSV file (see the module docstring); errors name the file and line."""
+    text = read_text(path)
+    ties: list[Tie] = []
+    header_seen = False
+    for lineno, raw in enumerate(text.splitlines(), start=1):
+        line = raw.split("#", 1)[0].strip()
+        if not line:
+            continue
+        fields = [f.strip() for f in next(csv.reader(io.StringIO(line)))]
+        if not header_seen:
+            low = [f.lower() for f in fields]
+            if tuple(low[:4]) != TIES_HEADER or len(low) > 5 or (
+                    len(low) == 5 and low[4] != "kind"):
+                raise file_error(path, lineno, f"expected the header "
+                                 f"'{','.join(TIES_HEADER)}[,kind]', found {line!r}.")
+            header_seen = True
+            n_cols = len(low)
+            continue
+        if len(fields) not in (4, n_cols) or len(fields) > 5:
+            raise file_error(path, lineno, f"expected {n_cols} comma-separated columns "
+                             f"({','.join(TIES_HEADER)}{',kind' if n_cols == 5 else ''}), "
+                             f"found {len(fields)} in {raw.strip()!r}.")
+        if any(not f for f in fields[:4]):
+            raise file_error(path, lineno, f"empty field in {raw.strip()!r}; every tie names "
+                             "two subsystems and two states.")
+        kind = fields[4].lower() if len(fields) == 5 and fields[4] else "state"
+        if kind not in TIE_KINDS:
+            raise file_error(path, lineno, f"kind {fields[4]!r} is not one of "
+                             f"{', '.join(TIE_KINDS)}; 'state' links two states, 'signal' "
+                             "feeds an output into an input.")
+        ties.append(Tie(fields[0], fields[1], fields[2], fields[3], kind))
+    if not header_seen:
+        raise file_error(path, None, f"the file is empty; expected the header "
+                         f"'{','.join(TIES_HEADER)}[,kind]' and one tie a line.")
+    return ties
