@@ -42,8 +42,9 @@ VERBS: dict[str, tuple[str, str]] = {
                              "grid, small-world)"),
     "join": ("join", "compose subsystems with ties and check the composite: unreachable "
                      "states, dilations, smallest fix, by subsystem"),
-    "map": ("map", "draw the network: driver nodes, control paths, unreached states and "
-                   "dilations (--out map.png|svg|pdf); exit 0 controllable, 1 not"),
+    "map": ("map", "map the network: driver nodes, control paths, unreached states and "
+                   "dilations (--out map.html|png|svg|pdf|geojson|graphml); exit 0 "
+                   "controllable, 1 not"),
     "modes": ("modes", "how strongly the inputs reach each mode (weakest first) and the "
                        "minimum inputs for these weights (largest eigenvalue multiplicity); "
                        "exit 1 when a mode is not reached"),

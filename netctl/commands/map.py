@@ -1,4 +1,5 @@
-"""``netctl map``: draw the network with its driver nodes and control paths."""
+"""``netctl map``: draw the network with its driver nodes and control paths: an
+interactive HTML map, a static figure (PNG/SVG/PDF), or an export (GeoJSON, GraphML)."""
 
 from __future__ import annotations
 
@@ -23,10 +24,15 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     """Add the ``map`` verb."""
     p = subparsers.add_parser(
         name, parents=[common], help=help,
-        description="Draw the network with its driver nodes, the control paths (matched "
+        description="Map the network with its driver nodes, the control paths (matched "
                     "links: chains and cycles), the states no input reaches and the "
-                    "dilation sets; --out names the figure (PNG, SVG or PDF). Exit status "
-                    "0 when the drawn design is structurally controllable, 1 when not.")
+                    "dilation sets. --out names the result by its suffix: .html an "
+                    "interactive map in one self-contained file (pan, zoom, search, "
+                    "details, layers; nothing is fetched when it is opened); .png, .svg "
+                    ".pdf a static figure; .geojson the states and links with their roles "
+                    "for GIS (RFC 7946); .graphml the network with role attributes. "
+                    "Positions: the file's x/y or lat/lon, else a layout. Exit status 0 "
+                    "when the mapped design is structurally controllable, 1 when not.")
     group = p.add_mutually_exclusive_group()
     add_inputs(group, default="the file's inputs, else --auto")
     group.add_argument("--auto", action="store_true",
@@ -44,31 +50,45 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     labels.add_argument("--no-labels", dest="labels", action="store_false",
                         help="write no names")
     p.add_argument("--dpi", type=float, default=150.0, help="resolution of PNG output")
+    p.add_argument("--max-states", type=int, default=None, metavar="N",
+                   help="largest network mapped (default 1000000); a larger one is "
+                        "refused before any work")
     p.set_defaults(func=_cmd_map)
+
+
+_SUFFIXES = ("html", "htm", "png", "svg", "pdf", "geojson", "graphml")
+
+
+def _kind(path: str) -> str:
+    from pathlib import Path
+
+    suffix = Path(path).suffix.lower().lstrip(".")
+    if suffix not in _SUFFIXES:
+        raise UsageError(f"cannot tell what to write from {path!r}: the file name must end "
+                         f"in one of {', '.join('.' + x for x in _SUFFIXES)}.")
+    return {"htm": "html"}.get(suffix, suffix)
 
 
 def _cmd_map(args: argparse.Namespace) -> int:
     from netctl.report.progress import Progress
-    from netctl.viz.output import figure_format
+    from netctl.viz.interactive import MAP_STATE_LIMIT, check_map_size
 
     if not args.out:
-        raise UsageError("map needs --out FILE: the figure to write, ending in .png, .svg "
-                         "or .pdf.")
-    figure_format(args.out)  # reject a bad suffix before any work
+        raise UsageError("map needs --out FILE: grid.html (interactive), a figure ending in "
+                         ".png, .svg or .pdf, or an export ending in .geojson or .graphml.")
+    kind = _kind(args.out)  # reject a bad suffix before any work
     if not (args.dpi > 0):
         raise UsageError(f"--dpi must be positive, found {args.dpi!r}.")
+    limit = MAP_STATE_LIMIT if args.max_states is None else args.max_states
+    if limit < 1:
+        raise UsageError(f"--max-states must be at least 1, found {limit!r}.")
     show = [s.strip() for s in args.show.split(",") if s.strip()]
     progress = Progress(4, enabled=progress_enabled(args))
-
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    from netctl.viz import draw_map, map_marks, node_positions, save_figure
+    from netctl.viz import map_marks
 
     with progress.step(f"reading {args.file}"):
         system = load_system(args)
+        check_map_size(system.n_states, limit)
         inputs: Any = None
         if args.inputs is not None:
             inputs = system.names_of(parse_names(system, args.inputs))
@@ -77,18 +97,18 @@ def _cmd_map(args: argparse.Namespace) -> int:
     with progress.step("finding drivers and control paths"):
         marks = map_marks(system, inputs=inputs, show=show)
     with progress.step(f"placing {system.n_states} states"):
-        pos, how = node_positions(system, layout=args.layout, seed=args.seed)
-    with progress.step(f"drawing and writing {args.out}"):
-        ax = draw_map(system, marks, positions=pos, labels=args.labels)
-        try:
-            from netctl.viz.network import _default_title
-
-            ax.set_title(_default_title(system, marks, how), loc="left", fontsize=10)
-            save_figure(ax.figure, args.out, dpi=args.dpi)
-        finally:
-            plt.close(cast(Any, ax.figure))
+        pos, how, placement = _place(args, system)
+    if placement is not None and placement.n_laid_out and placement.from_file.any():
+        sys.stderr.write(f"netctl: note: {args.file}: {placement.note()}.\n")
+    with progress.step(f"writing {args.out}"):
+        if kind in ("png", "svg", "pdf"):
+            _figure(args, system, marks, pos, how)
+        else:
+            _document(args, kind, system, marks, placement, how)
     d = marks.to_dict()
-    d.update(file=args.file, figure=args.out, layout=how)
+    d.update(file=args.file, output=args.out, layout=how)
+    if kind in ("png", "svg", "pdf"):
+        d["figure"] = args.out
     if args.json:
         sys.stdout.write(json.dumps(d, indent=2) + "\n")
     else:
@@ -97,9 +117,69 @@ def _cmd_map(args: argparse.Namespace) -> int:
             "triangles)")
         design = {"minimum": "minimum design", "given": "the file's inputs",
                   "chosen": "--inputs"}[marks.design]
+        what = {"html": "interactive map", "geojson": "GeoJSON export",
+                "graphml": "GraphML export"}.get(kind, "map")
         sys.stdout.write(
-            f"{args.out}: map of {args.file} ({system.n_states} states, {system.n_links} "
-            f"links, {how} layout)\n"
+            f"{args.out}: {what} of {args.file} ({system.n_states} states, "
+            f"{system.n_links} links, {how} layout)\n"
             f"  {marks.n_inputs} input(s) on {marks.drivers.size} driver node(s) "
             f"({design}); structurally controllable: {verdict}\n")
     return 0 if marks.controllable else 1
+
+
+def _place(args: argparse.Namespace, system: Any) -> tuple[Any, str, Any]:
+    from netctl.viz import node_positions
+    from netctl.viz.placement import Placement, map_placement
+
+    if args.layout == "auto":
+        p = map_placement(system, seed=args.seed)
+        return p.xy, p.how, p
+    import numpy as np
+
+    pos, how = node_positions(system, layout=args.layout, seed=args.seed)
+    known = np.full(system.n_states, how == "coordinates")
+    return pos, how, Placement(np.asarray(pos, float), how, False, known)
+
+
+def _figure(args: argparse.Namespace, system: Any, marks: Any, pos: Any, how: str) -> None:
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from netctl.viz import draw_map, save_figure
+    from netctl.viz.network import _default_title
+
+    ax = draw_map(system, marks, positions=pos, labels=args.labels)
+    try:
+        ax.set_title(_default_title(system, marks, how), loc="left", fontsize=10)
+        save_figure(ax.figure, args.out, dpi=args.dpi)
+    finally:
+        plt.close(cast(Any, ax.figure))
+
+
+def _document(args: argparse.Namespace, kind: str, system: Any, marks: Any,
+              placement: Any, how: str) -> None:
+    from netctl.io import atomic_write
+    from netctl.viz.output import usual_mode
+
+    if kind == "html":
+        from netctl.viz.interactive import map_html, map_payload
+
+        title = f"netctl map of {args.file}"
+        text = map_html(map_payload(system, marks, placement, title=title))
+    elif kind == "geojson":
+        from netctl.viz.export import geojson_text
+
+        if not placement.geographic:
+            sys.stderr.write(f"netctl: note: {args.file} has no lat/lon coordinates; the "
+                             "GeoJSON positions are planar map positions, not WGS 84 "
+                             "degrees (marked so in the file's 'netctl' member).\n")
+        text = geojson_text(system, marks, placement)
+    else:
+        from netctl.viz.export import graphml_text
+
+        text = graphml_text(system, marks, placement)
+    with atomic_write(args.out) as fh:
+        fh.write(text)
+    usual_mode(args.out)
