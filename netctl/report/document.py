@@ -1,8 +1,9 @@
 """A report as plain data (sections of blocks) and its three renderings.
 
 HTML and Markdown are self-contained: no script, no style sheet, font or image is
-fetched from anywhere (figures are PNG data URIs), and every piece of text that can come
-from an input file is escaped. JSON carries the sections' data, not the figures.
+fetched from anywhere (figures are PNG data URIs; the interactive map's renderer and data
+are inline), and every piece of text that can come from an input file is escaped. JSON
+carries the sections' data, not the figures.
 """
 
 from __future__ import annotations
@@ -20,7 +21,7 @@ import numpy as np
 __all__ = ["Block", "Report", "Section", "figure", "items", "note", "para", "table"]
 
 #: Block kinds a section may hold.
-BLOCK_KINDS: tuple[str, ...] = ("para", "items", "table", "figure", "note")
+BLOCK_KINDS: tuple[str, ...] = ("para", "items", "table", "figure", "note", "map")
 #: Section states, shown as a badge.
 STATUSES: tuple[str, ...] = ("info", "ok", "warning", "fail")
 
@@ -32,6 +33,9 @@ class Block:
     ``para``: ``text``. ``items``: ``rows`` (list of str), optional ``more`` (how many
     were left out). ``table``: ``header`` and ``rows`` (lists of cells). ``figure``:
     ``png`` (bytes) and ``text`` (the caption). ``note``: ``text``, shown set apart.
+    ``map``: ``html``, an interactive map fragment built by
+    :func:`netctl.viz.interactive.map_fragment` (its names are already escaped inside
+    JSON), and ``png``/``text``, the static figure shown where HTML is not rendered.
     """
 
     kind: str
@@ -40,6 +44,7 @@ class Block:
     header: tuple[str, ...] = ()
     png: bytes = b""
     more: int = 0
+    html: str = ""
 
 
 def para(text: str) -> Block:
@@ -245,6 +250,11 @@ def _html_block(b: Block) -> str:
         data = base64.b64encode(b.png).decode("ascii")
         return (f'<figure><img alt="{e(b.text)}" src="data:image/png;base64,{data}">'
                 f"<figcaption>{e(b.text)}</figcaption></figure>")
+    if b.kind == "map":
+        data = base64.b64encode(b.png).decode("ascii")
+        return (f"{b.html}<details><summary>static figure (for print)</summary><figure>"
+                f'<img alt="{e(b.text)}" src="data:image/png;base64,{data}">'
+                f"<figcaption>{e(b.text)}</figcaption></figure></details>")
     raise ValueError(f"unknown block kind {b.kind!r}; expected one of {BLOCK_KINDS}")
 
 
@@ -276,6 +286,9 @@ def _md_block(b: Block) -> list[str]:
             out.append(f"\n*… and {b.more} more rows (the JSON report lists all)*")
         return out
     if b.kind == "figure":
+        data = base64.b64encode(b.png).decode("ascii")
+        return [f"![{m(b.text)}](data:image/png;base64,{data})", "", f"*{m(b.text)}*"]
+    if b.kind == "map":  # Markdown renderers drop scripts: the static figure only
         data = base64.b64encode(b.png).decode("ascii")
         return [f"![{m(b.text)}](data:image/png;base64,{data})", "", f"*{m(b.text)}*"]
     raise ValueError(f"unknown block kind {b.kind!r}; expected one of {BLOCK_KINDS}")

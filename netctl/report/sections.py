@@ -15,7 +15,7 @@ from typing import Any, cast
 
 import numpy as np
 
-from netctl.report.document import Section, figure, items, note, para, table
+from netctl.report.document import Block, Section, figure, items, note, para, table
 from netctl.system import StructuredSystem
 
 __all__ = ["SECTIONS", "ReportContext", "SectionBuilder", "cautions_section",
@@ -197,30 +197,36 @@ def map_section(ctx: ReportContext) -> Section | None:
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from netctl.viz import draw_map, map_marks, node_positions
+    from netctl.viz import draw_map, map_marks
+    from netctl.viz.interactive import map_fragment, map_payload
     from netctl.viz.network import _default_title
     from netctl.viz.output import figure_bytes
+    from netctl.viz.placement import map_placement
 
     inputs: Any = None
     if ctx.inputs is not None:
         inputs = _names(ctx, ctx.inputs)
     marks = map_marks(ctx.system, inputs=inputs)
-    pos, how = node_positions(ctx.system, seed=ctx.seed)
-    ax = draw_map(ctx.system, marks, positions=pos,
-                  title=_default_title(ctx.system, marks, how))
+    placement = map_placement(ctx.system, seed=ctx.seed)
+    how = placement.how
+    title = _default_title(ctx.system, marks, how)
+    ax = draw_map(ctx.system, marks, positions=placement.xy, title=title)
     try:
         png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
     finally:
         plt.close(cast(Any, ax.figure))
-    placed = ("states at the coordinates in the file" if how.startswith("coordinates")
-              else "states placed by a seeded force-directed layout (positions carry no "
-                   "meaning)")
-    caption = (f"Map of {ctx.design_words()}; {placed}. Triangles: driver nodes; heavy "
-               "solid lines: control paths; heavy dashed lines: control cycles; hatched "
-               "squares: states no input reaches; hollow diamonds: a dilation; dashed "
-               "hollow triangles: where to add inputs. The legend beside the map explains "
-               "every mark.")
-    return Section("map", "Map", (figure(png, caption),),
+    caption = (f"Map of {ctx.design_words()}; {placement.note()}. Triangles: driver nodes; "
+               "heavy solid lines: control paths; heavy dashed lines: control cycles; "
+               "hatched squares: states no input reaches; hollow diamonds: a dilation; "
+               "dashed hollow triangles: where to add inputs. The legend beside the map "
+               "explains every mark.")
+    fragment = map_fragment(map_payload(ctx.system, marks, placement, title=title),
+                            element_id="netctl-report-map")
+    intro = para("Drag to pan, use the wheel to zoom, find a state by name, click a state "
+                 "for its role, the input that reaches it and its control path, and switch "
+                 "layers on and off in the legend.")
+    return Section("map", "Map", (intro, Block("map", text=caption, png=png,
+                                               html=fragment)),
                    data={"layout": how, "design": marks.design,
                          "drivers": marks.names(marks.drivers),
                          "n_control_links": int(marks.matched_sources.size),

@@ -78,7 +78,10 @@ def check_html(text):
 
 def assert_self_contained(text, parser):
     for tag, attrs in parser.tags:
-        assert tag not in ("script", "link", "iframe", "object", "embed"), tag
+        assert tag not in ("link", "iframe", "object", "embed"), tag
+        if tag == "script":  # only inline: the map's renderer and its data
+            assert "src" not in attrs, attrs
+            assert attrs.get("type", "application/json") == "application/json", attrs
         for key in ("src", "href", "srcset", "action", "poster", "data"):
             if key in attrs:
                 value = attrs[key] or ""
@@ -100,7 +103,9 @@ def test_html_is_valid_and_self_contained(heating_report):
     parser = check_html(text)
     assert_self_contained(text, parser)
     imgs = [a for t, a in parser.tags if t == "img"]
-    assert imgs, "the map is embedded"
+    assert imgs, "the static map is embedded"
+    assert ("div", "netctl-report-map") in [(t, a.get("id")) for t, a in parser.tags], \
+        "the interactive map is embedded"
     for a in imgs:
         head, data = a["src"].split(",", 1)
         assert head == "data:image/png;base64"
@@ -131,7 +136,8 @@ def test_names_are_escaped_everywhere(tmp_path):
                                           ["plain", "plain", "x*y_[z]|w"])
     report = build_report(s, inputs=["plain"], source=str(tmp_path / "evil.csv"))
     html_text = report.to_html()
-    assert "<script" not in html_text.lower()
+    # only the map's own two inline scripts (renderer and JSON data); names never raw
+    assert html_text.lower().count("<script") == 2 and EVIL not in html_text
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html_text
     assert 'quote"&amp' not in html_text and "quote&quot;&amp;amp" in html_text
     check_html(html_text)

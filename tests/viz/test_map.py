@@ -230,7 +230,7 @@ def test_cli_map_failing_design_exits_1(tmp_path, capsys):
 
 
 @pytest.mark.parametrize("args, message", [
-    (["--out", "m.jpg"], "the file name must end in one of .png, .svg, .pdf"),
+    (["--out", "m.jpg"], "the file name must end in one of .html, .htm, .png, .svg, .pdf, .geojson, .graphml"),
     ([], "map needs --out FILE"),
     (["--out", "m.png", "--inputs", "nowhere"], "unknown state name 'nowhere'"),
     (["--out", "m.png", "--show", "everything"], "unknown map layer 'everything'"),

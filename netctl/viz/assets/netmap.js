@@ -1,6 +1,6 @@
 /* netctl interactive network map: a small canvas (2D) renderer, no dependencies.
  *
- * Reads the map data from <script type="application/json" id=...> named by the
+ * Reads the map data from the JSON data element (type application/json) named by the
  * container's data-netctl-map attribute. Every name from the input file reaches the page
  * through textContent only (never innerHTML). Coordinates arrive as integers on a grid
  * (data.q steps over the bounding box). Links are flat [source, target, ...] arrays.
