@@ -97,7 +97,12 @@ def _cmd_map(args: argparse.Namespace) -> int:
     with progress.step("finding drivers and control paths"):
         marks = map_marks(system, inputs=inputs, show=show)
     with progress.step(f"placing {system.n_states} states"):
-        pos, how, placement = _place(args, system)
+        from netctl.viz.placement import CoordinateError
+
+        try:
+            pos, how, placement = _place(args, system)
+        except CoordinateError as exc:
+            raise CoordinateError(f"{args.file}: {exc}") from None
     if placement is not None and placement.n_laid_out and placement.from_file.any():
         sys.stderr.write(f"netctl: note: {args.file}: {placement.note()}.\n")
     with progress.step(f"writing {args.out}"):
