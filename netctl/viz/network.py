@@ -29,6 +29,15 @@ _LABELS_UP_TO = 60
 _OVERVIEW_ABOVE = 20000
 #: Above this many links (of one kind), links are rasterized in vector output.
 _RASTER_ABOVE = 2000
+#: Marker area (points^2) of a driver mark on every map, small or huge; the other
+#: flagged marks scale with their relative size in :data:`netctl.viz.style.MARKS`.
+_FLAG_AREA = 190.0
+
+
+def _roles_tell(marks: MapMarks) -> bool:
+    """Roles are drawn only when states differ in role (one role everywhere says
+    nothing per state; the legend says it once)."""
+    return marks.roles is not None and np.unique(marks.roles).size > 1
 
 
 def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
@@ -126,7 +135,7 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
             continue
         mk = MARKS[key]
         lw = mk.linewidth * scale
-        alpha = alpha_plain if key == "link" else 0.95
+        alpha = alpha_plain if key == "link" else 0.8 if key == "cycle" else 0.95
         if n > _OVERVIEW_ABOVE:  # overview: matched links thin and see-through too
             lw = mk.linewidth * 0.15
             alpha = min(alpha, 0.05) if key == "link" else 0.3
@@ -157,19 +166,19 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
                 sc.set_gid(GID_PREFIX + ("self_loop" if key == "link" else "cycle_loop"))
 
     # states: roles (when asked) replace the plain circle, then the point marks on top
-    if marks.roles is None and n > _OVERVIEW_ABOVE:
+    if not _roles_tell(marks) and n > _OVERVIEW_ABOVE:
         # overview: every state as a dot (one marker path, drawn much faster)
         (dots,) = ax.plot(pos[:, 0], pos[:, 1], linestyle="none", marker=".",
                           markersize=1.2, markeredgewidth=0, color=MARKS["state"].edge,
                           zorder=MARKS["state"].zorder, rasterized=True)
         dots.set_gid(GID_PREFIX + "state")
-    elif marks.roles is None:
+    elif not _roles_tell(marks):
         _points(ax, pos, np.arange(n), MARKS["state"], area)
     _points(ax, pos, marks.unreached, MARKS["unreached"], area)
     _points(ax, pos, marks.dilation, MARKS["dilation"], area)
     _points(ax, pos, marks.drivers, MARKS["driver"], area)
     _points(ax, pos, marks.suggested, MARKS["suggested"], area)
-    if marks.roles is not None:
+    if _roles_tell(marks):
         # the role sits inside every other mark, so a driver's role stays visible
         for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
             _points(ax, pos, np.flatnonzero(marks.roles == k), MARKS[key], area, zorder=7.0)
@@ -223,8 +232,9 @@ def _points(ax: Axes, pos: np.ndarray, idx: np.ndarray, mk: Mark, area: float,
         return
     assert mk.marker is not None
     size = area * mk.size
-    if mk.size > 2.0 and idx.size <= 300:
-        size = max(size, 11.0 * mk.size)  # few flagged states stay visible on big maps
+    flagged = mk.size > 2.0
+    if flagged:  # drivers and trouble spots: a fixed size in points, whatever the map
+        size = _FLAG_AREA * mk.size / 3.2
     sc = ax.scatter(pos[idx, 0], pos[idx, 1], s=size, marker=mk.marker,
                     facecolors=mk.face, edgecolors=mk.edge,
                     linewidths=(0.0 if idx.size > _OVERVIEW_ABOVE
@@ -232,6 +242,10 @@ def _points(ax: Axes, pos: np.ndarray, idx: np.ndarray, mk: Mark, area: float,
                     linestyles=mk.linestyle, hatch=mk.hatch or None,
                     zorder=mk.zorder if zorder is None else zorder)
     sc.set_gid(GID_PREFIX + _mark_key(mk))
+    if flagged:  # a white halo keeps the mark readable over any link
+        import matplotlib.patheffects as pe
+
+        sc.set_path_effects([pe.Stroke(linewidth=3.5, foreground="white"), pe.Normal()])
     if idx.size > 20000:
         sc.set_rasterized(True)
 
@@ -315,11 +329,20 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
         items.append(point("unreached", marks.unreached.size))
     if marks.dilation.size:
         items.append(point("dilation", marks.dilation.size))
-    if marks.roles is not None:
+    if _roles_tell(marks):
+        assert marks.roles is not None
         for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
-            items.append(point(key, int(np.count_nonzero(marks.roles == k))))
+            count = int(np.count_nonzero(marks.roles == k))
+            if count:  # a role no state has is left out of the legend
+                items.append(point(key, count))
     else:
-        items.append(point("state", system.n_states))
+        h, _ = point("state", system.n_states)
+        text = f"state ({system.n_states})"
+        if marks.roles is not None and system.n_states:
+            only = MARKS[("role_critical", "role_intermittent",
+                          "role_redundant")[int(marks.roles[0])]].label.split(":")[0]
+            text = f"state: every one is {only} ({system.n_states})"
+        items.append((h, text))
     n_cyc = int(np.count_nonzero(marks.on_cycle))
     if marks.on_cycle.size - n_cyc or not n_cyc:
         items.append(line("chain", marks.on_cycle.size - n_cyc))

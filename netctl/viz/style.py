@@ -83,7 +83,7 @@ MARKS: dict[str, Mark] = {
                      linewidth=2.0, size=3.0, zorder=5),
     "chain": Mark("control path (matched link)", None, _BLUE, _BLUE, linewidth=2.4, zorder=2.2),
     "cycle": Mark("control cycle (matched link)", None, _AMBER, _AMBER, linestyle="dashed",
-                  linewidth=2.4, zorder=2.3),
+                  linewidth=1.8, zorder=2.3),
     "link": Mark("other link", None, _LINK, _LINK, linewidth=0.7, zorder=1.0),
     "critical_link": Mark("critical link (in every maximum matching)", None, INK, INK,
                           linewidth=5.2, zorder=2.0),

@@ -275,3 +275,44 @@ def test_legend_explains_every_mark_drawn():
         assert wanted in legend_text, (key, legend_text)
     assert {"driver", "chain", "cycle", "unreached", "dilation", "suggested",
             "critical_link", "self_loop"} <= drawn
+
+
+def _driver_sizes(system):
+    import matplotlib.pyplot as plt
+
+    from netctl.viz import draw_map
+
+    ax = draw_map(system, legend=False)
+    try:
+        return [float(c.get_sizes()[0]) for c in ax.collections
+                if c.get_gid() == "netctl:driver"]
+    finally:
+        plt.close(ax.figure)
+
+
+def test_driver_marks_never_shrink_with_graph_size():
+    # common practice, no source: a flagged mark is sized in points, not by map density
+    small = StructuredSystem.from_edges(np.arange(19), np.arange(1, 20), 20)
+    big = StructuredSystem.from_edges(np.arange(4999), np.arange(1, 5000), 5000)
+    assert _driver_sizes(small) == _driver_sizes(big) and _driver_sizes(small)[0] >= 150
+
+
+def test_a_role_shared_by_every_state_is_said_once_not_drawn():
+    import matplotlib.pyplot as plt
+
+    from netctl.viz import draw_map, map_marks
+
+    cycle = StructuredSystem.from_edges(np.arange(8), (np.arange(8) + 1) % 8, 8)
+    marks = map_marks(cycle, show=["roles"])
+    # a directed cycle: one input anywhere suffices, so every state is intermittent
+    # (Jia et al. 2013, Nat. Commun. 4:2002: intermittent = in some minimum sets)
+    assert set(marks.roles.tolist()) == {1}
+    ax = draw_map(cycle, marks)
+    try:
+        gids = {c.get_gid() for c in ax.collections}
+        assert not any(g.startswith("netctl:role_") for g in gids)
+        texts = [t.get_text() for t in ax.figure.legends[0].get_texts()]
+        assert "state: every one is intermittent (8)" in texts
+        assert not any(t.startswith(("critical:", "redundant:")) for t in texts)
+    finally:
+        plt.close(ax.figure)
