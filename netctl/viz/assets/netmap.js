@@ -15,6 +15,10 @@
   "use strict";
 
   var INK = "#262626";
+  var DASH_UP_TO = 4000;   // more links than this on screen in a dashed layer: solid
+  var THIN_ABOVE = 12000;  // more links than this on screen in a layer: hairlines
+  var MARKS_EVERY_FRAME_UP_TO = 1500;  // more flagged states on screen: cached with the base
+  var HEADS_UP_TO = 3000;  // arrowheads only when at most this many links are on screen
   var STYLE = {
     links: { color: "#8A8A8A", width: 0.8 },
     paths: { color: "#2464A8", width: 2.2 },
@@ -430,20 +434,35 @@
     this.frameTimes.push(dt);
     if (this.frameTimes.length > 600) { this.frameTimes.shift(); }
     this.lastFrame = { ms: dt, cheap: !!cheap };
-    if (this.firstRenderMs === undefined) { this.firstRenderMs = performance.now() - T_START; }
+    if (this.firstRenderMs === undefined) {
+      this.firstRenderMs = performance.now() - T_START;  // from the renderer's start
+      this.firstFrameAt = performance.now();              // from navigation start
+    }
   };
 
   /* links of one layer as one path (segments off screen are skipped) */
   NetMap.prototype.strokeLinks = function (ctx, a, key, alpha) {
     var s = this.s, tx = this.tx, ty = this.ty, wx = this.wx, wy = this.wy, W = this.W, H = this.H;
-    var count = 0;
+    var count = 0, j, u, v, x1, y1, x2, y2, seen = 0;
+    for (j = 0; j < a.length; j += 2) {   // how many are on screen decides the pen
+      u = a[j]; v = a[j + 1];
+      x1 = wx[u] * s + tx; y1 = ty - wy[u] * s; x2 = wx[v] * s + tx; y2 = ty - wy[v] * s;
+      if (!((x1 < 0 && x2 < 0) || (x1 > W && x2 > W) || (y1 < 0 && y2 < 0) || (y1 > H && y2 > H))) { seen++; }
+    }
     lineStyle(ctx, key, alpha);
+    if (seen > DASH_UP_TO) { ctx.setLineDash([]); }  // dashes cost dearly in bulk
+    if (seen > THIN_ABOVE) {  // overview: hairlines (wide strokes are slow to rasterize)
+      ctx.lineWidth = Math.min(ctx.lineWidth, 1); ctx.lineCap = "butt";
+    }
+    this.busy = seen;
     ctx.beginPath();
-    for (var j = 0; j < a.length; j += 2) {
-      var u = a[j], v = a[j + 1];
-      var x1 = wx[u] * s + tx, y1 = ty - wy[u] * s, x2 = wx[v] * s + tx, y2 = ty - wy[v] * s;
+    for (j = 0; j < a.length; j += 2) {
+      u = a[j]; v = a[j + 1];
+      x1 = wx[u] * s + tx; y1 = ty - wy[u] * s; x2 = wx[v] * s + tx; y2 = ty - wy[v] * s;
       if ((x1 < 0 && x2 < 0) || (x1 > W && x2 > W) || (y1 < 0 && y2 < 0) || (y1 > H && y2 > H)) { continue; }
       ctx.moveTo(x1, y1); ctx.lineTo(x2, y2); count++;
+      // short paths: one path of 10^5 crossing segments costs far more than many small
+      if ((count & 1023) === 0) { ctx.stroke(); ctx.beginPath(); }
     }
     ctx.stroke();
     ctx.globalAlpha = 1;
@@ -454,6 +473,7 @@
   /* arrowheads on control links once they are long enough on screen */
   NetMap.prototype.heads = function (ctx, a, color) {
     var s = this.s, tx = this.tx, ty = this.ty, wx = this.wx, wy = this.wy;
+    if (this.busy > HEADS_UP_TO) { return; }
     ctx.beginPath();
     for (var j = 0; j < a.length; j += 2) {
       var x1 = wx[a[j]] * s + tx, y1 = ty - wy[a[j]] * s, x2 = wx[a[j + 1]] * s + tx, y2 = ty - wy[a[j + 1]] * s;
@@ -478,7 +498,9 @@
     // plain links fade as more of them share the screen
     var zoom = this.s / this.s0;
     var alpha = Math.max(0.08, Math.min(0.85, 14 / Math.sqrt(Math.max(nl, 1)) * Math.sqrt(zoom)));
+    var tc = performance.now(), costs = {};
     if (L.links) { drawn.links = this.strokeLinks(ctx, d.links, "links", alpha); }
+    costs.links = performance.now() - tc; tc = performance.now();
     if (L.critical && d.critical) { drawn.critical = this.strokeLinks(ctx, d.critical, "critical", 0.9); }
     var calpha = d.paths.length + d.cycles.length > 20000 ? 0.55 : 0.95;
     if (L.paths) {
@@ -494,7 +516,15 @@
       this.strokeLinks(ctx, d.critical, "critical", 0.9);
       STYLE.critical.width = 4.5; STYLE.critical.color = c0; ctx.restore();
     }
+    costs.matched = performance.now() - tc; tc = performance.now();
     if (L.states) { drawn.states = this.drawStates(ctx); }
+    costs.states = performance.now() - tc; tc = performance.now();
+    // many flagged states on screen: drawn once into the cached base (still last, still
+    // at a fixed pixel size with a halo) instead of on every frame while the view moves
+    this.marksInBase = this.countMarks() > MARKS_EVERY_FRAME_UP_TO;
+    if (this.marksInBase) { this.drawFlagged(ctx, drawn); }
+    costs.marks = performance.now() - tc;
+    this.costs = costs;
     this.drawnBase = drawn;
   };
 
@@ -517,9 +547,8 @@
       if (!p.length) { continue; }
       ctx.beginPath();
       if (r < 2.2 && count > 5000) {
-        for (i = 0; i < p.length; i += 2) { ctx.rect(p[i] - r, p[i + 1] - r, 2 * r, 2 * r); }
         ctx.fillStyle = roles ? fills[g] : STYLE.states.stroke;
-        ctx.fill();
+        for (i = 0; i < p.length; i += 2) { ctx.fillRect(p[i] - r, p[i + 1] - r, 2 * r, 2 * r); }
         if (roles) { ctx.strokeStyle = STYLE.roles.stroke; ctx.lineWidth = 0.5; ctx.stroke(); }
       } else {
         for (i = 0; i < p.length; i += 2) { circle(ctx, p[i], p[i + 1], r); }
@@ -560,14 +589,7 @@
       ctx.strokeStyle = INK; ctx.lineWidth = 3; ctx.stroke();
     }
     // flagged states last, at a fixed size in screen pixels, with a halo
-    ["disturbances", "dilations", "unreached", "fixes", "drivers"].forEach(function (key) {
-      if (!L[key]) { return; }
-      var idx = key === "drivers" ? d.drivers : key === "disturbances" ? self.disturbed : d[key];
-      if (!idx || !idx.length) { return; }
-      var v = self.visible(idx);
-      drawPoints(ctx, key, v[0], v[1]);
-      drawn[key] = v[0].length;
-    });
+    if (!this.marksInBase) { this.drawFlagged(ctx, drawn); }
     if (this.selected >= 0) {
       var p = this.screenOf(this.selected);
       ctx.beginPath(); circle(ctx, p[0], p[1], 15);
@@ -576,6 +598,29 @@
       drawn.selected = 1;
     }
     this.drawn = drawn;
+  };
+
+  NetMap.prototype.flaggedLists = function () {
+    var d = this.d, L = this.layers, self = this, out = [];
+    ["disturbances", "dilations", "unreached", "fixes", "drivers"].forEach(function (key) {
+      if (!L[key]) { return; }
+      var idx = key === "drivers" ? d.drivers : key === "disturbances" ? self.disturbed : d[key];
+      if (idx && idx.length) { out.push([key, idx]); }
+    });
+    return out;
+  };
+  NetMap.prototype.countMarks = function () {
+    var total = 0, self = this;
+    this.flaggedLists().forEach(function (kv) { total += self.visible(kv[1])[0].length; });
+    return total;
+  };
+  NetMap.prototype.drawFlagged = function (ctx, drawn) {
+    var self = this;
+    this.flaggedLists().forEach(function (kv) {
+      var v = self.visible(kv[1]);
+      drawPoints(ctx, kv[0], v[0], v[1]);
+      drawn[kv[0]] = v[0].length;
+    });
   };
 
   /* --------------------------------------------------------- find, select */
