@@ -1,0 +1,19 @@
+"""Designs that survive failures: audit, failure count and secure placement.
+
+* :func:`audit_design` -- every actuator (sensor) of a design: critical (a single point
+  of failure), useful but replaceable, or useless (Commault, Dion & Trinh 2008).
+* :func:`audit_links` -- every line (both directions of a coupling, or the links
+  between two nodes of a second-order model) whose loss breaks the design.
+* :func:`fewest_failures` -- the smallest number of actuators (sensors) whose joint
+  loss breaks the design (NP-hard; exact integer programme, else labelled bounds).
+* :func:`secure_placement` -- the cheapest dedicated actuators (sensors) that keep the
+  system structurally controllable (observable) after any ``k`` of them fail, or after
+  any one line fails.
+
+Results concern a linear(ized) structural model; they do not replace the operator's
+procedures, applicable codes or licensed engineers.
+"""
+
+from netctl.structural.failures.audit import ELEMENT_CLASSES, KINDS, DesignAudit, audit_design
+
+__all__ = ["DesignAudit", "ELEMENT_CLASSES", "KINDS", "audit_design"]
