@@ -42,21 +42,21 @@ def _check(seed: int) -> None:
         assert au.works and got == want, (seed, n, edges, cols, got, want)
 
 
-@pytest.mark.parametrize("seed", range(150))
+@pytest.mark.parametrize("seed", range(60))
 def test_audit_matches_brute_force(seed):
     _check(seed)
 
 
 @pytest.mark.slow
 def test_audit_matches_brute_force_many():
-    for seed in range(150, 1200):
+    for seed in range(60, 1100):
         _check(seed)
 
 
 def test_sensors_are_the_dual():
     # sensors of (A, C) classified as the actuators of (A^T, C^T): brute force on the
     # reversed pattern (observability = controllability of the dual, Kalman duality)
-    for seed in range(40):
+    for seed in range(20):
         rng = np.random.default_rng(10_000 + seed)
         n, edges, cols = _random_case(rng)
         s = StructuredSystem.from_edges([u for u, _ in edges], [v for _, v in edges], n)

@@ -15,5 +15,27 @@ procedures, applicable codes or licensed engineers.
 """
 
 from netctl.structural.failures.audit import ELEMENT_CLASSES, KINDS, DesignAudit, audit_design
+from netctl.structural.failures.links import LineLosses, audit_links, line_elements
+from netctl.structural.failures.secure import (
+    AGAINST,
+    SECURE_METHODS,
+    SecurePlacement,
+    secure_placement,
+)
+from netctl.structural.failures.withstand import FailureCount, fewest_failures
 
-__all__ = ["DesignAudit", "ELEMENT_CLASSES", "KINDS", "audit_design"]
+__all__ = [
+    "AGAINST",
+    "DesignAudit",
+    "ELEMENT_CLASSES",
+    "FailureCount",
+    "KINDS",
+    "LineLosses",
+    "SECURE_METHODS",
+    "SecurePlacement",
+    "audit_design",
+    "audit_links",
+    "fewest_failures",
+    "line_elements",
+    "secure_placement",
+]
