@@ -1,0 +1,203 @@
+"""``netctl secure``: does a design survive a failure (N-1), and the cheapest one that does.
+
+Audit (default): every actuator of ``--inputs`` (sensor of ``--outputs``, or the file's
+own design) classified as a single point of failure, useful or useless; the fewest
+failures that break it; every line whose loss breaks it. ``--place``: the cheapest
+dedicated actuators (``--sensors``: sensors) that survive any ``--k`` failures of their
+own (``--against elements``) or any one line (``--against lines``).
+
+Exit status: 0 secure (audit: no single point of failure and no breaking line, and at
+least ``--k`` failures withstood; place: a secure design was found), 1 not, 2 bad usage
+or input.
+"""
+
+from __future__ import annotations
+
+import argparse
+from typing import Any
+
+__all__ = ["register"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    """Add the ``secure`` verb."""
+    from netctl.structural.failures import AGAINST, SECURE_METHODS
+
+    p = subparsers.add_parser(
+        "secure", parents=[common],
+        help="N-1 security of an actuator/sensor design: single points of failure, fewest "
+             "failures that break it, breaking lines; --place: cheapest design surviving "
+             "failures; exit 0 secure, 1 not")
+    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
+                   help="actuator design to audit: one dedicated actuator per named state "
+                        "(comma-separated, or a file with one name a line)")
+    p.add_argument("--outputs", metavar="NAMES|FILE", default=None,
+                   help="sensor design to audit: one sensor per named state")
+    p.add_argument("--place", action="store_true",
+                   help="find the cheapest design that survives failures instead of auditing")
+    p.add_argument("--sensors", action="store_true",
+                   help="with --place: place sensors (observability) instead of actuators")
+    p.add_argument("--against", choices=list(AGAINST), default="elements",
+                   help="with --place: survive the loss of any --k placed elements "
+                        "(default) or of any one line")
+    p.add_argument("--k", metavar="K", type=int, default=1,
+                   help="failures to survive (default 1: N-1)")
+    p.add_argument("--sites", metavar="FILE", default=None,
+                   help="with --place: CSV 'state,cost' with a header: eligible states and "
+                        "their costs (default: the node table, else every state at cost 1)")
+    p.add_argument("--method", choices=list(SECURE_METHODS), default="auto",
+                   help="with --place: auto (exact within the time limit, else two-step), "
+                        "exact, or two-step")
+    p.add_argument("--time-limit", metavar="S", type=float, default=60.0,
+                   help="seconds the integer programmes may use (default 60)")
+    p.set_defaults(func=_cmd_secure)
+
+
+def _cmd_secure(args: argparse.Namespace) -> int:
+    import math
+
+    from netctl.cli import UsageError, load_system, parse_names
+
+    if args.k < 1:
+        raise UsageError(f"--k must be an integer >= 1 (failures to survive), found {args.k}.")
+    if not math.isfinite(args.time_limit) or args.time_limit <= 0:
+        raise UsageError(f"--time-limit must be a positive number of seconds, found "
+                         f"{args.time_limit!r}.")
+    system = load_system(args)
+    _no_disturbance_sites(system, args)
+    if args.place:
+        if args.inputs or args.outputs:
+            raise UsageError("--place builds a design from scratch; drop --inputs/--outputs "
+                             "(audit a design without --place).")
+        return _place(args, system)
+    if args.sensors or args.sites or args.against != "elements" or args.method != "auto":
+        raise UsageError("--sensors, --sites, --against and --method go with --place; an "
+                         "audit takes --inputs and/or --outputs.")
+    if args.inputs is not None:
+        system = system.with_inputs(parse_names(system, args.inputs))
+    if args.outputs is not None:
+        system = system.with_outputs(parse_names(system, args.outputs, what="--outputs"))
+    kinds = []
+    if system.n_inputs:
+        kinds.append("inputs")
+    if system.n_outputs:
+        kinds.append("sensors")
+    if not kinds:
+        raise UsageError("secure needs a design: --inputs and/or --outputs (comma-separated "
+                         "state names or a file with one name a line), or --place to find "
+                         "one.")
+    for kind in kinds:
+        m = system.n_inputs if kind == "inputs" else system.n_outputs
+        if args.k > m:
+            raise UsageError(f"--k {args.k} is larger than the design: it has {m} "
+                             f"{'actuators' if kind == 'inputs' else 'sensors'}; give "
+                             f"--k <= {m}.")
+    return _audit(args, system, kinds)
+
+
+def _no_disturbance_sites(system: Any, args: argparse.Namespace) -> None:
+    """Disturbances are never sites. Hook for systems that carry them (``E``)."""
+    from netctl.cli import UsageError
+    from netctl.io import read_state_list
+
+    dist = set(getattr(system, "disturbance_names", ()) or ())
+    if not dist:
+        return
+    for opt in ("inputs", "outputs"):
+        val = getattr(args, opt)
+        if val is None:
+            continue
+        bad = [x for x in read_state_list(val) if x in dist]
+        if bad:
+            raise UsageError(f"--{opt}: {bad[0]!r} is a disturbance, not a state; a "
+                             "disturbance can host no actuator or sensor. Name states only.")
+
+
+def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
+    from netctl.cli import CAUTION, _names_line, emit
+    from netctl.structural.failures import (
+        ELEMENT_CLASSES,
+        audit_design,
+        audit_links,
+        fewest_failures,
+    )
+
+    lines = [f"{args.file}: {system.n_states} states, model {system.model}"]
+    out: dict[str, Any] = {"file": args.file, "k": args.k, "audits": []}
+    secure = True
+    for kind in kinds:
+        au = audit_design(system, kind=kind)
+        ff = fewest_failures(system, kind=kind, time_limit=args.time_limit)
+        ll = audit_links(system, kind=kind)
+        noun = "sensors" if kind == "sensors" else "actuators"
+        prop = "observable" if kind == "sensors" else "controllable"
+        ok = au.secure and ll.secure and ff.lower >= args.k + 1
+        secure &= ok
+        lines.append(f"  {noun} ({au.n_elements}): "
+                     + ("SECURE" if ok else "NOT secure") + f" (k = {args.k})")
+        if not au.works:
+            lines.append(f"    the intact design is not structurally {prop}:")
+            lines.extend(f"      - {r}" for r in au.intact_reasons())
+        else:
+            for c, name in enumerate(ELEMENT_CLASSES[:4]):
+                idx = [au.element_names[int(j)] for j in au.of_class(name)]
+                if idx:
+                    lines.append(f"    {name} ({len(idx)}): {_names_line(idx)}")
+            for j in au.critical[:10].tolist():
+                lines.append(f"    single point of failure {au.element_names[j]}:")
+                lines.extend(f"      - {r}" for r in au.reasons(j))
+            if au.critical.size > 10:
+                lines.append(f"    ... {au.critical.size - 10} more (--json lists them)")
+            fw = ("exactly " + str(ff.value) if ff.exact else
+                  f"between {ff.lower} and {ff.upper} (bounds, not exact)")
+            lines.append(f"    fewest failures that break it: {fw} [{ff.guarantee}]")
+            if ff.witness:
+                lines.append(f"      e.g. losing {', '.join(ff.witness)}: {ff.cause}")
+            br = [ll.labels[int(j)] for j in ll.breaking.nonzero()[0]]
+            lines.append(f"    lines whose loss breaks it: {len(br)} of {ll.n_lines}"
+                         + (f": {_names_line(br, 10)}" if br else ""))
+        out["audits"].append({"kind": kind, "secure": bool(ok), "elements": au.to_dict(),
+                              "fewest_failures": ff.to_dict(), "lines": ll.to_dict()})
+    out["secure"] = bool(secure)
+    out["caution"] = CAUTION
+    lines.append("  " + CAUTION)
+    emit(args, out, "\n".join(lines))
+    return 0 if secure else 1
+
+
+def _place(args: argparse.Namespace, system: Any) -> int:
+    from netctl.cli import CAUTION, _names_line, emit
+    from netctl.structural.failures import secure_placement
+    from netctl.structural.placement import read_sites
+
+    kind = "sensors" if args.sensors else "inputs"
+    sites = (read_sites(args.sites, system, kind="sensor" if args.sensors else "actuator")
+             if args.sites else None)
+    r = secure_placement(system, kind=kind, against=args.against, k=args.k, sites=sites,
+                         method=args.method, time_limit=args.time_limit)
+    noun = "sensors" if args.sensors else "actuators"
+    what = (f"any {args.k} {noun[:-1]} failure(s)" if args.against == "elements" else
+            "any one line")
+    lines = [f"{args.file}: {system.n_states} states, model {system.model}",
+             f"  cheapest dedicated {noun} surviving {what}"
+             + (f" (sites: {args.sites})" if args.sites else "")]
+    if not r.feasible:
+        lines.append("  infeasible: these losses cannot be covered: "
+                     + "; ".join(r.uncovered[:10]))
+        lines.extend(f"    - {x}" for x in r.reasons)
+    elif r.sites.size == 0:
+        lines.append(f"  no design found: {r.guarantee}")
+    else:
+        lines.append(f"  sites ({r.sites.size}): {_names_line(r.site_names)}")
+        status = ("optimal (proven)" if r.optimal else
+                  f"gap {100 * r.gap:.1f}% to the proven lower bound {r.lower_bound:g}")
+        lines.append(f"  total cost: {r.cost:g}; {status}; method {r.method}")
+        lines.append(f"  guarantee: {r.guarantee}")
+        lines.append(f"  check (every loss recomputed): "
+                     f"{'passed' if r.verified else 'NOT passed'}")
+    lines.append("  " + CAUTION)
+    d = r.to_dict()
+    d["file"] = args.file
+    d["caution"] = CAUTION
+    emit(args, d, "\n".join(lines))
+    return 0 if r.feasible and r.sites.size and r.verified else 1

@@ -1,0 +1,60 @@
+"""``netctl secure`` through its entry point: exit codes, messages, JSON.
+
+Expected answers are worked by hand on Lin's conditions (C.-T. Lin, IEEE TAC 19(3),
+1974): in ``a <-> b -> c <-> d`` only ``a`` or ``b`` reach the source component
+``{a, b}``, so an N-1 secure design needs both.
+"""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from netctl.cli import main
+
+
+@pytest.fixture
+def net(tmp_path):
+    p = tmp_path / "net.txt"
+    p.write_text("a b\nb a\nb c\nc d\nd c\n")
+    return str(p)
+
+
+def test_audit_secure_pair_exit_0_on_elements_but_lines_break(net, capsys):
+    assert main(["secure", net, "--inputs", "a,b", "--json"]) == 1  # line b -> c breaks
+    d = json.loads(capsys.readouterr().out)
+    a = d["audits"][0]
+    assert a["elements"]["counts"]["critical"] == 0
+    assert a["fewest_failures"]["value"] == 2
+    assert [x["line"] for x in a["lines"]["breaking"]] == ["b -> c", "c -- d"]
+
+
+def test_single_point_of_failure_named_with_reason(net, capsys):
+    assert main(["secure", net, "--inputs", "a"]) == 1
+    out = capsys.readouterr().out
+    assert "single point of failure u:a" in out and "reached by no other actuator" in out
+
+
+def test_place_exit_0_and_sites(net, capsys):
+    assert main(["secure", net, "--place", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["sites"] == ["a", "b"] and d["optimal"] and d["verified"]
+
+
+def test_place_infeasible_names_the_losses(net, capsys):
+    assert main(["secure", net, "--place", "--k", "2"]) == 1
+    out = capsys.readouterr().out
+    assert "infeasible: these losses cannot be covered: source component {a, b}" in out
+
+
+@pytest.mark.parametrize("argv, msg", [
+    (["--inputs", "a,zz"], "unknown state name 'zz'"),
+    (["--inputs", "a", "--k", "2"], "--k 2 is larger than the design"),
+    (["--k", "0", "--inputs", "a"], "--k must be an integer >= 1"),
+    ([], "secure needs a design"),
+    (["--place", "--inputs", "a"], "--place builds a design from scratch"),
+])
+def test_bad_usage_exit_2(net, capsys, argv, msg):
+    assert main(["secure", net, *argv]) == 2
+    assert msg in capsys.readouterr().err
