@@ -133,8 +133,8 @@ def audit_links(system: StructuredSystem, *, kind: str = "inputs") -> LineLosses
     Notes
     -----
     Single links first, from :func:`~netctl.structural.robustness.contingency_sweep`
-    (one matching, dominators; near-linear): a line breaks the design if one of its
-    links does. A line of several links none of which breaks the design alone is then
+    (one matching, dominators; near-linear): a line of one link is settled there, and a
+    line breaks the design if one of its links does. A line of several links none of which breaks the design alone is then
     rechecked with all its links removed (Lin's test [1]_: one matching and one search,
     ``O(E sqrt V)`` per such line) -- jointly the links can still leave a dilation.
 
@@ -176,7 +176,12 @@ def audit_links(system: StructuredSystem, *, kind: str = "inputs") -> LineLosses
         if not before:
             lost.append(np.zeros(0, np.int64))
             continue
-        if single.any() or g.size > 1:
+        if single.any() and g.size == 1:  # the sweep already knows (no recomputation)
+            p = int(g[0])
+            breaking[j] = True
+            rank_lost[j] = bool(sweep.rank_lost[p])
+            lost.append(sweep.cut_off_states(p))
+        elif single.any() or g.size > 1:
             chk = is_controlling(_without(A, g), B)
             breaking[j] = not chk.ok
             rank_lost[j] = chk.rank < chk.n
