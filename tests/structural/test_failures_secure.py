@@ -112,3 +112,20 @@ def test_many_random_systems():
         _check_secure(seed, against="lines")
     for seed in range(7003, 7150):
         _check_secure(seed, k=2)
+
+
+def test_hub_needs_a_cut_after_a_loss():
+    # a <-> b, a -> c, a -> d: c and d share their only feeder a (a dilation), so two of
+    # b, c, d need actuators, and the source component {a, b} needs two for N-1. Worked by
+    # hand with Lin's conditions: {a, b, c} fails when b is lost (c and d then compete
+    # for a), so every state needs one; brute force agrees.
+    s = StructuredSystem.from_edges([0, 1, 0, 0], [1, 0, 2, 3], 4, state_names="abcd")
+    edges = [(0, 1), (1, 0), (0, 2), (0, 3)]
+    assert _brute_secure(4, edges, [1.0] * 4, [True] * 4, 1) == 4
+    r = secure_placement(s, method="exact", time_limit=20)
+    assert r.optimal and r.site_names == ["a", "b", "c", "d"]
+
+
+def test_line_lost_as_a_whole():
+    # seed where a two-link line breaks the design only when both links go at once
+    _check_secure(5012, against="lines")

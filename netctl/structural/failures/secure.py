@@ -334,11 +334,11 @@ def _exact(work: StructuredSystem, elig: np.ndarray, cost: np.ndarray, against: 
     pos[var] = np.arange(var.size)
     need = k + 1 if against == "elements" else 1
     cuts: list[tuple[np.ndarray, int]] = []
-    seen: set[bytes] = set()
+    seen: set[tuple[bytes, int]] = set()
 
     def add(states: np.ndarray, rhs: int) -> None:
         p = np.unique(pos[states[elig[states]]])
-        key = p.tobytes() + bytes([rhs])
+        key = (p.tobytes(), int(rhs))
         if key not in seen:
             seen.add(key)
             cuts.append((p, rhs))
