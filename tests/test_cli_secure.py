@@ -58,3 +58,17 @@ def test_place_infeasible_names_the_losses(net, capsys):
 def test_bad_usage_exit_2(net, capsys, argv, msg):
     assert main(["secure", net, *argv]) == 2
     assert msg in capsys.readouterr().err
+
+
+def test_disturbance_is_never_a_site(tmp_path, capsys):
+    # the bundled heating loop declares outdoor_temp a disturbance (DESIGN.md: a
+    # disturbance is never a state, a driver site or a sensor site)
+    from pathlib import Path
+
+    net = str(Path(__file__).resolve().parents[1] / "networks" / "heating_loop.csv")
+    assert main(["secure", net, "--inputs", "outdoor_temp"]) == 2
+    assert "'outdoor_temp' is a disturbance" in capsys.readouterr().err
+    sites = tmp_path / "s.csv"
+    sites.write_text("state,cost\noutdoor_temp,1\n")
+    assert main(["secure", net, "--place", "--sites", str(sites)]) == 2
+    assert "'outdoor_temp' is a disturbance" in capsys.readouterr().err

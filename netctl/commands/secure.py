@@ -168,7 +168,7 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
 def _place(args: argparse.Namespace, system: Any) -> int:
     from netctl.cli import CAUTION, _names_line, emit
     from netctl.structural.failures import secure_placement
-    from netctl.structural.placement import read_sites
+    from netctl.io.sites import read_sites
 
     kind = "sensors" if args.sensors else "inputs"
     sites = (read_sites(args.sites, system, kind="sensor" if args.sensors else "actuator")

@@ -14,7 +14,7 @@ import pytest
 
 from netctl import StructuredSystem
 from netctl.structural.failures import fewest_failures, line_elements, secure_placement
-from netctl.structural.placement import parse_sites
+from netctl.io.sites import parse_sites
 from tests.structural import _failures_brute as brute
 
 
