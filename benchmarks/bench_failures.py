@@ -34,14 +34,14 @@ def _t(f):
 
 def _er_with_ring(n: int):
     """The largest strongly connected component of a directed Erdős–Rényi network (mean
-    degree 4) of about ``n / 0.94`` states: every N-1 design exists there (a state
+    degree 4) of about ``n / 0.63`` states (about ``n`` states): every N-1 design exists there (a state
     without in-links would need two actuators), and ``A`` is rank deficient."""
     import scipy.sparse as sp
     from scipy.sparse.csgraph import connected_components
 
     from netctl import StructuredSystem
 
-    g = erdos_renyi(int(n / 0.94), mean_degree=4.0, seed=3)
+    g = erdos_renyi(int(n / 0.63), mean_degree=4.0, seed=3)
     _, lab = connected_components(g.A, directed=True, connection="strong")
     big = np.flatnonzero(lab == np.bincount(lab).argmax())
     sub = sp.csr_array(g.A[big][:, big])
@@ -94,7 +94,7 @@ def _place(a: argparse.Namespace) -> None:
           f"{r.sites.size} sites, cost {r.cost:g}, lower bound {r.lower_bound:g}, "
           f"gap {100 * r.gap:.1f}%, verified {r.verified}")
     r2, t_p2 = _t(lambda: secure_placement(p, method="two-step"))
-    print(f"two-step alone n={a.n_place}: {t_p2:.1f} s, {r2.sites.size} sites, "
+    print(f"two-step alone n={p.n_states}: {t_p2:.1f} s, {r2.sites.size} sites, "
           f"gap {100 * r2.gap:.1f}% (bound without the exact attempt), "
           f"verified {r2.verified}")
 
