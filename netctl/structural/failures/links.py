@@ -41,7 +41,19 @@ def _node_of(system: StructuredSystem) -> tuple[np.ndarray, list[str]]:
 def line_elements(system: StructuredSystem) -> tuple[list[np.ndarray], list[str]]:
     """Lines of ``system``: for each, the link positions (order of
     :meth:`StructuredSystem.edges`) it holds, and its label ``'a -- b'`` (both
-    directions present) or ``'a -> b'``."""
+    directions present) or ``'a -> b'``.
+
+    Notes
+    -----
+    Whole elements as the N-1 criterion counts them [1]_: one line, both directions;
+    model-internal links (inside one node of a second-order model) and self-loops are
+    never elements. Linear in the number of links (one sort).
+
+    References
+    ----------
+    .. [1] ENTSO-E, "Continental Europe Operation Handbook, Policy 3: Operational
+       Security" (N-1 criterion: loss of one element), 2009 (from memory).
+    """
     src, tgt = system.edges()
     node, node_names = _node_of(system)
     a, b = node[src], node[tgt]
