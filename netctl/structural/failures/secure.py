@@ -172,14 +172,14 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
 
     Examples
     --------
-    A path ``a -> b -> c``: surviving the loss of any one actuator takes two at its
-    head... which it does not have: only ``a`` reaches ``a``.
+    ``a <-> b -> c``: ``b`` feeds both ``a`` and ``c`` (a dilation: one of them needs an
+    actuator), and losing any one actuator must leave that true, so all three carry one.
 
     >>> from netctl import StructuredSystem
     >>> s = StructuredSystem.from_edges([0, 1, 1], [1, 0, 2], 3, state_names="abc")
     >>> r = secure_placement(s)
     >>> r.site_names, r.optimal
-    (['a', 'b'], True)
+    (['a', 'b', 'c'], True)
     """
     _validate(kind, against, k, method, time_limit)
     work = _work_system(system, kind)
