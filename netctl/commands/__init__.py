@@ -57,6 +57,10 @@ VERBS: dict[str, tuple[str, str]] = {
     "roles": ("roles", "which states every minimum driver set needs (critical / "
                        "intermittent / redundant) and which links every maximum matching "
                        "needs (critical / ordinary / redundant)"),
+    "secure": ("secure", "N-1 security of an actuator (sensor) design: single points of "
+                         "failure, fewest failures that break it, lines whose loss breaks "
+                         "it; --place: cheapest design surviving k failures or any one "
+                         "line; exit 0 secure, 1 not"),
     "strong": ("strong", "strong structural controllability: does a design hold for every "
                          "nonzero weight (exit 0 yes, 1 no), or the fewest inputs that do"),
     "sweep": ("sweep", "lose every link / state in turn (or k at a time, sampled): minimum "

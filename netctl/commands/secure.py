@@ -16,36 +16,44 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._options import (
+    CAUTION,
+    UsageError,
+    add_inputs,
+    add_outputs,
+    add_sites,
+    emit,
+    load_system,
+    names_line,
+    parse_names,
+)
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    """Add the ``secure`` verb."""
-    from netctl.structural.failures import AGAINST, SECURE_METHODS
+#: ``--against`` and ``--method`` choices (the same as
+#: :data:`netctl.structural.failures.AGAINST` / ``SECURE_METHODS``; literal here so that
+#: building the parser imports no analysis).
+_AGAINST = ("elements", "lines")
+_METHODS = ("auto", "exact", "two-step")
 
-    p = subparsers.add_parser(
-        "secure", parents=[common],
-        help="N-1 security of an actuator/sensor design: single points of failure, fewest "
-             "failures that break it, breaking lines; --place: cheapest design surviving "
-             "failures; exit 0 secure, 1 not")
-    p.add_argument("--inputs", metavar="NAMES|FILE", default=None,
-                   help="actuator design to audit: one dedicated actuator per named state "
-                        "(comma-separated, or a file with one name a line)")
-    p.add_argument("--outputs", metavar="NAMES|FILE", default=None,
-                   help="sensor design to audit: one sensor per named state")
+
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``secure`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
+    add_inputs(p, what="actuator design to audit (one dedicated actuator per state)")
+    add_outputs(p, what="sensor design to audit (one sensor per state)")
     p.add_argument("--place", action="store_true",
                    help="find the cheapest design that survives failures instead of auditing")
     p.add_argument("--sensors", action="store_true",
                    help="with --place: place sensors (observability) instead of actuators")
-    p.add_argument("--against", choices=list(AGAINST), default="elements",
+    p.add_argument("--against", choices=list(_AGAINST), default="elements",
                    help="with --place: survive the loss of any --k placed elements "
                         "(default) or of any one line")
     p.add_argument("--k", metavar="K", type=int, default=1,
                    help="failures to survive (default 1: N-1)")
-    p.add_argument("--sites", metavar="FILE", default=None,
-                   help="with --place: CSV 'state,cost' with a header: eligible states and "
-                        "their costs (default: the node table, else every state at cost 1)")
-    p.add_argument("--method", choices=list(SECURE_METHODS), default="auto",
+    add_sites(p)
+    p.add_argument("--method", choices=list(_METHODS), default="auto",
                    help="with --place: auto (exact within the time limit, else two-step), "
                         "exact, or two-step")
     p.add_argument("--time-limit", metavar="S", type=float, default=60.0,
@@ -56,7 +64,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 def _cmd_secure(args: argparse.Namespace) -> int:
     import math
 
-    from netctl.cli import UsageError, load_system, parse_names
 
     if args.k < 1:
         raise UsageError(f"--k must be an integer >= 1 (failures to survive), found {args.k}.")
@@ -97,7 +104,6 @@ def _cmd_secure(args: argparse.Namespace) -> int:
 
 def _no_disturbance_sites(system: Any, args: argparse.Namespace) -> None:
     """Disturbances are never sites. Hook for systems that carry them (``E``)."""
-    from netctl.cli import UsageError
     from netctl.io import read_state_list
 
     dist = set(getattr(system, "disturbance_names", ()) or ())
@@ -114,7 +120,6 @@ def _no_disturbance_sites(system: Any, args: argparse.Namespace) -> None:
 
 
 def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
-    from netctl.cli import CAUTION, _names_line, emit
     from netctl.structural.failures import (
         ELEMENT_CLASSES,
         audit_design,
@@ -142,7 +147,7 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
             for c, name in enumerate(ELEMENT_CLASSES[:4]):
                 idx = [au.element_names[int(j)] for j in au.of_class(name)]
                 if idx:
-                    lines.append(f"    {name} ({len(idx)}): {_names_line(idx)}")
+                    lines.append(f"    {name} ({len(idx)}): {names_line(idx)}")
             for j in au.critical[:10].tolist():
                 lines.append(f"    single point of failure {au.element_names[j]}:")
                 lines.extend(f"      - {r}" for r in au.reasons(j))
@@ -155,7 +160,7 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
                 lines.append(f"      e.g. losing {', '.join(ff.witness)}: {ff.cause}")
             br = [ll.labels[int(j)] for j in ll.breaking.nonzero()[0]]
             lines.append(f"    lines whose loss breaks it: {len(br)} of {ll.n_lines}"
-                         + (f": {_names_line(br, 10)}" if br else ""))
+                         + (f": {names_line(br, 10)}" if br else ""))
         out["audits"].append({"kind": kind, "secure": bool(ok), "elements": au.to_dict(),
                               "fewest_failures": ff.to_dict(), "lines": ll.to_dict()})
     out["secure"] = bool(secure)
@@ -166,7 +171,6 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
 
 
 def _place(args: argparse.Namespace, system: Any) -> int:
-    from netctl.cli import CAUTION, _names_line, emit
     from netctl.structural.failures import secure_placement
     from netctl.io.sites import read_sites
 
@@ -188,7 +192,7 @@ def _place(args: argparse.Namespace, system: Any) -> int:
     elif r.sites.size == 0:
         lines.append(f"  no design found: {r.guarantee}")
     else:
-        lines.append(f"  sites ({r.sites.size}): {_names_line(r.site_names)}")
+        lines.append(f"  sites ({r.sites.size}): {names_line(r.site_names)}")
         status = ("optimal (proven)" if r.optimal else
                   f"gap {100 * r.gap:.1f}% to the proven lower bound {r.lower_bound:g}")
         lines.append(f"  total cost: {r.cost:g}; {status}; method {r.method}")
