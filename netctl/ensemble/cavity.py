@@ -22,26 +22,53 @@ class CavityPrediction:
     Attributes
     ----------
     driver_fraction : float
-        Predicted ``n_D = N_D / N`` for large random networks with these degrees.
-    mean_degree : float
-        ``z = <k_in> = <k_out>``.
+        Predicted ``n_D = N_D / N`` for large random networks with these degrees: the
+        larger of ``unmatched_out`` and ``unmatched_in``, never below ``lower_bound``.
+    mean_in_degree : float
+        ``z = <k_in> = <k_out>`` = links / states (half the mean total degree
+        ``<k> = <k_in> + <k_out>`` of Liu, Slotine & Barabási).
     w1, w2, w1_hat, w2_hat : float
-        The solution of the self-consistent equations that was used.
+        The physical solution of the self-consistent equations (probabilities that a
+        cavity message says "leaf" or "matched", see Notes of
+        :func:`cavity_driver_fraction`).
     n_roots : int
-        Roots of the fixed-point equation for ``w1`` found in [0, 1] (1 or 3 typically).
+        Roots of the fixed-point equation for ``w1`` found in [0, 1]: 1 without a core,
+        3 typically when a core exists.
+    unmatched_out, unmatched_in : float
+        Fractions of out-copies (link sources) and of in-copies (link targets) that leaf
+        removal leaves isolated, i.e. unmatched.
+    core_out, core_in : float
+        Fractions of out-copies and in-copies in the core left by leaf removal.
+    lower_bound : float
+        ``max(P_out(0), P_in(0))``: states that send nothing or receive nothing.
     """
 
     driver_fraction: float
-    mean_degree: float
+    mean_in_degree: float
     w1: float
     w2: float
     w1_hat: float
     w2_hat: float
     n_roots: int
+    unmatched_out: float = 0.0
+    unmatched_in: float = 0.0
+    core_out: float = 0.0
+    core_in: float = 0.0
+    lower_bound: float = 0.0
+
+    @property
+    def mean_total_degree(self) -> float:
+        """``<k> = <k_in> + <k_out> = 2 L / N`` (the x-axis of Liu et al. 2011)."""
+        return 2.0 * self.mean_in_degree
 
     def to_dict(self) -> dict[str, Any]:
         return {"analysis": "cavity_prediction", "driver_fraction": self.driver_fraction,
-                "mean_degree": self.mean_degree, "w1": self.w1, "w2": self.w2,
+                "mean_in_degree": self.mean_in_degree,
+                "mean_total_degree": self.mean_total_degree,
+                "unmatched_out": self.unmatched_out, "unmatched_in": self.unmatched_in,
+                "core_out": self.core_out, "core_in": self.core_in,
+                "lower_bound": self.lower_bound,
+                "w1": self.w1, "w2": self.w2,
                 "w1_hat": self.w1_hat, "w2_hat": self.w2_hat, "n_roots": self.n_roots}
 
 
@@ -79,6 +106,11 @@ class _Gen:
         return float(np.dot(self.q, np.power(x, self.k1)))
 
 
+def _clean(x: float) -> float:
+    """``x`` with rounding noise below 1e-12 (a core that does not exist) shown as 0."""
+    return 0.0 if abs(x) < 1e-12 else float(x)
+
+
 def _roots(f: Callable[[float], float]) -> list[float]:
     """All sign-change roots of ``f`` on [0, 1], bracketed by a grid, refined by Brent."""
     from scipy.optimize import brentq  # here: scipy.optimize costs ~0.4 s to import
@@ -103,8 +135,10 @@ def cavity_driver_fraction(out_degrees: Any, in_degrees: Any | None = None, *,
         probabilities ``P(k)`` for ``k = 0, 1, 2, ...``. ``in_degrees`` defaults to
         ``out_degrees``.
     root : {"smallest", "largest"}
-        Which root of the fixed-point equation to use when it has several; both give the
-        same fraction (the middle one of three is unphysical and is never used).
+        Which root of the closed fixed-point equations to use when they have several.
+        Both give the same fraction: the largest roots exchange the roles of the two
+        sides (see Notes), and the fraction is the larger side. The middle one of three
+        roots is unphysical and is never used.
     distribution : bool
         Whether the arrays are probability vectors rather than degree sequences.
 
@@ -121,28 +155,57 @@ def cavity_driver_fraction(out_degrees: Any, in_degrees: Any | None = None, *,
 
     Notes
     -----
-    With ``G(x) = sum P_out(k) x^k``, ``Gh(x) = sum P_in(k) x^k``, ``H = G'/G'(1)``,
-    ``Hh = Gh'/Gh'(1)`` and ``z = <k_in> = <k_out>``, the cavity equations of [1]_
-    (Supplementary Information) are ``w1 = H(wh2)``, ``w2 = 1 - H(1 - wh1)``,
-    ``wh1 = Hh(w2)``, ``wh2 = 1 - Hh(1 - w1)``; they close as
-    ``w1 = H(1 - Hh(1 - w1))`` and ``wh1 = Hh(1 - H(1 - wh1))``. The fraction is
+    The minimum number of inputs is ``N - |M*|`` for a maximum matching ``M*`` of the
+    bipartite graph of out-copies (link sources) and in-copies (link targets) [1]_. On
+    a locally tree-like random graph it follows from leaf removal [2]_: matching a
+    vertex of degree 1 with its only neighbour is always part of some maximum matching;
+    repeated, it leaves isolated vertices (unmatched) and a core whose vertices all have
+    degree >= 2, with ``c_out`` out-copies and ``c_in`` in-copies. On a random graph
+    the core's maximum matching saturates its smaller side [3]_, so if ``u_out`` and
+    ``u_in`` are the fractions left isolated on each side,
+    ``n_D = u_out + max(0, c_out - c_in) = max(u_out, u_in)`` (both sides have ``N``
+    vertices and leaf removal matches them in pairs, so ``u_out + c_out = u_in + c_in``).
 
-    .. math:: n_D = \tfrac12\{[G(\hat w_2) + G(1-\hat w_1) - 1]
-              + [\hat G(w_2) + \hat G(1-w_1) - 1]
-              + z[\hat w_1(1-w_2) + w_1(1-\hat w_2)]\}.
+    Cavity messages (a vertex, seen from one neighbour, is a *leaf* "L" in the rest
+    of the tree, always *matched* "M" there, or undecided) give the fractions [1]_:
+    with ``G(x) = sum P_out(k) x^k``, ``Gh(x) = sum P_in(k) x^k``, ``H = G'/G'(1)``,
+    ``Hh = Gh'/Gh'(1)`` and ``z = <k_in> = <k_out>``, an out-copy says L with probability
+    ``w1 = H(wh2)`` and M with ``w2 = 1 - H(1 - wh1)``; an in-copy says L with ``wh1 =
+    Hh(w2)`` and M with ``wh2 = 1 - Hh(1 - w1)``. These close as ``w1 = H(1 - Hh(1 -
+    w1))`` and ``wh1 = Hh(1 - H(1 - wh1))``; leaf removal started from "all undecided"
+    converges to the smallest roots. Counting the pairs matched by leaf removal
+    (vertices that receive an L, less the links that carry L both ways) and the core,
+
+    .. math:: u_{out} = \hat G(1-w_1) + G(\hat w_2) - 1 + z\,w_1(1-\hat w_2),\qquad
+              u_{in} = G(1-\hat w_1) + \hat G(w_2) - 1 + z\,\hat w_1(1-w_2),
+
+    and ``n_D = max(u_out, u_in)``. Liu et al.'s formula [1]_ is their mean
+    ``(u_out + u_in) / 2``: right when the two sides' cores are equal (for example when
+    ``P_in = P_out``, or without a core), too low otherwise, even below the bound
+    ``max(P_out(0), P_in(0))`` that states sending or receiving nothing impose. The
+    largest roots give the same two values exchanged. Derivation and checks against
+    the configuration-model ensemble: ``docs/SCALE.md``.
 
     Each closed equation is solved by scanning [0, 1] on a grid of 4097 points for sign
     changes and refining every bracket with Brent's method (``scipy.optimize.brentq``);
-    a root always exists because ``f(0) >= 0 >= f(1)``. The prediction assumes an
-    uncorrelated random network (no correlation between a state's in- and out-degree,
-    nor between neighbours); self-loops and repeated links are a vanishing fraction.
-    The result is the same when in and out are exchanged (a matching of ``A`` is one
+    a root always exists because ``f(0) >= 0 >= f(1)``. The prediction holds for the
+    configuration model with these degree sequences (any correlation between a state's
+    own in- and out-degree is irrelevant: the bipartite graph never joins a state's two
+    copies); correlations between neighbours, clustering and other structure are not
+    described. It is the same when in and out are exchanged (a matching of ``A`` is one
     of ``A^T``). Cost: O(grid x distinct degrees).
 
     References
     ----------
     .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
-       networks", Nature 473:167-173, 2011. doi:10.1038/nature10011
+       networks", Nature 473:167-173, 2011, Supplementary Information Sec. IV.
+       doi:10.1038/nature10011
+    .. [2] R. M. Karp, M. Sipser, "Maximum matchings in sparse random graphs", Proc.
+       22nd IEEE FOCS, 364-375, 1981. doi:10.1109/SFCS.1981.21
+    .. [3] L. Zdeborová, M. Mézard, "The number of matchings in random graphs",
+       J. Stat. Mech. P05003, 2006 (from memory); M. Bauer, O. Golinelli, "Core
+       percolation in random graphs: a critical phenomena analysis", Eur. Phys. J. B
+       24:339-352, 2001 (from memory).
 
     Examples
     --------
@@ -180,16 +243,30 @@ def cavity_driver_fraction(out_degrees: Any, in_degrees: Any | None = None, *,
                                  "links / states.")
     z = g.mean
 
-    def pick(f: Callable[[float], float]) -> tuple[float, int]:
-        rs = _roots(f)
-        return (rs[0] if root == "smallest" else rs[-1]), len(rs)
+    def sides(w1: float, wh1: float) -> tuple[float, float, float, float, float, float]:
+        wh2 = 1.0 - gh.H(1.0 - w1)
+        w2 = 1.0 - g.H(1.0 - wh1)
+        u_out = gh.G(1.0 - w1) + g.G(wh2) - 1.0 + z * w1 * (1.0 - wh2)
+        u_in = g.G(1.0 - wh1) + gh.G(w2) - 1.0 + z * wh1 * (1.0 - w2)
+        return w2, wh2, u_out, u_in, (1.0 - w1 - w2), (1.0 - wh1 - wh2)
 
-    w1, n_roots = pick(lambda w: g.H(1.0 - gh.H(1.0 - w)) - w)
-    wh1, _ = pick(lambda w: gh.H(1.0 - g.H(1.0 - w)) - w)
-    wh2 = 1.0 - gh.H(1.0 - w1)
-    w2 = 1.0 - g.H(1.0 - wh1)
-    nd = 0.5 * ((g.G(wh2) + g.G(1.0 - wh1) - 1.0)
-                + (gh.G(w2) + gh.G(1.0 - w1) - 1.0)
-                + z * (wh1 * (1.0 - w2) + w1 * (1.0 - wh2)))
-    return CavityPrediction(driver_fraction=float(nd), mean_degree=float(z), w1=w1, w2=w2,
-                            w1_hat=wh1, w2_hat=wh2, n_roots=n_roots)
+    r_out = _roots(lambda w: g.H(1.0 - gh.H(1.0 - w)) - w)
+    r_in = _roots(lambda w: gh.H(1.0 - g.H(1.0 - w)) - w)
+    # physical solution (leaf removal from "all undecided"): the smallest roots
+    w1, wh1 = r_out[0], r_in[0]
+    w2, wh2, u_out, u_in, und_out, und_in = sides(w1, wh1)
+    # core: no L received and >= 2 undecided neighbours
+    c_out = g.G(1.0 - wh1) - g.G(wh2) - z * w1 * und_in
+    c_in = gh.G(1.0 - w1) - gh.G(w2) - z * wh1 * und_out
+    if root == "largest":  # the largest roots give the two sides exchanged
+        w1, wh1 = r_out[-1], r_in[-1]
+        w2, wh2, u_in, u_out, _, _ = sides(w1, wh1)
+    n_roots = len(r_out)
+    bound = max(g.G(0.0), gh.G(0.0))
+    # max(., bound) only absorbs rounding: the derivation gives u >= P(0) on each side
+    nd = max(u_out, u_in, bound)
+    return CavityPrediction(driver_fraction=float(nd), mean_in_degree=float(z), w1=w1, w2=w2,
+                            w1_hat=wh1, w2_hat=wh2, n_roots=n_roots,
+                            unmatched_out=float(u_out), unmatched_in=float(u_in),
+                            core_out=_clean(c_out), core_in=_clean(c_in),
+                            lower_bound=float(bound))
