@@ -15,13 +15,15 @@ import scipy.sparse as sp
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
 
-__all__ = ["GENERATORS", "generate", "erdos_renyi", "scale_free", "grid", "small_world"]
+__all__ = ["GENERATORS", "generate", "erdos_renyi", "scale_free", "grid", "small_world",
+           "static_fitness"]
 
 #: kind -> one-line description (the ``netctl generate`` choices)
 GENERATORS: dict[str, str] = {
     "erdos-renyi": "directed G(n, m): m = n * mean_degree / 2 links drawn uniformly",
-    "scale-free": "directed static model (Goh et al. 2001): P(k) ~ k^-exponent for in- "
-                  "and out-degrees",
+    "scale-free": "directed static model (Goh, Kahng & Kim 2001) with the finite-size "
+                  "correction of Cho et al. 2009: P(k) ~ k^-exponent for in- and "
+                  "out-degrees (separate exponents possible)",
     "grid": "rows x cols lattice, links both ways between neighbours, coordinates x, y",
     "small-world": "Watts-Strogatz ring: k nearest neighbours, each link rewired with "
                    "probability rewire; links both ways",
@@ -107,24 +109,65 @@ def erdos_renyi(n: int, *, mean_degree: float = 2.0, seed: int = 0) -> Structure
     return _system(src, dst, n)
 
 
-def scale_free(n: int, *, mean_degree: float = 4.0, exponent: float = 2.5,
-               seed: int = 0) -> StructuredSystem:
-    r"""Directed scale-free network from the static model.
+def static_fitness(n: int, exponent: float) -> np.ndarray:
+    r"""Fitness of the static model with Cho et al.'s finite-size correction.
 
-    Node ``i`` gets fitness :math:`w_i = (i + i_0)^{-\alpha}`, :math:`\alpha = 1/(\gamma-1)`
-    with :math:`\gamma` = ``exponent``; each of the m = n <k>/2 links picks its source
-    and (independently) its target with probability proportional to fitness, so in- and
-    out-degrees both follow :math:`P(k) \sim k^{-\gamma}` [1]_. The offset
-    :math:`i_0 = n^{1 - 1/\alpha} (10 \sqrt{2} (1 - \alpha))^{1/\alpha}` for
-    :math:`\gamma < 3` removes the finite-size cut-off correlations [2]_ (``i_0 = 1``
-    otherwise). Self-loops and repeated links are redrawn.
+    :math:`w_i = (i + i_0)^{-\alpha}` for ``i = 0 .. n-1``, :math:`\alpha = 1/(\gamma - 1)`
+    [1]_. For :math:`2 < \gamma < 3` the offset
+    :math:`i_0 = n^{1 - 1/(2\alpha)} (10 \sqrt{2} (1 - \alpha))^{1/\alpha}` [2]_ caps the
+    largest expected degree at the order of :math:`\sqrt{\langle k \rangle n}` (the
+    structural cut-off), so that hubs do not force repeated links and degree
+    correlations; ``i_0 = 1`` for :math:`\gamma \ge 3`, where the natural cut-off
+    :math:`n^{1/(\gamma-1)}` is already below it.
 
     References
     ----------
     .. [1] K.-I. Goh, B. Kahng, D. Kim, "Universal behavior of load distribution in
        scale-free networks", Phys. Rev. Lett. 87:278701 (2001).
        doi:10.1103/PhysRevLett.87.278701
-    .. [2] M. Catanzaro, R. Pastor-Satorras, "Analytic solution of a static scale-free
+    .. [2] Y. S. Cho, J. S. Kim, J. Park, B. Kahng, D. Kim, "Percolation transitions in
+       scale-free networks under the Achlioptas process", Phys. Rev. Lett. 103:135702
+       (2009). doi:10.1103/PhysRevLett.103.135702 (authors from memory)
+
+    Examples
+    --------
+    >>> w = static_fitness(10**5, 2.2)
+    >>> bool(w[0] > w[1] > w[-1])
+    True
+    """
+    alpha = 1.0 / (exponent - 1.0)
+    i0 = 1.0
+    if exponent < 3:
+        i0 = max(1.0, n ** (1.0 - 1.0 / (2.0 * alpha))
+                 * (10.0 * np.sqrt(2.0) * (1.0 - alpha)) ** (1.0 / alpha))
+    return np.asarray((np.arange(n) + i0) ** (-alpha), np.float64)
+
+
+def scale_free(n: int, *, mean_degree: float = 4.0, exponent: float = 2.5,
+               exponent_in: float | None = None, exponent_out: float | None = None,
+               seed: int = 0) -> StructuredSystem:
+    r"""Directed scale-free network from the static model with finite-size correction.
+
+    Every node gets an out-fitness and an in-fitness from :func:`static_fitness` (Goh,
+    Kahng & Kim's static model [1]_ with the offset of Cho et al. [2]_), with the degree
+    exponents ``exponent_out`` and ``exponent_in`` (both default to ``exponent``). Each
+    of the m = n <k>/2 links picks its source with probability proportional to
+    out-fitness and, independently, its target proportional to in-fitness, so
+    :math:`P(k_{out}) \sim k^{-\gamma_{out}}` and :math:`P(k_{in}) \sim k^{-\gamma_{in}}`,
+    with the largest degrees of the order of :math:`\sqrt{\langle k \rangle n}` for
+    exponents below 3. A node's in- and out-fitness ranks are independent random
+    permutations (no in/out-degree correlation). Self-loops and repeated links are
+    redrawn.
+
+    References
+    ----------
+    .. [1] K.-I. Goh, B. Kahng, D. Kim, "Universal behavior of load distribution in
+       scale-free networks", Phys. Rev. Lett. 87:278701 (2001).
+       doi:10.1103/PhysRevLett.87.278701
+    .. [2] Y. S. Cho, J. S. Kim, J. Park, B. Kahng, D. Kim, "Percolation transitions in
+       scale-free networks under the Achlioptas process", Phys. Rev. Lett. 103:135702
+       (2009). doi:10.1103/PhysRevLett.103.135702 (authors from memory)
+    .. [3] M. Catanzaro, R. Pastor-Satorras, "Analytic solution of a static scale-free
        network model", Eur. Phys. J. B 44:241-248 (2005).
 
     Examples
@@ -134,24 +177,29 @@ def scale_free(n: int, *, mean_degree: float = 4.0, exponent: float = 2.5,
     6000
     """
     _check(n, "n", 2)
+    g_out = exponent if exponent_out is None else exponent_out
+    g_in = exponent if exponent_in is None else exponent_in
     _check(exponent, "exponent", 2.0 + 1e-9)
+    _check(g_out, "exponent_out", 2.0 + 1e-9)
+    _check(g_in, "exponent_in", 2.0 + 1e-9)
     m = int(round(n * mean_degree / 2))
     _check(mean_degree, "mean_degree", 0, 0.5 * (n - 1))
     if m > _MAX_LINKS:
         raise OptionError(f"{m} links is more than netctl generates ({_MAX_LINKS}).")
-    alpha = 1.0 / (exponent - 1.0)
-    i0 = 1.0
-    if exponent < 3:
-        i0 = max(1.0, n ** (1 - 1 / alpha) * (10 * np.sqrt(2) * (1 - alpha)) ** (1 / alpha))
-    w = (np.arange(n) + i0) ** (-alpha)
-    cdf = np.cumsum(w)
-    cdf /= cdf[-1]
     rng = np.random.default_rng(seed)
+    cdfs = []
+    for gamma in (g_out, g_in):
+        cdf = np.cumsum(static_fitness(n, gamma))
+        cdf /= cdf[-1]
+        cdfs.append(cdf)
+
+    # in-fitness rank i belongs to node perm_in[i]: independent of the out-fitness rank
+    perm_in = rng.permutation(n).astype(np.int64)
 
     def draw(k: int) -> tuple[np.ndarray, np.ndarray]:
-        s = np.minimum(np.searchsorted(cdf, rng.random(k), side="right"), n - 1)
-        d = np.minimum(np.searchsorted(cdf, rng.random(k), side="right"), n - 1)
-        return s.astype(np.int64), d.astype(np.int64)
+        s = np.minimum(np.searchsorted(cdfs[0], rng.random(k), side="right"), n - 1)
+        d = np.minimum(np.searchsorted(cdfs[1], rng.random(k), side="right"), n - 1)
+        return s.astype(np.int64), perm_in[d]
 
     src, dst = _draw_links(m, n, rng, draw)
     # node labels shuffled so that the index carries no information about the degree
@@ -242,6 +290,7 @@ def small_world(n: int, *, k: int = 4, rewire: float = 0.1, seed: int = 0) -> St
 
 
 def generate(kind: str, n: int, *, mean_degree: float = 4.0, exponent: float = 2.5,
+             exponent_in: float | None = None, exponent_out: float | None = None,
              k: int = 4, rewire: float = 0.1, seed: int = 0) -> StructuredSystem:
     """One of :data:`GENERATORS` by name (``grid`` makes a near-square lattice of ``n``
     nodes: ``rows = floor(sqrt(n))``, ``cols = ceil(n / rows)``, trimmed to ``n``)."""
@@ -251,7 +300,8 @@ def generate(kind: str, n: int, *, mean_degree: float = 4.0, exponent: float = 2
     if kind == "erdos-renyi":
         return erdos_renyi(n, mean_degree=mean_degree, seed=seed)
     if kind == "scale-free":
-        return scale_free(n, mean_degree=mean_degree, exponent=exponent, seed=seed)
+        return scale_free(n, mean_degree=mean_degree, exponent=exponent,
+                          exponent_in=exponent_in, exponent_out=exponent_out, seed=seed)
     if kind == "small-world":
         return small_world(n, k=k, rewire=rewire, seed=seed)
     _check(n, "n", 1)

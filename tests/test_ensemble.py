@@ -417,3 +417,33 @@ def test_cli_compare_unreachable_scheduler(tmp_path, capsys, monkeypatch):
 
 if os.name != "posix":  # pragma: no cover
     pytestmark = pytest.mark.skip(reason="process-start tests assume POSIX")
+
+
+# ---------------------------------------------------------------- Erdős–Rényi null
+def test_erdos_renyi_null_matches_the_poisson_cavity_value():
+    # The Erdős–Rényi null keeps only N and L, so its ensemble mean is the directed ER
+    # value: the closed form of Liu, Slotine & Barabasi 2011 (SI Sec. IV) at
+    # <k> = 2L/N [LIU]. Tolerance: 4 standard errors of the mean + 5/N (finite size).
+    from netctl.generate import scale_free
+
+    n = 20000
+    g = scale_free(n, mean_degree=4.0, exponent=2.2, seed=3)
+    r = compare_to_null(g, null="erdos-renyi", samples=16, seed=5, executor="serial")
+    se = r.std / math.sqrt(r.n_samples) / n
+    assert abs(r.mean / n - _er_fraction_scalar(2 * g.n_links / n)) < 4 * se + 5 / n
+    assert any("Erdős–Rényi ensemble" in note for note in r.notes)
+    # heavy tails make the network much harder to control than its ER null [LIU, Fig. 3]
+    assert r.z_score > 10
+    assert r.to_dict()["null"] == "erdos-renyi"
+
+
+def test_random_links_has_no_self_loops_and_uniform_ends():
+    from netctl.ensemble import random_links
+
+    s, t = random_links(50, 200_000, seed=1)
+    assert (s != t).all()
+    # every ordered pair of distinct states equally likely: chi-square on sources and
+    # targets (scipy.stats), common practice, no source
+    from scipy.stats import chisquare
+    assert chisquare(np.bincount(s, minlength=50)).pvalue > 1e-4
+    assert chisquare(np.bincount(t, minlength=50)).pvalue > 1e-4

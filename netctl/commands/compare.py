@@ -24,7 +24,8 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     p = subparsers.add_parser(name, parents=[common], help=help)
     p.add_argument("--null", choices=list(NULL_MODELS), default="degree",
                    help="null model: degree = configuration model (stub matching; default), "
-                        "swap = degree-preserving link swaps of the network itself")
+                        "swap = degree-preserving link swaps of the network itself, "
+                        "erdos-renyi = as many links placed uniformly at random")
     add_samples(p, default=100, help="null-model samples (default 100)")
     add_seed(p, default=None, help="random seed; the same seed gives the same samples on any "
              "executor (default: fresh, printed so the run can be repeated)")

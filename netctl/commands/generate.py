@@ -29,6 +29,10 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                    help="mean total degree <k> = 2 links / nodes (erdos-renyi, scale-free)")
     p.add_argument("--exponent", type=float, default=2.5,
                    help="degree exponent gamma > 2 (scale-free)")
+    p.add_argument("--exponent-in", type=float, default=None, metavar="GAMMA",
+                   help="in-degree exponent (scale-free; default: --exponent)")
+    p.add_argument("--exponent-out", type=float, default=None, metavar="GAMMA",
+                   help="out-degree exponent (scale-free; default: --exponent)")
     p.add_argument("--neighbours", type=int, default=4,
                    help="ring neighbours k, even (small-world)")
     p.add_argument("--rewire", type=float, default=0.1,
@@ -45,6 +49,7 @@ def _cmd_generate(args: argparse.Namespace) -> int:
     from netctl.io import detect_format, write
 
     g = generate(args.kind, args.nodes, mean_degree=args.mean_degree, exponent=args.exponent,
+                 exponent_in=args.exponent_in, exponent_out=args.exponent_out,
                  k=args.neighbours, rewire=args.rewire, seed=args.seed)
     fmt = args.to or detect_format(args.output)
     write(g, args.output, fmt)

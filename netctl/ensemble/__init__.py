@@ -1,7 +1,8 @@
 """Null models, analytic predictions, and one executor for many independent runs.
 
 * :func:`configuration_model`, :func:`degree_preserving_swaps`: degree-preserving
-  randomizations on edge arrays (seeded, array code).
+  randomizations on edge arrays (seeded, array code); :func:`random_links`: the
+  Erdős–Rényi null that keeps only the numbers of states and links.
 * :func:`cavity_driver_fraction`: the driver-node fraction predicted from in/out-degree
   distributions (Liu, Slotine & Barabási 2011).
 * :func:`compare_to_null`: observed minimum inputs against a null-model ensemble.
@@ -24,6 +25,7 @@ if TYPE_CHECKING:
         degree_preserving_swaps,
         degree_sequences,
         n_unmatched,
+        random_links,
     )
 
 #: name -> submodule; loaded on first access (the cavity prediction needs scipy.optimize,
@@ -42,6 +44,7 @@ _LAZY: dict[str, str] = {
     "degree_sequences": "netctl.ensemble.null",
     "n_unmatched": "netctl.ensemble.null",
     "null_sample_inputs": "netctl.ensemble.compare",
+    "random_links": "netctl.ensemble.null",
     "run_tasks": "netctl.ensemble.executor",
     "spawn_seeds": "netctl.ensemble.executor",
 }
@@ -60,6 +63,7 @@ __all__ = [
     "degree_sequences",
     "n_unmatched",
     "null_sample_inputs",
+    "random_links",
     "run_tasks",
     "spawn_seeds",
 ]

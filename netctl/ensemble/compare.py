@@ -15,6 +15,7 @@ from netctl.ensemble.null import (
     degree_preserving_swaps,
     degree_sequences,
     n_unmatched,
+    random_links,
 )
 from netctl.errors import InvalidSystemError, OptionError
 from netctl.system import StructuredSystem
@@ -105,6 +106,15 @@ class NullComparison:
         }
 
 
+def _poisson_pmf(mean: float) -> np.ndarray:
+    """Poisson probabilities P(k), k = 0 .. mean + 12 sqrt(mean) + 30, renormalized."""
+    from scipy.stats import poisson
+
+    k = np.arange(int(mean + 12 * np.sqrt(mean) + 30))
+    p = poisson.pmf(k, mean)
+    return np.asarray(p / p.sum(), np.float64)
+
+
 def null_sample_inputs(index: int, seed: np.random.SeedSequence, shared: Any) -> int:
     """Minimum inputs of one null-model sample (an executor task; see :func:`run_tasks`).
 
@@ -115,6 +125,8 @@ def null_sample_inputs(index: int, seed: np.random.SeedSequence, shared: Any) ->
     if null == "degree":
         out_d, in_d = degree_sequences(src, dst, n)
         s, t = configuration_model(out_d, in_d, seed=seed)
+    elif null == "erdos-renyi":
+        s, t = random_links(n, src.size, seed=seed)
     else:
         s, t, _ = degree_preserving_swaps(src, dst, n, seed=seed)
     s = np.concatenate([s, loops])
@@ -131,10 +143,12 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
     ----------
     system : StructuredSystem
         Its links (the pattern of ``A``) are randomized; inputs and weights are ignored.
-    null : {"degree", "swap"}
+    null : {"degree", "swap", "erdos-renyi"}
         ``degree``: configuration model [2]_ (stub matching, every in- and out-degree
         exact, a few repeated links and self-loops allowed). ``swap``: edge swaps of the
-        observed links [3]_ (no repeated links or self-loops created).
+        observed links [3]_ (no repeated links or self-loops created). ``erdos-renyi``:
+        the same numbers of states and links placed uniformly at random [4]_ (degrees
+        not kept); the note then gives this ensemble's own cavity prediction.
     samples : int
         Null-model samples (>= 1; >= 2 for a spread).
     seed : None, int or SeedSequence
@@ -165,6 +179,8 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
        (details from memory).
     .. [3] S. Maslov, K. Sneppen, "Specificity and stability in topology of protein
        networks", Science 296:910-913, 2002 (details from memory).
+    .. [4] P. Erdős, A. Rényi, "On random graphs I", Publ. Math. Debrecen 6:290-297, 1959
+       (details from memory).
 
     Examples
     --------
@@ -200,6 +216,11 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
             notes.append(f"no cavity prediction: {exc}")
     else:
         notes.append("no cavity prediction: the network has no links between states.")
+    if null == "erdos-renyi" and src.size and n > 1:
+        er = cavity_driver_fraction(_poisson_pmf(src.size / n), distribution=True)
+        notes.append(f"the cavity prediction shown is for the observed degrees; for the "
+                     f"Erdős–Rényi ensemble (Poisson degrees of mean {src.size / n:.4g}) it "
+                     f"is {er.driver_fraction:.4g} ({er.driver_fraction * n:.1f} inputs).")
     if loops.size:
         notes.append(f"{loops.size} self-loop(s) kept on their states in every sample; the "
                      "cavity prediction ignores self-loops.")

@@ -24,6 +24,7 @@ __all__ = [
     "degree_preserving_swaps",
     "degree_sequences",
     "n_unmatched",
+    "random_links",
 ]
 
 #: null model name -> what it keeps and what it randomizes (closed set for ``compare``)
@@ -33,6 +34,9 @@ NULL_MODELS: dict[str, str] = {
     "swap": "degree-preserving link swaps of the observed links (10 attempts per link): "
             "keeps every in- and out-degree exactly and never creates repeated links or "
             "self-loops",
+    "erdos-renyi": "Erdős–Rényi: the same number of states and links, each link joining "
+                   "two distinct states drawn uniformly at random (keeps only the mean "
+                   "degree; repeated links are rare and merged)",
 }
 
 
@@ -132,6 +136,41 @@ def configuration_model(out_degree: Any, in_degree: Any, *,
     targets = np.repeat(states, in_d)
     rng.shuffle(targets)
     return sources, targets
+
+
+def random_links(n_states: int, n_links: int, *,
+                 seed: Any = None) -> tuple[np.ndarray, np.ndarray]:
+    r"""Directed Erdős–Rényi null: ``n_links`` links between uniformly random states.
+
+    Each link picks its source and its target uniformly and independently among the
+    ``n_states`` states, redrawing the target of a would-be self-loop, so in- and
+    out-degrees are Poisson-like with mean ``n_links / n_states`` (the multigraph
+    version of G(n, m) [1]_; repeated links are allowed, of expected number
+    ``L^2 / (2 n^2)``, bounded for sparse networks). O(L).
+
+    References
+    ----------
+    .. [1] P. Erdős, A. Rényi, "On random graphs I", Publ. Math. Debrecen 6:290-297
+       (1959).
+
+    Examples
+    --------
+    >>> s, t = random_links(5, 8, seed=1)
+    >>> len(s), bool((s != t).all())
+    (8, True)
+    """
+    if isinstance(n_links, bool) or n_links < 0 or n_states < 0:
+        raise InvalidSystemError(f"n_states and n_links must be >= 0, found {n_states!r} "
+                                 f"and {n_links!r}.")
+    if n_links and n_states < 2:
+        raise InvalidSystemError(f"links between distinct states need at least 2 states, "
+                                 f"found {n_states}.")
+    rng = np.random.default_rng(seed)
+    src = rng.integers(0, n_states, n_links).astype(np.int64)
+    # uniform over the other n - 1 states: shift past the source
+    dst = rng.integers(0, max(n_states - 1, 1), n_links).astype(np.int64)
+    dst += dst >= src
+    return src, dst
 
 
 def degree_preserving_swaps(sources: Any, targets: Any, n_states: int, *,
