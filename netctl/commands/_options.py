@@ -29,7 +29,7 @@ if TYPE_CHECKING:
 __all__ = [
     "CAUTION", "NUMERIC_INPUTS_DEFAULT", "SHOWN", "UsageError", "add_candidates", "add_common", "add_executor_options",
     "add_format",
-    "add_inputs", "add_json", "add_model", "add_out", "add_outputs", "add_quiet",
+    "add_inputs", "add_json", "add_model", "add_out", "add_outputs", "add_quiet", "add_reading",
     "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
     "disturbance_summary", "emit",
     "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
@@ -84,12 +84,26 @@ def add_quiet(p: Any) -> None:
                         "stderr is a terminal)")
 
 
+def add_reading(p: Any) -> None:
+    """``--orientation`` (matrix files) and ``--undirected`` (edge lists): how a file's
+    links are read (see :data:`netctl.io.ORIENTATIONS`)."""
+    p.add_argument("--orientation", choices=["column-to-row", "row-to-column"], default=None,
+                   help="matrix files (.mtx, .npy, .npz, matrix CSV): column-to-row = entry "
+                        "(i, j) is the link j -> i (default, the control convention A[i, j]); "
+                        "row-to-column = entry (i, j) is the link i -> j (graph libraries' "
+                        "adjacency matrices)")
+    p.add_argument("--undirected", action="store_true",
+                   help="edge lists: every line is a link both ways")
+
+
 def add_common(p: argparse.ArgumentParser) -> None:
-    """FILE, ``--format``, ``--model``, ``--json``, ``--out``, ``--quiet``."""
+    """FILE, ``--format``, ``--model``, ``--orientation``, ``--undirected``, ``--json``,
+    ``--out``, ``--quiet``."""
     p.add_argument("file", metavar="FILE", help="network or system file "
                    "(edge list, Matrix Market, ...; see docs/FORMATS.md)")
     add_format(p)
     add_model(p)
+    add_reading(p)
     add_json(p)
     add_out(p)
     add_quiet(p)
@@ -174,11 +188,18 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
 
     When the file declares disturbances, they are noted on ``args`` so that :func:`emit`
     reports them separately in every verb's output (they are never states, never driven
-    and never sensed)."""
-    from netctl.io import read
+    and never sensed). How a matrix file (or an undirected edge list) was read is
+    recorded in ``args.file_convention``, which :func:`emit` prints and adds to the JSON.
+    """
+    from netctl.io import detect_format, file_convention, read
     from netctl.models import apply_model
 
-    system = apply_model(read(args.file, args.format), args.model)
+    orientation = getattr(args, "orientation", None)
+    undirected = bool(getattr(args, "undirected", False))
+    system = apply_model(read(args.file, args.format, orientation=orientation,
+                              undirected=undirected), args.model)
+    args.file_convention = file_convention(args.format or detect_format(args.file),
+                                           orientation=orientation, undirected=undirected)
     if system.n_disturbances:
         args._disturbances = disturbance_summary(system)
     return system
@@ -231,10 +252,15 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
     if info is not None and text:
         head, _, rest = text.partition("\n")
         text = head + "\n" + _disturbance_text(info) + ("\n" + rest if rest else "")
+    convention = getattr(args, "file_convention", None)
+    if convention:
+        text = text.rstrip("\n") + f"\n  ({convention})"
     if args.json or want_out:
         data = result() if callable(result) else result
         if info is not None and isinstance(data, dict):
             data = {**data, "disturbances": info}
+        if convention and isinstance(data, dict):
+            data = {**data, "file_convention": convention}
         payload = json.dumps(data, indent=2, sort_keys=False, default=_json_default) + "\n"
         if want_out:
             from netctl.io import atomic_write

@@ -26,6 +26,7 @@ if TYPE_CHECKING:
         degree_sequences,
         n_unmatched,
         random_links,
+        undirected_null,
     )
 
 #: name -> submodule; loaded on first access (the cavity prediction needs scipy.optimize,
@@ -45,6 +46,7 @@ _LAZY: dict[str, str] = {
     "n_unmatched": "netctl.ensemble.null",
     "null_sample_inputs": "netctl.ensemble.compare",
     "random_links": "netctl.ensemble.null",
+    "undirected_null": "netctl.ensemble.null",
     "run_tasks": "netctl.ensemble.executor",
     "spawn_seeds": "netctl.ensemble.executor",
 }
@@ -66,6 +68,7 @@ __all__ = [
     "random_links",
     "run_tasks",
     "spawn_seeds",
+    "undirected_null",
 ]
 
 

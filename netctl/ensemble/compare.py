@@ -16,6 +16,7 @@ from netctl.ensemble.null import (
     degree_sequences,
     n_unmatched,
     random_links,
+    undirected_null,
 )
 from netctl.errors import InvalidSystemError, OptionError
 from netctl.system import StructuredSystem
@@ -52,6 +53,7 @@ class NullComparison:
     prediction: CavityPrediction | None
     model: str = "given"
     notes: tuple[str, ...] = field(default=())
+    undirected: bool = False
 
     @property
     def n_samples(self) -> int:
@@ -85,6 +87,7 @@ class NullComparison:
             "analysis": "null_comparison",
             "null": self.null,
             "null_description": NULL_MODELS[self.null],
+            "undirected": self.undirected,
             "model": self.model,
             "n_states": self.n_states,
             "n_links": self.n_links,
@@ -118,11 +121,14 @@ def _poisson_pmf(mean: float) -> np.ndarray:
 def null_sample_inputs(index: int, seed: np.random.SeedSequence, shared: Any) -> int:
     """Minimum inputs of one null-model sample (an executor task; see :func:`run_tasks`).
 
-    ``shared`` is ``(null, sources, targets, n_states, loops)`` of the observed links
-    without self-loops, and the states with a self-loop (kept in place).
+    ``shared`` is ``(null, sources, targets, n_states, loops, undirected)`` of the
+    observed links without self-loops (each undirected link once when ``undirected``),
+    and the states with a self-loop (kept in place).
     """
-    null, src, dst, n, loops = shared
-    if null == "degree":
+    null, src, dst, n, loops, undirected = shared
+    if undirected:
+        s, t = undirected_null(null, src, dst, n, seed=seed)
+    elif null == "degree":
         out_d, in_d = degree_sequences(src, dst, n)
         s, t = configuration_model(out_d, in_d, seed=seed)
     elif null == "erdos-renyi":
@@ -136,7 +142,8 @@ def null_sample_inputs(index: int, seed: np.random.SeedSequence, shared: Any) ->
 
 def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: int = 100,
                     seed: Any = None, executor: str = "local", workers: int | None = None,
-                    scheduler: str | None = None) -> NullComparison:
+                    scheduler: str | None = None,
+                    undirected: bool | None = None) -> NullComparison:
     r"""Compare the minimum number of inputs with a degree-preserving null model.
 
     Parameters
@@ -155,6 +162,12 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
         The same seed gives the same samples whichever executor runs them.
     executor, workers, scheduler
         How the samples run; see :func:`netctl.ensemble.run_tasks`.
+    undirected : bool or None
+        Randomize the links as undirected ones (each link ``u -- v`` moves as a whole
+        and stays both ways; degrees are undirected degrees), see
+        :func:`netctl.ensemble.undirected_null`. ``None`` (default): when every link
+        between distinct states goes both ways. ``True`` for a network with one-way
+        links is an error.
 
     Returns
     -------
@@ -200,11 +213,19 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
     is_loop = src == dst
     loops = src[is_loop]
     src, dst = src[~is_loop], dst[~is_loop]
+    symmetric = _is_symmetric(src, dst, n)
+    if undirected is None:
+        undirected = bool(symmetric and src.size)
+    elif undirected and not symmetric:
+        raise InvalidSystemError("undirected=True needs every link between distinct states "
+                                 "to go both ways; this network has one-way links. Leave "
+                                 "it unset to randomize the links as directed.")
     observed = max(n_unmatched(np.concatenate([src, loops]), np.concatenate([dst, loops]), n),
                    1) if n else 0
     entropy, _ = spawn_seeds(seed, 0)
     counts = run_tasks(null_sample_inputs, range(int(samples)), seed=entropy,
-                       shared=(null, src, dst, n, loops), executor=executor,
+                       shared=(null, *(_halves(src, dst) if undirected else (src, dst)), n,
+                               loops, undirected), executor=executor,
                        workers=workers, scheduler=scheduler)
     notes = []
     prediction = None
@@ -216,6 +237,9 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
             notes.append(f"no cavity prediction: {exc}")
     else:
         notes.append("no cavity prediction: the network has no links between states.")
+    if undirected:
+        notes.append("every link goes both ways: the null model moves undirected links as "
+                     "undirected (degrees are undirected degrees).")
     if null == "erdos-renyi" and src.size and n > 1:
         er = cavity_driver_fraction(_poisson_pmf(src.size / n), distribution=True)
         notes.append(f"the cavity prediction shown is for the observed degrees; for the "
@@ -227,4 +251,18 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
     return NullComparison(null=null, n_states=n, n_links=system.n_links,
                           n_self_loops=int(loops.size), observed_n_inputs=int(observed),
                           samples=np.asarray(counts, np.int64), seed=entropy,
-                          prediction=prediction, model=system.model, notes=tuple(notes))
+                          prediction=prediction, model=system.model, notes=tuple(notes),
+                          undirected=bool(undirected))
+
+
+def _is_symmetric(src: np.ndarray, dst: np.ndarray, n: int) -> bool:
+    """Whether every link ``u -> v`` has its reverse ``v -> u`` (no self-loops given)."""
+    fwd = np.unique(src * np.int64(n) + dst)
+    back = np.unique(dst * np.int64(n) + src)
+    return bool(fwd.size == back.size and np.array_equal(fwd, back))
+
+
+def _halves(src: np.ndarray, dst: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Each undirected link once (``u < v``) from a symmetric link list."""
+    keep = src < dst
+    return src[keep], dst[keep]

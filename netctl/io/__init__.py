@@ -24,7 +24,8 @@ from netctl.io.npz import read_npz, write_npz
 from netctl.io.system_spec import read_system, write_system
 from netctl.system import StructuredSystem
 
-__all__ = ["FORMATS", "atomic_write", "detect_format", "read", "read_state_list", "write"]
+__all__ = ["FORMATS", "MATRIX_FORMATS", "ORIENTATIONS", "atomic_write", "detect_format",
+           "file_convention", "read", "read_state_list", "write"]
 
 Reader = Callable[..., StructuredSystem]
 Writer = Callable[[StructuredSystem, "str | os.PathLike[str]"], None]
@@ -41,6 +42,38 @@ FORMATS: dict[str, tuple[Reader, Writer | None, tuple[str, ...]]] = {
     "gml": (read_gml, write_gml, (".gml",)),
     "json": (read_nodelink, write_nodelink, (".json",)),
 }
+
+
+#: formats that hold a matrix, whose entry (i, j) needs an orientation
+MATRIX_FORMATS: tuple[str, ...] = ("mtx", "npy", "npz", "matrix-csv")
+
+#: orientation name -> what entry (i, j) of a matrix file means (closed set)
+ORIENTATIONS: dict[str, str] = {
+    "column-to-row": "entry (i, j) is the link j -> i (column j influences row i: "
+                     "A[i, j] of dx/dt = A x, the control convention)",
+    "row-to-column": "entry (i, j) is the link i -> j (row i influences column j: the "
+                     "adjacency convention of graph libraries)",
+}
+
+
+def file_convention(format: str, *, orientation: str | None = None,
+                    undirected: bool = False) -> str | None:
+    """One line saying how a file of ``format`` was read, or ``None`` when nothing needs
+    saying (a format whose links carry their own direction, read as given).
+
+    Examples
+    --------
+    >>> file_convention("mtx")
+    'matrix read as column-to-row: entry (i, j) is the link j -> i (column j influences row i: A[i, j] of dx/dt = A x, the control convention)'
+    >>> file_convention("edgelist") is None, file_convention("edgelist", undirected=True)
+    (True, 'edge list read as undirected: every line is a link both ways')
+    """
+    if format in MATRIX_FORMATS:
+        o = orientation or "column-to-row"
+        return f"matrix read as {o}: {ORIENTATIONS[o]}"
+    if undirected:
+        return "edge list read as undirected: every line is a link both ways"
+    return None
 
 
 def detect_format(path: str | os.PathLike[str]) -> str:
@@ -72,7 +105,8 @@ def _check_format(format: str) -> None:
 
 
 def read(path: str | os.PathLike[str], format: str | None = None, *,
-         model: str = "given") -> StructuredSystem:
+         model: str = "given", orientation: str | None = None,
+         undirected: bool = False) -> StructuredSystem:
     """Read a network or system file.
 
     Parameters
@@ -83,10 +117,44 @@ def read(path: str | os.PathLike[str], format: str | None = None, *,
     model : str
         Recorded as the system's model name (the model transformation itself is applied
         by :func:`netctl.models.apply_model`).
+    orientation : {"column-to-row", "row-to-column"}, optional
+        Matrix files only (:data:`MATRIX_FORMATS`): what entry (i, j) means
+        (:data:`ORIENTATIONS`). Default ``"column-to-row"``, netctl's convention
+        (``A[v, u] != 0`` for the link ``u -> v``); ``"row-to-column"`` reads the
+        adjacency matrices of graph libraries (networkx, igraph), whose entry (i, j) is
+        the link i -> j. Only ``A`` is reoriented; ``B`` and ``C`` of an ``.npz`` keep
+        their meaning.
+    undirected : bool
+        Edge lists only: every line ``u v`` is a link both ways (``u -> v`` and
+        ``v -> u``); the lines ``u v`` and ``v u`` are the same link (merged, with a
+        warning). Self-loops stay single.
+
+    Raises
+    ------
+    OptionError
+        An unknown format or orientation, ``orientation`` for a file that is not a
+        matrix, ``undirected`` for a file that is not an edge list.
     """
     fmt = format or detect_format(path)
     _check_format(fmt)
-    return FORMATS[fmt][0](path, model=model)
+    if orientation is not None:
+        if orientation not in ORIENTATIONS:
+            raise OptionError(f"unknown orientation {orientation!r}; choose one of "
+                              f"{', '.join(ORIENTATIONS)}.")
+        if fmt not in MATRIX_FORMATS:
+            raise OptionError(f"{path}: an orientation applies to matrix files "
+                              f"({', '.join(MATRIX_FORMATS)}), not to the {fmt!r} format, "
+                              "whose links name their source and target; leave it out.")
+    if undirected and fmt != "edgelist":
+        raise OptionError(f"{path}: 'undirected' applies to edge lists, not to the {fmt!r} "
+                          "format (GraphML, GML and node-link JSON say whether they are "
+                          "directed; a symmetric matrix is already both ways); leave it out.")
+    if undirected:
+        return read_edgelist(path, model=model, undirected=True)
+    system = FORMATS[fmt][0](path, model=model)
+    if orientation == "row-to-column":
+        system = system._replace(A=system.A.T.tocsr())
+    return system
 
 
 def write(system: StructuredSystem, path: str | os.PathLike[str], format: str | None = None) -> None:

@@ -15,6 +15,8 @@ numbered in numeric order; otherwise states are numbered in order of first appea
 
 from __future__ import annotations
 
+import dataclasses
+
 import gzip
 import os
 import re
@@ -522,11 +524,15 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
     return scan.result()
 
 
-def read_edgelist(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
+def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
+                  undirected: bool = False) -> StructuredSystem:
     """Read an edge list into a :class:`StructuredSystem` (no inputs).
 
     Duplicate links are merged (weights summed) and links of weight 0 are left out, each
-    with a warning that counts them; self-loops are kept as self-dynamics.
+    with a warning that counts them; self-loops are kept as self-dynamics. With
+    ``undirected=True`` every line is a link both ways: the lines ``u v`` and ``v u``
+    are one link (merged as duplicates), then each link gets its reverse with the same
+    weight.
 
     Raises
     ------
@@ -545,7 +551,15 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     (('a', 'b', 'c'), 2, True)
     """
     e = read_edge_arrays(path)
-    system = _system_from_arrays(e, path, model=model)
+    if undirected:
+        lo = np.minimum(e.sources, e.targets)
+        hi = np.maximum(e.sources, e.targets)
+        one_way = _system_from_arrays(dataclasses.replace(e, sources=lo, targets=hi), path,
+                                      model=model)
+        A = one_way.A  # row = hi >= column = lo: each link once; add its mirror
+        system = one_way._replace(A=sp.csr_array(A + sp.tril(A, k=-1, format="csr").T))
+    else:
+        system = _system_from_arrays(e, path, model=model)
     marks = _header_marks(path)
     if marks:
         system = _apply_marks(system, marks, path)
