@@ -1,0 +1,92 @@
+"""``netctl node-control FILE``: control capacity of every state (how often it is a driver
+across minimum driver sets), control centrality (``--centrality``) and the driver
+fraction by in- and out-degree (see :mod:`netctl.structural.node_control`)."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from typing import Any
+
+__all__ = ["register"]
+
+
+def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
+    p = subparsers.add_parser(
+        "node-control", parents=[common],
+        help="per-state control measures: control capacity (share of minimum driver sets "
+             "holding the state), control centrality, driver fraction by degree")
+    p.add_argument("--sweeps", type=int, default=400, metavar="K",
+                   help="sampling sweeps of minimum driver sets after burn-in (default 400)")
+    p.add_argument("--burn-in", type=int, default=50, metavar="K",
+                   help="sweeps discarded first (default 50)")
+    p.add_argument("--seed", type=int, default=0, metavar="N", help="random seed (default 0)")
+    p.add_argument("--centrality", action="store_true",
+                   help="also the control centrality of every state (one weighted matching "
+                        "a state: slow on large networks; progress on a terminal)")
+    p.add_argument("--top", type=int, default=10, metavar="K",
+                   help="states listed in the summary (default 10)")
+    p.set_defaults(func=_cmd_node_control)
+
+
+def _progress(done: int, total: int) -> None:
+    if done == total or done % max(total // 100, 1) == 0:
+        sys.stderr.write(f"\rnetctl: control centrality {done}/{total} states")
+        if done == total:
+            sys.stderr.write("\n")
+        sys.stderr.flush()
+
+
+def _cmd_node_control(args: argparse.Namespace) -> int:
+    import numpy as np
+
+    from netctl.cli import UsageError, emit, load_system
+    from netctl.structural.node_control import (
+        control_capacity,
+        control_centrality,
+        drivers_by_degree,
+    )
+
+    for name, value, low in (("--sweeps", args.sweeps, 1), ("--burn-in", args.burn_in, 0),
+                             ("--seed", args.seed, 0), ("--top", args.top, 0)):
+        if value < low:
+            raise UsageError(f"{name} must be at least {low}, found {value}.")
+    system = load_system(args)
+    n = system.n_states
+    cap = control_capacity(system, sweeps=args.sweeps, burn_in=args.burn_in, seed=args.seed)
+    table = drivers_by_degree(system, cap)
+    cent = None
+    if args.centrality:
+        tty = sys.stderr.isatty()
+        cent = control_centrality(system, progress=_progress if tty else None)
+    d: dict[str, Any] = {"analysis": "node_control", "file": args.file, "n_states": n,
+                         "n_links": system.n_links, "model": system.model,
+                         "n_unmatched": cap.n_drivers,
+                         "driver_fraction": cap.n_drivers / n if n else None,
+                         "capacity": cap.to_dict(), "by_degree": table.to_dict(),
+                         "centrality": None if cent is None else cent.to_dict()}
+    c = cap.capacity
+    between = int(np.count_nonzero((c > 0) & (c < 1)))
+    lines = [f"{args.file}: {n} nodes, {system.n_links} links, model {system.model}",
+             f"  unmatched nodes in every minimum driver set: {cap.n_drivers}"
+             + (f" (n_D = {cap.n_drivers / n:.3g})" if n else ""),
+             f"  control capacity ({cap.sweeps} sweeps after {cap.burn_in} burn-in, seed "
+             f"{cap.seed}): {int(np.count_nonzero(c == 1))} always drivers, "
+             f"{int(np.count_nonzero(c == 0))} never, {between} sometimes"]
+    some = np.flatnonzero((c > 0) & (c < 1))
+    for i in some[np.lexsort((some, -c[some]))][:args.top]:
+        lines.append(f"    {system.state_names[i]}: {c[i]:.3g} "
+                     f"(standard error {cap.standard_error[i]:.2g})")
+    if cent is not None and n:
+        k = cent.centrality
+        lines.append(f"  control centrality (largest first; generic controllable dimension "
+                     f"from that node alone, of {n}):")
+        for i in np.lexsort((np.arange(n), -k))[:args.top]:
+            lines.append(f"    {system.state_names[i]}: {int(k[i])}")
+    lines.append("  driver fraction by in-degree (degree: nodes, expected fraction of them "
+                 "that drive):")
+    lines.append("    " + "; ".join(f"{k}: {m}, {f:.3g}" for k, m, f in table.in_degree[:8]))
+    lines.append("  by out-degree:")
+    lines.append("    " + "; ".join(f"{k}: {m}, {f:.3g}" for k, m, f in table.out_degree[:8]))
+    emit(args, d, "\n".join(lines))
+    return 0
