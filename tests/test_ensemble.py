@@ -489,3 +489,26 @@ def test_compare_detects_undirected_networks_and_matches_the_cavity_value():
     assert abs(r.mean / n - r.prediction.driver_fraction) < 4 * se + 5 / n
     with pytest.raises(InvalidSystemError, match="needs every link between distinct states"):
         compare_to_null(StructuredSystem.from_edges([0], [1], 2), undirected=True)
+
+
+def test_compare_summary_labels_spread_and_keeps_small_values(tmp_path, capsys):
+    # A dense random network has a tiny driver fraction: it must print with significant
+    # digits (not "0.0000"), the spread must say which it is, and no "-0" may appear.
+    # (Printing rule: common practice, no source.)
+    rng = np.random.default_rng(3)
+    n = 2000
+    src, dst = rng.integers(0, n, 12 * n), rng.integers(0, n, 12 * n)
+    p = tmp_path / "dense.csv"
+    p.write_text("".join(f"{a},{b}\n" for a, b in zip(src, dst) if a != b))
+    assert main(["compare", str(p), "--samples", "6", "--seed", "1",
+                 "--executor", "serial"]) == 0
+    out = capsys.readouterr().out
+    assert "standard deviation" in out and "standard error of the mean" in out
+    assert "+/-" not in out and "-0 " not in out and "-0." not in out.replace("z-score", "")
+    assert "0.0000" not in out
+    observed = int(out.split("observed minimum inputs: ")[1].split()[0])
+    frac = out.split("(fraction ")[1].split(")")[0]
+    assert float(frac) == pytest.approx(observed / n, rel=0.01)
+    mean_frac = out.split("as fractions of the states: mean ")[1].split(",")[0]
+    mean = float(out.split("): mean ")[1].split(",")[0])
+    assert float(mean_frac) == pytest.approx(mean / n, rel=0.01)

@@ -33,12 +33,17 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     p.set_defaults(func=_cmd_compare)
 
 
-def _fmt(x: float | None, digits: int = 4) -> str:
-    return "undefined" if x is None else f"{x:.{digits}f}"
+def _fmt(x: float | None, digits: int = 3) -> str:
+    """``digits`` significant digits (small values stay visible), never ``-0``."""
+    if x is None:
+        return "undefined"
+    text = f"{x:.{digits}g}"
+    return text[1:] if text.startswith("-") and float(text) == 0 else text
 
 
 def _cmd_compare(args: argparse.Namespace) -> int:
     from netctl.ensemble import compare_to_null
+    from netctl.report.progress import count_progress
 
     if args.samples < 1:
         raise UsageError(f"--samples must be at least 1, found {args.samples}; use 100 or "
@@ -51,7 +56,8 @@ def _cmd_compare(args: argparse.Namespace) -> int:
         raise UsageError(f"--scheduler {args.scheduler} needs --executor dask.")
     system = load_system(args)
     r = compare_to_null(system, null=args.null, samples=args.samples, seed=args.seed,
-                        executor=args.executor, workers=args.workers, scheduler=args.scheduler)
+                        executor=args.executor, workers=args.workers, scheduler=args.scheduler,
+                        progress=count_progress("null-model samples"))
     d = r.to_dict()
     d["file"] = args.file
     n = r.n_states
@@ -60,14 +66,16 @@ def _cmd_compare(args: argparse.Namespace) -> int:
              f"  observed minimum inputs: {r.observed_n_inputs} "
              f"(fraction {_fmt(r.fraction(r.observed_n_inputs))})",
              f"  null model '{r.null}' ({r.n_samples} samples, seed {r.seed}): "
-             f"mean {r.mean:.2f}, std {r.std:.2f} "
-             f"(fraction {_fmt(r.fraction(r.mean))} +/- {_fmt(r.fraction(r.std))})",
-             f"  z-score: {_fmt(z, 2)}"
+             f"mean {_fmt(r.mean)}, standard deviation {_fmt(r.std)}, standard error of "
+             f"the mean {_fmt(r.standard_error, 2)}",
+             f"    as fractions of the states: mean {_fmt(r.fraction(r.mean))}, standard "
+             f"deviation {_fmt(r.fraction(r.std))}",
+             f"  z-score: {_fmt(z)}"
              + ("" if z is not None else " (the samples have no spread)")]
     if r.prediction is not None:
         p = r.prediction.driver_fraction
-        lines.append(f"  cavity prediction (Liu, Slotine & Barabasi 2011): fraction {p:.4f} "
-                     f"({p * n:.1f} inputs)")
+        lines.append(f"  cavity prediction (Liu, Slotine & Barabasi 2011; larger side, see "
+                     f"docs/SCALE.md): fraction {_fmt(p)} ({_fmt(p * n)} inputs)")
     for note in r.notes:
         lines.append(f"  note: {note}")
     lines.append("  (z-score: how many ensemble standard deviations the observed count lies "

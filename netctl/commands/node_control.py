@@ -5,7 +5,6 @@ fraction by in- and out-degree (see :mod:`netctl.structural.node_control`)."""
 from __future__ import annotations
 
 import argparse
-import sys
 from typing import Any
 
 __all__ = ["register"]
@@ -29,14 +28,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p.set_defaults(func=_cmd_node_control)
 
 
-def _progress(done: int, total: int) -> None:
-    if done == total or done % max(total // 100, 1) == 0:
-        sys.stderr.write(f"\rnetctl: control centrality {done}/{total} states")
-        if done == total:
-            sys.stderr.write("\n")
-        sys.stderr.flush()
-
-
 def _cmd_node_control(args: argparse.Namespace) -> int:
     import numpy as np
 
@@ -57,8 +48,10 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
     table = drivers_by_degree(system, cap)
     cent = None
     if args.centrality:
-        tty = sys.stderr.isatty()
-        cent = control_centrality(system, progress=_progress if tty else None)
+        from netctl.report.progress import count_progress
+
+        cent = control_centrality(system, progress=count_progress("control centrality, "
+                                                                  "states"))
     d: dict[str, Any] = {"analysis": "node_control", "file": args.file, "n_states": n,
                          "n_links": system.n_links, "model": system.model,
                          "n_unmatched": cap.n_drivers,

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -70,6 +71,11 @@ class NullComparison:
         return float(self.samples.std(ddof=1)) if self.samples.size > 1 else 0.0
 
     @property
+    def standard_error(self) -> float:
+        """Standard error of the ensemble mean, ``std / sqrt(samples)``."""
+        return self.std / float(np.sqrt(self.n_samples)) if self.n_samples else 0.0
+
+    @property
     def z_score(self) -> float | None:
         """``(observed - mean) / std``; ``None`` when the ensemble has no spread."""
         if self.std == 0.0:
@@ -100,6 +106,8 @@ class NullComparison:
             "null_std": self.std,
             "null_mean_fraction": self.fraction(self.mean),
             "null_std_fraction": self.fraction(self.std),
+            "null_standard_error": self.standard_error,
+            "null_standard_error_fraction": self.fraction(self.standard_error),
             "z_score": self.z_score,
             "predicted_fraction": None if pred is None else pred.driver_fraction,
             "predicted_n_inputs": None if pred is None else pred.driver_fraction * self.n_states,
@@ -143,7 +151,8 @@ def null_sample_inputs(index: int, seed: np.random.SeedSequence, shared: Any) ->
 def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: int = 100,
                     seed: Any = None, executor: str = "local", workers: int | None = None,
                     scheduler: str | None = None,
-                    undirected: bool | None = None) -> NullComparison:
+                    undirected: bool | None = None,
+                    progress: Callable[[int, int], None] | None = None) -> NullComparison:
     r"""Compare the minimum number of inputs with a degree-preserving null model.
 
     Parameters
@@ -168,6 +177,8 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
         :func:`netctl.ensemble.undirected_null`. ``None`` (default): when every link
         between distinct states goes both ways. ``True`` for a network with one-way
         links is an error.
+    progress : callable(done, total), optional
+        Called as samples finish (see :func:`netctl.ensemble.run_tasks`).
 
     Returns
     -------
@@ -225,7 +236,7 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
     entropy, _ = spawn_seeds(seed, 0)
     counts = run_tasks(null_sample_inputs, range(int(samples)), seed=entropy,
                        shared=(null, *(_halves(src, dst) if undirected else (src, dst)), n,
-                               loops, undirected), executor=executor,
+                               loops, undirected), executor=executor, progress=progress,
                        workers=workers, scheduler=scheduler)
     notes = []
     prediction = None

@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 import multiprocessing as mp
 import os
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from concurrent.futures import ProcessPoolExecutor
 from itertools import repeat
 from typing import Any
@@ -64,7 +64,8 @@ def spawn_seeds(seed: Any, n: int) -> tuple[int, list[np.random.SeedSequence]]:
 
 def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Sequence[Any], *,
               seed: Any = None, shared: Any = None, executor: str = "local",
-              workers: int | None = None, scheduler: str | None = None) -> list[Any]:
+              workers: int | None = None, scheduler: str | None = None,
+              progress: Callable[[int, int], None] | None = None) -> list[Any]:
     r"""Run ``func(item, seed, shared)`` for every item; results in item order.
 
     Parameters
@@ -84,6 +85,9 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
         Worker processes (local: default the CPUs available, at most one per task;
         Dask local cluster: default 2). Ignored for ``serial`` and for a Dask scheduler
         address (the cluster has its own).
+    progress : callable(done, total), optional
+        Called as tasks finish (in item order for local processes; the command line
+        prints it on a terminal).
     scheduler : str, optional
         Address of a running Dask scheduler (``tcp://host:8786``); only with
         ``executor="dask"``.
@@ -126,11 +130,21 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
     _, seeds = spawn_seeds(seed, len(items))
     if not items:
         return []
+    total = len(items)
+
+    def tick(results: Iterable[Any]) -> list[Any]:
+        out = []
+        for r in results:
+            out.append(r)
+            if progress is not None:
+                progress(len(out), total)
+        return out
+
     if executor == "dask":
-        return _run_dask(func, items, seeds, shared, workers, scheduler)
+        return _run_dask(func, items, seeds, shared, workers, scheduler, tick)
     n_workers = min(workers or default_workers(), len(items))
     if executor == "serial" or n_workers == 1:
-        return [func(item, s, shared) for item, s in zip(items, seeds)]
+        return tick(func(item, s, shared) for item, s in zip(items, seeds))
     ctx = _context()
     if ctx.get_start_method() == "fork":
         import netctl.ensemble._preload  # noqa: F401  (warm kernels once; workers inherit)
@@ -143,7 +157,7 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
     chunk = max(1, math.ceil(len(items) / (4 * n_workers)))
     with ProcessPoolExecutor(max_workers=n_workers, mp_context=ctx, initializer=_init_worker,
                              initargs=(shared,)) as pool:
-        return list(pool.map(_call_local, repeat(func), items, seeds, chunksize=chunk))
+        return tick(pool.map(_call_local, repeat(func), items, seeds, chunksize=chunk))
 
 
 def _context() -> Any:
@@ -188,7 +202,8 @@ def _import_dask() -> Any:
 
 
 def _run_dask(func: Callable[..., Any], items: list[Any], seeds: list[np.random.SeedSequence],
-              shared: Any, workers: int | None, scheduler: str | None) -> list[Any]:
+              shared: Any, workers: int | None, scheduler: str | None,
+              tick: Callable[[Iterable[Any]], list[Any]]) -> list[Any]:
     distributed = _import_dask()
     cluster = None
     if scheduler is not None:
@@ -207,7 +222,7 @@ def _run_dask(func: Callable[..., Any], items: list[Any], seeds: list[np.random.
         # a one-element list keeps a dict or tuple in one piece (scatter splits containers)
         shared_f = client.scatter([shared], broadcast=True)[0] if shared is not None else None
         futures = client.map(_call_dask, items, seeds, task=func, shared=shared_f, pure=False)
-        return list(client.gather(futures))
+        return tick(f.result() for f in futures)
     finally:
         client.close()
         if cluster is not None:

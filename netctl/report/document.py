@@ -264,7 +264,7 @@ _MD_SPECIAL = re.compile(r"([\\`*_{}\[\]()#+\-.!|~>])")
 def _md(text: object) -> str:
     """Markdown-safe text: HTML escaped (renderers pass raw HTML through) and Markdown
     punctuation backslash-escaped."""
-    return _MD_SPECIAL.sub(r"\\\1", html.escape(str(text), quote=True)).replace("\n", " ")
+    return _MD_SPECIAL.sub(r"\\\1", html.escape(str(text), quote=False)).replace("\n", " ")
 
 
 def _md_block(b: Block) -> list[str]:

@@ -4,11 +4,11 @@ from __future__ import annotations
 
 import sys
 import time
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from typing import TextIO
 
-__all__ = ["Progress"]
+__all__ = ["Progress", "count_progress"]
 
 
 class Progress:
@@ -66,3 +66,37 @@ class Progress:
                 took = time.perf_counter() - start
                 self.stream.write(f" {'done' if ok else 'stopped'} ({took:.1f} s)\n")
                 self.stream.flush()
+
+
+def count_progress(what: str, *, stream: TextIO | None = None,
+                   enabled: bool | None = None) -> Callable[[int, int], None] | None:
+    """A ``progress(done, total)`` callback that rewrites one stderr line ("netctl: WHAT
+    12/100"), about a hundred times in all; ``None`` when the stream is not a terminal.
+
+    Examples
+    --------
+    >>> import io
+    >>> buf = io.StringIO()
+    >>> tick = count_progress("samples", stream=buf, enabled=True)
+    >>> for k in range(1, 4):
+    ...     tick(k, 3)
+    >>> buf.getvalue().splitlines()[-1].split("\\r")[-1]
+    'netctl: samples 3/3'
+    >>> count_progress("samples", stream=io.StringIO()) is None
+    True
+    """
+    out = stream if stream is not None else sys.stderr
+    if enabled is None:
+        isatty = getattr(out, "isatty", None)
+        enabled = bool(isatty and isatty())
+    if not enabled:
+        return None
+
+    def tick(done: int, total: int) -> None:
+        if done == total or done % max(total // 100, 1) == 0:
+            out.write(f"\rnetctl: {what} {done}/{total}")
+            if done == total:
+                out.write("\n")
+            out.flush()
+
+    return tick

@@ -182,6 +182,9 @@ def test_markdown_and_json_formats(tmp_path, heating_report):
     assert "](data:image/png;base64," in md and "http" not in md
     data = json.loads((tmp_path / "r.json").read_text())
     assert [x["key"] for x in data["sections"]] == [x.key for x in report.sections]
+    # apostrophes and quotes are plain text in Markdown (CommonMark spec, "Entity and
+    # numeric character references"): no HTML entity for them, "<" and "&" still escaped
+    assert "operator's" in md and "&#x27;" not in md and "&quot;" not in md
 
 
 def test_empty_and_isolated_systems_report(tmp_path):
