@@ -251,6 +251,15 @@ def minimum_driver_sets(system: StructuredSystem, *, limit: int = 20) -> list[tu
     ``n`` (the search is combinatorial). With a perfect matching the only minimum set of
     unmatched states is empty: ``[()]``.
 
+    References
+    ----------
+    .. [1] Y.-Y. Liu, J.-J. Slotine, A.-L. Barabási, "Controllability of complex
+       networks", Nature 473:167-173, 2011 (minimum input theorem).
+       doi:10.1038/nature10011
+    .. [2] T. Jia, Y.-Y. Liu, E. Csóka, M. Pósfai, J.-J. Slotine, A.-L. Barabási,
+       "Emergence of bimodality in controlling complex networks", Nat. Commun. 4:2002,
+       2013 (minimum driver sets). doi:10.1038/ncomms3002
+
     Examples
     --------
     >>> s = StructuredSystem.from_edges([0, 1, 1, 1], [1, 2, 3, 4], 5)
@@ -384,6 +393,13 @@ def drivers_by_degree(system: StructuredSystem, capacity: ControlCapacity
                       ) -> DriversByDegree:
     """Driver fraction by in- and out-degree from control capacities (links between
     distinct states counted; a self-loop is self-dynamics, not a degree).
+
+    References
+    ----------
+    .. [1] T. Jia, A.-L. Barabási, "Control capacity and a random sampling method in
+       exploring controllability of complex networks", Sci. Rep. 3:2354, 2013 (driver
+       statistics by degree from control capacities; details from memory).
+       doi:10.1038/srep02354
 
     Examples
     --------
