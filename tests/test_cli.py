@@ -183,3 +183,11 @@ def test_out_file_gets_ordinary_permissions(capsys, tmp_path):
     umask = os.umask(0)
     os.umask(umask)
     assert (target.stat().st_mode & 0o777) == (0o666 & ~umask)
+
+
+def test_drivers_prints_the_driver_fraction(tmp_path, capsys):
+    # out-star 0 -> 1, 2, 3: N_D = 3 of 4 states (Liu, Slotine & Barabasi 2011, Fig. 1)
+    p = tmp_path / "star.csv"
+    p.write_text("0,1\n0,2\n0,3\n")
+    assert main(["drivers", str(p)]) == 0
+    assert "minimum inputs (shared): 3 (fraction of the states 0.75)" in capsys.readouterr().out

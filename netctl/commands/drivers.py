@@ -38,7 +38,9 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
     kind = "dedicated" if args.dedicated else "shared"
     where = "read" if sensors else "driven"
     lines = [f"{args.file}: {design.n_states} states, model {design.model}",
-             f"  minimum {noun} ({kind}): {design.n_inputs}",
+             f"  minimum {noun} ({kind}): {design.n_inputs}"
+             + (f" (fraction of the states {design.n_inputs / design.n_states:.3g})"
+                if design.n_states else ""),
              f"  {where} states ({design.drivers.size}): "
              + names_line(design.names(design.drivers[:SHOWN]), total=design.drivers.size)]
     if not args.dedicated and design.n_inputs < design.drivers.size:

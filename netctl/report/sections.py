@@ -326,7 +326,9 @@ def null_model_section(ctx: ReportContext) -> Section | None:
     from netctl.viz.output import figure_bytes
 
     ax = plot_null_model(r.observed_n_inputs, r.samples, label="this network",
-                         quantity="minimum number of inputs")
+                         quantity="minimum number of inputs",
+                         prediction=None if r.prediction is None
+                         else r.prediction.driver_fraction * n)
     try:
         png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
     finally:

@@ -143,7 +143,8 @@ def plot_attack_curves(curves: Mapping[str, Sequence[ArrayLike]] | Sequence[_Att
 
 def plot_null_model(observed: float, null: ArrayLike, *, ax: Axes | None = None,
                     label: str = "this network",
-                    quantity: str = "minimum number of inputs") -> Axes:
+                    quantity: str = "minimum number of inputs",
+                    prediction: float | None = None) -> Axes:
     r"""An observed value against its distribution in a degree-preserving null model.
 
     Parameters
@@ -154,6 +155,9 @@ def plot_null_model(observed: float, null: ArrayLike, *, ax: Axes | None = None,
         The same quantity on randomized networks with the same in- and out-degrees.
     ax : matplotlib Axes, optional
     label, quantity : str
+    prediction : float, optional
+        An analytic value of the same quantity (e.g. the cavity prediction times the
+        number of states), drawn as a dashed line (gid ``"netctl:prediction"``).
 
     Returns
     -------
@@ -161,7 +165,8 @@ def plot_null_model(observed: float, null: ArrayLike, *, ax: Axes | None = None,
 
     Notes
     -----
-    The title reports the null mean and standard deviation, the z-score and the share
+    Counts on the vertical axis have whole-number ticks. The title reports the null mean
+    and standard deviation (labelled "sd"), the z-score and the share
     of randomized networks at least as extreme (two-sided, empirical). Degree-preserving
     randomization keeps the degree sequence; Liu et al. (2011) found that it largely
     determines the number of driver nodes.
@@ -193,10 +198,17 @@ def plot_null_model(observed: float, null: ArrayLike, *, ax: Axes | None = None,
     line = ax.axvline(observed, color=MARKS["driver"].face, linewidth=2.4,
                       label=_plain(label))
     line.set_gid("netctl:observed")
+    if prediction is not None:
+        pline = ax.axvline(float(prediction), color=INK, linewidth=1.4, linestyle="--",
+                           label=f"cavity prediction {float(prediction):.3g}")
+        pline.set_gid("netctl:prediction")
+    from matplotlib.ticker import MaxNLocator
+
+    ax.yaxis.set_major_locator(MaxNLocator(integer=True))
     mean, sd = float(sample.mean()), float(sample.std(ddof=1)) if sample.size > 1 else 0.0
     z = (observed - mean) / sd if sd > 0 else float("nan")
     extreme = float(np.mean(np.abs(sample - mean) >= abs(observed - mean)))
-    ax.set_title(f"null mean {mean:.4g} ± {sd:.2g} (n = {sample.size}); "
+    ax.set_title(f"null mean {mean:.4g}, sd {sd:.2g} (n = {sample.size}); "
                  f"z = {z:.2f}; share as extreme {extreme:.2f}", fontsize=9, loc="left")
     ax.set_xlabel(quantity)
     ax.set_ylabel("randomized networks")

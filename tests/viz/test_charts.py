@@ -85,3 +85,19 @@ def test_weakest_modes_order_and_zero():
     assert any("uncontrollable" in t.get_text() for t in ax.texts)
     with pytest.raises(OptionError, match="5 eigenvalues but 4 measure values"):
         plot_weakest_modes(lam, val[:4])
+
+
+def test_null_model_histogram_has_whole_count_ticks_and_a_prediction_mark():
+    # counts of randomized networks are whole numbers; the analytic value gets its own
+    # mark (house rule for honest plots, common practice, no source)
+    from netctl.viz import plot_null_model
+
+    ax = plot_null_model(7, [3, 4, 4, 5, 5, 5, 6], prediction=4.4)
+    ax.figure.canvas.draw()
+    ticks = ax.get_yticks()
+    assert np.all(ticks == np.round(ticks))
+    gids = [a.get_gid() for a in ax.lines]
+    assert "netctl:prediction" in gids and "netctl:observed" in gids
+    assert "sd " in ax.get_title(loc="left") and "±" not in ax.get_title(loc="left")
+    import matplotlib.pyplot as plt
+    plt.close(ax.figure)
