@@ -335,3 +335,21 @@ def test_dominators_equal_networkx():
         g.add_edges_from((n, int(d)) for d in drivers)
         idom = nx.immediate_dominators(g, n)
         assert [idom.get(i, -1) for i in range(n)] == r.idom.tolist()
+
+
+def test_attack_curve_leaves_the_undefined_end_point_out():
+    # With every node removed N_D / N is 0/0: undefined, so no 0 is plotted there; the
+    # JSON says null and the CSV leaves the cell empty (arithmetic, no source needed).
+    import math
+
+    from netctl import StructuredSystem
+    from netctl.structural.robustness import attack_curve
+
+    s = StructuredSystem.from_edges([0, 1, 2], [1, 2, 3], 4)
+    c = attack_curve(s, elements="nodes", strategy="random", steps=4, seed=1)
+    assert c.states_left[-1] == 0 and math.isnan(c.driver_fraction[-1])
+    assert not np.isnan(c.driver_fraction[:-1]).any()
+    assert c.to_dict()["points"][-1]["driver_fraction"] is None
+    assert c.csv_lines()[-1].endswith(",0,")
+    x, y = c.xy()
+    assert math.isnan(y[-1])

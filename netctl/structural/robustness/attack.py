@@ -44,9 +44,10 @@ class AttackCurve:
 
     @property
     def driver_fraction(self) -> np.ndarray:
-        """``n_inputs / states_left`` (0 where no state is left)."""
+        """``n_inputs / states_left``; NaN where no state is left (0/0 is undefined, so
+        plots leave that point out and the JSON says ``null``)."""
         return np.where(self.states_left > 0,
-                        self.n_inputs / np.maximum(self.states_left, 1), 0.0)
+                        self.n_inputs / np.maximum(self.states_left, 1), np.nan)
 
     def to_dict(self) -> dict[str, Any]:
         return {
@@ -54,7 +55,7 @@ class AttackCurve:
             "seed": self.seed, "n_states": self.n_states, "n_links": self.n_links,
             "points": [{"n_removed": int(a), "fraction_removed": float(b),
                         "states_left": int(c), "links_left": int(d), "n_inputs": int(e),
-                        "driver_fraction": float(f)}
+                        "driver_fraction": None if f != f else float(f)}
                        for a, b, c, d, e, f in zip(self.n_removed, self.fraction_removed,
                                                    self.states_left, self.links_left,
                                                    self.n_inputs, self.driver_fraction)],
@@ -73,7 +74,8 @@ class AttackCurve:
         """CSV rows (no header; see ``AttackCurve.CSV_HEADER``)."""
         return [f"{self.strategy},{self.elements},{p['n_removed']},"
                 f"{p['fraction_removed']:.6g},{p['states_left']},{p['links_left']},"
-                f"{p['n_inputs']},{p['driver_fraction']:.6g}"
+                f"{p['n_inputs']},"
+                + ("" if p["driver_fraction"] is None else f"{p['driver_fraction']:.6g}")
                 for p in self.to_dict()["points"]]
 
 
