@@ -64,3 +64,16 @@ def test_curve_command_table_json_and_plot(tmp_path, capsys):
     assert "--mean-degrees must be comma-separated numbers" in capsys.readouterr().err
     with pytest.raises(OptionError, match="unknown family 'lattice'"):
         driver_fraction_curve("lattice", [1])
+
+
+def test_family_choices_of_the_command_are_the_library_families():
+    import argparse
+
+    from netctl.commands.curve import register
+    from netctl.ensemble.curves import CURVE_FAMILIES
+
+    parser = argparse.ArgumentParser()
+    register(parser.add_subparsers(), argparse.ArgumentParser(add_help=False), "curve", "")
+    sub = parser._subparsers._group_actions[0].choices["curve"]  # type: ignore[union-attr]
+    family = next(a for a in sub._actions if a.dest == "family")
+    assert list(family.choices) == list(CURVE_FAMILIES)

@@ -30,6 +30,9 @@ VERBS: dict[str, tuple[str, str]] = {
                        "(local processes or a Dask cluster)"),
     "compare": ("compare", "minimum inputs against a degree-preserving null model and the "
                            "analytic prediction (mean, spread, z-score)"),
+    "curve": ("curve", "driver-node fraction against mean degree for Erdos-Renyi and "
+                       "scale-free families: cavity prediction and simulation (table, JSON, "
+                       "plot)"),
     "convert": ("convert", "rewrite a network or system file in another format (see "
                            "docs/FORMATS.md)"),
     "energy": ("energy", "control energy of an input design (Gramian from its Cholesky factor: "
@@ -48,6 +51,9 @@ VERBS: dict[str, tuple[str, str]] = {
     "modes": ("modes", "how strongly the inputs reach each mode (weakest first) and the "
                        "minimum inputs for these weights (largest eigenvalue multiplicity); "
                        "exit 1 when a mode is not reached"),
+    "node-control": ("node_control", "per-node control measures: control capacity (share "
+                                     "of minimum driver sets holding the node), control "
+                                     "centrality, driver fraction by in- and out-degree"),
     "place": ("place", "cheapest actuator (sensor) placement under eligible sites, costs "
                        "and a budget; exit 0 met, 1 not met"),
     "report": ("report", "one self-contained report (--out report.html|report.md|"

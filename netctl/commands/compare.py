@@ -12,6 +12,7 @@ from netctl.commands._options import (
     add_seed,
     emit,
     load_system,
+    progress_enabled,
 )
 
 __all__ = ["register"]
@@ -57,7 +58,8 @@ def _cmd_compare(args: argparse.Namespace) -> int:
     system = load_system(args)
     r = compare_to_null(system, null=args.null, samples=args.samples, seed=args.seed,
                         executor=args.executor, workers=args.workers, scheduler=args.scheduler,
-                        progress=count_progress("null-model samples"))
+                        progress=count_progress("null-model samples",
+                                                enabled=progress_enabled(args)))
     d = r.to_dict()
     d["file"] = args.file
     n = r.n_states

@@ -6,16 +6,18 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._options import UsageError, add_json, add_out, add_quiet, add_seed, emit
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    from netctl.ensemble.curves import CURVE_FAMILIES
-
-    p = subparsers.add_parser(
-        "curve", help="driver-node fraction against mean degree for Erdos-Renyi and "
-                      "scale-free families: cavity prediction and simulation")
-    p.add_argument("--family", action="append", choices=list(CURVE_FAMILIES), default=None,
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``curve`` verb (no input file)."""
+    p = subparsers.add_parser(name, help=help)
+    # the names of netctl.ensemble.curves.CURVE_FAMILIES (not imported here: it loads
+    # scipy.optimize and numba, which parsing must not)
+    p.add_argument("--family", action="append", choices=["erdos-renyi", "scale-free"],
+                   default=None,
                    help="network family (repeat for several; default both)")
     p.add_argument("--exponents", default="2.5", metavar="G[,G...]",
                    help="degree exponents of the scale-free family (default 2.5)")
@@ -24,18 +26,16 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
     p.add_argument("--nodes", type=int, default=10_000, help="simulated size (default 10^4)")
     p.add_argument("--samples", type=int, default=5,
                    help="simulated networks per point (default 5)")
-    p.add_argument("--seed", type=int, default=0, help="random seed (default 0)")
+    add_seed(p)
     p.add_argument("--plot", metavar="FILE", default=None,
                    help="also draw the curves (.png, .svg or .pdf)")
-    p.add_argument("--json", action="store_true", help="print the full result as JSON")
-    p.add_argument("--out", metavar="FILE", default=None,
-                   help="also write the full result as JSON to FILE (atomically)")
+    add_json(p)
+    add_out(p)
+    add_quiet(p)
     p.set_defaults(func=_cmd_curve)
 
 
 def _numbers(text: str, what: str) -> list[float]:
-    from netctl.cli import UsageError
-
     try:
         return [float(x) for x in text.split(",") if x.strip()]
     except ValueError:
@@ -45,7 +45,6 @@ def _numbers(text: str, what: str) -> list[float]:
 def _cmd_curve(args: argparse.Namespace) -> int:
     import sys
 
-    from netctl.cli import UsageError, emit
     from netctl.ensemble.curves import driver_fraction_curve
 
     ks = _numbers(args.mean_degrees, "--mean-degrees")
@@ -60,7 +59,7 @@ def _cmd_curve(args: argparse.Namespace) -> int:
     for fam in args.family or ["erdos-renyi", "scale-free"]:
         for g in (gammas if fam == "scale-free" else [None]):
             jobs.append((fam, g))
-    tty = sys.stderr.isatty()
+    tty = sys.stderr.isatty() and not args.quiet
     curves = []
     for i, (fam, g) in enumerate(jobs):
         if tty:

@@ -7,19 +7,19 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._options import UsageError, add_seed, emit, load_system, progress_enabled
+
 __all__ = ["register"]
 
 
-def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
-    p = subparsers.add_parser(
-        "node-control", parents=[common],
-        help="per-state control measures: control capacity (share of minimum driver sets "
-             "holding the state), control centrality, driver fraction by degree")
+def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
+    """Add the ``node-control`` verb."""
+    p = subparsers.add_parser(name, parents=[common], help=help)
     p.add_argument("--sweeps", type=int, default=400, metavar="K",
                    help="sampling sweeps of minimum driver sets after burn-in (default 400)")
     p.add_argument("--burn-in", type=int, default=50, metavar="K",
                    help="sweeps discarded first (default 50)")
-    p.add_argument("--seed", type=int, default=0, metavar="N", help="random seed (default 0)")
+    add_seed(p)
     p.add_argument("--centrality", action="store_true",
                    help="also the control centrality of every state (one weighted matching "
                         "a state: slow on large networks; progress on a terminal)")
@@ -31,7 +31,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser) -> None:
 def _cmd_node_control(args: argparse.Namespace) -> int:
     import numpy as np
 
-    from netctl.cli import UsageError, emit, load_system
     from netctl.structural.node_control import (
         control_capacity,
         control_centrality,
@@ -50,8 +49,8 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
     if args.centrality:
         from netctl.report.progress import count_progress
 
-        cent = control_centrality(system, progress=count_progress("control centrality, "
-                                                                  "states"))
+        cent = control_centrality(system, progress=count_progress(
+            "control centrality, states", enabled=progress_enabled(args)))
     d: dict[str, Any] = {"analysis": "node_control", "file": args.file, "n_states": n,
                          "n_links": system.n_links, "model": system.model,
                          "n_unmatched": cap.n_drivers,
