@@ -279,7 +279,7 @@ def _disturbances(system: StructuredSystem) -> dict[str, Any] | None:
 
 
 def _asset(name: str) -> str:
-    return resources.files("netctl.viz").joinpath("assets", name).read_text("utf-8")
+    return resources.files("netctl.viz").joinpath("assets").joinpath(name).read_text("utf-8")
 
 
 def map_fragment(payload: dict[str, Any], *, element_id: str = "netctl-map",
