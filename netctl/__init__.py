@@ -33,6 +33,7 @@ if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
     )
     from netctl.errors import (
         InvalidSystemError,
+        MissingExtraError,
         MissingFileError,
         NetctlError,
         NetworkFileError,
@@ -90,6 +91,7 @@ _LAZY: dict[str, str] = {
     "InputDesign": "netctl.structural",
     "InvalidSystemError": "netctl.errors",
     "LinkRoles": "netctl.structural.roles",
+    "MissingExtraError": "netctl.errors",
     "MissingFileError": "netctl.errors",
     "ModalReport": "netctl.numeric",
     "NetctlError": "netctl.errors",
@@ -144,6 +146,7 @@ __all__ = [
     "InputDesign",
     "InvalidSystemError",
     "LinkRoles",
+    "MissingExtraError",
     "MissingFileError",
     "ModalReport",
     "NetctlError",
@@ -196,7 +199,8 @@ __all__ = [
 #: subpackages and modules reachable as attributes (``netctl.structural``) without an
 #: explicit import, as when the package root imported them eagerly
 _SUBMODULES = frozenset({"cli", "commands", "ensemble", "errors", "generate", "graph", "io",
-                         "models", "numeric", "report", "structural", "system", "viz"})
+                         "models", "numeric", "report", "structural", "system", "tables",
+                         "viz"})
 
 
 def __getattr__(name: str) -> Any:

@@ -15,6 +15,7 @@ __all__ = [
     "UnknownNameError",
     "OptionError",
     "MissingFileError",
+    "MissingExtraError",
 ]
 
 
@@ -54,3 +55,10 @@ class UnknownNameError(NetctlError, KeyError):
 
     def __str__(self) -> str:  # KeyError would wrap the message in quotes
         return str(self.args[0]) if self.args else ""
+
+
+class MissingExtraError(NetctlError, ImportError):
+    """An optional extra (a third-party package) is needed but not installed.
+
+    The message names the package and the ``pip install "netctl[EXTRA]"`` command.
+    """

@@ -24,6 +24,8 @@ EXPECTED = sorted([
     # numeric confirmation, exact controllability, modes and energy
     "EnergyReport", "ExactControllability", "ModalReport", "RankTest", "Verification",
     "energy", "exact_controllability", "modal_controllability", "realize", "verify",
+    # optional extras (pandas, pyarrow, pypsa, wntr) missing
+    "MissingExtraError",
 ])
 
 

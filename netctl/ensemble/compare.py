@@ -21,12 +21,13 @@ from netctl.ensemble.null import (
 )
 from netctl.errors import InvalidSystemError, OptionError
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["NullComparison", "compare_to_null", "null_sample_inputs"]
 
 
 @dataclass(frozen=True)
-class NullComparison:
+class NullComparison(ResultTables):
     """Outcome of :func:`compare_to_null`.
 
     Attributes
@@ -43,6 +44,8 @@ class NullComparison:
         The analytic fraction for the network's in/out-degree distributions; ``None``
         without links.
     """
+
+    _frame_rows = "summary"
 
     null: str
     n_states: int

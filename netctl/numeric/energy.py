@@ -19,6 +19,7 @@ from netctl.numeric.gramian import (
 from netctl.numeric.rank import _dense, _weights_of
 from netctl.numeric.verdict import Verdict, judge
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["EnergyReport", "ActuatorSelection", "NodeControllability", "gramian", "energy",
            "select_actuators", "node_controllability", "SELECT_LIMIT", "PRECISION_STATES"]
@@ -111,7 +112,7 @@ def _logdet(W: np.ndarray) -> float:
 
 
 @dataclass(frozen=True)
-class EnergyReport:
+class EnergyReport(ResultTables):
     """Outcome of :func:`energy`.
 
     Attributes
@@ -140,6 +141,9 @@ class EnergyReport:
     precision : SmallestEigenvalue or None
         With ``precision=N``: the extreme eigenvalues in ``N``-digit arithmetic.
     """
+
+    _frame_rows = "states"
+    _frame_values = ("average_controllability",)
 
     n_states: int
     n_inputs: int

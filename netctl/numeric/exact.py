@@ -24,6 +24,7 @@ from netctl.numeric.spectrum import (
     rational_matrix,
 )
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["ExactControllability", "Multiplicity", "exact_controllability", "ARITHMETIC",
            "CERTAIN_DECADES"]
@@ -52,7 +53,7 @@ class Multiplicity:
 
 
 @dataclass(frozen=True)
-class ExactControllability:
+class ExactControllability(ResultTables):
     """Outcome of :func:`exact_controllability`.
 
     Attributes
@@ -84,6 +85,9 @@ class ExactControllability:
     multiplicities : tuple of Multiplicity
         Every eigenvalue cluster with algebraic multiplicity above one.
     """
+
+    _frame_rows = "states"
+    _frame_sets = ("drivers",)
 
     n_states: int
     n_inputs: int

@@ -11,6 +11,7 @@ import scipy.linalg as la
 from netctl.numeric.rank import _dense, _weights_of, cluster_subspace, eigen_clusters
 from netctl.numeric.spectrum import jordan_clusters
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["ModeReach", "ModalReport", "modal_controllability"]
 
@@ -35,8 +36,10 @@ class ModeReach:
 
 
 @dataclass(frozen=True)
-class ModalReport:
+class ModalReport(ResultTables):
     """Outcome of :func:`modal_controllability`; ``modes`` sorted weakest first."""
+
+    _frame_rows = "summary"
 
     n_states: int
     n_inputs: int

@@ -32,6 +32,7 @@ import scipy.sparse as sp
 
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["RankTest", "LostMode", "staircase", "pbh", "modular", "sparse_certificate",
            "staircase_dimension", "MERSENNE_61", "DENSE_LIMIT"]
@@ -56,7 +57,7 @@ class LostMode:
 
 
 @dataclass(frozen=True)
-class RankTest:
+class RankTest(ResultTables):
     """Outcome of one numeric rank test.
 
     Attributes
@@ -78,6 +79,8 @@ class RankTest:
         ``modular``: bound on the probability that the dimension is too small
         (Schwartz–Zippel); ``None`` otherwise.
     """
+
+    _frame_rows = "summary"
 
     method: str
     n_states: int

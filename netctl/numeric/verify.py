@@ -20,6 +20,7 @@ from netctl.numeric.rank import (
 )
 from netctl.numeric.realize import PARAMETERIZATIONS, realize
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["Verification", "verify", "METHODS", "AUTO_DENSE_LIMIT", "UNCERTAIN_DECADES"]
 
@@ -31,7 +32,7 @@ _DETERMINISTIC = ("uniform", "given")
 
 
 @dataclass(frozen=True)
-class Verification:
+class Verification(ResultTables):
     """Outcome of :func:`verify`.
 
     Attributes
@@ -53,6 +54,8 @@ class Verification:
     findings : tuple of str
         Plain-language findings, most important first.
     """
+
+    _frame_rows = "summary"
 
     weights: str
     method: str

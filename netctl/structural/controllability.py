@@ -18,6 +18,7 @@ from netctl.structural._engine import (
     structure_of,
 )
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = [
     "ControllabilityReport",
@@ -66,7 +67,7 @@ class Dilation:
 
 
 @dataclass(frozen=True)
-class ControllabilityReport:
+class ControllabilityReport(ResultTables):
     """Outcome of :func:`controllability` (or :func:`observability`).
 
     Attributes
@@ -86,6 +87,9 @@ class ControllabilityReport:
     fix : ndarray of int
         Fewest states at which added dedicated inputs make the system controllable.
     """
+
+    _frame_rows = "states"
+    _frame_sets = ("inaccessible", "fix")
 
     kind: str
     controllable: bool

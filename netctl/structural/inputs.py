@@ -11,12 +11,13 @@ import scipy.sparse as sp
 
 from netctl.structural._engine import completion, structure_of
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["InputDesign", "minimum_inputs", "minimum_sensors", "NetworkSummary", "summarize"]
 
 
 @dataclass(frozen=True)
-class InputDesign:
+class InputDesign(ResultTables):
     """A minimum input (or sensor) design.
 
     Attributes
@@ -41,6 +42,9 @@ class InputDesign:
     n_sources_with_unmatched : int
         ``alpha``: source components that hold an unmatched state in the chosen matching.
     """
+
+    _frame_rows = "states"
+    _frame_sets = ("drivers", "unmatched")
 
     kind: str
     dedicated: bool
@@ -212,8 +216,10 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
 
 
 @dataclass(frozen=True)
-class NetworkSummary:
+class NetworkSummary(ResultTables):
     """Sizes and structural facts of a system (what ``netctl inspect`` prints)."""
+
+    _frame_rows = "summary"
 
     n_states: int
     n_links: int

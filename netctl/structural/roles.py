@@ -25,6 +25,7 @@ from netctl.graph.components import condensation_sources, strongly_connected_com
 from netctl.graph.dm import alternating_reach_cols, alternating_reach_rows
 from netctl.graph.matching import maximum_matching
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = [
     "LINK_ROLES",
@@ -135,7 +136,7 @@ def edge_classes(f: MatchingFacts) -> np.ndarray:
 
 # ---------------------------------------------------------------------- results
 @dataclass(frozen=True)
-class NodeRoles:
+class NodeRoles(ResultTables):
     """Role of every state in the minimum driver sets (see :func:`node_roles`).
 
     Attributes
@@ -154,6 +155,10 @@ class NodeRoles:
         one input suffices and a minimum driver set holds one state of every source
         component (see Notes of :func:`node_roles`).
     """
+
+    _frame_rows = "states"
+    _frame_values = ("role",)
+    _frame_labels = {"role": NODE_ROLES}
 
     n_states: int
     role: np.ndarray
@@ -209,7 +214,7 @@ class NodeRoles:
 
 
 @dataclass(frozen=True)
-class LinkRoles:
+class LinkRoles(ResultTables):
     """Role of every link of ``A`` (see :func:`link_roles`).
 
     Attributes
@@ -227,6 +232,10 @@ class LinkRoles:
         ``N_D`` after losing each link alone (exact).
     matching_size : int
     """
+
+    _frame_rows = "links"
+    _frame_values = ("role", "n_inputs_after_loss")
+    _frame_labels = {"role": LINK_ROLES}
 
     n_states: int
     sources: np.ndarray

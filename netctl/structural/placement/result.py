@@ -16,13 +16,14 @@ import scipy.sparse as sp
 
 from netctl.records import Candidates
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["Placement"]
 
 
 # ====================================================================== result
 @dataclass(frozen=True)
-class Placement:
+class Placement(ResultTables):
     """A placement of actuators (or sensors) and how good it is.
 
     Attributes
@@ -74,6 +75,9 @@ class Placement:
     guarantee : str
         What the method guarantees.
     """
+
+    _frame_rows = "states"
+    _frame_sets = ("sites", "inaccessible", "targets")
 
     kind: str
     problem: str

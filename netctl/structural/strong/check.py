@@ -27,6 +27,7 @@ from netctl.structural.strong.forcing import (
     _rules,
 )
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = [
     "StrongReport",
@@ -94,7 +95,7 @@ def forcing_closure(system: StructuredSystem, black: Any, *,
 
 # ---------------------------------------------------------------------- check
 @dataclass(frozen=True)
-class StrongReport:
+class StrongReport(ResultTables):
     """Outcome of :func:`strong_controllability`.
 
     Attributes
@@ -112,6 +113,9 @@ class StrongReport:
         For the first condition, the vertex that forced each state (``-1``: black from the
         start or never forced; values ``>= n_states`` are input columns).
     """
+
+    _frame_rows = "states"
+    _frame_sets = ("unforced",)
 
     strongly_controllable: bool
     diagonal: str

@@ -30,6 +30,7 @@ from netctl.structural.strong.forcing import (
     _rules,
 )
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["EXACT_AUTO_LIMIT", "METHODS", "StrongInputDesign", "minimum_strong_inputs"]
 
@@ -46,7 +47,7 @@ EXACT_AUTO_LIMIT = 100
 
 # ---------------------------------------------------------------------- minimum
 @dataclass(frozen=True)
-class StrongInputDesign:
+class StrongInputDesign(ResultTables):
     """A smallest (or best-found) set of dedicated inputs for strong structural
     controllability.
 
@@ -67,6 +68,9 @@ class StrongInputDesign:
     gap : int
         ``n_inputs - lower_bound`` (0 when optimal).
     """
+
+    _frame_rows = "states"
+    _frame_sets = ("drivers",)
 
     n_states: int
     n_inputs: int

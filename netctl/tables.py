@@ -1,0 +1,189 @@
+"""Results as tables and in notebooks: one implementation for every result class.
+
+Every public result dataclass mixes in :class:`ResultTables`, which gives it
+
+* ``to_frame()`` — a pandas DataFrame (pandas is the optional extra ``frames``, imported
+  only here, only when called);
+* ``_repr_html_()`` — the key findings as a small HTML table, which Jupyter shows when the
+  result is the last expression of a cell.
+
+A result class only *declares* what its rows are, through three class attributes:
+
+``_frame_rows``
+    ``"states"`` (one row per state, column ``state`` holds its name, so the table joins
+    onto an asset table by name), ``"links"`` (one row per link of ``A``, columns
+    ``source`` and ``target``: ``source`` influences ``target``) or ``"summary"`` (one
+    row of the scalar findings).
+``_frame_sets``
+    Fields that are sorted index arrays into the rows (``drivers``, ``critical``...):
+    each becomes a boolean column of the same name.
+``_frame_values``
+    Fields with one value per row; ``_frame_labels`` maps a field of integer codes to the
+    labels of the codes (``role`` -> ``("critical", "intermittent", "redundant")``).
+
+The scalar findings of ``to_dict()`` go to ``DataFrame.attrs`` of row tables.
+:func:`result_columns` gives the same columns as plain lists and arrays, without pandas
+(the CSV and Parquet writers in :mod:`netctl.io.tables` use it).
+"""
+
+from __future__ import annotations
+
+import html
+from collections.abc import Mapping, Sequence
+from typing import Any
+
+import numpy as np
+
+from netctl._extras import require
+
+__all__ = ["ResultTables", "result_columns", "result_frame", "result_html", "scalar_findings"]
+
+_MAX_NAMES = 10
+_MAX_ROWS = 30
+_MAX_TEXT = 240
+_CAUTION = ("Results concern a linear(ized) model of the plant; they do not replace the "
+            "operator's procedures, applicable codes or licensed engineers.")
+
+
+class ResultTables:
+    """Mixin for result dataclasses: :meth:`to_frame` and :meth:`_repr_html_`."""
+
+    _frame_rows: str = "summary"
+    _frame_sets: tuple[str, ...] = ()
+    _frame_values: tuple[str, ...] = ()
+    _frame_labels: Mapping[str, Sequence[str]] = {}
+
+    def to_frame(self) -> Any:
+        """The result as a pandas DataFrame (needs the ``frames`` extra: pandas).
+
+        One row per state (column ``state``), per link (``source``, ``target``) or one
+        summary row, as the class declares; scalar findings in ``DataFrame.attrs``.
+        """
+        return result_frame(self)
+
+    def _repr_html_(self) -> str:
+        return result_html(self)
+
+
+def _to_dict(result: Any) -> dict[str, Any]:
+    out = result.to_dict()
+    return out if isinstance(out, dict) else {}
+
+
+def _is_scalar(v: Any) -> bool:
+    return v is None or isinstance(v, (bool, int, float, str, np.generic))
+
+
+def scalar_findings(result: Any) -> dict[str, Any]:
+    """The scalar entries of ``result.to_dict()`` (numbers, strings, booleans, None)."""
+    return {k: (v.item() if isinstance(v, np.generic) else v)
+            for k, v in _to_dict(result).items() if _is_scalar(v)}
+
+
+def result_columns(result: Any) -> tuple[str, dict[str, Any]]:
+    """``(rows, columns)``: the kind of rows and the table as name -> list or array.
+
+    Needs no pandas. See the module docstring for how the columns are chosen.
+    """
+    rows = getattr(result, "_frame_rows", "summary")
+    labels = getattr(result, "_frame_labels", {})
+    cols: dict[str, Any] = {}
+    if rows == "summary":
+        return rows, {k: [v] for k, v in scalar_findings(result).items()}
+    names = list(result.state_names)
+    if rows == "states":
+        count = len(names)
+        cols["state"] = names
+    elif rows == "links":
+        src = np.asarray(result.sources, np.int64)
+        dst = np.asarray(result.targets, np.int64)
+        count = int(src.size)
+        cols["source"] = [names[i] for i in src.tolist()]
+        cols["target"] = [names[i] for i in dst.tolist()]
+    else:  # a class declared something else: a programming error, not user input
+        raise ValueError(f"_frame_rows must be 'states', 'links' or 'summary', found {rows!r}.")
+    for f in getattr(result, "_frame_sets", ()):
+        idx = getattr(result, f)
+        if idx is None:
+            continue
+        mask = np.zeros(count, bool)
+        mask[np.asarray(idx, np.int64)] = True
+        cols[f] = mask
+    for f in getattr(result, "_frame_values", ()):
+        vals = np.asarray(getattr(result, f))
+        if vals.shape != (count,):
+            raise ValueError(f"{type(result).__name__}.{f} has shape {vals.shape}, expected "
+                             f"one value per row ({count}).")
+        if f in labels:
+            lab = list(labels[f])
+            cols[f] = [lab[int(c)] for c in vals.tolist()]
+        else:
+            cols[f] = vals
+    return rows, cols
+
+
+def result_frame(result: Any) -> Any:
+    """``result`` as a pandas DataFrame (see :class:`ResultTables`)."""
+    pd = require("pandas", f"{type(result).__name__}.to_frame()")
+    _, cols = result_columns(result)
+    frame = pd.DataFrame(cols)
+    frame.attrs.update(scalar_findings(result))
+    frame.attrs["result"] = type(result).__name__
+    return frame
+
+
+def _short(text: str) -> str:
+    return text if len(text) <= _MAX_TEXT else text[:_MAX_TEXT - 1] + "\u2026"
+
+
+def _names_text(names: Sequence[Any]) -> str:
+    head = ", ".join(str(x) for x in names[:_MAX_NAMES])
+    more = len(names) - _MAX_NAMES
+    return f"({len(names)}) {head}" + (f", \u2026 and {more} more" if more > 0 else "")
+
+
+def _finding_text(v: Any) -> str | None:
+    if _is_scalar(v):
+        return "\u2014" if v is None else str(v.item() if isinstance(v, np.generic) else v)
+    if isinstance(v, (list, tuple)) and all(_is_scalar(x) for x in v):
+        return _names_text(list(v))
+    if isinstance(v, Mapping) and v and all(_is_scalar(x) for x in v.values()):
+        if len(v) <= _MAX_NAMES:
+            return ", ".join(f"{k}: {x}" for k, x in v.items())
+        kinds: dict[str, int] = {}
+        for x in v.values():
+            kinds[str(x)] = kinds.get(str(x), 0) + 1
+        return f"({len(v)}) " + ", ".join(f"{k}: {c}" for k, c in sorted(kinds.items()))
+    if isinstance(v, (list, tuple)):
+        return f"({len(v)} entries; see to_dict())"
+    return None
+
+
+def result_html(result: Any) -> str:
+    """Key findings of ``result`` as a small self-contained HTML fragment.
+
+    Every entry of ``to_dict()`` that is a number, a string, a list of names or a
+    mapping of scalars becomes a row (long lists are cut to their first ten names);
+    all text is HTML-escaped.
+    """
+    d = _to_dict(result)
+    title = type(result).__name__
+    analysis = d.get("analysis")
+    rows: list[str] = []
+    for k, v in d.items():
+        if k == "analysis":
+            continue
+        text = _finding_text(v)
+        if text is None:
+            continue
+        rows.append(f"<tr><th style=\"text-align:left\">{html.escape(str(k))}</th>"
+                    f"<td style=\"text-align:left\">{html.escape(_short(text))}</td></tr>")
+        if len(rows) >= _MAX_ROWS:
+            rows.append(f"<tr><td colspan=\"2\">\u2026 {len(d) - _MAX_ROWS} more entries in "
+                        "to_dict()</td></tr>")
+            break
+    head = html.escape(title) + (f" <small>({html.escape(str(analysis))})</small>"
+                                 if analysis else "")
+    return (f"<div class=\"netctl-result\"><p><strong>{head}</strong></p>"
+            f"<table>{''.join(rows)}</table>"
+            f"<p><small>{html.escape(_CAUTION)}</small></p></div>")
