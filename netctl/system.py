@@ -316,7 +316,10 @@ class StructuredSystem:
         """Build a system from dense or sparse ``A`` (and optionally ``B``, ``C``).
 
         The nonzero entries are the pattern; with ``weighted=True`` (default) their
-        values are kept as weights. Boolean matrices are read as patterns.
+        values are kept as weights. Boolean matrices are read as patterns. ``A[v, u] != 0``
+        means state ``u`` influences state ``v``: an *adjacency* matrix ``M`` with
+        ``M[u, v]`` for the edge ``u -> v`` (the networkx, igraph and
+        ``scipy.sparse.csgraph`` convention) is passed as ``M.T``.
         """
         n = _shape(A, "A")[0]
         if B is None:
@@ -340,10 +343,19 @@ class StructuredSystem:
     ) -> StructuredSystem:
         """Build a system from a networkx ``DiGraph`` or ``Graph``.
 
-        An undirected edge means influence in both directions. Node attributes named in
+        An edge ``u -> v`` of the graph means state ``u`` influences state ``v``
+        (``A[v, u] != 0``): note that ``networkx.to_scipy_sparse_array(graph)`` is the
+        *transpose* of ``A``. An undirected edge means influence in both directions;
+        parallel edges of a multigraph are merged (with a warning). Node attributes named in
         :data:`NODE_COLUMNS` fill the node table; other scalar attributes are carried in
         the table too. ``weight`` names the edge attribute holding weights.
         """
+        if isinstance(graph, type) or not all(
+                hasattr(graph, a) for a in ("nodes", "edges", "is_directed")):
+            raise InvalidSystemError(
+                f"from_networkx expected a networkx Graph or DiGraph object, found "
+                f"{type(graph).__name__}; for an igraph graph use from_igraph, for a numpy "
+                "or scipy.sparse matrix from_matrices.")
         nodes_list = list(graph.nodes())
         index = {v: i for i, v in enumerate(nodes_list)}
         edges = list(graph.edges(data=True))
@@ -373,8 +385,17 @@ class StructuredSystem:
     ) -> StructuredSystem:
         """Build a system from an igraph ``Graph`` (undirected edges mean both directions).
 
-        Vertex attribute ``name`` gives the state names when present.
+        An edge ``u -> v`` means state ``u`` influences state ``v`` (``A[v, u] != 0``;
+        ``graph.get_adjacency()`` is the transpose of ``A``). Vertex attribute ``name``
+        gives the state names when present (``_nx_name`` when the graph came from
+        ``igraph.Graph.from_networkx``).
         """
+        if isinstance(graph, type) or not all(
+                hasattr(graph, a) for a in ("vcount", "get_edgelist", "is_directed")):
+            raise InvalidSystemError(
+                f"from_igraph expected an igraph Graph object, found {type(graph).__name__}; "
+                "for a networkx graph use from_networkx, for a numpy or scipy.sparse matrix "
+                "from_matrices.")
         n = graph.vcount()
         el = np.asarray(graph.get_edgelist(), dtype=np.int64).reshape(-1, 2)
         src, dst = el[:, 0], el[:, 1]
@@ -384,9 +405,10 @@ class StructuredSystem:
             src, dst = np.concatenate([src, dst[~loops]]), np.concatenate([dst, src[~loops]])
             if w is not None:
                 w = np.concatenate([w, w[~loops]])
-        names = graph.vs["name"] if "name" in graph.vs.attributes() else None
-        attrs = [{k: graph.vs[i][k] for k in graph.vs.attributes() if k != "name"}
-                 for i in range(n)]
+        vattrs = graph.vs.attributes()
+        label = "name" if "name" in vattrs else "_nx_name" if "_nx_name" in vattrs else None
+        names = [str(v) for v in graph.vs[label]] if label is not None else None
+        attrs = [{k: graph.vs[i][k] for k in vattrs if k != label} for i in range(n)]
         return cls.from_edges(src, dst, n, weights=w, state_names=names, inputs=inputs,
                               nodes=_node_table_from_attrs(attrs), model=model)
 
