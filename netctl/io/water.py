@@ -64,7 +64,7 @@ def _check(wn: Any) -> None:
 
 
 def _coords(node: Any) -> tuple[float, float]:
-    c = getattr(node, "coordinates", None)
+    c: Any = getattr(node, "coordinates", None)
     try:
         return float(c[0]), float(c[1])
     except (TypeError, IndexError, ValueError):
