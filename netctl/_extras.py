@@ -17,6 +17,7 @@ __all__ = ["EXTRAS", "require"]
 EXTRAS: dict[str, tuple[str, str]] = {
     "pandas": ("pandas", "frames"),
     "pyarrow": ("pyarrow", "parquet"),
+    "pyarrow.parquet": ("pyarrow", "parquet"),
     "pypsa": ("pypsa", "pypsa"),
     "wntr": ("wntr", "water"),
     "pandapower": ("pandapower", "power"),
