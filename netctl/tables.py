@@ -35,14 +35,14 @@ from typing import Any
 import numpy as np
 
 from netctl._extras import require
+from netctl._meta import CAUTION
 
 __all__ = ["ResultTables", "result_columns", "result_frame", "result_html", "scalar_findings"]
 
 _MAX_NAMES = 10
 _MAX_ROWS = 30
 _MAX_TEXT = 240
-_CAUTION = ("Results concern a linear(ized) model of the plant; they do not replace the "
-            "operator's procedures, applicable codes or licensed engineers.")
+_CAUTION = CAUTION
 
 
 class ResultTables:
