@@ -57,6 +57,10 @@ COLUMNS: dict[str, list[str]] = {
 }
 
 
+#: Columns added before ``warnings, error`` when some file declares disturbances.
+DISTURBANCE_COLUMNS: list[str] = ["n_disturbances", "disturbances"]
+
+
 def _roles_module() -> Any:
     try:
         from netctl.structural import roles
@@ -156,6 +160,14 @@ def _analyse(path: str, shared: dict[str, Any]) -> dict[str, Any]:
     from netctl.models import apply_model
 
     system = apply_model(read(path, shared["format"]), shared["model"])
+    out = _analyse_system(system, shared)
+    if system.n_disturbances:  # reported apart: never states, never driven or sensed
+        out["n_disturbances"] = system.n_disturbances
+        out["disturbances"] = ";".join(system.disturbance_names)
+    return out
+
+
+def _analyse_system(system: Any, shared: dict[str, Any]) -> dict[str, Any]:
     task = shared["task"]
     n = system.n_states
     if task == "drivers":
@@ -238,7 +250,11 @@ def _cmd_batch(args: argparse.Namespace) -> int:
               "inputs": args.inputs, "outputs": args.outputs}
     rows = run_tasks(batch_row, files, seed=0, shared=shared, executor=args.executor,
                      workers=args.workers, scheduler=args.scheduler)
-    columns = ["file", "task", "model"] + COLUMNS[args.task] + ["warnings", "error"]
+    disturbed = [r for r in rows if r.get("n_disturbances")]
+    # the disturbance columns appear only when some file declares disturbances, so a
+    # batch of files without them writes exactly the columns it always did
+    columns = (["file", "task", "model"] + COLUMNS[args.task]
+               + (DISTURBANCE_COLUMNS if disturbed else []) + ["warnings", "error"])
     try:
         with atomic_write(args.out) as fh:
             w = csv.writer(fh, lineterminator="\n")
@@ -262,6 +278,13 @@ def _cmd_batch(args: argparse.Namespace) -> int:
             lines.append(f"  skipped {len(skipped)} file(s) with unknown suffixes: "
                          + ", ".join(Path(s).name for s in skipped[:5])
                          + (" ..." if len(skipped) > 5 else "") + " (give --format to read them)")
+        if disturbed:
+            lines.append(f"  disturbances (not states, never driven or sensed) in "
+                         f"{len(disturbed)} file(s): " + ", ".join(
+                             f"{Path(r['file']).name} ({r['n_disturbances']})"
+                             for r in disturbed[:10])
+                         + (" ..." if len(disturbed) > 10 else "")
+                         + "; the CSV column 'disturbances' names them")
         if args.task == "check":
             lines.append(f"  designs that fail: {len(negative)}"
                          + (": " + ", ".join(Path(r['file']).name for r in negative[:10])

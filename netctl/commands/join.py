@@ -19,7 +19,13 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from netctl.commands._options import CAUTION, UsageError, add_inputs, emit
+from netctl.commands._options import (
+    CAUTION,
+    UsageError,
+    add_inputs,
+    disturbance_summary,
+    emit,
+)
 
 __all__ = ["register"]
 
@@ -102,6 +108,8 @@ def _cmd_join(args: argparse.Namespace) -> int:
     r = interconnection(systems, ties, inputs=inputs, separator=args.separator)
     d = r.to_dict()
     s = r.composite.system
+    if s.n_disturbances:  # emit() prints them apart, as every verb does
+        args._disturbances = disturbance_summary(s)
     lines = [f"composite of {', '.join(r.composite.subsystems)}: {s.n_states} states, "
              f"{s.n_links} links, {len(ties)} tie(s), {s.n_inputs} external input(s)"]
     if r.composite.consumed_inputs:

@@ -145,6 +145,19 @@ class SystemSpec:
                 s = s.with_inputs({u: [states[i] for i in v] for u, v in ins.items()})
             if outs:
                 s = s.with_outputs({y: [states[i] for i in v] for y, v in outs.items()})
+            # disturbances (regulated outputs) acting on (reading) some of its states:
+            # each subsystem keeps its share, under the same name
+            E = sp.csc_array(full.E[idx])
+            dcols = np.flatnonzero(np.diff(E.indptr))
+            if dcols.size:
+                s = s.with_disturbances(
+                    E[:, dcols], names=[full.disturbance_names[int(j)] for j in dcols],
+                    nodes={k: np.asarray(c)[dcols] for k, c in full.disturbance_nodes.items()})
+            H = sp.csr_array(full.H[:, idx])
+            hrows = np.flatnonzero(np.diff(H.indptr))
+            if hrows.size:
+                s = s.with_regulated(H[hrows], names=[full.regulated_names[int(r)]
+                                                      for r in hrows])
             out[sub] = s
         return out
 

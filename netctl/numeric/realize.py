@@ -111,6 +111,9 @@ def realize(system: StructuredSystem, *, weights: str = "independent",
         ``weighted=True``; its ``model`` records the parameterization
         (``"<model>+<weights>"``). For ``"swing"`` the states are ``node:pos`` and
         ``node:vel`` (``2n`` of them) unless ``system`` is already second-order.
+        Disturbances ``E`` and regulated outputs ``H`` are kept with their pattern and
+        values (under ``"swing"`` a disturbance acts on a node's velocity, as an input
+        does, and a regulated output reads its position, as a sensor does).
 
     Raises
     ------
@@ -248,12 +251,23 @@ def _swing(system: StructuredSystem, rng: np.random.Generator, tag: str) -> Stru
     b_gain = np.where(b_on_vel, 1.0 / inertia[b_node], 1.0)
     B = sp.csr_array((b_gain, (b_target, b_cols)), shape=(n2, system.n_inputs))
     if is_second_order(system):
-        C, nodes = system.C, dict(system.nodes)
+        C, E, H, nodes = system.C, system.E, system.H, dict(system.nodes)
     else:  # a sensor on a node reads its position; node attributes apply to both states
         c_rows, c_cols = _coo(system.C)
         C = sp.csr_array((system.C.tocoo().data, (c_rows, pos_idx[c_cols])),
                          shape=(system.n_outputs, n2))
+        # a disturbance is a force on the node, like an input (it enters the velocity);
+        # a regulated output reads the node's position, like a sensor
+        e = system.E.tocoo()
+        E = sp.csr_array((e.data, (vel_idx[e.row.astype(np.int64)], e.col)),
+                         shape=(n2, system.n_disturbances))
+        h = system.H.tocoo()
+        H = sp.csr_array((h.data, (h.row, pos_idx[h.col.astype(np.int64)])),
+                         shape=(system.n_regulated, n2))
         nodes = {key: np.repeat(np.asarray(col), 2) for key, col in system.nodes.items()}
     return StructuredSystem(A=A, B=B, C=C, state_names=state_names,
                             input_names=tuple(system.input_names), output_names=system.output_names,
-                            nodes=nodes, weighted=True, model=tag)
+                            nodes=nodes, weighted=True, model=tag, E=E, H=H,
+                            disturbance_names=system.disturbance_names,
+                            regulated_names=system.regulated_names,
+                            disturbance_nodes=system.disturbance_nodes)

@@ -154,12 +154,25 @@ def compose(systems: Mapping[str, StructuredSystem], ties: Sequence[Tie | Sequen
     output_names = [f"{nm}{separator}{x}" for nm in names for x in systems[nm].output_names]
     kept_inputs = [x for x, c in zip(input_names, consumed) if not c]
     models = {systems[nm].model for nm in names}
+    # disturbances and regulated outputs stay with their subsystem (block diagonal)
+    q = sum(systems[nm].n_disturbances for nm in names)
+    r_reg = sum(systems[nm].n_regulated for nm in names)
+    Efull = sp.block_diag([systems[nm].E for nm in names], format="csr") if q else \
+        sp.csr_array((N, 0))
+    Hfull = sp.block_diag([systems[nm].H for nm in names], format="csr") if r_reg else \
+        sp.csr_array((0, N))
     composite = StructuredSystem(
         A=A, B=sp.csr_array(B), C=Cfull, state_names=tuple(state_names),
         input_names=tuple(kept_inputs), output_names=tuple(output_names),
         nodes=_stack_nodes([systems[nm] for nm in names]),
         weighted=all(systems[nm].weighted for nm in names),
-        model=models.pop() if len(models) == 1 else "mixed")
+        model=models.pop() if len(models) == 1 else "mixed", E=Efull, H=Hfull,
+        disturbance_names=tuple(f"{nm}{separator}{w}" for nm in names
+                                for w in systems[nm].disturbance_names),
+        regulated_names=tuple(f"{nm}{separator}{z}" for nm in names
+                              for z in systems[nm].regulated_names),
+        disturbance_nodes=_stack_tables([systems[nm].disturbance_nodes for nm in names],
+                                        [systems[nm].n_disturbances for nm in names]))
     owner = np.repeat(np.arange(len(names), dtype=np.int64), sizes)
     return Composite(system=composite, subsystem_of_state=owner, subsystems=tuple(names),
                      offsets=offsets, consumed_inputs=tuple(x for x, c in
@@ -168,22 +181,28 @@ def compose(systems: Mapping[str, StructuredSystem], ties: Sequence[Tie | Sequen
 
 
 def _stack_nodes(parts: list[StructuredSystem]) -> dict[str, np.ndarray]:
+    return _stack_tables([p.nodes for p in parts], [p.n_states for p in parts])
+
+
+def _stack_tables(tables: list[Any], sizes: list[int]) -> dict[str, np.ndarray]:
+    """Node tables of the parts one after the other (``None`` where a part lacks a
+    column)."""
     cols: list[str] = []
-    for p in parts:
-        for c in p.nodes:
+    for t in tables:
+        for c in t:
             if c not in cols:
                 cols.append(c)
     out = {}
     for c in cols:
         arrs = []
-        for p in parts:
-            if c in p.nodes:
-                arrs.append(np.asarray(p.nodes[c], dtype=object))
+        for t, size in zip(tables, sizes):
+            if c in t:
+                arrs.append(np.asarray(t[c], dtype=object))
             else:
-                arrs.append(np.full(p.n_states, None, dtype=object))
+                arrs.append(np.full(size, None, dtype=object))
         merged = np.concatenate(arrs) if arrs else np.zeros(0, object)
-        if all(c in p.nodes and p.nodes[c].dtype != object for p in parts):
-            merged = np.concatenate([p.nodes[c] for p in parts])
+        if all(c in t and t[c].dtype != object for t in tables):
+            merged = np.concatenate([t[c] for t in tables])
         out[c] = merged
     return out
 

@@ -112,6 +112,9 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     self-dynamics (a self-loop, as under the ``self-loops`` model) the new states get one
     too. Added links get weight 1.0 in a weighted system. Removing a state removes its
     links and its input connections; inputs left acting on no state are dropped.
+    Disturbances and regulated outputs are kept (with their names and node table): new
+    states are reached by no disturbance and read by no regulated output, and a removed
+    state takes its entries of ``E`` and ``H`` with it.
     """
     add = _pairs(add_links, "add_links")
     rem = _pairs(remove_links, "remove_links")
@@ -171,10 +174,17 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     A = sp.coo_array((w2, (t2, s2)), shape=(N, N)).tocsr()
     B = sp.vstack([system.B, sp.csr_array((len(new), system.n_inputs))], format="csr")
     C = sp.hstack([system.C, sp.csr_array((system.n_outputs, len(new)))], format="csr")
+    # disturbances (E) and regulated outputs (H) follow the states: new states are
+    # reached by no disturbance and read by no regulated output
+    E = sp.vstack([system.E, sp.csr_array((len(new), system.n_disturbances))], format="csr")
+    H = sp.hstack([system.H, sp.csr_array((system.n_regulated, len(new)))], format="csr")
     nodes = _extend_nodes(system.nodes, len(new))
     grown = StructuredSystem(A=A, B=B, C=C, state_names=all_names,
                              input_names=system.input_names, output_names=system.output_names,
-                             nodes=nodes, weighted=system.weighted, model=system.model)
+                             nodes=nodes, weighted=system.weighted, model=system.model,
+                             E=E, H=H, disturbance_names=system.disturbance_names,
+                             regulated_names=system.regulated_names,
+                             disturbance_nodes=system.disturbance_nodes)
     if not rnodes:
         return grown, tuple(new), ()
     keep = np.ones(N, bool)
@@ -190,7 +200,9 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
         input_names=tuple(x for x, u in zip(grown.input_names, used) if u),
         output_names=grown.output_names,
         nodes={c: v[keep] for c, v in grown.nodes.items()}, weighted=system.weighted,
-        model=system.model)
+        model=system.model, E=grown.E[keep].tocsr(), H=grown.H[:, keep].tocsr(),
+        disturbance_names=grown.disturbance_names, regulated_names=grown.regulated_names,
+        disturbance_nodes=grown.disturbance_nodes)
     return out, tuple(new), lost_inputs
 
 
