@@ -112,6 +112,8 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
         its control path, -1 at a path's start) and ``bpred`` (predecessor on a shortest
         way from the nearest driver, -1 at drivers and unreached states); ``inputs``
         (which inputs act on each driver); ``disturbances`` when the system has them;
+        ``fragile`` (states where a single point of failure sits) and ``fragile_notes``
+        (``[state, why]`` pairs);
         ``layers`` (key, label, count, shown at start) and the summary lines.
 
     Notes
@@ -175,6 +177,10 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
     if dist is not None:
         layers.append(_Layer("disturbances", "states a disturbance acts on",
                              len({s for s in dist["hits"][1::2]}), True))
+    if marks.failures_note:
+        layers.append(_Layer("fragile", "single point of failure: losing this actuator "
+                             "or sensor alone breaks the design", int(marks.fragile.size),
+                             True))
     layers += [
         _Layer("dilations", "dilation: fed by fewer states than they number",
                int(marks.dilation.size), True),
@@ -193,6 +199,8 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
     if loops.any():
         notes.append(f"{int(loops.sum())} state(s) have a self-loop (self-dynamics); "
                      "shown in their details, not drawn.")
+    if marks.failures_note:
+        notes.append(f"Single points of failure: {marks.failures_note}.")
     notes.append("Results are about a linear(ized) model; decisions on a real plant rest "
                  "with its operators' procedures, applicable codes and licensed engineers.")
     return {
@@ -210,6 +218,8 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
         "roles": roles, "role_all": role_all,
         "mpred": mpred.tolist(), "bpred": bpred.tolist(),
         "inputs": inputs, "disturbances": dist,
+        "fragile": flat(marks.fragile),
+        "fragile_notes": [[int(i), str(t)] for i, t in marks.fragile_notes],
         "layers": [{"key": L.key, "label": L.label, "count": L.count, "on": L.on}
                    for L in layers],
         "notes": notes,

@@ -53,6 +53,17 @@ class MapMarks:
         ``None`` when not asked for.
     critical_sources, critical_targets : ndarray of int or None
         Links in every maximum matching; ``None`` when not asked for.
+    disturbed : ndarray of int
+        States some disturbance acts on directly (``E`` pattern; empty without).
+    fragile : ndarray of int
+        States where a single point of failure sits: the sites of the actuators (of a
+        given or chosen design) and of the file's sensors whose loss alone breaks
+        structural controllability (observability); see
+        :func:`netctl.structural.failures.audit_design`.
+    fragile_notes : tuple of (int, str)
+        Per such state, which element it is and what its loss costs, in words.
+    failures_note : str
+        What the single-point audit covered (or why it was not run).
     """
 
     n_states: int
@@ -71,6 +82,10 @@ class MapMarks:
     critical_targets: np.ndarray | None
     model: str
     state_names: tuple[str, ...] = field(repr=False)
+    disturbed: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64))
+    fragile: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64))
+    fragile_notes: tuple[tuple[int, str], ...] = field(default=(), repr=False)
+    failures_note: str = ""
 
     def names(self, indices: Iterable[Any]) -> list[str]:
         """State names for state indices."""
@@ -99,6 +114,14 @@ class MapMarks:
                  "cycle": bool(c)}
                 for u, v, c in zip(self.matched_sources, self.matched_targets, self.on_cycle)],
         }
+        if self.disturbed.size:
+            d["disturbed_states"] = self.names(self.disturbed)
+        if self.failures_note:
+            d["single_points_of_failure"] = {
+                "covered": self.failures_note,
+                "states": self.names(self.fragile),
+                "why": [{"state": self.state_names[i], "element": text}
+                        for i, text in self.fragile_notes]}
         if self.roles is not None:
             d["roles"] = {name: self.names(np.flatnonzero(self.roles == k))
                           for k, name in enumerate(ROLE_NAMES)}
@@ -120,7 +143,7 @@ def roles_available() -> bool:
 
 
 def map_marks(system: StructuredSystem, *, inputs: Any = None,
-              show: Iterable[str] = ()) -> MapMarks:
+              show: Iterable[str] = (), failures: bool = True) -> MapMarks:
     r"""Compute what a map of ``system`` marks: drivers, control paths, trouble spots.
 
     Parameters
@@ -132,6 +155,10 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
         design. A sequence: a dedicated input on each of those states.
     show : iterable of {"roles", "critical-links"}
         Optional layers (they need :mod:`netctl.structural.roles`).
+    failures : bool, default True
+        Mark the single points of failure: the actuators of a given or chosen design
+        and the file's sensors whose loss alone breaks the design (every actuator of a
+        minimum design is one by definition, so a minimum design is not audited).
 
     Returns
     -------
@@ -204,6 +231,8 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
     roles = crit_s = crit_t = None
     if layers:
         roles, crit_s, crit_t = _roles(system, layers)
+    fragile, notes, covered = (_single_points(system, actuated, design) if failures
+                               else (np.zeros(0, np.int64), (), ""))
     return MapMarks(
         n_states=n, design=design, drivers=actuated.driven_states(),
         n_inputs=actuated.n_inputs, controllable=report.controllable,
@@ -212,7 +241,51 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
                   else np.zeros(0, np.int64)),
         matched_sources=src, matched_targets=tgt, on_cycle=on_cycle, roles=roles,
         critical_sources=crit_s, critical_targets=crit_t, model=system.model,
-        state_names=tuple(system.state_names))
+        state_names=tuple(system.state_names), disturbed=system.disturbed_states(),
+        fragile=fragile, fragile_notes=notes, failures_note=covered)
+
+
+#: At most this many single points of failure are explained on a map (all are marked).
+EXPLAINED = 200
+
+
+def _single_points(system: StructuredSystem, actuated: StructuredSystem, design: str
+                   ) -> tuple[np.ndarray, tuple[tuple[int, str], ...], str]:
+    """States of critical actuators (given/chosen design) and critical sensors, with
+    why; and what was covered. Near-linear (no useful/useless classification)."""
+    from netctl.structural.failures import audit_design
+
+    sites: list[np.ndarray] = []
+    notes: list[tuple[int, str]] = []
+    covered: list[str] = []
+    audits = []
+    if design != "minimum" and actuated.n_inputs:
+        audits.append(("actuator", audit_design(actuated, kind="inputs", classify=False)))
+    elif design == "minimum":
+        covered.append("actuators not audited (a minimum design has no spare: every "
+                       "actuator is a single point of failure by definition)")
+    if system.n_outputs:
+        audits.append(("sensor", audit_design(system, kind="sensors", classify=False)))
+    for word, au in audits:
+        what = "controllable" if word == "actuator" else "observable"
+        if not au.works:
+            covered.append(f"{word}s not audited (the intact design is not structurally "
+                           f"{what})")
+            continue
+        crit = au.critical
+        covered.append(f"{au.n_elements} {word}(s) audited, {crit.size} single point(s) "
+                       "of failure")
+        for j, k in enumerate(crit.tolist()):
+            at = au.element_states[k]
+            sites.append(at)
+            if j < EXPLAINED:
+                why = "; ".join(au.reasons(k))
+                text = (f"{word} {au.element_names[k]}: losing it leaves the system not "
+                        f"structurally {what}" + (f" ({why})" if why else ""))
+                notes.extend((int(i), text) for i in at.tolist())
+    fragile = (np.unique(np.concatenate(sites)).astype(np.int64) if sites
+               else np.zeros(0, np.int64))
+    return fragile, tuple(sorted(notes)), "; ".join(covered)
 
 
 def _check_layers(show: Iterable[str]) -> tuple[str, ...]:

@@ -73,7 +73,8 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
     -----
     Marks follow :mod:`netctl.viz.style`: shape and fill carry the meaning, colour
     repeats it. Every artist has a gid ``"netctl:<mark>"`` (``driver``, ``suggested``,
-    ``unreached``, ``dilation``, ``state``, ``chain``, ``cycle``, ``link``,
+    ``unreached``, ``dilation``, ``fragile`` (single points of failure), ``disturbed``
+    (states a disturbance acts on), ``state``, ``chain``, ``cycle``, ``link``,
     ``critical_link``, ``role_*``, ``label``). Up to 400 links each link is an arrow;
     above that links are straight segments (one collection, rasterized in vector output
     above 2000 links, made more transparent the denser the map), marker sizes shrink
@@ -174,8 +175,10 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
         dots.set_gid(GID_PREFIX + "state")
     elif not _roles_tell(marks):
         _points(ax, pos, np.arange(n), MARKS["state"], area)
+    _points(ax, pos, marks.disturbed, MARKS["disturbed"], area)
     _points(ax, pos, marks.unreached, MARKS["unreached"], area)
     _points(ax, pos, marks.dilation, MARKS["dilation"], area)
+    _points(ax, pos, marks.fragile, MARKS["fragile"], area)  # a ring around the site
     _points(ax, pos, marks.drivers, MARKS["driver"], area)
     _points(ax, pos, marks.suggested, MARKS["suggested"], area)
     if _roles_tell(marks):
@@ -329,6 +332,10 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
         items.append(point("unreached", marks.unreached.size))
     if marks.dilation.size:
         items.append(point("dilation", marks.dilation.size))
+    if marks.fragile.size:
+        items.append(point("fragile", marks.fragile.size))
+    if marks.disturbed.size:
+        items.append(point("disturbed", marks.disturbed.size))
     if _roles_tell(marks):
         assert marks.roles is not None
         for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):

@@ -22,6 +22,10 @@ mark                   shape / fill                meaning
 ``cycle``              heavy dashed line           matched link on a control cycle
 ``link``               thin light line             any other link
 ``critical_link``      dark casing around a link   link in every maximum matching
+``fragile``            octagon ring, hollow,       single point of failure: losing this
+                       heavy violet outline        actuator (sensor) alone breaks the design
+``disturbed``          circle, hollow, dotted      a disturbance acts on this state
+                       outline
 ``role_critical``      circle, dark solid fill     driver in every minimum driver set
 ``role_intermittent``  circle, dotted hatch        driver in some minimum driver sets
 ``role_redundant``     circle, white fill          driver in no minimum driver set
@@ -68,6 +72,9 @@ _BLUE = "#2464A8"        # control chains
 _AMBER = "#D99A1E"       # control cycles (light: kept apart from the blue in grey)
 _PLUM = "#7B3F8C"        # unreached states
 _TEAL = "#13806A"        # dilation sets
+_VIOLET = "#4A148C"      # single points of failure (apart from every other colour,
+                         # also under simulated colour-vision deficiency)
+_WINE = "#6E1F45"        # disturbances (also on the interactive map)
 _STATE = "#CFCFCF"
 _LINK = "#8A8A8A"
 
@@ -81,6 +88,10 @@ MARKS: dict[str, Mark] = {
                       linewidth=1.2, size=2.2, zorder=4),
     "dilation": Mark("dilation: fed by fewer states than they number", "D", "none", _TEAL,
                      linewidth=2.0, size=3.0, zorder=5),
+    "fragile": Mark("single point of failure: its loss alone breaks the design", "8",
+                    "none", _VIOLET, linewidth=2.4, size=6.5, zorder=5.8),
+    "disturbed": Mark("a disturbance acts here (not commanded)", "o", "none", _WINE,
+                      linestyle="dotted", linewidth=1.8, size=4.6, zorder=4.5),
     "chain": Mark("control path (matched link)", None, _BLUE, _BLUE, linewidth=2.4, zorder=2.2),
     "cycle": Mark("control cycle (matched link)", None, _AMBER, _AMBER, linestyle="dashed",
                   linewidth=1.8, zorder=2.3),

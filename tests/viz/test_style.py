@@ -42,7 +42,7 @@ def _lab(lin):
 
 
 # the colour-carrying marks that can sit next to each other on one map
-COLOURED = ["driver", "unreached", "dilation", "chain", "cycle"]
+COLOURED = ["driver", "unreached", "dilation", "chain", "cycle", "fragile", "disturbed"]
 
 
 def _colour(key):

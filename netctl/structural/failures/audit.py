@@ -178,7 +178,7 @@ def _work_system(system: StructuredSystem, kind: str) -> StructuredSystem:
 
 
 def audit_design(system: StructuredSystem, *, kind: str = "inputs",
-                 max_trials: int = 64) -> DesignAudit:
+                 max_trials: int = 64, classify: bool = True) -> DesignAudit:
     r"""Classify every actuator (sensor) of the design carried by ``system``.
 
     Parameters
@@ -190,6 +190,10 @@ def audit_design(system: StructuredSystem, *, kind: str = "inputs",
     max_trials : int, default 64
         Largest number of rank tests spent per non-critical element on deciding
         useful / useless; beyond it the element is reported as ``replaceable``.
+    classify : bool, default True
+        Tell useful from useless. ``False`` finds the single points of failure only
+        (near-linear; every other element is ``replaceable``), as maps of large
+        networks need.
 
     Returns
     -------
@@ -252,8 +256,10 @@ def audit_design(system: StructuredSystem, *, kind: str = "inputs",
         critical = facts.rank_lost | (facts.cut_off > 0)
         cls[critical] = 0
         rest = np.flatnonzero(~critical)
-        if rest.size:
+        if rest.size and classify:
             cls[rest] = _classify(A, B, rest, max_trials)
+        elif rest.size:
+            cls[rest] = ELEMENT_CLASSES.index("replaceable")
     return DesignAudit(kind=kind, n_states=n, works=facts.controllable, rank=facts.rank,
                        unreached=facts.unreached, element_names=tuple(work.input_names),
                        element_states=elem_states, cls=cls, rank_lost=facts.rank_lost,

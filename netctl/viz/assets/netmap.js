@@ -7,7 +7,7 @@
  *
  * Drawing: the "base" (plain links, control paths, cycles, critical links, plain
  * states) is drawn into an off-screen canvas; the "marks" (drivers, proposed inputs,
- * unreached states, dilations, disturbances, the selection) are drawn on top every frame
+ * unreached states, dilations, disturbances, single points of failure, the selection) are drawn on top every frame
  * at a fixed size in screen pixels, with a white halo, last. While the view moves, the
  * cached base is shifted and scaled (cheap) and redrawn sharp once the view rests.
  */
@@ -29,7 +29,8 @@
     fixes: { fill: "none", stroke: "#C44E0E", size: 12 },
     unreached: { fill: "#EBDDF0", stroke: "#7B3F8C", size: 7 },
     dilations: { fill: "none", stroke: "#13806A", size: 8 },
-    disturbances: { fill: "none", stroke: "#8C2D5A", size: 12 },
+    disturbances: { fill: "none", stroke: "#6E1F45", size: 12 },
+    fragile: { fill: "none", stroke: "#4A148C", size: 16 },
     roles: { fill: ["#333333", "#F2F2F2", "#FFFFFF"], stroke: INK }
   };
   var ROLE_WORDS = ["critical (a driver in every minimum set)",
@@ -56,13 +57,21 @@
     ctx.closePath();
   }
   function circle(ctx, x, y, r) { ctx.moveTo(x + r, y); ctx.arc(x, y, r, 0, 6.2832); }
+  function octagon(ctx, x, y, r) {  // single points of failure: a ring around the site
+    for (var k = 0; k < 8; k++) {
+      var a = (k + 0.5) * 0.7853982, px = x + r * Math.cos(a), py = y + r * Math.sin(a);
+      if (k === 0) { ctx.moveTo(px, py); } else { ctx.lineTo(px, py); }
+    }
+    ctx.closePath();
+  }
 
   /* draw one kind of point mark for screen points xs/ys (arrays) */
-  function drawPoints(ctx, key, xs, ys) {
-    var st = STYLE[key], r = st.size, i, n = xs.length;
+  function drawPoints(ctx, key, xs, ys, rmax) {
+    var st = STYLE[key], r = rmax ? Math.min(st.size, rmax) : st.size, i, n = xs.length;
     if (!n) { return; }
     var shape = key === "drivers" || key === "fixes" ? triangle
-      : key === "unreached" ? square : key === "dilations" ? diamond : circle;
+      : key === "unreached" ? square : key === "dilations" ? diamond
+      : key === "fragile" ? octagon : circle;
     // halo: wide white outline under the mark, so it stands out over any link
     ctx.setLineDash([]);
     ctx.lineJoin = "round";
@@ -75,7 +84,7 @@
     if (key === "fixes") { ctx.setLineDash([3, 2]); }
     if (key === "disturbances") { ctx.setLineDash([2, 2.5]); }
     ctx.strokeStyle = st.stroke;
-    ctx.lineWidth = key === "drivers" ? 1.2 : 2.2;
+    ctx.lineWidth = key === "drivers" ? 1.2 : key === "fragile" ? 3 : 2.2;
     ctx.stroke();
     ctx.setLineDash([]);
     if (key === "unreached") {   // a cross inside the square: readable without colour
@@ -129,7 +138,7 @@
     for (i = 0; i < d.drivers.length; i++) { this.isDriver[d.drivers[i]] = 1; }
     this.flags = {};
     var self = this;
-    ["unreached", "dilations", "fixes"].forEach(function (k) {
+    ["unreached", "dilations", "fixes", "fragile"].forEach(function (k) {
       var f = new Uint8Array(n), a = d[k] || [];
       for (var j = 0; j < a.length; j++) { f[a[j]] = 1; }
       self.flags[k] = f;
@@ -142,6 +151,10 @@
     });
     this.loopAt = new Uint8Array(n);
     for (i = 0; i < d.loops.length; i++) { this.loopAt[d.loops[i]] = 1; }
+    this.fragileWhy = {};
+    (d.fragile_notes || []).forEach(function (p) {
+      (self.fragileWhy[p[0]] = self.fragileWhy[p[0]] || []).push(p[1]);
+    });
     this.inputsAt = {};
     for (i = 0; i < d.inputs.length; i++) { this.inputsAt[d.inputs[i][0]] = d.inputs[i][1]; }
     this.disturbedBy = {};
@@ -324,7 +337,7 @@
   NetMap.prototype.swatch = function (c, key) {
     var ctx = c.getContext("2d");
     if (STYLE[key] && STYLE[key].size) {
-      drawPoints(ctx, key, [22], [12]);
+      drawPoints(ctx, key, [22], [12], 9);  // the legend's swatch is 22 px high
       return;
     }
     ctx.beginPath();
@@ -602,7 +615,7 @@
 
   NetMap.prototype.flaggedLists = function () {
     var d = this.d, L = this.layers, self = this, out = [];
-    ["disturbances", "dilations", "unreached", "fixes", "drivers"].forEach(function (key) {
+    ["disturbances", "fragile", "dilations", "unreached", "fixes", "drivers"].forEach(function (key) {
       if (!L[key]) { return; }
       var idx = key === "drivers" ? d.drivers : key === "disturbances" ? self.disturbed : d[key];
       if (idx && idx.length) { out.push([key, idx]); }
@@ -681,6 +694,7 @@
     if (this.flags.fixes[i]) { roles.push("proposed input site (smallest fix)"); }
     if (this.flags.unreached[i]) { roles.push("no input reaches this state"); }
     if (this.flags.dilations[i]) { roles.push("in a dilation (fed by fewer states than they number)"); }
+    if (this.flags.fragile[i]) { roles.push("single point of failure"); }
     if (d.roles) { roles.push("role: " + ROLE_WORDS[d.roles[i]]); }
     else if (d.role_all) { roles.push("role: " + d.role_all + " (every state has this role)"); }
     out.push(["role", roles.length ? roles.join("; ") : "state (nothing to report)"]);
@@ -711,6 +725,9 @@
     }
     this.trail = this.isDriver[head] && r.length > 1 ? r : (c.length > 1 ? c : null);
     out.push(["links", this.indeg[i] + " in, " + this.outdeg[i] + " out" + (this.loopAt[i] ? ", self-loop (self-dynamics)" : "")]);
+    if (this.flags.fragile[i]) {
+      out.push(["single point of failure", (this.fragileWhy[i] || ["its loss alone breaks the design"]).join("; ")]);
+    }
     if (d.disturbances) {
       var felt = this.disturbedBy[i] || [];
       out.push(["disturbances felt directly", felt.length ? felt.join(", ") : "none"]);
@@ -743,6 +760,7 @@
     if (this.flags.unreached[i]) { words.push("unreached"); }
     if (this.flags.dilations[i]) { words.push("dilation"); }
     if (this.flags.fixes[i]) { words.push("add an input here"); }
+    if (this.flags.fragile[i]) { words.push("single point of failure"); }
     tip.textContent = this.d.names[i] + (words.length ? " \u2014 " + words.join(", ") : "");
     tip.style.left = Math.min(px + 14, this.W - 160) + "px";
     tip.style.top = (py + 12) + "px";
