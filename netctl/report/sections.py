@@ -16,10 +16,11 @@ from typing import Any, cast
 import numpy as np
 
 from netctl.report.document import Block, Section, figure, items, note, para, table
+from netctl.report.failures import disturbances_section, failures_section
 from netctl.system import StructuredSystem
 
 __all__ = ["SECTIONS", "ReportContext", "SectionBuilder", "cautions_section",
-           "design_section", "map_section", "minimum_inputs_section", "modes_section",
+           "design_section", "disturbances_section", "failures_section", "map_section", "minimum_inputs_section", "modes_section",
            "null_model_section",
            "numeric_section",
            "robustness_section", "roles_section", "strong_section", "summary_section"]
@@ -218,8 +219,9 @@ def map_section(ctx: ReportContext) -> Section | None:
     caption = (f"Map of {ctx.design_words()}; {placement.note()}. Triangles: driver nodes; "
                "heavy solid lines: control paths; heavy dashed lines: control cycles; "
                "hatched squares: states no input reaches; hollow diamonds: a dilation; "
-               "dashed hollow triangles: where to add inputs. The legend beside the map "
-               "explains every mark.")
+               "dashed hollow triangles: where to add inputs; violet octagon rings: "
+               "single points of failure; dotted circles: where a disturbance acts. The "
+               "legend beside the map explains every mark.")
     fragment = map_fragment(map_payload(ctx.system, marks, placement, title=title),
                             element_id="netctl-report-map")
     intro = para("Drag to pan, use the wheel to zoom, find a state by name, click a state "
@@ -507,10 +509,12 @@ def strong_section(ctx: ReportContext) -> Section | None:
 SECTIONS: list[SectionBuilder] = [
     summary_section,
     minimum_inputs_section,
+    disturbances_section,
     design_section,
     map_section,
     roles_section,
     robustness_section,
+    failures_section,
     null_model_section,
     numeric_section,
     modes_section,
@@ -522,6 +526,7 @@ SECTIONS: list[SectionBuilder] = [
 OPTIONAL: dict[SectionBuilder, str] = {
     roles_section: "roles of states and links",
     robustness_section: "robustness to losses",
+    failures_section: "single points of failure",
     null_model_section: "null-model comparison",
     numeric_section: "numeric confirmation",
     modes_section: "weakest modes",
