@@ -509,9 +509,9 @@ def strong_section(ctx: ReportContext) -> Section | None:
 SECTIONS: list[SectionBuilder] = [
     summary_section,
     minimum_inputs_section,
-    disturbances_section,
     design_section,
     map_section,
+    disturbances_section,
     roles_section,
     robustness_section,
     failures_section,
