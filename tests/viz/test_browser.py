@@ -234,3 +234,66 @@ def test_report_embeds_the_interactive_map(browser, tmp_path):
         "return JSON.parse(document.querySelector('script[type=\"application/json\"]')"
         ".textContent).summary;")
     assert json.dumps(payload)
+
+
+FRAGILE_RGB = (0x4A, 0x14, 0x8C)  # netmap.js STYLE.fragile.stroke
+
+
+def test_screenshot_has_single_point_marks_where_the_data_puts_them(browser, tmp_path):
+    # a chain x0 -> ... -> x19 with actuators at x0 and x10, and a lone state x20 with
+    # its own actuator. Which actuator is a single point of failure comes from brute
+    # force over single losses (networkx matching + reachability, Lin 1974): x0 (nothing
+    # else reaches it) and x20 (an isolated state) are; x10 is not (x0 reaches it).
+    from tests.structural._failures_brute import controllable
+
+    n = 21
+    edges = [(i, i + 1) for i in range(19)]
+    sites = [0, 10, 20]
+    crit = [s for k, s in enumerate(sites) if not controllable(
+        n, edges, [[t] for j, t in enumerate(sites) if j != k])]
+    assert controllable(n, edges, [[t] for t in sites]) and crit == [0, 20]
+    x = [float(i % 20) * 2.0 for i in range(n)]
+    y = [0.0 if i < 20 else 10.0 for i in range(n)]
+    s = StructuredSystem.from_edges(*zip(*edges), n, nodes={"x": x, "y": y},
+                                    inputs=sites)
+    marks = map_marks(s)
+    page = tmp_path / "fragile.html"
+    page.write_text(map_html(map_payload(s, marks, map_placement(s))), encoding="utf-8")
+    open_page(browser, page)
+    assert console_errors(browser) == []
+    assert browser.execute_script("return window.netctlMaps[0].drawn.fragile;") == 2
+    from PIL import Image
+    from selenium.webdriver.common.by import By
+
+    shot = np.asarray(Image.open(io.BytesIO(browser.get_screenshot_as_png()))
+                      .convert("RGB")).astype(int)
+    rect = browser.find_element(By.CSS_SELECTOR, ".ncm-canvas").rect
+    k, tx, ty = browser.execute_script(
+        "var m = window.netctlMaps[0]; return [m.s, m.tx, m.ty];")
+    # only the canvas: the legend's swatch has the same colour
+    mask = near(shot, FRAGILE_RGB, tol=24)
+    x0, y0 = int(rect["x"]), int(rect["y"])
+    inside = np.zeros_like(mask)
+    inside[y0:y0 + int(rect["height"]), x0:x0 + int(rect["width"])] = True
+    ys, xs = np.nonzero(mask & inside)
+    assert xs.size > 40
+    for i in range(n):  # the ring (16 px radius) sits around the data's position
+        px = rect["x"] + x[i] * k + tx
+        py = rect["y"] + ty - y[i] * k
+        d = np.hypot(xs - px, ys - py)
+        if i in crit:
+            assert d.min() < 20 and (d < 20).sum() > 20, (i, d.min())
+        else:
+            assert d.min() > 8, (i, d.min())   # no ring centred on any other state
+    # the ring is the single point's own mark: a driver that is not one has none
+    px = rect["x"] + x[10] * k + tx
+    py = rect["y"] + ty - y[10] * k
+    assert (np.hypot(xs - px, ys - py) < 20).sum() == 0
+    # switching its layer off removes it
+    browser.find_element(By.CSS_SELECTOR, 'input[data-layer="fragile"]').click()
+    settle(browser)
+    assert near(canvas_rgb(browser), FRAGILE_RGB, tol=24).sum() == 0
+    # the details panel says why
+    browser.execute_script("window.netctlMaps[0].select(0, false);")
+    text = browser.find_element(By.CSS_SELECTOR, ".ncm-details dl").text
+    assert "single point of failure" in text and "u:x0" in text
