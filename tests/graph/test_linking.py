@@ -1,0 +1,119 @@
+"""Linkings against networkx's min-cost max-flow (a general-purpose reference library)
+on the node-split graph, and the separator against networkx's max-flow (Menger)."""
+
+from __future__ import annotations
+
+import networkx as nx
+import numpy as np
+import pytest
+import scipy.sparse as sp
+
+from netctl.graph.linking import extension, linking_graph, maximum_linking, minimum_separator
+
+
+def _csr(mask):
+    m = sp.csr_array(mask.astype(float))
+    return m.indptr, m.indices
+
+
+def _random(rng):
+    n, k, r = (int(v) for v in (rng.integers(1, 8), rng.integers(1, 4), rng.integers(1, 4)))
+    A = rng.random((n, n)) < 0.3
+    S = rng.random((k, n)) < 0.3
+    H = rng.random((r, n)) < 0.3
+    return n, A, S, H
+
+
+def _nx_split(A, S, H, src_cost, big=1):
+    """Node-split network in networkx; ``big`` = capacity of the non-state arcs."""
+    n = A.shape[0]
+    G = nx.DiGraph()
+    G.add_nodes_from(["S", "T"])
+    for s in range(S.shape[0]):
+        G.add_edge("S", ("s", s), capacity=big, weight=int(src_cost[s]))
+        for x in np.flatnonzero(S[s]):
+            G.add_edge(("s", s), ("i", x), capacity=big, weight=0)
+    for x in range(n):
+        G.add_edge(("i", x), ("o", x), capacity=1, weight=1)
+    for i, j in zip(*np.nonzero(A)):
+        if i != j:  # a self-loop is never on a path
+            G.add_edge(("o", j), ("i", i), capacity=big, weight=0)
+    for t in range(H.shape[0]):
+        G.add_edge(("y", t), "T", capacity=big, weight=0)
+        for x in np.flatnonzero(H[t]):
+            G.add_edge(("o", x), ("y", t), capacity=big, weight=0)
+    return G
+
+
+def _reference(A, S, H, src_cost):
+    G = _nx_split(A, S, H, src_cost)
+    flow = nx.max_flow_min_cost(G, "S", "T")
+    return sum(flow["S"].values()), nx.cost_of_flow(G, flow)
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_linking_size_length_and_paths_against_networkx(seed):
+    rng = np.random.default_rng(seed)
+    for _ in range(60):
+        n, A, S, H = _random(rng)
+        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        L = maximum_linking(g)
+        assert (L.size, L.length) == _reference(A, S, H, np.zeros(S.shape[0]))
+        used: set = set()
+        total = 0
+        for p in range(L.size):
+            states = L.path_states[L.path_ptr[p]:L.path_ptr[p + 1]]
+            s, y = L.path_source[p], L.path_sink[p]
+            assert S[s, states[0]] and H[y, states[-1]]
+            for a, b in zip(states[:-1], states[1:]):
+                assert A[b, a] and a != b
+            for v in [("s", s), ("y", y)] + [("x", x) for x in states]:
+                assert v not in used  # vertex-disjoint over sources, states and sinks
+                used.add(v)
+            total += len(states)
+        assert total == L.length
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_extension_against_networkx(seed):
+    """The one-Dijkstra comparison equals recomputing the flow over the union, with the
+    extra sources' paths counted as is and one state shorter."""
+    rng = np.random.default_rng(100 + seed)
+    for _ in range(60):
+        n, A, S, H = _random(rng)
+        k = S.shape[0]
+        ku = int(rng.integers(0, k + 1))
+        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        LU = maximum_linking(g, sources=np.arange(ku))
+        grows, saving = extension(g, LU, np.arange(ku, k))
+        size_all, len_all = _reference(A, S, H, np.zeros(k))
+        assert grows == (size_all > LU.size)
+        if not grows:
+            assert (saving > 0) == (len_all < LU.length)
+            shorter = np.where(np.arange(k) < ku, 0, -1)
+            _, len_short = _reference(A, S, H, shorter)
+            assert (saving >= 0) == (len_short < LU.length)
+
+
+def test_separator_against_networkx_menger():
+    rng = np.random.default_rng(7)
+    for _ in range(150):
+        n, A, S, H = _random(rng)
+        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        sep = minimum_separator(g)
+        G = _nx_split(A, S, H, np.zeros(S.shape[0]), big=10**6)
+        assert sep.size == nx.maximum_flow_value(G, "S", "T")
+        G.remove_nodes_from([("i", x) for x in sep])
+        assert not nx.has_path(G, "S", "T")
+
+
+def test_path_of_two_states_and_a_shortcut():
+    # u -> x0 -> x1 -> y and w -> x1: one path each, lengths 2 and 1 (issue 23, item 2)
+    A = np.array([[0, 0], [1, 0]], bool)
+    S = np.array([[1, 0], [0, 1]], bool)
+    H = np.array([[0, 1]], bool)
+    g = linking_graph(2, *_csr(S), *_csr(A.T), *_csr(H))
+    LU = maximum_linking(g, sources=[0])
+    assert (LU.size, LU.length) == (1, 2)
+    assert maximum_linking(g).length == 1
+    assert extension(g, LU, [1]) == (False, 1)
