@@ -23,6 +23,9 @@ __all__ = ["VERBS"]
 VERBS: dict[str, tuple[str, str]] = {
     "inspect": ("inspect", "sizes, components, structural rank and minimum input counts"),
     "drivers": ("drivers", "minimum inputs and where to put them"),
+    "decouple": ("decouple", "can feedback keep every disturbance off the regulated outputs "
+                             "(by state feedback; with the disturbances measured)? why not, "
+                             "and the smallest fix; exit 0 yes, 1 no"),
     "sensors": ("drivers", "minimum sensors and where to put them"),
     "check": ("check", "is a given input (sensor) design structurally controllable "
                        "(observable)? exit 0 yes, 1 no"),
@@ -67,6 +70,9 @@ VERBS: dict[str, tuple[str, str]] = {
                          "failure, fewest failures that break it, lines whose loss breaks "
                          "it; --place: cheapest design surviving k failures or any one "
                          "line; exit 0 secure, 1 not"),
+    "stations": ("stations", "structurally fixed modes of an arrangement of control stations "
+                             "(decentralized control): which condition fails and the "
+                             "smallest change; exit 0 none, 1 fixed modes"),
     "strong": ("strong", "strong structural controllability: does a design hold for every "
                          "nonzero weight (exit 0 yes, 1 no), or the fewest inputs that do"),
     "sweep": ("sweep", "lose every link / state in turn (or k at a time, sampled): minimum "

@@ -256,8 +256,15 @@ class DecouplingReport:
                            f"{' and the '.join(q.split(' u =')[0] for q in f.solves)} "
                            "question(s).")
             else:
-                out.append("fix: measure the disturbances and feed them forward "
-                           "(the measured-disturbance question is answered yes).")
+                ws = ", ".join(self.disturbance_names[int(j)]
+                               for j in self.state_feedback.failing)
+                out.append(f"fix: measure {ws} and feed it forward (the measured-disturbance "
+                           "question is answered yes).")
+        if not self.state_feedback.solvable and self.candidates_tried and \
+                not any(f.kind == "input" and STATE_FEEDBACK in f.solves for f in self.fixes):
+            out.append(f"no single added input solves state feedback: {self.candidates_tried} "
+                       "eligible state(s) nearest the affected outputs were tried (states "
+                       "marked actuator = false are not).")
         return out
 
     def to_dict(self) -> dict[str, Any]:
