@@ -166,12 +166,49 @@ def linking_graph(n_states: int, src_ptr: np.ndarray, src_idx: np.ndarray,
 
 
 @njit(cache=True, nogil=True)
-def _solve(adj_ptr, head, rev, cost, cap, use_cost):  # pragma: no cover - compiled
+def _sink_distance(adj_ptr, head, rev, forward, cost, cap):  # pragma: no cover - compiled
+    """Least cost from every node to the super-sink along arcs with capacity (0-1 BFS
+    over the reversed arcs; every cost here is 0 or 1). 2**62 where the sink is out of
+    reach."""
+    n_nodes = adj_ptr.size - 1
+    dist = np.full(n_nodes, _INF, np.int64)
+    ring = np.empty(n_nodes + 1, np.int64)
+    size = n_nodes + 1
+    lo = 0
+    hi = 0
+    dist[1] = 0
+    ring[hi] = 1
+    hi = (hi + 1) % size
+    while lo != hi:
+        v = ring[lo]
+        lo = (lo + 1) % size
+        dv = dist[v]
+        for q in range(adj_ptr[v], adj_ptr[v + 1]):
+            if forward[q]:
+                continue
+            f = rev[q]  # the forward arc u -> v
+            if cap[f] <= 0:
+                continue
+            u = head[q]
+            du = dv + cost[f]
+            if du < dist[u]:
+                dist[u] = du
+                if cost[f] == 0:  # to the front
+                    lo = (lo - 1) % size
+                    ring[lo] = u
+                else:
+                    ring[hi] = u
+                    hi = (hi + 1) % size
+    return dist
+
+
+@njit(cache=True, nogil=True)
+def _solve(adj_ptr, head, rev, cost, cap, use_cost, pi):  # pragma: no cover - compiled
     """Min-cost max-flow from node 0 to node 1; ``cap`` is the residual array (modified).
     Returns (flow, total cost, potentials). With ``use_cost`` false every cost is taken
-    as zero. At return the reduced costs of all residual arcs are >= 0."""
+    as zero. ``pi`` (modified) are feasible starting potentials: every arc with capacity
+    has reduced cost >= 0. At return the reduced costs of all residual arcs are >= 0."""
     n_nodes = adj_ptr.size - 1
-    pi = np.zeros(n_nodes, np.int64)
     dist = np.empty(n_nodes, np.int64)
     done = np.zeros(n_nodes, np.bool_)
     seen = np.zeros(n_nodes, np.int32)  # phase stamp of the last DFS visit
@@ -325,37 +362,50 @@ def _paths(adj_ptr, head, forward, cap0, cap, src_pos, k, n):  # pragma: no cove
 
 
 @njit(cache=True, nogil=True)
-def _extension(adj_ptr, head, cost, cap, pi, entries):  # pragma: no cover - compiled
-    """Given an optimal flow (``cap`` residual, ``pi`` potentials), how would new sources
-    entering the in-copies ``entries`` (at cost 0) change it? Returns (grows, best):
-    ``grows`` if an augmenting path to the super-sink starts at an entry (a larger linking
-    exists), ``best`` the least real cost of a residual cycle super-source -> new source ->
-    entry -> ... -> super-source (a cheaper linking of the same size exists iff < 0;
-    2**62 when there is none). One Dijkstra on reduced costs from the entries."""
+def _to_sink(adj_ptr, head, rev, cap):  # pragma: no cover - compiled
+    """Which nodes reach the super-sink in the residual graph ``cap`` (reverse search)."""
     n_nodes = adj_ptr.size - 1
-    shift = pi.max() + 1
-    dcap = 2 * n_nodes + shift - pi.min() + 2
+    to_sink = np.zeros(n_nodes, np.bool_)
+    stack = np.empty(n_nodes, np.int64)
+    to_sink[1] = True
+    stack[0] = 1
+    top = 1
+    while top:
+        top -= 1
+        v = stack[top]
+        if v == 0:
+            continue
+        for q in range(adj_ptr[v], adj_ptr[v + 1]):
+            f = rev[q]  # arc head[q] -> v
+            u = head[q]
+            if cap[f] > 0 and not to_sink[u]:
+                to_sink[u] = True
+                stack[top] = u
+                top += 1
+    return to_sink
+
+
+@njit(cache=True, nogil=True)
+def _back(adj_ptr, head, rev, cost, cap, pi):  # pragma: no cover - compiled
+    """For an optimal flow (``cap`` residual, ``pi`` potentials): the least real cost of a
+    residual path from each node back to the super-source without passing through the
+    super-sink (reverse Dijkstra on reduced costs, bucket queue). 2**62: no path."""
+    n_nodes = adj_ptr.size - 1
+    lo_pi = pi.min()
+    hi_pi = pi.max()
+    dcap = 2 * n_nodes + (hi_pi - lo_pi) + 2
     dist = np.full(n_nodes, _INF, np.int64)
     done = np.zeros(n_nodes, np.bool_)
     bucket = np.full(dcap + 1, -1, np.int64)
-    pool_node = np.empty(head.size + entries.size + 1, np.int64)
-    pool_next = np.empty(head.size + entries.size + 1, np.int64)
-    n_pool = 0
-    lo = dcap
+    pool_node = np.empty(cost.size + 1, np.int64)
+    pool_next = np.empty(cost.size + 1, np.int64)
+    dist[0] = 0
+    pool_node[0] = 0
+    pool_next[0] = -1
+    bucket[0] = 0
+    n_pool = 1
     hi = 0
-    for j in range(entries.size):
-        v = entries[j]
-        key = shift - pi[v]  # real cost 0 to reach v, minus its potential, shifted
-        if key < dist[v]:
-            dist[v] = key
-            pool_node[n_pool] = v
-            pool_next[n_pool] = bucket[key]
-            bucket[key] = n_pool
-            n_pool += 1
-            lo = min(lo, key)
-            hi = max(hi, key)
-    grows = False
-    b = lo
+    b = 0
     while b <= hi:
         while bucket[b] >= 0:
             e = bucket[b]
@@ -365,31 +415,29 @@ def _extension(adj_ptr, head, cost, cap, pi, entries):  # pragma: no cover - com
                 continue
             done[v] = True
             if v == 1:
-                grows = True
-                continue
-            if v == 0:
-                continue
-            pv = pi[v]
-            for a in range(adj_ptr[v], adj_ptr[v + 1]):
-                if cap[a] <= 0:
+                continue  # never through the super-sink
+            for q in range(adj_ptr[v], adj_ptr[v + 1]):
+                f = rev[q]  # arc u -> v with residual capacity
+                if cap[f] <= 0:
                     continue
-                w = head[a]
-                if done[w]:
+                u = head[q]
+                if done[u] or u == 0:
                     continue
-                nd = b + cost[a] + pv - pi[w]
-                if nd < dist[w] and nd <= dcap:
-                    dist[w] = nd
-                    pool_node[n_pool] = w
+                nd = b + cost[f] + pi[u] - pi[v]
+                if nd < dist[u] and nd <= dcap:
+                    dist[u] = nd
+                    pool_node[n_pool] = u
                     pool_next[n_pool] = bucket[nd]
                     bucket[nd] = n_pool
                     n_pool += 1
                     if nd > hi:
                         hi = nd
         b += 1
-    best = _INF
-    if done[0]:
-        best = dist[0] + pi[0] - shift
-    return grows, best
+    back = np.full(n_nodes, _INF, np.int64)
+    for v in range(n_nodes):
+        if done[v]:
+            back[v] = dist[v] - pi[v] + pi[0]  # reduced -> real cost
+    return back
 
 
 @dataclass(frozen=True)
@@ -411,6 +459,7 @@ class Linking:
     _residual: np.ndarray = field(repr=False, compare=False)
     _potential: np.ndarray = field(repr=False, compare=False)
     _sources: np.ndarray = field(repr=False, compare=False)
+    _labels: dict = field(default_factory=dict, repr=False, compare=False)
 
 
 def maximum_linking(graph: LinkingGraph, *, sources: np.ndarray | None = None,
@@ -428,8 +477,15 @@ def maximum_linking(graph: LinkingGraph, *, sources: np.ndarray | None = None,
         keep = np.zeros(k, bool)
         keep[srcs] = True
         cap[graph.src_pos[~keep]] = 0
+    # exact distances to the sink as starting potentials (goal-directed search): nodes
+    # that cannot reach the sink are cut off, the first shortest path is found at once
+    dsink = _sink_distance(graph.adj_ptr, graph.head, graph.rev, graph.forward, graph.cost,
+                           cap)
+    dead = dsink >= _INF
+    cap[dead[graph.head] & graph.forward] = 0
+    pi = np.where(dead, 0, -dsink)
     base = cap.copy()
-    flow, total, pi = _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, True)
+    flow, total, pi = _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, True, pi)
     if paths:
         ptr, st, ps, pt = _paths(graph.adj_ptr, graph.head, graph.forward, base, cap,
                                  graph.src_pos, k, graph.n_states)
@@ -448,9 +504,11 @@ def extension(graph: LinkingGraph, linking: Linking, extra: np.ndarray) -> tuple
     same size using exactly one extra source can be at best (``<= 0``: no saving; a
     negative number -s means every such exchange costs at least s more states;
     ``-(2**62)`` when no exchange exists). The least total length over the union is smaller
-    than ``linking.length`` iff ``saving > 0``. One Dijkstra instead of a new flow: the
-    optimal flow stays optimal unless a residual path or cycle starts at an extra source
-    (Ahuja, Magnanti & Orlin 1993, thm. 9.1, negative cycle optimality).
+    than ``linking.length`` iff ``saving > 0``. No new flow: the optimal flow stays optimal
+    unless a residual path or cycle starts at an extra source (Ahuja, Magnanti & Orlin
+    1993, thm. 9.1, negative cycle optimality). One reverse search from the sink and one
+    reverse Dijkstra to the source, made once per linking, answer every later question
+    in O(entries).
     """
     extra = np.setdiff1d(np.asarray(extra, np.int64), linking._sources)
     if extra.size == 0:
@@ -467,9 +525,16 @@ def extension(graph: LinkingGraph, linking: Linking, extra: np.ndarray) -> tuple
     entries = entries[(entries >= in0) & (entries < in0 + n)]
     if entries.size == 0:
         return False, -int(_INF)
-    grows, best = _extension(graph.adj_ptr, graph.head, graph.cost, linking._residual,
-                             linking._potential, entries)
-    return bool(grows), -int(best) if best < _INF else -int(_INF)
+    labels = linking._labels  # made once per linking: then O(entries) per question
+    if "to_sink" not in labels:
+        labels["to_sink"] = _to_sink(graph.adj_ptr, graph.head, graph.rev, linking._residual)
+    if labels["to_sink"][entries].any():
+        return True, -int(_INF)
+    if "back" not in labels:
+        labels["back"] = _back(graph.adj_ptr, graph.head, graph.rev, graph.cost,
+                               linking._residual, linking._potential)
+    best = int(labels["back"][entries].min())
+    return False, -best if best < _INF else -int(_INF)
 
 
 def minimum_separator(graph: LinkingGraph, *, sources: np.ndarray | None = None
@@ -488,7 +553,8 @@ def minimum_separator(graph: LinkingGraph, *, sources: np.ndarray | None = None
         keep = np.zeros(k, bool)
         keep[np.asarray(sources, np.int64)] = True
         cap[graph.src_pos[~keep]] = 0
-    _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, False)
+    _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, False,
+           np.zeros(graph.adj_ptr.size - 1, np.int64))
     reach = _residual_reach(graph.adj_ptr, graph.head, cap)
     in0 = 2 + k
     ins = reach[in0:in0 + n]
