@@ -179,8 +179,9 @@ class DecouplingReport:
     input_rank, input_length : int
         Size and least total length of a maximum linking inputs -> outputs (the rank is
         the generic rank of the transfer matrix from ``u`` to ``z``).
-    combined_rank, combined_length : int
-        The same for inputs and disturbances together.
+    combined_rank, combined_length : int or None
+        The same for inputs and disturbances together (``None`` when the disturbances
+        open more paths and ``explain`` was false: it takes a second flow).
     reach : tuple of DisturbanceReach
         For the failing disturbances: which outputs each reaches, and how fast against
         the inputs.
@@ -200,7 +201,7 @@ class DecouplingReport:
     measured: DecouplingAnswer
     input_rank: int
     input_length: int
-    combined_rank: int
+    combined_rank: int | None
     combined_length: int | None
     reach: tuple[DisturbanceReach, ...]
     bottleneck: np.ndarray
@@ -221,7 +222,7 @@ class DecouplingReport:
         out: list[str] = []
         if self.n_disturbances == 0:
             return ["the system has no disturbances: nothing to decouple."]
-        if self.combined_rank > self.input_rank:
+        if self.combined_rank is not None and self.combined_rank > self.input_rank:
             out.append(
                 f"the disturbances open {self.combined_rank - self.input_rank} more "
                 f"independent path(s) to the {self.outputs} outputs than the inputs can "
@@ -386,9 +387,13 @@ def decoupling(system: StructuredSystem, *, outputs: str = "regulated", explain:
     n, m, q = system.n_states, system.n_inputs, system.n_disturbances
     g = _graph(system, Z)
     L, grows, sf_ok, md_ok, saving = _answer(g, m, q)
-    if grows:
+    c_rank: int | None
+    c_len: int | None
+    if grows and explain:
         Lc = maximum_linking(g, paths=False)
         c_rank, c_len = Lc.size, Lc.length
+    elif grows:  # a second flow only to explain; the answers do not need it
+        c_rank, c_len = None, None
     elif saving > 0:
         c_rank, c_len = L.size, L.length - saving
     else:
