@@ -13,9 +13,11 @@ and cost one, every source and sink capacity one) solved by min-cost max-flow wi
 primal-dual method: Dijkstra on reduced costs with node potentials (stopped when the sink
 is settled), then as many augmenting paths of zero reduced cost as a depth-first search
 finds in one sweep (the successive-shortest-path algorithm with all paths of one length
-taken per phase, Ahuja, Magnanti & Orlin 1993, ch. 9). Capacities are units, so each phase
-is O(E log V) and the number of phases is at most the number of distinct path costs plus
-the linking size. Compiled with numba; the kernels trust their input.
+taken per phase, Ahuja, Magnanti & Orlin 1993, ch. 9). The starting potentials are the
+exact distances to the sink (a 0-1 breadth-first search), so the search is goal-directed
+and nodes that cannot reach the sink are cut off. Costs are small integers (bucket queue),
+so each phase is O(E) and the number of phases is at most the number of distinct path
+costs plus the linking size. Compiled with numba; the kernels trust their input.
 
 References
 ----------
