@@ -21,8 +21,9 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                    help="sweeps discarded first (default 50)")
     add_seed(p)
     p.add_argument("--centrality", action="store_true",
-                   help="also the control centrality of every state (one weighted matching "
-                        "a state: slow on large networks; progress on a terminal)")
+                   help="also the control centrality of every state (one assignment for the "
+                        "network, then one shortest-path search a state; progress on a "
+                        "terminal)")
     p.add_argument("--top", type=int, default=10, metavar="K",
                    help="states listed in the summary (default 10)")
     p.set_defaults(func=_cmd_node_control)

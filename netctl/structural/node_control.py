@@ -21,8 +21,9 @@ import scipy.sparse as sp
 from numba import njit
 
 from netctl.errors import OptionError
-from netctl.graph.components import reachable_from
-from netctl.graph.matching import maximum_matching
+from netctl.graph.components import reachable_from, strongly_connected_components
+from netctl.graph.matching import maximum_matching, transpose_csr
+from netctl.graph.stem_cycle import cycle_cover_prices, reach_sums, stem_gains
 from netctl.structural.controllability import _hosoe_dimension
 from netctl.system import StructuredSystem
 
@@ -317,7 +318,8 @@ def control_centrality(system: StructuredSystem, *, states: Any = None,
     states : array_like of int, optional
         Which states (default: all).
     progress : callable(done, total), optional
-        Called after each state (the command line prints it on a terminal).
+        Called after each hundredth of the states (the command line prints it on a
+        terminal).
 
     Returns
     -------
@@ -327,10 +329,21 @@ def control_centrality(system: StructuredSystem, *, states: Any = None,
     -----
     Liu, Slotine & Barabási [1]_ define the control centrality of state ``i`` as the
     generic dimension of the controllable subspace of ``(A, e_i)``. By Hosoe's theorem
-    [2]_ it is the largest number of edges of a stem-cycle disjoint subgraph whose stem
-    starts at the input, in the part of the network reachable from ``i``; it is computed
-    as a minimum-cost assignment (scipy's ``min_weight_full_bipartite_matching``) on
-    those states, one per state: the cost grows with the reach.
+    [2]_ it is the largest number of states covered by a stem-cycle disjoint subgraph
+    whose stem starts at the input, in the part ``R(i)`` of the network reachable from
+    ``i``.
+
+    All states at once: every cycle lies in one strong component, and ``R(i)`` is a union
+    of strong components, so over the whole network the best "stem from ``i`` plus
+    disjoint cycles" covers ``C(i)`` plus the largest cycle cover of the states outside
+    ``R(i)``. Hence ``C(i) = cyc(R(i)) + g(i)``, where ``cyc`` counts the states on a
+    largest set of disjoint cycles (it adds up over strong components) and ``g(i)`` is
+    what an input at ``i`` adds to the largest cycle cover of the whole network. The
+    cycle cover is one minimum-cost assignment with optimal dual prices (Jonker &
+    Volgenant [3]_); adding the input column is one more shortest augmenting path, so
+    ``g(i)`` is one Dijkstra search on reduced costs per state, and ``cyc(R(i))`` one
+    search of the condensation per strong component
+    (:mod:`netctl.graph.stem_cycle`). Exact; near-linear per state in practice.
 
     References
     ----------
@@ -339,6 +352,9 @@ def control_centrality(system: StructuredSystem, *, states: Any = None,
        doi:10.1371/journal.pone.0044459
     .. [2] S. Hosoe, "Determination of generic dimensions of controllable subspaces and
        its application", IEEE TAC 25(6):1192-1196, 1980.
+    .. [3] R. Jonker, A. Volgenant, "A shortest augmenting path algorithm for dense and
+       sparse linear assignment problems", Computing 38:325-340, 1987.
+       doi:10.1007/BF02278710
 
     Examples
     --------
@@ -348,25 +364,52 @@ def control_centrality(system: StructuredSystem, *, states: Any = None,
     >>> control_centrality(s).centrality.tolist()
     [2, 1, 1, 1, 1]
     """
-    A = system.A
+    A = sp.csr_array(system.A)
     n = system.n_states
     pick = np.arange(n) if states is None else np.unique(np.asarray(states, np.int64))
     if pick.size and (pick.min() < 0 or pick.max() >= n):
         raise OptionError(f"states must be indices in [0, {n}), found "
                           f"{int(pick.min())}..{int(pick.max())}.")
+    cent = np.full(n, -1, np.int64)
+    if n == 0 or pick.size == 0:
+        return ControlCentrality(state_names=tuple(system.state_names), centrality=cent)
+    indptr = np.asarray(A.indptr, np.int64)
+    indices = np.asarray(A.indices, np.int64)
     # out-adjacency: columns of A are sources; A^T as CSR lists each state's targets
+    optr, oind = transpose_csr(indptr, indices, n)
+    rows = np.repeat(np.arange(n), np.diff(indptr))
+    has_loop = np.zeros(n, bool)
+    has_loop[rows[rows == indices]] = True
+    prices = cycle_cover_prices(indptr, indices, n, has_loop)
+    k, labels = strongly_connected_components(optr, oind)
+    on_cycle = np.bincount(labels, weights=1 - prices.cost, minlength=k).astype(np.int64)
+    wanted, where = np.unique(labels[pick], return_inverse=True)
+    cycles_reached = reach_sums(optr, oind, labels, k, on_cycle, wanted)[where]
+    step = max(int(pick.size) // 100, 1)
+    for lo in range(0, int(pick.size), step):
+        part = pick[lo:lo + step]
+        cent[part] = cycles_reached[lo:lo + step] + stem_gains(optr, oind, has_loop,
+                                                               prices, part)
+        if progress is not None:
+            progress(min(lo + step, int(pick.size)), int(pick.size))
+    return ControlCentrality(state_names=tuple(system.state_names), centrality=cent)
+
+
+def _control_centrality_by_assignments(system: StructuredSystem, *,
+                                       states: Any = None) -> np.ndarray:
+    """Reference: one minimum-cost assignment per state on the states it reaches
+    (REFERENCES.md §1 construction); slow, for cross-checks and the benchmark."""
+    A = system.A
+    n = system.n_states
     At = A.T.tocsr()
     optr, oind = np.asarray(At.indptr, np.int64), np.asarray(At.indices, np.int64)
     cent = np.full(n, -1, np.int64)
-    for k, i in enumerate(pick):
-        acc = reachable_from(optr, oind, np.array([i], np.int64))
+    for i in (range(n) if states is None else np.asarray(states, np.int64)):
         mask = np.zeros(n, bool)
-        mask[acc] = True
+        mask[reachable_from(optr, oind, np.array([i], np.int64))] = True
         B = sp.csr_array((np.ones(1), (np.array([i]), np.array([0]))), shape=(n, 1))
         cent[i] = _hosoe_dimension(A, B, mask)
-        if progress is not None:
-            progress(k + 1, int(pick.size))
-    return ControlCentrality(state_names=tuple(system.state_names), centrality=cent)
+    return cent
 
 
 # ---------------------------------------------------------------- drivers by degree

@@ -108,6 +108,37 @@ def test_centrality_matches_krylov_rank_over_a_prime_field(seed):
         assert cent[i] == k, (i, cent[i], k)
 
 
+def _cyclic(n, seed, loops):
+    """A random network rich in cycles of several lengths (a ring plus random chords)."""
+    rng = np.random.default_rng(seed)
+    src = list(range(n)) + rng.integers(0, n, n // 2).tolist()
+    dst = [(k + 1) % n for k in range(n)] + rng.integers(0, n, n // 2).tolist()
+    if not loops:
+        src, dst = zip(*[(a, b) for a, b in zip(src, dst) if a != b])
+    cut = int(rng.integers(0, n))  # break the ring once: stems and cycles both matter
+    pairs = sorted({(a, b) for a, b in zip(src, dst) if (a, b) != (cut, (cut + 1) % n)})
+    return StructuredSystem.from_edges([a for a, _ in pairs], [b for _, b in pairs], n)
+
+
+@pytest.mark.parametrize("seed", range(8))
+def test_centrality_with_many_cycles_matches_krylov_rank(seed):
+    # the all-states method (one cycle-cover assignment with prices, then one search a
+    # state) against the Krylov rank from each state over a prime field
+    s = _cyclic(11 + seed % 3, seed, loops=seed % 2 == 1)
+    cent = control_centrality(s).centrality
+    for i in range(s.n_states):
+        k = max(_krylov_rank_mod_p(s, i, 1000 * seed + t) for t in range(2))
+        assert cent[i] == k, (i, cent[i], k)
+
+
+def test_centrality_of_chosen_states_equals_all_states():
+    s = _random(40, 0.06, 7, loops=True)
+    full = control_centrality(s).centrality
+    part = control_centrality(s, states=[3, 17, 17, 39]).centrality
+    assert part[[3, 17, 39]].tolist() == full[[3, 17, 39]].tolist()
+    assert np.count_nonzero(part >= 0) == 3
+
+
 @pytest.mark.parametrize("n", [3, 5, 10])
 def test_centrality_published_values(n):
     star = StructuredSystem.from_edges([0] * (n - 1), list(range(1, n)), n)
