@@ -2,7 +2,8 @@
 
 One place defines each option a verb may take (its name, meaning and default), and the
 helpers every handler uses: :func:`load_system`, :func:`parse_names`, :func:`emit`,
-:func:`names_line`, :data:`CAUTION` and :class:`UsageError`. Verb modules import from
+:func:`names_line`, :data:`CAUTION`, :func:`terms` (the vocabulary of the text summaries)
+and :class:`UsageError`. Verb modules import from
 here, never from :mod:`netctl.cli` (which only builds the parser and dispatches).
 
 Everything at module level is light (argparse and the standard library): the readers,
@@ -17,6 +18,7 @@ import json
 import sys
 from collections.abc import Callable, Iterator, Sequence
 from contextlib import contextmanager
+from dataclasses import dataclass
 from typing import IO, TYPE_CHECKING, Any
 
 from netctl._meta import CAUTION
@@ -27,7 +29,8 @@ if TYPE_CHECKING:
     from netctl.system import StructuredSystem
 
 __all__ = [
-    "CAUTION", "NUMERIC_INPUTS_DEFAULT", "SHOWN", "UsageError", "add_candidates", "add_common", "add_executor_options",
+    "CAUTION", "NUMERIC_INPUTS_DEFAULT", "RESEARCH_CAUTION", "SHOWN", "TERMS", "Terms",
+    "UsageError", "add_terms", "caution", "terms", "add_candidates", "add_common", "add_executor_options",
     "add_format",
     "add_inputs", "add_json", "add_model", "add_out", "add_outputs", "add_quiet", "add_reading",
     "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
@@ -47,6 +50,49 @@ NUMERIC_INPUTS_DEFAULT = "the file's inputs, else a minimum dedicated input set"
 
 class UsageError(Exception):
     """Bad command-line usage that argparse cannot see (exit status 2)."""
+
+
+# ---------------------------------------------------------------------- vocabulary
+#: The caution of a network study (no plant is analysed): what the numbers mean.
+RESEARCH_CAUTION = ("Note: structural results hold for almost all link weights of a linear "
+                    "model of the network; constrained weights (symmetric, identical links) "
+                    "or nonlinear dynamics can change them.")
+
+
+@dataclass(frozen=True)
+class Terms:
+    """The words a text summary uses; JSON keys never change with them.
+
+    ``engineering`` speaks of a plant's states, inputs and sensors; ``network`` of a
+    network study's nodes and driver nodes, with N_D and n_D = N_D / N as in Liu,
+    Slotine & Barabási, Nature 473:167-173 (2011).
+    """
+
+    name: str
+    state: str            # one state / node
+    states: str           # states / nodes
+    inputs: str           # "minimum inputs" / "driver nodes N_D"
+    sensors: str          # "minimum sensors" / "sensor nodes"
+    driven: str           # "driven states" / "driver nodes"
+    fraction: str         # "fraction of the states" / "n_D"
+    unmatched: str        # the count n - |M*|
+
+    def of(self, n: int, what: str | None = None) -> str:
+        """``"12 states"`` / ``"12 nodes"`` (or ``what`` in place of the noun)."""
+        return f"{n} {what or self.states}"
+
+
+#: vocabulary name -> its words (closed set; ``--terms`` and ``[system] terms``)
+TERMS: dict[str, Terms] = {
+    "engineering": Terms(name="engineering", state="state", states="states",
+                         inputs="minimum inputs", sensors="minimum sensors",
+                         driven="driven states", fraction="fraction of the states",
+                         unmatched="unmatched states"),
+    "network": Terms(name="network", state="node", states="nodes",
+                     inputs="driver nodes N_D", sensors="sensor nodes (observability)",
+                     driven="driver nodes", fraction="n_D =",
+                     unmatched="unmatched nodes"),
+}
 
 
 # ---------------------------------------------------------------------- options
@@ -94,6 +140,15 @@ def add_reading(p: Any) -> None:
                         "adjacency matrices)")
     p.add_argument("--undirected", action="store_true",
                    help="edge lists: every line is a link both ways")
+
+
+def add_terms(p: Any) -> None:
+    """``--terms``: the words of the text summary (:data:`TERMS`)."""
+    p.add_argument("--terms", choices=list(TERMS), default=None,
+                   help="words of the summary: engineering = states, inputs, plant cautions; "
+                        "network = nodes, driver nodes N_D, n_D, a research note (default: "
+                        "the system description's [system] terms, else engineering; JSON "
+                        "keys are the same either way)")
 
 
 def add_common(p: argparse.ArgumentParser) -> None:
@@ -198,8 +253,17 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
     undirected = bool(getattr(args, "undirected", False))
     system = apply_model(read(args.file, args.format, orientation=orientation,
                               undirected=undirected), args.model)
-    args.file_convention = file_convention(args.format or detect_format(args.file),
-                                           orientation=orientation, undirected=undirected)
+    fmt = args.format or detect_format(args.file)
+    args.file_convention = file_convention(fmt, orientation=orientation,
+                                           undirected=undirected)
+    if fmt == "system":
+        from netctl.io import declared_terms
+
+        args._declared_terms = declared_terms(args.file)
+    # a plant or grid: a system description that does not declare itself a network
+    # study, disturbances, or swing-type (second-order) grid dynamics
+    args._plant = ((fmt == "system" and getattr(args, "_declared_terms", "") != "network")
+                   or system.n_disturbances > 0 or args.model == "second-order")
     if system.n_disturbances:
         args._disturbances = disturbance_summary(system)
     return system
@@ -323,6 +387,25 @@ def names_line(names: Sequence[str], limit: int = SHOWN, total: int | None = Non
     if total <= limit:
         return ", ".join(shown)
     return ", ".join(shown) + f", ... ({total - limit} more; --json lists all)"
+
+
+def terms(args: argparse.Namespace) -> Terms:
+    """The vocabulary of this run: ``--terms``, else the file's ``[system] terms``
+    (recorded by :func:`load_system`), else ``engineering``."""
+    name = (getattr(args, "terms", None) or getattr(args, "_declared_terms", "")
+            or "engineering")
+    return TERMS[name]
+
+
+def caution(args: argparse.Namespace, *, engineering: bool = True) -> str | None:
+    """The caution line of a summary: the plant caution (:data:`CAUTION`) with
+    engineering terms or whenever a plant or grid is analysed, else the research note
+    (:data:`RESEARCH_CAUTION`). ``engineering=False`` (a verb whose engineering summary
+    carries no caution): ``None`` in engineering terms.
+    """
+    if terms(args).name == "engineering":
+        return CAUTION if engineering else None
+    return CAUTION if getattr(args, "_plant", False) else RESEARCH_CAUTION
 
 
 def progress_enabled(args: argparse.Namespace) -> bool | None:

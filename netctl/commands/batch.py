@@ -31,6 +31,7 @@ from netctl.commands._options import (
     add_outputs,
     add_quiet,
     parse_names,
+    progress_enabled,
 )
 from netctl.errors import NetctlError
 
@@ -248,8 +249,12 @@ def _cmd_batch(args: argparse.Namespace) -> int:
         raise UsageError(f"cannot write {args.out}: the folder {out_dir} does not exist.")
     shared = {"task": args.task, "format": args.format, "model": args.model,
               "inputs": args.inputs, "outputs": args.outputs}
+    from netctl.report.progress import count_progress
+
     rows = run_tasks(batch_row, files, seed=0, shared=shared, executor=args.executor,
-                     workers=args.workers, scheduler=args.scheduler)
+                     workers=args.workers, scheduler=args.scheduler,
+                     progress=count_progress(f"batch {args.task}, files",
+                                             enabled=progress_enabled(args)))
     disturbed = [r for r in rows if r.get("n_disturbances")]
     # the disturbance columns appear only when some file declares disturbances, so a
     # batch of files without them writes exactly the columns it always did

@@ -7,15 +7,17 @@ import argparse
 from typing import Any
 
 from netctl.commands._options import (
-    CAUTION,
     SHOWN,
     UsageError,
     add_inputs,
     add_outputs,
+    add_terms,
+    caution,
     emit,
     load_system,
     names_line,
     parse_names,
+    terms,
 )
 
 __all__ = ["register"]
@@ -24,6 +26,7 @@ __all__ = ["register"]
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``check`` verb."""
     p = subparsers.add_parser(name, parents=[common], help=help)
+    add_terms(p)
     add_inputs(p)
     add_outputs(p)
     p.add_argument("--no-dimension", action="store_true",
@@ -55,12 +58,14 @@ def _cmd_check(args: argparse.Namespace) -> int:
         reports.append(controllability(system, dimension=not args.no_dimension))
     if check_outputs:
         reports.append(observability(system, dimension=not args.no_dimension))
-    lines = [f"{args.file}: {system.n_states} states, model {system.model}"]
+    t = terms(args)
+    lines = [f"{args.file}: {t.of(system.n_states)}, model {system.model}"]
     ok = True
     for r in reports:
         ok &= r.controllable
         word = "controllable" if r.kind == "controllability" else "observable"
-        what = "inputs" if r.kind == "controllability" else "sensors"
+        what = (("driver nodes" if t.name == "network" else "inputs")
+                if r.kind == "controllability" else "sensors")
         dim = r.controllable_dimension
         lines.append(f"  structurally {word}: {'yes' if r.controllable else 'NO'}"
                      + (f" (generic {word} dimension {dim} of {r.n_states})"
@@ -72,7 +77,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
         if not r.controllable:
             lines.append(f"  smallest fix: add {r.n_missing_inputs} dedicated {what} at "
                          + names_line(r.names(r.fix[:SHOWN]), total=r.fix.size))
-    lines.append("  " + CAUTION)
+    lines.append("  " + str(caution(args)))
 
     def full() -> dict[str, Any]:
         result: dict[str, Any] = {"file": args.file}

@@ -10,9 +10,12 @@ from netctl.commands._options import (
     add_executor_options,
     add_samples,
     add_seed,
+    add_terms,
+    caution,
     emit,
     load_system,
     progress_enabled,
+    terms,
 )
 
 __all__ = ["register"]
@@ -23,6 +26,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     from netctl.ensemble.null import NULL_MODELS
 
     p = subparsers.add_parser(name, parents=[common], help=help)
+    add_terms(p)
     p.add_argument("--null", choices=list(NULL_MODELS), default="degree",
                    help="null model: degree = configuration model (stub matching; default), "
                         "swap = degree-preserving link swaps of the network itself, "
@@ -64,23 +68,31 @@ def _cmd_compare(args: argparse.Namespace) -> int:
     d["file"] = args.file
     n = r.n_states
     z = r.z_score
-    lines = [f"{args.file}: {n} states, {r.n_links} links, model {r.model}",
-             f"  observed minimum inputs: {r.observed_n_inputs} "
-             f"(fraction {_fmt(r.fraction(r.observed_n_inputs))})",
+    t = terms(args)
+    frac = "fraction" if t.name == "engineering" else t.fraction
+    lines = [f"{args.file}: {t.of(n)}, {r.n_links} links, model {r.model}",
+             f"  observed {t.inputs}: {r.observed_n_inputs} "
+             f"({frac} {_fmt(r.fraction(r.observed_n_inputs))})",
              f"  null model '{r.null}' ({r.n_samples} samples, seed {r.seed}): "
              f"mean {_fmt(r.mean)}, standard deviation {_fmt(r.std)}, standard error of "
              f"the mean {_fmt(r.standard_error, 2)}",
-             f"    as fractions of the states: mean {_fmt(r.fraction(r.mean))}, standard "
+             f"    as fractions of the {t.states}"
+             + ("" if t.name == "engineering" else " (n_D)")
+             + f": mean {_fmt(r.fraction(r.mean))}, standard "
              f"deviation {_fmt(r.fraction(r.std))}",
              f"  z-score: {_fmt(z)}"
              + ("" if z is not None else " (the samples have no spread)")]
     if r.prediction is not None:
         p = r.prediction.driver_fraction
         lines.append(f"  cavity prediction (Liu, Slotine & Barabasi 2011; larger side, see "
-                     f"docs/SCALE.md): fraction {_fmt(p)} ({_fmt(p * n)} inputs)")
+                     f"docs/SCALE.md): {frac} {_fmt(p)} ({_fmt(p * n)} "
+                     f"{'inputs' if t.name == 'engineering' else 'driver nodes'})")
     for note in r.notes:
         lines.append(f"  note: {note}")
     lines.append("  (z-score: how many ensemble standard deviations the observed count lies "
                  "from the ensemble mean)")
+    note = caution(args, engineering=False)
+    if note:
+        lines.append("  " + note)
     emit(args, d, "\n".join(lines))
     return 0

@@ -6,7 +6,17 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import UsageError, add_json, add_out, add_quiet, add_seed, emit
+from netctl.commands._options import (
+    UsageError,
+    add_json,
+    add_out,
+    add_quiet,
+    add_seed,
+    add_terms,
+    caution,
+    emit,
+    progress_enabled,
+)
 
 __all__ = ["register"]
 
@@ -32,6 +42,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     add_json(p)
     add_out(p)
     add_quiet(p)
+    add_terms(p)
     p.set_defaults(func=_cmd_curve)
 
 
@@ -43,9 +54,8 @@ def _numbers(text: str, what: str) -> list[float]:
 
 
 def _cmd_curve(args: argparse.Namespace) -> int:
-    import sys
-
     from netctl.ensemble.curves import driver_fraction_curve
+    from netctl.report.progress import count_progress
 
     ks = _numbers(args.mean_degrees, "--mean-degrees")
     gammas = _numbers(args.exponents, "--exponents")
@@ -59,15 +69,13 @@ def _cmd_curve(args: argparse.Namespace) -> int:
     for fam in args.family or ["erdos-renyi", "scale-free"]:
         for g in (gammas if fam == "scale-free" else [None]):
             jobs.append((fam, g))
-    tty = sys.stderr.isatty() and not args.quiet
     curves = []
     for i, (fam, g) in enumerate(jobs):
-        if tty:
-            sys.stderr.write(f"netctl: [{i + 1}/{len(jobs)}] {fam}"
-                             + (f" gamma {g}" if g else "") + " ...\n")
+        tick = count_progress(f"[{i + 1}/{len(jobs)}] {fam}" + (f" gamma {g}" if g else "")
+                              + ", networks", enabled=progress_enabled(args))
         curves.append(driver_fraction_curve(fam, ks, n_states=args.nodes,
                                             samples=args.samples, exponent=g or 2.5,
-                                            seed=args.seed))
+                                            seed=args.seed, progress=tick))
     lines = [f"driver-node fraction n_D against mean degree <k> = 2 L / N "
              f"(N = {args.nodes}, {args.samples} networks a point, seed {args.seed}; "
              "simulated: mean +/- standard error)"]
@@ -88,6 +96,9 @@ def _cmd_curve(args: argparse.Namespace) -> int:
         ax = plot_driver_curves(labels)
         save_figure(ax.figure, args.plot)
         lines.append(f"  plot written to {args.plot}")
+    note = caution(args, engineering=False)
+    if note:
+        lines.append("  " + note)
     emit(args, {"analysis": "driver_fraction_curves",
                 "curves": [c.to_dict() for c in curves]}, "\n".join(lines))
     return 0

@@ -6,7 +6,15 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import SHOWN, emit, load_system, names_line
+from netctl.commands._options import (
+    SHOWN,
+    add_terms,
+    caution,
+    emit,
+    load_system,
+    names_line,
+    terms,
+)
 
 __all__ = ["register"]
 
@@ -14,6 +22,7 @@ __all__ = ["register"]
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``drivers`` or the ``sensors`` verb."""
     p = subparsers.add_parser(name, parents=[common], help=help)
+    add_terms(p)
     if name == "sensors":
         p.add_argument("--dedicated", action="store_true",
                        help="each sensor reads exactly one state (default: may be shared)")
@@ -34,19 +43,23 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
     def full() -> dict[str, Any]:
         return {**design.to_dict(), "file": args.file}
 
+    t = terms(args)
     noun = "sensors" if sensors else "inputs"
     kind = "dedicated" if args.dedicated else "shared"
-    where = "read" if sensors else "driven"
-    lines = [f"{args.file}: {design.n_states} states, model {design.model}",
-             f"  minimum {noun} ({kind}): {design.n_inputs}"
-             + (f" (fraction of the states {design.n_inputs / design.n_states:.3g})"
+    where = f"read {t.states}" if sensors else t.driven
+    lines = [f"{args.file}: {t.of(design.n_states)}, model {design.model}",
+             f"  {t.sensors if sensors else t.inputs} ({kind}): {design.n_inputs}"
+             + (f" ({t.fraction} {design.n_inputs / design.n_states:.3g})"
                 if design.n_states else ""),
-             f"  {where} states ({design.drivers.size}): "
+             f"  {where} ({design.drivers.size}): "
              + names_line(design.names(design.drivers[:SHOWN]), total=design.drivers.size)]
     if not args.dedicated and design.n_inputs < design.drivers.size:
-        lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which states each "
-                     f"{noun[:-1]} {'reads' if sensors else 'acts on'}")
-    lines.append("  (one minimum set of possibly many; ties broken by state order)")
+        lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which {t.states} "
+                     f"each {noun[:-1]} {'reads' if sensors else 'acts on'}")
+    lines.append(f"  (one minimum set of possibly many; ties broken by {t.state} order)")
+    note = caution(args, engineering=False)
+    if note:
+        lines.append("  " + note)
     emit(args, full, "\n".join(lines))
     return 0
 

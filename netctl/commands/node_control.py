@@ -7,7 +7,16 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import UsageError, add_seed, emit, load_system, progress_enabled
+from netctl.commands._options import (
+    UsageError,
+    add_seed,
+    add_terms,
+    caution,
+    emit,
+    load_system,
+    progress_enabled,
+    terms,
+)
 
 __all__ = ["register"]
 
@@ -15,6 +24,7 @@ __all__ = ["register"]
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``node-control`` verb."""
     p = subparsers.add_parser(name, parents=[common], help=help)
+    add_terms(p)
     p.add_argument("--sweeps", type=int, default=400, metavar="K",
                    help="sampling sweeps of minimum driver sets after burn-in (default 400)")
     p.add_argument("--burn-in", type=int, default=50, metavar="K",
@@ -60,8 +70,9 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
                          "centrality": None if cent is None else cent.to_dict()}
     c = cap.capacity
     between = int(np.count_nonzero((c > 0) & (c < 1)))
-    lines = [f"{args.file}: {n} nodes, {system.n_links} links, model {system.model}",
-             f"  unmatched nodes in every minimum driver set: {cap.n_drivers}"
+    t = terms(args)
+    lines = [f"{args.file}: {t.of(n)}, {system.n_links} links, model {system.model}",
+             f"  {t.unmatched} in every minimum driver set: {cap.n_drivers}"
              + (f" (n_D = {cap.n_drivers / n:.3g})" if n else ""),
              f"  control capacity ({cap.sweeps} sweeps after {cap.burn_in} burn-in, seed "
              f"{cap.seed}): {int(np.count_nonzero(c == 1))} always drivers, "
@@ -73,13 +84,16 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
     if cent is not None and n:
         k = cent.centrality
         lines.append(f"  control centrality (largest first; generic controllable dimension "
-                     f"from that node alone, of {n}):")
+                     f"from that {t.state} alone, of {n}):")
         for i in np.lexsort((np.arange(n), -k))[:args.top]:
             lines.append(f"    {system.state_names[i]}: {int(k[i])}")
-    lines.append("  driver fraction by in-degree (degree: nodes, expected fraction of them "
-                 "that drive):")
+    lines.append(f"  driver fraction by in-degree (degree: {t.states}, expected fraction of "
+                 "them that drive):")
     lines.append("    " + "; ".join(f"{k}: {m}, {f:.3g}" for k, m, f in table.in_degree[:8]))
     lines.append("  by out-degree:")
     lines.append("    " + "; ".join(f"{k}: {m}, {f:.3g}" for k, m, f in table.out_degree[:8]))
+    note = caution(args, engineering=False)
+    if note:
+        lines.append("  " + note)
     emit(args, d, "\n".join(lines))
     return 0

@@ -7,7 +7,7 @@ import argparse
 import csv
 from typing import Any
 
-from netctl.commands._options import CAUTION, emit, load_system, safe_write
+from netctl.commands._options import add_terms, caution, emit, load_system, safe_write, terms
 
 __all__ = ["register"]
 
@@ -15,6 +15,7 @@ __all__ = ["register"]
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``roles`` verb."""
     p = subparsers.add_parser(name, parents=[common], help=help)
+    add_terms(p)
     p.add_argument("--csv", metavar="FILE", default=None,
                    help="also write the roles as CSV: element,source,target,role (one row a "
                         "state with an empty target, one row a link)")
@@ -53,21 +54,23 @@ def _cmd_roles(args: argparse.Namespace) -> int:
         d["nodes"] = nr.to_dict()["nodes"]
         d["links"] = lr.to_dict()["links"]
     nc, lc = nr.counts(), lr.counts()
-    lines = [f"{args.file}: {nr.n_states} states, {lr.n_links} links, model {system.model}",
-             f"  minimum inputs: {nr.n_inputs} (structural rank of A {nr.matching_size} of "
+    t = terms(args)
+    lines = [f"{args.file}: {t.of(nr.n_states)}, {lr.n_links} links, model {system.model}",
+             f"  {t.inputs}: {nr.n_inputs} (structural rank of A {nr.matching_size} of "
              f"{nr.n_states})",
-             f"  states: {nc['critical']} critical, {nc['intermittent']} intermittent, "
+             f"  {t.states}: {nc['critical']} critical, {nc['intermittent']} intermittent, "
              f"{nc['redundant']} redundant"]
     if nr.perfect_matching:
-        lines.append("  (A has a perfect matching: one input suffices; it must act on one "
-                     "state of every source component, so those states are the candidates)")
-    lines.append(f"  critical states (in every minimum driver set): "
+        lines.append(f"  (A has a perfect matching: one input suffices; it must act on one "
+                     f"{t.state} of every source component, so those {t.states} are the "
+                     "candidates)")
+    lines.append(f"  critical {t.states} (in every minimum driver set): "
                  f"{_short(nr.names(nr.critical))}")
     lines.append(f"  links: {lc['critical']} critical, {lc['ordinary']} ordinary, "
                  f"{lc['redundant']} redundant")
     crit = [f"{a} -> {b}" for a, b in lr.link_names(lr.critical)]
     lines.append(f"  critical links (losing one costs structural rank): {_short(crit)}")
-    lines.append("  " + CAUTION)
+    lines.append("  " + str(caution(args)))
     if args.csv:
         write_roles_csv(args.csv, nr, lr)
     emit(args, d, "\n".join(lines))

@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import argparse
 import csv
-import sys
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
@@ -60,15 +59,10 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
 def progress_printer(label: str, *, quiet: bool = False
                      ) -> Callable[[int, int], None] | None:
     """A ``progress(done, total)`` callback printing to stderr when it is a terminal
-    (never with ``quiet``)."""
-    if quiet or not sys.stderr.isatty():
-        return None
+    (never with ``quiet``): :func:`netctl.report.progress.count_progress`."""
+    from netctl.report.progress import count_progress
 
-    def show(done: int, total: int) -> None:
-        end = "\n" if done >= total else ""
-        print(f"\r{label}: {done}/{total}", end=end, file=sys.stderr, flush=True)
-
-    return show
+    return count_progress(label, enabled=False if quiet else None)
 
 
 def _cmd_sweep(args: argparse.Namespace) -> int:

@@ -21,11 +21,11 @@ from netctl.io.mtx import read_mtx, write_mtx
 from netctl.io.nodelink import read_nodelink, write_nodelink
 from netctl.io.npy import read_npy, write_npy
 from netctl.io.npz import read_npz, write_npz
-from netctl.io.system_spec import read_system, write_system
+from netctl.io.system_spec import declared_terms, read_system, write_system
 from netctl.system import StructuredSystem
 
-__all__ = ["FORMATS", "MATRIX_FORMATS", "ORIENTATIONS", "atomic_write", "detect_format",
-           "file_convention", "read", "read_state_list", "write"]
+__all__ = ["FORMATS", "MATRIX_FORMATS", "ORIENTATIONS", "atomic_write", "declared_terms",
+           "detect_format", "file_convention", "read", "read_state_list", "write"]
 
 Reader = Callable[..., StructuredSystem]
 Writer = Callable[[StructuredSystem, "str | os.PathLike[str]"], None]

@@ -37,7 +37,7 @@ else:  # pragma: no cover
     import tomli as tomllib
 
 __all__ = ["SystemSpec", "read_spec", "read_system", "write_system", "TIE_KINDS",
-           "STATE_ATTRIBUTES"]
+           "STATE_ATTRIBUTES", "TERMS", "declared_terms"]
 
 #: Kinds of tie between subsystems: a ``state`` tie is a link from a state of one
 #: subsystem to a state of another; a ``signal`` tie feeds an output of one subsystem
@@ -59,7 +59,10 @@ STATE_ATTRIBUTES: dict[str, str] = {
 
 _SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "disturbances", "regulated",
              "stations", "subsystems", "ties")
-_SYSTEM_KEYS = ("name", "description", "weighted")
+_SYSTEM_KEYS = ("name", "description", "weighted", "terms")
+
+#: ``[system] terms``: the words summaries use (closed set; see docs/FORMATS.md)
+TERMS: tuple[str, ...] = ("engineering", "network")
 _COUPLING_KEYS = ("file", "links", "undirected")
 _TIE_KEYS = ("from", "to", "kind", "weight")
 
@@ -94,6 +97,9 @@ class SystemSpec:
         and their links are left out of :meth:`subsystem_systems`.
     stations : dict of str to (tuple of str, tuple of str)
         Control station name -> (its input names, its output names), from ``[stations]``.
+    terms : str
+        ``[system] terms``: ``"engineering"`` (states, inputs, plant) or ``"network"``
+        (nodes, driver nodes, n_D) for the summaries; ``""`` when the file does not say.
     """
 
     path: str
@@ -107,6 +113,7 @@ class SystemSpec:
     tie_weights: tuple[float | None, ...] = ()
     unassigned: tuple[str, ...] = ()
     stations: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = field(default_factory=dict)
+    terms: str = ""
 
     def station_records(self) -> tuple[Station, ...]:
         """The ``[stations]`` as typed :class:`~netctl.system.Station` records (checked
@@ -176,6 +183,27 @@ class SystemSpec:
 
 
 # ---------------------------------------------------------------------- reading
+def _terms_of(doc: _Doc, system_t: Mapping[str, Any]) -> str:
+    terms = system_t.get("terms", "")
+    if terms != "" and terms not in TERMS:
+        raise doc.error(f"[system] terms must be one of {', '.join(map(repr, TERMS))}, "
+                        f"found {terms!r}; 'network' words summaries for network studies "
+                        "(nodes, driver nodes, n_D), 'engineering' for plants (states, "
+                        "inputs).", "terms")
+    return str(terms)
+
+
+def declared_terms(path: str | os.PathLike[str]) -> str:
+    """The ``[system] terms`` a system description declares (``""`` when none).
+
+    Reads only the TOML text (not the couplings file it may name); errors as
+    :func:`read_spec` reports them.
+    """
+    doc = _Doc(path)
+    system_t = doc.data.get("system", {})
+    return _terms_of(doc, system_t if isinstance(system_t, dict) else {})
+
+
 class _Doc:
     """The parsed TOML text with helpers to locate keys for error messages."""
 
@@ -290,6 +318,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     description = system_t.get("description", "")
     if not isinstance(name, str) or not isinstance(description, str):
         raise doc.error("[system] name and description must be strings.", "name")
+    terms = _terms_of(doc, system_t)
 
     names: list[str] = []
     index: dict[str, int] = {}
@@ -602,6 +631,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     if kinds:
         system = system.states_to_disturbances(kinds)
     return SystemSpec(path=str(path), name=name, description=description, system=system,
+                      terms=terms,
                       inputs=inputs, outputs=outputs, subsystems=subsystems, ties=tuple(ties),
                       tie_weights=tuple(tie_w), unassigned=unassigned, stations=stations)
 
