@@ -10,7 +10,7 @@ error over generated networks), the comparison of Liu, Slotine & Barabási (2011
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -84,7 +84,8 @@ def _static_pmf(n: int, links: int, exponent: float) -> np.ndarray:
 
 def driver_fraction_curve(family: str, mean_degrees: Sequence[float], *, n_states: int = 10_000,
                           samples: int = 5, exponent: float = 2.5,
-                          seed: int = 0) -> DriverCurve:
+                          seed: int = 0,
+                          progress: Callable[[int, int], None] | None = None) -> DriverCurve:
     r"""Analytic and simulated driver-node fraction against mean degree.
 
     Parameters
@@ -99,6 +100,8 @@ def driver_fraction_curve(family: str, mean_degrees: Sequence[float], *, n_state
     exponent : float
         Degree exponent of the scale-free family (> 2; ignored for Erdős–Rényi).
     seed : int
+    progress : callable(done, total), optional
+        Called after each simulated network (the command line prints it on a terminal).
 
     Returns
     -------
@@ -161,6 +164,8 @@ def driver_fraction_curve(family: str, mean_degrees: Sequence[float], *, n_state
                  else scale_free(n_states, mean_degree=k, exponent=exponent, seed=s))
             src, dst = g.edges()
             fr.append(n_unmatched(src, dst, n_states) / n_states)
+            if progress is not None:
+                progress(a * samples + b + 1, ks.size * samples)
         mean[a] = float(np.mean(fr))
         se[a] = float(np.std(fr, ddof=1) / math.sqrt(len(fr))) if len(fr) > 1 else 0.0
     return DriverCurve(family=family, n_states=int(n_states),
