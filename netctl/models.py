@@ -138,4 +138,5 @@ def second_order(network: StructuredSystem) -> StructuredSystem:
                             nodes=nodes, weighted=network.weighted, model="second-order",
                             E=E2, H=H2, disturbance_names=network.disturbance_names,
                             regulated_names=network.regulated_names,
-                            disturbance_nodes=network.disturbance_nodes)
+                            disturbance_nodes=network.disturbance_nodes,
+                            elements=network.elements)

@@ -40,6 +40,7 @@ from netctl._parts import (
     canonical_csr,
 )
 from netctl.errors import InvalidSystemError, UnknownNameError
+from netctl.elements import ElementTable
 from netctl.stations import Station, check_stations, make_stations
 
 __all__ = ["StructuredSystem", "Station", "NameList", "NODE_COLUMNS", "canonical_csr",
@@ -89,6 +90,11 @@ class StructuredSystem:
         Node-table columns of the disturbances (one value per disturbance: map
         coordinates and any other attribute the file gave them), kept so writers
         round-trip them.
+    elements : ElementTable or None
+        The physical elements (branches with their IDs, buses, generators) when the
+        system was read from a grid file; ``None`` otherwise. Element ends are network
+        nodes (buses), mapped to states through the node table's ``node`` column (a
+        second-order model) or the state names.
     """
 
     A: sp.csr_array
@@ -105,6 +111,7 @@ class StructuredSystem:
     disturbance_names: Sequence[str] = ()
     regulated_names: Sequence[str] = ()
     disturbance_nodes: Mapping[str, np.ndarray] = field(default_factory=dict)
+    elements: ElementTable | None = field(default=None, repr=False, compare=False)
     _index: dict[str, int] = field(default_factory=dict, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -648,7 +655,8 @@ class StructuredSystem:
                                 weighted=self.weighted, model=self.model,
                                 E=self.H.T.tocsr(), H=self.E.T.tocsr(),
                                 disturbance_names=self.regulated_names,
-                                regulated_names=self.disturbance_names)
+                                regulated_names=self.disturbance_names,
+                                elements=self.elements)
 
     def with_self_loops(self) -> StructuredSystem:
         """A copy with self-dynamics on every state (existing diagonal weights kept)."""
@@ -687,7 +695,7 @@ class StructuredSystem:
                     nodes=self.nodes, weighted=self.weighted, model=self.model,
                     E=self.E, H=self.H, disturbance_names=self.disturbance_names,
                     regulated_names=self.regulated_names,
-                    disturbance_nodes=self.disturbance_nodes)
+                    disturbance_nodes=self.disturbance_nodes, elements=self.elements)
         base.update(changes)
         return StructuredSystem(**base)
 

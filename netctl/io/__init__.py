@@ -16,15 +16,18 @@ from netctl.io._common import atomic_write
 from netctl.io.edgelist import read_edgelist, write_edgelist
 from netctl.io.gml import read_gml, write_gml
 from netctl.io.graphml import read_graphml, write_graphml
+from netctl.io.matpower import read_matpower
 from netctl.io.matrix_csv import read_matrix_csv, write_matrix_csv
 from netctl.io.mtx import read_mtx, write_mtx
 from netctl.io.nodelink import read_nodelink, write_nodelink
 from netctl.io.npy import read_npy, write_npy
 from netctl.io.npz import read_npz, write_npz
+from netctl.io.pandapower_json import looks_like_pandapower, read_pandapower_json
 from netctl.io.system_spec import declared_terms, read_system, write_system
 from netctl.system import StructuredSystem
 
-__all__ = ["FORMATS", "MATRIX_FORMATS", "ORIENTATIONS", "atomic_write", "declared_terms",
+__all__ = ["FORMATS", "GRID_FORMATS", "MATRIX_FORMATS", "ORIENTATIONS", "atomic_write",
+           "declared_terms",
            "detect_format", "file_convention", "read", "read_state_list", "write"]
 
 Reader = Callable[..., StructuredSystem]
@@ -41,7 +44,12 @@ FORMATS: dict[str, tuple[Reader, Writer | None, tuple[str, ...]]] = {
     "graphml": (read_graphml, write_graphml, (".graphml",)),
     "gml": (read_gml, write_gml, (".gml",)),
     "json": (read_nodelink, write_nodelink, (".json",)),
+    "matpower": (read_matpower, None, (".m",)),
+    "pandapower": (read_pandapower_json, None, ()),
 }
+
+#: Formats whose files describe a power grid (read with buses, branches and elements).
+GRID_FORMATS = ("matpower", "pandapower")
 
 
 #: formats that hold a matrix, whose entry (i, j) needs an orientation
@@ -151,10 +159,27 @@ def read(path: str | os.PathLike[str], format: str | None = None, *,
                           "directed; a symmetric matrix is already both ways); leave it out.")
     if undirected:
         return read_edgelist(path, model=model, undirected=True)
+    if format is None and fmt == "json" and _sniff_pandapower(path):
+        fmt = "pandapower"
     system = FORMATS[fmt][0](path, model=model)
     if orientation == "row-to-column":
         system = system._replace(A=system.A.T.tocsr())
     return system
+
+
+def _sniff_pandapower(path: str | os.PathLike[str]) -> bool:
+    """Whether a ``.json`` file starts like a saved pandapower network."""
+    import gzip
+
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(4096)
+        if head[:2] == b"\x1f\x8b":
+            with gzip.open(path, "rb") as gz:
+                head = gz.read(4096)
+    except OSError:
+        return False  # the reader reports the problem
+    return looks_like_pandapower(head.decode("utf-8", "replace"))
 
 
 def write(system: StructuredSystem, path: str | os.PathLike[str], format: str | None = None) -> None:

@@ -38,6 +38,11 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     except json.JSONDecodeError as exc:
         raise file_error(path, exc.lineno, f"invalid JSON at column {exc.colno}: {exc.msg}. "
                          "Check commas, brackets and quotes.") from None
+    if isinstance(data, dict) and "_module" in data and "_class" in data:
+        raise file_error(path, 1, f"this JSON is a saved {data.get('_class')!r} object (a "
+                         "pandapower network?), not node-link JSON; read it with "
+                         "--format pandapower (netctl reads it without importing anything "
+                         "it names).")
     if not isinstance(data, dict) or not isinstance(data.get("nodes"), list):
         raise file_error(path, None, "expected a JSON object with a \"nodes\" list and a "
                          "\"links\" list (node-link layout, see docs/FORMATS.md).")

@@ -270,4 +270,5 @@ def _swing(system: StructuredSystem, rng: np.random.Generator, tag: str) -> Stru
                             nodes=nodes, weighted=True, model=tag, E=E, H=H,
                             disturbance_names=system.disturbance_names,
                             regulated_names=system.regulated_names,
-                            disturbance_nodes=system.disturbance_nodes)
+                            disturbance_nodes=system.disturbance_nodes,
+                            elements=system.elements)

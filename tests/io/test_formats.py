@@ -40,8 +40,13 @@ def sample(weighted, rng):
                                        state_names=[f"b{i}" for i in range(n)])
 
 
+#: read-only grid formats, tested in tests/io/test_grid_files.py
+READ_ONLY = {"matpower": ".m", "pandapower": None}
+
+
 def test_every_format_is_tested():
-    assert set(SUFFIX) == set(FORMATS)
+    assert set(SUFFIX) | set(READ_ONLY) == set(FORMATS)
+    assert detect_format("case118.m") == "matpower"
     for fmt, suffix in SUFFIX.items():
         assert detect_format("net" + suffix) == fmt
 

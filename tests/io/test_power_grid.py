@@ -52,15 +52,26 @@ def test_fake_net_tables():
     with pytest.warns(UserWarning) as rec:
         s = from_pandapower(FakeNet())
     msg = " ".join(str(w.message) for w in rec)
-    assert "1 out-of-service trafo element(s) left out" in msg
-    assert "1 out-of-service bus(es) kept as isolated states" in msg
-    assert "1 parallel branch(es) merged" in msg
-    assert s.state_names == ("A", "B", "C", "D", "E")
+    # out-of-service elements are left out and named: bus E, trafo 1, and line 3 (it
+    # ends at bus E)
+    assert "out-of-service elements left out: bus E, trafo 1, line 3" in msg
+    assert s.state_names == ("A", "B", "C", "D")
     want = {("A", "B"), ("B", "C"), ("C", "D"), ("A", "C")}
     got = {(s.state_names[a], s.state_names[b]) for a, b in zip(*s.edges())}
     assert got == want | {(b, a) for a, b in want}
-    assert s.nodes["x"].tolist() == [0, 1, 2, 3, 4] and s.nodes["y"][4] == 8
-    assert s.nodes["generation"].tolist() == [True, False, False, False, False]
+    assert s.nodes["x"].tolist() == [0, 1, 2, 3] and s.nodes["y"][3] == 6
+    assert s.nodes["bus"].tolist() == [10, 11, 12, 13]
+    assert s.nodes["generation"].tolist() == [True, False, False, False]
+    # parallel circuits stay distinct elements; the transformer is labelled
+    el = s.elements
+    assert [el.element(k).to_dict() for k in range(5)] == [
+        {"id": "line 0", "kind": "line", "buses": ["A", "B"]},
+        {"id": "line 1", "kind": "line", "buses": ["B", "C"]},
+        {"id": "line 2", "kind": "line", "buses": ["B", "C"]},
+        {"id": "trafo 0", "kind": "transformer", "buses": ["C", "D"]},
+        {"id": "switch 0", "kind": "switch", "buses": ["A", "C"]}]
+    assert el.parallel_group()[:5].tolist() == [1, 2, 2, 1, 1]
+    assert el.counts() == {"line": 3, "transformer": 1, "switch": 1, "bus": 4, "generator": 1}
 
 
 def test_not_a_net():
