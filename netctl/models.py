@@ -27,7 +27,7 @@ import scipy.sparse as sp
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
 
-__all__ = ["MODELS", "apply_model", "second_order"]
+__all__ = ["MODELS", "apply_model", "resolve_model", "second_order", "SWING_DEFAULTS"]
 
 MODELS: dict[str, str] = {
     "first-order": "one state per node, couplings along the links, self-loops only where given",
@@ -35,6 +35,43 @@ MODELS: dict[str, str] = {
     "second-order": "two states per node (node:pos, node:vel): pos <- own vel; vel <- own "
                     "vel (damping), own pos and neighbours' pos; inputs act on vel states",
 }
+
+#: Per-unit defaults of the second-order (swing) model where the case gives none: inertia
+#: constant ``M`` and damping ``D`` of every bus. Couplings come from the case (branch
+#: susceptance ``1/x`` in per unit on the case's MVA base), else 1.
+SWING_DEFAULTS: dict[str, float] = {"inertia": 1.0, "damping": 1.0}
+
+
+def resolve_model(system: StructuredSystem, requested: str | None) -> StructuredSystem:
+    """Apply the model a verb should use: ``requested``, else the file's own.
+
+    * A system whose states are already under a model (a system description that
+      records ``model``) keeps it; asking for another one is an error.
+    * A power grid (read with its elements: buses and branches) defaults to the
+      ``second-order`` (swing) model; a warning says so when the first-order model,
+      which has no self-dynamics (no inertia, no damping), is asked for on a grid.
+    * Any other network defaults to ``first-order``.
+
+    Raises
+    ------
+    OptionError
+        ``requested`` is not one of :data:`MODELS`, or differs from the model the
+        file's states are already under.
+    """
+    if system.model in MODELS:
+        if requested is None or requested == system.model:
+            return system
+        raise OptionError(f"the file's states are already under the {system.model!r} model "
+                          f"(recorded in the file); --model {requested} cannot be applied on "
+                          "top of it. Leave out --model, or convert the original network.")
+    grid = system.elements is not None
+    model = requested or ("second-order" if grid else "first-order")
+    if grid and model == "first-order":
+        warnings.warn("the first-order model has no self-dynamics (no inertia, no damping), "
+                      "which is not physical for an electrical network and inflates the "
+                      "number of inputs; grids default to --model second-order (swing).",
+                      stacklevel=2)
+    return apply_model(system, model)
 
 
 def apply_model(network: StructuredSystem, model: str) -> StructuredSystem:
@@ -75,8 +112,10 @@ def second_order(network: StructuredSystem) -> StructuredSystem:
         \dot{v}_i = -d_i v_i - k_i p_i + \sum_{j \to i} w_{ij} p_j .
 
     When the network is weighted, ``w_ij`` are its weights and ``k_i = \sum_j w_ij``
-    (diffusive coupling; ``k_i = 1`` when that sum is 0), with unit inertia and unit
-    damping ``d_i = 1``; otherwise every entry is 1 (a pattern). Self-loops of the
+    (diffusive coupling; ``k_i = 1`` when that sum is 0), divided by the inertia ``M_i``
+    of the node table's ``inertia`` column, with damping ``d_i = D_i / M_i`` from its
+    ``damping`` column (both per unit; :data:`SWING_DEFAULTS` where absent); otherwise
+    every entry is 1 (a pattern). Self-loops of the
     network are absorbed into the own-position term (with a warning that counts them).
     Input ``k`` acting on node ``i`` acts on ``i:vel``; output ``r`` reading node ``i``
     reads ``i:pos``. The node table is repeated for both states of a node, with
@@ -102,10 +141,17 @@ def second_order(network: StructuredSystem) -> StructuredSystem:
     damp: np.ndarray = np.ones(n)
     couple: np.ndarray = np.ones(rows.size)
     if network.weighted:
+        inertia = np.asarray(network.nodes.get("inertia", np.full(n, SWING_DEFAULTS["inertia"])),
+                             float)
+        damping = np.asarray(network.nodes.get("damping", np.full(n, SWING_DEFAULTS["damping"])),
+                             float)
+        inertia = np.where(np.isfinite(inertia) & (inertia > 0), inertia,
+                           SWING_DEFAULTS["inertia"])
+        damping = np.where(np.isfinite(damping), damping, SWING_DEFAULTS["damping"])
         k_i = np.bincount(rows, weights=vals, minlength=n)
-        own = -np.where(k_i == 0, 1.0, k_i)
-        damp = -damp
-        couple = vals.astype(np.float64)
+        own = -np.where(k_i == 0, 1.0, k_i) / inertia
+        damp = -damping / inertia
+        couple = vals.astype(np.float64) / inertia[rows]
     r = np.concatenate([pos, vel, vel, 2 * rows + 1])
     c = np.concatenate([vel, vel, pos, 2 * cols])
     d = np.concatenate([np.ones(n), damp, own, couple])

@@ -104,12 +104,14 @@ def add_format(p: Any, *, help: str = "file format (default: from the file name)
 
 
 def add_model(p: Any, *, help: str = (
-        "how a plain network becomes a state-space pattern (default: first-order; "
-        "self-loops adds self-dynamics to every state)")) -> None:
-    """``--model``: one of :data:`netctl.models.MODELS` (default ``first-order``)."""
+        "how a plain network becomes a state-space pattern (default: the model a system "
+        "description records; second-order (swing) for power-grid files; first-order "
+        "otherwise; self-loops adds self-dynamics to every state)")) -> None:
+    """``--model``: one of :data:`netctl.models.MODELS` (default: the file's own, see
+    :func:`netctl.models.resolve_model`)."""
     from netctl.models import MODELS
 
-    p.add_argument("--model", choices=list(MODELS), default="first-order", help=help)
+    p.add_argument("--model", choices=list(MODELS), default=None, help=help)
 
 
 def add_json(p: Any, *, help: str = "print the full result as JSON") -> None:
@@ -247,11 +249,11 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
     recorded in ``args.file_convention``, which :func:`emit` prints and adds to the JSON.
     """
     from netctl.io import detect_format, file_convention, read
-    from netctl.models import apply_model
+    from netctl.models import resolve_model
 
     orientation = getattr(args, "orientation", None)
     undirected = bool(getattr(args, "undirected", False))
-    system = apply_model(read(args.file, args.format, orientation=orientation,
+    system = resolve_model(read(args.file, args.format, orientation=orientation,
                               undirected=undirected), args.model)
     fmt = args.format or detect_format(args.file)
     args.file_convention = file_convention(fmt, orientation=orientation,

@@ -138,7 +138,8 @@ def batch_row(path: str, seed: Any, shared: dict[str, Any]) -> dict[str, Any]:
     the reader knows the line).
     """
     task = shared["task"]
-    row: dict[str, Any] = {"file": path, "task": task, "model": shared["model"]}
+    row: dict[str, Any] = {"file": path, "task": task,
+                           "model": shared["model"] or "default"}
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
@@ -158,9 +159,9 @@ def batch_row(path: str, seed: Any, shared: dict[str, Any]) -> dict[str, Any]:
 
 def _analyse(path: str, shared: dict[str, Any]) -> dict[str, Any]:
     from netctl.io import read
-    from netctl.models import apply_model
+    from netctl.models import resolve_model
 
-    system = apply_model(read(path, shared["format"]), shared["model"])
+    system = resolve_model(read(path, shared["format"]), shared["model"])
     out = _analyse_system(system, shared)
     if system.n_disturbances:  # reported apart: never states, never driven or sensed
         out["n_disturbances"] = system.n_disturbances
@@ -175,7 +176,8 @@ def _analyse_system(system: Any, shared: dict[str, Any]) -> dict[str, Any]:
         from netctl.structural import minimum_inputs
 
         d = minimum_inputs(system)
-        return {"n_states": n, "n_links": system.n_links, "n_self_loops": system.n_self_loops,
+        return {"model": system.model, "n_states": n, "n_links": system.n_links,
+                "n_self_loops": system.n_self_loops,
                 "n_inputs": d.n_inputs, "n_dedicated_inputs": int(d.drivers.size),
                 "driver_fraction": d.n_inputs / n if n else "",
                 "structural_rank_A": d.matching_size,
@@ -183,7 +185,8 @@ def _analyse_system(system: Any, shared: dict[str, Any]) -> dict[str, Any]:
     if task == "check":
         from netctl.structural import controllability, observability
 
-        out: dict[str, Any] = {"n_states": n, "n_links": system.n_links}
+        out: dict[str, Any] = {"model": system.model, "n_states": n,
+                               "n_links": system.n_links}
         if shared["inputs"] is not None:
             system = system.with_inputs(parse_names(system, shared["inputs"]))
             r = controllability(system)
@@ -202,8 +205,8 @@ def _analyse_system(system: Any, shared: dict[str, Any]) -> dict[str, Any]:
     nr = roles.node_roles(system)
     lr = roles.link_roles(system)
     nc, lc = nr.counts(), lr.counts()
-    return {"n_states": n, "n_links": system.n_links, "n_inputs": nr.n_inputs,
-            "critical_states": nc["critical"], "intermittent_states": nc["intermittent"],
+    return {"model": system.model, "n_states": n, "n_links": system.n_links,
+            "n_inputs": nr.n_inputs, "critical_states": nc["critical"], "intermittent_states": nc["intermittent"],
             "redundant_states": nc["redundant"], "critical_links": lc["critical"],
             "ordinary_links": lc["ordinary"], "redundant_links": lc["redundant"]}
 

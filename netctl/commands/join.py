@@ -49,7 +49,7 @@ def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any
     """Subsystems (and ties) from one file: a TOML description with subsystems gives
     several, any other file one."""
     from netctl.io import read
-    from netctl.models import apply_model
+    from netctl.models import resolve_model
     from netctl.records import Tie
 
     if Path(path).suffix.lower() == ".toml":
@@ -58,7 +58,7 @@ def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any
         if importlib.util.find_spec("netctl.io.system_spec") is not None:
             from netctl.io.system_spec import read_spec
 
-            spec = read_spec(path, model=args.model)
+            spec = read_spec(path)
             if spec.subsystems:
                 if spec.unassigned:
                     import warnings
@@ -70,12 +70,12 @@ def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any
                                   stacklevel=2)
                 subs = spec.subsystem_systems()
                 out: dict[str, Any] = {
-                    k: (apply_model(v, args.model), []) for k, v in subs.items()}
+                    k: (resolve_model(v, args.model), []) for k, v in subs.items()}
                 first = next(iter(out))
                 out[first] = (out[first][0], [Tie(*t) for t in spec.ties])
                 return out
-            return {name: (apply_model(spec.system, args.model), [])}
-    return {name: (apply_model(read(path, args.format), args.model), [])}
+            return {name: (resolve_model(spec.system, args.model), [])}
+    return {name: (resolve_model(read(path, args.format), args.model), [])}
 
 
 def _cmd_join(args: argparse.Namespace) -> int:

@@ -79,7 +79,9 @@ def build_grid(t: GridTables, *, model: str = "given") -> StructuredSystem:
         States named by the bus labels; weighted (branch susceptances); node table
         ``bus`` (the case's bus number or index), ``vn_kv`` (nominal voltage, kV),
         ``generation`` (an in-service generator, static generator, external grid or
-        storage unit is connected) and ``x``, ``y`` when the case has coordinates;
+        storage unit is connected), ``actuator`` (the default actuator sites: the
+        generation buses), ``sensor`` (every bus may host a phasor measurement unit)
+        and ``x``, ``y`` when the case has coordinates;
         :attr:`~StructuredSystem.elements` lists every in-service branch, bus and
         generator by its case ID.
 
@@ -153,6 +155,10 @@ def build_grid(t: GridTables, *, model: str = "given") -> StructuredSystem:
         "bus": np.asarray(t.bus_ids, np.int64)[live_idx],
         "vn_kv": np.asarray(t.bus_kv, float)[live_idx],
         "generation": gen_flag,
+        # default actuator sites: buses with generation (power enters there); phasor
+        # measurement units may sit at any bus
+        "actuator": gen_flag.copy(),
+        "sensor": np.ones(n, bool),
     }
     if t.coords is not None:
         nodes["x"] = np.asarray(t.coords[0], float)[live_idx]

@@ -59,10 +59,14 @@ STATE_ATTRIBUTES: dict[str, str] = {
 
 _SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "disturbances", "regulated",
              "stations", "subsystems", "ties")
-_SYSTEM_KEYS = ("name", "description", "weighted", "terms")
+_SYSTEM_KEYS = ("name", "description", "weighted", "terms", "model")
 
 #: ``[system] terms``: the words summaries use (closed set; see docs/FORMATS.md)
 TERMS: tuple[str, ...] = ("engineering", "network")
+
+#: Models a description may record for its states (the names of
+#: :data:`netctl.models.MODELS`; io does not import the models layer).
+_MODEL_NAMES = ("first-order", "self-loops", "second-order")
 _COUPLING_KEYS = ("file", "links", "undirected")
 _TIE_KEYS = ("from", "to", "kind", "weight")
 
@@ -563,6 +567,12 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     if n == 0:
         raise doc.error("the description declares no states: add a [states] section, "
                         "couplings, or a coupling file (see docs/FORMATS.md).")
+    stored_model = system_t.get("model")
+    if stored_model is not None:
+        if stored_model not in _MODEL_NAMES:
+            raise doc.error(f"[system] model must be one of {', '.join(_MODEL_NAMES)}, found "
+                            f"{stored_model!r}.", "model")
+        model = stored_model
     weighted_given = system_t.get("weighted")
     if weighted_given is not None and not isinstance(weighted_given, bool):
         raise doc.error(f"[system] weighted must be true or false, found {weighted_given!r}.",
@@ -753,7 +763,10 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
     lines = ["# netctl system description (schema: docs/FORMATS.md).",
              "# A coupling [u, v] means state u influences state v (A[v, u] != 0).",
              "", "[system]", f"name = {_val(Path(path).stem)}",
-             f"weighted = {_val(system.weighted)}", "", "[states]"]
+             f"weighted = {_val(system.weighted)}"]
+    if system.model in _MODEL_NAMES:
+        lines.append(f"model = {_val(system.model)}  # the states below are under this model")
+    lines += ["", "[states]"]
     cols = {k: v for k, v in system.nodes.items() if k != "subsystem"}
     for i in range(n):
         parts = []
