@@ -40,7 +40,7 @@ from netctl._parts import (
     canonical_csr,
 )
 from netctl.errors import InvalidSystemError, UnknownNameError
-from netctl.elements import ElementTable
+from netctl.records import ElementTable
 from netctl.stations import Station, check_stations, make_stations
 
 __all__ = ["StructuredSystem", "Station", "NameList", "NODE_COLUMNS", "canonical_csr",

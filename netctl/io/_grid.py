@@ -4,7 +4,7 @@ The readers (:mod:`netctl.io.matpower`, :mod:`netctl.io.pandapower_json`,
 :func:`netctl.io.power_grid.from_pandapower`) fill :class:`GridTables`; :func:`build_grid`
 checks them (missing buses, duplicate bus numbers, branches from a bus to itself: file
 and line), leaves out-of-service elements out with a warning that names them, and
-returns the bus network with its :class:`~netctl.elements.ElementTable`.
+returns the bus network with its :class:`~netctl.records.ElementTable`.
 
 Couplings are branch susceptances: a branch of series reactance ``x`` (per unit on the
 case's base) couples its two buses with ``1 / |x|``, parallel circuits add up; a
@@ -20,7 +20,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from netctl.elements import ElementTable
+from netctl.records import ElementTable
 from netctl.io._common import file_error
 from netctl.system import StructuredSystem
 
