@@ -291,19 +291,59 @@ def _disturbance_text(info: dict[str, Any]) -> str:
             + "; ".join(parts) + (f"; ... ({more} more; --json lists all)" if more > 0 else ""))
 
 
-def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs") -> np.ndarray:
-    """State indices from a comma-separated list or a file with one name a line."""
-    from netctl.errors import NetctlError
+def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs",
+                whole_bus: bool = False) -> np.ndarray:
+    """State indices from a comma-separated list or a file with one name a line.
+
+    In a second-order model a plain node (bus) name means the node: its velocity
+    (frequency) state for an input, its position (angle) state for a sensor, and both of
+    its states with ``whole_bus`` (a removal). In a grid, an input named on an angle
+    state and the removal of half a bus are refused.
+    """
+    from netctl.errors import NetctlError, UnknownNameError
     from netctl.io import read_state_list
 
     names = read_state_list(value)
     if not names:
         raise UsageError(f"{what} names no state; give comma-separated state names or a "
                          "file with one name a line.")
+    if system.model == "second-order" or "part" in system.nodes:
+        names = _node_names(system, names, what, whole_bus)
     try:
         return system.index_of(names)
     except NetctlError as exc:
+        if isinstance(exc, UnknownNameError) and system.elements is not None:
+            raise UnknownNameError(f"{what}: {exc} Grid states are bus numbers (or "
+                                   "'BUS:pos' / 'BUS:vel' in the swing model).") from None
         raise type(exc)(f"{what}: {exc}") from None
+
+
+def _node_names(system: StructuredSystem, names: list[str], what: str, whole_bus: bool
+                ) -> list[str]:
+    """Plain node names of a second-order model, mapped to its states (see parse_names)."""
+    known = set(system.state_names)
+    grid = system.elements is not None
+    sensing = "output" in what or "sensor" in what
+    out: list[str] = []
+    for name in names:
+        if name in known:
+            base, _, part = name.rpartition(":")
+            if grid and whole_bus and part in ("pos", "vel"):
+                raise UsageError(f"{what}: {name!r} is half of bus {base!r}; a bus is removed "
+                                 f"with both of its states: give {base!r}.")
+            if grid and not sensing and not whole_bus and part == "pos":
+                raise UsageError(f"{what}: {name!r} is the angle of bus {base!r}; power enters "
+                                 "a bus's frequency (power balance), never its angle: give "
+                                 f"{base!r} or {base + ':vel'!r}.")
+            out.append(name)
+        elif f"{name}:vel" in known and f"{name}:pos" in known:
+            if whole_bus:
+                out += [f"{name}:pos", f"{name}:vel"]
+            else:
+                out.append(f"{name}:pos" if sensing else f"{name}:vel")
+        else:
+            out.append(name)
+    return out
 
 
 def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[str, Any]],

@@ -36,8 +36,10 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
 
     p = subparsers.add_parser(name, parents=[common], help=help)
     add_inputs(p, default=None, what="states with a dedicated input (the design to check)")
-    p.add_argument("--elements", choices=("links", "nodes", "both"), default="both",
-                   help="lose links, states (nodes) or both (default: both)")
+    p.add_argument("--elements", choices=("links", "nodes", "both", "grid"), default=None,
+                   help="lose links, states (nodes), both, or grid elements (branches, "
+                        "transformers, buses, generators by their case IDs) (default: grid "
+                        "for a grid file, else both)")
     p.add_argument("--k", type=int, default=1, metavar="K",
                    help="elements lost at once (default 1: every single loss, exactly; "
                         "K > 1: sampled)")
@@ -93,7 +95,10 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
     system = load_system(args)
     if args.inputs is not None:
         system = system.with_inputs(parse_names(system, args.inputs))
-    kinds = ["links", "nodes"] if args.elements == "both" else [args.elements]
+    elements = args.elements or ("grid" if system.elements is not None else "both")
+    if elements == "grid":
+        return _grid_sweep(args, system)
+    kinds = ["links", "nodes"] if elements == "both" else [elements]
     result: dict[str, Any] = {"analysis": "sweep", "file": args.file, "k": args.k,
                               "model": system.model}
     lines = [f"{args.file}: {system.n_states} states, {system.n_links} links, "
@@ -224,3 +229,56 @@ def _plot(curves: list[AttackCurve], path: str) -> None:
                          "file name in a writable directory.") from None
     finally:
         plt.close(fig)
+
+
+def _grid_sweep(args: argparse.Namespace, system: Any) -> int:
+    """Element-level N-1 of a grid: every branch, transformer, bus and generator."""
+    from netctl.structural.robustness.elements import element_sweep
+
+    if args.k != 1:
+        raise UsageError("--elements grid loses one element at a time (N-1); sampled "
+                         "multiple element losses are not available yet: use --elements "
+                         "links or nodes with --k.")
+    if args.attack:
+        raise UsageError("--attack works on links or states; add --elements links or nodes.")
+    sw = element_sweep(system)
+    counts = ", ".join(f"{c} {k}{'es' if k == 'bus' and c != 1 else ('s' if c != 1 else '')}"
+                       for k, c in sw.counts().items())
+    lines = [f"{args.file}: {system.n_states} states, model {system.model}",
+             f"  N-1 over {sw.n_elements} grid elements ({counts})",
+             f"  minimum inputs {sw.n_inputs}; {sw.costly.size} loss(es) raise it"
+             + (": " + ", ".join(sw.ids[k] for k in sw.costly[:20].tolist())
+                + (" ..." if sw.costly.size > 20 else "") if sw.costly.size else ""),
+             f"  {int(sw.no_change.sum())} loss(es) change nothing structurally (one circuit "
+             "of a parallel pair, a generator sharing its bus)"]
+    ok = True
+    if sw.has_design:
+        if not sw.controllable_before:
+            ok = False
+            lines.append("  the given design is NOT structurally controllable even before any "
+                         "loss (run netctl check for the reasons)")
+        else:
+            br = sw.breaking
+            ok = br.size == 0
+            lines.append(f"  {br.size} loss(es) break the given design" + (":" if br.size else ""))
+            for k in br[:20].tolist():
+                lines.append(f"    - {sw.ids[k]} ({' - '.join(sw.buses[k])}): "
+                             + "; ".join(sw.reasons(k)))
+            if br.size > 20:
+                lines.append(f"    ... ({br.size - 20} more; --json lists all)")
+    if args.csv:
+        import csv
+
+        with safe_write(args.csv) as fh:
+            w = csv.writer(fh)
+            w.writerow(["element", "kind", "buses", "n_inputs_after", "no_structural_change",
+                        "controllable_after", "reasons"])
+            for row in sw.rows():
+                w.writerow([row["element"], row["kind"], " ".join(row["buses"]),
+                            row["n_inputs_after"], row["no_structural_change"],
+                            row.get("controllable_after", ""), "; ".join(row.get("reasons", []))])
+    lines.append("  " + CAUTION)
+    result = {"analysis": "sweep", "file": args.file, "k": 1, "model": system.model,
+              "elements": sw.to_dict(rows=bool(args.json or args.out))}
+    emit(args, result, "\n".join(lines))
+    return 0 if ok else 1

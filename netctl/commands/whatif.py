@@ -32,7 +32,11 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     p.add_argument("--remove-links", metavar="FILE|LINKS", default=None,
                    help="links to remove: an edge-list file or 'a->b,c->d'")
     p.add_argument("--remove-nodes", metavar="NAMES|FILE", default=None,
-                   help="states to remove with all their links: 'a,b' or a file")
+                   help="states to remove with all their links: 'a,b' or a file (in a grid, "
+                        "a bus name removes all of the bus's states)")
+    p.add_argument("--remove-elements", metavar="IDS|FILE", default=None,
+                   help="grid elements to take out of service by their case IDs, e.g. "
+                        "'branch 12,bus 4,gen 2' or a file, one ID a line")
     p.set_defaults(func=_cmd_whatif)
 
 
@@ -76,9 +80,9 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     from netctl.io import read_state_list
     from netctl.structural.robustness import what_if
 
-    if not (args.add_links or args.remove_links or args.remove_nodes):
-        raise UsageError("whatif needs a change: --add-links, --remove-links and/or "
-                         "--remove-nodes.")
+    if not (args.add_links or args.remove_links or args.remove_nodes or args.remove_elements):
+        raise UsageError("whatif needs a change: --add-links, --remove-links, --remove-nodes "
+                         "and/or --remove-elements.")
     system = load_system(args)
     if args.inputs is not None:
         system = system.with_inputs(parse_names(system, args.inputs))
@@ -86,9 +90,26 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     rem = _checked(system, args.remove_links, "--remove-links", new_ok=False)
     nodes = None
     if args.remove_nodes:
-        nodes = read_state_list(args.remove_nodes)
-        parse_names(system, args.remove_nodes, what="--remove-nodes")  # checks the names
-    w = what_if(system, add_links=add, remove_links=rem, remove_nodes=nodes)
+        nodes = [system.state_names[i] for i in
+                 parse_names(system, args.remove_nodes, what="--remove-nodes", whole_bus=True)]
+    elements: list[str] = []
+    drop_inputs: set[int] = set()
+    if args.remove_elements:
+        from netctl.structural.robustness.elements import element_effects
+
+        eff = element_effects(system)
+        elements = read_state_list(args.remove_elements)
+        src, tgt = system.edges()
+        rem = list(rem or [])
+        nodes = list(nodes or [])
+        for eid in elements:
+            links, states, inputs = eff.of(eff.table.position(eid))
+            rem += [(system.state_names[int(src[p])], system.state_names[int(tgt[p])])
+                    for p in links.tolist()]
+            nodes += [system.state_names[int(i)] for i in states.tolist()]
+            drop_inputs.update(inputs.tolist())
+    w = what_if(system, add_links=add, remove_links=rem, remove_nodes=nodes,
+                remove_inputs=[system.input_names[j] for j in sorted(drop_inputs)])
     d = w.to_dict()
     d["file"] = args.file
 
@@ -108,8 +129,17 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
                      f"{yn(w.controllable_after):>10}")
     if w.inputs_lost:
         lines.append(f"  inputs lost with their states: {', '.join(w.inputs_lost)}")
-    lines.append(f"  drivers gained: {', '.join(w.drivers_gained) or 'none'}; "
-                 f"lost: {', '.join(w.drivers_lost) or 'none'} (one minimum set each)")
+    if elements:
+        lines.insert(2, f"  elements out of service ({len(elements)}): {', '.join(elements)}")
+
+    def some(names: Any) -> str:
+        names = list(names)
+        if not names:
+            return "0"
+        return f"{len(names)} ({', '.join(names[:10])}{', ...' if len(names) > 10 else ''})"
+
+    lines.append(f"  drivers gained: {some(w.drivers_gained)}; lost: {some(w.drivers_lost)} "
+                 "(one minimum set each)")
     if w.role_changes:
         ch = [f"{k} {a}->{b}" for k, (a, b) in w.role_changes.items()]
         lines.append(f"  state roles changed ({len(ch)}): {', '.join(ch[:15])}"

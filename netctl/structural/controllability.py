@@ -288,7 +288,11 @@ def _report(system: StructuredSystem, kind: str, dimension: bool) -> Controllabi
     acc = accessible_states(st, B)
     inaccessible = np.flatnonzero(~acc)
     groups = _inaccessible_groups(st, acc) if inaccessible.size else ()
-    comp = completion(A, B, st)
+    # a fix for an unreached component goes where an actuator (sensor) may sit, when the
+    # node table says where (e.g. a grid's generator buses, their frequency states)
+    site = system.nodes.get("actuator" if kind == "controllability" else "sensor")
+    prefer = site if site is not None and site.dtype == bool and site.any() else None
+    comp = completion(A, B, st, prefer=prefer)
     rank = comp.matching_size
     dil = _dilation(A, B, comp.row_match) if rank < n else None
     ok = bool(inaccessible.size == 0 and rank == n)

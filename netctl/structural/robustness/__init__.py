@@ -11,6 +11,8 @@
   random or by a targeting rule (drawn by :func:`netctl.viz.plot_attack_curves`).
 * :func:`what_if` -- before and after a proposed change (links added or removed, states
   removed), side by side.
+* :func:`element_sweep` -- every grid element (branch, transformer, bus, generator) lost
+  in turn by its case ID (N-1), exact.
 
 Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
 """
@@ -18,6 +20,7 @@ Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
 from netctl.structural.robustness._common import ELEMENTS
 from netctl.structural.robustness.attack import ATTACK_STRATEGIES, AttackCurve, attack_curve
 from netctl.structural.robustness.contingency import ContingencySweep, contingency_sweep
+from netctl.structural.robustness.elements import ElementSweep, element_effects, element_sweep
 from netctl.structural.robustness.sampled import SampledLosses, sampled_losses
 from netctl.structural.robustness.whatif import WhatIf, apply_change, what_if
 
@@ -26,11 +29,14 @@ __all__ = [
     "AttackCurve",
     "ContingencySweep",
     "ELEMENTS",
+    "ElementSweep",
     "SampledLosses",
     "WhatIf",
     "apply_change",
     "attack_curve",
     "contingency_sweep",
+    "element_effects",
+    "element_sweep",
     "sampled_losses",
     "what_if",
 ]

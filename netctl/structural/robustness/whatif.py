@@ -104,8 +104,10 @@ def _pairs(links: Iterable[Sequence[object]] | None, what: str) -> list[tuple[st
 def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] | None = None,
                  remove_links: Iterable[Sequence[object]] | None = None,
                  remove_nodes: Iterable[object] | None = None,
+                 remove_inputs: Iterable[object] | None = None,
                  ) -> tuple[StructuredSystem, tuple[str, ...], tuple[str, ...]]:
-    """The changed system, the names of new states, and the inputs left acting on nothing.
+    """The changed system, the names of new states, and the inputs lost (left acting on
+    nothing, or named in ``remove_inputs``: an actuator out of service).
 
     Links are ``(source, target)`` state-name pairs; a name in ``add_links`` that the
     system lacks becomes a new state (appended); when every existing state has
@@ -185,8 +187,17 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
                              E=E, H=H, disturbance_names=system.disturbance_names,
                              regulated_names=system.regulated_names,
                              disturbance_nodes=system.disturbance_nodes)
+    gone = [str(x) for x in (remove_inputs or ())]
+    if gone:
+        unknown = [x for x in gone if x not in set(grown.input_names)]
+        if unknown:
+            raise UnknownNameError(f"remove_inputs: no input {unknown[0]!r}; the inputs are "
+                                   f"{', '.join(grown.input_names[:8])}.")
+        keep_in = [j for j, x in enumerate(grown.input_names) if x not in set(gone)]
+        grown = grown._replace(B=grown.B[:, keep_in],
+                               input_names=tuple(grown.input_names[j] for j in keep_in))
     if not rnodes:
-        return grown, tuple(new), ()
+        return grown, tuple(new), tuple(gone)
     keep = np.ones(N, bool)
     keep[rnode_idx] = False
     Bk = grown.B[keep].tocsr()
@@ -203,7 +214,7 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
         model=system.model, E=grown.E[keep].tocsr(), H=grown.H[:, keep].tocsr(),
         disturbance_names=grown.disturbance_names, regulated_names=grown.regulated_names,
         disturbance_nodes=grown.disturbance_nodes)
-    return out, tuple(new), lost_inputs
+    return out, tuple(new), tuple(gone) + lost_inputs
 
 
 def _edge_weights(system: StructuredSystem) -> np.ndarray:
@@ -229,7 +240,8 @@ def _extend_nodes(nodes: Any, extra: int) -> dict[str, np.ndarray]:
 
 def what_if(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] | None = None,
             remove_links: Iterable[Sequence[object]] | None = None,
-            remove_nodes: Iterable[object] | None = None) -> WhatIf:
+            remove_nodes: Iterable[object] | None = None,
+            remove_inputs: Iterable[object] | None = None) -> WhatIf:
     """Before and after a proposed change to the network, side by side.
 
     Parameters
@@ -241,6 +253,8 @@ def what_if(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] |
     remove_nodes : iterable of state names
         States to remove with all their links (an input left acting on no state is
         dropped and listed in ``inputs_lost``).
+    remove_inputs : iterable of input names
+        Inputs (actuators) out of service; listed in ``inputs_lost``.
 
     Returns
     -------
@@ -274,7 +288,8 @@ def what_if(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] |
     (True, False, True, ['x2'])
     """
     after, new, lost_inputs = apply_change(system, add_links=add_links,
-                                           remove_links=remove_links, remove_nodes=remove_nodes)
+                                           remove_links=remove_links, remove_nodes=remove_nodes,
+                                           remove_inputs=remove_inputs)
     has = system.n_inputs > 0
     cb = controllability(system, dimension=False) if has else None
     ca = controllability(after, dimension=False) if has else None
