@@ -63,6 +63,7 @@ class ElementEffects:
     input_ptr: np.ndarray
     inputs: np.ndarray
     parallel: np.ndarray  # branches: circuits joining the same two buses
+    input_bus: np.ndarray  # per input: the bus it acts on (-1 several, -2 none)
 
     def of(self, k: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """(links, states, inputs) that element ``k`` removes."""
@@ -122,7 +123,7 @@ def element_effects(system: StructuredSystem) -> ElementEffects:
     for j in range(system.n_inputs):
         rows = Bc.indices[Bc.indptr[j]:Bc.indptr[j + 1]]
         nodes_j = np.unique(node[rows])
-        in_node[j] = nodes_j[0] if nodes_j.size == 1 else -1
+        in_node[j] = nodes_j[0] if nodes_j.size == 1 else (-2 if nodes_j.size == 0 else -1)
     gens_at = np.bincount(table.end_a[np.array([t == "generator" for t in table.kinds], bool)],
                           minlength=nb) if len(table) else np.zeros(nb, np.int64)
     links: list[np.ndarray] = []
@@ -150,7 +151,7 @@ def element_effects(system: StructuredSystem) -> ElementEffects:
     sp_, sf = _ragged(states)
     ip, inf = _ragged(inputs)
     return ElementEffects(table=table, link_ptr=lp, links=lf, state_ptr=sp_, states=sf,
-                          input_ptr=ip, inputs=inf, parallel=par)
+                          input_ptr=ip, inputs=inf, parallel=par, input_bus=in_node)
 
 
 # ---------------------------------------------------------------------- kernels
@@ -185,34 +186,30 @@ def _reached(out_ptr, out_idx, out_pos, link_dead, state_dead, start):  # pragma
 
 def _matching_after(indptr: np.ndarray, indices: np.ndarray, n_cols: int, row_mate: np.ndarray,
                     col_mate: np.ndarray, dead_pos: np.ndarray, dead_rows: np.ndarray,
-                    dead_cols: np.ndarray, size: int) -> int:
+                    dead_cols: np.ndarray, size: int, row_of: np.ndarray) -> int:
     """Maximum matching size after removing entries (CSR positions), rows and columns.
 
     When no surviving vertex loses its partner, the restricted matching is maximum (an
     augmenting path would have to end at such a vertex); otherwise it is recomputed.
     """
-    rows = np.repeat(np.arange(indptr.size - 1), np.diff(indptr))[dead_pos] if dead_pos.size \
-        else dead_pos
-    cols = indices[dead_pos] if dead_pos.size else dead_pos
-    lost_pairs = rows[row_mate[rows] == cols] if dead_pos.size else dead_pos
+    rows = row_of[dead_pos]
+    cols = indices[dead_pos]
+    lost_pairs = rows[row_mate[rows] == cols]
+    dead_r = set(dead_rows.tolist())
+    dead_c = set(dead_cols.tolist())
+    freed = bool(lost_pairs.size)
+    m_r = row_mate[dead_rows]
+    freed = freed or any(c >= 0 and c not in dead_c for c in m_r.tolist())
+    freed = freed or any(r >= 0 and r not in dead_r for r in col_mate[dead_cols].tolist())
+    if not freed:
+        return size - int(np.count_nonzero(m_r >= 0))
     dr = np.zeros(indptr.size - 1, bool)
     dr[dead_rows] = True
     dc = np.zeros(n_cols, bool)
     dc[dead_cols] = True
-    freed = False
-    if lost_pairs.size:
-        freed = True
-    m_r = row_mate[dead_rows]
-    if np.any((m_r >= 0) & ~dc[np.maximum(m_r, 0)]):
-        freed = True
-    m_c = col_mate[dead_cols]
-    if np.any((m_c >= 0) & ~dr[np.maximum(m_c, 0)]):
-        freed = True
-    if not freed:
-        return size - int(np.count_nonzero(m_r >= 0))
     keep = np.ones(indices.size, bool)
     keep[dead_pos] = False
-    r_all = np.repeat(np.arange(indptr.size - 1), np.diff(indptr))
+    r_all = row_of
     keep &= ~dr[r_all] & ~dc[indices]
     ptr = np.zeros(indptr.size, np.int64)
     np.cumsum(np.bincount(r_all[keep], minlength=indptr.size - 1), out=ptr[1:])
@@ -227,6 +224,145 @@ def _matching_after(indptr: np.ndarray, indices: np.ndarray, n_cols: int, row_ma
     rm, _ = maximum_matching(ptr, indices[keep].astype(np.int64), n_cols, row_match=rm0,
                              col_match=cm0)
     return int(np.count_nonzero(rm >= 0))
+
+
+class _Islands:
+    """Input reachability of a grid whose buses couple symmetrically, by bus islands.
+
+    Valid when every state belongs to a bus, the states of each bus reach each other
+    (one strongly connected set: a first-order bus, or ``pos`` and ``vel`` of the
+    second-order model) and every link between two buses has a partner in the other
+    direction. Then a state is reached from the inputs iff its bus lies in a connected
+    piece of the bus graph holding an input, and one depth-first search gives, for every
+    branch (a bridge or not) and every bus (a cut vertex or not), the buses its loss
+    islands without an input (Tarjan's low-link: R. Tarjan, "Depth-first search and
+    linear graph algorithms", SIAM J. Comput. 1(2):146-160, 1972).
+    """
+
+    def __init__(self, nb: int, a: np.ndarray, b: np.ndarray, weight: np.ndarray,
+                 inputs_at: np.ndarray) -> None:
+        adj: list[list[int]] = [[] for _ in range(nb)]
+        for u, v in zip(a.tolist(), b.tolist()):
+            adj[u].append(v)
+            adj[v].append(u)
+        disc = np.full(nb, -1, np.int64)
+        low = np.zeros(nb, np.int64)
+        parent = np.full(nb, -1, np.int64)
+        sub_w = weight.astype(np.int64).copy()
+        sub_in = inputs_at.astype(np.int64).copy()
+        comp = np.full(nb, -1, np.int64)
+        t = 0
+        comps_w: list[int] = []
+        comps_in: list[int] = []
+        for root in range(nb):
+            if disc[root] >= 0:
+                continue
+            cid = len(comps_w)
+            disc[root] = low[root] = t
+            t += 1
+            comp[root] = cid
+            stack = [(root, 0)]
+            while stack:
+                u, k = stack[-1]
+                if k < len(adj[u]):
+                    stack[-1] = (u, k + 1)
+                    v = adj[u][k]
+                    if disc[v] < 0:
+                        parent[v] = u
+                        disc[v] = low[v] = t
+                        t += 1
+                        comp[v] = cid
+                        stack.append((v, 0))
+                    elif v != parent[u]:
+                        low[u] = min(low[u], disc[v])
+                else:
+                    stack.pop()
+                    p = parent[u]
+                    if p >= 0:
+                        low[p] = min(low[p], low[u])
+                        sub_w[p] += sub_w[u]
+                        sub_in[p] += sub_in[u]
+            comps_w.append(int(sub_w[root]))
+            comps_in.append(int(sub_in[root]))
+        self.adj, self.disc, self.low, self.parent = adj, disc, low, parent
+        self.sub_w, self.sub_in, self.comp = sub_w, sub_in, comp
+        self.comp_w = np.array(comps_w, np.int64)
+        self.comp_in = np.array(comps_in, np.int64)
+        self.weight, self.inputs_at = weight, inputs_at
+        self.base = int(self.comp_w[self.comp_in == 0].sum())
+
+    @classmethod
+    def build(cls, system: StructuredSystem, node: np.ndarray, nb: int,
+              in_node: np.ndarray) -> _Islands | None:
+        from scipy.sparse.csgraph import connected_components
+
+        if node.size == 0 or (node < 0).any():
+            return None
+        src, tgt = system.edges()
+        nu, nv = node[src], node[tgt]
+        inner = nu == nv
+        n = system.n_states
+        M = sp.csr_array((np.ones(int(inner.sum())), (tgt[inner], src[inner])), shape=(n, n))
+        _, lab = connected_components(M, directed=True, connection="strong")
+        first = np.full(nb, -1, np.int64)
+        first[node[::-1]] = lab[::-1]
+        if not np.array_equal(first[node], lab):
+            return None  # a bus whose states do not all reach each other
+        pairs = np.unique(nu[~inner] * nb + nv[~inner])
+        back = np.unique(nv[~inner] * nb + nu[~inner])
+        if not np.array_equal(pairs, back):
+            return None  # a one-way coupling between two buses
+        und = pairs[pairs // nb < pairs % nb]
+        weight = np.bincount(node, minlength=nb)
+        if (in_node == -1).any():
+            return None  # an input shared by several buses
+        inputs_at = np.bincount(in_node[in_node >= 0], minlength=nb)
+        return cls(nb, und // nb, und % nb, weight, inputs_at)
+
+    def _cut(self, c: int) -> bool:
+        p = int(self.parent[c])
+        return p >= 0 and self.low[c] > self.disc[p]
+
+    def after_branch(self, a: int, b: int) -> int:
+        """States reached by no input after the coupling a -- b is lost."""
+        c = b if self.parent[b] == a else (a if self.parent[a] == b else -1)
+        if c < 0 or not self._cut(c):
+            return self.base
+        k = int(self.comp[c])
+        total_in = int(self.comp_in[k])
+        if total_in == 0:
+            return self.base
+        side_in = int(self.sub_in[c])
+        side_w = int(self.sub_w[c])
+        return self.base + (side_w if side_in == 0 else 0) + \
+            (int(self.comp_w[k]) - side_w if total_in - side_in == 0 else 0)
+
+    def after_bus(self, v: int) -> int:
+        """States (of the other buses) reached by no input after bus ``v`` is lost."""
+        k = int(self.comp[v])
+        total_in = int(self.comp_in[k])
+        if total_in == 0:
+            return self.base - int(self.weight[v])
+        cut = 0
+        sep_w = sep_in = 0
+        for c in self.adj[v]:
+            if self.parent[c] == v and self.low[c] >= self.disc[v]:
+                sep_w += int(self.sub_w[c])
+                sep_in += int(self.sub_in[c])
+                if self.sub_in[c] == 0:
+                    cut += int(self.sub_w[c])
+        rest_w = int(self.comp_w[k]) - int(self.weight[v]) - sep_w
+        rest_in = total_in - int(self.inputs_at[v]) - sep_in
+        if rest_w > 0 and rest_in == 0:
+            cut += rest_w
+        return self.base + cut
+
+    def after_inputs(self, v: int, lost: int) -> int:
+        """States reached by no input after ``lost`` inputs on bus ``v`` are lost."""
+        k = int(self.comp[v])
+        if self.comp_in[k] > 0 and self.comp_in[k] - lost == 0:
+            return self.base + int(self.comp_w[k])
+        return self.base
 
 
 # ---------------------------------------------------------------------- the sweep
@@ -323,8 +459,8 @@ class ElementSweep:
         return d
 
 
-def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = None
-                  ) -> ElementSweep:
+def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = None,
+                  accessibility: str = "auto") -> ElementSweep:
     r"""Lose every element (branch, transformer, bus, generator) in turn, by its case ID.
 
     Parameters
@@ -334,6 +470,10 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
         model; its inputs, if any, are the design to check.
     kinds : sequence of str, optional
         Element kinds to lose (default: all of :data:`~netctl.records.ELEMENT_KINDS`).
+    accessibility : {"auto", "search"}
+        ``"auto"``: by bus islands (one depth-first search for all losses) when the
+        grid's buses couple symmetrically, else one search per loss; ``"search"``: one
+        search per loss always (the reference).
 
     Returns
     -------
@@ -347,7 +487,10 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
     B]``): a loss that frees no surviving vertex of the matching keeps the restricted
     matching maximum (an augmenting path would have to end at a freed vertex), which is
     the common case for branches in the swing model; otherwise the matching is
-    recomputed. Accessibility is one compiled search per loss (O(n + E)).
+    recomputed. Accessibility: when every bus's states reach each other and buses couple
+    both ways, a state is reached iff its bus's island holds an input, and bridges and
+    cut vertices of the bus graph (Tarjan's low-link, one depth-first search) give every
+    loss's islands at once; otherwise one compiled search per loss (O(n + E)).
 
     References
     ----------
@@ -356,7 +499,11 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
     .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
        (issue number from memory).
     """
+    if accessibility not in ("auto", "search"):
+        raise OptionError(f"accessibility must be 'auto' or 'search', found {accessibility!r}.")
     eff = element_effects(system)
+    eff_in_node = eff.input_bus
+    exact_islands = accessibility == "auto"
     table = eff.table
     want = set(kinds) if kinds is not None else set(ELEMENT_KINDS)
     bad = sorted(want - set(ELEMENT_KINDS))
@@ -368,12 +515,14 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
     a_ptr = A.indptr.astype(np.int64)
     a_idx = A.indices.astype(np.int64)
     rmA, cmA = maximum_matching(a_ptr, a_idx, n)
+    row_a = np.repeat(np.arange(n, dtype=np.int64), np.diff(a_ptr))
     sizeA = int(np.count_nonzero(rmA >= 0))
     has = m > 0
     ab_ptr, ab_idx, n_ab = stack_AB(A, B)
     ab_ptr, ab_idx = ab_ptr.astype(np.int64), ab_idx.astype(np.int64)
     if has:
         rmAB, cmAB = maximum_matching(ab_ptr, ab_idx, n_ab)
+        row_ab = np.repeat(np.arange(n, dtype=np.int64), np.diff(ab_ptr))
         sizeAB = int(np.count_nonzero(rmAB >= 0))
         # position of each A entry inside [A B] (A's columns come first in every row)
         nb_row = np.diff(B.indptr) if B.nnz else np.zeros(n, np.int64)
@@ -388,6 +537,9 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
                                     np.zeros(n, np.bool_),
                                     np.unique(B.tocoo().row).astype(np.int64))
         ok_before = bool(sizeAB == n and n_reached_before == n)
+        islands = _Islands.build(system, state_nodes(system, table),
+                                 max(len(table.node_names), 1), eff_in_node) \
+            if exact_islands else None
     else:
         ok_before = None
     k_n = len(sel)
@@ -408,15 +560,25 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
             ctrl[i] = bool(ok_before) if has else True
             continue
         n_left = n - states.size
-        sz = _matching_after(a_ptr, a_idx, n, rmA, cmA, links, states, states, sizeA)
+        sz = _matching_after(a_ptr, a_idx, n, rmA, cmA, links, states, states, sizeA, row_a)
         after[i] = _n_d(n_left, sz)
         if not has:
             continue
         dead_cols = np.concatenate([states, n + inputs]) if inputs.size else states
         szab = _matching_after(ab_ptr, ab_idx, n_ab, rmAB, cmAB, a_in_ab[links], states,
-                               dead_cols, sizeAB) if (links.size or states.size or
+                               dead_cols, sizeAB, row_ab) if (links.size or states.size or
                                                       inputs.size) else sizeAB
         rank_lost[i] = szab < n_left
+        if islands is not None:
+            a, b = int(table.end_a[k]), int(table.end_b[k])
+            if links.size:
+                unreached[i] = islands.after_branch(a, b)
+            elif states.size:
+                unreached[i] = islands.after_bus(a)
+            else:
+                unreached[i] = islands.after_inputs(a, int(inputs.size))
+            ctrl[i] = not rank_lost[i] and unreached[i] == 0
+            continue
         link_dead[links] = True
         state_dead[states] = True
         live_inputs = np.setdiff1d(np.arange(m), inputs) if inputs.size else np.arange(m)
