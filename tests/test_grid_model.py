@@ -33,6 +33,9 @@ def test_grid_defaults_to_swing_model(tmp_path, capsys):
     out = capsys.readouterr()
     assert "6 states, model second-order" in out.out
     assert "driven states (1): 1:vel" in out.out  # a generator bus, its frequency state
+    # the usual caution for grids (issue 25): a linearized model, not operating decisions
+    assert "Grid: results concern a linearized model of the grid, not operating " \
+        "decisions" in out.out
     assert "warning" not in out.err
 
 

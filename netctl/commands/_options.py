@@ -39,6 +39,9 @@ __all__ = [
     "safe_write", "system_with_inputs",
 ]
 
+_GRID_CAUTION = ("results concern a linearized model of the grid, not operating decisions, "
+                 "which stay with the system operator's procedures and applicable codes")
+
 #: names listed in a text summary before "... (N more; --json lists all)"
 SHOWN = 30
 
@@ -268,6 +271,9 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
                    or system.n_disturbances > 0 or args.model == "second-order")
     if system.n_disturbances:
         args._disturbances = disturbance_summary(system)
+    if system.elements is not None:
+        args._grid = {"buses": len(system.elements.node_names),
+                      "elements": system.elements.counts(), "model": system.model}
     return system
 
 
@@ -361,12 +367,17 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
     convention = getattr(args, "file_convention", None)
     if convention:
         text = text.rstrip("\n") + f"\n  ({convention})"
+    grid = getattr(args, "_grid", None)
+    if grid is not None and text:
+        text = text.rstrip("\n") + "\n  Grid: " + _GRID_CAUTION + "."
     if args.json or want_out:
         data = result() if callable(result) else result
         if info is not None and isinstance(data, dict):
             data = {**data, "disturbances": info}
         if convention and isinstance(data, dict):
             data = {**data, "file_convention": convention}
+        if grid is not None and isinstance(data, dict):
+            data = {**data, "grid": {**grid, "caution": _GRID_CAUTION}}
         payload = json.dumps(data, indent=2, sort_keys=False, default=_json_default) + "\n"
         if want_out:
             from netctl.io import atomic_write

@@ -250,7 +250,8 @@ def _grid_sweep(args: argparse.Namespace, system: Any) -> int:
              + (": " + ", ".join(sw.ids[k] for k in sw.costly[:20].tolist())
                 + (" ..." if sw.costly.size > 20 else "") if sw.costly.size else ""),
              f"  {int(sw.no_change.sum())} loss(es) change nothing structurally (one circuit "
-             "of a parallel pair, a generator sharing its bus)"]
+             "of a parallel pair, a generator carrying none of the design's inputs or "
+             "sharing its bus)"]
     ok = True
     if sw.has_design:
         if not sw.controllable_before:

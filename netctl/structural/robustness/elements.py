@@ -399,6 +399,7 @@ class ElementSweep:
     no_change: np.ndarray
     model: str = "given"
     buses: tuple[tuple[str, ...], ...] = field(default=(), repr=False)
+    states_per_bus: int = 1
 
     @property
     def n_elements(self) -> int:
@@ -427,8 +428,10 @@ class ElementSweep:
         if self.has_design and self.rank_lost[k]:
             out.append("dilation: the generic rank of [A B] falls below the number of states")
         if self.has_design and self.unreached[k]:
-            out.append(f"{int(self.unreached[k])} state(s) reached by no input (an island "
-                       "without an input)")
+            u = int(self.unreached[k])
+            per = max(self.states_per_bus, 1)
+            out.append(f"islanding: {u // per} bus(es) ({u} state(s)) left in an island "
+                       "without an input")
         return out
 
     def rows(self) -> list[dict[str, Any]]:
@@ -596,4 +599,5 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
                         n_inputs=base_nd, n_inputs_after=after, has_design=has,
                         controllable_before=ok_before, controllable_after=ctrl,
                         rank_lost=rank_lost, unreached=unreached, no_change=no_change,
-                        model=system.model, buses=buses)
+                        model=system.model, buses=buses,
+                        states_per_bus=max(n // max(len(table.node_names), 1), 1))
