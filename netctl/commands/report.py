@@ -32,6 +32,11 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     add_inputs(p, default="the file's inputs, else the minimum design",
                what="a design to check: states with a dedicated input")
     add_seed(p, help="seed of the layout and sampled checks (default 0)")
+    from netctl.numeric.realize import PARAMETERIZATIONS
+
+    p.add_argument("--weights", choices=list(PARAMETERIZATIONS), default=None,
+                   help="numbers of the numeric confirmation (default: swing for a "
+                        "second-order model, e.g. a grid; independent otherwise)")
     p.set_defaults(func=_cmd_report)
 
 
@@ -48,7 +53,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
         if args.inputs is not None:
             inputs = system.names_of(parse_names(system, args.inputs))
     report = build_report(system, inputs=inputs, source=args.file, seed=args.seed,
-                          progress=progress)
+                          progress=progress, weights=args.weights)
     with progress.step(f"writing {args.out}"):
         write_report(report, args.out)
     verdict = _verdict(report)

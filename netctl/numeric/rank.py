@@ -655,7 +655,10 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
     ----------
     system : StructuredSystem
     seed : int, default 0
-    weights : {"independent", "given"}
+    weights : {"independent", "given", "swing"}
+        ``swing``: a second-order pattern with sampled swing parameters (or a network,
+        built into one); the certificate then shows ``rank [A B] = n`` for those numbers,
+        which rules out a dilation but not modes lost to symmetric couplings.
 
     Returns
     -------
@@ -690,9 +693,9 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
     from netctl.numeric.realize import realize
     from netctl.structural._engine import accessible_states, stack_AB, structure_of
 
-    if weights not in ("independent", "given"):
-        raise OptionError(f"the sparse certificate supports weights 'independent' and "
-                          f"'given'; found {weights!r}.")
+    if weights not in ("independent", "given", "swing"):
+        raise OptionError(f"the sparse certificate supports weights 'independent', "
+                          f"'given' and 'swing'; found {weights!r}.")
     n = system.n_states
     real = realize(system, weights=weights, seed=seed)
     st = structure_of(system.A)

@@ -203,8 +203,9 @@ def _swing(system: StructuredSystem, rng: np.random.Generator, tag: str) -> Stru
     if is_second_order(system):
         names = system.state_names
         node_names = [s[:-4] for s in names if s.endswith(":pos")]
-        pos = np.array([names.index(f"{v}:pos") for v in node_names], np.int64)
-        vel = np.array([names.index(f"{v}:vel") for v in node_names], np.int64)
+        where = {nm: i for i, nm in enumerate(names)}  # one pass (list.index was O(n^2))
+        pos = np.array([where[f"{v}:pos"] for v in node_names], np.int64)
+        vel = np.array([where[f"{v}:vel"] for v in node_names], np.int64)
         k = len(node_names)
         owner = np.empty(system.n_states, np.int64)
         owner[pos] = np.arange(k)

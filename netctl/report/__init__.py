@@ -32,7 +32,7 @@ REPORT_FORMATS: dict[str, str] = {".html": "html", ".htm": "html", ".md": "markd
 
 def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = "",
                  sections: Sequence[SectionBuilder] | None = None, seed: int = 0,
-                 progress: Progress | None = None) -> Report:
+                 progress: Progress | None = None, weights: str | None = None) -> Report:
     r"""Analyse ``system`` and assemble a report.
 
     Parameters
@@ -47,6 +47,10 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
         Section builders ``builder(ctx) -> Section | None`` (default :data:`SECTIONS`).
     seed : int
         Seed for the layout and sampled checks (the same seed gives the same bytes).
+    weights : str, optional
+        Numbers of the numeric confirmation (see
+        :data:`netctl.numeric.realize.PARAMETERIZATIONS`); default: ``swing`` for a
+        second-order model, ``independent`` otherwise.
     progress : Progress, optional
         Announces each section on a terminal.
 
@@ -79,7 +83,7 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
             raise OptionError(f"inputs must be a sequence of state names or indices, found "
                               f"the string {inputs!r}; split it, e.g. {inputs.split(',')!r}.")
         idx = system.index_of(list(inputs))
-    ctx = ReportContext(system=system, inputs=idx, source=source, seed=seed)
+    ctx = ReportContext(system=system, inputs=idx, source=source, seed=seed, weights=weights)
     progress = progress or Progress(len(builders), enabled=False)
     built: list[Section] = []
     for builder in builders:

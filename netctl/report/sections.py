@@ -55,6 +55,7 @@ class ReportContext:
     source: str = ""
     seed: int = 0
     dpi: float = 110.0
+    weights: str | None = None
     missing: list[str] = field(default_factory=list)
     _cache: dict[str, Any] = field(default_factory=dict)
 
@@ -425,18 +426,29 @@ def numeric_section(ctx: ReportContext) -> Section | None:
         ctx.missing.append(f"numeric confirmation (over {NUMERIC_LIMIT} states; run "
                            "netctl verify)")
         return None
+    from netctl.numeric.realize import PARAMETERIZATIONS
+
     system = ctx.actuated()
+    # the model's own numbers: swing weights for a second-order model, unless asked
+    weights = ctx.weights or ("swing" if system.model.startswith("second-order")
+                              else "independent")
     method = "auto" if n <= NUMERIC_DENSE_LIMIT else "certificate"
-    v = ctx.cached("verify", lambda: verify(system, weights="independent", samples=2,
+    v = ctx.cached("verify", lambda: verify(system, weights=weights, samples=2,
                                             seed=ctx.seed, method=method))
-    blocks = [para(f"Weights drawn independently at random (the structured-system "
-                   f"assumption), {len(v.samples)} sample(s), seeds {list(v.seeds)}, method "
-                   f"{v.method}."), items(list(v.findings)), para(v.verdict.line())]
+    unconfirmed = any(f.startswith(("NOT CONFIRMED", "rank certified")) for f in v.findings)
+    blocks = [para(f"Weights '{weights}' ({PARAMETERIZATIONS[weights]}), {len(v.samples)} "
+                   f"sample(s), seeds {list(v.seeds)}, method {v.method}."),
+              items(list(v.findings)), para(v.verdict.line())]
+    if not v.agrees:
+        badge, verdict = "disagrees", "a numeric sample DISAGREES with the structural verdict"
+    elif unconfirmed:
+        badge, verdict = "not confirmed", ("the numeric check does not contradict the "
+                                           "structural verdict but cannot confirm it")
+    else:
+        badge, verdict = "agrees", "the numeric rank agrees with the structural verdict"
     return Section("numeric", "Numeric confirmation", tuple(blocks), data=v.to_dict(),
-                   status="ok" if v.agrees else "warning",
-                   badge="agrees" if v.agrees else "disagrees",
-                   verdict=("the numeric rank agrees with the structural verdict" if v.agrees
-                            else "a numeric sample DISAGREES with the structural verdict"))
+                   status="ok" if v.agrees and not unconfirmed else "warning",
+                   badge=badge, verdict=verdict)
 
 
 def modes_section(ctx: ReportContext) -> Section | None:

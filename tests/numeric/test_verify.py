@@ -153,6 +153,7 @@ def test_large_network_uses_the_certificate_and_refuses_constrained_families():
     big = from_edges([(i, i + 1) for i in range(n - 1)], n, inputs=[0])
     v = verify(big, samples=1)
     assert v.method == "certificate" and v.agrees and v.samples[0].dimension == n
-    with pytest.raises(OptionError, match="the sparse certificate only covers 'independent' "
-                       "and 'given' weights"):
+    # swing weights joined the certificate on purpose (issue 25, item 6); uniform stays out
+    with pytest.raises(OptionError, match="the sparse certificate covers 'independent', "
+                       "'given' and 'swing' weights"):
         verify(big, weights="uniform")
