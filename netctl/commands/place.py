@@ -112,7 +112,8 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
         names = [a["name"] for a in d["actuators" if r.kind == "inputs" else "sensors"]]
         lines.append(f"  chosen {noun} ({len(names)}): {names_line(names)}")
     lines.append(f"  sites ({r.sites.size}): {names_line(r.site_names) or '(none)'}")
-    lines.append(f"  total cost: {r.cost:g}")
+    lines.append(f"  total cost: {r.cost:g} (in the units of the site costs; 1 a site "
+                 "when none are given)")
     if not r.feasible:
         status = "infeasible"
     elif r.best_effort:
@@ -140,6 +141,10 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
             state = "unobservable" if r.kind == "sensors" else "uncontrollable"
             lines.append(f"  stays {state}, {verb} ({r.inaccessible.size}): "
                          f"{names_line(r.names(r.inaccessible))}")
-    lines.append("  (one optimum of possibly many; ties broken by state order)")
+    if r.feasible:
+        lines.append("  (one optimum of possibly many; ties broken by state order)")
+    else:
+        lines.append("  (no design is called optimal here: the eligible sites cannot make the "
+                     "system controllable; widen the sites or see netctl drivers)")
     lines.append("  " + caution)
     return "\n".join(lines)

@@ -221,6 +221,11 @@ def _plot(curves: list[AttackCurve], path: str) -> None:
     os.close(fd)
     try:
         fig.savefig(tmp)
+        # mkstemp made the file private (0600); give it the mode every other output file
+        # gets (0666 less the umask, as atomic_write does)
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
         os.replace(tmp, path)
     except (OSError, ValueError) as exc:
         if os.path.exists(tmp):
