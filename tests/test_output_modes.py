@@ -28,3 +28,13 @@ def test_sweep_outputs_share_one_mode(tmp_path, umask022, capsys):
     capsys.readouterr()
     for f in (plot, csv, out):
         assert stat.S_IMODE(f.stat().st_mode) == umask022, f.name
+
+
+@pytest.mark.parametrize("verb, word", [("map", ".geojson"), ("report", ".md")])
+def test_out_help_is_true(verb, word, capsys):
+    """map and report write their own formats to --out, not the JSON result."""
+    with pytest.raises(SystemExit):
+        main([verb, "--help"])
+    text = capsys.readouterr().out
+    block = text[text.index("  --out"):].split("\n  --", 1)[0]
+    assert word in block and "full result as JSON" not in block

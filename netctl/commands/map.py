@@ -53,6 +53,9 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     p.add_argument("--max-states", type=int, default=None, metavar="N",
                    help="largest network mapped (default 1000000); a larger one is "
                         "refused before any work")
+    for action in p._actions:  # the shared --out help says JSON; this verb differs
+        if action.dest == "out":
+            action.help = 'the file to write; its suffix picks what: .html (interactive map), .png/.svg/.pdf (figure), .geojson, .graphml (JSON is not written; use --json for the result)'
     p.set_defaults(func=_cmd_map)
 
 

@@ -37,6 +37,9 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     p.add_argument("--weights", choices=list(PARAMETERIZATIONS), default=None,
                    help="numbers of the numeric confirmation (default: swing for a "
                         "second-order model, e.g. a grid; independent otherwise)")
+    for action in p._actions:  # the shared --out help says JSON; this verb differs
+        if action.dest == "out":
+            action.help = 'the report file; its suffix picks the format: .html, .md or .json'
     p.set_defaults(func=_cmd_report)
 
 
