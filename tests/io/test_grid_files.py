@@ -220,3 +220,49 @@ def test_unclosed_table(tmp_path, capsys):
     f.write_text(HEAD + BUS + "mpc.branch = [\n" + _row(1, 2))
     assert main(["inspect", str(f)]) == 2
     assert "not closed" in capsys.readouterr().err
+
+
+def _pp_doc(bus_index, lines):
+    """A hand-made pandapower JSON document: buses and lines as pandas split tables."""
+    import json
+
+    def table(columns, index, data):
+        return {"_module": "pandas.core.frame", "_class": "DataFrame", "orient": "split",
+                "_object": json.dumps({"columns": columns, "index": index, "data": data})}
+
+    bus = table(["name", "vn_kv", "in_service"], bus_index,
+                [[None, 110.0, True] for _ in bus_index])
+    line = table(["from_bus", "to_bus", "length_km", "x_ohm_per_km", "in_service"],
+                 list(range(len(lines))), [list(r) + [True] for r in lines])
+    return json.dumps({"_module": "pandapower.auxiliary", "_class": "pandapowerNet",
+                       "_object": {"bus": bus, "line": line, "sn_mva": 100}}, indent=1)
+
+
+PP_BAD = [
+    pytest.param([0, 1, 2], [(0, 1, 1.0, 0.4), (1, 5, 1.0, 0.4)],
+                 "to_bus names bus 5", id="missing-bus"),
+    pytest.param([0, 1, 1], [(0, 1, 1.0, 0.4)], "the index 1 is listed twice", id="dup-bus"),
+    pytest.param([0, 1, 2], [(0, 1, 1.0, "0,4")], "x_ohm_per_km is '0,4', expected a number",
+                 id="non-numeric"),
+    pytest.param([0, 1, 2], [(2, 2, 1.0, 0.4)], "runs from bus '2' to itself", id="self"),
+]
+
+
+@pytest.mark.parametrize("buses, lines, text", PP_BAD)
+def test_bad_pandapower_files(tmp_path, capsys, buses, lines, text):
+    f = tmp_path / "net.json"
+    f.write_text(_pp_doc(buses, lines))
+    out = tmp_path / "o.json"
+    assert main(["inspect", str(f), "--out", str(out)]) == 2
+    err = capsys.readouterr().err
+    assert text in err and f"{f}:" in err
+    assert not out.exists()
+
+
+def test_good_hand_made_pandapower_file(tmp_path):
+    f = tmp_path / "net.json"
+    f.write_text(_pp_doc([0, 1, 2], [(0, 1, 2.0, 0.4), (1, 2, 1.0, 0.4)]))
+    s = read(f)
+    assert s.state_names == ("0", "1", "2")  # no names: the pandapower index
+    # x = 0.4 ohm/km * 2 km on Zbase = 110^2 / 100 ohm: coupling 1/x per unit
+    assert s.A[1, 0] == pytest.approx(1 / (0.8 / (110.0 ** 2 / 100)))
