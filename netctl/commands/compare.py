@@ -91,8 +91,8 @@ def _cmd_compare(args: argparse.Namespace) -> int:
         lines.append(f"  note: {note}")
     lines.append("  (z-score: how many ensemble standard deviations the observed count lies "
                  "from the ensemble mean)")
-    note = caution(args, engineering=False)
-    if note:
-        lines.append("  " + note)
+    closing = caution(args, engineering=False)
+    if closing:
+        lines.append("  " + closing)
     emit(args, d, "\n".join(lines))
     return 0
