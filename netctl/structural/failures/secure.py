@@ -16,17 +16,17 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.errors import OptionError
-from netctl.graph.dm import alternating_reach_rows
-from netctl.graph.matching import maximum_matching
-from netctl.structural._engine import completion, stack_AB
-from netctl.structural.failures._core import (
-    dedicated_B,
-    design_facts,
-    is_controlling,
-    source_components,
-)
+from netctl.structural.failures._core import is_controlling
 from netctl.structural.failures.audit import _work_system
-from netctl.structural.failures.links import _without, audit_links, line_elements
+from netctl.structural.failures.hall import (
+    CutPool,
+    TooMany,
+    _design_B,
+    _reach_cuts,
+    hall_violations,
+    solve_cuts,
+)
+from netctl.structural.failures.links import _without, line_elements
 from netctl.structural.placement import Sites, place_inputs, sites_from_nodes
 from netctl.system import StructuredSystem
 
@@ -37,6 +37,9 @@ AGAINST: tuple[str, ...] = ("elements", "lines")
 #: ``method`` choices.
 SECURE_METHODS: tuple[str, ...] = ("auto", "exact", "two-step")
 _MAX_SUBSETS = 20_000
+#: Sampled ``k``-line losses when every ``k``-subset of lines is more than
+#: ``_MAX_SUBSETS`` (``against="lines"``, ``k > 1``).
+LINE_SAMPLES: int = 2_000
 
 
 @dataclass(frozen=True)
@@ -45,7 +48,11 @@ class SecurePlacement:
 
     ``lower_bound`` is a proven lower bound on the cheapest secure design; ``gap`` is
     ``(cost - lower_bound) / cost`` (0 when proven optimal). ``uncovered`` names the
-    losses no eligible site can cover when ``feasible`` is false.
+    losses no eligible site can cover when ``feasible`` is false. ``kept`` names the
+    existing elements kept in the design (``keep=True``; they can fail too, and cost
+    nothing). ``scenarios`` is ``"all"`` when every loss was checked, else
+    ``"sampled N"`` (``k``-line losses, sampled: not proven for all). ``lp_bound`` is the
+    linear relaxation's value over the cuts found (a proven lower bound).
     """
 
     kind: str
@@ -65,6 +72,9 @@ class SecurePlacement:
     state_names: tuple[str, ...] = field(repr=False)
     model: str = "given"
     first_step: tuple[int, ...] = ()
+    kept: tuple[str, ...] = ()
+    scenarios: str = "all"
+    lp_bound: float = 0.0
 
     @property
     def site_names(self) -> list[str]:
@@ -80,17 +90,9 @@ class SecurePlacement:
                 "method": self.method, "guarantee": self.guarantee,
                 "verified": self.verified, "uncovered": list(self.uncovered),
                 "reasons": list(self.reasons),
-                "first_step": [self.state_names[int(i)] for i in self.first_step]}
-
-
-def _free_rows(A: sp.csr_array, S: np.ndarray) -> np.ndarray:
-    """Rows some maximum matching of ``[A e_S]`` leaves unmatched (bool mask)."""
-    ptr, ind, nc = stack_AB(A, dedicated_B(A.shape[0], S))
-    ptr = np.ascontiguousarray(ptr, np.int64)
-    ind = np.ascontiguousarray(ind, np.int64)
-    _, cm = maximum_matching(ptr, ind, nc)
-    rows, _ = alternating_reach_rows(ptr, ind, nc, cm)
-    return rows
+                "first_step": [self.state_names[int(i)] for i in self.first_step],
+                "kept": list(self.kept), "scenarios": self.scenarios,
+                "lp_bound": float(self.lp_bound) if math.isfinite(self.lp_bound) else None}
 
 
 def _validate(kind: str, against: str, k: int, method: str, time_limit: float) -> None:
@@ -102,36 +104,59 @@ def _validate(kind: str, against: str, k: int, method: str, time_limit: float) -
                           f"{', '.join(map(repr, SECURE_METHODS))}.")
     if isinstance(k, bool) or not isinstance(k, (int, np.integer)) or k < 1:
         raise OptionError(f"k must be an integer >= 1 (failures to survive), found {k!r}.")
-    if against == "lines" and k != 1:
-        raise OptionError(f"k={k} with against='lines' is not supported; lines are "
-                          "checked one at a time (N-1). Use k=1.")
     if not isinstance(time_limit, (int, float)) or isinstance(time_limit, bool) or \
             not math.isfinite(time_limit) or time_limit <= 0:
         raise OptionError(f"time_limit must be a positive number of seconds, found "
                           f"{time_limit!r}.")
 
 
+def _line_scenarios(work: StructuredSystem, k: int,
+                    seed: int = 0) -> tuple[list[np.ndarray], str]:
+    """Link positions lost together: every ``k`` lines (fewer lines never hurt more:
+    removing links only lowers the rank and the reach), else a seeded sample."""
+    groups, _ = line_elements(work)
+    g = len(groups)
+    kk = min(k, g)
+    if kk <= 1:
+        return list(groups), "all"
+    total = math.comb(g, kk)
+    if total <= _MAX_SUBSETS:
+        return [np.concatenate([groups[j] for j in F])
+                for F in itertools.combinations(range(g), kk)], "all"
+    rng = np.random.default_rng(seed)
+    picks = {tuple(sorted(rng.choice(g, kk, replace=False).tolist()))
+             for _ in range(LINE_SAMPLES)}
+    return [np.concatenate([groups[j] for j in F]) for F in sorted(picks)], \
+        f"sampled {len(picks)} of {total}"
+
+
 def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
                      against: str = "elements", k: int = 1, sites: Sites | None = None,
-                     method: str = "auto", time_limit: float = 60.0) -> SecurePlacement:
+                     method: str = "auto", time_limit: float = 60.0,
+                     keep: bool = False) -> SecurePlacement:
     r"""Cheapest dedicated actuators (sensors) that survive failures.
 
     Parameters
     ----------
     system : StructuredSystem
-        Existing inputs (outputs) are ignored: the design is built from scratch.
+        Its inputs (outputs) are ignored unless ``keep``.
     kind : {"inputs", "sensors"}
     against : {"elements", "lines"}
         ``"elements"``: the design stays structurally controllable (observable) after
-        the loss of any ``k`` of its own actuators (sensors). ``"lines"``: after the
-        loss of any one line (:func:`~netctl.structural.failures.line_elements`).
+        the loss of any ``k`` of its elements. ``"lines"``: after the loss of any ``k``
+        lines (:func:`~netctl.structural.failures.line_elements`; every ``k``-subset
+        when there are at most 20,000 of them, else a seeded sample of
+        :data:`LINE_SAMPLES`, labelled in ``scenarios``).
     k : int, default 1
     sites : Sites, optional
         Eligible states and costs (default: the node table, else every state at cost
-        1). Each eligible state hosts at most one element.
+        1). Each eligible state hosts at most one new element.
     method : {"auto", "exact", "two-step"}
     time_limit : float, default 60
-        Seconds for the exact method (all its integer programmes together).
+        Seconds for the exact method (all its linear and integer programmes together).
+    keep : bool, default False
+        Keep the system's inputs (outputs) as part of the design -- they cost nothing and
+        can fail like the new ones -- and add the cheapest dedicated sites to them.
 
     Returns
     -------
@@ -139,27 +164,27 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
 
     Notes
     -----
-    NP-hard (Liu, Pequito, Kar, Sinopoli & Aguiar [1]_). A set ``S`` works iff it
-    touches every source component and spans the matroid of dedicated columns over
-    ``A`` (Lin [2]_). **Exact**: integer programme over ``y_i`` (site ``i`` chosen),
-    minimizing cost, with constraints added lazily until the answer survives every
-    loss: every source component holds ``k + 1`` chosen sites (``k = 1`` for lines: a
-    line's loss is checked directly); ``sum y >= N + k`` with ``N`` the minimum number
-    of dedicated inputs; and for every failing scenario (losses ``F``, or a line),
-    ``sum_{i in Z} y_i >= k + 1`` over ``Z`` the rows a maximum matching of
-    ``[A e_{S-F}]`` can leave unmatched (the complement of the closure of ``S - F``:
-    any design with at most ``k`` sites there fails the same way), or over the
-    unreached source component after a line's loss. Each cut is valid for every secure
-    design, so the master's optimum (or HiGHS's dual bound) is a proven lower bound.
-    **Two-step** (``k = 1``) [1]_: a minimum-cost design ``D``
-    (:func:`~netctl.structural.placement.place_inputs`), then the fewest additions
-    as a weighted set cover of the losses that break ``D``: site ``j`` covers a loss
-    when ``D`` minus that loss plus ``j`` works; greedy by cost per newly covered loss,
-    within ``H(max cover)`` <= ``1 + ln n`` of the cheapest cover (Chvátal [3]_). The
-    lower bound printed beside it is the largest of: the exact attempt's bound, and
-    the minimum design cost plus the ``k`` cheapest sites (any ``k`` failures leave a
-    working design). ``"auto"`` tries the exact method within ``time_limit`` and falls
-    back to the two-step method with that bound.
+    NP-hard (Liu, Pequito, Kar, Sinopoli & Aguiar [1]_). By Lin's theorem [2]_ and
+    Hall's theorem [4]_ (derivation in :mod:`netctl.structural.failures.hall`) a set
+    ``S`` of new sites, with kept columns ``B0``, survives any ``k`` element losses iff
+    ``e(C) + y(C) >= k + 1`` for every source component ``C`` of ``A`` and
+    ``e(X) + y(X) >= |X| - |N_A(X)| + k`` for every set of states ``X`` with more
+    states than feeders (``e``: kept columns touching the set). **Exact**: an integer
+    programme over ``y`` with these cuts, added as the candidates violate them (for
+    ``k = 1`` one matching and one alternating search per element finds them all;
+    for ``k > 1`` every ``k``-subset, at most 20,000); first on the linear relaxation,
+    its rounded points checked, then on the integer programme re-solved by HiGHS until
+    its optimum violates no cut. Every cut is valid for all secure designs, so the
+    relaxation's value and HiGHS's dual bound are proven lower bounds. Lines: the same
+    with ``A`` minus the lost links and no element lost.
+    **Two-step** [1]_: a minimum-cost design ``D``
+    (:func:`~netctl.structural.placement.place_inputs`), then additions chosen as a
+    greedy weighted set cover of the cuts ``D`` violates (a site covers a cut when it
+    lies in its set ``X``; cost per newly covered cut, Chvátal [3]_), repeated until
+    no loss breaks the design; any ``k``. The lower bound beside it is the largest
+    of the relaxation's value and the minimum design cost plus the ``k`` cheapest
+    other sites. ``"auto"`` tries the exact method within ``time_limit`` and falls back
+    to the two-step method with that bound.
 
     References
     ----------
@@ -169,6 +194,8 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
     .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
     .. [3] V. Chvátal, "A greedy heuristic for the set-covering problem", Math. Oper.
        Res. 4(3):233-235, 1979.
+    .. [4] P. Hall, "On representatives of subsets", J. London Math. Soc. 10:26-30,
+       1935.
 
     Examples
     --------
@@ -182,6 +209,7 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
     (['a', 'b', 'c'], True)
     """
     _validate(kind, against, k, method, time_limit)
+    k = int(k)
     work = _work_system(system, kind)
     n = work.n_states
     site_kind = "sensor" if kind == "sensors" else "actuator"
@@ -189,281 +217,221 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
         sites = sites_from_nodes(system, kind=site_kind)
     elif sites.eligible.shape != (n,):
         raise OptionError(f"sites are for {sites.eligible.size} states, the system has {n}.")
-    work = work.with_inputs(sp.csr_array((n, 0)), names=[])
+    if keep:
+        B0 = sp.csr_array(work.B, dtype=np.float64)
+        kept = tuple(str(x) for x in work.input_names)
+    else:
+        B0 = sp.csr_array((n, 0))
+        kept = ()
+    B0.sort_indices()
+    if not keep:
+        work = work.with_inputs(sp.csr_array((n, 0)), names=[])
     elig = np.asarray(sites.eligible, bool)
     cost = np.where(elig, np.asarray(sites.cost, np.float64), np.inf)
     names = tuple(str(x) for x in system.state_names)
-    base = dict(kind=kind, against=against, k=int(k), state_names=names, model=system.model)
+    base = dict(kind=kind, against=against, k=k, state_names=names, model=system.model,
+                kept=kept)
     A = work.A
+    lines: list[np.ndarray] | None = None
+    scen = "all"
+    if against == "lines":
+        lines, scen = _line_scenarios(work, k)
+    base["scenarios"] = scen
+    kk = k if against == "elements" else 0
+
+    def oracle(S: np.ndarray) -> list[tuple[np.ndarray, int]]:
+        return _violations(A, B0, S, k, against, lines)
+
     # feasibility: every eligible site installed must survive
     allS = np.flatnonzero(elig)
-    uncovered = _uncoverable(work, allS, against, int(k), names)
-    if uncovered is not None:
-        return SecurePlacement(feasible=False, sites=np.zeros(0, np.int64), cost=math.inf,
-                               lower_bound=math.inf, optimal=False, gap=math.inf,
-                               method="check", guarantee="infeasible: proven (all eligible "
-                               "sites together do not survive)", verified=None,
-                               uncovered=tuple(uncovered[0]), reasons=tuple(uncovered[1]),
-                               **base)  # type: ignore[arg-type]
-    cheapest = np.sort(cost[elig])
-    n_min = completion(A, sp.csr_array((n, 0))).states.size
+    pool = CutPool(elig)
+    for C, rhs in _reach_cuts(A, B0, kk + 1):
+        pool.add(C, rhs)
+    bad = pool.infeasible
+    if not bad:
+        try:
+            bad = [X for X, _ in oracle(allS)]
+        except TooMany:
+            bad = []
+    if bad:
+        return _infeasible(bad, A, B0, kk, names, base)
+    p = place_inputs(work, sites=sites, verify=False)
+    D = np.asarray(p.sites, np.int64)
+    try:
+        for X, rhs in oracle(D):
+            pool.add(X, rhs)
+    except TooMany:
+        pass
+    t_end = time.monotonic() + float(time_limit)
     lower = 0.0
+    lp = 0.0
     if method in ("auto", "exact"):
-        t_end = time.monotonic() + float(time_limit)
-        S, lb, done = _exact(work, elig, cost, against, int(k), n_min, t_end)
-        lower = max(lower, lb)
-        if done and S is not None:
+        res = solve_cuts(n, elig, cost, pool, oracle, t_end)
+        lower, lp = max(lower, res.lower), res.lp_bound
+        if res.optimal and res.S is not None:
+            S = res.S
             c = float(cost[S].sum())
             return SecurePlacement(feasible=True, sites=S, cost=c, lower_bound=c,
                                    optimal=True, gap=0.0, method="milp",
-                                   guarantee="exact minimum cost (integer programme with "
-                                   "lazily added cuts, solved to optimality by HiGHS)",
-                                   verified=_verify(work, S, against, int(k)), uncovered=(),
-                                   reasons=(), **base)  # type: ignore[arg-type]
-        if method == "exact" or int(k) > 1:
+                                   guarantee="exact minimum cost (integer programme over "
+                                   f"Hall-set cuts, {res.n_cuts} cuts, {res.rounds} integer "
+                                   f"round(s), solved to optimality by HiGHS)"
+                                   + _scen_note(scen),
+                                   verified=_verify(A, B0, S, against, k, lines),
+                                   uncovered=(), reasons=(), lp_bound=lp,
+                                   **base)  # type: ignore[arg-type]
+        if pool.infeasible:
+            return _infeasible(pool.infeasible, A, B0, kk, names, base)
+        if method == "exact":
             return SecurePlacement(feasible=True, sites=np.zeros(0, np.int64), cost=math.inf,
                                    lower_bound=lower, optimal=False, gap=math.inf,
                                    method="milp", guarantee=f"not finished within "
-                                   f"{time_limit:g} s (k > 1 has no two-step method); only "
-                                   f"the lower bound {lower:g} is proven", verified=None,
-                                   uncovered=(), reasons=("time limit reached",),
+                                   f"{time_limit:g} s; only the lower bound {lower:g} is "
+                                   "proven", verified=None, uncovered=(),
+                                   reasons=("time limit reached",), lp_bound=lp,
                                    **base)  # type: ignore[arg-type]
-    S, D, guarantee = _two_step(work, sites, elig, cost, against)
+    S, guarantee = _two_step(A, B0, D, elig, cost, oracle)
+    if S is None:
+        return SecurePlacement(feasible=True, sites=np.zeros(0, np.int64), cost=math.inf,
+                               lower_bound=lower, optimal=False, gap=math.inf,
+                               method="two-step", guarantee=guarantee, verified=None,
+                               uncovered=(), reasons=(guarantee,), lp_bound=lp,
+                               **base)  # type: ignore[arg-type]
+    # any secure design minus its k dearest new sites still works, unless kept elements
+    # can take the losses: then only the minimum design's cost is a bound
     D_cost = float(cost[D].sum())
-    lower = max(lower, D_cost + float(cheapest[:int(k)].sum()) if against == "elements"
-                else D_cost)
+    extra = float(np.sort(cost[elig])[:k].sum()) if against == "elements" and not \
+        B0.shape[1] else 0.0
+    lower = max(lower, D_cost + extra)
     c = float(cost[S].sum())
     lower = min(lower, c)
     gap = 0.0 if c <= 0 else (c - lower) / c
     return SecurePlacement(feasible=True, sites=S, cost=c, lower_bound=lower,
                            optimal=gap <= 1e-12, gap=gap, method="two-step",
-                           guarantee=guarantee, verified=_verify(work, S, against, int(k)),
+                           guarantee=guarantee + _scen_note(scen),
+                           verified=_verify(A, B0, S, against, k, lines),
                            uncovered=(), reasons=(), first_step=tuple(D.tolist()),
+                           lp_bound=lp, **base)  # type: ignore[arg-type]
+
+
+def _scen_note(scen: str) -> str:
+    return "" if scen == "all" else (f"; line losses {scen} (not every combination: "
+                                     "proven only for those checked)")
+
+
+def _violations(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int, against: str,
+                lines: list[np.ndarray] | None) -> list[tuple[np.ndarray, int]]:
+    """Exact separation; beyond the subset limit (``k > 1``), the rank-breaking losses
+    come from the integer programme of :func:`fewest_failures` (one per call)."""
+    try:
+        return hall_violations(A, B0, S, k, against, lines, limit=_MAX_SUBSETS)
+    except TooMany:
+        pass
+    from netctl.structural.failures.hall import _free_rows_of, _hall_cut
+    from netctl.structural.failures.withstand import _rank_milp
+
+    B = _design_B(A.shape[0], B0, S)
+    res = _rank_milp(A, B, tuple(range(k + 1)), 60.0)  # losses of at most k elements
+    if res is None or res[0] is None:
+        if res is None or res[1]:
+            return []  # proven: no k losses lower the rank
+        raise TooMany(-1)
+    F = np.asarray(res[0], np.int64)
+    keep = np.setdiff1d(np.arange(B.shape[1]), F)
+    Bk = sp.csr_array(B.tocsc()[:, keep])
+    Bk.sort_indices()
+    X, _ = _free_rows_of(A, Bk)
+    return [_hall_cut(A, B0, X, k)]
+
+
+def _infeasible(bad: list[np.ndarray], A: sp.csr_array, B0: sp.csr_array, kk: int,
+                names: tuple[str, ...], base: dict[str, Any]) -> SecurePlacement:
+    from netctl.structural.failures._core import source_components
+
+    cp, mem = source_components(A)
+    comps = {mem[cp[c]:cp[c + 1]].tobytes() for c in range(cp.size - 1)}
+    short, reasons = [], []
+    for X in bad[:50]:
+        X = np.unique(np.asarray(X, np.int64))
+        label = "{" + ", ".join(names[int(i)] for i in X[:8]) + \
+            (", ..." if X.size > 8 else "") + "}"
+        what = "source component" if X.tobytes() in comps else "states"
+        short.append(f"{what} {label}")
+        reasons.append(f"{what} {label}: too few eligible sites to survive the losses "
+                       f"({kk + 1 if what == 'source component' else 'more'} needed there)")
+    return SecurePlacement(feasible=False, sites=np.zeros(0, np.int64), cost=math.inf,
+                           lower_bound=math.inf, optimal=False, gap=math.inf,
+                           method="check", guarantee="infeasible: proven (all eligible "
+                           "sites together do not survive)", verified=None,
+                           uncovered=tuple(short), reasons=tuple(reasons),
                            **base)  # type: ignore[arg-type]
 
 
 # ---------------------------------------------------------------------- checks
-def _verify(work: StructuredSystem, S: np.ndarray, against: str, k: int) -> bool:
-    """Independent check: every single (or k-fold) loss by recomputation."""
-    return not _failing(work, S, against, k, limit=None, full=True)
-
-
-def _failing(work: StructuredSystem, S: np.ndarray, against: str, k: int,
-             limit: int | None, full: bool = False) -> list[tuple[str, Any]]:
-    """Failing scenarios of design ``S``: ``("loss", F)`` or ``("line", positions)``."""
-    A = work.A
-    n = work.n_states
-    out: list[tuple[str, Any]] = []
-    if not is_controlling(A, dedicated_B(n, S)).ok:
-        return [("loss", ())]
+def _verify(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, against: str, k: int,
+            lines: list[np.ndarray] | None) -> bool | None:
+    """Independent check by recomputation (Lin's test per scenario); ``None`` when the
+    scenarios are too many to visit."""
+    n = A.shape[0]
+    B = _design_B(n, B0, S)
+    if not is_controlling(A, B).ok:
+        return False
     if against == "lines":
-        sysS = work.with_inputs(dedicated_B(n, S))
-        ll = audit_links(sysS)
-        groups, _ = line_elements(work)
-        return [("line", groups[int(j)]) for j in np.flatnonzero(ll.breaking)]
-    if k == 1 and not full:
-        f = design_facts(A, dedicated_B(n, S))
-        bad = np.flatnonzero(f.rank_lost | (f.cut_off > 0))
-        return [("loss", (int(S[j]),)) for j in bad]
-    total = math.comb(S.size, min(k, S.size))
-    if limit is not None and total > limit:
-        raise _TooMany()
-    for F in itertools.combinations(S.tolist(), min(k, S.size)):
-        rest = np.setdiff1d(S, F)
-        if not is_controlling(A, dedicated_B(n, rest)).ok:
-            out.append(("loss", F))
-    return out
-
-
-class _TooMany(Exception):
-    pass
-
-
-def _uncoverable(work: StructuredSystem, allS: np.ndarray, against: str, k: int,
-                 names: tuple[str, ...]) -> tuple[list[str], list[str]] | None:
-    A = work.A
-    n = work.n_states
-    cptr, members = source_components(A)
-    elig = np.zeros(n, bool)
-    elig[allS] = True
-    short, reasons = [], []
-    need = k + 1 if against == "elements" else 1
-    for c in range(cptr.size - 1):
-        comp = members[cptr[c]:cptr[c + 1]]
-        have = int(np.count_nonzero(elig[comp]))
-        if have < need:
-            label = "{" + ", ".join(names[int(i)] for i in comp[:8]) + \
-                (", ..." if comp.size > 8 else "") + "}"
-            short.append(f"source component {label}")
-            reasons.append(f"source component {label} has {have} eligible site(s), "
-                           f"{need} needed")
-    if short:
-        return short, reasons
-    try:
-        bad = _failing(work, allS, against, k, limit=_MAX_SUBSETS)
-    except _TooMany:
-        return None  # cannot tell cheaply; the exact method will find out
-    if not bad:
+        return all(is_controlling(_without(A, L), B).ok for L in lines or [])
+    m = B.shape[1]
+    q = min(k, m)
+    if math.comb(m, q) > 4 * _MAX_SUBSETS:
         return None
-    for what, F in bad[:50]:
-        if what == "loss":
-            label = "loss of " + (", ".join(names[int(i)] for i in F) if F else
-                                  "nothing (even the intact design with every site fails)")
-        else:
-            _, labels = line_elements(work)
-            groups, labels = line_elements(work)
-            idx = next(j for j, g in enumerate(groups) if np.array_equal(g, F))
-            label = f"loss of line {labels[idx]}"
-        short.append(label)
-    reasons.append("infeasible: these losses cannot be covered by any eligible site: "
-                   + "; ".join(short[:8]) + (f" ... ({len(short) - 8} more)"
-                                              if len(short) > 8 else ""))
-    return short, reasons
-
-
-# ---------------------------------------------------------------------- exact
-def _exact(work: StructuredSystem, elig: np.ndarray, cost: np.ndarray, against: str, k: int,
-           n_min: int, t_end: float) -> tuple[np.ndarray | None, float, bool]:
-    """Lazy-cut integer programme. Returns (design, lower bound, proven optimal)."""
-    from scipy.optimize import Bounds, LinearConstraint, milp
-
-    A = work.A
-    n = work.n_states
-    var = np.flatnonzero(elig)
-    pos = np.full(n, -1, np.int64)
-    pos[var] = np.arange(var.size)
-    need = k + 1 if against == "elements" else 1
-    cuts: list[tuple[np.ndarray, int]] = []
-    seen: set[tuple[bytes, int]] = set()
-
-    def add(states: np.ndarray, rhs: int) -> None:
-        p = np.unique(pos[states[elig[states]]])
-        key = (p.tobytes(), int(rhs))
-        if key not in seen:
-            seen.add(key)
-            cuts.append((p, rhs))
-
-    cptr, members = source_components(A)
-    for c in range(cptr.size - 1):
-        add(members[cptr[c]:cptr[c + 1]], need)
-    free0 = _free_rows(A, np.zeros(0, np.int64))
-    if free0.any():  # A alone is rank deficient (else no rank cut holds)
-        add(np.flatnonzero(free0), need)
-    add(np.arange(n), n_min + (k if against == "elements" else 0))
-    lower = 0.0
-    c_vec = cost[var]
-    while True:
-        left = t_end - time.monotonic()
-        if left <= 0:
-            return None, lower, False
-        rows = np.concatenate([np.full(p.size, j) for j, (p, _) in enumerate(cuts)])
-        cols = np.concatenate([p for p, _ in cuts])
-        M = sp.csr_array((np.ones(rows.size), (rows, cols)), shape=(len(cuts), var.size))
-        res = milp(c_vec, integrality=np.ones(var.size), bounds=Bounds(0, 1),
-                   constraints=LinearConstraint(M, np.array([r for _, r in cuts], float),
-                                                np.inf),
-                   options={"time_limit": float(left), "mip_rel_gap": 0.0})
-        if res.status == 2:  # cannot happen after the feasibility check; be safe
-            return None, math.inf, False
-        dual = getattr(res, "mip_dual_bound", None)
-        if res.x is None or res.status != 0:
-            if dual is not None and np.isfinite(dual):
-                lower = max(lower, float(dual))
-            return None, lower, False
-        lower = max(lower, float(res.fun))
-        S = np.sort(var[res.x > 0.5])
-        try:
-            bad = _failing(work, S, against, k, limit=_MAX_SUBSETS)
-        except _TooMany:
-            return None, lower, False
-        if not bad:
-            return S, lower, True
-        for what, F in bad:
-            if what == "loss":
-                rest = np.setdiff1d(S, np.asarray(F, np.int64))
-                chk = is_controlling(A, dedicated_B(n, rest))
-                if chk.rank < n:
-                    add(np.flatnonzero(_free_rows(A, rest)), need)
-            else:
-                AL = _without(A, F)
-                chk = is_controlling(AL, dedicated_B(n, S))
-                if chk.rank < n:
-                    add(np.flatnonzero(_free_rows(AL, S)), 1)
-                if chk.unreached.size:
-                    cp, mem = source_components(AL)
-                    hit = np.zeros(n, bool)
-                    hit[chk.unreached] = True
-                    for c in range(cp.size - 1):
-                        comp = mem[cp[c]:cp[c + 1]]
-                        if hit[comp].all():
-                            add(comp, 1)
+    Bc = B.tocsc()
+    for F in itertools.combinations(range(m), q):
+        Bk = sp.csr_array(Bc[:, np.setdiff1d(np.arange(m), F)])
+        Bk.sort_indices()
+        if not is_controlling(A, Bk).ok:
+            return False
+    return True
 
 
 # ---------------------------------------------------------------------- two-step
-def _two_step(work: StructuredSystem, sites: Sites, elig: np.ndarray, cost: np.ndarray,
-              against: str) -> tuple[np.ndarray, np.ndarray, str]:
-    A = work.A
-    n = work.n_states
-    p = place_inputs(work, sites=sites, verify=False)
-    D = np.asarray(p.sites, np.int64)
-    inD = np.zeros(n, bool)
-    inD[D] = True
-    cand_ok = elig & ~inD
-    fixers: list[np.ndarray] = []  # per breaking loss: sites that fix it alone
-    forced: set[int] = set()
-    for what, F in _failing(work, D, against, 1, limit=None):
-        if what == "loss":
-            rest = np.setdiff1d(D, np.asarray(F, np.int64))
-            AL = A
-        else:
-            rest, AL = D, _without(A, F)
-        chk = is_controlling(AL, dedicated_B(n, rest))
-        ok = cand_ok.copy()
-        if chk.rank < n:
-            ok &= _free_rows(AL, rest)
-        if chk.unreached.size:
-            cp, mem = source_components(AL)
-            hit = np.zeros(n, bool)
-            hit[chk.unreached] = True
-            comps = [mem[cp[c]:cp[c + 1]] for c in range(cp.size - 1)
-                     if hit[mem[cp[c]:cp[c + 1]]].all()]
-            if len(comps) == 1:
-                m2 = np.zeros(n, bool)
-                m2[comps[0]] = True
-                ok &= m2
-            else:
-                ok[:] = False
-        if n - chk.rank > 1:
-            ok[:] = False
-        if ok.any():
-            fixers.append(np.flatnonzero(ok))
-        else:  # no single site fixes it: add the cheapest completion for this loss
-            sysL = work._replace(A=AL).with_inputs(dedicated_B(n, rest))
-            e2 = sites.eligible.copy()
-            e2[np.asarray(F, np.int64) if what == "loss" else np.zeros(0, np.int64)] = False
-            sub = Sites(kind=sites.kind, eligible=e2, cost=np.where(e2, sites.cost, np.inf),
-                        state_names=sites.state_names, source=sites.source)
-            extra = place_inputs(sysL, sites=sub, verify=False)
-            forced.update(int(i) for i in extra.sites)
-    # greedy weighted set cover of the losses
-    chosen = set(forced)
-    todo = [j for j, fx in enumerate(fixers) if not chosen.intersection(fx.tolist())]
-    cover: dict[int, set[int]] = {}
-    for j in todo:
-        for s in fixers[j].tolist():
-            cover.setdefault(s, set()).add(j)
-    left = set(todo)
-    hmax = max((len(v) for v in cover.values()), default=1)
-    while left:
-        best = min(cover, key=lambda s: (cost[s] / max(len(cover[s] & left), 1e-300)
-                                         if cover[s] & left else math.inf, s))
-        chosen.add(best)
-        left -= cover[best]
-    S = np.union1d(D, np.array(sorted(chosen), np.int64)).astype(np.int64)
+def _two_step(A: sp.csr_array, B0: sp.csr_array, D: np.ndarray, elig: np.ndarray,
+              cost: np.ndarray, oracle: Any) -> tuple[np.ndarray | None, str]:
+    """Minimum design ``D``, then greedy weighted set cover of the cuts it violates,
+    repeated until none is left."""
+    n = A.shape[0]
+    y = np.zeros(n, np.int64)
+    y[D] = 1
+    passes = 0
+    added = 0
+    hmax = 1
+    while True:
+        try:
+            cuts = oracle(np.flatnonzero(y))
+        except TooMany:
+            return None, ("two-step: too many loss scenarios to check exhaustively and "
+                          "the integer programme finding them did not finish")
+        if not cuts:
+            break
+        passes += 1
+        # deficits: how many more sites each violated cut needs
+        need = [(np.unique(X[elig[X]]), rhs - int(y[X].sum())) for X, rhs in cuts]
+        need = [(X[y[X] == 0], d) for X, d in need if d > 0]
+        cover: dict[int, list[int]] = {}
+        for j, (X, _) in enumerate(need):
+            for s_ in X.tolist():
+                cover.setdefault(s_, []).append(j)
+        hmax = max(hmax, max((len(v) for v in cover.values()), default=1))
+        left = np.array([d for _, d in need], np.int64)
+        while (left > 0).any():
+            cand = [(cost[s_] / g, s_) for s_, js in cover.items() if y[s_] == 0
+                    and (g := int(np.count_nonzero(left[js] > 0))) > 0]
+            if not cand:
+                return None, "two-step: a loss cannot be covered by the eligible sites"
+            _, best = min(cand)
+            y[best] = 1
+            added += 1
+            left[cover[best]] -= 1
+    S = np.flatnonzero(y).astype(np.int64)
     H = sum(1.0 / i for i in range(1, hmax + 1))
-    guarantee = (f"two-step (Liu et al. 2017): minimum-cost design of {D.size} site(s), then "
-                 f"{len(chosen)} addition(s) by greedy weighted set cover, within "
-                 f"H({hmax}) = {H:.2f} times the cheapest set of additions to that design")
-    if forced:
-        guarantee += f"; {len(forced)} addition(s) forced where no single site covers a loss"
-    return S, D, guarantee
+    return S, (f"two-step (Liu et al. 2017): minimum-cost design of {D.size} site(s), then "
+               f"{added} addition(s) by greedy weighted set cover of the losses it does "
+               f"not survive ({passes} pass(es); each within H({hmax}) = {H:.2f} times "
+               "the cheapest cover of that pass)")
