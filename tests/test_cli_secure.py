@@ -72,3 +72,30 @@ def test_disturbance_is_never_a_site(tmp_path, capsys):
     sites.write_text("state,cost\noutdoor_temp,1\n")
     assert main(["secure", net, "--place", "--sites", str(sites)]) == 2
     assert "'outdoor_temp' is a disturbance" in capsys.readouterr().err
+
+
+def test_place_keep_adds_to_the_given_design(net, capsys):
+    # worked by hand (Lin's conditions): A alone has a perfect matching (a<-b, b<-a,
+    # c<-d, d<-c), so only the source component {a, b} matters: with the kept actuator
+    # at a, one more site in {a, b} survives any single loss
+    assert main(["secure", net, "--place", "--keep", "--inputs", "a", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["kept"] == ["u:a"] and len(d["sites"]) == 1 and d["sites"][0] in ("a", "b")
+    assert d["optimal"] and d["verified"]
+    assert main(["secure", net, "--place", "--keep", "--inputs", "a,b"]) == 0
+    assert "nothing to add: the kept design is already secure" in capsys.readouterr().out
+
+
+def test_place_two_lines(net, capsys):
+    # any two lost lines, worked by hand (Lin's reach condition): losing a -- b and
+    # b -> c leaves a and b each a source component of its own, losing c -- d and
+    # b -> c does the same to c and d: every state needs an actuator
+    assert main(["secure", net, "--place", "--against", "lines", "--k", "2", "--json"]) == 0
+    d = json.loads(capsys.readouterr().out)
+    assert d["scenarios"] == "all" and d["optimal"] and d["verified"]
+    assert d["sites"] == ["a", "b", "c", "d"]
+
+
+def test_keep_needs_place(net, capsys):
+    assert main(["secure", net, "--inputs", "a", "--keep"]) == 2
+    assert "--keep go with --place" in capsys.readouterr().err

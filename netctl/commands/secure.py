@@ -4,7 +4,8 @@ Audit (default): every actuator of ``--inputs`` (sensor of ``--outputs``, or the
 own design) classified as a single point of failure, useful or useless; the fewest
 failures that break it; every line whose loss breaks it. ``--place``: the cheapest
 dedicated actuators (``--sensors``: sensors) that survive any ``--k`` failures of their
-own (``--against elements``) or any one line (``--against lines``).
+own (``--against elements``) or any ``--k`` lines (``--against lines``); ``--keep`` keeps the
+existing design and adds to it.
 
 Exit status: 0 secure (audit: no single point of failure and no breaking line, and at
 least ``--k`` failures withstood; place: a secure design was found), 1 not, 2 bad usage
@@ -47,9 +48,12 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                    help="find the cheapest design that survives failures instead of auditing")
     p.add_argument("--sensors", action="store_true",
                    help="with --place: place sensors (observability) instead of actuators")
+    p.add_argument("--keep", action="store_true",
+                   help="with --place: keep the existing design (--inputs/--outputs, else "
+                        "the file's own) and add the cheapest sites that make it secure")
     p.add_argument("--against", choices=list(_AGAINST), default="elements",
-                   help="with --place: survive the loss of any --k placed elements "
-                        "(default) or of any one line")
+                   help="with --place: survive the loss of any --k elements of the design "
+                        "(default) or of any --k lines (many lines: a labelled sample)")
     p.add_argument("--k", metavar="K", type=int, default=1,
                    help="failures to survive (default 1: N-1)")
     add_sites(p)
@@ -73,13 +77,19 @@ def _cmd_secure(args: argparse.Namespace) -> int:
     system = load_system(args)
     _no_disturbance_sites(system, args)
     if args.place:
-        if args.inputs or args.outputs:
+        if (args.inputs or args.outputs) and not args.keep:
             raise UsageError("--place builds a design from scratch; drop --inputs/--outputs "
-                             "(audit a design without --place).")
+                             "(audit a design without --place), or add --keep to keep "
+                             "them and add to them.")
+        if args.inputs is not None:
+            system = system.with_inputs(parse_names(system, args.inputs))
+        if args.outputs is not None:
+            system = system.with_outputs(parse_names(system, args.outputs, what="--outputs"))
         return _place(args, system)
-    if args.sensors or args.sites or args.against != "elements" or args.method != "auto":
-        raise UsageError("--sensors, --sites, --against and --method go with --place; an "
-                         "audit takes --inputs and/or --outputs.")
+    if args.sensors or args.sites or args.against != "elements" or args.method != "auto" \
+            or args.keep:
+        raise UsageError("--sensors, --sites, --against, --method and --keep go with "
+                         "--place; an audit takes --inputs and/or --outputs.")
     if args.inputs is not None:
         system = system.with_inputs(parse_names(system, args.inputs))
     if args.outputs is not None:
@@ -178,19 +188,26 @@ def _place(args: argparse.Namespace, system: Any) -> int:
     sites = (read_sites(args.sites, system, kind="sensor" if args.sensors else "actuator")
              if args.sites else None)
     r = secure_placement(system, kind=kind, against=args.against, k=args.k, sites=sites,
-                         method=args.method, time_limit=args.time_limit)
+                         method=args.method, time_limit=args.time_limit, keep=args.keep)
     noun = "sensors" if args.sensors else "actuators"
-    what = (f"any {args.k} {noun[:-1]} failure(s)" if args.against == "elements" else
-            "any one line")
+    what = (f"any {args.k} failure(s) of the design" if args.against == "elements" else
+            "any one line" if args.k == 1 else f"any {args.k} lines")
     lines = [f"{args.file}: {system.n_states} states, model {system.model}",
-             f"  cheapest dedicated {noun} surviving {what}"
+             f"  cheapest {'added ' if args.keep else ''}dedicated {noun} surviving {what}"
              + (f" (sites: {args.sites})" if args.sites else "")]
+    if args.keep:
+        lines.append(f"  kept ({len(r.kept)}, can fail too): {names_line(list(r.kept))}")
+    if r.scenarios != "all":
+        lines.append(f"  line losses {r.scenarios}: the design is checked on those only "
+                     "(not proven for every combination)")
     if not r.feasible:
         lines.append("  infeasible: these losses cannot be covered: "
                      + "; ".join(r.uncovered[:10]))
         lines.extend(f"    - {x}" for x in r.reasons)
-    elif r.sites.size == 0:
+    elif r.sites.size == 0 and not (args.keep and r.optimal):
         lines.append(f"  no design found: {r.guarantee}")
+    elif r.sites.size == 0:
+        lines.append("  nothing to add: the kept design is already secure (proven)")
     else:
         lines.append(f"  sites ({r.sites.size}): {names_line(r.site_names)}")
         status = ("optimal (proven)" if r.optimal else
@@ -204,4 +221,5 @@ def _place(args: argparse.Namespace, system: Any) -> int:
     d["file"] = args.file
     d["caution"] = CAUTION
     emit(args, d, "\n".join(lines))
-    return 0 if r.feasible and r.sites.size and r.verified else 1
+    found = r.feasible and (r.sites.size > 0 or (args.keep and r.optimal))
+    return 0 if found and r.verified else 1
