@@ -54,10 +54,13 @@ def main() -> None:
     ap.add_argument("--n-place", type=int, default=10_000)
     ap.add_argument("--time-limit", type=float, default=30.0)
     ap.add_argument("--skip-audit", action="store_true")
+    ap.add_argument("--skip-place", action="store_true")
+    ap.add_argument("--k2", action="store_true", help="also k = 2 on case300")
     a = ap.parse_args()
     if not a.skip_audit:
         _audit(a)
-    _place(a)
+    if not a.skip_place:
+        _place(a)
     _grid(a)
 
 
@@ -71,11 +74,15 @@ def _grid(a: argparse.Namespace) -> None:
     from netctl.io.power_grid import from_pandapower
 
     s = from_pandapower(pn.case300())
-    for against in ("elements", "lines"):
-        r, t = _t(lambda: secure_placement(s, against=against, time_limit=a.time_limit))
-        print(f"case300 ({s.n_states} states, {s.n_links} links) against {against}: "
+    runs = [("elements", 1), ("lines", 1)] + ([("elements", 2), ("lines", 2)]
+                                              if a.k2 else [])
+    for against, k in runs:
+        r, t = _t(lambda: secure_placement(s, against=against, k=k,
+                                           time_limit=a.time_limit))
+        print(f"case300 ({s.n_states} states, {s.n_links} links) against {against} k={k}: "
               f"{t:.1f} s, method {r.method}, {r.sites.size} sites, lower bound "
-              f"{r.lower_bound:g}, gap {100 * r.gap:.1f}%, verified {r.verified}")
+              f"{r.lower_bound:g}, gap {100 * r.gap:.1f}%, verified {r.verified}, "
+              f"scenarios {getattr(r, 'scenarios', 'all')}")
 
 
 def _audit(a: argparse.Namespace) -> None:
@@ -110,7 +117,8 @@ def _place(a: argparse.Namespace) -> None:
     r, t_p = _t(lambda: secure_placement(p, time_limit=a.time_limit))
     print(f"secure placement n={p.n_states} ({p.n_links} links): {t_p:.1f} s, method {r.method}, "
           f"{r.sites.size} sites, cost {r.cost:g}, lower bound {r.lower_bound:g}, "
-          f"gap {100 * r.gap:.1f}%, verified {r.verified}")
+          f"gap {100 * r.gap:.1f}%, verified {r.verified}, linear relaxation "
+          f"{getattr(r, 'lp_bound', float('nan')):g}")
     r2, t_p2 = _t(lambda: secure_placement(p, method="two-step"))
     print(f"two-step alone n={p.n_states}: {t_p2:.1f} s, {r2.sites.size} sites, "
           f"gap {100 * r2.gap:.1f}% (bound without the exact attempt), "

@@ -180,6 +180,7 @@ def hall_violations(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int,
     if rank < n or reach.size:
         if rank < n:
             out.append(_hall_cut(A, B0, X, kk))
+            out.extend(_closure_cuts(A, B, B0, kk))
         if reach.size:
             out.extend(_reach_cuts(A, B0, kk + 1, reach))
         return out
@@ -232,6 +233,24 @@ def hall_violations(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int,
     return out
 
 
+def _closure_cuts(A: sp.csr_array, B: sp.csr_array, B0: sp.csr_array, k: int,
+                  limit: int = 200) -> list[tuple[np.ndarray, int]]:
+    """One cut per unmatched row ``u`` of a maximum matching of ``[A B]`` (at most
+    ``limit``): the rows ``X`` alternating paths reach from ``u`` alone. Every column
+    touching ``X`` is matched into ``X - u``, so ``B`` falls short there by at least
+    one before any loss (the cut is violated by ``k + 1``)."""
+    n = A.shape[0]
+    ptr, ind, nc = stack_AB(A, B)
+    ptr = np.ascontiguousarray(ptr, np.int64)
+    ind = np.ascontiguousarray(ind, np.int64)
+    rm, cm = maximum_matching(ptr, ind, nc)
+    out = []
+    for u in np.flatnonzero(rm < 0)[:limit]:
+        rows, _ = alternating_reach_rows(ptr, ind, nc, cm, np.array([u], np.int64))
+        out.append(_hall_cut(A, B0, np.flatnonzero(rows), k))
+    return out
+
+
 class TooMany(Exception):
     """More loss scenarios than the exhaustive check may visit."""
 
@@ -278,10 +297,13 @@ class CutResult:
 
 def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
                oracle: Callable[[np.ndarray], list[tuple[np.ndarray, int]]],
-               t_end: float, lp_rounds: int = 30) -> CutResult:
-    """Cutting planes on the linear relaxation (rounded points checked by ``oracle``),
-    then the integer programme over the cuts, re-solved while its optimum violates new
-    ones. ``oracle(S)`` returns cuts ``S`` violates (``[]``: feasible)."""
+               t_end: float, lp_rounds: int = 30,
+               repair: Callable[[np.ndarray], np.ndarray | None] | None = None,
+               ) -> CutResult:
+    """Cutting planes on the linear relaxation (rounded points checked by ``oracle``,
+    and ``repair``-ed into secure designs: the incumbent), then the integer programme
+    over the cuts, re-solved while its optimum violates new ones. ``oracle(S)`` returns
+    cuts ``S`` violates (``[]``: feasible)."""
     from scipy.optimize import Bounds, LinearConstraint, milp
 
     var = np.flatnonzero(elig)
@@ -291,12 +313,28 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
     best: np.ndarray | None = None
     integral_costs = bool(np.all(np.abs(c - np.round(c)) < 1e-9))
 
+    inc: list[np.ndarray] = []  # best secure design found (repaired roundings)
+
+    def ub() -> float:
+        return float(cost[inc[0]].sum()) if inc else math.inf
+
+    def offer(S: np.ndarray) -> None:
+        if repair is None:
+            return
+        T = repair(S)
+        if T is not None and float(cost[T].sum()) < ub():
+            inc[:] = [T]
+
     def solve(integer: bool, left: float):
         M, rhs = pool.matrix(var, n)
         cons = [LinearConstraint(M, rhs, np.inf)] if M.shape[0] else []
+        gap = 0.0
+        if integer and integral_costs and math.isfinite(ub()) and ub() > 0:
+            # with integral costs a gap below one unit proves optimality
+            gap = 0.999 / ub()
         return milp(c, integrality=np.full(var.size, 1 if integer else 0), bounds=Bounds(0, 1),
                     constraints=cons, options={"time_limit": max(left, 1e-3),
-                                               "mip_rel_gap": 0.0})
+                                               "mip_rel_gap": gap})
 
     def feed(S: np.ndarray, y: np.ndarray | None) -> int:
         new = 0
@@ -310,6 +348,7 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
         return new
 
     # 1. linear relaxation with cuts from rounded points
+    y_last: np.ndarray | None = None
     for _ in range(lp_rounds):
         left = t_end - time.monotonic()
         if left <= 0:
@@ -320,6 +359,7 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
         lp_bound = max(lp_bound, float(res.fun))
         y = np.zeros(n)
         y[var] = res.x
+        y_last = y
         new = 0
         for t in (0.999, 0.5, 1e-6):
             S = np.flatnonzero(y >= t)
@@ -331,6 +371,9 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
                 break
         if new == 0 or pool.infeasible:
             break
+    if not pool.infeasible and y_last is not None:
+        for t in (0.5, 1e-6):
+            offer(np.flatnonzero(y_last >= t))
     lower = lp_bound
     if integral_costs:
         lower = math.ceil(lower - 1e-6)
@@ -346,15 +389,25 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
             dual = getattr(res, "mip_dual_bound", None)
             if dual is not None and np.isfinite(dual):
                 lower = max(lower, float(dual))
+            if res.x is not None:
+                offer(np.sort(var[res.x > 0.5]))
             break
-        lower = max(lower, float(res.fun))
+        dual = getattr(res, "mip_dual_bound", None)
+        lower = max(lower, float(dual) if dual is not None and np.isfinite(dual)
+                    else float(res.fun))
+        if integral_costs:
+            lower = math.ceil(lower - 1e-6)
         S = np.sort(var[res.x > 0.5])
         got = feed(S, None)
         if got < 0:
             break
         if got == 0:
-            best = S
-            return CutResult(S=best, lower=float(cost[S].sum()), optimal=True, rounds=rounds,
-                             n_cuts=len(pool.cuts), lp_bound=lp_bound)
-    return CutResult(S=None, lower=float(lower), optimal=False, rounds=rounds,
-                     n_cuts=len(pool.cuts), lp_bound=lp_bound)
+            if float(cost[S].sum()) <= lower + 1e-9 or not inc:
+                inc[:] = [S]
+            break
+        offer(S)
+    if inc and ub() <= lower + 1e-9:
+        return CutResult(S=inc[0], lower=ub(), optimal=True, rounds=rounds,
+                         n_cuts=len(pool.cuts), lp_bound=lp_bound)
+    return CutResult(S=inc[0] if inc else None, lower=float(min(lower, ub())), optimal=False,
+                     rounds=rounds, n_cuts=len(pool.cuts), lp_bound=lp_bound)
