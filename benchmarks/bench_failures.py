@@ -121,7 +121,7 @@ def _place(a: argparse.Namespace) -> None:
           f"{getattr(r, 'lp_bound', float('nan')):g}")
     r2, t_p2 = _t(lambda: secure_placement(p, method="two-step"))
     print(f"two-step alone n={p.n_states}: {t_p2:.1f} s, {r2.sites.size} sites, "
-          f"gap {100 * r2.gap:.1f}% (bound without the exact attempt), "
+          f"gap {100 * r2.gap:.1f}% (to the linear relaxation), "
           f"verified {r2.verified}")
 
 

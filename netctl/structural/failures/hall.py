@@ -299,7 +299,7 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
                oracle: Callable[[np.ndarray], list[tuple[np.ndarray, int]]],
                t_end: float, lp_rounds: int = 30,
                repair: Callable[[np.ndarray], np.ndarray | None] | None = None,
-               ) -> CutResult:
+               integer: bool = True) -> CutResult:
     """Cutting planes on the linear relaxation (rounded points checked by ``oracle``,
     and ``repair``-ed into secure designs: the incumbent), then the integer programme
     over the cuts, re-solved while its optimum violates new ones. ``oracle(S)`` returns
@@ -379,7 +379,7 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
         lower = math.ceil(lower - 1e-6)
     # 2. integer programme, re-solved while its answer violates new cuts
     rounds = 0
-    while not pool.infeasible:
+    while integer and not pool.infeasible:
         left = t_end - time.monotonic()
         if left <= 0:
             break

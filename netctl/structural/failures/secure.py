@@ -319,6 +319,10 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
                                    "proven", verified=None, uncovered=(),
                                    reasons=("time limit reached",), lp_bound=lp,
                                    **base)  # type: ignore[arg-type]
+    if method == "two-step":  # its bound: the linear relaxation over the cuts (seconds)
+        res = solve_cuts(n, elig, cost, pool, oracle, time.monotonic() + float(time_limit),
+                         integer=False)
+        lower, lp = max(lower, res.lower), res.lp_bound
     S, guarantee = _two_step(A, B0, D, elig, cost, oracle)
     if S is None:
         return SecurePlacement(feasible=True, sites=np.zeros(0, np.int64), cost=math.inf,
