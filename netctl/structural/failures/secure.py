@@ -323,13 +323,14 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
         res = solve_cuts(n, elig, cost, pool, oracle, time.monotonic() + float(time_limit),
                          integer=False)
         lower, lp = max(lower, res.lower), res.lp_bound
-    S, guarantee = _two_step(A, B0, D, elig, cost, oracle)
-    if S is None:
+    S2, guarantee = _two_step(A, B0, D, elig, cost, oracle)
+    if S2 is None:
         return SecurePlacement(feasible=True, sites=np.zeros(0, np.int64), cost=math.inf,
                                lower_bound=lower, optimal=False, gap=math.inf,
                                method="two-step", guarantee=guarantee, verified=None,
                                uncovered=(), reasons=(guarantee,), lp_bound=lp,
                                **base)  # type: ignore[arg-type]
+    S = S2
     # any secure design minus its k dearest new sites still works, unless kept elements
     # can take the losses: then only the minimum design's cost is a bound
     D_cost = float(cost[D].sum())
