@@ -59,7 +59,14 @@ def _row_mask(n: int, X: np.ndarray) -> np.ndarray:
 
 
 def deficiency(A: sp.csr_array, X: np.ndarray) -> int:
-    """``def(X) = |X| - |N_A(X)|``: states of ``X`` minus the states feeding them."""
+    """``def(X) = |X| - |N_A(X)|``: states of ``X`` minus the states feeding them.
+
+    References
+    ----------
+    .. [1] P. Hall, "On representatives of subsets", J. London Math. Soc. 10:26-30,
+       1935.
+    .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
+    """
     n = A.shape[0]
     sel = np.repeat(_row_mask(n, X), np.diff(A.indptr))
     return int(np.unique(X).size - np.unique(A.indices[sel]).size)
@@ -168,6 +175,12 @@ def hall_violations(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int,
     ``lines`` (link positions in the CSR order of ``A``) lost. Exact: for ``k = 1`` one
     matching and one alternating search per rank-critical element; for ``k > 1`` every
     ``k``-subset (raises :class:`TooMany` beyond ``limit``), with Lin's test each.
+
+    References
+    ----------
+    .. [1] P. Hall, "On representatives of subsets", J. London Math. Soc. 10:26-30,
+       1935.
+    .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
     """
     n = A.shape[0]
     S = np.asarray(S, np.int64)
@@ -270,7 +283,14 @@ def _unreached(A: sp.csr_array, B: sp.csr_array) -> np.ndarray:
 
 
 def hall_secure(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int) -> bool:
-    """Brute Hall test (every subset ``X``; tiny systems only): the characterization."""
+    """Brute Hall test (every subset ``X``; tiny systems only): the characterization.
+
+    References
+    ----------
+    .. [1] P. Hall, "On representatives of subsets", J. London Math. Soc. 10:26-30,
+       1935.
+    .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
+    """
     n = A.shape[0]
     y = _row_mask(n, np.asarray(S, np.int64)).astype(int)
     for C, rhs in _reach_cuts(A, B0, k + 1):
@@ -303,7 +323,16 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
     """Cutting planes on the linear relaxation (rounded points checked by ``oracle``,
     and ``repair``-ed into secure designs: the incumbent), then the integer programme
     over the cuts, re-solved while its optimum violates new ones. ``oracle(S)`` returns
-    cuts ``S`` violates (``[]``: feasible)."""
+    cuts ``S`` violates (``[]``: feasible).
+
+    References
+    ----------
+    .. [1] G. Dantzig, R. Fulkerson, S. Johnson, "Solution of a large-scale
+       traveling-salesman problem", Operations Research 2(4):393-410, 1954 (cutting
+       planes added as violated; from memory).
+    .. [2] Q. Huangfu, J. A. J. Hall, "Parallelizing the dual revised simplex method",
+       Math. Prog. Comp. 10:119-142, 2018 (HiGHS).
+    """
     from scipy.optimize import Bounds, LinearConstraint, milp
 
     var = np.flatnonzero(elig)
