@@ -79,7 +79,7 @@ def test_disturbance_with_incoming_link_is_exit_2_naming_it(capsys, tmp_path):
 
 
 @pytest.mark.parametrize("stations, message", [
-    ('a = { inputs = ["coolant_valve", "reflux_valve"] }', "names the input 'reflux_valve'"),
+    ('a = { inputs = ["coolant_valve", "quench_valve"] }', "names the input 'quench_valve'"),
     ('a = { outputs = ["no_such_gauge"] }', "names the output 'no_such_gauge'"),
     ('a = { inputs = ["coolant_valve"] }\nb = { inputs = ["steam_valve", "coolant_valve"] }',
      "stations 'a' and 'b' overlap: both hold the input 'coolant_valve'"),

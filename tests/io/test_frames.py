@@ -48,7 +48,7 @@ def _tables(system):
         rows.append((system.state_names[u], system.state_names[v], "link"))
     for M, names, kind in ((system.B, system.input_names, "input"),
                            (system.E, system.disturbance_names, "disturbance")):
-        M = M.tocoo()
+        M = M.tocsc().tocoo()  # column by column: the tables list the inputs in order
         for i, j in zip(M.row.tolist(), M.col.tolist()):
             rows.append((names[j], system.state_names[i], kind))
     C = system.C.tocoo()
