@@ -54,15 +54,21 @@ if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
     )
     from netctl.structural import (
         ControllabilityReport,
+        DecouplingReport,
+        FixedModesReport,
         InputDesign,
         NetworkSummary,
+        TransferRank,
         controllability,
+        decoupling,
+        fixed_modes,
         is_structurally_controllable,
         is_structurally_observable,
         minimum_inputs,
         minimum_sensors,
         observability,
         summarize,
+        transfer_rank,
     )
     from netctl.structural.interconnect import interconnection
     from netctl.structural.placement import (
@@ -86,8 +92,10 @@ if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
 #: (PEP 562), so ``import netctl`` stays fast and loads no SciPy, Numba or Matplotlib.
 _LAZY: dict[str, str] = {
     "ControllabilityReport": "netctl.structural",
+    "DecouplingReport": "netctl.structural",
     "EnergyReport": "netctl.numeric",
     "ExactControllability": "netctl.numeric",
+    "FixedModesReport": "netctl.structural",
     "InputDesign": "netctl.structural",
     "InvalidSystemError": "netctl.errors",
     "LinkRoles": "netctl.structural.roles",
@@ -106,6 +114,7 @@ _LAZY: dict[str, str] = {
     "StrongInputDesign": "netctl.structural.strong",
     "StrongReport": "netctl.structural.strong",
     "StructuredSystem": "netctl.system",
+    "TransferRank": "netctl.structural",
     "UnknownNameError": "netctl.errors",
     "Verification": "netctl.numeric",
     "cavity_driver_fraction": "netctl.ensemble",
@@ -113,9 +122,11 @@ _LAZY: dict[str, str] = {
     "configuration_model": "netctl.ensemble",
     "contingency_sweep": "netctl.structural.robustness",
     "controllability": "netctl.structural",
+    "decoupling": "netctl.structural",
     "degree_preserving_swaps": "netctl.ensemble",
     "energy": "netctl.numeric",
     "exact_controllability": "netctl.numeric",
+    "fixed_modes": "netctl.structural",
     "interconnection": "netctl.structural.interconnect",
     "is_strongly_controllable": "netctl.structural.strong",
     "is_structurally_controllable": "netctl.structural",
@@ -135,14 +146,17 @@ _LAZY: dict[str, str] = {
     "run_tasks": "netctl.ensemble",
     "strong_controllability": "netctl.structural.strong",
     "summarize": "netctl.structural",
+    "transfer_rank": "netctl.structural",
     "verify": "netctl.numeric",
     "what_if": "netctl.structural.robustness",
 }
 
 __all__ = [
     "ControllabilityReport",
+    "DecouplingReport",
     "EnergyReport",
     "ExactControllability",
+    "FixedModesReport",
     "InputDesign",
     "InvalidSystemError",
     "LinkRoles",
@@ -161,6 +175,7 @@ __all__ = [
     "StrongInputDesign",
     "StrongReport",
     "StructuredSystem",
+    "TransferRank",
     "UnknownNameError",
     "Verification",
     "__version__",
@@ -169,9 +184,11 @@ __all__ = [
     "configuration_model",
     "contingency_sweep",
     "controllability",
+    "decoupling",
     "degree_preserving_swaps",
     "energy",
     "exact_controllability",
+    "fixed_modes",
     "interconnection",
     "is_strongly_controllable",
     "is_structurally_controllable",
@@ -191,6 +208,7 @@ __all__ = [
     "run_tasks",
     "strong_controllability",
     "summarize",
+    "transfer_rank",
     "verify",
     "what_if",
 ]

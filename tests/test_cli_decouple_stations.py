@@ -112,3 +112,34 @@ def test_stations_needs_a_stations_file_for_a_plain_network(tmp_path, capsys):
     f = _write(tmp_path, "a b\n", "net.txt")
     assert main(["stations", f]) == 2
     assert "--stations" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("file, against, inputs", [
+    ("chemical_plant.toml", "regulated", None),
+    ("chemical_plant.toml", "measured", None),
+    ("heating_loop.toml", "measured", "fuel_valve,boiler_temp"),  # both through boiler_temp
+])
+def test_decouple_reports_the_transfer_matrix_rank(capsys, file, against, inputs):
+    """The verb's transfer rank is the numeric rank of H (sI - A)^{-1} B (resp. C ...) at a
+    random complex s on random weights (van der Woude 1991, Math. Control Signals Systems
+    4:33-40: generic rank = maximum linking size), on the invented bundled examples."""
+    import numpy as np
+
+    from netctl.io import read
+    from tests.structural import _geometric as geo
+
+    path = Path(__file__).resolve().parents[1] / "networks" / file
+    extra = ["--inputs", inputs] if inputs else []
+    main(["decouple", str(path), "--against", against, "--json", "--no-fix", *extra])
+    d = json.loads(capsys.readouterr().out)["transfer_rank"]
+    s = read(path)
+    if inputs:
+        s = s.with_inputs(inputs.split(","))
+    rng = np.random.default_rng(5)
+
+    def w(M):
+        M = M.toarray() != 0
+        return M * rng.uniform(0.5, 2.0, M.shape) * rng.choice([-1.0, 1.0], M.shape)
+    Z = s.H if against == "regulated" else s.C
+    assert d["rank"] == geo.transfer_rank(w(s.A), w(s.B), w(Z), rng)
+    assert d["outputs"] == against and d["at_most"] == min(s.n_inputs, Z.shape[0])

@@ -10,6 +10,9 @@ EXPECTED = sorted([
     "summarize",
     # disturbances, regulated outputs and control stations
     "Station", "make_stations",
+    # disturbance decoupling, transfer-matrix rank, fixed modes of station arrangements
+    "DecouplingReport", "FixedModesReport", "TransferRank", "decoupling", "fixed_modes",
+    "transfer_rank",
     # ensemble (null models, cavity prediction, executor)
     "NullComparison", "cavity_driver_fraction", "compare_to_null", "configuration_model",
     "degree_preserving_swaps", "run_tasks",

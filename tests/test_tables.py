@@ -46,8 +46,14 @@ def _stable(system):
 
 PRODUCERS = {
     "ControllabilityReport": lambda s: netctl.controllability(s.with_inputs(["fuel_valve"])),
+    "DecouplingReport": lambda s: netctl.decoupling(
+        s.with_inputs(["fuel_valve", "bypass_valve"]).with_regulated(
+            {"return_temp": ["return_header"]})),
     "EnergyReport": lambda s: netctl.energy(_stable(s)),
     "ExactControllability": lambda s: netctl.exact_controllability(realize(s, seed=1)),
+    "FixedModesReport": lambda s: netctl.fixed_modes(
+        s.with_inputs(["fuel_valve", "bypass_valve"]).with_outputs(["storage_tank"]),
+        [netctl.Station("boiler", (0,), (0,)), netctl.Station("bypass", (1,), ())]),
     "InputDesign": lambda s: netctl.minimum_inputs(s),
     "LinkRoles": lambda s: netctl.link_roles(s),
     "ModalReport": lambda s: netctl.modal_controllability(_stable(s)),
@@ -58,6 +64,8 @@ PRODUCERS = {
     "RankTest": lambda s: netctl.verify(_driven(s), samples=1).samples[0],
     "StrongInputDesign": lambda s: netctl.minimum_strong_inputs(s),
     "StrongReport": lambda s: netctl.strong_controllability(s.with_inputs(["fuel_valve"])),
+    "TransferRank": lambda s: netctl.transfer_rank(
+        s.with_inputs(["fuel_valve"]).with_outputs(["storage_tank"])),
     "Verification": lambda s: netctl.verify(_driven(s), samples=1),
 }
 

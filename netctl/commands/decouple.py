@@ -55,11 +55,17 @@ def _cmd_decouple(args: argparse.Namespace) -> int:
     r = decoupling(system, outputs=against, fixes=not args.no_fix,
                    max_candidates=args.fix_candidates)
     d = r.to_dict()
+    # the generic rank of the transfer matrix from u to the outputs is the size of the
+    # maximum linking the decoupling test already found (van der Woude 1991)
+    d["transfer_rank"] = {"rank": r.input_rank, "least_total_length": r.input_length,
+                          "outputs": against, "at_most": min(r.n_inputs, r.n_outputs)}
     d["file"] = args.file
     d["caution"] = CAUTION
     yes = {True: "yes", False: "NO"}
     lines = [f"{args.file}: {r.n_states} states, {r.n_inputs} input(s), {r.n_disturbances} "
              f"disturbance(s), {r.n_outputs} {against} output(s)",
+             f"  generic rank of the transfer matrix from the inputs to the {against} "
+             f"outputs: {r.input_rank} (at most {min(r.n_inputs, r.n_outputs)})",
              f"  linkings to the {against} outputs: inputs {r.input_rank} path(s), "
              f"{r.input_length} state(s) in all; inputs and disturbances {r.combined_rank} "
              f"path(s), {r.combined_length} state(s)",

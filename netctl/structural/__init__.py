@@ -9,6 +9,13 @@ from netctl.structural.controllability import (
     is_structurally_observable,
     observability,
 )
+from netctl.structural.decoupling import (
+    DecouplingReport,
+    TransferRank,
+    decoupling,
+    transfer_rank,
+)
+from netctl.structural.fixed_modes import FixedModesReport, fixed_modes
 from netctl.structural.inputs import (
     InputDesign,
     NetworkSummary,
@@ -19,15 +26,21 @@ from netctl.structural.inputs import (
 
 __all__ = [
     "ControllabilityReport",
+    "DecouplingReport",
     "Dilation",
+    "FixedModesReport",
     "InaccessibleGroup",
     "InputDesign",
     "NetworkSummary",
+    "TransferRank",
     "controllability",
+    "decoupling",
+    "fixed_modes",
     "is_structurally_controllable",
     "is_structurally_observable",
     "minimum_inputs",
     "minimum_sensors",
     "observability",
     "summarize",
+    "transfer_rank",
 ]

@@ -41,6 +41,7 @@ from netctl.graph.linking import (
     minimum_separator,
 )
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["DecouplingAnswer", "DisturbanceReach", "DecouplingFix", "DecouplingReport",
            "TransferRank", "decoupling", "transfer_rank"]
@@ -75,7 +76,7 @@ def _graph(system: StructuredSystem, Z: sp.csr_array, extra_inputs: np.ndarray |
 
 
 @dataclass(frozen=True)
-class TransferRank:
+class TransferRank(ResultTables):
     """Generic rank of the transfer matrix ``C (sI - A)^{-1} B`` (or ``H (sI-A)^{-1} B``).
 
     ``rank`` = size of a maximum linking inputs -> outputs [2]_; ``length`` = the least
@@ -87,6 +88,8 @@ class TransferRank:
     length: int
     outputs: str
     paths: tuple[tuple[str, ...], ...]
+
+    _frame_rows = "summary"
 
     def to_dict(self) -> dict[str, Any]:
         return {"rank": self.rank, "least_total_length": self.length,
@@ -169,7 +172,7 @@ class DecouplingFix:
 
 
 @dataclass(frozen=True)
-class DecouplingReport:
+class DecouplingReport(ResultTables):
     """Outcome of :func:`decoupling`.
 
     Attributes
@@ -211,6 +214,9 @@ class DecouplingReport:
     input_names: Sequence[str] = field(repr=False)
     disturbance_names: Sequence[str] = field(repr=False)
     output_names: Sequence[str] = field(repr=False)
+
+    _frame_rows = "states"
+    _frame_sets = ("bottleneck",)
 
     @property
     def decouplable(self) -> bool:

@@ -39,6 +39,7 @@ from numba import njit
 
 from netctl.graph.components import strongly_connected_components
 from netctl.system import Station, StructuredSystem, check_stations
+from netctl.tables import ResultTables
 
 __all__ = ["FixedModesReport", "StationChange", "fixed_modes", "MAX_LOOP_STATIONS"]
 
@@ -231,7 +232,7 @@ class StationChange:
 
 
 @dataclass(frozen=True)
-class FixedModesReport:
+class FixedModesReport(ResultTables):
     """Outcome of :func:`fixed_modes`.
 
     Attributes
@@ -265,6 +266,16 @@ class FixedModesReport:
     state_names: Sequence[str] = field(repr=False)
     input_names: Sequence[str] = field(repr=False)
     output_names: Sequence[str] = field(repr=False)
+
+    _frame_rows = "states"
+    _frame_sets = ("unclosed_states",)
+
+    @property
+    def unclosed_states(self) -> np.ndarray:
+        """Every state of the :attr:`unclosed` groups (on no station's loop), sorted."""
+        if not self.unclosed:
+            return np.zeros(0, np.int64)
+        return np.sort(np.concatenate(self.unclosed)).astype(np.int64)
 
     @property
     def has_fixed_modes(self) -> bool:
