@@ -494,7 +494,9 @@ def maximum_linking(graph: LinkingGraph, *, sources: np.ndarray | None = None,
     else:
         e = np.zeros(0, np.int64)
         ptr, st, ps, pt = np.zeros(1, np.int64), e, e, e
-    return Linking(int(flow), int(total), ptr, st, ps, pt, cap, pi, srcs)
+    # "dead": nodes that reach no sink even in the network without flow; a source that
+    # enters only such nodes can neither lengthen nor exchange a path (see extension)
+    return Linking(int(flow), int(total), ptr, st, ps, pt, cap, pi, srcs, {"dead": dead})
 
 
 def extension(graph: LinkingGraph, linking: Linking, extra: np.ndarray) -> tuple[bool, int]:
@@ -510,7 +512,7 @@ def extension(graph: LinkingGraph, linking: Linking, extra: np.ndarray) -> tuple
     unless a residual path or cycle starts at an extra source (Ahuja, Magnanti & Orlin
     1993, thm. 9.1, negative cycle optimality). One reverse search from the sink and one
     reverse Dijkstra to the source, made once per linking, answer every later question
-    in O(entries).
+    in O(entries); sources whose states reach no sink at all need neither pass.
     """
     extra = np.setdiff1d(np.asarray(extra, np.int64), linking._sources)
     if extra.size == 0:
@@ -528,6 +530,14 @@ def extension(graph: LinkingGraph, linking: Linking, extra: np.ndarray) -> tuple
     if entries.size == 0:
         return False, -int(_INF)
     labels = linking._labels  # made once per linking: then O(entries) per question
+    dead = labels.get("dead")
+    if dead is not None:
+        # an entry that reaches no sink in the network reaches no flow path either (a
+        # flow path reaches the sink), so no residual path or cycle starts there: such
+        # sources are answered without the two passes below
+        entries = entries[~dead[entries]]
+        if entries.size == 0:
+            return False, -int(_INF)
     if "to_sink" not in labels:
         labels["to_sink"] = _to_sink(graph.adj_ptr, graph.head, graph.rev, linking._residual)
     if labels["to_sink"][entries].any():

@@ -117,3 +117,30 @@ def test_path_of_two_states_and_a_shortcut():
     assert (LU.size, LU.length) == (1, 2)
     assert maximum_linking(g).length == 1
     assert extension(g, LU, [1]) == (False, 1)
+
+
+def test_source_entering_only_states_that_reach_no_sink_needs_no_pass():
+    """u -> x0 -> x1 -> z, x1 -> x2, w -> x2 and w -> x3 (x2, x3 reach no sink): the
+    answer for w equals a fresh flow over both sources (networkx), and it is found without
+    the reverse search from the sink or the reverse Dijkstra (neither label is made)."""
+    n = 4
+    A = np.zeros((n, n), bool)
+    A[1, 0] = A[2, 1] = True
+    S = np.zeros((2, n), bool)
+    S[0, 0] = True  # u
+    S[1, 2] = S[1, 3] = True  # w
+    H = np.zeros((1, n), bool)
+    H[0, 1] = True
+    g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+    L = maximum_linking(g, sources=np.array([0]))
+    grows, saving = extension(g, L, np.array([1]))
+    size_all, len_all = _reference(A, S, H, np.zeros(2))
+    assert (L.size, L.length) == (1, 2) == (size_all, len_all)
+    assert not grows and saving < 0
+    assert "to_sink" not in L._labels and "back" not in L._labels
+    # a source that does reach the sink still gets both answers
+    S2 = np.vstack([S, np.eye(n, dtype=bool)[[0]]])
+    g2 = linking_graph(n, *_csr(S2), *_csr(A.T), *_csr(H))
+    L2 = maximum_linking(g2, sources=np.array([0]))
+    assert extension(g2, L2, np.array([2])) == (False, 0)  # same entry, same length
+    assert "to_sink" in L2._labels and "back" in L2._labels
