@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import os
 import sys
 import warnings
 from collections.abc import Callable, Collection, Sequence
@@ -28,6 +29,7 @@ from netctl.commands._options import (  # re-exported: older callers import them
     emit,
     load_system,
     parse_names,
+    terminal_safe,
 )
 from netctl.errors import NetctlError
 
@@ -77,8 +79,67 @@ def _verb_of(argv: Sequence[str]) -> str | None:
     return None
 
 
+#: argument names (argparse ``dest``) that name files the command reads or writes
+INPUT_OPTIONS = ("file", "more", "ties", "inputs", "outputs", "sites", "candidates",
+                 "targets", "add_links", "remove_links", "remove_nodes")
+OUTPUT_OPTIONS = ("out", "csv", "attack_csv", "plot", "output", "geojson", "graphml")
+
+
+def _paths(args: argparse.Namespace, names: Sequence[str]) -> list[str]:
+    out: list[str] = []
+    for name in names:
+        value = getattr(args, name, None)
+        if isinstance(value, str):
+            out.append(value)
+        elif isinstance(value, (list, tuple)):
+            out.extend(v for v in value if isinstance(v, str))
+    return out
+
+
+class Terminated(KeyboardInterrupt):
+    """Raised by the SIGTERM handler so that cleanup runs as for Ctrl-C (exit 143)."""
+
+
+def _on_sigterm(signum: int, frame: object) -> None:
+    raise Terminated()
+
+
 def main(argv: Sequence[str] | None = None) -> int:
-    """Entry point of the ``netctl`` command; returns the exit status."""
+    """Entry point of the ``netctl`` command; returns the exit status.
+
+    Every output path is checked against every input before any work (exit 2 when one
+    would overwrite the other), every file read is guarded against being written over,
+    and SIGINT / SIGTERM end the run with status 130 / 143 after removing temporary
+    files; a closed standard output (``netctl ... | head``) ends it quietly with 141.
+    """
+    import signal
+
+    previous = None
+    try:
+        previous = signal.signal(signal.SIGTERM, _on_sigterm)
+    except ValueError:  # not the main thread: leave the handler alone
+        pass
+    try:
+        return _main(argv)
+    except BrokenPipeError:
+        try:
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+        except (OSError, ValueError):
+            pass
+        return 141
+    except KeyboardInterrupt as exc:
+        term = isinstance(exc, Terminated)
+        print("netctl: terminated" if term else "netctl: interrupted", file=sys.stderr)
+        return 143 if term else 130
+    finally:
+        if previous is not None:
+            signal.signal(signal.SIGTERM, previous)
+
+
+def _main(argv: Sequence[str] | None) -> int:
+    from netctl.io._common import check_outputs, guarded_run
+
     argv = list(sys.argv[1:] if argv is None else argv)
     verb = _verb_of(argv)
     parser = build_parser([verb] if verb in VERBS else ())
@@ -90,27 +151,29 @@ def main(argv: Sequence[str] | None = None) -> int:
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
-            code = func(args)
-        except (NetctlError, UsageError) as exc:
+            inputs = _paths(args, INPUT_OPTIONS)
+            check_outputs(_paths(args, OUTPUT_OPTIONS), inputs)
+            with guarded_run(p for p in inputs if os.path.isfile(p)):
+                code = func(args)
+        except NetctlError as exc:  # UsageError is one (also when run as __main__)
             _flush_warnings(caught)
-            print(f"netctl: error: {exc}", file=sys.stderr)
+            print(f"netctl: error: {terminal_safe(str(exc))}", file=sys.stderr)
             return 2
         except MemoryError:
             _flush_warnings(caught)
             print("netctl: error: out of memory; the network is too large for this machine "
                   "(see benchmarks/RESULTS.md for sizes that fit).", file=sys.stderr)
             return 2
-        except KeyboardInterrupt:
-            print("netctl: interrupted", file=sys.stderr)
-            return 130
     _flush_warnings(caught)
     return code
 
 
 def _flush_warnings(caught: list[warnings.WarningMessage]) -> None:
     for w in caught:
-        print(f"netctl: warning: {w.message}", file=sys.stderr)
+        print(f"netctl: warning: {terminal_safe(str(w.message))}", file=sys.stderr)
 
 
 if __name__ == "__main__":  # pragma: no cover
-    raise SystemExit(main())
+    from netctl.cli import main as _main_of_the_package  # one copy of every class
+
+    raise SystemExit(_main_of_the_package())

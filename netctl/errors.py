@@ -16,6 +16,8 @@ __all__ = [
     "OptionError",
     "MissingFileError",
     "MissingExtraError",
+    "OutputFileError",
+    "LimitError",
 ]
 
 
@@ -62,3 +64,13 @@ class MissingExtraError(NetctlError, ImportError):
 
     The message names the package and the ``pip install "netctl[EXTRA]"`` command.
     """
+
+
+class OutputFileError(NetctlError, ValueError):
+    """An output file cannot be written: it is one of the inputs, its folder is missing,
+    it names a folder, or the write failed (disk full, permission denied)."""
+
+
+class LimitError(NetworkFileError):
+    """A file declares or holds more than a documented limit allows (size, nesting depth,
+    digits of a number). The message names the limit and how to raise it."""

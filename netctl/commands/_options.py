@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from typing import IO, TYPE_CHECKING, Any
 
 from netctl._meta import CAUTION
+from netctl.errors import NetctlError
 
 if TYPE_CHECKING:
     import numpy as np
@@ -36,7 +37,7 @@ __all__ = [
     "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
     "disturbance_summary", "emit",
     "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
-    "safe_write", "system_with_inputs",
+    "safe_write", "system_with_inputs", "terminal_safe",
 ]
 
 _GRID_CAUTION = ("results concern a linearized model of the grid, not operating decisions, "
@@ -51,8 +52,11 @@ _NAMES_HELP = "'a,b,c' or a file, one name a line"
 NUMERIC_INPUTS_DEFAULT = "the file's inputs, else a minimum dedicated input set"
 
 
-class UsageError(Exception):
-    """Bad command-line usage that argparse cannot see (exit status 2)."""
+class UsageError(NetctlError):
+    """Bad command-line usage that argparse cannot see (exit status 2).
+
+    A :class:`~netctl.errors.NetctlError`, so that it is caught the same way however the
+    command was started (``python -m netctl.cli`` holds a second copy of the CLI module)."""
 
 
 # ---------------------------------------------------------------------- vocabulary
@@ -384,7 +388,22 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
 
             with atomic_write(args.out) as fh:
                 fh.write(payload)
-    sys.stdout.write(payload if args.json else text.rstrip("\n") + "\n")
+    if want_out and str(args.out) == "-":
+        return  # "--out -": the JSON went to standard output, alone
+    sys.stdout.write(payload if args.json else terminal_safe(text.rstrip("\n")) + "\n")
+
+
+def terminal_safe(text: str) -> str:
+    """``text`` with control, escape and bidirectional-override characters (and lone
+    surrogates) shown as Python escapes, so that a name in a file never drives the
+    terminal.
+
+    Examples
+    --------
+    >>> terminal_safe("pump\x1b[31m")
+    'pump\\x1b[31m'
+    """
+    return "".join(c if c.isprintable() or c == "\n" else ascii(c)[1:-1] for c in text)
 
 
 def _json_default(o: Any) -> Any:

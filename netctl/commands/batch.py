@@ -247,6 +247,9 @@ def _cmd_batch(args: argparse.Namespace) -> int:
                          + (f" (skipped {len(skipped)} with unknown suffixes, e.g. "
                             f"{Path(skipped[0]).name}; give --format to read them)"
                             if skipped else "") + ".")
+    from netctl.io._common import check_outputs
+
+    check_outputs([args.out], files)
     out_dir = Path(args.out).resolve().parent
     if not out_dir.is_dir():
         raise UsageError(f"cannot write {args.out}: the folder {out_dir} does not exist.")

@@ -12,7 +12,7 @@ from collections.abc import Callable
 from pathlib import Path
 
 from netctl.errors import OptionError
-from netctl.io._common import atomic_write
+from netctl.io._common import atomic_group, atomic_write, ungrouped
 from netctl.io.edgelist import read_edgelist, write_edgelist
 from netctl.io.gml import read_gml, write_gml
 from netctl.io.graphml import read_graphml, write_graphml
@@ -190,10 +190,11 @@ def write(system: StructuredSystem, path: str | os.PathLike[str], format: str | 
     if writer is None:
         raise OptionError(f"netctl cannot write the {fmt!r} format; choose one of "
                           f"{', '.join(sorted(k for k, v in FORMATS.items() if v[1]))}.")
-    if str(path).lower().endswith(".gz"):
-        _write_gzip(writer, system, path)
-    else:
-        writer(system, path)
+    with atomic_group():  # a writer's side files appear with the main file or not at all
+        if str(path).lower().endswith(".gz"):
+            _write_gzip(writer, system, path)
+        else:
+            writer(system, path)
 
 
 def _write_gzip(writer: Writer, system: StructuredSystem, path: str | os.PathLike[str]) -> None:
@@ -207,7 +208,8 @@ def _write_gzip(writer: Writer, system: StructuredSystem, path: str | os.PathLik
                                dir=target.parent if str(target.parent) else ".")
     os.close(fd)
     try:
-        writer(system, tmp)
+        with ungrouped():
+            writer(system, tmp)
         with atomic_write(target, "wb") as out, open(tmp, "rb") as src, \
                 gzip.GzipFile(fileobj=out, mode="wb", mtime=0) as gz:
             shutil.copyfileobj(src, gz)

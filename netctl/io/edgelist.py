@@ -32,7 +32,7 @@ import scipy.sparse as sp
 
 from netctl.errors import MissingFileError
 from netctl.io import _edgescan as _k
-from netctl.io._common import atomic_write, file_error
+from netctl.io._common import atomic_write, file_error, note_input
 from netctl.system import DistinctNames, StructuredSystem
 
 __all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
@@ -90,6 +90,7 @@ def _open(path: str | os.PathLike[str]) -> IO[bytes]:
         raise MissingFileError(f"{path}: is a directory; give a network file.")
     try:
         raw = open(p, "rb")
+        note_input(p)
     except PermissionError:
         raise MissingFileError(f"{path}: permission denied; check the file's permissions.") from None
     head = raw.read(2)

@@ -27,7 +27,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.errors import MissingFileError
-from netctl.io._common import atomic_write, file_error, read_text
+from netctl.io._common import atomic_group, atomic_write, file_error, read_text
 from netctl.records import TIE_KINDS
 from netctl.system import Station, StructuredSystem, make_stations
 
@@ -828,6 +828,14 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
             ins = ", ".join(_val(system.input_names[i]) for i in st.inputs)
             outs = ", ".join(_val(system.output_names[i]) for i in st.outputs)
             lines.append(f"{_key(st.name)} = {{ inputs = [{ins}], outputs = [{outs}] }}")
+    with atomic_group():  # the side file and the description appear together or not at all
+        _write_both(system, path, side, lines)
+
+
+def _write_both(system: StructuredSystem, path: str | os.PathLike[str], side: Path | None,
+                lines: list[str]) -> None:
+    n = system.n_states
+    diag = system.A.diagonal()
     if side is not None:
         from netctl.io.edgelist import write_edgelist
 
