@@ -27,6 +27,7 @@ from netctl.commands._options import (  # re-exported: older callers import them
     common_parser,
     disturbance_summary,
     emit,
+    guard_files,
     load_system,
     parse_names,
     terminal_safe,
@@ -79,23 +80,6 @@ def _verb_of(argv: Sequence[str]) -> str | None:
     return None
 
 
-#: argument names (argparse ``dest``) that name files the command reads or writes
-INPUT_OPTIONS = ("file", "more", "ties", "inputs", "outputs", "sites", "candidates",
-                 "targets", "add_links", "remove_links", "remove_nodes")
-OUTPUT_OPTIONS = ("out", "csv", "attack_csv", "plot", "output", "geojson", "graphml")
-
-
-def _paths(args: argparse.Namespace, names: Sequence[str]) -> list[str]:
-    out: list[str] = []
-    for name in names:
-        value = getattr(args, name, None)
-        if isinstance(value, str):
-            out.append(value)
-        elif isinstance(value, (list, tuple)):
-            out.extend(v for v in value if isinstance(v, str))
-    return out
-
-
 class Terminated(KeyboardInterrupt):
     """Raised by the SIGTERM handler so that cleanup runs as for Ctrl-C (exit 143)."""
 
@@ -138,8 +122,6 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 
 def _main(argv: Sequence[str] | None) -> int:
-    from netctl.io._common import check_outputs, guarded_run
-
     argv = list(sys.argv[1:] if argv is None else argv)
     verb = _verb_of(argv)
     parser = build_parser([verb] if verb in VERBS else ())
@@ -151,9 +133,7 @@ def _main(argv: Sequence[str] | None) -> int:
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
         try:
-            inputs = _paths(args, INPUT_OPTIONS)
-            check_outputs(_paths(args, OUTPUT_OPTIONS), inputs)
-            with guarded_run(p for p in inputs if os.path.isfile(p)):
+            with guard_files(args):  # no output over an input; see _options.guard_files
                 code = func(args)
         except NetctlError as exc:  # UsageError is one (also when run as __main__)
             _flush_warnings(caught)

@@ -37,7 +37,8 @@ __all__ = [
     "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
     "disturbance_summary", "emit",
     "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
-    "safe_write", "system_with_inputs", "terminal_safe",
+    "safe_write", "system_with_inputs", "terminal_safe", "guard_files",
+    "INPUT_OPTIONS", "OUTPUT_OPTIONS",
 ]
 
 _GRID_CAUTION = ("results concern a linearized model of the grid, not operating decisions, "
@@ -391,6 +392,39 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
     if want_out and str(args.out) == "-":
         return  # "--out -": the JSON went to standard output, alone
     sys.stdout.write(payload if args.json else terminal_safe(text.rstrip("\n")) + "\n")
+
+
+#: argument names (argparse ``dest``) whose values name files a verb reads ...
+INPUT_OPTIONS = ("file", "more", "ties", "inputs", "outputs", "sites", "candidates",
+                 "targets", "add_links", "remove_links", "remove_nodes")
+#: ... and writes. A new option naming a file belongs in one of the two.
+OUTPUT_OPTIONS = ("out", "csv", "attack_csv", "plot", "output")
+
+
+def _paths(args: argparse.Namespace, names: Sequence[str]) -> list[str]:
+    out: list[str] = []
+    for name in names:
+        value = getattr(args, name, None)
+        if isinstance(value, str):
+            out.append(value)
+        elif isinstance(value, (list, tuple)):
+            out.extend(v for v in value if isinstance(v, str))
+    return out
+
+
+@contextmanager
+def guard_files(args: argparse.Namespace) -> Iterator[None]:
+    """Refuse an output that is an input before any work, then run the block in a
+    :func:`netctl.io._common.guarded_run`: every file read (a system description's side
+    files included) is protected from being written over."""
+    import os
+
+    from netctl.io._common import check_outputs, guarded_run
+
+    inputs = _paths(args, INPUT_OPTIONS)
+    check_outputs(_paths(args, OUTPUT_OPTIONS), inputs)
+    with guarded_run(p for p in inputs if os.path.isfile(p)):
+        yield
 
 
 def terminal_safe(text: str) -> str:

@@ -195,9 +195,9 @@ def slow(path, mode="w"):
         print("READY", flush=True)
         time.sleep(60)
         yield fh
-import netctl.cli as cli
-cli.atomic_write = slow
-sys.exit(cli.main(sys.argv[1:]))
+import netctl.io, netctl.cli
+netctl.io.atomic_write = slow
+sys.exit(netctl.cli.main(sys.argv[1:]))
 """
 
 
@@ -216,20 +216,24 @@ def test_signal_during_a_write_leaves_nothing(tmp_path, net, sig, code):
     assert _listing(tmp_path) == ["net.csv"]
 
 
-@pytest.mark.parametrize("delay", [0.0, 0.2, 0.5, 1.0, 2.0])
-def test_sigterm_at_any_moment_leaves_nothing_half_written(tmp_path, delay):
-    """SIGTERM at start-up, while reading, analysing or writing: exit 143 (or the
-    default kill before netctl's handler exists, also 143 in a shell, or 0 when the run
-    was already over), no traceback, and either no output or the complete one."""
+@pytest.mark.parametrize("sig, delay", [(signal.SIGTERM, d) for d in (0.0, 0.2, 0.5, 1.0, 2.0)]
+                         + [(signal.SIGINT, d) for d in (0.2, 0.5, 1.0, 2.0)])
+def test_signal_at_any_moment_leaves_nothing_half_written(tmp_path, delay, sig):
+    """A signal at start-up, while reading, analysing or writing: exit 143 / 130 (or the
+    default kill before netctl's handler exists, the same status in a shell, or 0 when
+    the run was already over), and either no output or the complete one. Known gap: a
+    SIGINT during the interpreter's own start-up (before netctl's first line) prints
+    Python's traceback; nothing has been written then. So delay 0 is SIGTERM only."""
+    code = 143 if sig == signal.SIGTERM else 130
     src = tmp_path / "big.csv"
     src.write_text("".join(f"n{i},n{(i * 7 + 1) % 3000}\n" for i in range(3000)))
     p = subprocess.Popen([sys.executable, "-m", "netctl", "convert", "big.csv", "out.json"],
                          cwd=tmp_path, stderr=subprocess.PIPE, stdout=subprocess.DEVNULL,
                          text=True, env={**os.environ, "PYTHONPATH": str(ROOT)})
     time.sleep(delay)
-    p.send_signal(signal.SIGTERM)
+    p.send_signal(sig)
     _, err = p.communicate(timeout=60)
-    assert p.returncode in (143, -signal.SIGTERM, 0), err
+    assert p.returncode in (code, -sig, 0), err
     assert "Traceback" not in err
     names = _listing(tmp_path)
     assert [n for n in names if n.startswith(".")] == []
