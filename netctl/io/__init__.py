@@ -8,11 +8,12 @@ problems as :class:`~netctl.errors.NetworkFileError` naming the file and line.
 from __future__ import annotations
 
 import os
+import sys
 from collections.abc import Callable
 from pathlib import Path
 
-from netctl.errors import OptionError
-from netctl.io._common import atomic_group, atomic_write, ungrouped
+from netctl.errors import LimitError, NetctlError, NetworkFileError, OptionError
+from netctl.io._common import atomic_group, atomic_write, excerpt, file_error, ungrouped
 from netctl.io.edgelist import read_edgelist, write_edgelist
 from netctl.io.gml import read_gml, write_gml
 from netctl.io.graphml import read_graphml, write_graphml
@@ -158,10 +159,10 @@ def read(path: str | os.PathLike[str], format: str | None = None, *,
                           "format (GraphML, GML and node-link JSON say whether they are "
                           "directed; a symmetric matrix is already both ways); leave it out.")
     if undirected:
-        return read_edgelist(path, model=model, undirected=True)
+        return _safely(path, fmt, lambda: read_edgelist(path, model=model, undirected=True))
     if format is None and fmt == "json" and _sniff_pandapower(path):
         fmt = "pandapower"
-    system = FORMATS[fmt][0](path, model=model)
+    system = _safely(path, fmt, lambda: FORMATS[fmt][0](path, model=model))
     if orientation == "row-to-column":
         system = system._replace(A=system.A.T.tocsr())
     return system
@@ -180,6 +181,37 @@ def _sniff_pandapower(path: str | os.PathLike[str]) -> bool:
     except OSError:
         return False  # the reader reports the problem
     return looks_like_pandapower(head.decode("utf-8", "replace"))
+
+
+def _safely(path: str | os.PathLike[str], fmt: str,
+            call: Callable[[], StructuredSystem]) -> StructuredSystem:
+    """``call()``, with every failure but netctl's own ended in one line naming the file."""
+    try:
+        return call()
+    except (NetctlError, MemoryError, KeyboardInterrupt):
+        raise
+    except RecursionError:
+        raise LimitError(f"{path}: the file nests lists or groups more deeply than the "
+                         f"parser can follow (Python's recursion limit, "
+                         f"{sys.getrecursionlimit()}); a network file needs only a few "
+                         "levels. Check the file.", path=path) from None
+    except OverflowError as exc:
+        raise file_error(path, None, f"a number is too large ({exc}); weights and "
+                         "attributes must fit in a 64-bit float.") from None
+    except ValueError as exc:
+        if "integer string conversion" in str(exc):
+            raise LimitError(f"{path}: a number has more digits than netctl reads "
+                             f"({sys.get_int_max_str_digits()}); check the file.",
+                             path=path) from None
+        raise _unexpected(path, fmt, exc) from None
+    except Exception as exc:  # no traceback, ever: name the file and what went wrong
+        raise _unexpected(path, fmt, exc) from None
+
+
+def _unexpected(path: object, fmt: str, exc: BaseException) -> NetworkFileError:
+    return file_error(path, None, f"cannot be read as {fmt} ({type(exc).__name__}: "
+                      f"{excerpt(str(exc))}); check that the file is a {fmt} file, or name "
+                      "the format with --format.")
 
 
 def write(system: StructuredSystem, path: str | os.PathLike[str], format: str | None = None) -> None:

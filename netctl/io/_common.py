@@ -42,7 +42,8 @@ from netctl.errors import (
 
 __all__ = ["read_text", "read_bytes", "atomic_write", "atomic_group", "ungrouped", "file_error",
            "excerpt", "guarded_run", "note_input", "check_outputs", "max_bytes",
-           "DEFAULT_MAX_BYTES", "MAX_TEXT_BYTES", "LIMIT_ENV"]
+           "DEFAULT_MAX_BYTES", "MAX_TEXT_BYTES", "LIMIT_ENV", "check_states",
+           "limit_error", "BYTES_PER_STATE", "EXCERPT_CHARS"]
 
 #: Default limit on the bytes of one file that a whole-file reader holds in memory (after
 #: gzip decompression). Raise it with the environment variable :data:`LIMIT_ENV`.
@@ -70,6 +71,23 @@ def max_bytes() -> int:
 
         raise OptionError(f"{LIMIT_ENV}={raw!r} is not a size; give bytes or a number with "
                           "K, M, G or T, e.g. 8G.") from None
+
+
+#: Bytes of memory a state costs at least once read (name, index arrays, node table):
+#: a declared number of states is checked against :func:`max_bytes` with it.
+BYTES_PER_STATE = 64
+
+
+def check_states(path: object, n: int, line: int | None = None) -> None:
+    """Refuse a declared state count that would need more memory than :func:`max_bytes`
+    allows (checked before anything of that size is allocated)."""
+    limit = max_bytes()
+    if n * BYTES_PER_STATE > limit:
+        raise LimitError(f"{file_error(path, line, '')}the file declares {n:,} states, which "
+                         f"need about {n * BYTES_PER_STATE:,} bytes, more than the limit of "
+                         f"{limit:,} bytes. If the file is genuine, raise the limit with the "
+                         f"environment variable {LIMIT_ENV} (e.g. {LIMIT_ENV}=16G).",
+                         path=path, line=line)
 
 
 def limit_error(path: object, what: str, found: int, limit: int) -> LimitError:

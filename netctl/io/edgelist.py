@@ -30,9 +30,16 @@ from typing import IO
 import numpy as np
 import scipy.sparse as sp
 
-from netctl.errors import MissingFileError
+from netctl.errors import LimitError, MissingFileError
 from netctl.io import _edgescan as _k
-from netctl.io._common import atomic_write, file_error, note_input
+from netctl.io._common import (
+    atomic_write,
+    excerpt,
+    file_error,
+    limit_error,
+    max_bytes,
+    note_input,
+)
 from netctl.system import DistinctNames, StructuredSystem
 
 __all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
@@ -48,6 +55,9 @@ _HEADER_WORDS = {"source", "target", "from", "to", "src", "dst", "weight", "u", 
                  "sources", "targets", "weights", "value"}
 _SPLIT = re.compile(r"[,\t; \r\v\f]+")
 _INT = re.compile(r"-?(0|[1-9][0-9]*)\Z")
+#: Longest edge-list line read (bytes); a longer one is refused with its line number.
+MAX_LINE_BYTES = 1 << 20
+
 _FORMAT_HELP = ("Columns are separated by commas, tabs, semicolons or spaces; '#' starts a "
                 "comment; names may not contain separators (see docs/FORMATS.md).")
 
@@ -140,9 +150,12 @@ class _Scan:
     # -------------------------------------------------------------- reading
     def run(self) -> None:
         path = self.path
+        limit = max_bytes()
         with _open(path) as fh:
             carry = b""
             first = True
+            total = 0
+            gz = isinstance(fh, gzip.GzipFile)
             while True:
                 try:
                     data = fh.read(self.chunk_bytes)
@@ -151,6 +164,16 @@ class _Scan:
                                      f"truncated here ({exc}). Compress the file again, or "
                                      "check that the download or copy completed.") from None
                 eof = not data
+                total += len(data)
+                if gz and total > limit:
+                    raise limit_error(path, "the decompressed content", total, limit)
+                if len(carry) > MAX_LINE_BYTES:
+                    raise LimitError(f"{path}:{int(self.st[1])}: the line is longer than "
+                                     f"{MAX_LINE_BYTES:,} bytes (it starts "
+                                     f"{excerpt(carry[:80])}); an edge-list line holds two "
+                                     "names and a weight. Check the file (is it binary or "
+                                     "missing its line breaks?).", path=path,
+                                     line=int(self.st[1]))
                 buf = carry + data if carry else data
                 if first and buf:
                     first = False
@@ -320,7 +343,7 @@ class _Scan:
                 if len(f) >= 2 and all(x.lower() in _HEADER_WORDS for x in f[:2]):
                     if len(f) > 3:
                         raise file_error(self.path, int(st[1]), f"the header names {len(f)} "
-                                         f"columns ({text.strip()!r}); expected 'source "
+                                         f"columns ({excerpt(text.strip())}); expected 'source "
                                          "target [weight]'.")
                     st[1] += 1
                     return end + 1
@@ -357,9 +380,9 @@ class _Scan:
         nf = len(_fields(text))
         if st[10] == _k.ERR_TOO_MANY:
             raise file_error(self.path, line, f"expected 'source target [weight]', found {nf} "
-                             f"columns in {text!r}. {_FORMAT_HELP}")
+                             f"columns in {excerpt(text)}. {_FORMAT_HELP}")
         raise file_error(self.path, line, f"this line has {nf} columns but earlier lines have "
-                         f"{int(st[2])}: {text!r}. Give a weight on every link line or on none "
+                         f"{int(st[2])}: {excerpt(text)}. Give a weight on every link line or on none "
                          "(a line with one name declares a state).")
 
     def _fallback_weights(self, chunk: bytes, w: np.ndarray, edges: np.ndarray,
@@ -373,7 +396,7 @@ class _Scan:
                     float(t)
                 except ValueError:
                     tok = t.decode("utf-8", errors="replace")
-                    raise file_error(self.path, ln, f"the weight {tok!r} is not a number. Use "
+                    raise file_error(self.path, ln, f"the weight {excerpt(tok)} is not a number. Use "
                                      "a decimal number such as 0.5 or 1e-3, or leave the "
                                      "weight column out.") from None
             raise AssertionError("unreachable")  # pragma: no cover
@@ -381,7 +404,7 @@ class _Scan:
         if bad.any():
             k = int(np.argmax(bad))
             tok = tokens[k].decode("utf-8", errors="replace")
-            raise file_error(self.path, int(lines[k]), f"the weight {tok!r} is not a finite "
+            raise file_error(self.path, int(lines[k]), f"the weight {excerpt(tok)} is not a finite "
                              "number; give a finite weight (or leave the link out).")
         w[edges] = vals
         zero = vals == 0
@@ -429,7 +452,7 @@ class _Scan:
             i = int(np.searchsorted(starts, exc.start, side="right")) - 1
             a, n = int(starts[i]), int(self.name_pos[i, 1])
             raise file_error(self.path, int(self.name_line[i]), f"the name "
-                             f"{raw[a:a + n]!r} is not UTF-8 text. Save the file as "
+                             f"{raw[a:a + min(n, 80)]!r} is not UTF-8 text. Save the file as "
                              "UTF-8 (or plain ASCII).") from None
         names = text.split("\n")
         names.pop()  # after the last line break

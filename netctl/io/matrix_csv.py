@@ -13,7 +13,7 @@ import re
 
 import numpy as np
 
-from netctl.io._common import atomic_write, file_error, read_text
+from netctl.io._common import atomic_write, excerpt, file_error, read_text
 from netctl.system import StructuredSystem
 
 __all__ = ["read_matrix_csv", "write_matrix_csv"]
@@ -62,7 +62,7 @@ def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> St
             v = _num(t)
             if v is None or not np.isfinite(v):
                 raise file_error(path, lineno, f"column {k + (label is not None)}: expected a "
-                                 f"finite number, found {t!r}. Every cell of a matrix CSV is a "
+                                 f"finite number, found {excerpt(t)}. Every cell of a matrix CSV is a "
                                  "number (0 for no link).")
             vals.append(v)
         if rows and len(vals) != len(rows[0]):

@@ -14,7 +14,7 @@ import numpy as np
 import scipy.io
 import scipy.sparse as sp
 
-from netctl.io._common import atomic_write, file_error, read_bytes
+from netctl.io._common import atomic_write, check_states, file_error, read_bytes
 from netctl.system import StructuredSystem
 
 __all__ = ["read_mtx", "write_mtx"]
@@ -34,7 +34,7 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         Bad banner, non-square matrix, absurd sizes, malformed entries (with the line).
     """
     data = read_bytes(path)
-    lines = data.split(b"\n", 64)
+    lines = data.split(b"\n", 1)
     banner = lines[0].decode("latin-1").strip().lower().split()
     if len(banner) < 4 or banner[0] != "%%matrixmarket" or banner[1] != "matrix":
         raise file_error(path, 1, f"expected a Matrix Market banner such as "
@@ -53,12 +53,17 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
                          "'general', 'symmetric' or 'skew-symmetric'.")
     # size line: first non-comment line
     size_line_no = None
-    for k, raw in enumerate(lines[1:], start=2):
+    pos, k = len(lines[0]) + 1, 2  # any number of comment lines may precede the size line
+    while pos < len(data):
+        end = data.find(b"\n", pos)
+        end = len(data) if end < 0 else end
+        raw = data[pos:end]
         s = raw.strip()
         if s and not s.startswith(b"%"):
             size_line_no = k
             parts = s.split()
             break
+        pos, k = end + 1, k + 1
     if size_line_no is None:
         raise file_error(path, None, "the size line ('rows cols entries') is missing.")
     try:
@@ -78,6 +83,7 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         raise file_error(path, size_line_no, f"the header claims {dims[0]} states and {claimed} "
                          f"entries, more than netctl reads ({MAX_STATES} states, {MAX_ENTRIES} "
                          "entries); check the size line.")
+    check_states(path, dims[0], size_line_no)
     room = len(data) // (4 if fmt == "coordinate" else 2) + 1
     stored = claimed if fmt == "coordinate" or symmetry == "general" else \
         dims[0] * (dims[0] + 1) // 2

@@ -11,7 +11,7 @@ import os
 
 import numpy as np
 
-from netctl.io._common import atomic_write, file_error, read_bytes
+from netctl.io._common import atomic_write, check_states, file_error, read_bytes
 from netctl.system import StructuredSystem
 
 __all__ = ["read_npy", "write_npy", "MAX_DENSE_BYTES", "MAX_DENSE_STATES"]
@@ -50,6 +50,12 @@ def read_npy(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         raise file_error(path, None, f"the header claims a {shape[0]} x {shape[1]} dense array "
                          f"({size / 1e9:.3g} GB), more than netctl reads densely; store the "
                          "network as .npz or .mtx (sparse).")
+    have = len(data) - fh.tell()
+    if size > have:
+        raise file_error(path, None, f"the header claims a {shape[0]} x {shape[1]} array of "
+                         f"{dtype} ({size:,} bytes) but the file holds {have:,} bytes after "
+                         "the header; the file is truncated or its header is wrong.")
+    check_states(path, int(shape[0]))
     if not (np.issubdtype(dtype, np.number) or dtype == np.bool_) or np.issubdtype(
             dtype, np.complexfloating):
         raise file_error(path, None, f"the array has dtype {dtype}; expected real numbers or "

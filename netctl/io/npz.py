@@ -14,7 +14,7 @@ import zipfile
 import numpy as np
 import scipy.sparse as sp
 
-from netctl.io._common import atomic_write, file_error, read_bytes
+from netctl.io._common import atomic_write, check_states, file_error, read_bytes
 from netctl.system import StructuredSystem
 
 __all__ = ["read_npz", "write_npz", "MAX_STATES"]
@@ -54,7 +54,13 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
                          f"(format, shape, data, ...); found {sorted(z)}.")
     fmt = z["format"].item()
     fmt = fmt.decode("ascii", "replace") if isinstance(fmt, bytes) else str(fmt)
-    shape = tuple(int(x) for x in np.asarray(z["shape"]).ravel())
+    raw_shape = np.asarray(z["shape"]).ravel()
+    if (raw_shape.dtype.kind not in "iuf" or raw_shape.size != 2
+            or not np.all(np.isfinite(raw_shape)) or np.any(raw_shape < 0)
+            or np.any(raw_shape != np.floor(raw_shape)) or np.any(raw_shape > 2**62)):
+        raise file_error(path, None, f"the 'shape' array must hold two non-negative whole "
+                         f"numbers (rows, columns); found {raw_shape.tolist()[:4]!r}.")
+    shape = tuple(int(x) for x in raw_shape)
     if len(shape) != 2 or shape[0] != shape[1]:
         raise file_error(path, None, f"the matrix has shape {shape}; a state matrix A must "
                          "be square (n x n).")
@@ -62,6 +68,7 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     if n < 0 or n > MAX_STATES:
         raise file_error(path, None, f"the file claims {n} states, more than netctl reads "
                          f"({MAX_STATES}); check the file.")
+    check_states(path, n)
     try:
         data = z["data"]
         if fmt in ("csr", "csc"):

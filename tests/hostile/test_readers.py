@@ -1,0 +1,100 @@
+"""Hostile files through the command line: each ends in one line naming the file (and the
+line where the format has lines), exit status 2, no traceback, no output file, and memory
+guards refuse before allocating.
+
+Common practice for tools that read other people's files, no source: refuse declared
+sizes the content cannot hold, cap decompression, nesting and number length, quote at
+most a short excerpt of a line.
+"""
+
+from __future__ import annotations
+
+import gzip
+import io
+
+import numpy as np
+import pytest
+
+from netctl.cli import main
+
+
+def _npz(shape):
+    buf = io.BytesIO()
+    np.savez(buf, format=np.array(b"csr"), shape=shape, data=np.ones(1),
+             indices=np.zeros(1, np.int32), indptr=np.array([0, 1, 1], np.int32))
+    return buf.getvalue()
+
+
+def _npy_header_only(shape):
+    buf = io.BytesIO()
+    np.lib.format.write_array_header_1_0(buf, {"descr": "<f8", "fortran_order": False,
+                                               "shape": shape})
+    return buf.getvalue() + b"\0" * 16
+
+
+DEEP = 50_000
+CASES = [
+    pytest.param("d.json", b'{"nodes": ' + b"[" * DEEP + b"]" * DEEP + b', "links": []}',
+                 "d.json: the file nests lists or groups more deeply", id="deep-json"),
+    pytest.param("d.gml", b"graph [ " + b"a [ " * DEEP + b" ]" * DEEP + b" ]",
+                 "d.gml: the file nests lists or groups more deeply", id="deep-gml"),
+    pytest.param("d.toml", b"[states]\na = { x = " + b"[" * DEEP + b"]" * DEEP + b" }\n",
+                 "d.toml: the file nests lists or groups more deeply", id="deep-toml"),
+    pytest.param("i.toml", b"[states]\na = { x = " + b"9" * 400 + b" }\n",
+                 "i.toml: a number is too large", id="toml-400-digit-int"),
+    pytest.param("i.json", b'{"nodes": [{"id": ' + b"9" * 5000 + b'}], "links": []}',
+                 "i.json: a number has more digits than netctl reads", id="json-5000-digit-id"),
+    pytest.param("n.npz", _npz(np.array([np.nan, 3.0])),
+                 "n.npz: the 'shape' array must hold two non-negative whole numbers",
+                 id="npz-nan-shape"),
+    pytest.param("s.npz", _npz(np.array(["a", "b"])),
+                 "s.npz: the 'shape' array must hold two non-negative whole numbers",
+                 id="npz-string-shape"),
+    pytest.param("b.npz", _npz(np.array([300_000_000, 300_000_000])),
+                 "b.npz: the file declares 300,000,000 states", id="npz-huge-shape"),
+    pytest.param("h.npy", _npy_header_only((20_000, 20_000)),
+                 "h.npy: the header claims a 20000 x 20000 array of float64 (3,200,000,000 "
+                 "bytes) but the file holds 16 bytes", id="npy-header-over-content"),
+    pytest.param("m.mtx", b"%%MatrixMarket matrix coordinate real general\n"
+                 b"100000000 100000000 1\n1 2 1.0\n",
+                 "m.mtx:2: the file declares 100,000,000 states", id="mtx-huge-declared"),
+    pytest.param("g.csv.gz", gzip.compress(b"a,b\n" + b"x" * 3_000_000, 9),
+                 "g.csv.gz:2: the line is longer than 1,048,576 bytes", id="gzip-endless-line"),
+    pytest.param("l.csv", b"a,b\n" + b"x" * 2_000_000 + b",y,z,w\n",
+                 "... (2,000,006 characters)", id="long-line-excerpt"),
+    pytest.param("l.matrix.csv", b",a,b\na,0,1\nb," + b"1" * 2_000_000 + b",0\n",
+                 "... (2,000,000 characters)", id="long-cell-excerpt"),
+]
+
+
+@pytest.mark.parametrize("name, data, message", CASES)
+def test_hostile_file_one_line_exit_2(tmp_path, monkeypatch, capsys, name, data, message):
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / name).write_bytes(data)
+    assert main(["convert", name, "out.json"]) == 2
+    err = capsys.readouterr().err
+    assert "Traceback" not in err and err.count("\n") == 1, err[:500]
+    assert message in err, err[:500]
+    assert len(err) < 800  # a short excerpt, never the whole line
+    assert sorted(p.name for p in tmp_path.iterdir()) == [name]
+
+
+def test_decompressed_size_is_capped_and_the_limit_can_be_raised(tmp_path, monkeypatch,
+                                                                   capsys):
+    """A small gzip file that expands past the limit is refused, naming the limit and the
+    variable that raises it; raised, the same file reads."""
+    monkeypatch.chdir(tmp_path)
+    body = b"".join(b"s%d s%d\n" % (i, i + 1) for i in range(20_000))
+    (tmp_path / "x.mtx.gz").write_bytes(gzip.compress(
+        b"%%MatrixMarket matrix coordinate pattern general\n" + b"% padding\n" * 40_000
+        + b"3 3 2\n1 2\n2 3\n"))
+    (tmp_path / "y.csv.gz").write_bytes(gzip.compress(body))
+    monkeypatch.setenv("NETCTL_MAX_BYTES", "100K")
+    for name in ("x.mtx.gz", "y.csv.gz"):
+        assert main(["inspect", name]) == 2
+        err = capsys.readouterr().err
+        assert "the decompressed content" in err and "NETCTL_MAX_BYTES" in err
+        assert "102,400 bytes" in err
+    monkeypatch.setenv("NETCTL_MAX_BYTES", "10M")
+    assert main(["inspect", "x.mtx.gz"]) == 0
+    assert main(["inspect", "y.csv.gz"]) == 0
