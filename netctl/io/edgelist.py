@@ -55,6 +55,7 @@ _HEADER_WORDS = {"source", "target", "from", "to", "src", "dst", "weight", "u", 
                  "sources", "targets", "weights", "value"}
 _SPLIT = re.compile(r"[,\t; \r\v\f]+")
 _INT = re.compile(r"-?(0|[1-9][0-9]*)\Z")
+_NUMBER = re.compile(r"[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\Z|[-+]?(inf|nan)\Z", re.I)
 #: Longest edge-list line read (bytes); a longer one is refused with its line number.
 MAX_LINE_BYTES = 1 << 20
 
@@ -340,7 +341,9 @@ class _Scan:
             f = _fields(text)
             if f:
                 self.header_done = True
-                if len(f) >= 2 and all(x.lower() in _HEADER_WORDS for x in f[:2]):
+                if (len(f) >= 2 and all(x.lower() in _HEADER_WORDS for x in f[:2])
+                        and f[0].lower() != f[1].lower()  # 'u,u,...' is a self-loop
+                        and (len(f) < 3 or _NUMBER.match(f[2]) is None)):  # 'u,v,0.5' a link
                     if len(f) > 3:
                         raise file_error(self.path, int(st[1]), f"the header names {len(f)} "
                                          f"columns ({excerpt(text.strip())}); expected 'source "

@@ -98,3 +98,26 @@ def test_decompressed_size_is_capped_and_the_limit_can_be_raised(tmp_path, monke
     monkeypatch.setenv("NETCTL_MAX_BYTES", "10M")
     assert main(["inspect", "x.mtx.gz"]) == 0
     assert main(["inspect", "y.csv.gz"]) == 0
+
+
+@pytest.mark.parametrize("text, names, n_links, zero_warned", [
+    pytest.param("u,u,0.0\n", ("u",), 0, True, id="zero-self-loop-only"),
+    pytest.param("u,v,0.0\nv,w,1\n", ("u", "v", "w"), 1, True, id="zero-link-first-line"),
+    pytest.param("u,v,0.5\n", ("u", "v"), 1, False, id="weighted-link-named-like-a-header"),
+    pytest.param("source,target,weight\nu,v,2\n", ("u", "v"), 1, False, id="real-header"),
+])
+def test_first_line_with_a_number_is_a_link_not_a_header(tmp_path, text, names, n_links,
+                                                         zero_warned):
+    """Nothing in a good file is dropped silently: a zero-weight link is left out with a
+    warning, and its states are kept (the project's rule; no outside source)."""
+    import warnings
+
+    from netctl.io import read
+
+    p = tmp_path / "e.csv"
+    p.write_text(text)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        s = read(p)
+    assert s.state_names == names and s.n_links == n_links
+    assert any("weight 0" in str(w.message) for w in caught) == zero_warned
