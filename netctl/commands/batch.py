@@ -10,7 +10,6 @@ batch goes on; the exit status is then 2.
 from __future__ import annotations
 
 import argparse
-import csv
 import glob
 import json
 import sys
@@ -267,8 +266,10 @@ def _cmd_batch(args: argparse.Namespace) -> int:
     columns = (["file", "task", "model"] + COLUMNS[args.task]
                + (DISTURBANCE_COLUMNS if disturbed else []) + ["warnings", "error"])
     try:
+        from netctl.io._common import SpreadsheetSafeWriter
+
         with atomic_write(args.out) as fh:
-            w = csv.writer(fh, lineterminator="\n")
+            w = SpreadsheetSafeWriter(fh)  # no formula injection
             w.writerow(columns)
             for row in rows:
                 w.writerow([_cell(row.get(c)) for c in columns])

@@ -4,7 +4,6 @@ ordinary / redundant links (see :mod:`netctl.structural.roles`)."""
 from __future__ import annotations
 
 import argparse
-import csv
 from typing import Any
 
 from netctl.commands._options import add_terms, caution, emit, load_system, safe_write, terms
@@ -31,7 +30,9 @@ def write_roles_csv(path: str, nodes: Any, links: Any) -> None:
 def _write_rows(fh: Any, nodes: Any, links: Any) -> None:
     from netctl.structural.roles import LINK_ROLES
 
-    w = csv.writer(fh, lineterminator="\n")
+    from netctl.io._common import SpreadsheetSafeWriter
+
+    w = SpreadsheetSafeWriter(fh)  # no formula injection
     w.writerow(["element", "source", "target", "role"])
     for name, role in nodes.to_dict()["nodes"].items():
         w.writerow(["state", name, "", role])

@@ -8,7 +8,6 @@ some loss breaks it (or it is not controllable to begin with); without ``--input
 from __future__ import annotations
 
 import argparse
-import csv
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
@@ -172,7 +171,9 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
                          f"{100 * c.fraction_removed[len(c.n_inputs) // 2]:.0f}% removed")
     if args.csv:
         with safe_write(args.csv) as fh:
-            w = csv.writer(fh, lineterminator="\n")
+            from netctl.io._common import SpreadsheetSafeWriter
+
+            w = SpreadsheetSafeWriter(fh)  # no formula injection
             if args.k == 1:
                 w.writerow(["element", "source", "target", "role", "n_inputs_after",
                             "controllable_after", "rank_lost", "cut_off"])
@@ -273,10 +274,10 @@ def _grid_sweep(args: argparse.Namespace, system: Any) -> int:
             if br.size > 20:
                 lines.append(f"    ... ({br.size - 20} more; --json lists all)")
     if args.csv:
-        import csv
+        from netctl.io._common import SpreadsheetSafeWriter
 
         with safe_write(args.csv) as fh:
-            w = csv.writer(fh)
+            w = SpreadsheetSafeWriter(fh)  # no formula injection
             w.writerow(["element", "kind", "buses", "n_inputs_after", "no_structural_change",
                         "controllable_after", "reasons"])
             for row in sw.rows():

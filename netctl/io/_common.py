@@ -43,7 +43,8 @@ from netctl.errors import (
 __all__ = ["read_text", "read_bytes", "atomic_write", "atomic_group", "ungrouped", "file_error",
            "excerpt", "guarded_run", "note_input", "check_outputs", "max_bytes",
            "DEFAULT_MAX_BYTES", "MAX_TEXT_BYTES", "LIMIT_ENV", "check_states",
-           "limit_error", "BYTES_PER_STATE", "EXCERPT_CHARS"]
+           "limit_error", "BYTES_PER_STATE", "EXCERPT_CHARS", "spreadsheet_cell",
+           "SpreadsheetSafeWriter"]
 
 #: Default limit on the bytes of one file that a whole-file reader holds in memory (after
 #: gzip decompression). Raise it with the environment variable :data:`LIMIT_ENV`.
@@ -162,6 +163,46 @@ def read_bytes(path: str | os.PathLike[str]) -> bytes:
         if isinstance(exc, NetctlError):
             raise
         raise MissingFileError(f"{path}: cannot be read ({exc.strerror or exc}).") from None
+
+
+# ---------------------------------------------------------------------- CSV for people
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+
+
+def spreadsheet_cell(value: object) -> object:
+    """``value`` made safe to open in a spreadsheet: text starting with ``= + - @``, a tab
+    or a carriage return gets a leading ``'`` (so it is shown as text, never run as a
+    formula); numbers, including negative ones, are left alone.
+
+    Examples
+    --------
+    >>> spreadsheet_cell("=HYPERLINK(1)"), spreadsheet_cell("-1.5"), spreadsheet_cell(-2)
+    ("'=HYPERLINK(1)", '-1.5', -2)
+    """
+    if not isinstance(value, str) or not value.startswith(_FORMULA_START):
+        return value
+    try:
+        float(value)
+        return value
+    except ValueError:
+        return "'" + value
+
+
+class SpreadsheetSafeWriter:
+    """:func:`csv.writer` whose cells pass through :func:`spreadsheet_cell` (formula
+    injection, OWASP "CSV Injection"; common practice)."""
+
+    def __init__(self, fh: IO[str]) -> None:
+        import csv
+
+        self._w = csv.writer(fh, lineterminator="\n")
+
+    def writerow(self, row: Iterable[object]) -> None:
+        self._w.writerow([spreadsheet_cell(c) for c in row])
+
+    def writerows(self, rows: Iterable[Iterable[object]]) -> None:
+        for row in rows:
+            self.writerow(row)
 
 
 # ---------------------------------------------------------------------- the guard

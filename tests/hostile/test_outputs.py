@@ -241,3 +241,20 @@ def test_signal_at_any_moment_leaves_nothing_half_written(tmp_path, delay, sig):
         import json
 
         json.loads((tmp_path / "out.json").read_text())
+
+
+def test_csv_cells_cannot_run_as_formulas(tmp_path, monkeypatch):
+    """Formula injection (OWASP "CSV Injection"): a name starting with = + - @ is written
+    with a leading quote in every CSV netctl writes for people; numbers are left alone."""
+    import csv
+
+    (tmp_path / "f.csv").write_text("=cmd|x,@SUM(1)\n@SUM(1),+a\n+a,=cmd|x\n")
+    assert _run(tmp_path, monkeypatch, ["roles", "f.csv", "--csv", "roles.csv"]) == 0
+    rows = list(csv.reader((tmp_path / "roles.csv").read_text().splitlines()))
+    cells = [c for r in rows for c in r]
+    assert "'=cmd|x" in cells and "'@SUM(1)" in cells and "'+a" in cells
+    assert not any(c.startswith(("=", "+", "@")) for c in cells)
+    assert _run(tmp_path, monkeypatch, ["batch", ".", "--task", "drivers", "--executor",
+                                        "serial", "--out", "sub.csv"]) in (0, 2)
+    text = (tmp_path / "sub.csv").read_text()
+    assert "\n=" not in text and ",=" not in text
