@@ -400,6 +400,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         if not isinstance(f, str):
             raise doc.error(f"[couplings] file must be a path string, found {f!r}.", "file")
         fpath = Path(f) if Path(f).is_absolute() else Path(path).parent / f
+        _confine(fpath, path, f, doc.line_of("file"))
         if not fpath.is_file():
             raise MissingFileError(f"{path}:{doc.line_of('file')}: the coupling file {f!r} "
                                    f"(looked for at {fpath}) does not exist; paths are "
@@ -714,6 +715,26 @@ def _node_table(attrs: dict[str, dict[str, Any]], names: list[str]) -> dict[str,
                 col[index[s]] = row[k]
         table[k] = col
     return table
+
+
+#: Environment variable that, set to 1, lets a description's coupling ``file`` name a
+#: file outside the description's own folder (off by default: a downloaded description
+#: must not make netctl read, and quote, other files on the machine).
+OUTSIDE_ENV = "NETCTL_ALLOW_OUTSIDE_FILES"
+
+
+def _confine(fpath: Path, path: object, given: str, line: int | None) -> None:
+    """Refuse a referenced file that resolves (through ``..`` and symlinks) outside the
+    folder of the description ``path``, unless :data:`OUTSIDE_ENV` is 1."""
+    if os.environ.get(OUTSIDE_ENV, "").strip() == "1":
+        return
+    folder = Path(os.path.realpath(Path(str(path)).parent))
+    target = Path(os.path.realpath(fpath))
+    if target != folder and folder not in target.parents:
+        raise file_error(path, line, f"the coupling file {given[:80]!r} lies outside the "
+                         f"folder of the description; netctl reads only files beside it or "
+                         f"below it. Move the file there, or set {OUTSIDE_ENV}=1 if you "
+                         "trust this description.")
 
 
 def read_system(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:

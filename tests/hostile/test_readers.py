@@ -121,3 +121,34 @@ def test_first_line_with_a_number_is_a_link_not_a_header(tmp_path, text, names, 
         s = read(p)
     assert s.state_names == names and s.n_links == n_links
     assert any("weight 0" in str(w.message) for w in caught) == zero_warned
+
+
+@pytest.mark.parametrize("ref", ["../secret.csv", "/ABS/secret.csv", "link.csv"],
+                         ids=["dot-dot", "absolute", "symlink-out"])
+def test_coupling_file_confined_to_the_description_folder(tmp_path, monkeypatch, capsys,
+                                                           ref):
+    """A description's coupling file outside its folder is refused (and not quoted) unless
+    NETCTL_ALLOW_OUTSIDE_FILES=1 (common practice against path traversal, no source)."""
+    secret = tmp_path / "secret.csv"
+    secret.write_text("TOPSECRET,b,c,d,e\n")
+    sub = tmp_path / "plant"
+    sub.mkdir()
+    (sub / "link.csv").symlink_to(secret)
+    ref = ref.replace("/ABS", str(tmp_path))
+    (sub / "p.toml").write_text(f'[states]\nb = {{}}\n\n[couplings]\nfile = "{ref}"\n')
+    monkeypatch.chdir(sub)
+    assert main(["inspect", "p.toml"]) == 2
+    err = capsys.readouterr().err
+    assert "p.toml:5: the coupling file" in err and "lies outside the folder" in err
+    assert "TOPSECRET" not in err
+    monkeypatch.setenv("NETCTL_ALLOW_OUTSIDE_FILES", "1")
+    assert main(["inspect", "p.toml"]) == 2  # now read: a bad line, quoted
+    assert "TOPSECRET" in capsys.readouterr().err
+
+
+def test_coupling_file_beside_the_description_is_read(tmp_path, monkeypatch, capsys):
+    (tmp_path / "deep").mkdir()
+    (tmp_path / "deep" / "e.csv").write_text("a,b\n")
+    (tmp_path / "p.toml").write_text('[states]\na = {}\n\n[couplings]\nfile = "deep/e.csv"\n')
+    monkeypatch.chdir(tmp_path)
+    assert main(["inspect", "p.toml"]) == 0
