@@ -12,7 +12,13 @@ import sys
 from collections.abc import Callable
 from pathlib import Path
 
-from netctl.errors import LimitError, NetctlError, NetworkFileError, OptionError
+from netctl.errors import (
+    InvalidSystemError,
+    LimitError,
+    NetctlError,
+    NetworkFileError,
+    OptionError,
+)
 from netctl.io._common import atomic_group, atomic_write, excerpt, file_error, ungrouped
 from netctl.io.edgelist import read_edgelist, write_edgelist
 from netctl.io.gml import read_gml, write_gml
@@ -188,6 +194,10 @@ def _safely(path: str | os.PathLike[str], fmt: str,
     """``call()``, with every failure but netctl's own ended in one line naming the file."""
     try:
         return call()
+    except InvalidSystemError as exc:  # built from the file: name the file
+        if isinstance(exc, NetworkFileError) or str(path) in str(exc):
+            raise
+        raise file_error(path, None, str(exc)) from None
     except (NetctlError, MemoryError, KeyboardInterrupt):
         raise
     except RecursionError:

@@ -15,7 +15,7 @@ import re
 import warnings
 from typing import Any
 
-from netctl.io._common import atomic_write, file_error, read_bytes
+from netctl.io._common import atomic_write, excerpt, file_error, read_bytes
 from netctl.io._graphs import node_rows, refuse_unsafe_xml, system_from_parts, warn_not_kept
 from netctl.io._signals import dedicated_regulated, disturbance_links, disturbance_rows
 from netctl.system import StructuredSystem
@@ -70,6 +70,67 @@ def system_to_graph(system: StructuredSystem) -> Any:
     return g
 
 
+def _check_ids(path: object, data: bytes) -> None:
+    """Refuse what networkx would merge or invent silently: a node id declared twice
+    with different attributes, and an edge to a node no ``<node>`` declares (each with
+    its line)."""
+    import xml.parsers.expat
+
+    parser = xml.parsers.expat.ParserCreate()
+    nodes: dict[str, tuple[int, list[tuple[str, str]]]] = {}
+    ends: list[tuple[str, int]] = []
+    state: dict[str, Any] = {"node": None, "key": None, "text": [], "depth": 0}
+
+    def start(tag: str, attrs: dict[str, str]) -> None:
+        local = tag.rsplit(":", 1)[-1]
+        line = parser.CurrentLineNumber
+        if local == "graph":
+            state["depth"] += 1
+        if state["depth"] != 1:  # nested graphs are networkx's business
+            return
+        if local == "node" and "id" in attrs:
+            state["node"] = (attrs["id"], line, [])
+        elif local == "edge":
+            for end in ("source", "target"):
+                if end in attrs:
+                    ends.append((attrs[end], line))
+        elif local == "data" and state["node"] is not None:
+            state["key"] = attrs.get("key", "")
+            state["text"] = []
+
+    def chars(text: str) -> None:
+        if state["key"] is not None:
+            state["text"].append(text)
+
+    def end(tag: str) -> None:
+        local = tag.rsplit(":", 1)[-1]
+        if local == "graph":
+            state["depth"] -= 1
+        elif local == "data" and state["key"] is not None and state["node"] is not None:
+            state["node"][2].append((state["key"], "".join(state["text"]).strip()))
+            state["key"] = None
+        elif local == "node" and state["node"] is not None:
+            nid, line, attrs = state["node"]
+            state["node"] = None
+            if nid in nodes and sorted(nodes[nid][1]) != sorted(attrs):
+                raise file_error(path, line, f"the node id {excerpt(nid)} is declared again "
+                                 f"with different attributes (first on line {nodes[nid][0]}); "
+                                 "give each node one declaration.")
+            nodes.setdefault(nid, (line, attrs))
+
+    parser.StartElementHandler = start
+    parser.EndElementHandler = end
+    parser.CharacterDataHandler = chars
+    try:
+        parser.Parse(data, True)
+    except xml.parsers.expat.ExpatError:
+        return  # malformed XML: the full parser reports it with its line
+    for nid, line in ends:
+        if nid not in nodes:
+            raise file_error(path, line, f"an edge names the node {excerpt(nid)}, which no "
+                             "<node> declares; declare it (netctl does not invent states).")
+
+
 def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
     """Read a GraphML file (directed or undirected; undirected edges act both ways).
 
@@ -86,6 +147,7 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
 
     data = read_bytes(path)
     refuse_unsafe_xml(path, data)
+    _check_ids(path, data)
     try:
         g = nx.read_graphml(io.BytesIO(data))
     except ET.ParseError as exc:

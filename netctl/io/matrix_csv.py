@@ -53,6 +53,13 @@ def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> St
             first = False
             if any(_num(t) is None for t in toks if t):
                 col_names = [t for t in toks if t]
+                seen: set[str] = set()
+                for t in col_names:
+                    if t in seen:
+                        raise file_error(path, lineno, f"the header names the state "
+                                         f"{excerpt(t)} twice; each column needs its own "
+                                         "name.")
+                    seen.add(t)
                 continue
         label = None
         if toks and _num(toks[0]) is None:

@@ -101,7 +101,8 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     if field == "pattern":
         A = sp.csr_array((np.ones(A.nnz), A.indices, A.indptr), shape=A.shape)
     if A.nnz and not np.all(np.isfinite(A.data)):
-        raise file_error(path, None, "some values are NaN or infinite; give finite weights.")
+        raise file_error(path, _nonfinite_line(data, size_line_no), "a value is NaN or "
+                         "infinite; give finite weights.")
     n_zero = int(np.count_nonzero(A.data == 0))
     if n_zero:
         import warnings
@@ -109,6 +110,20 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
                       f"{'y is' if n_zero == 1 else 'ies are'} not links and were left out.",
                       stacklevel=2)
     return StructuredSystem.from_matrices(A, weighted=field != "pattern", model=model)
+
+
+def _nonfinite_line(data: bytes, size_line: int) -> int | None:
+    """The first entry line holding NaN or infinity (only on the error path)."""
+    for k, raw in enumerate(data.split(b"\n")[size_line:], start=size_line + 1):
+        s = raw.strip()
+        if s and not s.startswith(b"%"):
+            for tok in s.split():
+                try:
+                    if not np.isfinite(float(tok)):
+                        return k
+                except ValueError:
+                    pass
+    return None
 
 
 def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]

@@ -152,3 +152,37 @@ def test_coupling_file_beside_the_description_is_read(tmp_path, monkeypatch, cap
     (tmp_path / "p.toml").write_text('[states]\na = {}\n\n[couplings]\nfile = "deep/e.csv"\n')
     monkeypatch.chdir(tmp_path)
     assert main(["inspect", "p.toml"]) == 0
+
+
+_GRAPHML = (b'<?xml version="1.0"?>\n<graphml xmlns="http://graphml.graphdrawing.org/xmlns">\n'
+            b'<key id="c" for="node" attr.name="cost" attr.type="double"/>\n'
+            b'<graph edgedefault="directed">\n<node id="a"><data key="c">1</data></node>\n'
+            b'<node id="b"/>\n%s\n<edge source="a" target="b"/>\n</graph></graphml>\n')
+STRICT = [
+    pytest.param("d.graphml", _GRAPHML % b'<node id="a"><data key="c">2</data></node>',
+                 "d.graphml:7: the node id 'a' is declared again with different attributes "
+                 "(first on line 5)", id="graphml-duplicate-conflicting"),
+    pytest.param("u.graphml", _GRAPHML % b'<edge source="b" target="ghost"/>',
+                 "u.graphml:7: an edge names the node 'ghost', which no <node> declares",
+                 id="graphml-undeclared-node"),
+    pytest.param("n.mtx", b"%%MatrixMarket matrix coordinate real general\n% c\n3 3 2\n"
+                 b"1 2 1.0\n2 3 nan\n", "n.mtx:5: a value is NaN or infinite",
+                 id="mtx-nan-with-line"),
+    pytest.param("h.matrix.csv", b",a,a\na,0,1\na,1,0\n",
+                 "h.matrix.csv:1: the header names the state 'a' twice",
+                 id="matrix-csv-duplicate-header"),
+    pytest.param("i.csv", b"a,b,1e308\na,b,1e308\n", "i.csv: A has 1 NaN or infinite entry",
+                 id="weights-sum-to-infinity"),
+]
+
+
+@pytest.mark.parametrize("name, data, message", STRICT)
+def test_strict_reads_name_file_and_line(tmp_path, monkeypatch, capsys, name, data, message):
+    """Never a silent merge, an invented state or a message without its file."""
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / name).write_bytes(data)
+    assert main(["convert", name, "out.json"]) == 2
+    err = capsys.readouterr().err
+    assert message in err, err
+    assert "Traceback" not in err
+    assert sorted(p.name for p in tmp_path.iterdir()) == [name]
