@@ -22,6 +22,7 @@ from __future__ import annotations
 import errno
 import gzip
 import os
+import re
 import stat
 import sys
 import tempfile
@@ -41,7 +42,7 @@ from netctl.errors import (
 )
 
 __all__ = ["read_text", "read_bytes", "atomic_write", "atomic_group", "ungrouped", "file_error",
-           "excerpt", "guarded_run", "note_input", "check_outputs", "max_bytes",
+           "excerpt", "one_line", "guarded_run", "note_input", "check_outputs", "max_bytes",
            "DEFAULT_MAX_BYTES", "MAX_TEXT_BYTES", "LIMIT_ENV", "check_states",
            "limit_error", "BYTES_PER_STATE", "EXCERPT_CHARS", "spreadsheet_cell",
            "SpreadsheetSafeWriter"]
@@ -108,10 +109,22 @@ def excerpt(text: str | bytes, limit: int = EXCERPT_CHARS) -> str:
     return repr(text[:limit]) + f"... ({len(text):,} characters)"
 
 
+_LONG_RUN = re.compile(r"\S{%d,}" % (EXCERPT_CHARS + 20))
+
+
+def one_line(message: str) -> str:
+    """``message`` on one line, every run of more than ~100 non-blank characters cut to
+    :data:`EXCERPT_CHARS` with its length (a file's content never floods a message)."""
+    message = " ".join(message.split())
+    return _LONG_RUN.sub(lambda m: f"{m.group()[:EXCERPT_CHARS]}... "
+                         f"({len(m.group()):,} characters)", message)
+
+
 def file_error(path: object, line: int | None, message: str) -> NetworkFileError:
-    """A :class:`NetworkFileError` whose message starts with ``path:line:``."""
+    """A :class:`NetworkFileError` whose message starts with ``path:line:``, on one line
+    and with long runs of the file's content cut (:func:`one_line`)."""
     where = f"{path}:{line}" if line is not None else f"{path}"
-    return NetworkFileError(f"{where}: {message}", path=path, line=line)
+    return NetworkFileError(f"{where}: {one_line(message)}", path=path, line=line)
 
 
 def read_text(path: str | os.PathLike[str]) -> str:

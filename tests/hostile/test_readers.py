@@ -186,3 +186,23 @@ def test_strict_reads_name_file_and_line(tmp_path, monkeypatch, capsys, name, da
     assert message in err, err
     assert "Traceback" not in err
     assert sorted(p.name for p in tmp_path.iterdir()) == [name]
+
+
+@pytest.mark.parametrize("tail", [b"2 3 1E-", b"2 3 1.38\x0015"], ids=["cut-exponent", "nul"])
+def test_matrix_market_inputs_that_crashed_scipy(tmp_path, tail):
+    """Found by the fuzzer: scipy 1.17's Matrix Market parser crashed the process
+    (segmentation fault) on these; netctl guards it. Run in a child process, so that a
+    regression fails this test instead of killing the run."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    (tmp_path / "c.mtx").write_bytes(b"%%MatrixMarket matrix coordinate real general\n"
+                                     b"3 3 2\n1 2 1.0\n" + tail)
+    root = Path(__file__).resolve().parents[2]
+    r = subprocess.run([sys.executable, "-m", "netctl", "inspect", "c.mtx"], cwd=tmp_path,
+                       capture_output=True, text=True,
+                       env={**os.environ, "PYTHONPATH": str(root)})
+    assert r.returncode in (0, 2), r.stderr[-500:]
+    assert "Traceback" not in r.stderr
