@@ -428,7 +428,7 @@ def guard_files(args: argparse.Namespace) -> Iterator[None]:
 
 
 def terminal_safe(text: str) -> str:
-    """``text`` with control, escape and bidirectional-override characters (and lone
+    r"""``text`` with control, escape and bidirectional-override characters (and lone
     surrogates) shown as Python escapes, so that a name in a file never drives the
     terminal.
 
