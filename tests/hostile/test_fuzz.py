@@ -13,6 +13,7 @@ import os
 import random
 import tempfile
 import warnings
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -24,10 +25,27 @@ from netctl.errors import NetctlError
 from netctl.io import FORMATS, read, write
 
 SUFFIX = {"edgelist": ".csv", "mtx": ".mtx", "system": ".toml", "npz": ".npz", "npy": ".npy",
-          "matrix-csv": ".matrix.csv", "graphml": ".graphml", "gml": ".gml", "json": ".json"}
+          "matrix-csv": ".matrix.csv", "graphml": ".graphml", "gml": ".gml", "json": ".json",
+          "matpower": ".m", "pandapower": ".json"}
+ROOT = Path(__file__).resolve().parents[2]
 HOSTILE_NAMES = ["=cmd|' /C calc'!A0", "+1", "-x", "@SUM(1)", "a\x1b[31mred", "tab\there",
                  "é ü 中", "\u202eevil", "quote\"s", "<b>&amp;</b>", "x" * 300, "#hash",
                  "a,b", "nul\x00x", "cr\rx", "\ud800"]
+
+
+def _pandapower_seed() -> str:
+    """A small pandapower network document (pandas split tables), written by hand."""
+    import json
+
+    def table(columns, index, data):
+        return {"_module": "pandas.core.frame", "_class": "DataFrame", "orient": "split",
+                "_object": json.dumps({"columns": columns, "index": index, "data": data})}
+
+    bus = table(["name", "vn_kv", "in_service"], [0, 1, 2], [[None, 110.0, True]] * 3)
+    line = table(["from_bus", "to_bus", "length_km", "x_ohm_per_km", "in_service"], [0, 1],
+                 [[0, 1, 1.0, 0.4, True], [1, 2, 2.0, 0.4, True]])
+    return json.dumps({"_module": "pandapower.auxiliary", "_class": "pandapowerNet",
+                       "_object": {"bus": bus, "line": line, "sn_mva": 100}}, indent=1)
 
 
 def _seed_files() -> dict[str, bytes]:
@@ -37,8 +55,13 @@ def _seed_files() -> dict[str, bytes]:
     s = StructuredSystem.from_matrices(A, state_names=[f"s{i}" for i in range(6)],
                                        weighted=True)
     out = {}
+    # formats netctl reads but does not write: an example file of our own invention
+    out["matpower"] = (ROOT / "networks" / "island_grid.m").read_bytes()
+    out["pandapower"] = _pandapower_seed().encode()
     with tempfile.TemporaryDirectory() as d:
         for fmt, suffix in SUFFIX.items():
+            if fmt in out:
+                continue
             p = os.path.join(d, "seed" + suffix)
             write(s, p, fmt)
             with open(p, "rb") as fh:
