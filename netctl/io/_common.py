@@ -276,7 +276,7 @@ def check_outputs(outputs: Iterable[str | os.PathLike[str] | None],
         fid = _file_id(p)
         return fid if fid is not None else os.path.realpath(p)
 
-    seen_in = {}
+    seen_in: dict[object, str] = {}
     for p in inputs:
         if p is not None and str(p) != "-" and os.path.isfile(p):
             seen_in.setdefault(key(p), str(p))
