@@ -43,7 +43,8 @@ def test_check_exit_codes_and_reasons(capsys, tmp_path):
     assert code == 0 and "structurally controllable: yes" in out
     code, out, _ = run(capsys, "check", HEATING, "--inputs", "fuel_valve")
     assert code == 1
-    assert "no input reaches the component {bypass_valve}" in out
+    assert "1 source component no input reaches (bypass_valve)" in out
+    assert "4 dilations (structural rank of [A B] 8 < 12;" in out  # every cause in text
     assert "smallest fix: add" in out
     assert "licensed engineers" in out  # the caution is shown
     # --inputs from a file, --json keys

@@ -70,10 +70,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
         lines.append(f"  structurally {word}: {'yes' if r.controllable else 'NO'}"
                      + (f" (generic {word} dimension {dim} of {r.n_states})"
                         if dim is not None and not r.controllable else ""))
-        reasons = r.reasons()
-        lines.extend(f"    - {reason}" for reason in reasons[:SHOWN])
-        if len(reasons) > SHOWN:
-            lines.append(f"    ... ({len(reasons) - SHOWN} more reasons; --json lists all)")
+        lines.extend(f"    - {cause}" for cause in r.causes())
         if not r.controllable:
             lines.append(f"  smallest fix: add {r.n_missing_inputs} dedicated {what} at "
                          + names_line(r.names(r.fix[:SHOWN]), total=r.fix.size))

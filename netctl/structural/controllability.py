@@ -152,6 +152,37 @@ class ControllabilityReport(ResultTables):
                 f"{self.structural_rank} < {self.n_states}.")
         return out
 
+    def causes(self, limit: int = 8) -> list[str]:
+        """Every cause the property fails, grouped by kind with counts (empty when it holds).
+
+        One short line per kind: the source components no input reaches (sink components
+        no output sees), each named by its first state, and the dilations (the structural
+        rank deficiency of ``[A B]``), named by the over-determined region. At most
+        ``limit`` names a line, then how many more; :meth:`reasons` explains each cause
+        at length.
+        """
+        what = "input" if self.kind == "controllability" else "output"
+        out: list[str] = []
+        if self.groups:
+            k = len(self.groups)
+            end = "source" if self.kind == "controllability" else "sink"
+            reach = "reaches" if self.kind == "controllability" else "sees"
+            firsts = [self.state_names[int(g.source[0])] for g in self.groups]
+            out.append(f"{k} {end} component{'s' if k != 1 else ''} no {what} {reach} "
+                       f"({_short(firsts, limit)}), leaving {self.inaccessible.size} "
+                       f"state(s) {'unreached' if what == 'input' else 'unseen'}; "
+                       f"one {what} on any state of each reaches it.")
+        deficit = self.n_states - self.structural_rank
+        if deficit > 0 and self.dilation is not None:
+            region = self.dilation.region
+            stack = "[A B]" if self.kind == "controllability" else "[A; C]"
+            out.append(f"{deficit} dilation{'s' if deficit != 1 else ''} (structural rank "
+                       f"of {stack} {self.structural_rank} < {self.n_states}; "
+                       f"{region.size} state(s) compete for too few "
+                       f"{'feeders' if what == 'input' else 'readers'}: "
+                       f"{_short(self.names(region), limit)}).")
+        return out
+
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready dictionary (names, not indices)."""
         key = "controllable" if self.kind == "controllability" else "observable"

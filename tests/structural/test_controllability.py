@@ -275,3 +275,67 @@ def test_stacked_pattern_equals_scipy_hstack():
         ptr, ind, n_cols = stack_AB(A, B)
         assert n_cols == n + m
         assert np.array_equal(ptr, ref.indptr) and np.array_equal(ind, ref.indices)
+
+
+def _cause_counts(lines: list[str]) -> tuple[int, int]:
+    import re
+
+    comps = dil = 0
+    for line in lines:
+        if m := re.match(r"(\d+) (source|sink) components? no (input|output)", line):
+            comps = int(m.group(1))
+        elif m := re.match(r"(\d+) dilations? \(", line):
+            dil = int(m.group(1))
+        else:
+            raise AssertionError(f"unexpected cause line {line!r}")
+    return comps, dil
+
+
+def test_causes_count_every_cause_against_networkx():
+    """The grouped cause lines count every unreached source component and every dilation.
+
+    Independent recomputation with networkx: source components of the condensation that
+    no input reaches, and the deficiency ``n - maximum matching`` of the bipartite graph of
+    ``[A B]`` (Hopcroft–Karp); Lin 1974: the two causes of uncontrollability.
+    """
+    import networkx as nx
+
+    rng = np.random.default_rng(25)
+    seen_both = 0
+    for _ in range(200):
+        n = int(rng.integers(1, 20))
+        edges = random_pattern(rng, n, float(rng.uniform(0.03, 0.3)),
+                               loops=bool(rng.random() < 0.3))
+        s = from_edges(edges, n) if len(edges) else StructuredSystem.from_edges([], [], n)
+        inputs = sorted(set(rng.integers(0, n, int(rng.integers(0, 4))).tolist()))
+        r = controllability(s.with_inputs(inputs) if inputs else s)
+        g = nx.DiGraph()
+        g.add_nodes_from(range(n))
+        g.add_edges_from(map(tuple, edges.tolist()))
+        cond = nx.condensation(g)
+        reached = set(inputs).union(*[nx.descendants(g, i) for i in inputs]) if inputs else set()
+        unreached_sources = [c for c in cond.nodes if cond.in_degree(c) == 0
+                             and not cond.nodes[c]["members"] & reached]
+        bip = nx.Graph()
+        rows = [("r", v) for v in range(n)]
+        bip.add_nodes_from(rows)
+        bip.add_edges_from((("r", v), ("c", u)) for u, v in edges.tolist())
+        bip.add_edges_from((("r", v), ("b", k)) for k, v in enumerate(inputs))
+        matched = len(nx.bipartite.hopcroft_karp_matching(bip, top_nodes=rows)) // 2
+        comps, dil = _cause_counts(r.causes())
+        assert comps == len(unreached_sources), (edges.tolist(), inputs)
+        assert dil == n - matched, (edges.tolist(), inputs)
+        assert (comps + dil == 0) == r.controllable
+        seen_both += comps > 0 and dil > 0
+    assert seen_both >= 10  # both causes together, not only one at a time
+
+
+def test_causes_truncate_names_with_a_count():
+    # 12 isolated states, one input: 11 unreached source components, 11 dilations
+    s = StructuredSystem.from_edges([], [], 12).with_inputs([0])
+    lines = controllability(s, dimension=False).causes(limit=4)
+    assert lines[0].startswith("11 source components no input reaches (x1, x2, x3, x4, ... "
+                               "(7 more))")
+    assert lines[1].startswith("11 dilations (structural rank of [A B] 1 < 12;")
+    o = observability(s.with_outputs([0]), dimension=False).causes()
+    assert o[0].startswith("11 sink components no output sees")
