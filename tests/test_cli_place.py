@@ -80,11 +80,15 @@ def test_place_infeasible_exits_1_naming_states(capsys, files):
     s2.write_text("state,cost\nb,1\nd,1\n")
     code, out, err = run(capsys, "place", net, "--sites", s2)
     assert code == 1 and "Traceback" not in err
-    assert "status: infeasible" in out
+    # a -> b, a -> c, c -> d: driving b and d reaches only themselves (dimension 2 of 4)
+    assert ("status: best effort: 2 site(s) reach a generic controllable dimension of 2 of "
+            "4; no design on these sites is controllable because") in out
     assert "no eligible site is in the source component {a}" in out
+    assert "optimal" not in out.split("status:")[1].split("\n")[0]
     code, out, _ = run(capsys, "place", net, "--sites", s2, "--json")
     d = json.loads(out)
-    assert d["feasible"] is False and d["gap"] is None and d["optimal"] is False
+    assert d["feasible"] is False and d["best_effort"] is True and d["optimal"] is False
+    assert d["sites"] == ["b", "d"] and d["dimension"] == 2
 
 
 def test_place_bad_sites_file_exit_2_no_output(capsys, files):

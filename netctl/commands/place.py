@@ -114,7 +114,12 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
     lines.append(f"  sites ({r.sites.size}): {names_line(r.site_names) or '(none)'}")
     lines.append(f"  total cost: {r.cost:g} (in the units of the site costs; 1 a site "
                  "when none are given)")
-    if not r.feasible:
+    if not r.feasible and r.best_effort:
+        word = "observable" if r.kind == "sensors" else "controllable"
+        dim = "not computed" if r.dimension is None else f"{r.dimension} of {r.goal_dimension}"
+        status = (f"best effort: {r.sites.size} site(s) reach a generic {word} dimension of "
+                  f"{dim}; no design on these sites is {word} because of the cause(s) below")
+    elif not r.feasible:
         status = "infeasible"
     elif r.best_effort:
         status = (f"best effort: generic {'observable' if r.kind == 'sensors' else 'controllable'}"

@@ -245,7 +245,7 @@ def test_infeasible_source_component_is_named():
     # 0 -> 1 -> 2 and an isolated pair 3 <-> 4 with no eligible site
     s = from_edges([(0, 1), (1, 2), (3, 4), (4, 3)], 5)
     p = place_inputs(s, sites=parse_sites("state,cost\nx0,1\nx2,1", s))
-    assert not p.feasible and not p.goal_met and p.gap == float("inf")
+    assert not p.feasible and not p.goal_met and p.best_effort and not p.optimal
     assert any("source component {x3, x4}" in r and "make one of them eligible" in r
                for r in p.reasons), p.reasons
 
@@ -474,3 +474,38 @@ def test_dimension_oracle_matches_finite_field_reference():
         assert oracle(S) == expected, (trial, edges.tolist(), S)
         if S:
             assert controllability(s.with_inputs(B)).controllable_dimension == expected
+
+
+def test_infeasible_sites_give_the_best_effort_design_against_brute_force():
+    """When no design on the eligible sites is controllable, the result is the design of
+    largest generic controllable dimension (then fewest sites, when exhaustive), never
+    called optimal. Brute force: every subset of the eligible sites, each dimension the
+    generic rank of [B AB ... A^(n-1)B] over F_p (tests/_reference.py; Schwartz 1980 /
+    Zippel 1979).
+    """
+    rng = np.random.default_rng(2025)
+    ref_rng = np.random.default_rng(11)
+    tried = 0
+    while tried < 60:
+        s = _random_system(rng)
+        n = s.n_states
+        eligible = rng.random(n) < 0.4
+        cost = np.ones(n)
+        sites = parse_sites(_sites_text(s, eligible, cost), s) if eligible.any() else None
+        if sites is None or _brute_dedicated(s, eligible, cost) is not None:
+            continue  # feasible (or nothing eligible): not this test's case
+        tried += 1
+        A = ref.pattern_from_edges(np.argwhere(s.A.toarray().T != 0), n)
+        elig = [int(i) for i in np.flatnonzero(eligible)]
+        dims = {S: ref.generic_controllable_dimension(A, ref.dedicated_B(n, S), ref_rng)
+                for r in range(len(elig) + 1) for S in itertools.combinations(elig, r)}
+        best = max(dims.values())
+        fewest = min(len(S) for S, d in dims.items() if d == best)
+        for method in ("auto", "greedy"):
+            p = place_inputs(s, sites=sites, method=method)
+            assert not p.feasible and not p.goal_met and p.best_effort and not p.optimal
+            assert p.reasons
+            assert p.dimension == best, (method, elig, s.A.toarray().tolist())
+            assert dims[tuple(p.sites.tolist())] == best
+            if method == "auto":  # exhaustive below EXHAUSTIVE_MAX_CANDIDATES sites
+                assert p.sites.size == fewest and p.cost == fewest

@@ -71,15 +71,18 @@ def _solve(work: StructuredSystem, cands: Candidates, budget: float | None, meth
     problem = "dedicated" if cands.dedicated else "candidates"
     reasons = infeasibility(work, prob, cands)
     if reasons:
-        out = Outcome(problem, "none", False, False, np.zeros(0, np.int64), 0.0, None, None,
-                       None, reasons, "no design within the given sites or candidates makes "
-                       "the system structurally controllable")
-        if budget is not None:
-            be = best_effort_design(work, cands, prob, budget, method)
-            be.feasible = False
-            be.reasons = reasons
-            return be
-        return out
+        # best effort: the design of largest generic controllable dimension within the
+        # budget (every eligible site when there is none); never claimed optimal
+        be = best_effort_design(work, cands, prob, np.inf if budget is None else budget,
+                                method)
+        be.feasible = False
+        be.reasons = reasons
+        if budget is None:  # the greedy then reaches the dimension of every eligible site
+            be.guarantee = ("the largest generic controllable dimension any design on these "
+                            "sites reaches; " + ("the cheapest such design (every subset "
+                                                 "tried)" if be.method == "exhaustive" else
+                                                 "not proven the cheapest such design"))
+        return be
     if cands.dedicated and method != "greedy":
         out = dedicated_assignment(prob, cands)
     elif method == "greedy" or (method == "auto" and prob.milp_size() > MILP_MAX_VARIABLES):

@@ -116,7 +116,8 @@ def run_placement(
         upper = None
     within = budget is None or out.cost <= budget * (1 + 1e-12) + 1e-12
     goal = bool(out.feasible and not out.best_effort and within)
-    optimal = bool(out.feasible or out.best_effort) and gap == 0.0
+    # a best effort on sites that cannot make the system controllable is never optimal
+    optimal = bool(out.feasible) and gap == 0.0
     if goal and chk.verified is False:  # never claim a design the check rejects
         goal = False
     return Placement(

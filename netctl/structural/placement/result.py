@@ -52,7 +52,8 @@ class Placement(ResultTables):
     upper_bound : float or None
         Proven upper bound on the best achievable dimension (best-effort problems).
     optimal : bool
-        Proven optimal (``gap == 0``).
+        Proven optimal (``gap == 0``); never for a best effort on sites or candidates
+        that cannot make the system controllable (``feasible=False``).
     gap : float
         Relative optimality gap: ``(cost - lower_bound) / cost`` for cost problems,
         ``(upper_bound - dimension) / upper_bound`` for best effort; 0 when optimal;
