@@ -88,6 +88,7 @@ def test_place_infeasible_exits_1_naming_states(capsys, files):
     code, out, _ = run(capsys, "place", net, "--sites", s2, "--json")
     d = json.loads(out)
     assert d["feasible"] is False and d["best_effort"] is True and d["optimal"] is False
+    assert d["gap"] is None  # no design meets the goal at any cost
     assert d["sites"] == ["b", "d"] and d["dimension"] == 2
 
 

@@ -102,6 +102,8 @@ def run_placement(
         ub = out.upper_bound if out.upper_bound is not None else float(n)
         d0 = 0 if dim is None else dim
         gap = 0.0 if ub <= 0 else max(0.0, (ub - d0) / ub)
+        if not out.feasible:  # no design meets the goal at any cost: no gap to close
+            gap = float("inf")
         lower, upper = None, float(ub)
     elif not out.feasible and out.lower_bound is None:
         gap, lower, upper = float("inf"), None, None
