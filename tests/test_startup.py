@@ -50,7 +50,8 @@ def test_import_netctl_loads_no_heavy_module():
 def test_public_names_load_on_first_access():
     assert loaded_after("import netctl\nnetctl.__all__\ndir(netctl)\nnetctl.__version__\n"
                         "netctl.NetctlError") == []
-    assert "numba" in loaded_after("import netctl\nnetctl.minimum_inputs")
+    loaded = loaded_after("import netctl\nnetctl.minimum_inputs")
+    assert "numpy" in loaded and "numba" not in loaded  # kernels compile on first large call
 
 
 def test_help_loads_no_heavy_module():
@@ -71,3 +72,15 @@ def test_a_verb_on_a_small_file_loads_only_what_it_needs(tmp_path):
     for argv in (["drivers", str(f)], ["check", str(f), "--inputs", "a"],
                  ["inspect", str(f)]):
         assert set(loaded_after(run_main(argv))).isdisjoint(NOT_FOR_A_VERB), argv
+
+
+def test_structural_verbs_on_a_small_file_do_not_load_numba(tmp_path):
+    """numba's import and first cache load cost more than the rest of a small run
+    (benchmarks/RESULTS.md, start-up): small inputs run the kernels' Python bodies and
+    small edge lists are read without the compiled scanner (netctl._jit, io/_edgesmall)."""
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    code = "\n".join(run_main(argv) for argv in (
+        ["drivers", str(f)], ["check", str(f), "--inputs", "a"], ["inspect", str(f)],
+        ["roles", str(f)], ["sensors", str(f)], ["verify", str(f), "--inputs", "a"]))
+    assert "numba" not in loaded_after(code)

@@ -16,11 +16,12 @@ def _warm() -> None:
     import warnings
 
     import netctl.models  # noqa: F401  (readers, models and analyses a task may use)
+    from netctl._jit import always_compiled
     from netctl.io import read
     from netctl.structural import controllability, minimum_inputs
     from netctl.system import StructuredSystem
 
-    with warnings.catch_warnings():
+    with warnings.catch_warnings(), always_compiled():  # small inputs would stay Python
         warnings.simplefilter("ignore")
         system = StructuredSystem.from_edges([0, 1, 2, 2], [1, 2, 0, 3], 4)
         minimum_inputs(system)

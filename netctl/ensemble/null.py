@@ -13,7 +13,7 @@ from typing import Any
 
 import numpy as np
 
-from numba import njit
+from netctl._jit import njit
 
 from netctl.errors import InvalidSystemError, OptionError
 from netctl.graph.matching import maximum_matching

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
+from netctl._jit import njit
 
 __all__ = ["strongly_connected_components", "condensation_sources", "reachable_from",
            "label_reach", "induced_subgraph"]

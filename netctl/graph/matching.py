@@ -23,7 +23,7 @@ References
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
+from netctl._jit import njit
 
 __all__ = ["maximum_matching", "extend_matching", "matching_from_csr", "is_valid_matching",
            "transpose_csr", "transpose_index", "index_dtype", "matching_work"]

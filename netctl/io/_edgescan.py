@@ -24,7 +24,7 @@ on two exactly representable numbers). Other weight tokens (17-digit ``repr`` va
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
+from netctl._jit import njit
 
 __all__ = ["scan_chunk", "rehash", "mark_present", "remap", "int_names_text", "build_csr", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
            "STATUS_NOT_INT", "STATUS_GROW", "STATUS_FULL", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ST_SIZE",
@@ -54,7 +54,7 @@ _FNV_OFFSET = np.uint64(14695981039346656037)
 _FNV_PRIME = np.uint64(1099511628211)
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _parse_int(buf: np.ndarray, s: int, e: int) -> tuple[bool, int]:
     neg = False
     if buf[s] == 45:
@@ -74,7 +74,7 @@ def _parse_int(buf: np.ndarray, s: int, e: int) -> tuple[bool, int]:
     return True, -v if neg else v
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _parse_float(buf: np.ndarray, s: int, e: int) -> tuple[bool, float]:
     """Exact for <= 15 significant digits and |decimal exponent| <= 22; else (False, 0)."""
     neg = False
@@ -141,7 +141,7 @@ def _parse_float(buf: np.ndarray, s: int, e: int) -> tuple[bool, float]:
     return True, -v if neg else v
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _fnv(buf: np.ndarray, s: int, e: int) -> np.uint64:
     h = _FNV_OFFSET
     for i in range(s, e):
@@ -149,7 +149,7 @@ def _fnv(buf: np.ndarray, s: int, e: int) -> np.uint64:
     return _fmix(h)
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _fmix(h: np.uint64) -> np.uint64:
     """MurmurHash3's fmix64 avalanche, so that the low bits used as the slot are well
     mixed."""
@@ -161,7 +161,7 @@ def _fmix(h: np.uint64) -> np.uint64:
     return h
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _pack(buf: np.ndarray, s: int, e: int) -> int:
     """Up to 8 bytes packed little-endian into an int64 (0 for an empty range)."""
     v = np.uint64(0)
@@ -170,7 +170,7 @@ def _pack(buf: np.ndarray, s: int, e: int) -> int:
     return np.int64(v)
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _mix(k0: int, k1: int, ln: int) -> np.uint64:
     """Hash of a name of at most 16 bytes from its two packed words (multiply-xor, then
     the fmix64 avalanche), far cheaper than a byte-wise hash."""
@@ -179,7 +179,7 @@ def _mix(k0: int, k1: int, ln: int) -> np.uint64:
     return _fmix(h)
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _name_key(buf: np.ndarray, s: int, e: int) -> tuple[np.uint64, int, int]:
     """``(hash, key0, key1)`` of the name ``buf[s:e]``: the keys are the name itself in
     two little-endian words when it has at most 16 bytes, else ``(hash >> 1, 0)``."""
@@ -193,7 +193,7 @@ def _name_key(buf: np.ndarray, s: int, e: int) -> tuple[np.uint64, int, int]:
     return _mix(k0, k1, ln), k0, k1
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _lookup(buf: np.ndarray, s: int, e: int, line: int, table: np.ndarray,
             names_buf: np.ndarray, name_pos: np.ndarray, name_line: np.ndarray,
             st: np.ndarray) -> int:
@@ -203,7 +203,7 @@ def _lookup(buf: np.ndarray, s: int, e: int, line: int, table: np.ndarray,
                      st)
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _insert(buf: np.ndarray, s: int, e: int, k0: int, k1: int, slot: int, line: int,
             table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
             name_line: np.ndarray, st: np.ndarray) -> int:
@@ -227,7 +227,7 @@ def _insert(buf: np.ndarray, s: int, e: int, k0: int, k1: int, slot: int, line: 
     return nid
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _lookup_k(buf: np.ndarray, s: int, e: int, h: np.uint64, k0: int, k1: int, line: int,
               table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
               name_line: np.ndarray, st: np.ndarray) -> int:
@@ -261,7 +261,7 @@ def _lookup_k(buf: np.ndarray, s: int, e: int, h: np.uint64, k0: int, k1: int, l
         slot = (slot + 1) & mask
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _lookup_short(buf: np.ndarray, s: int, e: int, h: np.uint64, k0: int, k1: int,
                   line: int, table: np.ndarray, names_buf: np.ndarray,
                   name_pos: np.ndarray, name_line: np.ndarray, st: np.ndarray) -> int:
@@ -281,7 +281,7 @@ def _lookup_short(buf: np.ndarray, s: int, e: int, h: np.uint64, k0: int, k1: in
         slot = (slot + 1) & mask
 
 
-@njit(cache=True, nogil=True)
+@njit(python=False, cache=True, nogil=True)
 def rehash(table: np.ndarray, names_buf: np.ndarray, name_pos: np.ndarray,
            n_names: int) -> None:
     """Insert names ``0..n_names-1`` into the empty (``table[:, 0] == -1``) ``table``."""
@@ -306,7 +306,7 @@ _CLASS[10] = 2
 _CLASS[35] = 3
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _scan_name(buf: np.ndarray, q: int, n: int) -> tuple[int, int, int]:
     """End of the name starting at ``q`` and its first 16 bytes packed in two words."""
     k0 = np.uint64(0)
@@ -322,7 +322,7 @@ def _scan_name(buf: np.ndarray, q: int, n: int) -> tuple[int, int, int]:
     return q, np.int64(k0), np.int64(k1)
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _save(st: np.ndarray, p: int, line: int, ncols: int, ne: int, ni: int, nfb: int,
           nzero: int, zline: int) -> None:
     st[_POS] = p
@@ -335,7 +335,7 @@ def _save(st: np.ndarray, p: int, line: int, ncols: int, ne: int, ni: int, nfb: 
     st[_ZLINE] = zline
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _fast_int(buf: np.ndarray, q: int, n: int) -> tuple[bool, int, int]:
     """A canonical integer at ``q`` ending at a separator, '#', a line break or the end."""
     neg = False
@@ -358,7 +358,7 @@ def _fast_int(buf: np.ndarray, q: int, n: int) -> tuple[bool, int, int]:
     return True, -v if neg else v, q
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _line_tail(buf: np.ndarray, q: int, n: int) -> tuple[int, int, bool, float]:
     """The rest of a fast-path line after its second name: separators, an optional
     weight, separators, an optional comment. Returns ``(q, n_fields, ok, weight)`` with
@@ -383,7 +383,7 @@ def _line_tail(buf: np.ndarray, q: int, n: int) -> tuple[int, int, bool, float]:
     return q, nf, ok, x
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _zero_count(x: float, line: int, nzero: int, zline: int) -> tuple[int, int]:
     """Count a weight of 0 (not a link; the driver warns) and keep the first one's line."""
     if x == 0.0:
@@ -393,7 +393,7 @@ def _zero_count(x: float, line: int, nzero: int, zline: int) -> tuple[int, int]:
     return nzero, zline
 
 
-@njit(cache=True, nogil=True, inline="always")
+@njit(python=False, cache=True, nogil=True, inline="always")
 def _short_of_room(st: np.ndarray, new_names: int, new_bytes: int, table: np.ndarray,
                    name_pos: np.ndarray, names_buf: np.ndarray) -> bool:
     """Whether ``new_names`` more names of ``new_bytes`` bytes (line breaks included)
@@ -404,7 +404,7 @@ def _short_of_room(st: np.ndarray, new_names: int, new_bytes: int, table: np.nda
             or st[_NUSED] + new_bytes > names_buf.size)
 
 
-@njit(cache=True, nogil=True)
+@njit(python=False, cache=True, nogil=True)
 def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                src: np.ndarray, dst: np.ndarray, w: np.ndarray, iso: np.ndarray,
                fb_edge: np.ndarray, fb_line: np.ndarray, fb_start: np.ndarray,

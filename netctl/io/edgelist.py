@@ -40,6 +40,7 @@ from netctl.io._common import (
     max_bytes,
     note_input,
 )
+from netctl.io._edgesmall import SMALL_BYTES, read_small
 from netctl.system import DistinctNames, StructuredSystem
 
 __all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
@@ -531,7 +532,9 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
     Notes
     -----
     One pass over the bytes, O(file size); a file whose first non-integer name comes
-    late is scanned twice (integer mode, then string mode).
+    late is scanned twice (integer mode, then string mode). Small well-formed files
+    (up to :data:`netctl.io._edgesmall.SMALL_BYTES`) are read in plain Python instead,
+    with the same result and without loading the compiled scanner.
 
     Examples
     --------
@@ -542,6 +545,11 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
     >>> e.names, e.sources.tolist(), e.targets.tolist()
     (('1', '2', '3', '7'), [0, 1], [1, 2])
     """
+    if chunk_bytes == CHUNK_BYTES and max_bytes() >= SMALL_BYTES:
+        small = read_small(path, _HEADER_WORDS, _INT)
+        if small is not None:
+            note_input(path)  # as _open does: an output may not overwrite this file
+            return small
     scan = _Scan(path, _k.MODE_INT, chunk_bytes)
     try:
         scan.run()

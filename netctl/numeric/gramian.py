@@ -25,7 +25,7 @@ from typing import Any
 
 import numpy as np
 import scipy.linalg as la
-from numba import njit
+from netctl._jit import njit
 from dataclasses import dataclass
 
 __all__ = ["lyapunov_factor", "finite_horizon_factor", "gramian_factor", "gramian_mp",

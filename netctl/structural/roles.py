@@ -18,7 +18,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-from numba import njit
+from netctl._jit import njit
 
 from netctl.errors import UnknownNameError
 from netctl.graph.components import condensation_sources, strongly_connected_components

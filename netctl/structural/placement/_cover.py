@@ -17,7 +17,7 @@ from __future__ import annotations
 import heapq
 
 import numpy as np
-from numba import njit
+from netctl._jit import njit
 
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.records import Candidates

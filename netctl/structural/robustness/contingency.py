@@ -14,7 +14,7 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
-from numba import njit
+from netctl._jit import njit
 
 from netctl.structural._engine import stack_AB
 from netctl.structural.robustness._common import _check_elements, _n_d

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
-from numba import njit
+from netctl._jit import njit
 
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
