@@ -168,6 +168,8 @@ def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]
 
 def write_mtx(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     """Write ``A`` as a Matrix Market coordinate file (pattern unless weighted)."""
+    import scipy.io
+
     A = sp.coo_matrix(system.A)
     buf = io.BytesIO()
     scipy.io.mmwrite(buf, A, field="real" if system.weighted else "pattern",
