@@ -14,7 +14,6 @@ parsing of one verb's options load nothing a verb does not need.
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 from collections.abc import Callable, Iterator, Sequence
 from contextlib import contextmanager
@@ -383,7 +382,11 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
             data = {**data, "file_convention": convention}
         if grid is not None and isinstance(data, dict):
             data = {**data, "grid": {**grid, "caution": _GRID_CAUTION}}
-        payload = json.dumps(data, indent=2, sort_keys=False, default=_json_default) + "\n"
+        from netctl.commands._json import encode, tagged
+
+        # indented for a person at a terminal (or a small --out file), else compact
+        pretty = _isatty(sys.stdout) if args.json else True
+        payload = encode(tagged(data, getattr(args, "command", None)), pretty=pretty)
         if want_out:
             from netctl.io import atomic_write
 
@@ -440,14 +443,12 @@ def terminal_safe(text: str) -> str:
     return "".join(c if c.isprintable() or c == "\n" else ascii(c)[1:-1] for c in text)
 
 
-def _json_default(o: Any) -> Any:
-    import numpy as np
-
-    if isinstance(o, np.generic):
-        return o.item()
-    if isinstance(o, np.ndarray):
-        return o.tolist()
-    raise TypeError(f"not JSON serialisable: {type(o).__name__}")
+def _isatty(stream: Any) -> bool:
+    isatty = getattr(stream, "isatty", None)
+    try:
+        return bool(isatty and isatty())
+    except ValueError:  # a closed stream
+        return False
 
 
 def system_with_inputs(args: argparse.Namespace) -> tuple[StructuredSystem, str]:

@@ -4,7 +4,6 @@ interactive HTML map, a static figure (PNG/SVG/PDF), or an export (GeoJSON, Grap
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 from typing import Any, cast
 
@@ -118,7 +117,9 @@ def _cmd_map(args: argparse.Namespace) -> int:
     if kind in ("png", "svg", "pdf"):
         d["figure"] = args.out
     if args.json:
-        sys.stdout.write(json.dumps(d, indent=2) + "\n")
+        from netctl.commands._json import encode, tagged
+
+        sys.stdout.write(encode(tagged(d, "map"), pretty=sys.stdout.isatty()))
     else:
         verdict = "yes" if marks.controllable else (
             f"NO ({marks.suggested.size} more dedicated input(s) needed; drawn as dashed "

@@ -61,7 +61,8 @@ class InputDesign(ResultTables):
     model: str = "given"
 
     def names(self, indices: Any) -> list[str]:
-        return [self.state_names[int(i)] for i in indices]
+        sn = self.state_names
+        return [sn[i] for i in np.asarray(indices, dtype=np.int64).tolist()]
 
     @property
     def wiring(self) -> tuple[np.ndarray, ...]:
@@ -88,8 +89,12 @@ class InputDesign(ResultTables):
             return system.with_inputs(M, names=names)
         return system.with_outputs(M.T, names=names)
 
+    def _wiring_names(self) -> list[list[str]]:
+        flat = self.names(self.wiring_states)
+        p = self.wiring_indptr.tolist()
+        return [flat[a:b] for a, b in zip(p[:-1], p[1:])]
+
     def to_dict(self) -> dict[str, Any]:
-        single = "input" if self.kind == "inputs" else "sensor"
         count_key = "n_inputs" if self.kind == "inputs" else "n_sensors"
         list_key = "drivers" if self.kind == "inputs" else "sensors"
         return {
@@ -100,7 +105,9 @@ class InputDesign(ResultTables):
             "model": self.model,
             list_key: self.driver_names,
             "unmatched": self.names(self.unmatched),
-            "wiring": [{single: k, "states": self.names(w)} for k, w in enumerate(self.wiring)],
+            # input (sensor) k acts on (reads) the states wiring[k] (schema 2: arrays, not
+            # one object per input; docs/JSON.md)
+            "wiring": self._wiring_names(),
             "structural_rank_A": self.matching_size,
             "n_source_components" if self.kind == "inputs" else "n_sink_components":
                 self.n_source_components,
