@@ -1,0 +1,156 @@
+"""Every verb, whole process, before and after: the bundled networks and generated ones.
+
+Run by hand (not part of the test suite)::
+
+    python3 benchmarks/bench_verbs.py --before /path/to/old/checkout [--runs 3]
+        [--sizes bundled,1e6,1e7] [--work /tmp/netctl-bench] [--yardsticks]
+
+* bundled: every command line of ``tests/golden/cases.py`` (every verb on the four
+  bundled networks), with ``--json``;
+* ``1e6``: directed Erdős–Rényi, 10^6 states, 3·10^6 links (``netctl generate
+  erdos-renyi --mean-degree 6``); ``1e7``: 3·10^6 states, 10^7 links; on each:
+  ``inspect``, ``drivers --json``, ``sensors``, ``check`` (a minimum dedicated input set
+  chosen by the verb itself), ``roles``;
+* ``--yardsticks`` (large sizes): igraph's reader and bipartite matching, and NumPy's
+  reader with SciPy's matching, as whole processes (``yardstick_matching.py``), beside
+  ``drivers --json``.
+
+Each command of the two trees runs in turn (before, after, before, after, ...), so every
+ratio after/before is taken under the same load; the table gives medians of wall and CPU
+seconds (user + system of the child, ``os.wait4``), the median of the per-pair ratios, and
+the peak resident set of the after side (``ru_maxrss``); one warm-up run of each side is
+not counted. Give ``--after`` a copy of the tree (``git archive``) if you edit while it
+runs. Output: a Markdown table.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import platform
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+
+__all__: list[str] = []
+
+LARGE = {"1e6": (1_000_000, 6.0), "1e7": (3_000_000, 20.0 / 3.0)}
+LARGE_VERBS = (["inspect"], ["drivers", "--json"], ["sensors"], ["check"], ["roles"])
+
+
+def run_once(argv: list[str], tree: str | None, cwd: str) -> tuple[float, float, float, int]:
+    """Wall s, CPU s, peak MiB and exit status of one whole process (output discarded)."""
+    env = dict(os.environ)
+    env.pop("PYTHONPATH", None)
+    if tree is not None:
+        env["PYTHONPATH"] = tree
+    t0 = time.perf_counter()
+    proc = subprocess.Popen(argv, env=env, cwd=cwd, stdout=subprocess.DEVNULL,
+                            stderr=subprocess.DEVNULL)
+    _, status, usage = os.wait4(proc.pid, 0)
+    wall = time.perf_counter() - t0
+    return (wall, usage.ru_utime + usage.ru_stime, usage.ru_maxrss / 1024,
+            os.waitstatus_to_exitcode(status))
+
+
+def netctl(args: list[str]) -> list[str]:
+    return [sys.executable, "-c", "from netctl.cli import main; raise SystemExit(main())", *args]
+
+
+def pairs(label: str, argv: list[str], before: str, after: str, cwd: str, runs: int,
+          baseline_argv: list[str] | None = None) -> str:
+    """One table row: ``argv`` under ``after`` against ``baseline_argv`` (default: the same
+    under ``before``)."""
+    b_argv = baseline_argv or argv
+    b_tree = None if baseline_argv else before
+    run_once(b_argv, b_tree, cwd)  # warm-up, not counted (numba's cache, the page cache)
+    run_once(argv, after, cwd)
+    rows = []
+    for _ in range(runs):
+        b = run_once(b_argv, b_tree, cwd)
+        a = run_once(argv, after, cwd)
+        rows.append((a, b))
+    med = statistics.median
+    aw, ac = med(r[0][0] for r in rows), med(r[0][1] for r in rows)
+    bw, bc = med(r[1][0] for r in rows), med(r[1][1] for r in rows)
+    rw = med(r[0][0] / r[1][0] for r in rows)
+    rc = med(r[0][1] / r[1][1] for r in rows)
+    peak = max(r[0][2] for r in rows)
+    codes = f"{rows[0][1][3]}/{rows[0][0][3]}"
+    return (f"| {label} | {bw:.3f} | {aw:.3f} | {bc:.3f} | {ac:.3f} | {rw:.2f} | {rc:.2f} "
+            f"| {peak:.0f} | {codes} |")
+
+
+def generate(work: Path, size: str, after: str) -> tuple[Path, Path, int]:
+    n, k = LARGE[size]
+    csv = work / f"er{size}.csv"
+    bip = work / f"er{size}.bip"
+    if not csv.exists():
+        subprocess.run(netctl(["generate", "erdos-renyi", str(csv), "--nodes", str(n),
+                               "--mean-degree", repr(k), "--seed", "1"]),
+                       env={**os.environ, "PYTHONPATH": after}, check=True,
+                       stdout=subprocess.DEVNULL)
+    pairs_csv = work / f"er{size}.pairs.csv"
+    if not bip.exists() or not pairs_csv.exists():
+        # the links alone (no header, no single-name lines): NumPy's reader for the SciPy
+        # yardstick, and igraph's own format, already the bipartite graph of A
+        with open(csv) as src, open(pairs_csv, "w") as out, open(bip, "w") as ig_out:
+            for line in src:
+                u, sep, v = line.strip().partition(",")
+                if sep and u.isdigit():
+                    out.write(f"{u},{v}\n")
+                    ig_out.write(f"{u} {int(v) + n}\n")
+    return csv, bip, n
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    ap.add_argument("--before", required=True, help="checkout to compare against")
+    ap.add_argument("--after", default=str(ROOT))
+    ap.add_argument("--runs", type=int, default=3)
+    ap.add_argument("--sizes", default="bundled,1e6,1e7")
+    ap.add_argument("--work", default="/tmp/netctl-bench")
+    ap.add_argument("--yardsticks", action="store_true")
+    args = ap.parse_args()
+    work = Path(args.work)
+    work.mkdir(parents=True, exist_ok=True)
+    sizes = args.sizes.split(",")
+    print(f"Machine: {platform.machine()}, {os.cpu_count()} cores, Python "
+          f"{platform.python_version()}, load average {os.getloadavg()[0]:.1f} at start; "
+          f"date {time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}\n")
+    print("| command | before wall s | after wall s | before cpu s | after cpu s | ratio wall "
+          "| ratio cpu | after peak MiB | exit before/after |")
+    print("|---|---|---|---|---|---|---|---|---|")
+    if "bundled" in sizes:
+        from tests.golden.cases import CASES
+
+        for case, argv in CASES.items():
+            print(pairs(case, netctl([*argv, "--json"]), args.before, args.after,
+                        str(ROOT), args.runs), flush=True)
+    for size in sizes:
+        if size not in LARGE:
+            continue
+        csv, bip, n = generate(work, size, args.after)
+        for verb in LARGE_VERBS:
+            print(pairs(f"{' '.join(verb)} ER {size}", netctl([verb[0], str(csv), *verb[1:]]),
+                        args.before, args.after, str(work), args.runs), flush=True)
+        if args.yardsticks:
+            ours = netctl(["drivers", str(csv), "--json"])
+            yard = str(ROOT / "benchmarks" / "yardstick_matching.py")
+            print(pairs(f"drivers --json ER {size} vs igraph read + matching", ours,
+                        args.before, args.after, str(work), args.runs,
+                        baseline_argv=[sys.executable, yard, "igraph", str(bip), str(n)]),
+                  flush=True)
+            print(pairs(f"drivers --json ER {size} vs numpy read + scipy matching", ours,
+                        args.before, args.after, str(work), max(1, args.runs - 2),
+                        baseline_argv=[sys.executable, yard, "scipy",
+                                       str(work / f"er{size}.pairs.csv"), str(n)]), flush=True)
+
+
+if __name__ == "__main__":
+    main()
