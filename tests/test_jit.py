@@ -24,6 +24,7 @@ from netctl.graph import (
     reachable_from,
     strongly_connected_components,
 )
+from netctl.graph.components import weak_component_count
 from netctl.structural import controllability, minimum_inputs
 from netctl.system import StructuredSystem
 
@@ -79,6 +80,8 @@ def test_components_and_reach_python_and_compiled_agree_with_references(g):
         got = sorted(sorted(np.flatnonzero(labels == i).tolist()) for i in range(k))
         assert got == want
         assert np.array_equal(reach, reach_ref)
+    for k_weak in _both(lambda: weak_component_count(m.indptr, m.indices)):
+        assert k_weak == nx.number_weakly_connected_components(ref)
 
 
 @settings(max_examples=100, deadline=None)

@@ -7,7 +7,8 @@ public analyses attach names at their result boundary.
 from __future__ import annotations
 
 from concurrent.futures import ThreadPoolExecutor
-from dataclasses import dataclass
+import functools
+from dataclasses import dataclass, field
 
 import numpy as np
 import scipy.sparse as sp
@@ -23,7 +24,6 @@ from netctl.graph.matching import (
     extend_matching,
     index_dtype,
     matching_work,
-    transpose_csr,
     transpose_index,
 )
 
@@ -67,26 +67,62 @@ def _hstack_rows(a_ptr, a_ind, b_ptr, b_ind, n):  # pragma: no cover - compiled
 
 @dataclass(frozen=True)
 class Structure:
-    """Graph facts of ``A`` that several analyses need, computed once."""
+    """Graph facts of ``A`` that several analyses need, computed once.
+
+    The out-adjacency (the transpose of ``A``'s CSR, int32 unless the sizes need int64)
+    is built at once; the strongly connected components only when first asked for
+    (``n_scc``, ``scc``, ``source_scc``): a controllable design never needs them.
+    """
 
     n: int
     out_indptr: np.ndarray  # successors of each state (the transpose of A's CSR)
     out_indices: np.ndarray
-    n_scc: int
-    scc: np.ndarray  # component label of each state (ordered by smallest member)
-    source_scc: np.ndarray  # bool per component: receives no edge from another component
+    in_indptr: np.ndarray = field(repr=False)  # A's own CSR: predecessors of each state
+    in_indices: np.ndarray = field(repr=False)
+
+    @functools.cached_property
+    def _components(self) -> tuple[int, np.ndarray, np.ndarray]:
+        k, labels = strongly_connected_components(self.in_indptr, self.in_indices)
+        return k, labels, condensation_sources(self.in_indptr, self.in_indices, labels, k)
+
+    @property
+    def n_scc(self) -> int:
+        return self._components[0]
+
+    @property
+    def scc(self) -> np.ndarray:
+        """Component label of each state (ordered by smallest member)."""
+        return self._components[1]
+
+    @property
+    def source_scc(self) -> np.ndarray:
+        """Bool per component: receives no edge from another component."""
+        return self._components[2]
+
+    def dual(self) -> Structure:
+        """The structure of ``A``'s transpose from this one, without a new transpose: the
+        same components (they do not depend on orientation); its sources are this
+        graph's sinks."""
+        d = Structure(n=self.n, out_indptr=self.in_indptr, out_indices=self.in_indices,
+                      in_indptr=self.out_indptr, in_indices=self.out_indices)
+        if "_components" in self.__dict__:
+            k, labels, _ = self._components
+            d.__dict__["_components"] = (k, labels, condensation_sources(
+                self.out_indptr, self.out_indices, labels, k))
+        return d
 
 
 def structure_of(A: sp.csr_array) -> Structure:
-    """Out-adjacency, strongly connected components and source components of ``A``."""
+    """Out-adjacency of ``A`` (components on demand, see :class:`Structure`)."""
     n = A.shape[0]
-    indptr = np.ascontiguousarray(A.indptr, np.int64)
-    indices = np.ascontiguousarray(A.indices, np.int64)
-    out_ptr, out_ind = transpose_csr(indptr, indices, np.int64(n))
-    k, labels = strongly_connected_components(indptr, indices)
-    src = condensation_sources(indptr, indices, labels, k)
-    return Structure(n=n, out_indptr=out_ptr, out_indices=out_ind, n_scc=k, scc=labels,
-                     source_scc=src)
+    indptr = np.ascontiguousarray(A.indptr)
+    indices = np.ascontiguousarray(A.indices)
+    if indptr.dtype not in (np.int32, np.int64) or indices.dtype != indptr.dtype:
+        indptr = indptr.astype(np.int64)
+        indices = indices.astype(np.int64)
+    out_ptr, out_ind = transpose_index(indptr, indices, n)
+    return Structure(n=n, out_indptr=out_ptr, out_indices=out_ind, in_indptr=indptr,
+                     in_indices=indices)
 
 
 @dataclass(frozen=True)

@@ -264,19 +264,21 @@ def summarize(system: StructuredSystem) -> NetworkSummary:
     .. [2] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974
        (issue number from memory).
     """
-    from scipy.sparse.csgraph import connected_components
+    from netctl.graph.components import weak_component_count
 
     n = system.n_states
     st = structure_of(system.A)
-    st_dual = structure_of(system.A.T.tocsr())
-    if n:
-        k_weak, _ = connected_components(sp.csr_matrix(system.A), directed=True,
-                                         connection="weak")
-    else:
-        k_weak = 0
+    _ = st.n_scc  # components once: the dual shares them (they do not depend on orientation)
+    st_dual = st.dual()
+    k_weak = weak_component_count(st.in_indptr, st.in_indices)
     comp = completion(system.A, sp.csr_array((n, 0)), st)
-    comp_dual = completion(system.A.T.tocsr(), sp.csr_array((n, 0)), st_dual)
-    deg = np.diff(system.A.indptr) + np.diff(system.A.tocsc().indptr)
+    # A's transpose as the index arrays already built (no scipy transpose, no data copy)
+    AT = sp.csr_array((n, n), dtype=np.int8)
+    AT.indptr, AT.indices = st.out_indptr, st.out_indices
+    AT.data = np.ones(st.out_indices.size, np.int8)
+    AT.has_sorted_indices = True
+    comp_dual = completion(AT, sp.csr_array((n, 0)), st_dual)
+    deg = np.diff(st.in_indptr) + np.diff(st.out_indptr)
     loops = system.A.diagonal() != 0
     isolated = int(np.count_nonzero((deg - 2 * loops) == 0))
     return NetworkSummary(
