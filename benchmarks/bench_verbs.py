@@ -9,8 +9,9 @@ Run by hand (not part of the test suite)::
   bundled networks), with ``--json``;
 * ``1e6``: directed Erdős–Rényi, 10^6 states, 3·10^6 links (``netctl generate
   erdos-renyi --mean-degree 6``); ``1e7``: 3·10^6 states, 10^7 links; on each:
-  ``inspect``, ``drivers --json``, ``sensors``, ``check`` (a minimum dedicated input set
-  chosen by the verb itself), ``roles``;
+  ``inspect``, ``drivers --json``, ``sensors``, ``roles``, and ``check`` twice: with a
+  minimum dedicated input set (controllable) and with inputs on the first 100 states
+  (not controllable: accessibility groups, dilation and Hosoe's dimension);
 * ``--yardsticks`` (large sizes): igraph's reader and bipartite matching, and NumPy's
   reader with SciPy's matching, as whole processes (``yardstick_matching.py``), beside
   ``drivers --json``.
@@ -40,7 +41,7 @@ sys.path.insert(0, str(ROOT))
 __all__: list[str] = []
 
 LARGE = {"1e6": (1_000_000, 6.0), "1e7": (3_000_000, 20.0 / 3.0)}
-LARGE_VERBS = (["inspect"], ["drivers", "--json"], ["sensors"], ["check"], ["roles"])
+LARGE_VERBS = (["inspect"], ["drivers", "--json"], ["sensors"], ["roles"])
 
 
 def run_once(argv: list[str], tree: str | None, cwd: str) -> tuple[float, float, float, int]:
@@ -108,6 +109,20 @@ def generate(work: Path, size: str, after: str) -> tuple[Path, Path, int]:
     return csv, bip, n
 
 
+def check_inputs(work: Path, size: str, csv: Path, after: str) -> dict[str, Path]:
+    """Input files for ``check``: a minimum dedicated set and the first 100 states."""
+    drivers = work / f"er{size}.drivers.txt"
+    few = work / f"er{size}.first100.txt"
+    if not drivers.exists():
+        code = ("import sys; from netctl.io import read; from netctl.structural import "
+                "minimum_inputs; s = read(sys.argv[1]); d = minimum_inputs(s, dedicated=True); "
+                "open(sys.argv[2], 'w').write('\\n'.join(d.names(d.drivers)) + '\\n'); "
+                "open(sys.argv[3], 'w').write('\\n'.join(s.state_names[:100]) + '\\n')")
+        subprocess.run([sys.executable, "-c", code, str(csv), str(drivers), str(few)],
+                       env={**os.environ, "PYTHONPATH": after}, check=True)
+    return {"minimum dedicated set": drivers, "first 100 states": few}
+
+
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     ap.add_argument("--before", required=True, help="checkout to compare against")
@@ -138,6 +153,10 @@ def main() -> None:
         csv, bip, n = generate(work, size, args.after)
         for verb in LARGE_VERBS:
             print(pairs(f"{' '.join(verb)} ER {size}", netctl([verb[0], str(csv), *verb[1:]]),
+                        args.before, args.after, str(work), args.runs), flush=True)
+        for label, names in check_inputs(work, size, csv, args.after).items():
+            print(pairs(f"check --inputs ({label}) ER {size}",
+                        netctl(["check", str(csv), "--inputs", str(names)]),
                         args.before, args.after, str(work), args.runs), flush=True)
         if args.yardsticks:
             ours = netctl(["drivers", str(csv), "--json"])

@@ -199,7 +199,8 @@ _THREAD_MIN_LINKS = 200_000
 
 
 def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
-               prefer: np.ndarray | None = None) -> Completion:
+               prefer: np.ndarray | None = None,
+               start: tuple[np.ndarray, np.ndarray] | None = None) -> Completion:
     """Fewest dedicated inputs to add so that ``(A, [B, new])`` is structurally controllable.
 
     Count = ``m_u + beta - alpha`` (Commault & Dion 2013; Pequito, Kar & Aguiar 2016):
@@ -219,6 +220,10 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     ``prefer`` (boolean per state, e.g. the node table's ``actuator`` column) decides the
     representative of a source component that still needs one: its smallest preferred
     state, else its smallest state. It does not change the count.
+
+    ``start``: ``(row_match, col_match)``, a matching of ``[A B]`` already known to be
+    maximum (e.g. the transpose of ``A``'s for ``A``'s transpose); it is copied and the
+    matching search is skipped.
     """
     n = A.shape[0]
     # index arrays int64 as the system stores them (no copies); every work array of one
@@ -240,7 +245,10 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     else:
         out = transpose_index(a_arrays[0], a_arrays[1], n, dt)
     driven = _rows_with_entries(B)
-    if ab_ind.size >= _THREAD_MIN_LINKS:
+    if start is not None:
+        row_match, col_match = start[0].astype(dt), start[1].astype(dt)  # type: ignore[var-annotated]
+        n_trivial, cptr, members = unreached_sources(a_arrays, out, driven)
+    elif ab_ind.size >= _THREAD_MIN_LINKS:
         with ThreadPoolExecutor(max_workers=1) as pool:
             job = pool.submit(unreached_sources, a_arrays, out, driven)
             row_match, col_match = matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)

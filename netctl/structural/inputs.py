@@ -277,7 +277,12 @@ def summarize(system: StructuredSystem) -> NetworkSummary:
     AT.indptr, AT.indices = st.out_indptr, st.out_indices
     AT.data = np.ones(st.out_indices.size, np.int8)
     AT.has_sorted_indices = True
-    comp_dual = completion(AT, sp.csr_array((n, 0)), st_dual)
+    # a maximum matching of A, transposed, is one of A^T: the dual skips the search
+    rows = np.flatnonzero(comp.row_match >= 0)
+    col_match = np.full(n, -1, np.int64)
+    col_match[comp.row_match[rows]] = rows
+    comp_dual = completion(AT, sp.csr_array((n, 0)), st_dual, start=(col_match, comp.row_match))
+    del rows, col_match
     deg = np.diff(st.in_indptr) + np.diff(st.out_indptr)
     loops = system.A.diagonal() != 0
     isolated = int(np.count_nonzero((deg - 2 * loops) == 0))
