@@ -9,6 +9,10 @@ runs the compiled kernel. A command on a network of a few dozen states therefore
 imports numba, whose import and first cache load cost about 0.4 s of CPU — more than
 the rest of a small run together (``benchmarks/RESULTS.md``, start-up section).
 
+Once numba is loaded in the process, or once the Python bodies have been handed
+:data:`PYTHON_BUDGET` array elements in all (many small calls, as in a sweep, add up to
+one large one), every kernel runs compiled.
+
 Both paths run the same source on the same arrays, so they agree wherever the body
 means the same thing in Python and in numba; the tests in ``tests/test_jit.py`` check
 the matching and component kernels both ways against SciPy and NetworkX. A kernel whose
@@ -27,6 +31,7 @@ from __future__ import annotations
 
 import contextlib
 import os
+import sys
 import threading
 import types
 from collections.abc import Callable, Iterator
@@ -47,6 +52,11 @@ def _threshold_from_env() -> int:
 #: (common practice, no source: measured so that a Python body on this many elements
 #: costs less than numba's import and first cache load, about 0.4 s).
 THRESHOLD: int = _threshold_from_env()
+
+#: Array elements handed to Python bodies in this process after which every kernel runs
+#: compiled (many small calls cost as much as one large one; common practice, no source).
+PYTHON_BUDGET: int = 50 * THRESHOLD
+_python_work = 0
 
 _lock = threading.RLock()
 _force = threading.local()
@@ -85,6 +95,9 @@ class Kernel:
             return False
         if mode == "python":
             return True
+        global _python_work
+        if "numba" in sys.modules:  # loaded already: compiled kernels cost little more
+            return False
         total = 0
         for a in (*args, *kwargs.values()):
             size = getattr(a, "size", None)
@@ -92,6 +105,9 @@ class Kernel:
                 total += size
                 if total >= THRESHOLD:
                     return False
+        if _python_work + total > PYTHON_BUDGET:  # many small calls add up
+            return False
+        _python_work += total
         return True
 
     def __call__(self, *args: Any, **kwargs: Any) -> Any:

@@ -97,16 +97,65 @@ def test_analyses_same_on_both_paths(g):
     assert c.to_dict() == d.to_dict()
 
 
-def test_small_inputs_run_python_large_compiled(monkeypatch):
-    """The threshold decides: below it the Python body runs (no numba dispatcher made)."""
-    def total(a):
-        s = 0.0
-        for i in range(a.size):
-            s += a[i]
-        return s
+_PROBE = """
+import sys
+import numpy as np
+from netctl import _jit
 
-    k = _jit.Kernel(total, {"cache": False}, True)
-    monkeypatch.setattr(_jit, "THRESHOLD", 10)
-    assert k(np.ones(3)) == 3.0 and k.dispatcher is None
-    assert k(np.ones(50)) == 50.0 and k.dispatcher is not None
-    assert len(k.dispatcher.overloads) == 1
+def total(a):
+    s = 0.0
+    for i in range(a.size):
+        s += a[i]
+    return s
+
+k = _jit.Kernel(total, {"cache": False}, True)
+_jit.THRESHOLD, _jit.PYTHON_BUDGET = 10, 30
+out = [float(k(np.ones(3))), k.dispatcher is None, "numba" in sys.modules]
+out += [k(np.ones(50)), k.dispatcher is not None, len(k.dispatcher.overloads)]
+k2 = _jit.Kernel(total, {"cache": False}, True)
+out += [k2(np.ones(3)), k2.dispatcher is not None]  # numba loaded: compiled from now on
+print(out)
+"""
+
+_BUDGET = """
+import sys
+import numpy as np
+from netctl import _jit
+
+def total(a):
+    s = 0.0
+    for i in range(a.size):
+        s += a[i]
+    return s
+
+k = _jit.Kernel(total, {"cache": False}, True)
+_jit.THRESHOLD, _jit.PYTHON_BUDGET = 10, 30
+seen = []
+for _ in range(12):  # 12 calls of 5 elements: the budget of 30 runs out after 6
+    k(np.ones(5))
+    seen.append(k.dispatcher is not None)
+print(seen)
+"""
+
+
+def _run(code):
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                       cwd=root, timeout=300, env={"PYTHONPATH": str(root),
+                                                   "PATH": "/usr/bin:/bin"})
+    assert r.returncode == 0, r.stderr
+    return r.stdout.strip().splitlines()[-1]
+
+
+def test_small_inputs_run_python_large_compiled_then_all_compiled():
+    """Fresh interpreter: below the threshold the Python body runs and numba is not
+    imported; a large input compiles; after that every kernel runs compiled."""
+    assert _run(_PROBE) == "[3.0, True, False, 50.0, True, 1, 3.0, True]"
+
+
+def test_many_small_calls_switch_to_compiled():
+    assert _run(_BUDGET) == str([False] * 6 + [True] * 6)
