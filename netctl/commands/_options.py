@@ -36,6 +36,7 @@ __all__ = [
     "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
     "disturbance_summary", "emit",
     "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
+    "sample_runner", "EXECUTOR_MIN_STATES",
     "safe_write", "system_with_inputs", "terminal_safe", "guard_files",
     "INPUT_OPTIONS", "OUTPUT_OPTIONS",
 ]
@@ -532,3 +533,31 @@ def safe_write(path: str) -> Iterator[IO[str]]:
     except OSError as exc:
         raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
                          "directory exists and is writable.") from None
+
+
+#: States from which numeric samples run on the executor (local processes by default):
+#: below, a sample takes milliseconds and starting workers would cost more (common
+#: practice, no source; dense rank tests at 10^3 states take about a second each).
+EXECUTOR_MIN_STATES = 1000
+
+
+def sample_runner(args: argparse.Namespace, n_states: int, label: str) -> Any:
+    """A ``runner(task, items, shared)`` for independent numeric samples: the shared
+    executor (``--executor``, ``--workers``, ``--scheduler``) with progress on stderr
+    (silent off a terminal and with ``--quiet``); ``None`` (run in this process) for
+    small systems on the default local executor."""
+    executor = getattr(args, "executor", "local")
+    if executor == "local" and n_states < EXECUTOR_MIN_STATES:
+        return None
+
+    def run(task: Any, items: list[Any], shared: Any) -> list[Any]:
+        from netctl.commands.sweep import progress_printer
+        from netctl.ensemble.executor import run_tasks
+
+        return run_tasks(task, items, shared=shared, executor=executor,
+                         workers=getattr(args, "workers", None),
+                         scheduler=getattr(args, "scheduler", None),
+                         progress=progress_printer(f"{label}: samples",
+                                                   quiet=bool(getattr(args, "quiet", False))))
+
+    return run

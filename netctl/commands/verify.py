@@ -9,10 +9,12 @@ from netctl.commands._options import (
     CAUTION,
     NUMERIC_INPUTS_DEFAULT,
     add_inputs,
+    add_executor_options,
     add_samples,
     add_seed,
     add_weights,
     emit,
+    sample_runner,
     system_with_inputs,
 )
 
@@ -33,6 +35,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                    help="rank test: staircase (dense, default up to 3000 states), pbh, "
                         "modular (exact, over a prime field), certificate (sparse, large "
                         "networks; default above 3000 states)")
+    add_executor_options(p)
     p.set_defaults(func=_cmd_verify)
 
 
@@ -46,7 +49,7 @@ def _cmd_verify(args: argparse.Namespace) -> int:
                          "samples are usual.")
     system, where = system_with_inputs(args)
     v = verify(system, weights=args.weights, samples=args.samples, seed=args.seed,
-               method=args.method)
+               method=args.method, runner=sample_runner(args, system.n_states, "verify"))
     d = v.to_dict()
     d["file"] = args.file
     d["inputs_from"] = where

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -22,7 +23,8 @@ from netctl.numeric.realize import PARAMETERIZATIONS, realize
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
-__all__ = ["Verification", "verify", "METHODS", "AUTO_DENSE_LIMIT", "UNCERTAIN_DECADES"]
+__all__ = ["Verification", "verify", "sample_task", "Runner", "METHODS", "AUTO_DENSE_LIMIT",
+           "UNCERTAIN_DECADES"]
 
 METHODS = ("auto", "staircase", "pbh", "modular", "certificate")
 AUTO_DENSE_LIMIT = 3000
@@ -145,8 +147,41 @@ def _agrees(r: RankTest, structural: int, n: int) -> bool:
     return r.dimension == structural
 
 
+#: ``runner(task, items, shared) -> results in item order``: runs ``task(item, seed,
+#: shared)`` for every item (``netctl.ensemble.executor.run_tasks`` fits; the numeric
+#: layer does not import it, the command line passes it in).
+Runner = Callable[[Callable[[Any, Any, Any], Any], list[Any], Any], Sequence[Any]]
+
+
+#: Weights for which the sparse certificate works on the pattern itself (no realization).
+_PATTERN_CERTIFIED = ("independent", "swing")
+
+
+def _rank_test(system: StructuredSystem, real: Any, weights: str, chosen: str,
+               sd: int) -> RankTest:
+    """The rank test of sample seed ``sd`` (``real``: its realization, if made already)."""
+    if real is None and chosen != "modular" and not (
+            chosen == "certificate" and weights in _PATTERN_CERTIFIED):
+        real = realize(system, weights=weights, seed=sd)
+    if chosen == "staircase":
+        return staircase(real)
+    if chosen == "pbh":
+        return pbh(real)
+    if chosen == "modular":
+        return modular(system, weights=weights, seed=sd)
+    return sparse_certificate(system if weights in _PATTERN_CERTIFIED else real, seed=sd,
+                              weights=weights)
+
+
+def sample_task(sd: int, _seed: Any, shared: tuple[StructuredSystem, str, str]) -> RankTest:
+    """One sample of :func:`verify` as an executor task (``shared``: the system, the
+    weights and the rank test; the sample's own seed ``sd`` decides its weights)."""
+    system, weights, chosen = shared
+    return _rank_test(system, None, weights, chosen, int(sd))
+
+
 def verify(system: StructuredSystem, *, weights: str = "independent", samples: int = 3,
-           seed: int = 0, method: str = "auto") -> Verification:
+           seed: int = 0, method: str = "auto", runner: Runner | None = None) -> Verification:
     r"""Confirm the structural verdict numerically on weights drawn under ``weights``.
 
     Parameters
@@ -158,6 +193,9 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
         ``"given"`` are deterministic, so they use one sample.
     samples : int, default 3
         Number of realizations; sample ``k`` uses seed ``seed + k``.
+    runner : callable, optional
+        Runs the samples as independent tasks (see :data:`Runner`; e.g. on local
+        processes or Dask); default: one after another here. Same results either way.
     seed : int, default 0
     method : {"auto", "staircase", "pbh", "modular", "certificate"}
         ``auto``: staircase up to 3000 states, the sparse certificate above.
@@ -223,19 +261,12 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
     structural = controllability(first, dimension=True)
     s_dim = int(structural.controllable_dimension if structural.controllable_dimension
                 is not None else n)
-    results: list[RankTest] = []
-    for k, sd in enumerate(seeds):
-        real = first if k == 0 else realize(system, weights=weights, seed=sd)
-        if chosen == "staircase":
-            results.append(staircase(real))
-        elif chosen == "pbh":
-            results.append(pbh(real))
-        elif chosen == "modular":
-            results.append(modular(system, weights=weights, seed=sd))
-        else:
-            results.append(sparse_certificate(system if weights in ("independent", "swing")
-                                              else real,
-                                              seed=sd, weights=weights))
+    results: list[RankTest]
+    if runner is None or len(seeds) == 1:
+        results = [_rank_test(system, first if k == 0 else None, weights, chosen, sd)
+                   for k, sd in enumerate(seeds)]
+    else:  # one task a sample (the caller's executor: local processes, Dask, ...)
+        results = list(runner(sample_task, list(seeds), (system, weights, chosen)))
     # a rank decision close to rounding is settled by exact arithmetic where possible
     exact: list[int | None] = []
     for k, (sd, r) in enumerate(zip(seeds, results)):
