@@ -70,3 +70,23 @@ def test_verify_progress_on_a_terminal_unless_quiet(tmp_path, monkeypatch, quiet
     argv = ["verify", str(f), "--inputs", "s0", "--samples", "3", "--executor", "serial"]
     assert main(argv + (["--quiet"] if quiet else [])) == 0
     assert ("verify: samples: 3/3" in err.getvalue()) != quiet
+
+
+@pytest.mark.parametrize("quiet", [False, True])
+def test_long_steps_show_progress_on_a_terminal_unless_quiet(tmp_path, monkeypatch, quiet):
+    """A step expected to pass 2 s is announced (here: the expected speeds lowered so a
+    small file counts as long); never with --quiet, never off a terminal."""
+    from netctl.cli import main
+    from netctl.commands import _options
+
+    f = tmp_path / "ring.txt"
+    f.write_text("".join(f"s{i} s{(i + 1) % 12}\n" for i in range(12)))
+    monkeypatch.setattr(_options, "READ_BYTES_PER_SECOND", 1.0)
+    monkeypatch.setattr(_options, "LINKS_PER_SECOND", 1.0)
+    for stderr in (_Terminal(), io.StringIO()):
+        monkeypatch.setattr(sys, "stderr", stderr)
+        monkeypatch.setattr(sys, "stdout", io.StringIO())
+        assert main(["drivers", str(f)] + (["--quiet"] if quiet else [])) == 0
+        text = stderr.getvalue()
+        shown = isinstance(stderr, _Terminal) and not quiet
+        assert ("reading" in text and "minimum inputs ... done" in text) == shown, text

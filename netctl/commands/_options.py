@@ -14,9 +14,10 @@ parsing of one verb's options load nothing a verb does not need.
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from collections.abc import Callable, Iterator, Sequence
-from contextlib import contextmanager
+from contextlib import AbstractContextManager, contextmanager
 from dataclasses import dataclass
 from typing import IO, TYPE_CHECKING, Any
 
@@ -36,7 +37,7 @@ __all__ = [
     "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
     "disturbance_summary", "emit",
     "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
-    "sample_runner", "EXECUTOR_MIN_STATES",
+    "sample_runner", "EXECUTOR_MIN_STATES", "long_step", "analysis_step",
     "safe_write", "system_with_inputs", "terminal_safe", "guard_files",
     "INPUT_OPTIONS", "OUTPUT_OPTIONS",
 ]
@@ -261,8 +262,13 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
 
     orientation = getattr(args, "orientation", None)
     undirected = bool(getattr(args, "undirected", False))
-    system = resolve_model(read(args.file, args.format, orientation=orientation,
-                              undirected=undirected), args.model)
+    try:
+        size = os.path.getsize(args.file)
+    except (OSError, TypeError, ValueError):
+        size = 0
+    with long_step(args, f"reading {args.file}", size / READ_BYTES_PER_SECOND):
+        system = resolve_model(read(args.file, args.format, orientation=orientation,
+                                    undirected=undirected), args.model)
     fmt = args.format or detect_format(args.file)
     args.file_convention = file_convention(fmt, orientation=orientation,
                                            undirected=undirected)
@@ -561,3 +567,30 @@ def sample_runner(args: argparse.Namespace, n_states: int, label: str) -> Any:
                                                    quiet=bool(getattr(args, "quiet", False))))
 
     return run
+
+
+#: Rough speeds of this machine kind (2 cores, 2026; common practice, no source), used only
+#: to decide whether a step is long enough (2 s) to show progress on a terminal.
+READ_BYTES_PER_SECOND = 50e6
+LINKS_PER_SECOND = 2e6
+#: A step expected to take at least this long shows progress (issue 15).
+PROGRESS_MIN_SECONDS = 2.0
+
+
+@contextmanager
+def long_step(args: argparse.Namespace, text: str, expected_seconds: float) -> Iterator[None]:
+    """Announce ``text`` and its duration on stderr when the step is expected to take
+    :data:`PROGRESS_MIN_SECONDS` or more, stderr is a terminal and ``--quiet`` is off."""
+    if expected_seconds < PROGRESS_MIN_SECONDS or progress_enabled(args) is False:
+        yield
+        return
+    from netctl.report.progress import Progress
+
+    with Progress(1).step(text):
+        yield
+
+
+def analysis_step(args: argparse.Namespace, system: StructuredSystem,
+                  text: str) -> AbstractContextManager[None]:
+    """:func:`long_step` for an analysis linear in the links of ``system``."""
+    return long_step(args, text, system.n_links / LINKS_PER_SECOND)

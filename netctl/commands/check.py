@@ -13,6 +13,7 @@ from netctl.commands._options import (
     add_outputs,
     add_terms,
     caution,
+    analysis_step,
     emit,
     load_system,
     names_line,
@@ -55,9 +56,11 @@ def _cmd_check(args: argparse.Namespace) -> int:
         system = system.with_outputs(parse_names(system, args.outputs, what="--outputs"))
     reports = []
     if check_inputs:
-        reports.append(controllability(system, dimension=not args.no_dimension))
+        with analysis_step(args, system, "controllability"):
+            reports.append(controllability(system, dimension=not args.no_dimension))
     if check_outputs:
-        reports.append(observability(system, dimension=not args.no_dimension))
+        with analysis_step(args, system, "observability"):
+            reports.append(observability(system, dimension=not args.no_dimension))
     t = terms(args)
     lines = [f"{args.file}: {t.of(system.n_states)}, model {system.model}"]
     ok = True

@@ -8,6 +8,7 @@ from typing import Any
 
 from netctl.commands._options import (
     SHOWN,
+    analysis_step,
     add_terms,
     caution,
     emit,
@@ -38,7 +39,9 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
     from netctl.structural import minimum_inputs, minimum_sensors
 
     system = load_system(args)
-    design = (minimum_sensors if sensors else minimum_inputs)(system, dedicated=args.dedicated)
+    with analysis_step(args, system, f"minimum {'sensors' if sensors else 'inputs'}"):
+        design = (minimum_sensors if sensors else minimum_inputs)(system,
+                                                                  dedicated=args.dedicated)
 
     def full() -> dict[str, Any]:
         return {**design.to_dict(), "file": args.file}

@@ -5,7 +5,14 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import add_terms, caution, emit, load_system, terms
+from netctl.commands._options import (
+    add_terms,
+    analysis_step,
+    caution,
+    emit,
+    load_system,
+    terms,
+)
 
 __all__ = ["register"]
 
@@ -21,7 +28,8 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
     from netctl.structural import summarize
 
     system = load_system(args)
-    s = summarize(system)
+    with analysis_step(args, system, "components, structural rank, minimum counts"):
+        s = summarize(system)
     d = s.to_dict()
     d["file"] = args.file
     t = terms(args)

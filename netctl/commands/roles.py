@@ -6,7 +6,15 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import add_terms, caution, emit, load_system, safe_write, terms
+from netctl.commands._options import (
+    add_terms,
+    analysis_step,
+    caution,
+    emit,
+    load_system,
+    safe_write,
+    terms,
+)
 
 __all__ = ["register"]
 
@@ -45,8 +53,10 @@ def _cmd_roles(args: argparse.Namespace) -> int:
     from netctl.structural.roles import link_roles, node_roles
 
     system = load_system(args)
-    nr = node_roles(system)
-    lr = link_roles(system)
+    with analysis_step(args, system, "node roles"):
+        nr = node_roles(system)
+    with analysis_step(args, system, "link roles"):
+        lr = link_roles(system)
     d = {"analysis": "roles", "file": args.file, "n_states": nr.n_states,
          "n_links": lr.n_links, "model": system.model, "n_inputs": nr.n_inputs,
          "structural_rank_A": nr.matching_size, "perfect_matching": nr.perfect_matching,
