@@ -40,6 +40,9 @@ sys.path.insert(0, str(ROOT))
 
 __all__: list[str] = []
 
+#: Seconds after which one run is stopped and reported as "> timeout" (``--timeout``).
+TIMEOUT = 600.0
+ONLY: list[str] = []
 LARGE = {"1e6": (1_000_000, 6.0), "1e7": (3_000_000, 20.0 / 3.0)}
 LARGE_VERBS = (["inspect"], ["drivers", "--json"], ["sensors"], ["roles"])
 
@@ -53,10 +56,19 @@ def run_once(argv: list[str], tree: str | None, cwd: str) -> tuple[float, float,
     t0 = time.perf_counter()
     proc = subprocess.Popen(argv, env=env, cwd=cwd, stdout=subprocess.DEVNULL,
                             stderr=subprocess.DEVNULL)
-    _, status, usage = os.wait4(proc.pid, 0)
+    while True:
+        pid, status, usage = os.wait4(proc.pid, os.WNOHANG)
+        if pid:
+            break
+        if time.perf_counter() - t0 > TIMEOUT:
+            proc.kill()
+            _, status, usage = os.wait4(proc.pid, 0)
+            return float("inf"), float("inf"), usage.ru_maxrss / 1024, -9
+        time.sleep(0.02)
     wall = time.perf_counter() - t0
+    proc.returncode = os.waitstatus_to_exitcode(status)
     return (wall, usage.ru_utime + usage.ru_stime, usage.ru_maxrss / 1024,
-            os.waitstatus_to_exitcode(status))
+            proc.returncode)
 
 
 def netctl(args: list[str]) -> list[str]:
@@ -69,7 +81,11 @@ def pairs(label: str, argv: list[str], before: str, after: str, cwd: str, runs: 
     under ``before``)."""
     b_argv = baseline_argv or argv
     b_tree = None if baseline_argv else before
-    run_once(b_argv, b_tree, cwd)  # warm-up, not counted (numba's cache, the page cache)
+    if ONLY and not any(w in label for w in ONLY):
+        return f"| {label} | (skipped) |"
+    warm = run_once(b_argv, b_tree, cwd)  # warm-up, not counted (numba's cache, page cache)
+    if warm[0] == float("inf"):  # the baseline alone passes the timeout: run once
+        runs = 1
     run_once(argv, after, cwd)
     rows = []
     for _ in range(runs):
@@ -83,7 +99,13 @@ def pairs(label: str, argv: list[str], before: str, after: str, cwd: str, runs: 
     rc = med(r[0][1] / r[1][1] for r in rows)
     peak = max(r[0][2] for r in rows)
     codes = f"{rows[0][1][3]}/{rows[0][0][3]}"
-    return (f"| {label} | {bw:.3f} | {aw:.3f} | {bc:.3f} | {ac:.3f} | {rw:.2f} | {rc:.2f} "
+    def f(x: float) -> str:
+        return "> timeout" if x == float("inf") else f"{x:.3f}"
+
+    def r(x: float) -> str:
+        return "—" if x != x or x in (float("inf"), 0.0) else f"{x:.2f}"
+
+    return (f"| {label} | {f(bw)} | {f(aw)} | {f(bc)} | {f(ac)} | {r(rw)} | {r(rc)} "
             f"| {peak:.0f} | {codes} |")
 
 
@@ -124,6 +146,7 @@ def check_inputs(work: Path, size: str, csv: Path, after: str) -> dict[str, Path
 
 
 def main() -> None:
+    global TIMEOUT, ONLY
     ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
     ap.add_argument("--before", required=True, help="checkout to compare against")
     ap.add_argument("--after", default=str(ROOT))
@@ -131,7 +154,11 @@ def main() -> None:
     ap.add_argument("--sizes", default="bundled,1e6,1e7")
     ap.add_argument("--work", default="/tmp/netctl-bench")
     ap.add_argument("--yardsticks", action="store_true")
+    ap.add_argument("--timeout", type=float, default=TIMEOUT, help="seconds a run may take")
+    ap.add_argument("--only", default="", help="comma-separated words a row label must hold")
     args = ap.parse_args()
+    TIMEOUT = args.timeout
+    ONLY = [w for w in args.only.split(",") if w]
     work = Path(args.work)
     work.mkdir(parents=True, exist_ok=True)
     sizes = args.sizes.split(",")
