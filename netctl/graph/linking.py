@@ -33,7 +33,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-from numba import njit
+from netctl._jit import njit
 
 __all__ = ["Linking", "maximum_linking", "minimum_separator", "LinkingGraph",
            "linking_graph", "extension"]

@@ -35,7 +35,7 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
-from numba import njit
+from netctl._jit import njit
 
 from netctl.graph.components import strongly_connected_components
 from netctl.system import Station, StructuredSystem, check_stations

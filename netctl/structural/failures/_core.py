@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
-from numba import njit
+from netctl._jit import njit
 
 from netctl.graph.components import (
     condensation_sources,
