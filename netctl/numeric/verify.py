@@ -23,7 +23,7 @@ from netctl.numeric.realize import PARAMETERIZATIONS, realize
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
-__all__ = ["Verification", "verify", "sample_task", "Runner", "METHODS", "AUTO_DENSE_LIMIT",
+__all__ = ["Verification", "verify", "Runner", "METHODS", "AUTO_DENSE_LIMIT",
            "UNCERTAIN_DECADES"]
 
 METHODS = ("auto", "staircase", "pbh", "modular", "certificate")
@@ -173,7 +173,7 @@ def _rank_test(system: StructuredSystem, real: Any, weights: str, chosen: str,
                               weights=weights)
 
 
-def sample_task(sd: int, _seed: Any, shared: tuple[StructuredSystem, str, str]) -> RankTest:
+def _sample_task(sd: int, _seed: Any, shared: tuple[StructuredSystem, str, str]) -> RankTest:
     """One sample of :func:`verify` as an executor task (``shared``: the system, the
     weights and the rank test; the sample's own seed ``sd`` decides its weights)."""
     system, weights, chosen = shared
@@ -266,7 +266,7 @@ def verify(system: StructuredSystem, *, weights: str = "independent", samples: i
         results = [_rank_test(system, first if k == 0 else None, weights, chosen, sd)
                    for k, sd in enumerate(seeds)]
     else:  # one task a sample (the caller's executor: local processes, Dask, ...)
-        results = list(runner(sample_task, list(seeds), (system, weights, chosen)))
+        results = list(runner(_sample_task, list(seeds), (system, weights, chosen)))
     # a rank decision close to rounding is settled by exact arithmetic where possible
     exact: list[int | None] = []
     for k, (sd, r) in enumerate(zip(seeds, results)):
