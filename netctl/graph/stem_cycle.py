@@ -22,7 +22,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from numba import njit
+from netctl._jit import njit
 
 from netctl.graph.matching import maximum_matching
 

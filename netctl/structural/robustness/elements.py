@@ -20,7 +20,7 @@ from typing import Any
 
 import numpy as np
 import scipy.sparse as sp
-from numba import njit
+from netctl._jit import njit
 
 from netctl.errors import OptionError
 from netctl.graph.matching import maximum_matching
