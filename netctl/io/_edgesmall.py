@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import os
 import re
+from collections.abc import Callable
 from typing import TYPE_CHECKING
 
 import numpy as np
@@ -32,7 +33,7 @@ _CANONICAL_INT = re.compile(rb"-?(0|[1-9][0-9]{0,17})\Z")  # the scanner's integ
 _NOT_MINUS_ZERO = b"-0"
 
 
-def read_small(path: str | os.PathLike[str], header_words: frozenset[str] | set[str],
+def read_small(path: str | os.PathLike[str], is_header: Callable[[list[str]], bool],
                int_name: re.Pattern[str]) -> EdgeArrays | None:
     """The edge arrays of a small, well-formed file, or ``None`` (use the scanner)."""
     from netctl.io.edgelist import EdgeArrays
@@ -73,7 +74,7 @@ def read_small(path: str | os.PathLike[str], header_words: frozenset[str] | set[
             continue
         if not header_seen:
             header_seen = True
-            if nf >= 2 and all(f.decode("utf-8").lower() in header_words for f in fields[:2]):
+            if is_header([f.decode("utf-8") for f in fields]):  # the scanner's own rule
                 if nf > 3:
                     return None
                 continue

@@ -121,6 +121,13 @@ def _line_text(chunk: bytes, start: int, end: int) -> str:
     return chunk[start:end].decode("utf-8", errors="replace").strip()
 
 
+def _is_header(f: list[str]) -> bool:
+    """Whether the first content line's fields are a header row, not a link."""
+    return (len(f) >= 2 and all(x.lower() in _HEADER_WORDS for x in f[:2])
+            and f[0].lower() != f[1].lower()  # 'u,u,...' is a self-loop
+            and (len(f) < 3 or _NUMBER.match(f[2]) is None))  # 'u,v,0.5' a link
+
+
 class _Scan:
     """State of one pass over a file in one name mode."""
 
@@ -342,9 +349,7 @@ class _Scan:
             f = _fields(text)
             if f:
                 self.header_done = True
-                if (len(f) >= 2 and all(x.lower() in _HEADER_WORDS for x in f[:2])
-                        and f[0].lower() != f[1].lower()  # 'u,u,...' is a self-loop
-                        and (len(f) < 3 or _NUMBER.match(f[2]) is None)):  # 'u,v,0.5' a link
+                if _is_header(f):
                     if len(f) > 3:
                         raise file_error(self.path, int(st[1]), f"the header names {len(f)} "
                                          f"columns ({excerpt(text.strip())}); expected 'source "
@@ -546,7 +551,7 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
     (('1', '2', '3', '7'), [0, 1], [1, 2])
     """
     if chunk_bytes == CHUNK_BYTES and max_bytes() >= SMALL_BYTES:
-        small = read_small(path, _HEADER_WORDS, _INT)
+        small = read_small(path, _is_header, _INT)
         if small is not None:
             note_input(path)  # as _open does: an output may not overwrite this file
             return small

@@ -15,7 +15,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from netctl.io import _edgesmall
-from netctl.io.edgelist import _HEADER_WORDS, _INT, read_edge_arrays
+from netctl.io.edgelist import _INT, _is_header, read_edge_arrays
 
 _names = st.one_of(
     st.integers(-30, 30).map(str),
@@ -33,7 +33,8 @@ _line = st.one_of(
     _names,
     st.sampled_from(["", "# a comment", "  ", "a b c d", "source,target", "from to weight",
                      "a\tb # note", "\r", "a;b;;", "x y z w v",
-                     "source target weight extra"]),
+                     "source target weight extra", "u,v,0.0", "u,u,1", "from,to,w",
+                     "source target 0.5", "From To"]),
 )
 
 
@@ -62,7 +63,7 @@ def test_small_path_equals_scanner(tmp_path, lines, end, bom):
     text = "\n".join(lines) + end
     p = tmp_path / "net.txt"
     p.write_bytes((b"\xef\xbb\xbf" if bom else b"") + text.encode("utf-8"))
-    small = _edgesmall.read_small(p, _HEADER_WORDS, _INT)
+    small = _edgesmall.read_small(p, _is_header, _INT)
     try:
         ref = _scanner(p)
     except Exception as exc:  # the scanner reports a problem: the small path must defer
@@ -77,7 +78,7 @@ def test_small_path_equals_scanner(tmp_path, lines, end, bom):
 def test_small_path_taken_on_plain_files(tmp_path, text):
     p = tmp_path / "net.txt"
     p.write_text(text)
-    small = _edgesmall.read_small(p, _HEADER_WORDS, _INT)
+    small = _edgesmall.read_small(p, _is_header, _INT)
     assert small is not None
     _same(small, _scanner(p))
     _same(read_edge_arrays(p), _scanner(p))
@@ -88,13 +89,13 @@ def test_small_path_taken_on_plain_files(tmp_path, text):
 def test_small_path_defers_on_anything_to_report(tmp_path, data):
     p = tmp_path / "net.txt"
     p.write_bytes(data)
-    assert _edgesmall.read_small(p, _HEADER_WORDS, _INT) is None
+    assert _edgesmall.read_small(p, _is_header, _INT) is None
 
 
 def test_large_files_go_to_the_scanner(tmp_path):
     p = tmp_path / "net.txt"
     p.write_text("".join(f"{i} {i + 1}\n" for i in range(_edgesmall.SMALL_BYTES // 4)))
-    assert _edgesmall.read_small(p, _HEADER_WORDS, _INT) is None
+    assert _edgesmall.read_small(p, _is_header, _INT) is None
     e = read_edge_arrays(p)
     assert e.sources.size == _edgesmall.SMALL_BYTES // 4
     assert np.array_equal(e.targets - e.sources, np.ones(e.sources.size, np.int64))
