@@ -68,7 +68,7 @@ def test_output_onto_an_input_is_refused(tmp_path, monkeypatch, capsys, net, arg
 def test_side_file_of_a_description_is_not_written_over_its_input(tmp_path, monkeypatch,
                                                                   capsys):
     """``convert plant.edges.csv plant.toml``: the TOML's side file would be the input."""
-    import netctl.io.system_spec as spec
+    import netctl.io.system_writer as spec
 
     monkeypatch.setattr(spec, "INLINE_LINKS", 2)
     src = tmp_path / "plant.edges.csv"
@@ -83,7 +83,7 @@ def test_side_file_of_a_description_is_not_written_over_its_input(tmp_path, monk
 def test_side_file_and_description_appear_together_or_not_at_all(tmp_path, monkeypatch):
     """An interrupt while the description is written removes the side file too."""
     import netctl.io._common as common
-    import netctl.io.system_spec as spec
+    import netctl.io.system_writer as spec
 
     monkeypatch.setattr(spec, "INLINE_LINKS", 2)
     (tmp_path / "net.csv").write_bytes(NET)

@@ -145,7 +145,7 @@ def test_round_trip(tmp_path, weighted):
 
 
 def test_large_couplings_go_to_a_side_file(tmp_path, monkeypatch):
-    import netctl.io.system_spec as mod
+    import netctl.io.system_writer as mod
 
     monkeypatch.setattr(mod, "INLINE_LINKS", 2)
     p = tmp_path / "big.toml"

@@ -1,0 +1,152 @@
+"""Writing a :class:`~netctl.system.StructuredSystem` as a TOML system description.
+
+The schema is the one :mod:`netctl.io.system_spec` reads (docs/FORMATS.md); what this
+writes, that reads back to the same system (``tests/io/test_system_spec.py`` round-trips
+it). Orientation as everywhere: a coupling ``[u, v]`` means "u influences v".
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import re
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+import scipy.sparse as sp
+
+from netctl.io._common import atomic_group, atomic_write
+from netctl.system import Station, StructuredSystem
+
+__all__ = ["INLINE_LINKS", "write_system"]
+
+#: Model names a description may record (the same list the reader accepts).
+_MODEL_NAMES = ("first-order", "self-loops", "second-order")
+
+_BARE = re.compile(r"[A-Za-z0-9_-]+\Z")
+
+#: Systems with more links than this are written with their couplings in an edge list
+#: beside the TOML file (``<name>.edges.csv``) instead of inline.
+INLINE_LINKS = 20_000
+
+
+def _key(s: str) -> str:
+    return s if _BARE.match(s) else json.dumps(s, ensure_ascii=False)
+
+
+def _val(v: Any) -> str:
+    if isinstance(v, np.generic):
+        v = v.item()
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, int):
+        return str(v)
+    if isinstance(v, float):
+        return repr(v)
+    return json.dumps(str(v), ensure_ascii=False)
+
+
+def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
+                 stations: Sequence[Station] = ()) -> None:
+    """Write ``system`` as a TOML system description (atomically).
+
+    States with their node-table attributes and self-dynamics, couplings (inline, or in
+    an edge list beside the file when there are more than :data:`INLINE_LINKS`), inputs,
+    outputs, and subsystems when the node table has a ``subsystem`` column. Links across
+    subsystems are written as couplings (they read back as state ties). Disturbances are
+    written as nodes with ``disturbance = true`` (and their own attributes) whose
+    couplings are the entries of ``E``; regulated outputs under ``[regulated]``; the
+    given ``stations`` under ``[stations]``.
+    """
+    names = system.state_names
+    n = system.n_states
+    diag = system.A.diagonal()
+    lines = ["# netctl system description (schema: docs/FORMATS.md).",
+             "# A coupling [u, v] means state u influences state v (A[v, u] != 0).",
+             "", "[system]", f"name = {_val(Path(path).stem)}",
+             f"weighted = {_val(system.weighted)}"]
+    if system.model in _MODEL_NAMES:
+        lines.append(f"model = {_val(system.model)}  # the states below are under this model")
+    lines += ["", "[states]"]
+    cols = {k: v for k, v in system.nodes.items() if k != "subsystem"}
+    for i in range(n):
+        parts = []
+        for k, col in cols.items():
+            v = col[i]
+            if v is None or (isinstance(v, (float, np.floating)) and math.isnan(v)):
+                continue
+            parts.append(f"{_key(k)} = {_val(v)}")
+        if diag[i] != 0:
+            parts.append("self = " + (_val(float(diag[i])) if system.weighted else "true"))
+        lines.append(f"{_key(names[i])} = {{ {', '.join(parts)} }}" if parts
+                     else f"{_key(names[i])} = {{}}")
+    from netctl.io._signals import disturbance_links, disturbance_rows
+
+    for dname, row in zip(system.disturbance_names, disturbance_rows(system)):
+        lines.append(f"{_key(dname)} = {{ "
+                     + ", ".join(f"{_key(k)} = {_val(v)}" for k, v in row.items()) + " }")
+    src, dst = system.edges()
+    vals = system.A.data
+    off = src != dst
+    lines += ["", "[couplings]"]
+    side = None
+    if int(off.sum()) > INLINE_LINKS:
+        side = Path(path).with_name(Path(path).stem + ".edges.csv")
+        lines.append(f"file = {_val(side.name)}")
+    else:
+        items = []
+        for a, b, x in zip(src[off].tolist(), dst[off].tolist(), vals[off].tolist()):
+            w = f", {x!r}" if system.weighted else ""
+            items.append(f"  [{_val(names[a])}, {_val(names[b])}{w}],")
+        for a_name, b_name, x in disturbance_links(system):
+            w = f", {x!r}" if system.weighted else ""
+            items.append(f"  [{_val(a_name)}, {_val(b_name)}{w}],")
+        lines += ["links = ["] + items + ["]"]
+    for kind, M, pool in (("inputs", system.B.tocsc(), system.input_names),
+                          ("outputs", system.C.T.tocsc(), system.output_names),
+                          ("regulated", system.H.T.tocsc(), system.regulated_names)):
+        if pool:
+            lines += ["", f"[{kind}]"]
+            for j, nm in enumerate(pool):
+                rows = M.indices[M.indptr[j]:M.indptr[j + 1]]
+                lines.append(f"{_key(nm)} = [{', '.join(_val(names[r]) for r in rows)}]")
+    if "subsystem" in system.nodes:
+        col = system.nodes["subsystem"]
+        groups: dict[str, list[str]] = {}
+        for i in range(n):
+            if col[i] is not None:
+                groups.setdefault(str(col[i]), []).append(names[i])
+        if groups:
+            lines += ["", "[subsystems]"]
+            for sub, members in groups.items():
+                lines.append(f"{_key(sub)} = [{', '.join(_val(s) for s in members)}]")
+    if stations:
+        from netctl.system import check_stations
+
+        check_stations(system, stations)
+        lines += ["", "[stations]"]
+        for st in stations:
+            ins = ", ".join(_val(system.input_names[i]) for i in st.inputs)
+            outs = ", ".join(_val(system.output_names[i]) for i in st.outputs)
+            lines.append(f"{_key(st.name)} = {{ inputs = [{ins}], outputs = [{outs}] }}")
+    with atomic_group():  # the side file and the description appear together or not at all
+        _write_both(system, path, side, lines)
+
+
+def _write_both(system: StructuredSystem, path: str | os.PathLike[str], side: Path | None,
+                lines: list[str]) -> None:
+    n = system.n_states
+    diag = system.A.diagonal()
+    if side is not None:
+        from netctl.io.edgelist import write_edgelist
+
+        edges_only = system._replace(A=system.A - sp.dia_array((diag[None, :], [0]),
+                                                               shape=(n, n)),
+                                     B=None, C=None, input_names=(), output_names=(), nodes={},
+                                     H=None, regulated_names=())
+        write_edgelist(edges_only, side)
+    with atomic_write(path) as fh:
+        fh.write("\n".join(lines) + "\n")
