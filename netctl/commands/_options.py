@@ -557,14 +557,15 @@ def sample_runner(args: argparse.Namespace, n_states: int, label: str) -> Any:
         return None
 
     def run(task: Any, items: list[Any], shared: Any) -> list[Any]:
-        from netctl.commands.sweep import progress_printer
         from netctl.ensemble.executor import run_tasks
+        from netctl.report.progress import count_progress
 
         return run_tasks(task, items, shared=shared, executor=executor,
                          workers=getattr(args, "workers", None),
                          scheduler=getattr(args, "scheduler", None),
-                         progress=progress_printer(f"{label}: samples",
-                                                   quiet=bool(getattr(args, "quiet", False))))
+                         progress=count_progress(
+                             f"{label}: samples",
+                             enabled=False if getattr(args, "quiet", False) else None))
 
     return run
 
