@@ -86,7 +86,8 @@ if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
         minimum_strong_inputs,
         strong_controllability,
     )
-    from netctl.system import Station, StructuredSystem, make_stations
+    from netctl.stations import Station, make_stations
+    from netctl.system import StructuredSystem
 
 #: public name -> the module that defines it. Submodules are imported on first access
 #: (PEP 562), so ``import netctl`` stays fast and loads no SciPy, Numba or Matplotlib.
@@ -110,7 +111,7 @@ _LAZY: dict[str, str] = {
     "OptionError": "netctl.errors",
     "Placement": "netctl.structural.placement",
     "RankTest": "netctl.numeric",
-    "Station": "netctl.system",
+    "Station": "netctl.stations",
     "StrongInputDesign": "netctl.structural.strong",
     "StrongReport": "netctl.structural.strong",
     "StructuredSystem": "netctl.system",
@@ -132,7 +133,7 @@ _LAZY: dict[str, str] = {
     "is_structurally_controllable": "netctl.structural",
     "is_structurally_observable": "netctl.structural",
     "link_roles": "netctl.structural.roles",
-    "make_stations": "netctl.system",
+    "make_stations": "netctl.stations",
     "minimum_inputs": "netctl.structural",
     "minimum_sensors": "netctl.structural",
     "minimum_strong_inputs": "netctl.structural.strong",

@@ -9,13 +9,11 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from netctl._parts import _as_list
 from netctl.errors import InvalidSystemError, UnknownNameError
-
-if TYPE_CHECKING:
-    from netctl.system import StructuredSystem
+from netctl.system import StructuredSystem
 
 __all__ = ["Station", "check_stations", "make_stations"]
 

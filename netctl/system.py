@@ -41,10 +41,8 @@ from netctl._parts import (
 )
 from netctl.errors import InvalidSystemError, UnknownNameError
 from netctl.records import ElementTable
-from netctl.stations import Station, check_stations, make_stations
 
-__all__ = ["StructuredSystem", "Station", "NameList", "NODE_COLUMNS", "canonical_csr",
-           "make_stations", "check_stations"]
+__all__ = ["StructuredSystem", "NameList", "NODE_COLUMNS", "canonical_csr"]
 
 #: Node-table columns netctl itself understands (others are carried along untouched).
 #: ``x``, ``y``: map coordinates (NaN when unknown); ``actuator`` / ``sensor``: whether the

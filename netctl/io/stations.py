@@ -16,7 +16,8 @@ from __future__ import annotations
 import os
 
 from netctl.io.system_spec import _check_keys, _Doc, _read_stations_table, _SECTIONS
-from netctl.system import Station, StructuredSystem, make_stations
+from netctl.stations import Station, make_stations
+from netctl.system import StructuredSystem
 
 __all__ = ["read_stations"]
 

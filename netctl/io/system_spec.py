@@ -29,7 +29,8 @@ from netctl.errors import MissingFileError
 from netctl.io._common import file_error, read_text
 from netctl.io.system_writer import INLINE_LINKS, _MODEL_NAMES, write_system  # noqa: F401
 from netctl.records import TIE_KINDS
-from netctl.system import Station, StructuredSystem, make_stations
+from netctl.stations import Station, make_stations
+from netctl.system import StructuredSystem
 
 if sys.version_info >= (3, 11):
     import tomllib

@@ -19,7 +19,8 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.io._common import atomic_group, atomic_write
-from netctl.system import Station, StructuredSystem
+from netctl.stations import Station
+from netctl.system import StructuredSystem
 
 __all__ = ["INLINE_LINKS", "write_system"]
 
@@ -124,7 +125,7 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
             for sub, members in groups.items():
                 lines.append(f"{_key(sub)} = [{', '.join(_val(s) for s in members)}]")
     if stations:
-        from netctl.system import check_stations
+        from netctl.stations import check_stations
 
         check_stations(system, stations)
         lines += ["", "[stations]"]

@@ -38,7 +38,8 @@ import scipy.sparse as sp
 from netctl._jit import njit
 
 from netctl.graph.components import strongly_connected_components
-from netctl.system import Station, StructuredSystem, check_stations
+from netctl.stations import Station, check_stations
+from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
 __all__ = ["FixedModesReport", "StationChange", "fixed_modes", "MAX_LOOP_STATIONS"]
@@ -411,7 +412,7 @@ def fixed_modes(system: StructuredSystem, stations: Sequence[Station], *,
         ``A`` with its self-loops as modelled (the diagonal counts), ``B``, ``C``.
     stations : sequence of Station
         Inputs and measured outputs of each station (see
-        :func:`netctl.system.make_stations`). Inputs and outputs in no station are used by
+        :func:`netctl.stations.make_stations`). Inputs and outputs in no station are used by
         no controller (listed in the result).
     fixes : bool
         When fixed modes exist, try the smallest changes in this order and re-check each:
@@ -444,7 +445,8 @@ def fixed_modes(system: StructuredSystem, stations: Sequence[Station], *,
 
     Examples
     --------
-    >>> from netctl.system import StructuredSystem, Station
+    >>> from netctl.stations import Station
+    >>> from netctl.system import StructuredSystem
     >>> s = StructuredSystem.from_edges([0], [1], inputs=[0], outputs=[1])
     >>> fixed_modes(s, [Station("one", (0,), (0,))]).has_fixed_modes
     False

@@ -16,7 +16,8 @@ from netctl.structural.controllability import (
     is_structurally_observable,
 )
 from netctl.structural.fixed_modes import fixed_modes
-from netctl.system import Station, StructuredSystem
+from netctl.stations import Station
+from netctl.system import StructuredSystem
 from tests.structural import _geometric as geo
 
 
