@@ -12,7 +12,7 @@ from netctl.graph.components import reachable_from
 from netctl.graph.matching import maximum_matching
 from netctl.structural._engine import stack_AB
 
-__all__ = ["ELEMENTS", "Progress"]
+__all__ = ["ELEMENTS", "Progress", "LossOutcomes"]
 
 ELEMENTS: tuple[str, ...] = ("links", "nodes")
 
@@ -56,3 +56,27 @@ def _matching_size(A: sp.csr_array) -> int:
         return 0
     rm, _ = maximum_matching(A.indptr, A.indices, A.shape[1])
     return int(np.count_nonzero(rm >= 0))
+
+
+class LossOutcomes:
+    """What a sweep of single losses shares, for result classes that hold the fields
+    ``has_design``, ``controllable_before``, ``controllable_after`` (per loss),
+    ``n_inputs`` and ``n_inputs_after`` (per loss)."""
+
+    has_design: bool
+    controllable_before: bool | None
+    controllable_after: np.ndarray
+    n_inputs: int
+    n_inputs_after: np.ndarray
+
+    @property
+    def breaking(self) -> np.ndarray:
+        """Positions of the losses that break a controllable design (sorted)."""
+        if not self.has_design or not self.controllable_before:
+            return np.zeros(0, np.int64)
+        return np.flatnonzero(~self.controllable_after)
+
+    @property
+    def costly(self) -> np.ndarray:
+        """Positions of the losses that raise the minimum number of inputs (sorted)."""
+        return np.flatnonzero(self.n_inputs_after > self.n_inputs)

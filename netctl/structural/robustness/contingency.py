@@ -17,7 +17,7 @@ import scipy.sparse as sp
 from netctl._jit import njit
 
 from netctl.structural._engine import stack_AB
-from netctl.structural.robustness._common import _check_elements, _n_d
+from netctl.structural.robustness._common import LossOutcomes, _check_elements, _n_d
 from netctl.structural.roles import (
     LINK_ROLES,
     NODE_ROLES,
@@ -180,7 +180,7 @@ def _bridges(A: sp.csr_array, r: _Reach) -> np.ndarray:
 
 # ---------------------------------------------------------------------- single losses
 @dataclass(frozen=True)
-class ContingencySweep:
+class ContingencySweep(LossOutcomes):
     """Effect of losing each single link (or state), see :func:`contingency_sweep`.
 
     Attributes
@@ -234,18 +234,6 @@ class ContingencySweep:
     @property
     def n_elements(self) -> int:
         return int(self.sources.size)
-
-    @property
-    def breaking(self) -> np.ndarray:
-        """Positions of the losses that break a controllable design (sorted)."""
-        if not self.has_design or not self.controllable_before:
-            return np.zeros(0, np.int64)
-        return np.flatnonzero(~self.controllable_after)
-
-    @property
-    def costly(self) -> np.ndarray:
-        """Positions of the losses that raise the minimum number of inputs (sorted)."""
-        return np.flatnonzero(self.n_inputs_after > self.n_inputs)
 
     def label(self, k: int) -> str:
         """Readable name of element ``k``: ``'a -> b'`` for a link, the state name."""

@@ -26,7 +26,7 @@ from netctl.errors import OptionError
 from netctl.graph.matching import maximum_matching
 from netctl.records import BRANCH_KINDS, ELEMENT_KINDS, ElementTable
 from netctl.structural._engine import stack_AB
-from netctl.structural.robustness._common import _n_d
+from netctl.structural.robustness._common import LossOutcomes, _n_d
 from netctl.system import StructuredSystem
 
 __all__ = ["ElementEffects", "ElementSweep", "element_effects", "element_sweep",
@@ -367,7 +367,7 @@ class _Islands:
 
 # ---------------------------------------------------------------------- the sweep
 @dataclass(frozen=True)
-class ElementSweep:
+class ElementSweep(LossOutcomes):
     """Each element of a grid lost in turn (see :func:`element_sweep`).
 
     Attributes
@@ -404,18 +404,6 @@ class ElementSweep:
     @property
     def n_elements(self) -> int:
         return len(self.ids)
-
-    @property
-    def breaking(self) -> np.ndarray:
-        """Positions of the losses that break a controllable design."""
-        if not self.has_design or not self.controllable_before:
-            return np.zeros(0, np.int64)
-        return np.flatnonzero(~self.controllable_after)
-
-    @property
-    def costly(self) -> np.ndarray:
-        """Positions of the losses that raise the minimum number of inputs."""
-        return np.flatnonzero(self.n_inputs_after > self.n_inputs)
 
     def counts(self) -> dict[str, int]:
         out = {t: 0 for t in ELEMENT_KINDS}
