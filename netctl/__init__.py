@@ -17,9 +17,12 @@ procedures, applicable codes or the judgement of licensed engineers.
 
 from __future__ import annotations
 
+import functools
 import importlib
+from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
+from netctl import _hooks
 from netctl._meta import __version__
 
 if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
@@ -222,6 +225,45 @@ _SUBMODULES = frozenset({"cli", "commands", "ensemble", "errors", "generate", "g
                          "viz"})
 
 
+#: analyses whose results remember the system they were computed on (for the small map
+#: of the notebook view, :meth:`netctl.tables.ResultTables.with_system`)
+_KEEP_SYSTEM = frozenset({
+    "compare_to_null", "controllability", "decoupling", "energy", "exact_controllability",
+    "fixed_modes", "link_roles", "minimum_inputs", "minimum_sensors", "minimum_strong_inputs",
+    "modal_controllability", "node_roles", "observability", "place_inputs", "place_sensors",
+    "place_target_inputs", "strong_controllability", "summarize", "transfer_rank", "verify"})
+
+
+def _keeping_system(func: Callable[..., Any], name: str) -> Callable[..., Any]:
+    """``func`` whose result remembers the system it was given (first argument)."""
+
+    @functools.wraps(func)
+    def analysis(*args: Any, **kwargs: Any) -> Any:
+        result = func(*args, **kwargs)
+        from netctl.system import StructuredSystem
+        from netctl.tables import ResultTables, attach_system
+
+        system = args[0] if args else kwargs.get("system")
+        if isinstance(system, StructuredSystem) and isinstance(result, ResultTables):
+            attach_system(result, system)
+        return result
+
+    # found again under this name by pickle (the executor sends functions by name)
+    analysis.__module__ = __name__
+    analysis.__qualname__ = name
+    return analysis
+
+
+def _result_map(result: Any, system: Any) -> str:
+    """The notebook map, drawn by viz (lent to the base layer through ``_hooks``)."""
+    from netctl.viz.small_map import result_map_html
+
+    return result_map_html(result, system)
+
+
+_hooks.result_map = _result_map
+
+
 def __getattr__(name: str) -> Any:
     module = _LAZY.get(name)
     if module is None:
@@ -229,6 +271,8 @@ def __getattr__(name: str) -> Any:
             return importlib.import_module(f"netctl.{name}")
         raise AttributeError(f"module 'netctl' has no attribute {name!r}")
     value = getattr(importlib.import_module(module), name)
+    if name in _KEEP_SYSTEM:
+        value = _keeping_system(value, name)
     globals()[name] = value  # later look-ups skip this function
     return value
 

@@ -5,7 +5,16 @@ Every public result dataclass mixes in :class:`ResultTables`, which gives it
 * ``to_frame()`` — a pandas DataFrame (pandas is the optional extra ``frames``, imported
   only here, only when called);
 * ``_repr_html_()`` — the key findings as a small HTML table, which Jupyter shows when the
-  result is the last expression of a cell.
+  result is the last expression of a cell, and, when the result knows the system it was
+  computed on, a small inline SVG map of that system with the result's roles marked;
+* ``with_system(system)`` — remember that system (the public functions of the package
+  root, ``netctl.minimum_inputs(...)`` and the other analyses, do this themselves).
+
+The system is kept as a private attribute, not a dataclass field: it is not in
+``to_dict()``, ``repr()`` or ``==``, and it is dropped when the result is pickled (results
+travel between processes without their networks). The map itself is drawn by
+:mod:`netctl.viz.small_map`, which this base module must not import: the package root
+lends it through :data:`netctl._hooks.result_map`.
 
 A result class only *declares* what its rows are, through three class attributes:
 
@@ -34,10 +43,17 @@ from typing import Any
 
 import numpy as np
 
+from netctl import _hooks
 from netctl._extras import require
 from netctl._meta import CAUTION
 
-__all__ = ["ResultTables", "result_columns", "result_frame", "result_html", "scalar_findings"]
+__all__ = ["ResultTables", "attach_system", "result_columns", "result_frame", "result_html",
+           "scalar_findings", "system_of"]
+
+#: Private attribute names on a result: the system it was computed on, and cached
+#: notebook map positions (both dropped on pickling).
+_SYSTEM_ATTR = "_netctl_system"
+_PRIVATE_ATTRS = (_SYSTEM_ATTR, "_netctl_map_cache")
 
 _MAX_NAMES = 10
 _MAX_ROWS = 30
@@ -63,6 +79,36 @@ class ResultTables:
 
     def _repr_html_(self) -> str:
         return result_html(self)
+
+    def with_system(self, system: Any) -> Any:
+        """Remember ``system`` as the network this result was computed on; returns ``self``.
+
+        Only the notebook view uses it (the small map of :meth:`_repr_html_`); the
+        result's fields, ``to_dict()`` and equality do not change. The analyses of the
+        package root (``netctl.minimum_inputs(system)``...) call this themselves; results
+        from the subpackages (``netctl.structural...``) do not.
+        """
+        attach_system(self, system)
+        return self
+
+    def __getstate__(self) -> dict[str, Any]:
+        # pickles carry the fields only: the system (possibly large) stays behind
+        state = dict(self.__dict__)
+        for key in _PRIVATE_ATTRS:
+            state.pop(key, None)
+        return state
+
+
+def attach_system(result: Any, system: Any) -> None:
+    """Keep ``system`` on ``result`` (a frozen dataclass) as a private, non-field attribute."""
+    object.__setattr__(result, _SYSTEM_ATTR, system)
+    if "_netctl_map_cache" in getattr(result, "__dict__", {}):
+        object.__delattr__(result, "_netctl_map_cache")
+
+
+def system_of(result: Any) -> Any:
+    """The system ``result`` was computed on, or ``None`` when it does not know."""
+    return getattr(result, "__dict__", {}).get(_SYSTEM_ATTR)
 
 
 def _to_dict(result: Any) -> dict[str, Any]:
@@ -185,5 +231,19 @@ def result_html(result: Any) -> str:
     head = html.escape(title) + (f" <small>({html.escape(str(analysis))})</small>"
                                  if analysis else "")
     return (f"<div class=\"netctl-result\"><p><strong>{head}</strong></p>"
-            f"<table>{''.join(rows)}</table>"
+            f"<table>{''.join(rows)}</table>{_map_html(result)}"
             f"<p><small>{html.escape(_CAUTION)}</small></p></div>")
+
+
+def _map_html(result: Any) -> str:
+    """The small map of the result's system (empty without a system or a renderer)."""
+    system = system_of(result)
+    render = _hooks.result_map
+    if system is None or render is None:
+        return ""
+    try:
+        body = render(result, system)
+    except Exception as exc:  # a notebook view must never lose the findings above it
+        body = (f"<p><small>No map: {html.escape(type(exc).__name__)}: "
+                f"{html.escape(_short(str(exc)))}</small></p>")
+    return f"<div class=\"netctl-map\">{body}</div>"

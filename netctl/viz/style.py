@@ -29,6 +29,10 @@ mark                   shape / fill                meaning
 ``role_critical``      circle, dark solid fill     driver in every minimum driver set
 ``role_intermittent``  circle, dotted hatch        driver in some minimum driver sets
 ``role_redundant``     circle, white fill          driver in no minimum driver set
+``sensor``             large downward triangle,    an output reads this state
+                       solid fill
+``suggested_sensor``   downward triangle, hollow,  add a dedicated output here (smallest
+                       dashed outline              fix of observability)
 =====================  ==========================  =========================================
 """
 
@@ -104,6 +108,11 @@ MARKS: dict[str, Mark] = {
                               INK, hatch="....", linewidth=0.8, size=1.2, zorder=3.3),
     "role_redundant": Mark("redundant: a driver in no minimum set", "o", "#FFFFFF", INK,
                            linewidth=0.8, size=1.2, zorder=3.2),
+    # sensors mirror the driver marks: the triangle points down (shape carries it in grey)
+    "sensor": Mark("sensor site: an output reads here", "v", _BLUE, INK,
+                   linewidth=0.8, size=3.2, zorder=6),
+    "suggested_sensor": Mark("add a dedicated output here (smallest fix)", "v", "none", _BLUE,
+                             linestyle="dashed", linewidth=1.6, size=5.0, zorder=6.5),
 }
 
 #: Colours for data series in charts (line charts also vary marker and line style).

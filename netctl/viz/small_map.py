@@ -1,0 +1,329 @@
+"""The small map a result shows in a notebook: inline SVG, no script, capped in size.
+
+:func:`result_map_html` draws the system a result was computed on, with the roles the
+result found (driver nodes or sensor sites of a design, states no input reaches, the
+smallest fix, a dilation, node roles, critical links...) and the system's own inputs,
+outputs and disturbances, in the marks of the static maps (:mod:`netctl.viz.style`:
+same shapes, fills and colours). States sit at the node table's ``x``/``y`` when the
+system has them, else on a quick force-directed layout.
+
+The SVG is self-contained (no script, no external reference, no element ids, so many maps
+can share a page) and well-formed XML; every name is escaped and shown as text (a
+``<title>`` tooltip, and a label on small maps), never as markup. Above
+:data:`SMALL_MAP_STATES` states nothing is drawn: a note gives the counts of each mark
+instead, so showing a result never stalls a notebook.
+"""
+
+from __future__ import annotations
+
+import html
+import re
+import warnings
+from collections.abc import Sequence
+from typing import Any
+
+import numpy as np
+
+from netctl.viz.style import INK, MARKS, PAPER, Mark
+
+__all__ = ["SMALL_MAP_LINKS", "SMALL_MAP_STATES", "result_map_html", "result_marks"]
+
+#: Above this many states the notebook view gives counts instead of a map.
+SMALL_MAP_STATES = 2000
+#: Above this many (undirected) links the map shows the states and marks only.
+SMALL_MAP_LINKS = 8000
+#: Up to this many states, names are written beside the states.
+_LABELS_UP_TO = 40
+#: Width of the drawing area (px); the height follows the aspect of the positions.
+_WIDTH = 440.0
+_PAD = 16.0
+#: Room (px) kept right of the map for the names of small maps.
+_LABEL_ROOM = 90.0
+_CACHE_ATTR = "_netctl_map_cache"
+
+#: Characters XML 1.0 forbids (a hostile name must not make the SVG unparseable).
+_NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
+
+#: Drawing order of point marks (later on top), as in :func:`netctl.viz.draw_map`.
+_POINT_ORDER = ("role_critical", "role_intermittent", "role_redundant", "disturbed",
+                "unreached", "dilation", "fragile", "driver", "sensor", "suggested",
+                "suggested_sensor")
+
+
+def _text(value: object) -> str:
+    """``value`` as XML-safe escaped text (markup characters and quotes escaped)."""
+    return html.escape(_NOT_XML.sub("\ufffd", str(value)), quote=True)
+
+
+def _idx(value: Any) -> np.ndarray | None:
+    if value is None:
+        return None
+    arr = np.asarray(value)
+    if arr.dtype.kind not in "iu" or arr.ndim != 1:
+        return None
+    return np.unique(arr.astype(np.int64))
+
+
+def result_marks(result: Any, system: Any) -> list[tuple[str, str, np.ndarray]]:
+    """What the small map marks: ``(mark, legend text, sorted state indices)`` rows.
+
+    The result's own findings come first; the system's own inputs, outputs and
+    disturbances are shown where the result does not replace them (a minimum design
+    replaces the given inputs; a sensor design the given outputs). Rows with no state
+    are left out.
+    """
+    n = int(system.n_states)
+    kind = str(getattr(result, "kind", "inputs"))
+    sensing = kind in ("sensors", "observability")
+    rows: list[tuple[str, str, np.ndarray]] = []
+
+    def add(key: str, label: str, idx: np.ndarray | None) -> None:
+        if idx is not None and idx.size:
+            rows.append((key, label, idx[(idx >= 0) & (idx < n)]))
+
+    design = _idx(getattr(result, "drivers", None))
+    if design is None:
+        design = _idx(getattr(result, "sites", None))
+    if design is not None:
+        add("sensor" if sensing else "driver",
+            "sensor site of this design" if sensing else "driver node of this design", design)
+    if getattr(result, "_frame_rows", "") == "states" and hasattr(result, "critical"):
+        for key, field in (("role_critical", "critical"), ("role_intermittent", "intermittent"),
+                           ("role_redundant", "redundant")):
+            add(key, MARKS[key].label, _idx(getattr(result, field, None)))
+    what = "output sees" if sensing else "input reaches"
+    add("unreached", f"no {what} this state", _idx(getattr(result, "inaccessible", None)))
+    add("unreached", "not forced by the inputs (strong structural test)",
+        _idx(getattr(result, "unforced", None)))
+    if hasattr(result, "unclosed_states"):
+        add("unreached", "on a fixed mode: no station's loop closes it",
+            _idx(result.unclosed_states))
+    add("suggested_sensor" if sensing else "suggested",
+        MARKS["suggested_sensor" if sensing else "suggested"].label,
+        _idx(getattr(result, "fix", None)))
+    dilation = getattr(result, "dilation", None)
+    if dilation is not None and hasattr(dilation, "states"):
+        add("dilation", MARKS["dilation"].label, _idx(dilation.states))
+    if design is None or sensing:
+        add("driver", "driver node: an input of the system acts here",
+            _idx(system.driven_states()))
+    if design is None or not sensing:
+        add("sensor", "sensor site: an output of the system reads here",
+            _idx(system.measured_states()))
+    if system.n_disturbances:
+        add("disturbed", MARKS["disturbed"].label, _idx(system.disturbed_states()))
+    return rows
+
+
+def _critical_links(result: Any) -> tuple[np.ndarray, np.ndarray] | None:
+    if getattr(result, "_frame_rows", "") != "links":
+        return None
+    crit = _idx(getattr(result, "critical", None))
+    if crit is None or not crit.size:
+        return None
+    return (np.asarray(result.sources, np.int64)[crit],
+            np.asarray(result.targets, np.int64)[crit])
+
+
+def _positions(result: Any, system: Any) -> tuple[np.ndarray, str]:
+    cache = getattr(result, "__dict__", {}).get(_CACHE_ATTR)
+    if cache is not None and cache[0] is system:
+        return cache[1], cache[2]
+    from netctl.viz.layout import node_positions
+
+    with warnings.catch_warnings():  # a preview: say it in the caption, not as a warning
+        warnings.simplefilter("ignore")
+        pos, how = node_positions(system, quick=True)
+    pos = np.asarray(pos, dtype=np.float64).reshape(system.n_states, 2)
+    try:
+        object.__setattr__(result, _CACHE_ATTR, (system, pos, how))
+    except (AttributeError, TypeError):  # a result without __dict__: no cache
+        pass
+    return pos, how
+
+
+def _counts_note(rows: Sequence[tuple[str, str, np.ndarray]], n: int, limit: int) -> str:
+    parts = [f"{_text(label)}: {idx.size:,}" for _, label, idx in rows]
+    listed = "; ".join(parts) if parts else "nothing marked"
+    return (f"<p class=\"netctl-map-note\"><small>Map not drawn: {n:,} states (more than "
+            f"{limit:,}). {listed}. For the full map use netctl.viz.draw_map or the "
+            f"<code>netctl map</code> command.</small></p>")
+
+
+def _shape(mk: Mark, r: float) -> str:
+    """SVG path data of a point mark centred on the origin, radius about ``r``."""
+    m = mk.marker
+    if m == "^":
+        return f"M0 {-r:.1f}L{0.87 * r:.1f} {0.5 * r:.1f}L{-0.87 * r:.1f} {0.5 * r:.1f}Z"
+    if m == "v":
+        return f"M0 {r:.1f}L{0.87 * r:.1f} {-0.5 * r:.1f}L{-0.87 * r:.1f} {-0.5 * r:.1f}Z"
+    if m == "s":
+        h = 0.8 * r
+        cross = f"M{-h:.1f} {-h:.1f}L{h:.1f} {h:.1f}M{h:.1f} {-h:.1f}L{-h:.1f} {h:.1f}"
+        return f"M{-h:.1f} {-h:.1f}H{h:.1f}V{h:.1f}H{-h:.1f}Z" + cross
+    if m == "D":
+        return f"M0 {-r:.1f}L{r:.1f} 0L0 {r:.1f}L{-r:.1f} 0Z"
+    if m == "8":  # octagon
+        pts = [(r * np.cos(a), r * np.sin(a)) for a in np.pi / 8 + np.arange(8) * np.pi / 4]
+        return "M" + "L".join(f"{x:.1f} {y:.1f}" for x, y in pts) + "Z"
+    # circle as two arcs (one path syntax for every mark)
+    return f"M{-r:.1f} 0A{r:.1f} {r:.1f} 0 1 0 {r:.1f} 0A{r:.1f} {r:.1f} 0 1 0 {-r:.1f} 0Z"
+
+
+_DASH = {"dashed": ' stroke-dasharray="3 2"', "dotted": ' stroke-dasharray="1 2"'}
+
+
+def _style(mk: Mark) -> str:
+    return (f'fill="{mk.face}" stroke="{mk.edge}" stroke-width="{max(mk.linewidth, 0.6):.1f}"'
+            + _DASH.get(mk.linestyle, ""))
+
+
+def _radius(key: str, n: int) -> float:
+    """Mark radius (px): flagged marks a fixed size, plain and role circles shrink with n."""
+    if key == "fragile":
+        return 8.5
+    if MARKS[key].size > 2.0:  # drivers, sensors, trouble spots: readable on any map
+        return 6.5
+    base = float(np.clip(60.0 / np.sqrt(max(n, 1)), 1.5, 5.0))
+    return base * (1.3 if key.startswith("role_") else 1.0)
+
+
+def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STATES,
+                    max_links: int = SMALL_MAP_LINKS) -> str:
+    """A small inline SVG map of ``system`` with the roles ``result`` found.
+
+    Parameters
+    ----------
+    result : a result object (any of netctl's result classes)
+    system : StructuredSystem
+        The system the result was computed on.
+    max_states : int
+        Above this many states, a note with the counts of each mark instead of a map.
+    max_links : int
+        Above this many links, the links are not drawn (the states and marks are).
+
+    Returns
+    -------
+    str
+        An ``<svg>`` element (well-formed XML, no script, no ids) followed by nothing
+        else, or a ``<p>`` note.
+
+    Notes
+    -----
+    Marks follow :mod:`netctl.viz.style`. Every mark is one ``<path>`` with class
+    ``mark <name>`` placed by ``transform="translate(x y)"`` and holding a ``<title>``
+    with the state's name; the legend is the ``<g class="legend">`` group. Positions:
+    the node table's coordinates (x to the right, y up), else a force-directed layout of
+    at most 50 iterations (Fruchterman & Reingold 1991), cached on the result. Cost:
+    linear in states and links.
+    """
+    n = int(system.n_states)
+    rows = result_marks(result, system)
+    if n > max_states:
+        return _counts_note(rows, n, max_states)
+    pos, how = _positions(result, system)
+    # fit into the drawing box, y up (as on a map), aspect kept
+    if n:
+        lo, hi = pos.min(axis=0), pos.max(axis=0)
+    else:
+        lo, hi = np.zeros(2), np.ones(2)
+    span = np.where(hi - lo > 0, hi - lo, 0.0)
+    with_labels = 0 < n <= _LABELS_UP_TO
+    inner_w = _WIDTH - 2 * _PAD - (_LABEL_ROOM if with_labels else 0.0)
+    scale = inner_w / float(span.max()) if span.max() > 0 else 0.0
+    inner_h = min(max(float(span[1]) * scale, 2 * _PAD), 1.5 * _WIDTH - 2 * _PAD)
+    if span[1] * scale > inner_h:  # very tall: fit the height instead
+        scale = inner_h / float(span[1])
+    top = _PAD + (_PAD if with_labels else 0.0)  # room for the names above the top states
+    height = inner_h + top + _PAD
+    px = _PAD + (pos[:, 0] - lo[0]) * scale + (inner_w - span[0] * scale) / 2
+    py = top + (hi[1] - pos[:, 1]) * scale + (inner_h - span[1] * scale) / 2
+    names = system.state_names
+    parts: list[str] = []
+
+    # links: one path for all plain links (each unordered pair once, no self-loops)
+    src, dst = system.edges()
+    keep = src != dst
+    a, b = np.minimum(src[keep], dst[keep]), np.maximum(src[keep], dst[keep])
+    pairs = np.unique(a.astype(np.int64) * max(n, 1) + b) if a.size else np.zeros(0, np.int64)
+    links_note = ""
+    if pairs.size > max_links:
+        links_note = f"; {pairs.size:,} links not drawn (more than {max_links:,})"
+    elif pairs.size:
+        u, v = pairs // max(n, 1), pairs % max(n, 1)
+        mk = MARKS["link"]
+        d = "".join(f"M{px[i]:.1f} {py[i]:.1f}L{px[j]:.1f} {py[j]:.1f}"
+                    for i, j in zip(u.tolist(), v.tolist()))
+        alpha = float(np.clip(12.0 / np.sqrt(pairs.size), 0.2, 0.9))
+        parts.append(f'<path class="links" d="{d}" fill="none" stroke="{mk.edge}" '
+                     f'stroke-width="{mk.linewidth:.1f}" stroke-opacity="{alpha:.2f}"/>')
+    crit = _critical_links(result)
+    legend_keys: list[tuple[str, str]] = []
+    if crit is not None and not links_note:
+        mk = MARKS["critical_link"]
+        d = "".join(f"M{px[i]:.1f} {py[i]:.1f}L{px[j]:.1f} {py[j]:.1f}"
+                    for i, j in zip(crit[0].tolist(), crit[1].tolist()) if i != j)
+        parts.append(f'<path class="critical_link" d="{d}" fill="none" stroke="{mk.edge}" '
+                     f'stroke-width="2.5" stroke-opacity="0.8"/>')
+        legend_keys.append(("critical_link", mk.label))
+
+    # plain states, then the marks in the static maps' order
+    r0 = _radius("state", n)
+    st = MARKS["state"]
+    circles = []
+    for i in range(n):
+        circles.append(f'<circle cx="{px[i]:.1f}" cy="{py[i]:.1f}" r="{r0:.1f}">'
+                       f"<title>{_text(names[i])}</title></circle>")
+    parts.append(f'<g class="states" fill="{st.face}" stroke="{st.edge}" '
+                 f'stroke-width="0.6">{"".join(circles)}</g>')
+    by_key: dict[str, list[tuple[str, np.ndarray]]] = {}
+    for key, label, idx in rows:
+        by_key.setdefault(key, []).append((label, idx))
+    marks_svg = []
+    legend_keys += [(key, label) for key, label, _ in rows]
+    for key in _POINT_ORDER:
+        if key not in by_key:
+            continue
+        mk = MARKS[key]
+        shape = _shape(mk, _radius(key, n))
+        for label, idx in by_key[key]:
+            for i in idx.tolist():
+                marks_svg.append(
+                    f'<path class="mark {key}" transform="translate({px[i]:.2f} {py[i]:.2f})" '
+                    f'd="{shape}" {_style(mk)}><title>{_text(names[i])} \u2014 '
+                    f"{_text(label)}</title></path>")
+    parts.append(f'<g class="marks">{"".join(marks_svg)}</g>')
+    if with_labels:
+        labels = [f'<text x="{px[i] + 6:.1f}" y="{py[i] - 6:.1f}">{_text(names[i])}</text>'
+                  for i in range(n)]
+        parts.append(f'<g class="labels" font-size="9" fill="{INK}" '
+                     f'font-family="sans-serif">{"".join(labels)}</g>')
+
+    # legend below the map: one row per marked meaning, then where positions came from
+    rows_svg = []
+    y = height + 6.0
+    for key, label in legend_keys:
+        mk = MARKS[key]
+        if mk.marker is None:
+            sample = (f'<path d="M{_PAD - 6:.1f} {y + 6:.1f}H{_PAD + 6:.1f}" '
+                      f'stroke="{mk.edge}" stroke-width="2.5"/>')
+        else:
+            sample = (f'<path transform="translate({_PAD:.1f} {y + 6:.1f})" '
+                      f'd="{_shape(mk, 5.0)}" {_style(mk)}/>')
+        rows_svg.append(f"{sample}<text x=\"{_PAD + 12:.1f}\" y=\"{y + 9.5:.1f}\">"
+                        f"{_text(label)}</text>")
+        y += 15.0
+    where = {"coordinates": "positions: the node table's x and y",
+             "coordinates+fr": "positions: x and y, missing ones by a quick layout"}.get(
+                 how, "positions: a quick force-directed layout (no coordinates)")
+    rows_svg.append(f'<text x="{_PAD - 6:.1f}" y="{y + 9.5:.1f}" fill="#5C5C5C">'
+                    f"{_text(f'{n:,} states; {where}{links_note}')}</text>")
+    y += 15.0
+    parts.append(f'<g class="legend" font-size="10" fill="{INK}" '
+                 f'font-family="sans-serif">{"".join(rows_svg)}</g>')
+    total_h = y + 4.0
+    return (f'<svg xmlns="http://www.w3.org/2000/svg" class="netctl-small-map" '
+            f'width="{_WIDTH:.0f}" height="{total_h:.0f}" '
+            f'viewBox="0 0 {_WIDTH:.0f} {total_h:.0f}" role="img" '
+            f'style="background:{PAPER}"><title>network map ({n:,} states)</title>'
+            f'{"".join(parts)}</svg>')
