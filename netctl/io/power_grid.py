@@ -4,7 +4,9 @@ Buses become states; lines, two- and three-winding transformers, impedances and 
 bus-bus switches become couplings acting both ways (an electrical connection couples the
 two buses symmetrically), each kept as an element with its pandapower ID. Bus
 coordinates are carried into the node table when present, with the nominal voltage and
-whether generation is connected. Apply the second-order (swing) model
+whether generation is connected. Each in-service load becomes a disturbance acting on its
+bus (``loads=False`` leaves them out), as in :func:`netctl.io.pypsa_grid.from_pypsa`.
+Apply the second-order (swing) model
 (:func:`netctl.models.apply_model`) for grid dynamics.
 
 Files saved by pandapower are read by :mod:`netctl.io.pandapower_json` without
@@ -14,9 +16,11 @@ pandapower and without importing anything the file names.
 from __future__ import annotations
 
 import math
+import warnings
 from typing import Any
 
 import numpy as np
+import scipy.sparse as sp
 
 from netctl.errors import InvalidSystemError
 from netctl.io._grid import build_grid
@@ -34,7 +38,7 @@ def _pp_table(df: Any, name: str) -> PPTable:
                    cols, name=name, line=None)
 
 
-def from_pandapower(net: Any, *, model: str = "given") -> StructuredSystem:
+def from_pandapower(net: Any, *, model: str = "given", loads: bool = True) -> StructuredSystem:
     """Build the bus network of a pandapower ``net`` as a system.
 
     Parameters
@@ -42,6 +46,12 @@ def from_pandapower(net: Any, *, model: str = "given") -> StructuredSystem:
     net : pandapower network object
     model : str
         Recorded as the system's model name.
+    loads : bool, default True
+        Make every in-service load (``net.load``) a disturbance acting on its bus,
+        named ``"load <index>"`` by its pandapower index; its disturbance-table row holds
+        ``bus`` (the pandapower bus index), ``p_mw``, ``q_mvar`` and the bus's ``x``,
+        ``y``. Loads that are out of service, or sit on a bus that is, are left out with
+        a warning that counts them.
 
     Returns
     -------
@@ -78,4 +88,41 @@ def from_pandapower(net: Any, *, model: str = "given") -> StructuredSystem:
             tables[name] = _pp_table(df, name)
     sn = float(getattr(net, "sn_mva", 1.0) or 1.0)
     where = f"pandapower net {getattr(net, 'name', '') or ''}".strip()
-    return build_grid(grid_tables(tables, sn, where), model=model)
+    system = build_grid(grid_tables(tables, sn, where), model=model)
+    load = getattr(net, "load", None)
+    if not loads or load is None or not hasattr(load, "columns") or len(load) == 0:
+        return system
+    return _with_loads(system, load, where)
+
+
+def _with_loads(system: StructuredSystem, load: Any, where: str) -> StructuredSystem:
+    """``system`` with one disturbance per in-service load of the table ``load``."""
+    n_rows = len(load)
+    on = (load["in_service"].to_numpy().astype(bool) if "in_service" in load.columns
+          else np.ones(n_rows, bool))
+    state_of = {int(b): k for k, b in enumerate(np.asarray(system.nodes["bus"]).tolist())}
+    at = np.array([state_of.get(int(b), -1) for b in load["bus"].tolist()], np.int64)
+    keep = on & (at >= 0)
+    off = int(np.count_nonzero(~keep))
+    if off:
+        warnings.warn(f"{where}: {off} load(s) out of service or on a bus out of service "
+                      "left out of the disturbances.", stacklevel=3)
+    idx = np.asarray(load.index.tolist(), dtype=object)[keep]
+    names = [f"load {i}" for i in idx.tolist()]
+    if set(names) & set(system.state_names):  # a bus named like a load: keep names apart
+        names = [f"load:{i}" for i in idx.tolist()]
+    rows = at[keep]
+    E = sp.csr_array((np.ones(rows.size), (rows, np.arange(rows.size))),
+                     shape=(system.n_states, rows.size))
+
+    def col(name: str) -> np.ndarray:
+        if name not in load.columns:
+            return np.full(rows.size, math.nan)
+        return load[name].to_numpy(dtype=float, na_value=math.nan)[keep]
+
+    dnodes: dict[str, np.ndarray] = {"bus": np.asarray(system.nodes["bus"])[rows],
+                                     "p_mw": col("p_mw"), "q_mvar": col("q_mvar")}
+    for c in ("x", "y"):
+        if c in system.nodes:
+            dnodes[c] = np.asarray(system.nodes[c], float)[rows]
+    return system.with_disturbances(E, names=names, nodes=dnodes)

@@ -104,3 +104,49 @@ def test_ieee_cases(case, n_bus, n_branch):
     design = netctl.minimum_inputs(so)
     assert design.n_inputs >= 1
     assert netctl.controllability(design.apply(so)).controllable
+
+
+LOAD_CASES = [  # pandapower.networks cases; the load counts are checked against net.load
+    pytest.param("case14", id="ieee14"),        # IEEE 14-bus: 11 loads (MATPOWER case14, from memory)
+    pytest.param("mv_oberrhein", id="mv-oberrhein"),  # pandapower's bundled MV grid, with geodata
+]
+
+
+@pytest.mark.parametrize("case", LOAD_CASES)
+def test_loads_are_disturbances_on_their_buses(case):
+    # issue 20 item 3: loads -> disturbances, as from_pypsa does; the reference is
+    # pandapower's own load table (bus of each load, its p_mw) and bus names
+    pn = pytest.importorskip("pandapower.networks",
+                             reason="pandapower is not installed (pip install netctl[power])")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        net = getattr(pn, case)()
+        s = from_pandapower(net)
+        bare = from_pandapower(net, loads=False)
+    live = net.load[net.load.in_service.astype(bool)
+                    & net.bus.in_service.reindex(net.load.bus).to_numpy().astype(bool)]
+    if case == "case14":
+        assert len(live) == 11  # IEEE 14-bus case (from memory)
+    assert s.n_disturbances == len(live) and bare.n_disturbances == 0
+    assert s.state_names == bare.state_names and s.n_links == bare.n_links
+    named = net.bus["name"].notna().all() and net.bus["name"].is_unique
+    for idx, row in live.iterrows():
+        bus = int(row["bus"])
+        want = str(net.bus.at[bus, "name"]) if named else str(bus)
+        assert s.disturbed_by(f"load {idx}") == [want]
+    np.testing.assert_array_equal(s.disturbance_nodes["p_mw"], live["p_mw"].to_numpy(float))
+    np.testing.assert_array_equal(s.disturbance_nodes["bus"], live["bus"].to_numpy())
+    assert s.disturbed_states().size == live["bus"].nunique()
+
+
+def test_loads_out_of_service_are_left_out_with_a_warning():
+    pn = pytest.importorskip("pandapower.networks",
+                             reason="pandapower is not installed (pip install netctl[power])")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        net = pn.case14()
+    net.load.loc[net.load.index[3], "in_service"] = False
+    with pytest.warns(UserWarning, match="1 load.s. out of service"):
+        s = from_pandapower(net)
+    assert s.n_disturbances == len(net.load) - 1
+    assert f"load {net.load.index[3]}" not in s.disturbance_names
