@@ -22,7 +22,7 @@ import importlib
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
-from netctl import _hooks
+from netctl._hooks import RENDERERS as _RENDERERS
 from netctl._meta import __version__
 
 if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
@@ -261,7 +261,7 @@ def _result_map(result: Any, system: Any) -> str:
     return result_map_html(result, system)
 
 
-_hooks.result_map = _result_map
+_RENDERERS["result_map"] = _result_map
 
 
 def __getattr__(name: str) -> Any:

@@ -2,9 +2,9 @@
 
 The result mixin (:mod:`netctl.tables`, base layer) shows a small map in notebooks, but
 maps are drawn by :mod:`netctl.viz`, a much higher layer that the base must not import.
-The package root (the api layer, which may import viz) fills the slot below when
-``netctl`` is imported; the mixin calls whatever is there, and shows no map when nothing
-is. Imports nothing, so filling the slot costs ``import netctl`` nothing.
+The package root (the api layer, which may import viz) puts the renderer into
+:data:`RENDERERS` when ``netctl`` is imported; the mixin calls whatever is there and
+shows no map when nothing is. Imports nothing, so this costs ``import netctl`` nothing.
 """
 
 from __future__ import annotations
@@ -12,8 +12,8 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
-__all__ = ["result_map"]
+__all__ = ["RENDERERS"]
 
-#: ``result_map(result, system) -> str``: an HTML fragment (an inline SVG map of
-#: ``system`` with the roles ``result`` found, or a note); ``None`` while unset.
-result_map: Callable[[Any, Any], str] | None = None
+#: ``"result_map"`` -> ``f(result, system) -> str``: an HTML fragment (an inline SVG map
+#: of ``system`` with the roles ``result`` found, or a note); absent while unset.
+RENDERERS: dict[str, Callable[[Any, Any], str]] = {}

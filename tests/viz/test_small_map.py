@@ -16,7 +16,8 @@ import pytest
 
 import netctl
 import netctl.io as nio
-from netctl import StructuredSystem, _hooks
+from netctl import StructuredSystem
+from netctl._hooks import RENDERERS
 from netctl.structural import minimum_inputs as bare_minimum_inputs
 from netctl.viz.small_map import SMALL_MAP_STATES, result_map_html
 
@@ -189,7 +190,7 @@ def test_results_without_a_system_still_render(loop):
 
 
 def test_no_renderer_no_map(loop, monkeypatch):
-    monkeypatch.setattr(_hooks, "result_map", None)
+    monkeypatch.delitem(RENDERERS, "result_map")
     page = netctl.minimum_inputs(loop)._repr_html_()
     assert "<svg" not in page and "netctl-map" not in page and "n_inputs" in page
 
