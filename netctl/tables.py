@@ -14,7 +14,7 @@ The system is kept as a private attribute, not a dataclass field: it is not in
 ``to_dict()``, ``repr()`` or ``==``, and it is dropped when the result is pickled (results
 travel between processes without their networks). The map itself is drawn by
 :mod:`netctl.viz.small_map`, which this base module must not import: the package root
-lends it through :data:`netctl._hooks.result_map`.
+lends it through :data:`netctl._hooks.RENDERERS`.
 
 A result class only *declares* what its rows are, through three class attributes:
 
@@ -43,7 +43,7 @@ from typing import Any
 
 import numpy as np
 
-from netctl import _hooks
+from netctl._hooks import RENDERERS
 from netctl._extras import require
 from netctl._meta import CAUTION
 
@@ -238,7 +238,7 @@ def result_html(result: Any) -> str:
 def _map_html(result: Any) -> str:
     """The small map of the result's system (empty without a system or a renderer)."""
     system = system_of(result)
-    render = _hooks.result_map
+    render = RENDERERS.get("result_map")
     if system is None or render is None:
         return ""
     try:
