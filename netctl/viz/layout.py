@@ -33,8 +33,9 @@ def node_positions(system: StructuredSystem, *, layout: str = "auto",
     seed : int
         Seed of the layout (the same seed gives the same picture).
     quick : bool
-        At most 50 iterations of the force-directed layout (for previews such as the
-        notebook map: about 0.2 s for 2000 states instead of seconds; rougher).
+        At most 50 iterations of the force-directed layout, its grid variant from 1000
+        states (for previews such as the notebook map: well under a second for 2000
+        states instead of seconds; rougher).
 
     Returns
     -------
@@ -225,8 +226,9 @@ def _fr(n: int, src: np.ndarray, dst: np.ndarray, seed: int, *, grid: bool,
     g = igraph.Graph(n=n, edges=np.column_stack([src, dst]).tolist(), directed=False)
     g.simplify()
     niter = 500 if not grid else int(np.clip(3e7 / max(n + g.ecount(), 1), 50, 500))
-    if quick:
+    if quick:  # a preview: few iterations, and the grid variant from 1000 states
         niter = min(niter, 50)
+        grid = grid or n > 1000
     # igraph draws the start positions from its generator: a seeded one makes the
     # layout reproducible (giving start positions instead slows the grid variant badly)
     igraph.set_random_number_generator(random.Random(seed))

@@ -174,8 +174,11 @@ _DASH = {"dashed": ' stroke-dasharray="3 2"', "dotted": ' stroke-dasharray="1 2"
 
 
 def _style(mk: Mark) -> str:
-    return (f'fill="{mk.face}" stroke="{mk.edge}" stroke-width="{max(mk.linewidth, 0.6):.1f}"'
-            + _DASH.get(mk.linestyle, ""))
+    # SVG has no hatch patterns without ids: a dotted hatch becomes a dotted outline (the
+    # cross hatch of unreached states is drawn into their path)
+    dash = ' stroke-dasharray="1 1"' if mk.hatch.startswith(".") else _DASH.get(mk.linestyle, "")
+    width = max(mk.linewidth, 0.6) * (1.5 if mk.hatch.startswith(".") else 1.0)
+    return f'fill="{mk.face}" stroke="{mk.edge}" stroke-width="{width:.1f}"' + dash
 
 
 def _radius(key: str, n: int) -> float:
