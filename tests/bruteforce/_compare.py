@@ -12,6 +12,8 @@ and so on), so a test can swap in deliberately broken versions to see each check
 
 from __future__ import annotations
 
+import collections
+
 import numpy as np
 
 from netctl import (
@@ -29,7 +31,7 @@ from netctl.structural.placement import place_inputs, place_sensors
 from tests.bruteforce._oracle import Oracle
 from tests.bruteforce._systems import RANDOM_START, Case
 
-__all__ = ["CHECKS", "check_case", "confirmed", "netctl_answers", "system_of"]
+__all__ = ["CHECKS", "CORNERS", "check_case", "confirmed", "corners", "netctl_answers", "system_of"]
 
 # name -> published source of the definition the brute force applies
 CHECKS: dict[str, str] = {
@@ -84,14 +86,19 @@ def netctl_answers(c: Case) -> dict:
         "nr": me.node_roles(s),
         "lr": me.link_roles(s),
         "place": me.place_inputs(s, sites=act),
-        "place_budget": me.place_inputs(s, sites=act, budget=float(c.budget)),
-        "place_sensors": me.place_sensors(s, sites=sen),
     }
-    if c.candidates:
+    # the three placement variants take turns (each on a third of the cases): placement
+    # is netctl's costliest call on tiny systems and the volume test has a time limit
+    turn = c.number % 3
+    if turn == 0:
+        out["place_budget"] = me.place_inputs(s, sites=act, budget=float(c.budget))
+    elif turn == 1 and c.candidates:
         cands = Candidates.from_lists([f"k{j}" for j in range(len(c.candidates))],
                                       [list(x) for x in c.candidates],
                                       c.cand_cost.astype(float))
         out["place_cand"] = me.place_inputs(s, candidates=cands)
+    elif turn == 2:
+        out["place_sensors"] = me.place_sensors(s, sites=sen)
     return out
 
 
@@ -239,8 +246,58 @@ def _roles(msgs: dict, nr, lr, o: Oracle) -> None:
             f"(u, v): (netctl (role, N_D after loss), brute force): {diff}")
 
 
-def check_case(c: Case, ans: dict, draw: int = 0) -> dict[str, list[str]]:
-    """Disagreements of netctl's answers ``ans`` with the references at one random draw."""
+def corners(c: Case, o: Oracle, free: Oracle) -> list[str]:
+    """The situations this case exercises (to show the random cases reach them all)."""
+    from tests.bruteforce import _field as F
+
+    n = c.n
+    R = [i for i in range(n) if i not in set(o.inaccessible)]
+    cols = R + list(range(n, n + c.B.shape[1]))
+    term_rank_acc = int(F.rank(o.ABw[np.ix_(R, cols)].copy())) if R else 0
+    out = {
+        "controllable": o.controllable,
+        "not controllable": not o.controllable,
+        "inaccessible states": bool(o.inaccessible),
+        "dilation": o.structural_rank < n,
+        "dilation, every state accessible": o.structural_rank < n and not o.inaccessible,
+        "Hosoe dimension below the accessible term rank": o.dimension < term_rank_acc,
+        "perfect matching": free.rank_A == n,
+        "perfect matching, several source components": (
+            free.rank_A == n and len(free.unreached_sources) >= 2),
+        "dedicated inputs > shared inputs": free.n_dedicated > free.n_shared,
+        "intermittent states": 1 in free.node_roles,
+        "ordinary links": any(r == 1 for r, _ in free.link_roles.values()),
+        "critical links": any(r == 0 for r, _ in free.link_roles.values()),
+        "self-loops": bool(np.diag(c.A).any()),
+        "isolated states": bool((~c.A.any(axis=0) & ~c.A.any(axis=1)).any()),
+        "existing inputs": c.B.shape[1] > 0,
+        "shared existing input": bool((c.B.sum(axis=0) >= 2).any()),
+        "candidates": bool(c.candidates) and c.number % 3 == 1,
+    }
+    _, _, costs, ranks = o.site_costs(c.act_eligible, c.act_cost)
+    out["infeasible sites"] = not (ranks == n).any()
+    budget = c.number % 3 == 0  # the turn of the budget (see netctl_answers)
+    out["budget too small"] = budget and not (ranks[costs <= c.budget] == n).any()
+    out["budget enough"] = budget and bool((ranks[costs <= c.budget] == n).any())
+    assert tuple(out) == CORNERS
+    return [k for k, v in out.items() if v]
+
+
+#: every situation :func:`corners` tells apart, in its order
+CORNERS: tuple[str, ...] = (
+    "controllable", "not controllable", "inaccessible states", "dilation",
+    "dilation, every state accessible", "Hosoe dimension below the accessible term rank",
+    "perfect matching", "perfect matching, several source components",
+    "dedicated inputs > shared inputs", "intermittent states", "ordinary links",
+    "critical links", "self-loops", "isolated states", "existing inputs",
+    "shared existing input", "candidates", "infeasible sites", "budget too small",
+    "budget enough")
+
+
+def check_case(c: Case, ans: dict, draw: int = 0,
+               seen: collections.Counter | None = None) -> dict[str, list[str]]:
+    """Disagreements of netctl's answers ``ans`` with the references at one random draw;
+    the situations the case exercises are counted into ``seen`` when given."""
     rng = np.random.default_rng([RANDOM_START, c.number, 1_000_003 + draw])
     o = Oracle(c.A, c.B, rng)
     od = Oracle(c.A.T.copy(), c.C.T.copy(), rng)        # the dual: sensors
@@ -261,18 +318,23 @@ def check_case(c: Case, ans: dict, draw: int = 0) -> dict[str, list[str]]:
         msgs.setdefault("summary", []).append(f"netctl {got}, brute force {want}")
     _roles(msgs, ans["nr"], ans["lr"], free)
     _placement(msgs, "placement.sites", ans["place"], o, c.act_eligible, c.act_cost, None)
-    _placement(msgs, "placement.budget", ans["place_budget"], o, c.act_eligible, c.act_cost,
-               float(c.budget))
-    _placement(msgs, "placement.sensors", ans["place_sensors"], od, c.sen_eligible,
-               c.sen_cost, None)
+    if "place_budget" in ans:
+        _placement(msgs, "placement.budget", ans["place_budget"], o, c.act_eligible,
+                   c.act_cost, float(c.budget))
+    if "place_sensors" in ans:
+        _placement(msgs, "placement.sensors", ans["place_sensors"], od, c.sen_eligible,
+                   c.sen_cost, None)
     if "place_cand" in ans:
         _candidates(msgs, ans["place_cand"], o, c)
+    if seen is not None:
+        seen.update(corners(c, o, free))
     return msgs
 
 
-def confirmed(c: Case, ans: dict) -> dict[str, list[str]]:
+def confirmed(c: Case, ans: dict,
+              seen: collections.Counter | None = None) -> dict[str, list[str]]:
     """Disagreements that persist on three independent draws of the references."""
-    msgs = check_case(c, ans, 0)
+    msgs = check_case(c, ans, 0, seen)
     for draw in (1, 2):
         if not msgs:
             break

@@ -27,7 +27,7 @@ __all__ = ["P", "rank", "krylov", "masked_ranks", "random_weights", "unit_blocks
 P = 2147483647  # 2^31 - 1, prime (a Mersenne prime; Euler 1772, from memory)
 
 
-@numba.njit(cache=False, nogil=True)
+@numba.njit(cache=True, nogil=True)
 def _inverse(a: int) -> int:  # pragma: no cover - compiled
     result = 1
     base = a % P
@@ -40,7 +40,7 @@ def _inverse(a: int) -> int:  # pragma: no cover - compiled
     return result
 
 
-@numba.njit(cache=False, nogil=True)
+@numba.njit(cache=True, nogil=True)
 def _rank_inplace(M: np.ndarray) -> int:  # pragma: no cover - compiled
     """Rank of M (entries in [0, P)) by Gaussian elimination; M is destroyed."""
     rows, cols = M.shape
@@ -70,13 +70,13 @@ def _rank_inplace(M: np.ndarray) -> int:  # pragma: no cover - compiled
     return r
 
 
-@numba.njit(cache=False, nogil=True)
+@numba.njit(cache=True, nogil=True)
 def rank(M: np.ndarray) -> int:  # pragma: no cover - compiled
     """Rank over F_P of an int64 matrix with entries in [0, P) (M is not changed)."""
     return _rank_inplace(M.copy())
 
 
-@numba.njit(cache=False, nogil=True)
+@numba.njit(cache=True, nogil=True)
 def krylov(A: np.ndarray, B: np.ndarray) -> np.ndarray:  # pragma: no cover - compiled
     """``[B, AB, ..., A^{n-1} B]`` over F_P (Kalman's controllability matrix)."""
     n = A.shape[0]
@@ -97,7 +97,7 @@ def krylov(A: np.ndarray, B: np.ndarray) -> np.ndarray:  # pragma: no cover - co
     return K
 
 
-@numba.njit(cache=False, nogil=True)
+@numba.njit(cache=True, nogil=True)
 def masked_ranks(base: np.ndarray, blocks: np.ndarray,
                  masks: np.ndarray) -> np.ndarray:  # pragma: no cover - compiled
     """Rank of ``[base, blocks[i] for i in mask]`` for every bit mask in ``masks``.

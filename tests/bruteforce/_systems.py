@@ -6,7 +6,8 @@ ones of the slow suite's.
 
 The mix is meant to reach the corners where structural answers change: directed and
 undirected (symmetric) patterns, sparse and dense, no / some / all self-loops, isolated
-states, existing inputs and outputs that act on one or several states, actuator and
+states, existing inputs and outputs that act on one or several states (in some cases also one
+input in every source component, so that dilations alone decide), actuator and
 sensor sites with some states forbidden and integer costs (zero included), candidate
 actuators acting on several states, and a budget.
 
@@ -17,6 +18,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import networkx as nx
 import numpy as np
 
 __all__ = ["Case", "RANDOM_START", "case", "N_MAX"]
@@ -58,9 +60,9 @@ class Case:
         rows = [np.flatnonzero(self.C[r]).tolist() for r in range(self.C.shape[0])]
         return (f"case {self.number}: n={self.n}; links {links}; inputs act on {cols}; "
                 f"outputs read {rows}; actuator sites "
-                f"{ {i: int(self.act_cost[i]) for i in np.flatnonzero(self.act_eligible)} }; "
+                f"{ {int(i): int(self.act_cost[i]) for i in np.flatnonzero(self.act_eligible)} }; "
                 f"sensor sites "
-                f"{ {i: int(self.sen_cost[i]) for i in np.flatnonzero(self.sen_eligible)} }; "
+                f"{ {int(i): int(self.sen_cost[i]) for i in np.flatnonzero(self.sen_eligible)} }; "
                 f"candidates {list(self.candidates)} costs {self.cand_cost.tolist()}; "
                 f"budget {self.budget}")
 
@@ -69,9 +71,25 @@ def _columns(rng: np.random.Generator, n: int, k: int) -> np.ndarray:
     """n x k bool: each column acts on 1 state (often) or on 2-3 states."""
     M = np.zeros((n, k), bool)
     for j in range(k):
-        size = 1 if n == 1 or rng.random() < 0.6 else int(rng.integers(2, min(3, n) + 1))
+        size = 1 if n == 1 or rng.random() < 0.5 else int(rng.integers(2, min(3, n) + 1))
         M[rng.choice(n, size=size, replace=False), j] = True
     return M
+
+
+def _at_sources(rng: np.random.Generator, A: np.ndarray) -> np.ndarray:
+    """One dedicated input on a random state of every source strongly connected component
+    (networkx condensation: a component no link enters from outside)."""
+    n = A.shape[0]
+    g = nx.DiGraph()
+    g.add_nodes_from(range(n))
+    v, u = np.nonzero(A)
+    g.add_edges_from(zip(u.tolist(), v.tolist()))
+    cond = nx.condensation(g)
+    picks = [int(rng.choice(sorted(cond.nodes[c]["members"])))
+             for c in sorted(cond.nodes) if cond.in_degree(c) == 0]
+    B = np.zeros((n, len(picks)), bool)
+    B[picks, np.arange(len(picks))] = True
+    return B
 
 
 def case(number: int) -> Case:
@@ -92,6 +110,8 @@ def case(number: int) -> Case:
         A[:, iso] = False
         A[iso, iso] = keep[iso] & (rng.random(iso.size) < 0.5)
     B = _columns(rng, n, int(rng.choice(4, p=[0.4, 0.3, 0.2, 0.1])))
+    if rng.random() < 0.3:                       # inputs reach everything: only dilations
+        B = np.hstack([B, _at_sources(rng, A)])  # (or nothing) can stop control
     C = _columns(rng, n, int(rng.choice(4, p=[0.4, 0.3, 0.2, 0.1]))).T
     act_eligible = rng.random(n) < float(rng.choice([0.5, 0.8, 1.0]))
     sen_eligible = rng.random(n) < float(rng.choice([0.5, 0.8, 1.0]))
