@@ -61,8 +61,14 @@ CHECKS: dict[str, str] = {
 
 
 def system_of(c: Case) -> StructuredSystem:
+    """The case as a netctl system; every other case also carries a node table saying
+    where actuators and sensors may sit (netctl then prefers those states where a source
+    component needs a representative: the counts must not change)."""
     u, v = c.edges()
-    s = StructuredSystem.from_edges(u, v, c.n)
+    nodes = ({"actuator": c.act_eligible, "sensor": c.sen_eligible}
+             if c.number % 2 == 0 and c.act_eligible.any() and c.sen_eligible.any()
+             else None)
+    s = StructuredSystem.from_edges(u, v, c.n, nodes=nodes)
     return s.with_inputs(c.B.astype(float)).with_outputs(c.C.astype(float))
 
 
@@ -162,6 +168,12 @@ def _design(msgs: dict, key: str, des, o: Oracle, dedicated: bool) -> None:
     if not dedicated and des.n_inputs != max(n - o.rank_A, 1):
         msgs.setdefault(key, []).append(f"netctl {des.n_inputs}, max(n - rank A, 1) = "
                                         f"{max(n - o.rank_A, 1)}")
+    # the unmatched states of the chosen maximum matching form a minimum driver set
+    basis, sets = o.driver_sets
+    um = frozenset(des.unmatched.tolist())
+    if (um not in sets) if basis == "matching" else bool(um):
+        msgs.setdefault(key, []).append(f"unmatched {sorted(um)} is not a minimum driver "
+                                        f"set {sorted(sorted(S) for S in sets)}")
     p, w = des.wiring_indptr, des.wiring_states
     Bd = np.zeros((n, p.size - 1), bool)
     for k in range(p.size - 1):

@@ -170,6 +170,12 @@ def _dedicated_is_unmatched(r, a, k):
                                wiring_indptr=np.arange(u.size + 1), wiring_states=u)
 
 
+def _unmatched_are_drivers(r, a, k):
+    # reports the driven states (with the source components' representatives) as the
+    # unmatched states of the matching
+    return r if k.get("dedicated") else dataclasses.replace(r, unmatched=r.drivers)
+
+
 def _wiring_drops_last(r, a, k):
     if r.wiring_states.size < 2 or k.get("dedicated"):
         return r
@@ -260,6 +266,8 @@ BROKEN = [  # (check that must catch it, analysis to break, how)
                  id="driver-count-without-max-one"),
     pytest.param("inputs.dedicated", "minimum_inputs", _dedicated_is_unmatched,
                  id="dedicated-forgets-source-components"),
+    pytest.param("inputs.shared", "minimum_inputs", _unmatched_are_drivers,
+                 id="unmatched-are-drivers"),
     pytest.param("inputs.wiring", "minimum_inputs", _wiring_drops_last,
                  id="wiring-drops-a-state"),
     pytest.param("node_roles", "node_roles", _intermittent_as_redundant,
