@@ -28,8 +28,8 @@ placement.*            Pequito, Kar & Aguiar 2016 Automatica 68:384-391: every s
 
 The fast test (``FAST`` cases) runs with the normal suite; the volume test (``VOLUME``
 cases, issue 27 item 8: >= 10^4 systems, 0 disagreements) is marked ``slow``; measured
-2026-12-04 on the shared 2-core machine under a load average of about 11: 102 s of CPU,
-6 min 36 s wall clock. Each check is also shown to fail on deliberately broken code
+2026-12-04 on the shared 2-core machine: 103 s of CPU; 8 min 57 s wall clock under a
+load average of about 16 (6 min 36 s under about 11). Each check is also shown to fail on deliberately broken code
 (``BROKEN``, ``BROKEN_WRAPPED`` and a broken alternating search inside the engine).
 """
 
