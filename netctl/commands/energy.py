@@ -46,7 +46,8 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     import numpy as np
 
     from netctl.errors import OptionError
-    from netctl.numeric.energy import energy, select_actuators
+    from netctl.numeric.energy import energy
+    from netctl.numeric.selection import select_actuators
     from netctl.numeric.realize import PARAMETERIZATIONS, realize
 
     if args.horizon is not None and not args.horizon > 0:
@@ -85,7 +86,8 @@ def _cmd_energy(args: argparse.Namespace) -> int:
                      f"  with {pr.digits} digits: smallest eigenvalue below {pr.bound}, not "
                      f"resolved; rerun with --precision {pr.digits_needed}")
     lines.append(("  !! " if r.verdict.failing else "  ") + r.verdict.line())
-    from netctl.numeric.energy import AVERAGE_NOTE, node_controllability
+    from netctl.numeric.energy import AVERAGE_NOTE
+    from netctl.numeric.node_metrics import node_controllability
 
     d["node_controllability"] = node_controllability(real).to_dict()
     if args.top and r.n_states:

@@ -6,26 +6,15 @@ pattern; the analyses here use *numbers* -- the file's weights or weights sample
 a stated parameterization (:data:`PARAMETERIZATIONS`) -- and always say which.
 """
 
-from netctl.numeric.energy import (
-    ActuatorSelection,
-    EnergyReport,
-    NodeControllability,
-    energy,
-    gramian,
-    node_controllability,
-    select_actuators,
-)
+from netctl.numeric.certificate import sparse_certificate
+from netctl.numeric.energy import EnergyReport, energy, gramian
 from netctl.numeric.exact import ExactControllability, Multiplicity, exact_controllability
 from netctl.numeric.modal import ModalReport, ModeReach, modal_controllability
-from netctl.numeric.rank import (
-    LostMode,
-    RankTest,
-    modular,
-    pbh,
-    sparse_certificate,
-    staircase,
-)
+from netctl.numeric.node_metrics import NodeControllability, node_controllability
+from netctl.numeric.prime_field import modular
+from netctl.numeric.rank import LostMode, RankTest, pbh, staircase
 from netctl.numeric.realize import PARAMETERIZATIONS, realize
+from netctl.numeric.selection import ActuatorSelection, select_actuators
 from netctl.numeric.verify import Verification, verify
 
 __all__ = [

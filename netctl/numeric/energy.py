@@ -1,4 +1,8 @@
-"""Control energy: controllability Gramian, energy metrics, greedy actuator selection."""
+"""Control energy: the controllability Gramian and its energy metrics, with the verdict.
+
+Greedy actuator choice is in :mod:`netctl.numeric.selection`, per-state discrete-time
+metrics in :mod:`netctl.numeric.node_metrics`.
+"""
 
 from __future__ import annotations
 
@@ -6,12 +10,14 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.linalg as la
 
 from netctl.errors import OptionError
 from netctl.numeric.gramian import (
     SmallestEigenvalue,
+    _check_finite,
+    _choose_horizon,
     factor_eigenvalues,
+    _gramian_vanloan,
     gramian_factor,
     max_precision,
     smallest_eigenvalue_mp,
@@ -21,10 +27,8 @@ from netctl.numeric.verdict import Verdict, judge
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
-__all__ = ["EnergyReport", "ActuatorSelection", "NodeControllability", "gramian", "energy",
-           "select_actuators", "node_controllability", "SELECT_LIMIT", "PRECISION_STATES"]
+__all__ = ["EnergyReport", "gramian", "energy", "AVERAGE_NOTE", "PRECISION_STATES"]
 
-SELECT_LIMIT = 400
 #: most states for --precision (mpmath)
 PRECISION_STATES = 200
 _EPS = float(np.finfo(float).eps)
@@ -53,62 +57,7 @@ def gramian(A: np.ndarray, B: np.ndarray, horizon: float | None = None) -> np.nd
     return L @ L.T
 
 
-def _gramian_vanloan(A: np.ndarray, B: np.ndarray, horizon: float | None = None
-                     ) -> np.ndarray:
-    """Unfactored Gramian (Bartels-Stewart or Van Loan [1]_): fast, for greedy gains.
 
-    References
-    ----------
-    .. [1] C. F. Van Loan, IEEE TAC 23(3):395-404, 1978. doi:10.1109/TAC.1978.1101743
-    """
-    A = np.asarray(A, dtype=float)
-    B = np.asarray(B, dtype=float)
-    n = A.shape[0]
-    Q = B @ B.T
-    if horizon is None:
-        W = la.solve_continuous_lyapunov(A, -Q)
-    else:
-        M = np.zeros((2 * n, 2 * n))
-        M[:n, :n] = -A
-        M[:n, n:] = Q
-        M[n:, n:] = A.T
-        F = la.expm(M * float(horizon))
-        W = F[n:, n:].T @ F[:n, n:]
-    return (W + W.T) / 2
-
-
-def _is_hurwitz(A: np.ndarray) -> bool:
-    if A.shape[0] == 0:
-        return True
-    return bool(np.max(la.eigvals(A).real) < -1e-9 * max(1.0, float(np.linalg.norm(A))))
-
-
-def _choose_horizon(A: np.ndarray, horizon: float | None) -> tuple[float | None, str]:
-    if horizon is not None and horizon == np.inf:
-        if not _is_hurwitz(A):
-            lam = la.eigvals(A)
-            worst = lam[int(np.argmax(lam.real))]
-            what = ("singular (an eigenvalue is 0)" if np.min(np.abs(lam)) <=
-                    1e-12 * max(1.0, float(np.linalg.norm(A))) else
-                    f"not Hurwitz (eigenvalue {complex(worst):.4g})")
-            raise OptionError(f"the infinite-horizon Gramian needs a stable A, but A is "
-                              f"{what}; give a finite horizon (e.g. --horizon 1).")
-        return None, "infinite horizon (A is Hurwitz: Lyapunov equation)"
-    if horizon is not None:
-        if not (np.isfinite(horizon) and horizon > 0):
-            raise OptionError(f"horizon must be a positive number of time units, found "
-                              f"{horizon!r}; omit it for the infinite-horizon Gramian of a "
-                              "stable system.")
-        return float(horizon), f"finite horizon T = {horizon:g}"
-    if _is_hurwitz(A):
-        return None, "infinite horizon (A is Hurwitz: Lyapunov equation)"
-    return 1.0, "finite horizon T = 1 (A is not Hurwitz, so the infinite-horizon Gramian " \
-                "does not exist)"
-
-
-def _logdet(W: np.ndarray) -> float:
-    sign, ld = np.linalg.slogdet(W)
-    return float(ld) if sign > 0 else -np.inf
 
 
 @dataclass(frozen=True)
@@ -227,16 +176,6 @@ AVERAGE_NOTE = ("a ranking of single states by tr W (how much of the state space
                 "there reaches cheaply); it does not imply controllability")
 
 
-def _check_finite(A: np.ndarray, B: np.ndarray, names: tuple[str, ...]) -> None:
-    for M, what in ((A, "A"), (B, "B")):
-        if M.size and not np.all(np.isfinite(M)):
-            i, j = np.argwhere(~np.isfinite(M))[0]
-            where = (f"{names[i]} <- {names[j]}" if what == "A" else f"{names[i]}, input {j}")
-            raise OptionError(f"{what}[{where}] is {M[i, j]!r}; Gramians need finite "
-                              "weights. Fix that weight in the file, or choose sampled "
-                              "--weights.")
-
-
 def energy(system: StructuredSystem, *, horizon: float | None = None,
            precision: int | None = None) -> EnergyReport:
     r"""Gramian-based energy metrics of ``(A, B)`` with the stored (given) weights.
@@ -346,307 +285,3 @@ def _check_precision(precision: int, n: int) -> None:
             f"--precision {precision} is too large for {n} states: multiple-precision "
             f"Gramians are limited to {PRECISION_STATES} states and n^3 x digits <= 8e8 "
             f"(here at most {limit} digits); use fewer digits or a smaller (reduced) model.")
-
-
-@dataclass(frozen=True)
-class ActuatorSelection:
-    """Outcome of :func:`select_actuators`: an energy-aware, structurally controllable set.
-
-    ``selected``: states in the order they were taken (the structural start first);
-    ``gains``: ``log det(W_S + epsilon I)`` after each. ``structural``: the minimum
-    dedicated input set of the structural analysis the selection started from, with its
-    objective. ``lambda_min`` values come from the Gramian's Cholesky factor (>= 0); where
-    double precision does not resolve them, they are the upper bound
-    ``(sigma_min + n eps sigma_max)^2``.
-    ``swaps``: exchanges that raised the objective while keeping Lin's condition.
-    """
-
-    selected: np.ndarray
-    gains: np.ndarray
-    objective: float
-    lambda_min: float
-    structural: np.ndarray
-    structural_objective: float
-    structural_lambda_min: float
-    epsilon: float
-    horizon: float | None
-    horizon_note: str
-    state_names: tuple[str, ...] = field(repr=False)
-    structurally_controllable: bool = True
-    swaps: int = 0
-
-    def names(self, indices: Any) -> list[str]:
-        """State names for state indices."""
-        return [self.state_names[int(i)] for i in indices]
-
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready dictionary (names, not indices)."""
-        return {
-            "analysis": "greedy actuator selection (log det) among structurally "
-                        "controllable sets",
-            "budget": int(self.selected.size),
-            "selected": self.names(self.selected),
-            "structurally_controllable": self.structurally_controllable,
-            "swaps": self.swaps,
-            "objective_after_each": self.gains.tolist(),
-            "objective": self.objective,
-            "lambda_min": self.lambda_min,
-            "structural_minimum_set": self.names(self.structural),
-            "structural_objective": self.structural_objective,
-            "structural_lambda_min": self.structural_lambda_min,
-            "epsilon": self.epsilon,
-            "horizon": self.horizon,
-            "horizon_note": self.horizon_note,
-        }
-
-
-def _lambda_min_upper(A: np.ndarray, B: np.ndarray, T: float | None) -> float:
-    """Smallest Gramian eigenvalue where resolved, else its upper bound
-    ``(sigma_min + n eps sigma_max)^2`` (from the factor; never negative)."""
-    n = A.shape[0]
-    if n == 0:
-        return 0.0
-    ev = factor_eigenvalues(gramian_factor(A, B, T))
-    if ev[0] > n * _EPS * ev[-1]:
-        return float(ev[0])
-    return float((np.sqrt(ev[0]) + n * _EPS * np.sqrt(ev[-1])) ** 2)
-
-
-_SWAP_LIMIT = 20000  # structural checks allowed for the exchange pass
-
-
-def _structurally_controllable(system: StructuredSystem, states: list[int]) -> bool:
-    from netctl.structural import controllability
-
-    return bool(controllability(system.with_inputs(np.asarray(states, np.int64)),
-                                dimension=False).controllable)
-
-
-def _generic_dimension(system: StructuredSystem, states: list[int]) -> int:
-    from netctl.structural import controllability
-
-    r = controllability(system.with_inputs(np.asarray(states, np.int64)), dimension=True)
-    return int(r.controllable_dimension if r.controllable_dimension is not None
-               else system.n_states * int(r.controllable))
-
-
-def select_actuators(system: StructuredSystem, *, budget: int | None = None,
-                     candidates: Any = None, horizon: float | None = None,
-                     epsilon: float | None = None) -> ActuatorSelection:
-    r"""Energy-aware actuator placement among structurally controllable sets.
-
-    ``log det`` of the Gramian measures the volume of states reachable with unit energy.
-    With dedicated inputs the Gramian is additive, ``W_S = sum_{i in S} W_i``, and
-    ``S -> log det(W_S + epsilon I)`` is monotone submodular, so greedy additions are
-    within ``1 - 1/e`` of the best set of the same size [1]_. But the objective alone
-    can favour sets that leave states unreachable (so does the trace, [2]_). Here the
-    search keeps Lin's condition [3]_: it starts from a minimum dedicated input set of
-    the structural analysis (structurally controllable by construction), exchanges
-    members for candidates where that raises ``log det`` and keeps the set structurally
-    controllable, then adds states greedily up to ``budget`` (a superset of a
-    structurally controllable set stays so). When the structural set is not among the
-    candidates, each pick maximizes first the generic controllable dimension (Hosoe),
-    then ``log det``.
-
-    Parameters
-    ----------
-    system : StructuredSystem
-        Weighted (stored values used); the existing inputs are ignored.
-    budget : int, optional
-        Number of actuators; default the size of the structural minimum set. A budget
-        below it is a usage error (no set that small is controllable for any weight).
-    candidates : sequence of state names or indices, optional
-        Eligible states (default: all; the node table's ``actuator`` column when present).
-    horizon : float, optional
-        As in :func:`energy`.
-    epsilon : float, optional
-        Regularization; default ``1e-6 * tr(W_all) / n`` with ``W_all`` the Gramian
-        with an input on every state.
-
-    Returns
-    -------
-    ActuatorSelection
-
-    Notes
-    -----
-    One Gramian per candidate, one ``log det`` per candidate and round, and a
-    structural test per exchange tried: ``O(|candidates| n^3 (1 + budget))``; limited
-    to 400 states.
-
-    References
-    ----------
-    .. [1] T. H. Summers, F. L. Cortesi, J. Lygeros, "On submodularity and
-       controllability in complex dynamical networks", IEEE TCNS 3(1):91-101, 2016.
-       doi:10.1109/TCNS.2015.2453711
-    .. [2] F. Pasqualetti, S. Zampieri, F. Bullo, IEEE TCNS 1(1):40-52, 2014.
-       doi:10.1109/TCNS.2014.2310254
-    .. [3] C.-T. Lin, "Structural controllability", IEEE TAC 19(3):201-208, 1974.
-       doi:10.1109/TAC.1974.1100557
-
-    Examples
-    --------
-    >>> import numpy as np
-    >>> from netctl import StructuredSystem
-    >>> s = StructuredSystem.from_matrices(np.diag([-1.0, -2.0, -3.0]), np.zeros((3, 0)))
-    >>> r = select_actuators(s, budget=3)
-    >>> r.names(r.selected)
-    ['x0', 'x1', 'x2']
-    """
-    from netctl.structural import minimum_inputs
-
-    A, _ = _dense(system)
-    n = A.shape[0]
-    if n > SELECT_LIMIT:
-        raise OptionError(f"greedy selection needs one Gramian per candidate (O(n^4)); "
-                          f"{n} states exceed the limit of {SELECT_LIMIT}. Pass fewer "
-                          "candidates or use a smaller (reduced) model.")
-    _check_finite(A, np.zeros((n, 0)), tuple(system.state_names))
-    T, note = _choose_horizon(A, horizon)
-    struct = minimum_inputs(system, dedicated=True).drivers.astype(np.int64)
-    k = int(struct.size if budget is None else budget)
-    if candidates is None:
-        if "actuator" in system.nodes:
-            cand = np.flatnonzero(np.asarray(system.nodes["actuator"], bool))
-        else:
-            cand = np.arange(n)
-    else:
-        cand = system.index_of(list(candidates)) if not isinstance(candidates, np.ndarray) \
-            else np.asarray(candidates, np.int64)
-    cand = np.unique(cand).astype(np.int64)
-    if not 1 <= k <= cand.size:
-        raise OptionError(f"budget must lie between 1 and the {cand.size} candidate state(s), "
-                          f"found {k}.")
-    if k < struct.size:
-        raise OptionError(f"budget {k} is below the {struct.size} dedicated inputs every "
-                          "structurally controllable design needs (Commault-Dion; Pequito "
-                          f"et al.): fewer leave states uncontrollable for every weight. "
-                          f"Use a budget of at least {struct.size}.")
-    Ws = {int(i): _gramian_vanloan(A, np.eye(n)[:, [i]], T)
-          for i in sorted(set(cand.tolist()) | set(struct.tolist()))}
-    W_all = _gramian_vanloan(A, np.eye(n), T)
-    eps = (1e-6 * max(float(np.trace(W_all)), 1e-300) / max(n, 1)) if epsilon is None \
-        else float(epsilon)
-    base = eps * np.eye(n)
-
-    def obj(states: list[int]) -> float:
-        return _logdet(base + sum((Ws[i] for i in states), np.zeros((n, n))))
-
-    cset = set(cand.tolist())
-    chosen: list[int] = []
-    gains: list[float] = []
-    swaps = 0
-    if set(struct.tolist()) <= cset:
-        chosen = [int(i) for i in struct.tolist()]
-        if chosen and len(chosen) * cand.size <= _SWAP_LIMIT:
-            current = obj(chosen)
-            for pos in range(len(chosen)):
-                best_i, best_val = chosen[pos], current
-                for j in cand.tolist():
-                    if j in chosen:
-                        continue
-                    trial = chosen[:pos] + [j] + chosen[pos + 1:]
-                    val = obj(trial)
-                    if val > best_val + 1e-9 * max(1.0, abs(best_val)) and \
-                            _structurally_controllable(system, trial):
-                        best_i, best_val = j, val
-                if best_i != chosen[pos]:
-                    chosen[pos] = best_i
-                    current = best_val
-                    swaps += 1
-        running: list[int] = []
-        for i in chosen:
-            running.append(i)
-            gains.append(obj(running))
-    current_W = base + sum((Ws[i] for i in chosen), np.zeros((n, n)))
-    dims_needed = not chosen
-    while len(chosen) < k:
-        best, best_key = -1, (-1, -np.inf)
-        for i in cand.tolist():
-            if i in chosen:
-                continue
-            val = _logdet(current_W + Ws[i])
-            dim = _generic_dimension(system, chosen + [i]) if dims_needed else n
-            key = (dim, val)
-            if best < 0 or key[0] > best_key[0] or (
-                    key[0] == best_key[0] and val > best_key[1] + 1e-12 * max(1.0, abs(
-                        best_key[1]))):
-                best, best_key = i, key
-        chosen.append(best)
-        current_W = current_W + Ws[best]
-        gains.append(best_key[1])
-        if dims_needed and best_key[0] == n:
-            dims_needed = False
-    ok = _structurally_controllable(system, chosen)
-    lam_sel = _lambda_min_upper(A, np.eye(n)[:, chosen], T)
-    lam_struct = _lambda_min_upper(A, np.eye(n)[:, struct], T)
-    return ActuatorSelection(
-        selected=np.asarray(chosen, np.int64), gains=np.asarray(gains),
-        objective=float(gains[-1]), lambda_min=lam_sel, structural=struct,
-        structural_objective=obj([int(i) for i in struct.tolist()]),
-        structural_lambda_min=lam_struct, epsilon=eps, horizon=T, horizon_note=note,
-        state_names=tuple(system.state_names), structurally_controllable=ok, swaps=swaps)
-
-
-@dataclass(frozen=True)
-class NodeControllability:
-    """Per-state metrics of :func:`node_controllability` (discrete time, Gu et al.)."""
-
-    average: np.ndarray
-    modal: np.ndarray
-    scale: float
-    state_names: tuple[str, ...] = field(repr=False)
-
-    def to_dict(self) -> dict[str, Any]:
-        """JSON-ready dictionary (names, not indices)."""
-        return {"analysis": "node controllability (discrete time, A / (1 + sigma_max))",
-                "scale": self.scale,
-                "average": dict(zip(self.state_names, self.average.tolist())),
-                "modal": dict(zip(self.state_names, self.modal.tolist()))}
-
-
-def node_controllability(system: StructuredSystem) -> NodeControllability:
-    r"""Average and modal controllability of every state, in discrete time [1]_.
-
-    ``A`` is scaled to ``A_s = A / (1 + sigma_max(A))`` (Schur stable). Average
-    controllability of state ``i`` is ``tr W_inf`` with one input at ``i``, i.e. the
-    diagonal of the solution of ``X = A_s^T X A_s + I``; for symmetric ``A`` it equals
-    ``sum_j v_ij^2 / (1 - lambda_j^2)``. Modal controllability is
-    ``phi_i = sum_j (1 - |lambda_j|^2) v_ij^2`` with the (orthonormal, for symmetric
-    ``A``) eigenvectors ``v_j`` of ``A_s``; high values mark states that can push the
-    fast-decaying, hard-to-reach modes.
-
-    Notes
-    -----
-    For a nonsymmetric ``A`` the modal measure uses the normalized right eigenvectors
-    (it is defined for symmetric networks in [1]_). Dense, ``O(n^3)``.
-
-    References
-    ----------
-    .. [1] S. Gu et al., "Controllability of structural brain networks", Nat. Commun.
-       6:8414, 2015. doi:10.1038/ncomms9414
-
-    Examples
-    --------
-    >>> import networkx as nx
-    >>> from netctl import StructuredSystem
-    >>> r = node_controllability(StructuredSystem.from_networkx(nx.path_graph(3)))
-    >>> r.modal.round(6).tolist()
-    [0.828427, 0.656854, 0.828427]
-    """
-    A, _ = _dense(system)
-    n = A.shape[0]
-    if n == 0:
-        return NodeControllability(np.zeros(0), np.zeros(0), 1.0, ())
-    scale = 1.0 + float(la.svdvals(A)[0])
-    As = A / scale
-    X = la.solve_discrete_lyapunov(As.T, np.eye(n))
-    if np.array_equal(A, A.T):
-        lam, V = la.eigh(As)
-        mag = lam ** 2
-    else:
-        lam_c, Vc = la.eig(As)
-        V = np.abs(Vc / np.linalg.norm(Vc, axis=0))
-        mag = np.abs(lam_c) ** 2
-    modal = (V ** 2) @ (1.0 - mag)
-    return NodeControllability(average=np.diag(X).copy(), modal=np.asarray(modal, float),
-                               scale=scale, state_names=tuple(system.state_names))

@@ -9,13 +9,8 @@ import numpy as np
 import scipy.linalg as la
 
 from netctl.errors import OptionError
-from netctl.numeric.rank import (
-    MERSENNE_61,
-    _dense,
-    _weights_of,
-    krylov_dimension_mod_p,
-    staircase_dimension,
-)
+from netctl.numeric.prime_field import MERSENNE_61, krylov_dimension_mod_p
+from netctl.numeric.rank import _dense, _weights_of, staircase_dimension
 from netctl.numeric.spectrum import (
     EXACT_LIMIT,
     Cluster,

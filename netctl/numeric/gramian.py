@@ -28,6 +28,8 @@ import scipy.linalg as la
 from netctl._jit import njit
 from dataclasses import dataclass
 
+from netctl.errors import OptionError
+
 __all__ = ["lyapunov_factor", "finite_horizon_factor", "gramian_factor", "gramian_mp",
            "factor_eigenvalues", "PRECISION_BUDGET", "max_precision", "SmallestEigenvalue",
            "smallest_eigenvalue_mp"]
@@ -355,3 +357,72 @@ def smallest_eigenvalue_mp(A: np.ndarray, B: np.ndarray, horizon: float | None,
         return SmallestEigenvalue(digits, mpmath.nstr(lo if resolved else max(lo, 0), show),
                                   mpmath.nstr(hi, show), mpmath.nstr(bound, 3), resolved,
                                   int(need))
+
+
+# ---------------------------------------------------------------- dense Gramians, horizon
+def _gramian_vanloan(A: np.ndarray, B: np.ndarray, horizon: float | None = None
+                     ) -> np.ndarray:
+    """Unfactored Gramian (Bartels-Stewart or Van Loan [1]_): fast, for greedy gains.
+
+    References
+    ----------
+    .. [1] C. F. Van Loan, IEEE TAC 23(3):395-404, 1978. doi:10.1109/TAC.1978.1101743
+    """
+    A = np.asarray(A, dtype=float)
+    B = np.asarray(B, dtype=float)
+    n = A.shape[0]
+    Q = B @ B.T
+    if horizon is None:
+        W = la.solve_continuous_lyapunov(A, -Q)
+    else:
+        M = np.zeros((2 * n, 2 * n))
+        M[:n, :n] = -A
+        M[:n, n:] = Q
+        M[n:, n:] = A.T
+        F = la.expm(M * float(horizon))
+        W = F[n:, n:].T @ F[:n, n:]
+    return (W + W.T) / 2
+
+
+def _is_hurwitz(A: np.ndarray) -> bool:
+    if A.shape[0] == 0:
+        return True
+    return bool(np.max(la.eigvals(A).real) < -1e-9 * max(1.0, float(np.linalg.norm(A))))
+
+
+def _choose_horizon(A: np.ndarray, horizon: float | None) -> tuple[float | None, str]:
+    if horizon is not None and horizon == np.inf:
+        if not _is_hurwitz(A):
+            lam = la.eigvals(A)
+            worst = lam[int(np.argmax(lam.real))]
+            what = ("singular (an eigenvalue is 0)" if np.min(np.abs(lam)) <=
+                    1e-12 * max(1.0, float(np.linalg.norm(A))) else
+                    f"not Hurwitz (eigenvalue {complex(worst):.4g})")
+            raise OptionError(f"the infinite-horizon Gramian needs a stable A, but A is "
+                              f"{what}; give a finite horizon (e.g. --horizon 1).")
+        return None, "infinite horizon (A is Hurwitz: Lyapunov equation)"
+    if horizon is not None:
+        if not (np.isfinite(horizon) and horizon > 0):
+            raise OptionError(f"horizon must be a positive number of time units, found "
+                              f"{horizon!r}; omit it for the infinite-horizon Gramian of a "
+                              "stable system.")
+        return float(horizon), f"finite horizon T = {horizon:g}"
+    if _is_hurwitz(A):
+        return None, "infinite horizon (A is Hurwitz: Lyapunov equation)"
+    return 1.0, "finite horizon T = 1 (A is not Hurwitz, so the infinite-horizon Gramian " \
+                "does not exist)"
+
+
+def _logdet(W: np.ndarray) -> float:
+    sign, ld = np.linalg.slogdet(W)
+    return float(ld) if sign > 0 else -np.inf
+
+
+def _check_finite(A: np.ndarray, B: np.ndarray, names: tuple[str, ...]) -> None:
+    for M, what in ((A, "A"), (B, "B")):
+        if M.size and not np.all(np.isfinite(M)):
+            i, j = np.argwhere(~np.isfinite(M))[0]
+            where = (f"{names[i]} <- {names[j]}" if what == "A" else f"{names[i]}, input {j}")
+            raise OptionError(f"{what}[{where}] is {M[i, j]!r}; Gramians need finite "
+                              "weights. Fix that weight in the file, or choose sampled "
+                              "--weights.")

@@ -9,16 +9,9 @@ from typing import Any
 import numpy as np
 
 from netctl.errors import OptionError
-from netctl.numeric.rank import (
-    DENSE_LIMIT,
-    MODULAR_WEIGHTS,
-    LostMode,
-    RankTest,
-    modular,
-    pbh,
-    sparse_certificate,
-    staircase,
-)
+from netctl.numeric.certificate import sparse_certificate
+from netctl.numeric.prime_field import MODULAR_WEIGHTS, modular
+from netctl.numeric.rank import DENSE_LIMIT, LostMode, RankTest, pbh, staircase
 from netctl.numeric.realize import PARAMETERIZATIONS, realize
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables

@@ -20,7 +20,8 @@ from scipy.linalg import expm
 
 from netctl import OptionError, StructuredSystem
 from netctl.numeric import realize, staircase
-from netctl.numeric.energy import energy, gramian, select_actuators
+from netctl.numeric.energy import energy, gramian
+from netctl.numeric.selection import select_actuators
 from netctl.numeric.modal import modal_controllability
 from tests.conftest import from_edges, random_pattern
 
@@ -219,7 +220,7 @@ def test_node_controllability_path3_exact():
     import networkx as nx
     import sympy
 
-    from netctl.numeric.energy import node_controllability
+    from netctl.numeric.node_metrics import node_controllability
 
     A = sympy.Matrix([[0, 1, 0], [1, 0, 1], [0, 1, 0]])
     s2 = sympy.sqrt(2)
@@ -241,7 +242,7 @@ def test_node_controllability_path3_exact():
 
 
 def test_node_average_controllability_against_truncated_sum(rng):
-    from netctl.numeric.energy import node_controllability
+    from netctl.numeric.node_metrics import node_controllability
 
     A = rng.normal(size=(5, 5))
     r = node_controllability(StructuredSystem.from_matrices(A, np.zeros((5, 0))))

@@ -18,7 +18,7 @@ import sympy
 
 from netctl import OptionError, StructuredSystem, controllability
 from netctl.numeric import modular, pbh, realize, sparse_certificate, staircase
-from netctl.numeric.rank import krylov_dimension_mod_p
+from netctl.numeric.prime_field import krylov_dimension_mod_p
 from tests.conftest import directed_path, from_edges, random_pattern
 
 
