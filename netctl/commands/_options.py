@@ -38,6 +38,7 @@ __all__ = [
     "disturbance_summary", "emit",
     "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
     "sample_runner", "EXECUTOR_MIN_STATES", "long_step", "analysis_step",
+    "numeric_progress", "DENSE_FLOPS_PER_SECOND",
     "safe_write", "system_with_inputs", "terminal_safe", "guard_files",
     "INPUT_OPTIONS", "OUTPUT_OPTIONS",
 ]
@@ -547,13 +548,16 @@ def safe_write(path: str) -> Iterator[IO[str]]:
 EXECUTOR_MIN_STATES = 1000
 
 
-def sample_runner(args: argparse.Namespace, n_states: int, label: str) -> Any:
-    """A ``runner(task, items, shared)`` for independent numeric samples: the shared
-    executor (``--executor``, ``--workers``, ``--scheduler``) with progress on stderr
-    (silent off a terminal and with ``--quiet``); ``None`` (run in this process) for
-    small systems on the default local executor."""
+def sample_runner(args: argparse.Namespace, n_states: int, label: str, *,
+                  what: str = "samples", min_states: int | None = None) -> Any:
+    """A ``runner(task, items, shared)`` for independent numeric tasks (samples,
+    candidate Gramians): the shared executor (``--executor``, ``--workers``,
+    ``--scheduler``) with progress on stderr (silent off a terminal and with
+    ``--quiet``); ``None`` (run in this process) below ``min_states`` (default
+    :data:`EXECUTOR_MIN_STATES`) on the default local executor."""
     executor = getattr(args, "executor", "local")
-    if executor == "local" and n_states < EXECUTOR_MIN_STATES:
+    floor = EXECUTOR_MIN_STATES if min_states is None else min_states
+    if executor == "local" and n_states < floor:
         return None
 
     def run(task: Any, items: list[Any], shared: Any) -> list[Any]:
@@ -564,7 +568,7 @@ def sample_runner(args: argparse.Namespace, n_states: int, label: str) -> Any:
                          workers=getattr(args, "workers", None),
                          scheduler=getattr(args, "scheduler", None),
                          progress=count_progress(
-                             f"{label}: samples",
+                             f"{label}: {what}",
                              enabled=False if getattr(args, "quiet", False) else None))
 
     return run
@@ -589,6 +593,25 @@ def long_step(args: argparse.Namespace, text: str, expected_seconds: float) -> I
 
     with Progress(1).step(text):
         yield
+
+
+#: Dense floating-point speed assumed to judge whether a numeric step is long (2 cores,
+#: 2026; our choice, no source): an O(n^3) step costs about 10 n^3 flops.
+DENSE_FLOPS_PER_SECOND = 2e9
+
+
+def numeric_progress(args: argparse.Namespace, label: str, n_states: int,
+                     dense_steps: float = 1.0) -> Any:
+    """``progress(stage, done, total)`` for a numeric analysis (:func:`netctl.report.
+    progress.stage_progress`) when its ``dense_steps`` O(n^3) steps are expected to take
+    :data:`PROGRESS_MIN_SECONDS` or more, stderr is a terminal and ``--quiet`` is off;
+    else ``None``."""
+    seconds = dense_steps * 10.0 * float(n_states) ** 3 / DENSE_FLOPS_PER_SECOND
+    if seconds < PROGRESS_MIN_SECONDS or progress_enabled(args) is False:
+        return None
+    from netctl.report.progress import stage_progress
+
+    return stage_progress(label)
 
 
 def analysis_step(args: argparse.Namespace, system: StructuredSystem,

@@ -8,17 +8,24 @@ from typing import Any
 from netctl.commands._options import (
     CAUTION,
     NUMERIC_INPUTS_DEFAULT,
+    add_executor_options,
     add_inputs,
     add_seed,
     add_weights,
     emit,
+    numeric_progress,
     resolve_weights,
+    sample_runner,
     system_with_inputs,
 )
 
 __all__ = ["register"]
 
 AUTO_SELECT_LIMIT = 200
+#: states from which the per-candidate Gramians of --select run on the executor (local
+#: processes by default): one Gramian then takes tens of milliseconds or more, so the
+#: workers' start is paid back (our choice, measured on a 2-core machine, no source)
+SELECT_EXECUTOR_MIN_STATES = 100
 
 
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
@@ -39,6 +46,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                         f"{AUTO_SELECT_LIMIT} states; 0 = skip)")
     p.add_argument("--top", type=int, default=5, metavar="K",
                    help="states listed by average controllability (default 5)")
+    add_executor_options(p)
     p.set_defaults(func=_cmd_energy)
 
 
@@ -60,7 +68,8 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     system, where = system_with_inputs(args)
     weights = resolve_weights(args, system)
     real = realize(system, weights=weights, seed=args.seed)
-    r = energy(real, horizon=args.horizon, precision=args.precision)
+    r = energy(real, horizon=args.horizon, precision=args.precision,
+               progress=numeric_progress(args, "energy", real.n_states, 4.0))
     d = r.to_dict()
     d["file"] = args.file
     d["inputs_from"] = where
@@ -98,8 +107,12 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     if budget is None and r.n_states <= AUTO_SELECT_LIMIT:
         budget = -1  # structural count
     if budget:
-        sel = select_actuators(real, budget=None if budget == -1 else budget,
-                               horizon=args.horizon)
+        sel = select_actuators(
+            real, budget=None if budget == -1 else budget, horizon=args.horizon,
+            runner=sample_runner(args, real.n_states, "energy", what="candidate Gramians",
+                                 min_states=SELECT_EXECUTOR_MIN_STATES),
+            progress=numeric_progress(args, "energy, greedy choice", real.n_states,
+                                      2.0 * real.n_states))
         d["selection"] = sel.to_dict()
         lines.append(f"  greedy log-det choice of {sel.selected.size} among structurally "
                      f"controllable sets: {', '.join(sel.names(sel.selected))} (log det "

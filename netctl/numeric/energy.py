@@ -13,6 +13,7 @@ import numpy as np
 
 from netctl.errors import OptionError
 from netctl.numeric.gramian import (
+    PRECISION_BUDGET,
     SmallestEigenvalue,
     _check_finite,
     _choose_horizon,
@@ -22,6 +23,7 @@ from netctl.numeric.gramian import (
     max_precision,
     smallest_eigenvalue_mp,
 )
+from netctl.numeric._tasks import Progress, announce
 from netctl.numeric.rank import _dense, _weights_of
 from netctl.numeric.verdict import Verdict, judge
 from netctl.system import StructuredSystem
@@ -30,7 +32,7 @@ from netctl.tables import ResultTables
 __all__ = ["EnergyReport", "gramian", "energy", "AVERAGE_NOTE", "PRECISION_STATES"]
 
 #: most states for --precision (mpmath)
-PRECISION_STATES = 200
+PRECISION_STATES = 200  # our choice, no source: mpmath Gramians stay within minutes
 _EPS = float(np.finfo(float).eps)
 
 
@@ -177,7 +179,7 @@ AVERAGE_NOTE = ("a ranking of single states by tr W (how much of the state space
 
 
 def energy(system: StructuredSystem, *, horizon: float | None = None,
-           precision: int | None = None) -> EnergyReport:
+           precision: int | None = None, progress: Progress | None = None) -> EnergyReport:
     r"""Gramian-based energy metrics of ``(A, B)`` with the stored (given) weights.
 
     Parameters
@@ -190,6 +192,9 @@ def energy(system: StructuredSystem, *, horizon: float | None = None,
     precision : int, optional
         Also compute the Gramian's extreme eigenvalues with this many decimal digits
         (mpmath; at most 200 states and :func:`netctl.numeric.gramian.max_precision`).
+    progress : callable(stage, done, total), optional
+        Told before and after each long step (Gramian factor, average controllability,
+        rank test, multiple precision); see :data:`netctl.numeric._tasks.Progress`.
 
     Returns
     -------
@@ -236,9 +241,13 @@ def energy(system: StructuredSystem, *, horizon: float | None = None,
     T, note = _choose_horizon(A, horizon)
     if precision is not None:
         _check_precision(precision, n)
+    announce(progress, "Gramian factor", 0, 1)
     L = gramian_factor(A, B, T)
     W = L @ L.T
+    announce(progress, "Gramian factor", 1, 1)
+    announce(progress, "average controllability", 0, 1)
     avg = np.diag(_gramian_vanloan(A.T, np.eye(n), T)).copy() if n else np.zeros(0)
+    announce(progress, "average controllability", 1, 1)
     ev = factor_eigenvalues(L) if n else np.zeros(0)
     lmin = float(ev[0]) if n else 0.0
     lmax = float(ev[-1]) if n else 0.0
@@ -256,7 +265,9 @@ def energy(system: StructuredSystem, *, horizon: float | None = None,
     st = controllability(system, dimension=True)
     s_dim = int(st.controllable_dimension if st.controllable_dimension is not None
                 else (n if st.controllable else 0))
+    announce(progress, "staircase rank test", 0, 1)
     rt = staircase(system) if n else None
+    announce(progress, "staircase rank test", 1, 1)
     num_dim = rt.dimension if rt is not None else 0
     margin = float(rt.margin) if rt is not None else np.inf
     verdict = judge(n=n, structural_dimension=s_dim, numeric_dimension=num_dim,
@@ -264,7 +275,11 @@ def energy(system: StructuredSystem, *, horizon: float | None = None,
                     worst_energy_bound=(1.0 / upper if upper > 0 else np.inf))
     if verdict.failing:  # uncontrollable: the Gramian is singular, whatever rounding shows
         ld, avg_energy = -np.inf, np.inf
-    prec = smallest_eigenvalue_mp(A, B, T, int(precision)) if precision is not None else None
+    prec = None
+    if precision is not None:
+        announce(progress, f"{int(precision)}-digit Gramian", 0, 1)
+        prec = smallest_eigenvalue_mp(A, B, T, int(precision))
+        announce(progress, f"{int(precision)}-digit Gramian", 1, 1)
     return EnergyReport(
         n_states=n, n_inputs=B.shape[1], horizon=T, horizon_note=note, lambda_min=lmin,
         lambda_max=lmax, trace=float(np.trace(W)), log_det=ld, average_energy=avg_energy,
@@ -283,5 +298,6 @@ def _check_precision(precision: int, n: int) -> None:
     if n > PRECISION_STATES or precision > limit:
         raise OptionError(
             f"--precision {precision} is too large for {n} states: multiple-precision "
-            f"Gramians are limited to {PRECISION_STATES} states and n^3 x digits <= 8e8 "
-            f"(here at most {limit} digits); use fewer digits or a smaller (reduced) model.")
+            f"Gramians are limited to {PRECISION_STATES} states and n^3 x digits <= "
+            f"{PRECISION_BUDGET:.0e} (netctl's own cost limit, about a minute of work; here "
+            f"at most {limit} digits); use fewer digits or a smaller (reduced) model.")

@@ -9,6 +9,7 @@ import numpy as np
 import scipy.linalg as la
 
 from netctl.errors import OptionError
+from netctl.numeric._tasks import Progress, announce
 from netctl.numeric.prime_field import MERSENNE_61, krylov_dimension_mod_p
 from netctl.numeric.rank import _dense, _weights_of, staircase_dimension
 from netctl.numeric.spectrum import (
@@ -198,7 +199,8 @@ def _modular_rank(Mint: Any, D: np.ndarray, R: np.ndarray | None = None) -> int:
 
 
 def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
-                          arithmetic: str = "auto", seed: int = 0) -> ExactControllability:
+                          arithmetic: str = "auto", seed: int = 0,
+                          progress: Progress | None = None) -> ExactControllability:
     r"""Minimum inputs and a driver set for the *given* weights (exact controllability).
 
     By the PBH test, ``(A, B)`` is controllable iff ``rank [A - lambda I, B] = n`` at
@@ -218,6 +220,9 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         error when not possible).
     seed : int
         Seed of the integer mixing matrix that shows the count is attained.
+    progress : callable(stage, done, total), optional
+        Told of the eigenvalues, each cluster rank decision and each step of the PBH
+        certification (:data:`netctl.numeric._tasks.Progress`).
 
     Returns
     -------
@@ -287,7 +292,7 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         assert rat is not None
         clusters = exact_spectrum(rat[0], rat[1])
     else:
-        clusters = jordan_clusters(A, symmetric=symmetric)
+        clusters = jordan_clusters(A, symmetric=symmetric, progress=progress)
     count_margin = min((c.margin for c in clusters if c.algebraic > 1), default=np.inf)
     count_certain = use_exact or count_margin >= CERTAIN_DECADES
     order = sorted(range(len(clusters)), key=lambda i: (-clusters[i].geometric,
@@ -315,17 +320,19 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         if _modular_rank(rat[0], np.array(sorted(chosen), np.int64)) == n:
             certificate, verified = "exact (Krylov rank modulo a prime, integer-scaled A)", True
     if not verified:
-        chosen = _float_pbh_fill(A, clusters, chosen, t, symmetric)
+        chosen = _float_pbh_fill(A, clusters, chosen, t, symmetric, progress)
         if rat is not None and n <= _MODULAR_CERT_LIMIT:
             if _modular_rank(rat[0], np.array(sorted(chosen), np.int64)) == n:
                 certificate, verified = ("exact (Krylov rank modulo a prime, "
                                          "integer-scaled A)"), True
     drivers = np.array(sorted(chosen), np.int64)
+    announce(progress, "staircase check of the drivers", 0, 1)
     Bd = np.zeros((n, drivers.size))
     Bd[drivers, np.arange(drivers.size)] = 1.0
     nrm_ab = float(np.sqrt(np.linalg.norm(A) ** 2 + drivers.size))
     ts = n * _EPS * max(nrm_ab, 1.0)
     dim, _, dec, _ = staircase_dimension(A, Bd, ts)
+    announce(progress, "staircase check of the drivers", 1, 1)
     kept = dec.kept if np.isfinite(dec.kept) else ts
     margin = float(np.log10(kept / max(dec.dropped, ts))) if kept > 0 else -np.inf
     if not verified:
@@ -356,7 +363,7 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
 
 
 def _float_pbh_fill(A: np.ndarray, clusters: list[Cluster], chosen: set[int], tol: float,
-                    symmetric: bool) -> set[int]:
+                    symmetric: bool, progress: Progress | None = None) -> set[int]:
     """Add drivers until the rows of ``A - mu I`` outside them are independent at every
     cluster (floating point): simple eigenvalues by their left eigenvector, repeated
     ones by the singular values of the remaining rows."""
@@ -366,9 +373,14 @@ def _float_pbh_fill(A: np.ndarray, clusters: list[Cluster], chosen: set[int], to
         lam_r, V = la.eigh(A)
         lam, VL = lam_r.astype(complex), V.astype(complex)
     else:
+        announce(progress, "left eigenvectors", 0, 1)
         lam, VL = la.eig(A, left=True, right=False)
-    for c in sorted(clusters, key=lambda c: (-c.geometric, c.eigenvalue.real,
-                                             c.eigenvalue.imag)):
+        announce(progress, "left eigenvectors", 1, 1)
+    announce(progress, "PBH certification", 0, len(clusters))
+    for done, c in enumerate(sorted(clusters, key=lambda c: (-c.geometric, c.eigenvalue.real,
+                                                             c.eigenvalue.imag))):
+        if done:
+            announce(progress, "PBH certification", done, len(clusters))
         if c.algebraic == 1:
             i = int(c.indices[0]) if c.indices.size else int(np.argmin(np.abs(lam - c.eigenvalue)))
             w = VL[:, i] / np.linalg.norm(VL[:, i])
@@ -382,6 +394,7 @@ def _float_pbh_fill(A: np.ndarray, clusters: list[Cluster], chosen: set[int], to
         s = la.svd(Mi[rest], compute_uv=False)
         deficit = int(np.count_nonzero(s <= tol)) + max(0, rest.size - s.size)
         chosen.update(_dependent_rows(Mi, rest, deficit).tolist())
+    announce(progress, "PBH certification", len(clusters), len(clusters))
     if not chosen:
         chosen.add(0)
     return chosen

@@ -8,12 +8,17 @@ from typing import Any
 import numpy as np
 import scipy.linalg as la
 
+from netctl.numeric._tasks import Progress, announce
 from netctl.numeric.rank import _dense, _weights_of, cluster_subspace, eigen_clusters
 from netctl.numeric.spectrum import jordan_clusters
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
-__all__ = ["ModeReach", "ModalReport", "modal_controllability"]
+__all__ = ["ModeReach", "ModalReport", "modal_controllability", "REACH_TOL"]
+
+#: reach (cosine) at or below which a mode counts as not reached: about 10^6 times the
+#: rounding of a normalized left eigenvector (our choice, no published source)
+REACH_TOL = 1e-10
 
 
 @dataclass(frozen=True)
@@ -91,7 +96,8 @@ def _support(Y: np.ndarray) -> np.ndarray:
 
 
 def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None = None,
-                          tol: float = 1e-10) -> ModalReport:
+                          tol: float = REACH_TOL, progress: Progress | None = None
+                          ) -> ModalReport:
     r"""How strongly the inputs reach each mode, weakest first.
 
     For a simple eigenvalue with left eigenvector ``w`` (``w^H A = lambda w^H``) and
@@ -113,7 +119,11 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
         Jordan blocks (:func:`netctl.numeric.spectrum.jordan_clusters`), so a defective
         eigenvalue split by rounding stays one mode.
     tol : float, default 1e-10
-        Reach at or below this counts as not reached.
+        Reach at or below this counts as not reached (:data:`REACH_TOL`: our choice,
+        no published source; the report states it).
+    progress : callable(stage, done, total), optional
+        Told of the eigen-decomposition (before and after) and of each mode cluster
+        (:data:`netctl.numeric._tasks.Progress`).
 
     Returns
     -------
@@ -148,11 +158,14 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
     col_norm = np.linalg.norm(B, axis=0)
     Bn = B / np.where(col_norm > 0, col_norm, 1.0)
     Q = la.orth(B) if m else np.zeros((n, 0))
+    announce(progress, "eigen-decomposition", 0, 1)
     lam, VL = la.eig(A, left=True, right=False)
+    announce(progress, "eigen-decomposition", 1, 1)
     modes: list[ModeReach] = []
     groups = (eigen_clusters(lam, radius) if cluster_tol is not None
-              else [c.indices for c in jordan_clusters(A, lam)])
-    for idx in groups:
+              else [c.indices for c in jordan_clusters(A, lam, progress=progress)])
+    for done, idx in enumerate(groups):
+        announce(progress, "mode reach", done, len(groups))
         mu = complex(np.mean(lam[idx]))
         if idx.size == 1:
             w = VL[:, idx[0]]
@@ -175,6 +188,7 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
         reach = float(s.min()) if s.size == g else 0.0
         per = np.abs(Y.conj().T @ Bn).max(axis=0) if m else np.zeros(0)
         modes.append(ModeReach(mu, int(idx.size), g, min(reach, 1.0), per, _support(Y)))
+    announce(progress, "mode reach", len(groups), len(groups))
     modes.sort(key=lambda md: (md.reach, md.eigenvalue.real, md.eigenvalue.imag))
     return ModalReport(n_states=n, n_inputs=m, modes=tuple(modes), tolerance=tol,
                        state_names=tuple(system.state_names), input_names=tuple(system.input_names),

@@ -16,6 +16,7 @@ from netctl.numeric.gramian import (
     gramian_factor,
     _logdet,
 )
+from netctl.numeric._tasks import Progress, Runner, announce
 from netctl.numeric.rank import _dense
 from netctl.system import StructuredSystem
 
@@ -90,7 +91,22 @@ def _lambda_min_upper(A: np.ndarray, B: np.ndarray, T: float | None) -> float:
     return float((np.sqrt(ev[0]) + n * _EPS * np.sqrt(ev[-1])) ** 2)
 
 
-_SWAP_LIMIT = 20000  # structural checks allowed for the exchange pass
+_SWAP_LIMIT = 20000  # structural checks allowed for the exchange pass (our choice)
+#: relative gain in log det that counts as a better exchange / a better addition (our
+#: choice, no source: well above rounding of a log det, far below any gain that matters)
+_SWAP_GAIN = 1e-9
+_TIE = 1e-12
+
+
+def _candidate_gramian(i: int, _seed: Any, shared: tuple[np.ndarray, float | None]
+                       ) -> np.ndarray:
+    """Executor task: the Gramian with one dedicated input at state ``i`` (``shared``:
+    the dense ``A`` and the horizon). No randomness: the result does not depend on the
+    worker or the seed."""
+    A, T = shared
+    e = np.zeros((A.shape[0], 1))
+    e[int(i), 0] = 1.0
+    return _gramian_vanloan(A, e, T)
 
 
 def _structurally_controllable(system: StructuredSystem, states: list[int]) -> bool:
@@ -110,7 +126,8 @@ def _generic_dimension(system: StructuredSystem, states: list[int]) -> int:
 
 def select_actuators(system: StructuredSystem, *, budget: int | None = None,
                      candidates: Any = None, horizon: float | None = None,
-                     epsilon: float | None = None) -> ActuatorSelection:
+                     epsilon: float | None = None, runner: Runner | None = None,
+                     progress: Progress | None = None) -> ActuatorSelection:
     r"""Energy-aware actuator placement among structurally controllable sets.
 
     ``log det`` of the Gramian measures the volume of states reachable with unit energy.
@@ -140,6 +157,13 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
     epsilon : float, optional
         Regularization; default ``1e-6 * tr(W_all) / n`` with ``W_all`` the Gramian
         with an input on every state.
+    runner : callable, optional
+        Runs the per-candidate Gramians as independent tasks
+        (:data:`netctl.numeric._tasks.Runner`, e.g. local processes or Dask); default:
+        one after another here. The result is identical either way.
+    progress : callable(stage, done, total), optional
+        Told of each candidate Gramian (when no runner is given: the runner reports its
+        own), each exchange position and each greedy addition.
 
     Returns
     -------
@@ -199,9 +223,18 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
                           "structurally controllable design needs (Commault-Dion; Pequito "
                           f"et al.): fewer leave states uncontrollable for every weight. "
                           f"Use a budget of at least {struct.size}.")
-    Ws = {int(i): _gramian_vanloan(A, np.eye(n)[:, [i]], T)
-          for i in sorted(set(cand.tolist()) | set(struct.tolist()))}
+    need = sorted(set(cand.tolist()) | set(struct.tolist()))
+    if runner is not None and len(need) > 1:
+        Ws = dict(zip(need, runner(_candidate_gramian, need, (A, T))))
+    else:
+        Ws = {}
+        for done, i in enumerate(need):
+            announce(progress, "candidate Gramians", done, len(need))
+            Ws[i] = _candidate_gramian(i, None, (A, T))
+        announce(progress, "candidate Gramians", len(need), len(need))
     W_all = _gramian_vanloan(A, np.eye(n), T)
+    # regularization 1e-6 of the mean eigenvalue of W_all: our choice, no source (it keeps
+    # log det finite for sets that do not yet reach every state)
     eps = (1e-6 * max(float(np.trace(W_all)), 1e-300) / max(n, 1)) if epsilon is None \
         else float(epsilon)
     base = eps * np.eye(n)
@@ -218,26 +251,30 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
         if chosen and len(chosen) * cand.size <= _SWAP_LIMIT:
             current = obj(chosen)
             for pos in range(len(chosen)):
+                announce(progress, "exchanges", pos, len(chosen))
                 best_i, best_val = chosen[pos], current
                 for j in cand.tolist():
                     if j in chosen:
                         continue
                     trial = chosen[:pos] + [j] + chosen[pos + 1:]
                     val = obj(trial)
-                    if val > best_val + 1e-9 * max(1.0, abs(best_val)) and \
+                    if val > best_val + _SWAP_GAIN * max(1.0, abs(best_val)) and \
                             _structurally_controllable(system, trial):
                         best_i, best_val = j, val
                 if best_i != chosen[pos]:
                     chosen[pos] = best_i
                     current = best_val
                     swaps += 1
+            announce(progress, "exchanges", len(chosen), len(chosen))
         running: list[int] = []
         for i in chosen:
             running.append(i)
             gains.append(obj(running))
     current_W = base + sum((Ws[i] for i in chosen), np.zeros((n, n)))
     dims_needed = not chosen
+    start = len(chosen)
     while len(chosen) < k:
+        announce(progress, "greedy additions", len(chosen) - start, k - start)
         best, best_key = -1, (-1, -np.inf)
         for i in cand.tolist():
             if i in chosen:
@@ -246,7 +283,7 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
             dim = _generic_dimension(system, chosen + [i]) if dims_needed else n
             key = (dim, val)
             if best < 0 or key[0] > best_key[0] or (
-                    key[0] == best_key[0] and val > best_key[1] + 1e-12 * max(1.0, abs(
+                    key[0] == best_key[0] and val > best_key[1] + _TIE * max(1.0, abs(
                         best_key[1]))):
                 best, best_key = i, key
         chosen.append(best)
@@ -254,6 +291,8 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
         gains.append(best_key[1])
         if dims_needed and best_key[0] == n:
             dims_needed = False
+    if k > start:
+        announce(progress, "greedy additions", k - start, k - start)
     ok = _structurally_controllable(system, chosen)
     lam_sel = _lambda_min_upper(A, np.eye(n)[:, chosen], T)
     lam_struct = _lambda_min_upper(A, np.eye(n)[:, struct], T)

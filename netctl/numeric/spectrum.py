@@ -18,6 +18,8 @@ from typing import Any
 import numpy as np
 import scipy.linalg as la
 
+from netctl.numeric._tasks import Progress
+
 __all__ = ["Cluster", "jordan_clusters", "rational_matrix", "exact_spectrum",
            "EXACT_LIMIT", "MAX_BLOCK"]
 
@@ -57,7 +59,8 @@ def _radius(k: int, n: int, scale: float) -> float:
 
 
 def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
-                    symmetric: bool = False) -> list[Cluster]:
+                    symmetric: bool = False, progress: Progress | None = None
+                    ) -> list[Cluster]:
     r"""Eigenvalue clusters sized for Jordan blocks, each with its geometric multiplicity.
 
     Eigenvalue ``i`` and its ``k - 1`` nearest neighbours form one eigenvalue when they
@@ -75,6 +78,9 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
         Its eigenvalues (computed when omitted).
     symmetric : bool
         Hermitian ``A``: every eigenvalue is semisimple; clusters use ``r_1`` only.
+    progress : callable(stage, done, total), optional
+        Told of each cluster rank decision (one SVD of ``A - mu I`` per cluster of
+        two or more eigenvalues; :data:`netctl.numeric._tasks.Progress`).
 
     Returns
     -------
@@ -95,7 +101,11 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
     if n == 0:
         return []
     if lam is None:
+        if progress is not None:
+            progress("eigenvalues", 0, 1)
         lam = la.eigvalsh(A).astype(complex) if symmetric else la.eigvals(A)
+        if progress is not None:
+            progress("eigenvalues", 1, 1)
     lam = np.asarray(lam, complex)
     scale = max(float(la.norm(A, 2)), 1e-300)
     kmax = 1 if symmetric else min(MAX_BLOCK, n)
@@ -121,12 +131,18 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
     _, labels = connected_components(g + sp.eye_array(n, format="csr"), directed=False)
     tol = _SAFETY * n * _EPS * scale
     out: list[Cluster] = []
+    sizes = np.bincount(labels)
+    multiple = int(np.count_nonzero(sizes > 1)) if not symmetric else 0
+    ranked = 0
     for c in np.unique(labels):
         idx = np.flatnonzero(labels == c)
         mu = complex(np.mean(lam[idx]))
         if idx.size == 1 or symmetric:
             out.append(Cluster(mu, int(idx.size), int(idx.size), np.inf, idx))
             continue
+        if progress is not None:
+            progress("cluster ranks", ranked, multiple)
+        ranked += 1
         s = la.svd(A - mu * np.eye(n), compute_uv=False)
         geo = int(np.count_nonzero(s <= tol))
         geo = max(1, min(geo, int(idx.size)))
@@ -134,6 +150,8 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
         dropped = max(float(s[n - geo]), _EPS * scale)
         margin = float(np.log10(kept / dropped)) if np.isfinite(kept) else np.inf
         out.append(Cluster(mu, int(idx.size), geo, margin, idx))
+    if progress is not None and multiple:
+        progress("cluster ranks", multiple, multiple)
     out.sort(key=lambda c: (round(c.eigenvalue.real, 9), round(c.eigenvalue.imag, 9)))
     return out
 

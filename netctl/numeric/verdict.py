@@ -18,7 +18,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["Verdict", "VERDICTS", "judge", "FAILING"]
+__all__ = ["Verdict", "VERDICTS", "judge", "FAILING", "MARGIN_DECADES", "WEAK_REACH"]
 
 #: verdict key -> the one wording used everywhere
 VERDICTS: dict[str, str] = {
@@ -29,6 +29,13 @@ VERDICTS: dict[str, str] = {
 }
 #: verdicts that make a verb exit with status 1
 FAILING = ("structural", "numeric")
+#: a rank decision fewer decades than this above rounding is "close to rounding" (common
+#: practice, no published source; the verdict's detail states it)
+MARGIN_DECADES = 2.0
+#: a mode whose reach (cosine between its left eigenvector and the input space) is below
+#: this is reached only beyond working precision (our choice, no published source: about
+#: the square root of eps; the verdict's detail states it)
+WEAK_REACH = 1e-8
 
 
 @dataclass(frozen=True)
@@ -64,10 +71,15 @@ class Verdict:
 
 def judge(*, n: int, structural_dimension: int, numeric_dimension: int | None,
           numeric_margin: float | None = None, condition: float | None = None,
-          worst_energy_bound: float | None = None, eps: float = 2.220446049250313e-16
-          ) -> Verdict:
+          worst_energy_bound: float | None = None, eps: float = 2.220446049250313e-16,
+          weakest_reach: float | None = None) -> Verdict:
     """Pick the verdict from the structural dimension, a numeric rank test and (when
-    known) the Gramian's condition number.
+    known) the Gramian's condition number or the weakest mode's reach.
+
+    The ill-conditioned verdict rests on a Gramian condition number of at least
+    ``1/eps`` (working precision), else on the weakest mode's reach below
+    :data:`WEAK_REACH` or a rank margin below :data:`MARGIN_DECADES` -- two thresholds
+    of netctl's own choosing, named in the verdict's detail.
 
     References
     ----------
@@ -97,7 +109,14 @@ def judge(*, n: int, structural_dimension: int, numeric_dimension: int | None,
         return Verdict("ill-conditioned", f"Gramian condition number >= {condition:.3g}, "
                                           f"about {digits:.0f} digits lost of "
                                           f"{-math.log10(eps):.0f}{e}")
-    if numeric_margin is not None and numeric_margin < 2.0 and condition is None:
+    if weakest_reach is not None and weakest_reach < WEAK_REACH:
+        return Verdict("ill-conditioned", f"the weakest mode's reach is {weakest_reach:.3g}, "
+                                          f"below {WEAK_REACH:g} (netctl's own threshold, "
+                                          "no published source): the inputs act on it "
+                                          "only at the level of rounding")
+    if numeric_margin is not None and numeric_margin < MARGIN_DECADES and condition is None:
         return Verdict("ill-conditioned", f"the rank test finds every direction only "
-                                          f"{numeric_margin:.3g} decades above rounding")
+                                          f"{numeric_margin:.3g} decades above rounding "
+                                          f"(threshold {MARGIN_DECADES:g} decades: common "
+                                          "practice, no published source)")
     return Verdict("controllable")

@@ -2,13 +2,13 @@
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
 
 from netctl.errors import OptionError
+from netctl.numeric._tasks import Runner
 from netctl.numeric.certificate import sparse_certificate
 from netctl.numeric.prime_field import MODULAR_WEIGHTS, modular
 from netctl.numeric.rank import DENSE_LIMIT, LostMode, RankTest, pbh, staircase
@@ -21,6 +21,8 @@ __all__ = ["Verification", "verify", "Runner", "METHODS", "AUTO_DENSE_LIMIT",
 
 METHODS = ("auto", "staircase", "pbh", "modular", "certificate")
 AUTO_DENSE_LIMIT = 3000
+#: a sample whose rank margin is below this many decades is "close to rounding" (common
+#: practice, no published source)
 UNCERTAIN_DECADES = 2.0
 EXACT_CHECK_LIMIT = 2000
 _DETERMINISTIC = ("uniform", "given")
@@ -140,10 +142,6 @@ def _agrees(r: RankTest, structural: int, n: int) -> bool:
     return r.dimension == structural
 
 
-#: ``runner(task, items, shared) -> results in item order``: runs ``task(item, seed,
-#: shared)`` for every item (``netctl.ensemble.executor.run_tasks`` fits; the numeric
-#: layer does not import it, the command line passes it in).
-Runner = Callable[[Callable[[Any, Any, Any], Any], list[Any], Any], Sequence[Any]]
 
 
 #: Weights for which the sparse certificate works on the pattern itself (no realization).

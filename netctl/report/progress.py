@@ -8,7 +8,7 @@ from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from typing import TextIO
 
-__all__ = ["Progress", "count_progress"]
+__all__ = ["Progress", "count_progress", "stage_progress"]
 
 
 class Progress:
@@ -95,6 +95,48 @@ def count_progress(what: str, *, stream: TextIO | None = None,
     def tick(done: int, total: int) -> None:
         if done == total or done % max(total // 100, 1) == 0:
             out.write(f"\rnetctl: {what} {done}/{total}")
+            if done == total:
+                out.write("\n")
+            out.flush()
+
+    return tick
+
+
+def stage_progress(what: str, *, stream: TextIO | None = None,
+                   enabled: bool | None = None) -> Callable[[str, int, int], None] | None:
+    """A ``progress(stage, done, total)`` callback for the numeric analyses: one stderr
+    line a stage ("netctl: WHAT: STAGE 12/100", rewritten in place about a hundred times,
+    ended when the stage is done or another begins); ``None`` when the stream is not a
+    terminal. A single long call shows as ``0/1`` while it runs.
+
+    Examples
+    --------
+    >>> import io
+    >>> buf = io.StringIO()
+    >>> tick = stage_progress("modes", stream=buf, enabled=True)
+    >>> tick("eigen-decomposition", 0, 1); tick("eigen-decomposition", 1, 1)
+    >>> tick("mode reach", 0, 2); tick("mode reach", 1, 2); tick("mode reach", 2, 2)
+    >>> [line.split("\\r")[-1] for line in buf.getvalue().split("\\n") if line]
+    ['netctl: modes: eigen-decomposition 1/1', 'netctl: modes: mode reach 2/2']
+    >>> stage_progress("modes", stream=io.StringIO()) is None
+    True
+    """
+    out = stream if stream is not None else sys.stderr
+    if enabled is None:
+        isatty = getattr(out, "isatty", None)
+        enabled = bool(isatty and isatty())
+    if not enabled:
+        return None
+    state = {"stage": None, "open": False}
+
+    def tick(stage: str, done: int, total: int) -> None:
+        if state["open"] and state["stage"] != stage:
+            out.write("\n")  # the previous stage stopped short of its total
+            state["open"] = False
+        state["stage"] = stage
+        if done == total or done % max(total // 100, 1) == 0:
+            out.write(f"\rnetctl: {what}: {stage} {done}/{total}")
+            state["open"] = done != total
             if done == total:
                 out.write("\n")
             out.flush()
