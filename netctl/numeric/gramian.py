@@ -25,6 +25,7 @@ from typing import Any
 
 import numpy as np
 import scipy.linalg as la
+from netctl import _jit
 from netctl._jit import njit
 from dataclasses import dataclass
 
@@ -137,7 +138,13 @@ def lyapunov_factor(A: np.ndarray, B: np.ndarray) -> np.ndarray:
     if C.shape[0]:
         Rc = la.qr(C, mode="r")[0]
         R[:min(n, Rc.shape[0])] = Rc[:n]
-    U = _hammarling_kernel(np.ascontiguousarray(S), R)
+    # the kernel's path (its Python body or numba's) is chosen by size alone, never by
+    # whether numba happens to be loaded in this process: the two round differently, and
+    # the same input must give the same bytes everywhere (e.g. once the executor's
+    # workers have been started, which loads numba in this process)
+    path = _jit.always_python if S.size + R.size < _jit.THRESHOLD else _jit.always_compiled
+    with path():
+        U = _hammarling_kernel(np.ascontiguousarray(S), R)
     return _real_factor(Q @ U.conj().T)
 
 
