@@ -33,7 +33,7 @@ from netctl.errors import OptionError
 
 __all__ = ["lyapunov_factor", "finite_horizon_factor", "gramian_factor", "gramian_mp",
            "factor_eigenvalues", "PRECISION_BUDGET", "max_precision", "SmallestEigenvalue",
-           "smallest_eigenvalue_mp"]
+           "smallest_eigenvalue_mp", "single_input_plan", "single_input_gramian"]
 
 #: mpmath work allowed, in n^3 * digits: the --precision cost limit (about a minute on a
 #: 2-core machine of 2026; our choice, no published source)
@@ -434,3 +434,74 @@ def _check_finite(A: np.ndarray, B: np.ndarray, names: tuple[str, ...]) -> None:
             raise OptionError(f"{what}[{where}] is {M[i, j]!r}; Gramians need finite "
                               "weights. Fix that weight in the file, or choose sampled "
                               "--weights.")
+
+
+# ---------------------------------------------------------------- many single-input Gramians
+def single_input_plan(A: np.ndarray, horizon: float | None) -> tuple[Any, ...]:
+    """What every single-input Gramian of ``A`` over ``horizon`` shares, computed once.
+
+    Infinite horizon (Hurwitz ``A``): the complex Schur form ``A = Q S Q^H`` (Bartels &
+    Stewart [1]_); each Gramian is then one triangular Sylvester solve. Finite horizon:
+    the step matrices ``e^{A dt}`` of the Gauss-Legendre nodes of
+    :func:`finite_horizon_factor` (a few dozen distinct steps); each Gramian is then a
+    chain of matrix-vector products. Pass the plan to :func:`single_input_gramian`
+    (it is what an executor sends to its workers once).
+
+    References
+    ----------
+    .. [1] R. H. Bartels, G. W. Stewart, "Solution of the matrix equation AX + XB = C",
+       Comm. ACM 15(9):820-826, 1972. doi:10.1145/361573.361582
+    """
+    A = np.asarray(A, float)
+    if horizon is None:
+        S, Q = la.schur(A.astype(complex), output="complex")
+        return ("lyapunov", S, Q)
+    T = float(horizon)
+    panels = max(1, int(math.ceil(2.0 * float(la.norm(A, 2)) * T))) if A.size else 1
+    h = T / panels
+    x, w = np.polynomial.legendre.leggauss(_NODES)
+    times = (np.arange(panels)[:, None] * h + ((x + 1.0) * h / 2.0)[None, :]).ravel()
+    weights = np.tile(w * h / 2.0, panels)
+    steps: list[np.ndarray] = []
+    index: dict[float, int] = {}
+    order: list[int] = []
+    prev = 0.0
+    for t in times.tolist():
+        dt = round(t - prev, 15)
+        if dt not in index:
+            index[dt] = len(steps)
+            steps.append(la.expm(A * (t - prev)))
+        order.append(index[dt])
+        prev = t
+    return ("quadrature", steps, np.asarray(order, np.int64), np.sqrt(weights))
+
+
+def single_input_gramian(plan: tuple[Any, ...], i: int) -> np.ndarray:
+    """The Gramian with one dedicated input at state ``i`` (dense, symmetric), from a
+    :func:`single_input_plan`: ``O(n^3)`` without a new Schur form (infinite horizon),
+    ``O(n^2)`` per quadrature node (finite horizon, the nodes of
+    :func:`finite_horizon_factor`, so the same quadrature as the report's Gramian).
+
+    References
+    ----------
+    .. [1] R. H. Bartels, G. W. Stewart, Comm. ACM 15(9):820-826, 1972.
+       doi:10.1145/361573.361582
+    """
+    if plan[0] == "lyapunov":
+        _, S, Q = plan
+        c = np.conj(Q[int(i), :])[:, None]           # Q^H e_i
+        Y, scale, info = la.lapack.ztrsyl(S, S, -(c @ c.conj().T), trana="N", tranb="C")
+        if info < 0:  # pragma: no cover - bad arguments: a programming error
+            raise RuntimeError(f"ztrsyl failed (info {info})")
+        W = (Q @ (Y / scale) @ Q.conj().T).real
+    else:
+        _, steps, order, sw = plan
+        n = steps[0].shape[0] if steps else 0
+        X = np.zeros(n)
+        X[int(i)] = 1.0
+        F = np.empty((n, order.size))
+        for k, j in enumerate(order.tolist()):
+            X = steps[j] @ X
+            F[:, k] = sw[k] * X
+        W = F @ F.T
+    return (W + W.T) / 2

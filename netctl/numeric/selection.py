@@ -15,6 +15,8 @@ from netctl.numeric.gramian import (
     _gramian_vanloan,
     gramian_factor,
     _logdet,
+    single_input_gramian,
+    single_input_plan,
 )
 from netctl.numeric._tasks import Progress, Runner, announce
 from netctl.numeric.rank import _dense
@@ -98,15 +100,12 @@ _SWAP_GAIN = 1e-9
 _TIE = 1e-12
 
 
-def _candidate_gramian(i: int, _seed: Any, shared: tuple[np.ndarray, float | None]
-                       ) -> np.ndarray:
-    """Executor task: the Gramian with one dedicated input at state ``i`` (``shared``:
-    the dense ``A`` and the horizon). No randomness: the result does not depend on the
-    worker or the seed."""
-    A, T = shared
-    e = np.zeros((A.shape[0], 1))
-    e[int(i), 0] = 1.0
-    return _gramian_vanloan(A, e, T)
+def _candidate_gramian(i: int, _seed: Any, plan: tuple[Any, ...]) -> np.ndarray:
+    """Executor task: the Gramian with one dedicated input at state ``i`` (``plan``: the
+    Schur form or quadrature steps of ``A``, :func:`netctl.numeric.gramian.
+    single_input_plan`, sent to each worker once). No randomness: the result does not
+    depend on the worker or the seed."""
+    return single_input_gramian(plan, i)
 
 
 def _structurally_controllable(system: StructuredSystem, states: list[int]) -> bool:
@@ -171,9 +170,11 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
 
     Notes
     -----
-    One Gramian per candidate, one ``log det`` per candidate and round, and a
-    structural test per exchange tried: ``O(|candidates| n^3 (1 + budget))``; limited
-    to 400 states.
+    One Gramian per candidate -- all from one Schur form of ``A`` (Bartels-Stewart) or
+    one set of quadrature steps (finite horizon), :func:`netctl.numeric.gramian.
+    single_input_gramian` --, one ``log det`` per candidate and round, and a structural
+    test per exchange tried: ``O(|candidates| n^3 (1 + budget))``; limited to 400
+    states.
 
     References
     ----------
@@ -224,13 +225,14 @@ def select_actuators(system: StructuredSystem, *, budget: int | None = None,
                           f"et al.): fewer leave states uncontrollable for every weight. "
                           f"Use a budget of at least {struct.size}.")
     need = sorted(set(cand.tolist()) | set(struct.tolist()))
+    plan = single_input_plan(A, T)  # one Schur form (or one set of steps) for all
     if runner is not None and len(need) > 1:
-        Ws = dict(zip(need, runner(_candidate_gramian, need, (A, T))))
+        Ws = dict(zip(need, runner(_candidate_gramian, need, plan)))
     else:
         Ws = {}
         for done, i in enumerate(need):
             announce(progress, "candidate Gramians", done, len(need))
-            Ws[i] = _candidate_gramian(i, None, (A, T))
+            Ws[i] = _candidate_gramian(i, None, plan)
         announce(progress, "candidate Gramians", len(need), len(need))
     W_all = _gramian_vanloan(A, np.eye(n), T)
     # regularization 1e-6 of the mean eigenvalue of W_all: our choice, no source (it keeps

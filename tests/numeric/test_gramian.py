@@ -194,3 +194,29 @@ def test_non_finite_weight_is_bad_input():
     with pytest.raises(NetctlError):  # exit 2 at the command line
         energy(StructuredSystem.from_matrices(np.array([[-1.0, 0.0], [np.inf, -1.0]]),
                                               np.array([[1.0], [0.0]])))
+
+
+@pytest.mark.parametrize("n, seed", [(1, 0), (3, 1), (9, 2), (25, 3)])
+@pytest.mark.parametrize("horizon", [None, 0.7, 2.0])
+def test_single_input_gramians_match_scipy(n, seed, horizon):
+    # references: scipy.linalg.solve_continuous_lyapunov (infinite horizon) and
+    # scipy.linalg.expm of Van Loan's block matrix (finite horizon; Van Loan, IEEE TAC
+    # 23(3):395-404, 1978), one input at each state in turn, well conditioned
+    from netctl.numeric.gramian import single_input_gramian, single_input_plan
+
+    rng = np.random.default_rng(seed)
+    A = rng.standard_normal((n, n))
+    if horizon is None:
+        A -= (np.max(la.eigvals(A).real) + 1.0) * np.eye(n)
+    plan = single_input_plan(A, horizon)
+    for i in range(n):
+        b = np.zeros((n, 1))
+        b[i] = 1.0
+        if horizon is None:
+            ref = la.solve_continuous_lyapunov(A, -b @ b.T)
+        else:
+            M = np.block([[-A, b @ b.T], [np.zeros((n, n)), A.T]])
+            F = la.expm(M * horizon)
+            ref = F[n:, n:].T @ F[:n, n:]
+        np.testing.assert_allclose(single_input_gramian(plan, i), ref, rtol=1e-10,
+                                   atol=1e-12 * np.abs(ref).max())
