@@ -2,12 +2,23 @@
 
     python3 benchmarks/bench_numeric.py            # n = 2000 / 1000 / 10^6 (several minutes)
     python3 benchmarks/bench_numeric.py --quick    # small sizes, a smoke run
+    python3 benchmarks/bench_numeric.py --networks DIR   # files for the verb timings (4.)
 
 1. staircase (netctl.numeric.staircase kernel) at n = 2000 against one numpy SVD of
    [A B] of the same size (target: within 3x); one and five dedicated inputs.
 2. modular test (exact Krylov rank over GF(2^61-1), python-flint) at n = 1000.
 3. sparse certificate on 10^6-state networks: a 1000 x 1000 grid with links both ways
    (one input) and a tree-like network with 20 % extra local links (minimum inputs).
+
+4. Whole verbs, before / after (issue 22, item 4): ``--networks DIR`` writes sparse
+   directed networks of 120, 200, 1000 and 2000 states (mean out-degree 4 plus a self-loop on
+   every state: damping), then time two code trees in turn with ``farm-bench``::
+
+       farm-bench -n 3 --vs 'env PYTHONPATH=BEFORE python3 -m netctl modes DIR/net1000.txt
+           --weights independent --quiet' -- env PYTHONPATH=AFTER python3 -m netctl modes
+           DIR/net1000.txt --weights independent --quiet
+       (the same for ``energy DIR/net120.txt --weights independent --json --quiet``:
+        the Gramian, the rank test and the greedy choice of the structural count)
 
 Networks are synthetic scenarios of our own making (seeded). The machine is shared:
 quote ratios from one run, not absolute times.
@@ -63,10 +74,36 @@ def tree_like(n, rng):
     return minimum_inputs(s, dedicated=True).apply(s)
 
 
+def write_networks(folder: str) -> None:
+    """Edge lists ``net{n}.txt`` for the whole-verb timings (a scenario of our own): 200,
+    1000 and 2000 states from one random stream, 120 states from another."""
+    import os
+
+    os.makedirs(folder, exist_ok=True)
+    for sizes, seed in (((200, 1000, 2000), 20261204), ((120,), 20261205)):
+        _write_sizes(folder, sizes, np.random.default_rng(seed))
+
+
+def _write_sizes(folder: str, sizes: tuple[int, ...], rng: np.random.Generator) -> None:
+    import os
+
+    for n in sizes:
+        u, v = rng.integers(0, n, 4 * n), rng.integers(0, n, 4 * n)
+        keep = u != v
+        pairs = sorted(set(zip(u[keep].tolist(), v[keep].tolist())))
+        with open(os.path.join(folder, f"net{n}.txt"), "w") as fh:
+            fh.writelines(f"n{a} n{b}\n" for a, b in pairs)
+            fh.writelines(f"n{a} n{a}\n" for a in range(n))
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--quick", action="store_true")
+    ap.add_argument("--networks", metavar="DIR", help="write the verb-timing networks")
     args = ap.parse_args()
+    if args.networks:
+        write_networks(args.networks)
+        return
     rng = np.random.default_rng(20261202)
     n_dense = 400 if args.quick else 2000
     n_mod = 200 if args.quick else 1000
