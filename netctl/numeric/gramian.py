@@ -25,8 +25,7 @@ from typing import Any
 
 import numpy as np
 import scipy.linalg as la
-from netctl import _jit
-from netctl._jit import njit
+from netctl._jit import THRESHOLD, always_compiled, always_python, njit
 from dataclasses import dataclass
 
 from netctl.errors import OptionError
@@ -142,7 +141,7 @@ def lyapunov_factor(A: np.ndarray, B: np.ndarray) -> np.ndarray:
     # whether numba happens to be loaded in this process: the two round differently, and
     # the same input must give the same bytes everywhere (e.g. once the executor's
     # workers have been started, which loads numba in this process)
-    path = _jit.always_python if S.size + R.size < _jit.THRESHOLD else _jit.always_compiled
+    path = always_python if S.size + R.size < THRESHOLD else always_compiled
     with path():
         U = _hammarling_kernel(np.ascontiguousarray(S), R)
     return _real_factor(Q @ U.conj().T)

@@ -6,7 +6,7 @@ import sys
 import time
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
-from typing import TextIO
+from typing import Any, TextIO
 
 __all__ = ["Progress", "count_progress", "stage_progress"]
 
@@ -127,7 +127,7 @@ def stage_progress(what: str, *, stream: TextIO | None = None,
         enabled = bool(isatty and isatty())
     if not enabled:
         return None
-    state = {"stage": None, "open": False}
+    state: dict[str, Any] = {"stage": None, "open": False}
 
     def tick(stage: str, done: int, total: int) -> None:
         if state["open"] and state["stage"] != stage:
