@@ -375,6 +375,42 @@ def _dilation(A: sp.csr_array, B: sp.csr_array, row_match: np.ndarray) -> Dilati
 
 
 def _hosoe_dimension(A: sp.csr_array, B: sp.csr_array, acc: np.ndarray) -> int:
+    """Hosoe's generic dimension: the most accessible states covered by disjoint stems
+    and cycles (:func:`netctl.graph.cover.stem_cycle_cover`, primal-dual phases)."""
+    from netctl.graph.cover import stem_cycle_cover
+
+    n = A.shape[0]
+    acc = np.asarray(acc, bool)
+    r = int(np.count_nonzero(acc))
+    if r == 0:
+        return 0
+    indptr, indices, n_cols = stack_AB(A, B)
+    indptr = np.asarray(indptr, np.int64)
+    indices = np.asarray(indices, np.int64)
+    # restrict [A B] to the accessible rows and state columns (inputs all kept): one
+    # mask over the entries, columns renumbered monotonically (rows stay sorted)
+    new_col = np.full(n_cols, -1, np.int64)
+    new_col[np.flatnonzero(acc)] = np.arange(r)
+    new_col[n:] = r + np.arange(n_cols - n)
+    counts = np.diff(indptr)
+    keep_row = np.repeat(acc, counts)
+    cols = new_col[indices]
+    keep = keep_row & (cols >= 0)
+    rows_of = np.repeat(np.arange(n, dtype=np.int64), counts)[keep]
+    sub_ind = cols[keep]
+    row_new = np.cumsum(acc) - 1
+    sub_ptr = np.zeros(r + 1, np.int64)
+    np.cumsum(np.bincount(row_new[rows_of], minlength=r), out=sub_ptr[1:])
+    has_loop = np.zeros(r, bool)
+    own = sub_ind == row_new[rows_of]
+    has_loop[row_new[rows_of[own]]] = True
+    _, n_unc = stem_cycle_cover(sub_ptr, sub_ind, r + n_cols - n, has_loop)
+    return r - n_unc
+
+
+def _hosoe_dimension_reference(A: sp.csr_array, B: sp.csr_array, acc: np.ndarray) -> int:
+    """Hosoe's dimension by SciPy's minimum-weight full matching (LAPJVsp) on the same
+    costs: an independent reference for tests and benchmarks (slow on huge systems)."""
     # imported here: scipy.sparse.csgraph pulls in scipy.linalg (~0.1 s at start-up)
     from scipy.sparse.csgraph import min_weight_full_bipartite_matching
 

@@ -24,7 +24,7 @@ from netctl.errors import OptionError
 from netctl.graph.components import reachable_from, strongly_connected_components
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.graph.stem_cycle import cycle_cover_prices, reach_sums, stem_gains
-from netctl.structural.controllability import _hosoe_dimension
+from netctl.structural.controllability import _hosoe_dimension_reference
 from netctl.system import StructuredSystem
 
 __all__ = [
@@ -408,7 +408,7 @@ def _control_centrality_by_assignments(system: StructuredSystem, *,
         mask = np.zeros(n, bool)
         mask[reachable_from(optr, oind, np.array([i], np.int64))] = True
         B = sp.csr_array((np.ones(1), (np.array([i]), np.array([0]))), shape=(n, 1))
-        cent[i] = _hosoe_dimension(A, B, mask)
+        cent[i] = _hosoe_dimension_reference(A, B, mask)
     return cent
 
 
