@@ -50,13 +50,14 @@ def _write_rows(fh: Any, nodes: Any, links: Any) -> None:
 
 
 def _cmd_roles(args: argparse.Namespace) -> int:
-    from netctl.structural.roles import link_roles, node_roles
+    from netctl.structural.roles import _link_roles, _node_roles, _roles_facts
 
     system = load_system(args)
     with analysis_step(args, system, "node roles"):
-        nr = node_roles(system)
+        facts = _roles_facts(system)  # one matching of A for both tables
+        nr = _node_roles(system, facts)
     with analysis_step(args, system, "link roles"):
-        lr = link_roles(system)
+        lr = _link_roles(system, facts)
     d = {"analysis": "roles", "file": args.file, "n_states": nr.n_states,
          "n_links": lr.n_links, "model": system.model, "n_inputs": nr.n_inputs,
          "structural_rank_A": nr.matching_size, "perfect_matching": nr.perfect_matching,
@@ -76,11 +77,13 @@ def _cmd_roles(args: argparse.Namespace) -> int:
                      f"{t.state} of every source component, so those {t.states} are the "
                      "candidates)")
     lines.append(f"  critical {t.states} (in every minimum driver set): "
-                 f"{_short(nr.names(nr.critical))}")
+                 f"{_short(nr.names(nr.critical[:21]), nr.critical.size)}")
     lines.append(f"  links: {lc['critical']} critical, {lc['ordinary']} ordinary, "
                  f"{lc['redundant']} redundant")
-    crit = [f"{a} -> {b}" for a, b in lr.link_names(lr.critical)]
-    lines.append(f"  critical links (losing one costs structural rank): {_short(crit)}")
+    # names only for the links shown (millions of critical links at 10^7 links)
+    crit = [f"{a} -> {b}" for a, b in lr.link_names(lr.critical[:21])]
+    lines.append(f"  critical links (losing one costs structural rank): "
+                 f"{_short(crit, lr.critical.size)}")
     lines.append("  " + str(caution(args)))
     if args.csv:
         write_roles_csv(args.csv, nr, lr)
@@ -88,9 +91,11 @@ def _cmd_roles(args: argparse.Namespace) -> int:
     return 0
 
 
-def _short(items: list[str], limit: int = 20) -> str:
-    if not items:
+def _short(items: list[str], total: int | None = None, limit: int = 20) -> str:
+    """The first ``limit`` of ``total`` items (default: all of ``items``), then a count."""
+    total = len(items) if total is None else int(total)
+    if not total:
         return "none"
-    if len(items) <= limit:
+    if total <= limit:
         return ", ".join(items)
-    return ", ".join(items[:limit]) + f", ... ({len(items) - limit} more; --json lists all)"
+    return ", ".join(items[:limit]) + f", ... ({total - limit} more; --json lists all)"

@@ -121,16 +121,29 @@ def _alternating_graph(indptr, indices, col_match):  # pragma: no cover - compil
 def edge_classes(f: MatchingFacts) -> np.ndarray:
     """Class of every stored edge (CSR order): 0 in every maximum matching, 1 in some but
     not all, 2 in none (Liu et al. 2011 critical / ordinary / redundant)."""
-    row_of = np.repeat(np.arange(f.n_rows, dtype=np.int64), np.diff(f.indptr))
-    col = f.indices
-    matched = f.row_match[row_of] == col
-    partner = f.col_match[col]
-    same = np.where(matched, f.h_scc_size[f.h_scc[row_of]] >= 2,
-                    (partner >= 0) & (f.h_scc[row_of] == f.h_scc[np.maximum(partner, 0)]))
-    flexible = f.rows_free[row_of] | f.cols_free[col] | same
-    out = np.full(col.size, 1, np.int8)
-    out[matched & ~flexible] = 0
-    out[~matched & ~flexible] = 2
+    return _edge_classes(f.indptr, f.indices, f.row_match, f.col_match, f.h_scc,
+                         f.h_scc_size, f.rows_free, f.cols_free)
+
+
+@njit(cache=True, nogil=True)
+def _edge_classes(indptr, indices, row_match, col_match, scc, scc_size, rows_free,
+                  cols_free):  # pragma: no cover - compiled
+    out = np.empty(indices.size, np.int8)
+    for r in range(indptr.size - 1):
+        for k in range(indptr[r], indptr[r + 1]):
+            c = indices[k]
+            matched = row_match[r] == c
+            if matched:
+                same = scc_size[scc[r]] >= 2
+            else:
+                p = col_match[c]
+                same = p >= 0 and scc[r] == scc[p]
+            if rows_free[r] or cols_free[c] or same:
+                out[k] = 1
+            elif matched:
+                out[k] = 0
+            else:
+                out[k] = 2
     return out
 
 
@@ -377,6 +390,11 @@ def node_roles(system: StructuredSystem) -> NodeRoles:
     >>> r.n_inputs, r.names(r.critical), r.names(r.intermittent), r.names(r.redundant)
     (3, ['1'], ['3', '4', '5'], ['2'])
     """
+    return _node_roles(system, None)
+
+
+def _node_roles(system: StructuredSystem, facts: MatchingFacts | None) -> NodeRoles:
+    """:func:`node_roles`, reusing the matching of ``facts`` (of ``A``) when given."""
     A = system.A
     n = system.n_states
     indptr = A.indptr.astype(np.int64)
@@ -384,7 +402,8 @@ def node_roles(system: StructuredSystem) -> NodeRoles:
     if n == 0:
         role, size, basis = np.zeros(0, np.int8), 0, "empty"
     else:
-        _, col_match = maximum_matching(indptr, indices, n)
+        col_match = (maximum_matching(indptr, indices, n)[1] if facts is None
+                     else facts.col_match)
         role, size, basis = node_role_codes(indptr, indices, col_match)
     return NodeRoles(
         n_states=n, role=role, critical=np.flatnonzero(role == 0),
@@ -445,6 +464,20 @@ def link_roles(system: StructuredSystem) -> LinkRoles:
     >>> r.link_names(r.critical), len(r.ordinary), r.n_inputs_after_loss.tolist()
     ([('x0', 'x1')], 3, [4, 3, 3, 3])
     """
+    return _link_roles(system, None)
+
+
+def _roles_facts(system: StructuredSystem) -> MatchingFacts | None:
+    """The :class:`MatchingFacts` of ``A`` that :func:`node_roles` and
+    :func:`link_roles` share (``None`` for a system without states or links)."""
+    A = system.A
+    if system.n_states == 0 or A.nnz == 0:
+        return None
+    return matching_facts(A.indptr, A.indices, system.n_states)
+
+
+def _link_roles(system: StructuredSystem, facts: MatchingFacts | None) -> LinkRoles:
+    """:func:`link_roles`, reusing ``facts`` (from :func:`roles_facts`) when given."""
     A = system.A
     n = system.n_states
     src, tgt = system.edges()
@@ -452,7 +485,7 @@ def link_roles(system: StructuredSystem) -> LinkRoles:
         role = np.full(src.size, 2, np.int8)
         size = 0
     else:
-        f = matching_facts(A.indptr, A.indices, n)
+        f = matching_facts(A.indptr, A.indices, n) if facts is None else facts
         role = edge_classes(f)
         size = f.matching_size
     after = np.where(role == 0, _n_d(n, size - 1) if size else 0, _n_d(n, size))
