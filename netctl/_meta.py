@@ -6,7 +6,7 @@ command line and the package root can all use these without importing each other
 
 from __future__ import annotations
 
-__all__ = ["CAUTION", "__version__"]
+__all__ = ["CAUTION", "GRID_CAUTION", "__version__"]
 
 __version__ = "0.1.0"
 
@@ -15,3 +15,7 @@ CAUTION = ("Caution: results concern a linear(ized) structural model, not the pl
            "a structurally controllable design can still need impractically large inputs. "
            "Safety-relevant decisions follow the operator's procedures, applicable codes and "
            "licensed engineers.")
+
+#: The caution of every grid result (text, JSON, report): what a planner may take from it.
+GRID_CAUTION = ("results concern a linearized model of the grid, not operating decisions, "
+                "which stay with the system operator's procedures and applicable codes")

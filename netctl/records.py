@@ -38,6 +38,7 @@ __all__ = [
     "TIE_KINDS",
     "Tie",
     "check_site_kind",
+    "kinds_text",
 ]
 
 #: What a site may host.
@@ -193,6 +194,12 @@ class Tie:
 #: Kinds of element, in the order reports group them.
 ELEMENT_KINDS: tuple[str, ...] = ("line", "transformer", "impedance", "switch", "bus",
                                   "generator")
+def kinds_text(counts: Mapping[str, int]) -> str:
+    """``"4 lines, 1 transformer, 4 buses"`` from counts by kind (zero counts left out)."""
+    return ", ".join(f"{c} {k}{('es' if k[-1] in 'sh' else 's') if c != 1 else ''}"
+                     for k, c in counts.items() if c)
+
+
 #: Kinds that join two buses.
 BRANCH_KINDS: tuple[str, ...] = ("line", "transformer", "impedance", "switch")
 

@@ -289,6 +289,20 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
     return system
 
 
+def _grid_text(grid: dict[str, Any]) -> str:
+    """``  grid: 7 buses, 8 branches (7 lines, 1 transformer), 2 generators; ...``."""
+    from netctl.records import BRANCH_KINDS, kinds_text
+
+    kinds = grid["elements"]
+    nbr = sum(c for k, c in kinds.items() if k in BRANCH_KINDS)
+    parts = kinds_text({k: c for k, c in kinds.items() if k in BRANCH_KINDS})
+    ngen = kinds.get("generator", 0)
+    per = ("2 states a bus: angle (pos) and frequency (vel)"
+           if grid["model"] == "second-order" else "1 state a bus")
+    return (f"  grid: {grid['buses']} buses, {nbr} branches ({parts}), {ngen} generating "
+            f"unit(s); model {grid['model']} ({per})")
+
+
 def disturbance_summary(system: StructuredSystem) -> dict[str, Any]:
     """JSON-ready description of a system's disturbances and regulated outputs."""
     return {"n_disturbances": system.n_disturbances,
@@ -381,6 +395,8 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
         text = text.rstrip("\n") + f"\n  ({convention})"
     grid = getattr(args, "_grid", None)
     if grid is not None and text:
+        head, _, rest = text.partition("\n")
+        text = head + "\n" + _grid_text(grid) + ("\n" + rest if rest else "")
         text = text.rstrip("\n") + "\n  Grid: " + _GRID_CAUTION + "."
     if args.json or want_out:
         data = result() if callable(result) else result

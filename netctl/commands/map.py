@@ -132,8 +132,26 @@ def _cmd_map(args: argparse.Namespace) -> int:
             f"{args.out}: {what} of {args.file} ({system.n_states} states, "
             f"{system.n_links} links, {how} layout)\n"
             f"  {marks.n_inputs} input(s) on {marks.drivers.size} driver node(s) "
-            f"({design}); structurally controllable: {verdict}\n")
+            f"({design}); structurally controllable: {verdict}\n" + _grid_lines(args, marks))
     return 0 if marks.controllable else 1
+
+
+def _grid_lines(args: argparse.Namespace, marks: Any) -> str:
+    """For a grid: buses and branches, the critical branches by ID, the grid caution."""
+    from netctl.commands._options import _GRID_CAUTION, _grid_text
+
+    grid = getattr(args, "_grid", None)
+    if grid is None:
+        return ""
+    out = _grid_text(grid) + "\n"
+    if marks.critical_sources is not None:
+        ids = list(marks.critical_elements)
+        out += ("  critical branches (an outage raises the minimum inputs or breaks the "
+                f"design; links inside buses never drawn as such): {len(ids)}"
+                + (": " + ", ".join(ids[:20]) + (f", ... ({len(ids) - 20} more; --json "
+                                                 "lists all)" if len(ids) > 20 else "")
+                   if ids else "") + "\n")
+    return out + "  Grid: " + _GRID_CAUTION + ".\n"
 
 
 def _place(args: argparse.Namespace, system: Any) -> tuple[Any, str, Any]:

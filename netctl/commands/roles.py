@@ -6,6 +6,8 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+import numpy as np
+
 from netctl.commands._options import (
     add_terms,
     analysis_step,
@@ -76,19 +78,52 @@ def _cmd_roles(args: argparse.Namespace) -> int:
         lines.append(f"  (A has a perfect matching: one input suffices; it must act on one "
                      f"{t.state} of every source component, so those {t.states} are the "
                      "candidates)")
-    lines.append(f"  critical {t.states} (in every minimum driver set): "
-                 f"{_short(nr.names(nr.critical[:21]), nr.critical.size)}")
-    lines.append(f"  links: {lc['critical']} critical, {lc['ordinary']} ordinary, "
-                 f"{lc['redundant']} redundant")
-    # names only for the links shown (millions of critical links at 10^7 links)
-    crit = [f"{a} -> {b}" for a, b in lr.link_names(lr.critical[:21])]
-    lines.append(f"  critical links (losing one costs structural rank): "
-                 f"{_short(crit, lr.critical.size)}")
+    if system.elements is not None:
+        lines += _grid_lines(system, nr, lr, d, bool(args.json or args.out))
+    else:
+        lines.append(f"  critical {t.states} (in every minimum driver set): "
+                     f"{_short(nr.names(nr.critical[:21]), nr.critical.size)}")
+        lines.append(f"  links: {lc['critical']} critical, {lc['ordinary']} ordinary, "
+                     f"{lc['redundant']} redundant")
+        # names only for the links shown (millions of critical links at 10^7 links)
+        crit = [f"{a} -> {b}" for a, b in lr.link_names(lr.critical[:21])]
+        lines.append(f"  critical links (losing one costs structural rank): "
+                     f"{_short(crit, lr.critical.size)}")
     lines.append("  " + str(caution(args)))
     if args.csv:
         write_roles_csv(args.csv, nr, lr)
     emit(args, d, "\n".join(lines))
     return 0
+
+
+def _grid_lines(system: Any, nr: Any, lr: Any, d: dict[str, Any], full: bool) -> list[str]:
+    """Roles of a grid in its own terms: buses by number, branches by case ID; links
+    inside a bus (part of the model) never listed as contingencies. Adds ``branches`` to
+    ``d`` and the branch ID of every link (``element``, ``None`` inside a bus)."""
+    from netctl.structural.branches import INTERNAL, branch_roles, link_elements, state_label
+
+    br = branch_roles(system)
+    owner = link_elements(system)
+    ids = system.elements.ids
+    bc = br.counts()
+    d["branches"] = br.to_dict()
+    if full:
+        for row, k in zip(d["links"], owner.tolist()):
+            row["element"] = ids[k] if k >= 0 else None
+    crit_states = [state_label(system, i) for i in nr.critical.tolist()]
+    crit = [f"{e} ({'-'.join(b)})" for e, b, r in zip(br.ids, br.buses, br.role.tolist())
+            if r == 0]
+    internal_crit = int(np.count_nonzero(owner[lr.critical] == INTERNAL))
+    out = [f"  buses in every minimum driver set: {_short(crit_states)}",
+           f"  branches ({len(br.ids)}): {bc['critical']} critical (an outage raises the "
+           f"minimum inputs above {br.n_inputs}), {bc['ordinary']} ordinary, "
+           f"{bc['parallel']} with a parallel circuit (an outage changes no coupling)",
+           f"  critical branches: {_short(crit)}"]
+    if br.n_internal_links:
+        out.append(f"  ({br.n_internal_links} links inside buses, {internal_crit} of them "
+                   "critical, belong to the model (angle-frequency, damping), not to any "
+                   "element: they are never contingencies)")
+    return out
 
 
 def _short(items: list[str], total: int | None = None, limit: int = 20) -> str:

@@ -248,6 +248,10 @@ def cautions_section(ctx: ReportContext) -> Section:
                    "confirmation, when present, checks sampled weights."),
               para("Minimum input sets and control paths are one choice among possibly "
                    "many; other choices of the same size are equally valid structurally.")]
+    if ctx.system.elements is not None:
+        from netctl.report.grid import grid_caution_block
+
+        blocks.insert(1, grid_caution_block())
     if ctx.missing:
         blocks.append(para("Not included (the analysis is not available in this "
                            "installation, or was skipped): " + "; ".join(ctx.missing) + "."))
@@ -299,8 +303,15 @@ def roles_section(ctx: ReportContext) -> Section | None:
              "inputs."),
         items(crit_links, total=lc["critical"]),
     ]
+    data_grid: dict[str, Any] = {}
+    if ctx.system.elements is not None:  # a grid: branches by ID, not links inside buses
+        from netctl.report.grid import grid_roles_blocks
+
+        more, data_grid = grid_roles_blocks(ctx)
+        blocks = blocks[:-2] + more
     return Section("roles", "Roles of states and links", tuple(blocks),
-                   data={"node_counts": nc, "link_counts": lc,
+                   data={**({"branches": data_grid} if data_grid else {}),
+                         "node_counts": nc, "link_counts": lc,
                          "critical_states": nr.names(nr.critical),
                          "critical_links": [{"source": u, "target": v}
                                             for u, v in lr.link_names(lr.critical)]})
@@ -359,6 +370,10 @@ def robustness_section(ctx: ReportContext) -> Section | None:
     """Single link losses against the design; attack curves."""
     from netctl.structural.robustness import attack_curve, contingency_sweep
 
+    if ctx.system.elements is not None:  # a grid: element outages by case ID
+        from netctl.report.grid import grid_robustness_section
+
+        return grid_robustness_section(ctx)
     system = ctx.actuated()
     sweep = ctx.cached("sweep", lambda: contingency_sweep(system, elements="links"))
     breaking = sweep.breaking

@@ -172,8 +172,15 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
     if roles is not None:
         layers.append(_Layer("roles", "roles: critical / intermittent / redundant", n, True))
     if crit is not None:
-        layers.append(_Layer("critical", "critical links (in every maximum matching)",
-                             len(crit) // 2, True))
+        if marks.grid:
+            ids = marks.critical_elements
+            label = ("critical branches (an outage raises the minimum inputs or breaks the "
+                     "design): " + (", ".join(ids[:12]) + (f", ... ({len(ids) - 12} more)"
+                                                          if len(ids) > 12 else "")
+                                    if ids else "none"))
+        else:
+            label = "critical links (in every maximum matching)"
+        layers.append(_Layer("critical", label, len(crit) // 2, True))
     if dist is not None:
         layers.append(_Layer("disturbances", "states a disturbance acts on",
                              len({s for s in dist["hits"][1::2]}), True))

@@ -52,7 +52,14 @@ class MapMarks:
         Per state: 0 critical, 1 intermittent, 2 redundant (see :data:`ROLE_NAMES`);
         ``None`` when not asked for.
     critical_sources, critical_targets : ndarray of int or None
-        Links in every maximum matching; ``None`` when not asked for.
+        Links in every maximum matching; ``None`` when not asked for. For a grid (the
+        system has an element table): the links of the critical branches instead (both
+        directions; their outage raises the minimum inputs or breaks the drawn design),
+        never a link inside a bus.
+    critical_elements : tuple of str
+        For a grid with the critical-links layer: the IDs of those branches.
+    grid : bool
+        The system is a grid (it has an element table).
     disturbed : ndarray of int
         States some disturbance acts on directly (``E`` pattern; empty without).
     fragile : ndarray of int
@@ -86,6 +93,8 @@ class MapMarks:
     fragile: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64))
     fragile_notes: tuple[tuple[int, str], ...] = field(default=(), repr=False)
     failures_note: str = ""
+    critical_elements: tuple[str, ...] = ()
+    grid: bool = False
 
     def names(self, indices: Iterable[Any]) -> list[str]:
         """State names for state indices."""
@@ -129,6 +138,8 @@ class MapMarks:
             d["critical_links"] = [
                 {"source": self.state_names[int(u)], "target": self.state_names[int(v)]}
                 for u, v in zip(self.critical_sources, self.critical_targets)]
+            if self.critical_elements:
+                d["critical_branches"] = list(self.critical_elements)
         return d
 
 
@@ -229,8 +240,11 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
     else:
         on_cycle = np.zeros(0, bool)
     roles = crit_s = crit_t = None
+    crit_el: tuple[str, ...] = ()
     if layers:
         roles, crit_s, crit_t = _roles(system, layers)
+        if "critical-links" in layers and system.elements is not None:
+            crit_s, crit_t, crit_el = _critical_branches(actuated)
     fragile, notes, covered = (_single_points(system, actuated, design) if failures
                                else (np.zeros(0, np.int64), (), ""))
     return MapMarks(
@@ -242,7 +256,31 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
         matched_sources=src, matched_targets=tgt, on_cycle=on_cycle, roles=roles,
         critical_sources=crit_s, critical_targets=crit_t, model=system.model,
         state_names=tuple(system.state_names), disturbed=system.disturbed_states(),
-        fragile=fragile, fragile_notes=notes, failures_note=covered)
+        fragile=fragile, fragile_notes=notes, failures_note=covered,
+        critical_elements=crit_el, grid=system.elements is not None)
+
+
+def _critical_branches(actuated: StructuredSystem
+                       ) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
+    """Links (both directions, between buses only) and IDs of the branches whose outage
+    raises the minimum inputs or leaves the drawn design not structurally controllable;
+    links inside a bus (part of the model) are never marked."""
+    from netctl.records import BRANCH_KINDS
+    from netctl.structural.branches import link_elements
+    from netctl.structural.robustness.elements import element_sweep
+
+    table = actuated.elements
+    assert table is not None
+    sw = element_sweep(actuated, kinds=BRANCH_KINDS)
+    bad = (sw.n_inputs_after > sw.n_inputs) | (~sw.controllable_after if sw.has_design
+                                               else False)
+    ids = tuple(sw.ids[k] for k in np.flatnonzero(bad).tolist())
+    want = np.array(sorted(table.position(e) for e in ids), np.int64)
+    owner = link_elements(actuated)
+    # every circuit of the pair: a link is marked when the branch owning it is critical
+    keep = np.isin(owner, want) if want.size else np.zeros(owner.size, bool)
+    src, tgt = actuated.edges()
+    return src[keep].astype(np.int64), tgt[keep].astype(np.int64), ids
 
 
 #: At most this many single points of failure are explained on a map (all are marked).

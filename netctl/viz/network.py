@@ -362,8 +362,11 @@ def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
         casing = Line2D([], [], color=MARKS["critical_link"].edge,
                         linewidth=MARKS["critical_link"].linewidth)
         inner = Line2D([], [], color="white", linewidth=MARKS["chain"].linewidth * 0.8)
-        items.append(((casing, inner), f"{MARKS['critical_link'].label} "
-                                       f"({marks.critical_sources.size})"))
+        if getattr(marks, "grid", False):
+            crit_label = f"critical branches ({len(marks.critical_elements)})"
+        else:
+            crit_label = f"{MARKS['critical_link'].label} ({marks.critical_sources.size})"
+        items.append(((casing, inner), crit_label))
     if n_loops:
         items.append((Line2D([], [], marker="o", markerfacecolor="none", linestyle="none",
                              markeredgecolor=MARKS["link"].edge, markersize=9),
