@@ -244,6 +244,9 @@ class ElementTable:
         Node positions of the two ends (``end_b`` is -1 for a bus or a generator).
     params : mapping of str to ndarray
         Per-element numbers (e.g. ``x_pu``, the series reactance in per unit).
+    end_c : ndarray of int64
+        The third bus of a three-winding transformer (one element joining three buses:
+        its outage removes all three couplings), -1 for every other element.
     """
 
     node_names: tuple[str, ...]
@@ -252,11 +255,15 @@ class ElementTable:
     end_a: np.ndarray
     end_b: np.ndarray
     params: Mapping[str, np.ndarray] = field(default_factory=dict)
+    end_c: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64))
     _pos: dict[str, int] = field(default_factory=dict, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         k = len(self.ids)
-        if not (len(self.kinds) == self.end_a.size == self.end_b.size == k):
+        if self.end_c.size == 0 and k:
+            object.__setattr__(self, "end_c", np.full(k, -1, np.int64))
+        if not (len(self.kinds) == self.end_a.size == self.end_b.size == self.end_c.size
+                == k):
             raise ValueError("element table columns differ in length")
         bad = sorted(set(self.kinds) - set(ELEMENT_KINDS))
         if bad:
@@ -271,8 +278,9 @@ class ElementTable:
 
     def element(self, k: int) -> Element:
         """Element ``k`` as a record."""
-        a, b = int(self.end_a[k]), int(self.end_b[k])
-        nodes = (self.node_names[a],) + ((self.node_names[b],) if b >= 0 else ())
+        a, b, c = int(self.end_a[k]), int(self.end_b[k]), int(self.end_c[k])
+        nodes = (self.node_names[a],) + ((self.node_names[b],) if b >= 0 else ()) + \
+            ((self.node_names[c],) if c >= 0 else ())
         return Element(id=self.ids[k], kind=self.kinds[k], nodes=nodes)
 
     def position(self, element_id: str) -> int:
@@ -298,26 +306,53 @@ class ElementTable:
 
     def parallel_group(self) -> np.ndarray:
         """For each branch the number of in-table branches joining the same two buses
-        (1 for a lone branch, 0 for buses and generators)."""
+        (1 for a lone branch, 0 for buses and generators; the legs of a three-winding
+        transformer count as branches, and it gets the smallest count of its legs)."""
         out = np.zeros(len(self), np.int64)
         br = np.flatnonzero(self.end_b >= 0)
         if br.size == 0:
             return out
         n = max(len(self.node_names), 1)
-        key = np.minimum(self.end_a[br], self.end_b[br]) * n + np.maximum(self.end_a[br],
-                                                                         self.end_b[br])
+        three = br[self.end_c[br] >= 0]
+        a = np.concatenate([self.end_a[br], self.end_a[three], self.end_b[three]])
+        b = np.concatenate([self.end_b[br], self.end_c[three], self.end_c[three]])
+        key = np.minimum(a, b) * n + np.maximum(a, b)
         _, inv, cnt = np.unique(key, return_inverse=True, return_counts=True)
-        out[br] = cnt[inv]
+        per = cnt[inv]
+        out[br] = per[:br.size]
+        if three.size:
+            t = three.size
+            out[three] = np.minimum(np.minimum(out[three], per[br.size:br.size + t]),
+                                    per[br.size + t:])
+        return out
+
+    def legs(self, k: int) -> list[tuple[int, int]]:
+        """The bus pairs element ``k`` couples: one for a branch, three for a
+        three-winding transformer, none for a bus or a generator."""
+        a, b, c = int(self.end_a[k]), int(self.end_b[k]), int(self.end_c[k])
+        if b < 0:
+            return []
+        return [(a, b)] if c < 0 else [(a, b), (a, c), (b, c)]
+
+    def pair_counts(self) -> dict[tuple[int, int], int]:
+        """Number of elements coupling each bus pair ``(low, high)`` (parallel circuits,
+        and the legs of three-winding transformers, count one each)."""
+        out: dict[tuple[int, int], int] = {}
+        for k in np.flatnonzero(self.end_b >= 0).tolist():
+            for u, v in self.legs(k):
+                key = (min(u, v), max(u, v))
+                out[key] = out.get(key, 0) + 1
         return out
 
     @classmethod
-    def build(cls, node_names: Sequence[str], rows: Sequence[tuple[str, str, int, int]],
+    def build(cls, node_names: Sequence[str], rows: Sequence[tuple[Any, ...]],
               params: Mapping[str, Sequence[float]] | None = None) -> ElementTable:
-        """From rows ``(id, kind, end_a, end_b)``."""
+        """From rows ``(id, kind, end_a, end_b)`` or ``(id, kind, end_a, end_b, end_c)``."""
         ids = tuple(r[0] for r in rows)
         kinds = tuple(r[1] for r in rows)
         a = np.array([r[2] for r in rows], np.int64)
         b = np.array([r[3] for r in rows], np.int64)
+        c = np.array([r[4] if len(r) > 4 else -1 for r in rows], np.int64)
         p = {k: np.asarray(v, float) for k, v in (params or {}).items()}
         return cls(node_names=tuple(node_names), ids=ids, kinds=kinds, end_a=a, end_b=b,
-                   params=p)
+                   params=p, end_c=c)

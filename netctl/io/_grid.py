@@ -165,14 +165,17 @@ def build_grid(t: GridTables, *, model: str = "given") -> StructuredSystem:
         nodes["y"] = np.asarray(t.coords[1], float)[live_idx]
     kinds = [t.branch_kinds[k] for k in np.flatnonzero(keep_br).tolist()]
     ids = [t.branch_ids[k] for k in np.flatnonzero(keep_br).tolist()]
+    e_ids, e_kinds, e_a, e_b, e_c, e_x = _merge_windings(ids, kinds, a, b, x)
     g_keep = np.flatnonzero(g_live).tolist()
+    m = n + len(g_keep)
     table = ElementTable(
         node_names=tuple(names),
-        ids=tuple(ids + [f"bus {s}" for s in names] + [t.gen_ids[k] for k in g_keep]),
-        kinds=tuple(kinds + ["bus"] * n + ["generator"] * len(g_keep)),
-        end_a=np.concatenate([a, np.arange(n, dtype=np.int64), new[gb[g_keep]]]),
-        end_b=np.concatenate([b, np.full(n + len(g_keep), -1, np.int64)]),
-        params={"x_pu": np.concatenate([x, np.full(n + len(g_keep), math.nan)])})
+        ids=tuple(e_ids + [f"bus {s}" for s in names] + [t.gen_ids[k] for k in g_keep]),
+        kinds=tuple(e_kinds + ["bus"] * n + ["generator"] * len(g_keep)),
+        end_a=np.concatenate([e_a, np.arange(n, dtype=np.int64), new[gb[g_keep]]]),
+        end_b=np.concatenate([e_b, np.full(m, -1, np.int64)]),
+        end_c=np.concatenate([e_c, np.full(m, -1, np.int64)]),
+        params={"x_pu": np.concatenate([e_x, np.full(m, math.nan)])})
     # parallel circuits are distinct elements but one coupling (susceptances add)
     key = np.minimum(a, b) * max(n, 1) + np.maximum(a, b)
     uniq, inv = np.unique(key, return_inverse=True)
@@ -182,6 +185,34 @@ def build_grid(t: GridTables, *, model: str = "given") -> StructuredSystem:
                                          weights=np.concatenate([w, w]),
                                          state_names=names, nodes=nodes, model=model)
     return system._replace(elements=table)
+
+
+def _merge_windings(ids: list[str], kinds: list[str], a: np.ndarray, b: np.ndarray,
+                    x: np.ndarray) -> tuple[list[str], list[str], np.ndarray, np.ndarray,
+                                            np.ndarray, np.ndarray]:
+    """One element per ID: the legs of a three-winding transformer (rows sharing its ID,
+    joining three buses) become one element with a third bus (``end_c``) and no single
+    reactance (``x_pu`` NaN); every other row stays a branch of its own."""
+    first: dict[str, int] = {}
+    rows: list[list[int]] = []
+    for k, e in enumerate(ids):
+        if e in first:
+            rows[first[e]].append(k)
+        else:
+            first[e] = len(rows)
+            rows.append([k])
+    if len(rows) == len(ids):
+        return ids, kinds, a, b, np.full(len(ids), -1, np.int64), x
+    out_a, out_b, out_c, out_x = [], [], [], []
+    for grp in rows:
+        k = grp[0]
+        buses = list(dict.fromkeys(int(v) for j in grp for v in (a[j], b[j])))
+        out_a.append(buses[0])
+        out_b.append(buses[1])
+        out_c.append(buses[2] if len(buses) > 2 else -1)
+        out_x.append(float(x[k]) if len(grp) == 1 else math.nan)
+    return ([ids[g[0]] for g in rows], [kinds[g[0]] for g in rows], np.array(out_a, np.int64),
+            np.array(out_b, np.int64), np.array(out_c, np.int64), np.array(out_x, float))
 
 
 def label(value: object) -> str:

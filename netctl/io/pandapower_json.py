@@ -214,8 +214,8 @@ def grid_tables(tables: dict[str, PPTable], sn_mva: float, path: str) -> GridTab
         for k in range(len(tt)):
             fa = _bus_ref(tt, a, k, by_index, path)
             fb = _bus_ref(tt, b, k, by_index, path)
-            t.branch_ids.append(f"{ident or tab} {label(tt.index[k])}"
-                                + (f" ({a[:-4]}-{b[:-4]})" if tab == "trafo3w" else ""))
+            # the three legs of a three-winding transformer share its ID: one element
+            t.branch_ids.append(f"{ident or tab} {label(tt.index[k])}")
             t.branch_kinds.append(kind)
             t.branch_from.append(fa)
             t.branch_to.append(fb)

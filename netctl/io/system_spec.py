@@ -61,7 +61,7 @@ STATE_ATTRIBUTES: dict[str, str] = {
 }
 
 _SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "disturbances", "regulated",
-             "stations", "subsystems", "ties")
+             "stations", "subsystems", "ties", "elements")
 _SYSTEM_KEYS = ("name", "description", "weighted", "terms", "model")
 
 #: ``[system] terms``: the words summaries use (closed set; see docs/FORMATS.md)
@@ -591,6 +591,12 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
             raise doc.error(str(exc), s) from None
     if kinds:
         system = system.states_to_disturbances(kinds)
+    if "elements" in data:  # a grid's element table (branch IDs, buses, units)
+        from netctl.io._spec_elements import read_elements
+
+        col = system.nodes.get("node")
+        known = {str(v) for v in col} if col is not None else set(system.state_names)
+        system = system._replace(elements=read_elements(doc, data["elements"], known))
     return SystemSpec(path=str(path), name=name, description=description, system=system,
                       terms=terms,
                       inputs=inputs, outputs=outputs, subsystems=subsystems, ties=tuple(ties),

@@ -60,7 +60,7 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
     subsystems are written as couplings (they read back as state ties). Disturbances are
     written as nodes with ``disturbance = true`` (and their own attributes) whose
     couplings are the entries of ``E``; regulated outputs under ``[regulated]``; the
-    given ``stations`` under ``[stations]``.
+    given ``stations`` under ``[stations]``; a grid's element table under ``[elements]``.
     """
     names = system.state_names
     n = system.n_states
@@ -133,6 +133,10 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
             ins = ", ".join(_val(system.input_names[i]) for i in st.inputs)
             outs = ", ".join(_val(system.output_names[i]) for i in st.outputs)
             lines.append(f"{_key(st.name)} = {{ inputs = [{ins}], outputs = [{outs}] }}")
+    if system.elements is not None:  # a grid keeps its elements (branch IDs, buses)
+        from netctl.io._spec_elements import element_lines
+
+        lines += element_lines(system.elements)
     with atomic_group():  # the side file and the description appear together or not at all
         _write_both(system, path, side, lines)
 

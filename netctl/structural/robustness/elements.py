@@ -130,9 +130,22 @@ def element_effects(system: StructuredSystem) -> ElementEffects:
     states: list[np.ndarray] = []
     inputs: list[np.ndarray] = []
     empty = np.zeros(0, np.int64)
+    pairs: dict[tuple[int, int], int] | None = None
     for k, kind in enumerate(table.kinds):
         a, b = int(table.end_a[k]), int(table.end_b[k])
-        if kind in BRANCH_KINDS:
+        if kind in BRANCH_KINDS and table.end_c[k] >= 0:  # three-winding: all its legs
+            if pairs is None:
+                pairs = table.pair_counts()
+            legs = []
+            for u, v in table.legs(k):
+                if pairs[(min(u, v), max(u, v))] <= 1:
+                    lo, hi = np.searchsorted(lkey, [min(u, v) * nb + max(u, v),
+                                                    min(u, v) * nb + max(u, v) + 1])
+                    legs.append(lpos[lo:hi])
+            links.append(np.sort(np.concatenate(legs)) if legs else empty)
+            states.append(empty)
+            inputs.append(empty)
+        elif kind in BRANCH_KINDS:
             key = min(a, b) * nb + max(a, b)
             lo, hi = np.searchsorted(lkey, [key, key + 1])
             links.append(lpos[lo:hi] if par[k] <= 1 else empty)
@@ -560,7 +573,7 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
                                dead_cols, sizeAB, row_ab) if (links.size or states.size or
                                                       inputs.size) else sizeAB
         rank_lost[i] = szab < n_left
-        if islands is not None:
+        if islands is not None and table.end_c[k] < 0:
             a, b = int(table.end_a[k]), int(table.end_b[k])
             if links.size:
                 unreached[i] = islands.after_branch(a, b)
