@@ -195,13 +195,50 @@ def _solve_target(system: StructuredSystem, base: StructuredSystem, T: np.ndarra
             reasons.append("the eligible sites together do not control the targets (a "
                            "dilation among the targets' upstream states that no eligible "
                            "site fixes).")
+    best_effort = False
+    upper: float | None = None
+    if not feasible and site_state.size and n <= TARGET_RANK_MAX_STATES:
+        # best effort: the design reaching the largest target rank the sites allow
+        chosen_states, dim, upper, how = _best_effort(base, T, site_state, cost, seed,
+                                                      exhaustive)
+        best_effort, method_used, lower = True, how, None
+        guarantee = (f"best effort, not optimal: the eligible sites cannot control every "
+                     f"target; this design reaches target rank {dim} of {T.size} (at most "
+                     f"{int(upper)} with every eligible site); "
+                     + ("exact: every subset tried" if how == "exhaustive" else
+                        "greedy on the submodular target rank"))
     total = float(cost[np.searchsorted(site_state, chosen_states)].sum()) \
         if chosen_states.size else 0.0
     if lower is not None and total > 0:
         lower = min(lower, total)
     chosen = np.searchsorted(site_state, chosen_states).astype(np.int64)
-    return Outcome("target", method_used, feasible, False, chosen, total, lower, None, dim,
-                   reasons, guarantee, inaccessible=unreachable.astype(np.int64))
+    return Outcome("target", method_used, feasible, best_effort, chosen, total, lower, upper,
+                   dim, reasons, guarantee, inaccessible=unreachable.astype(np.int64))
+
+
+def _best_effort(base: StructuredSystem, T: np.ndarray, site_state: np.ndarray,
+                 cost: np.ndarray, seed: int, exhaustive: bool
+                 ) -> tuple[np.ndarray, int, float, str]:
+    """Drivers among the sites reaching the largest target rank, cheapest among those
+    (exhaustive on few sites, else the cost-effectiveness greedy until no site adds
+    rank); the target rank reached; the rank with every site (an upper bound)."""
+    top = target_rank(base, T, drivers=site_state, seed=seed)
+    if exhaustive:
+        best: tuple[int, float, tuple[int, ...]] = (0, 0.0, ())
+        idx = list(range(site_state.size))
+        for r in range(1, len(idx) + 1):
+            for S in itertools.combinations(idx, r):
+                c = float(cost[list(S)].sum())
+                if best[0] == top and c >= best[1] - 1e-12:
+                    continue
+                d = target_rank(base, T, drivers=site_state[list(S)], seed=seed)
+                if d > best[0] or (d == best[0] and c < best[1] - 1e-12):
+                    best = (d, c, S)
+        return (np.sort(site_state[list(best[2])]).astype(np.int64), best[0], float(top),
+                "exhaustive")
+    chosen, _ = _rank_greedy(base, T, site_state, cost, seed)
+    d = target_rank(base, T, drivers=chosen, seed=seed) if chosen.size else 0
+    return chosen, int(d), float(top), "greedy"
 
 
 def _lower_bound_count(system: StructuredSystem, T: np.ndarray) -> int:
