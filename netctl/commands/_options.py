@@ -286,7 +286,33 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
     if system.elements is not None:
         args._grid = {"buses": len(system.elements.node_names),
                       "elements": system.elements.counts(), "model": system.model}
+        if system.model == "second-order":
+            args._grid["swing"] = swing_parameters(system)
     return system
+
+
+def swing_parameters(system: StructuredSystem) -> dict[str, Any]:
+    """Where the swing model's inertia and damping came from: the number of buses with a
+    value from the case (optional generator columns) and the defaults used elsewhere."""
+    import numpy as np
+
+    from netctl.models import SWING_DEFAULTS
+
+    buses = len(system.elements.node_names) if system.elements is not None else 0
+    per = max(system.n_states // max(buses, 1), 1)
+    out: dict[str, Any] = {"defaults": dict(SWING_DEFAULTS),
+                           "units": {"inertia": "M = 2H, seconds (H on the case's MVA "
+                                                "base)", "damping": "D, per unit"}}
+    for key in ("inertia", "damping"):
+        col = system.nodes.get(key)
+        given = 0
+        if col is not None:
+            v = np.asarray(col, float)
+            ok = np.isfinite(v) & ((v > 0) if key == "inertia" else True)
+            given = int(np.count_nonzero(ok)) // per
+        out[f"{key}_from_case"] = given
+    out["buses"] = buses
+    return out
 
 
 def _grid_text(grid: dict[str, Any]) -> str:
@@ -299,8 +325,17 @@ def _grid_text(grid: dict[str, Any]) -> str:
     ngen = kinds.get("generator", 0)
     per = ("2 states a bus: angle (pos) and frequency (vel)"
            if grid["model"] == "second-order" else "1 state a bus")
-    return (f"  grid: {grid['buses']} buses, {nbr} branches ({parts}), {ngen} generating "
+    text = (f"  grid: {grid['buses']} buses, {nbr} branches ({parts}), {ngen} generating "
             f"unit(s); model {grid['model']} ({per})")
+    sw = grid.get("swing")
+    if sw is not None:
+        d = sw["defaults"]
+        text += (f"\n  swing parameters: inertia M = 2H from the case at "
+                 f"{sw['inertia_from_case']} of {sw['buses']} buses, damping D at "
+                 f"{sw['damping_from_case']}; elsewhere the defaults M = {d['inertia']:g} s, "
+                 f"D = {d['damping']:g} per unit (generator columns inertia_s, damping_pu; "
+                 "README, grid section)")
+    return text
 
 
 def disturbance_summary(system: StructuredSystem) -> dict[str, Any]:

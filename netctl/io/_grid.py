@@ -24,7 +24,16 @@ from netctl.records import ElementTable
 from netctl.io._common import file_error
 from netctl.system import StructuredSystem
 
-__all__ = ["GridTables", "build_grid", "X_MIN", "GRID_CAUTION"]
+__all__ = ["GridTables", "build_grid", "X_MIN", "GRID_CAUTION", "INERTIA_COLUMN",
+           "DAMPING_COLUMN"]
+
+#: Optional generator-table column: the unit's inertia constant ``H`` in seconds on the
+#: case's MVA base (pandapower ``gen``/``sgen``/``ext_grid``/``storage`` column; MATPOWER
+#: field ``mpc.gen_inertia_s``). Neither format stores inertia; a user may add it.
+INERTIA_COLUMN = "inertia_s"
+#: Optional generator-table column: the unit's damping ``D`` in per unit (power per unit
+#: frequency deviation, case base); MATPOWER field ``mpc.gen_damping_pu``.
+DAMPING_COLUMN = "damping_pu"
 
 #: Smallest series reactance used for a coupling (per unit); zero-impedance branches
 #: and bus-bus switches couple with ``1 / X_MIN``.
@@ -61,6 +70,8 @@ class GridTables:
     gen_bus: list[str] = field(default_factory=list)
     gen_in_service: list[bool] = field(default_factory=list)
     gen_lines: list[int | None] = field(default_factory=list)
+    gen_inertia_s: list[float] = field(default_factory=list)
+    gen_damping_pu: list[float] = field(default_factory=list)
     coords: tuple[list[float], list[float]] | None = None
     source: str = "grid"
 
@@ -160,6 +171,7 @@ def build_grid(t: GridTables, *, model: str = "given") -> StructuredSystem:
         "actuator": gen_flag.copy(),
         "sensor": np.ones(n, bool),
     }
+    nodes.update(_swing_columns(t, new[gb] if ng else np.zeros(0, np.int64), g_live, n))
     if t.coords is not None:
         nodes["x"] = np.asarray(t.coords[0], float)[live_idx]
         nodes["y"] = np.asarray(t.coords[1], float)[live_idx]
@@ -185,6 +197,34 @@ def build_grid(t: GridTables, *, model: str = "given") -> StructuredSystem:
                                          weights=np.concatenate([w, w]),
                                          state_names=names, nodes=nodes, model=model)
     return system._replace(elements=table)
+
+
+def _swing_columns(t: GridTables, unit_bus: np.ndarray, live: np.ndarray, n: int
+                   ) -> dict[str, np.ndarray]:
+    """Node columns ``inertia`` (``M = 2 H``, seconds, summed over the bus's in-service
+    units) and ``damping`` (``D``, per unit, summed) from the optional generator columns;
+    NaN at buses whose units give none (the swing model then uses its defaults). Empty
+    when the case gives none. Swing equation ``2H d(omega)/dt = P_m - P_e - D omega``
+    (P. Kundur, "Power System Stability and Control", 1994, ch. 3; from memory)."""
+    out: dict[str, np.ndarray] = {}
+    for key, vals, scale in (("inertia", t.gen_inertia_s, 2.0),
+                             ("damping", t.gen_damping_pu, 1.0)):
+        if not vals:
+            continue
+        v = np.asarray(vals, float)
+        bad = np.flatnonzero(np.isfinite(v) & (v < 0))
+        if bad.size:
+            k = int(bad[0])
+            raise file_error(t.path, t.gen_lines[k], f"{t.gen_ids[k]}: {key} value {v[k]!r} "
+                             "is negative; give a value >= 0 (or leave it out for the "
+                             "default).")
+        ok = live & np.isfinite(v)
+        if not ok.any():
+            continue
+        col = np.bincount(unit_bus[ok], weights=scale * v[ok], minlength=n)
+        has = np.bincount(unit_bus[ok], minlength=n) > 0
+        out[key] = np.where(has, col, math.nan)
+    return out
 
 
 def _merge_windings(ids: list[str], kinds: list[str], a: np.ndarray, b: np.ndarray,

@@ -19,7 +19,10 @@ generator 1 bus, 8 status (> 0 in service); branch 1 from bus, 2 to bus, 4 react
 a *transformer* when its tap ratio is neither 0 nor 1, it shifts phase, or its two buses
 have different base voltages; otherwise a *line*. Branches are named ``branch k`` by
 their 1-based row in the branch table, generators ``gen k``. An optional ``mpc.bus_name``
-cell array of quoted names is kept in the node table as ``bus_name``.
+cell array of quoted names is kept in the node table as ``bus_name``. Optional fields
+``mpc.gen_inertia_s`` and ``mpc.gen_damping_pu`` (one value per generator row, in the
+order of ``mpc.gen``, like the format's own ``mpc.genfuel``) give the swing parameters
+(see :mod:`netctl.io._grid`).
 """
 
 from __future__ import annotations
@@ -30,7 +33,7 @@ import re
 import numpy as np
 
 from netctl.io._common import file_error, read_text
-from netctl.io._grid import GridTables, build_grid, label
+from netctl.io._grid import DAMPING_COLUMN, INERTIA_COLUMN, GridTables, build_grid, label
 from netctl.system import StructuredSystem
 
 __all__ = ["read_matpower"]
@@ -203,6 +206,18 @@ def read_matpower(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     t.gen_bus = [label(float(v)) for v in gen[:, 0]]
     t.gen_in_service = (gen[:, 7] > 0).tolist() if gen.shape[0] else []
     t.gen_lines = list(gen_lines)
+    for field_name, target in ((f"gen_{INERTIA_COLUMN}", t.gen_inertia_s),
+                               (f"gen_{DAMPING_COLUMN}", t.gen_damping_pu)):
+        extra = mats.get(field_name)  # optional: one value per generator row
+        if extra is None:
+            continue
+        vals, lines = extra
+        if vals.shape[0] != gen.shape[0] or (vals.size and vals.shape[1] != 1):
+            raise file_error(path, lines[0] if lines else None, f"mpc.{field_name} has "
+                             f"{vals.shape[0]} row(s) of {vals.shape[1] if vals.size else 0} "
+                             f"column(s); expected one value per generator row "
+                             f"({gen.shape[0]}), in the order of mpc.gen.")
+        target.extend(vals[:, 0].tolist() if vals.size else [])
     system = build_grid(t, model=model)
     names = cells.get("bus_name")
     if names is not None and len(names) == bus.shape[0]:

@@ -25,7 +25,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from netctl.io._common import file_error, read_text
-from netctl.io._grid import GridTables, build_grid, label
+from netctl.io._grid import DAMPING_COLUMN, INERTIA_COLUMN, GridTables, build_grid, label
 from netctl.system import StructuredSystem
 
 __all__ = ["PPTable", "read_pandapower_json", "grid_tables", "looks_like_pandapower"]
@@ -267,6 +267,9 @@ def grid_tables(tables: dict[str, PPTable], sn_mva: float, path: str) -> GridTab
             t.gen_bus.append(_bus_ref(tt, "bus", k, by_index, path))
             t.gen_in_service.append(_flag(tt, "in_service", k, path))
             t.gen_lines.append(tt.line)
+            # optional columns a user may add (pandapower stores no inertia)
+            t.gen_inertia_s.append(_num(tt, INERTIA_COLUMN, k, math.nan, path))
+            t.gen_damping_pu.append(_num(tt, DAMPING_COLUMN, k, math.nan, path))
     return t
 
 
