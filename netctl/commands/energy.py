@@ -100,8 +100,16 @@ def _cmd_energy(args: argparse.Namespace) -> int:
 
     d["node_controllability"] = node_controllability(real).to_dict()
     if args.top and r.n_states:
-        order = np.argsort(-r.average_controllability, kind="stable")[:args.top]
-        lines.append(f"  average controllability ({AVERAGE_NOTE}): " + ", ".join(
+        order = np.argsort(-r.average_controllability, kind="stable")
+        part = real.nodes.get("part")
+        where_ranked = ""
+        if part is not None and system.model == "second-order":
+            # inputs act on a bus's frequency (power balance), never on its angle
+            order = order[np.asarray(part, dtype=object)[order] == "vel"]
+            where_ranked = "; frequency (vel) states only: an input never acts on an angle"
+            d["average_controllability_ranked"] = "vel states only (second-order model)"
+        order = order[:args.top]
+        lines.append(f"  average controllability ({AVERAGE_NOTE}{where_ranked}): " + ", ".join(
             f"{real.state_names[i]} {r.average_controllability[i]:.4g}" for i in order))
     budget = args.select
     if budget is None and r.n_states <= AUTO_SELECT_LIMIT:

@@ -217,9 +217,10 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     :func:`unreached_sources` (one breadth-first search, components only where needed),
     which on large systems runs in a second thread beside the matching.
 
-    ``prefer`` (boolean per state, e.g. the node table's ``actuator`` column) decides the
-    representative of a source component that still needs one: its smallest preferred
-    state, else its smallest state. It does not change the count.
+    ``prefer`` (boolean per state, e.g. the node table's ``actuator`` column, or integer
+    levels: higher is preferred) decides the representative of a source component that
+    still needs one: its smallest state of the highest level present, else its smallest
+    state. It does not change the count.
 
     ``start``: ``(row_match, col_match)``, a matching of ``[A B]`` already known to be
     maximum (e.g. the transpose of ``A``'s for ``A``'s transpose); it is copied and the
@@ -280,11 +281,14 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     unmatched = np.flatnonzero(row_match < 0)
     missed = np.flatnonzero(x_match == -1)
     reps = np.empty(missed.size, np.int64)
-    pref = None if prefer is None else np.asarray(prefer, bool)
+    pref = None if prefer is None else np.asarray(prefer)
     for j, c in enumerate(missed.tolist()):  # one per missed component (few)
         group = members[cptr[c]:cptr[c + 1]]
-        if pref is not None and pref[group].any():
-            group = group[pref[group]]
+        if pref is not None and group.size:
+            g = pref[group]
+            top = g.max()
+            if top:  # the highest preference present (True, or the largest level)
+                group = group[g == top]
         reps[j] = group[0]
     reps = np.sort(reps)
     states = union_sorted(unmatched, reps, n)

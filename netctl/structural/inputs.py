@@ -194,9 +194,16 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
     n = system.n_states
     # where a source component needs a representative, prefer states that may host one
     eligible = system.nodes.get("actuator" if kind == "inputs" else "sensor")
-    prefer = None
+    prefer: np.ndarray | None = None
     if eligible is not None and eligible.dtype == bool and eligible.any():
         prefer = eligible
+    part = system.nodes.get("part")
+    if kind == "inputs" and part is not None and system.model.startswith("second-order"):
+        # an input acts on a frequency (vel) state, never on an angle: an eligible site
+        # first, else a vel state of the component, else any state
+        vel = np.asarray(part, dtype=object) == "vel"
+        prefer = vel.astype(np.int8) + (2 * prefer.astype(np.int8) if prefer is not None
+                                        else 0)
     comp = completion(system.A, sp.csr_array((n, 0)), prefer=prefer)
     drivers = comp.states
     unmatched = comp.unmatched
