@@ -3,8 +3,9 @@
 Every set of ``k`` elements when there are few enough sets (exact), else a reproducible
 random sample of distinct sets (labelled as sampled, with the number of sets examined and
 the number there are). Each element removes what :func:`element_effects` says (a branch:
-both directions of its couplings unless a parallel circuit stays; a three-winding
-transformer: its three couplings; a bus: all its states; a generating unit: its input when
+both directions of its couplings unless a parallel circuit outside the set stays -- both
+circuits of a parallel pair in one set remove the coupling; a three-winding transformer:
+its three couplings; a bus: all its states; a generating unit: its input when
 no other unit feeds the bus); links inside one bus are part of the model, never lost.
 
 Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
@@ -26,7 +27,12 @@ from netctl.graph.matching import maximum_matching
 from netctl.records import ELEMENT_KINDS
 from netctl.structural._engine import stack_AB
 from netctl.structural.robustness._common import _n_d
-from netctl.structural.robustness.elements import _matching_after, _reached, element_effects
+from netctl.structural.robustness.elements import (
+    _matching_after,
+    _reached,
+    element_effects,
+    state_nodes,
+)
 from netctl.system import StructuredSystem
 
 __all__ = ["ElementSetLosses", "element_set_losses"]
@@ -198,6 +204,29 @@ def element_set_losses(system: StructuredSystem, *, k: int = 2, samples: int = 1
     if k > sel.size:
         raise OptionError(f"k = {k} exceeds the number of elements ({sel.size}).")
     sets, exact, total = _draw(int(sel.size), k, samples, seed)
+    # couplings by bus pair: lost when every circuit joining the pair is in the set
+    node = state_nodes(system, table)
+    nb = max(len(table.node_names), 1)
+    src, tgt = system.edges()
+    nu, nv = node[src], node[tgt]
+    lpos = np.flatnonzero((nu >= 0) & (nv >= 0) & (nu != nv))
+    lkey = np.minimum(nu[lpos], nv[lpos]) * nb + np.maximum(nu[lpos], nv[lpos])
+    order = np.argsort(lkey, kind="stable")
+    lkey, lpos = lkey[order], lpos[order]
+    circuits = table.pair_counts()
+
+    def branch_links(members: list[int]) -> np.ndarray:
+        hit: dict[tuple[int, int], int] = {}
+        for j in members:
+            for u, v in table.legs(j):
+                key = (min(u, v), max(u, v))
+                hit[key] = hit.get(key, 0) + 1
+        out = []
+        for (u, v), c in hit.items():
+            if c >= circuits[(u, v)]:
+                lo, hi = np.searchsorted(lkey, [u * nb + v, u * nb + v + 1])
+                out.append(lpos[lo:hi])
+        return np.concatenate(out) if out else np.zeros(0, np.int64)
     A, B = system.A, system.B
     n, m = system.n_states, system.n_inputs
     a_ptr, a_idx = A.indptr.astype(np.int64), A.indices.astype(np.int64)
@@ -224,7 +253,7 @@ def element_set_losses(system: StructuredSystem, *, k: int = 2, samples: int = 1
 
     def outcome(members: np.ndarray) -> tuple[int, bool, bool, int]:
         parts = [eff.of(int(sel[j])) for j in members.tolist()]
-        links = np.unique(np.concatenate([p[0] for p in parts] + [empty]))
+        links = np.unique(branch_links([int(sel[j]) for j in members.tolist()]))
         states = np.unique(np.concatenate([p[1] for p in parts] + [empty]))
         inputs = np.unique(np.concatenate([p[2] for p in parts] + [empty]))
         n_left = n - states.size
