@@ -66,6 +66,11 @@ def _cmd_report(args: argparse.Namespace) -> int:
         keys = ", ".join(s.key for s in report.sections)
         sys.stdout.write(f"{args.out}: {fmt} report on {args.file} ({system.n_states} "
                          f"states); sections: {keys}\n  design: {verdict[1]}\n")
+        grid = getattr(args, "_grid", None)
+        if grid is not None:  # a grid: buses and branches, and its caution
+            from netctl.commands._options import _GRID_CAUTION, _grid_text
+
+            sys.stdout.write(_grid_text(grid) + "\n  Grid: " + _GRID_CAUTION + ".\n")
     return 0 if verdict[0] else 1
 
 

@@ -10,12 +10,16 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+import numpy as np
+
 from netctl.report.document import Block, Section, items, note, para, table
+from netctl.system import StructuredSystem
 
 if TYPE_CHECKING:
     from netctl.report.sections import ReportContext
 
-__all__ = ["grid_caution_block", "grid_robustness_section", "grid_roles_blocks"]
+__all__ = ["grid_caution_block", "grid_facts_block", "grid_robustness_section",
+           "grid_roles_blocks"]
 
 LIST_LIMIT = 200
 
@@ -25,6 +29,30 @@ def grid_caution_block() -> Block:
     from netctl._meta import GRID_CAUTION
 
     return note("Grid: " + GRID_CAUTION + ".")
+
+
+def grid_facts_block(system: StructuredSystem) -> Block:
+    """The grid in words: buses, branches by kind, units, and where the swing
+    parameters came from (the case, or the stated defaults)."""
+    from netctl.models import SWING_DEFAULTS
+    from netctl.records import BRANCH_KINDS, kinds_text
+
+    table = system.elements
+    assert table is not None
+    counts = table.counts()
+    nbr = sum(c for k, c in counts.items() if k in BRANCH_KINDS)
+    text = (f"A grid: {len(table.node_names)} buses, {nbr} branches ("
+            f"{kinds_text({k: c for k, c in counts.items() if k in BRANCH_KINDS})}), "
+            f"{counts.get('generator', 0)} generating unit(s).")
+    if system.model == "second-order":
+        given = [int(np.count_nonzero(np.isfinite(np.asarray(system.nodes[k], float))))
+                 // 2 if k in system.nodes else 0 for k in ("inertia", "damping")]
+        text += (" Swing model: two states a bus, angle (pos) and frequency (vel); inputs "
+                 f"act on frequencies. Inertia M = 2H from the case at {given[0]} bus(es), "
+                 f"damping D at {given[1]}; elsewhere the defaults M = "
+                 f"{SWING_DEFAULTS['inertia']:g} s and D = {SWING_DEFAULTS['damping']:g} per "
+                 "unit (optional generator columns inertia_s, damping_pu).")
+    return para(text)
 
 
 def grid_robustness_section(ctx: ReportContext) -> Section:

@@ -122,12 +122,14 @@ def summary_section(ctx: ReportContext) -> Section:
         ("inputs / outputs in the file", f"{s.n_inputs_given} / {s.n_outputs_given}"),
         ("weights", "given (used only by numeric checks)" if s.weighted else "pattern only"),
     ]
-    return Section(
-        "summary", "Summary", (
-            para(f"Model: {s.model}; {loops}. Whether states have self-dynamics changes "
-                 "the answers drastically; it is a modelling choice, stated here."),
-            table(("quantity", "value"), rows)),
-        data=s.to_dict())
+    blocks = [para(f"Model: {s.model}; {loops}. Whether states have self-dynamics changes "
+                   "the answers drastically; it is a modelling choice, stated here."),
+              table(("quantity", "value"), rows)]
+    if ctx.system.elements is not None:  # a grid: its buses, branches and parameters
+        from netctl.report.grid import grid_facts_block
+
+        blocks.insert(1, grid_facts_block(ctx.system))
+    return Section("summary", "Summary", tuple(blocks), data=s.to_dict())
 
 
 def minimum_inputs_section(ctx: ReportContext) -> Section:
