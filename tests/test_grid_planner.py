@@ -125,6 +125,7 @@ def test_map_critical_branches_against_networkx(tmp_path, capsys):
     assert set(d["critical_branches"]) == want and want
     for link in d["critical_links"]:  # links between buses only, never inside one
         assert link["source"].split(":")[0] != link["target"].split(":")[0]
+        assert link["element"] in want
     assert main(["map", f, "--inputs", "10", "--show", "critical-links", "--out",
                  str(out)]) == 0
     text = capsys.readouterr().out

@@ -58,6 +58,8 @@ class MapMarks:
         never a link inside a bus.
     critical_elements : tuple of str
         For a grid with the critical-links layer: the IDs of those branches.
+    critical_link_elements : tuple of str
+        For a grid: the branch ID of each critical link.
     grid : bool
         The system is a grid (it has an element table).
     disturbed : ndarray of int
@@ -94,6 +96,7 @@ class MapMarks:
     fragile_notes: tuple[tuple[int, str], ...] = field(default=(), repr=False)
     failures_note: str = ""
     critical_elements: tuple[str, ...] = ()
+    critical_link_elements: tuple[str, ...] = field(default=(), repr=False)
     grid: bool = False
 
     def names(self, indices: Iterable[Any]) -> list[str]:
@@ -138,6 +141,8 @@ class MapMarks:
             d["critical_links"] = [
                 {"source": self.state_names[int(u)], "target": self.state_names[int(v)]}
                 for u, v in zip(self.critical_sources, self.critical_targets)]
+            for row, e in zip(d["critical_links"], self.critical_link_elements):
+                row["element"] = e  # the branch ID (a grid)
             if self.critical_elements:
                 d["critical_branches"] = list(self.critical_elements)
         return d
@@ -241,10 +246,11 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
         on_cycle = np.zeros(0, bool)
     roles = crit_s = crit_t = None
     crit_el: tuple[str, ...] = ()
+    crit_owner: tuple[str, ...] = ()
     if layers:
         roles, crit_s, crit_t = _roles(system, layers)
         if "critical-links" in layers and system.elements is not None:
-            crit_s, crit_t, crit_el = _critical_branches(actuated)
+            crit_s, crit_t, crit_el, crit_owner = _critical_branches(actuated)
     fragile, notes, covered = (_single_points(system, actuated, design) if failures
                                else (np.zeros(0, np.int64), (), ""))
     return MapMarks(
@@ -257,11 +263,12 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
         critical_sources=crit_s, critical_targets=crit_t, model=system.model,
         state_names=tuple(system.state_names), disturbed=system.disturbed_states(),
         fragile=fragile, fragile_notes=notes, failures_note=covered,
-        critical_elements=crit_el, grid=system.elements is not None)
+        critical_elements=crit_el, critical_link_elements=crit_owner,
+        grid=system.elements is not None)
 
 
 def _critical_branches(actuated: StructuredSystem
-                       ) -> tuple[np.ndarray, np.ndarray, tuple[str, ...]]:
+                       ) -> tuple[np.ndarray, np.ndarray, tuple[str, ...], tuple[str, ...]]:
     """Links (both directions, between buses only) and IDs of the branches whose outage
     raises the minimum inputs or leaves the drawn design not structurally controllable;
     links inside a bus (part of the model) are never marked."""
@@ -280,7 +287,8 @@ def _critical_branches(actuated: StructuredSystem
     # every circuit of the pair: a link is marked when the branch owning it is critical
     keep = np.isin(owner, want) if want.size else np.zeros(owner.size, bool)
     src, tgt = actuated.edges()
-    return src[keep].astype(np.int64), tgt[keep].astype(np.int64), ids
+    return src[keep].astype(np.int64), tgt[keep].astype(np.int64), ids, tuple(
+        table.ids[int(k)] for k in owner[keep].tolist())
 
 
 #: At most this many single points of failure are explained on a map (all are marked).
