@@ -234,13 +234,23 @@ def _pp_bus_graph(net):
     return g
 
 
-def test_trafo3w_is_one_element_against_pandapower():
+@pytest.mark.parametrize("route", ["object", "json"])
+def test_trafo3w_is_one_element_against_pandapower(route, tmp_path):
+    """pandapower's example_multivoltage: each row of net.trafo3w is one element joining
+    its hv, mv and lv buses, through the object reader and our restricted JSON decoder."""
     net = _pp_multivoltage()
     from netctl.io.power_grid import from_pandapower
 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        s = from_pandapower(net)
+        if route == "object":
+            s = from_pandapower(net)
+        else:
+            import pandapower as pp
+
+            f = tmp_path / "mv.json"
+            pp.to_json(net, str(f))
+            s = read(f)
     el = s.elements
     name = {i: lab for i, lab in zip(s.nodes["bus"].tolist(), s.state_names)}
     on3 = net.trafo3w[net.trafo3w.in_service]
