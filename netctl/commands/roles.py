@@ -100,7 +100,7 @@ def _grid_lines(system: Any, nr: Any, lr: Any, d: dict[str, Any], full: bool) ->
     """Roles of a grid in its own terms: buses by number, branches by case ID; links
     inside a bus (part of the model) never listed as contingencies. Adds ``branches`` to
     ``d`` and the branch ID of every link (``element``, ``None`` inside a bus)."""
-    from netctl.structural.branches import INTERNAL, branch_roles, link_elements, state_label
+    from netctl.structural.branches import INTERNAL, branch_roles, link_elements, state_labels
 
     br = branch_roles(system)
     owner = link_elements(system)
@@ -110,7 +110,7 @@ def _grid_lines(system: Any, nr: Any, lr: Any, d: dict[str, Any], full: bool) ->
     if full:
         for row, k in zip(d["links"], owner.tolist()):
             row["element"] = ids[k] if k >= 0 else None
-    crit_states = [state_label(system, i) for i in nr.critical.tolist()]
+    crit_states = state_labels(system, nr.critical.tolist())
     crit = [f"{e} ({'-'.join(b)})" for e, b, r in zip(br.ids, br.buses, br.role.tolist())
             if r == 0]
     internal_crit = int(np.count_nonzero(owner[lr.critical] == INTERNAL))

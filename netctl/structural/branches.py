@@ -11,6 +11,7 @@ Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -21,7 +22,7 @@ from netctl.records import BRANCH_KINDS
 from netctl.system import StructuredSystem
 
 __all__ = ["BRANCH_ROLES", "BranchRoles", "branch_roles", "link_elements", "state_buses",
-           "state_label", "INTERNAL"]
+           "state_labels", "INTERNAL"]
 
 #: ``link_elements`` code of a link inside one bus (model-internal, never a contingency).
 INTERNAL = -1
@@ -50,8 +51,8 @@ def state_buses(system: StructuredSystem) -> np.ndarray:
     return np.array([pos.get(v, -1) for v in labels], np.int64)
 
 
-def state_label(system: StructuredSystem, i: int) -> str:
-    """A state in a planner's words: ``"bus 12"`` (first-order grid), ``"bus 12
+def state_labels(system: StructuredSystem, states: Iterable[int]) -> list[str]:
+    """States in a planner's words: ``"bus 12"`` (first-order grid), ``"bus 12
     frequency"`` / ``"bus 12 angle"`` (second-order), the state name otherwise.
 
     References
@@ -59,16 +60,22 @@ def state_label(system: StructuredSystem, i: int) -> str:
     .. [1] None: wording (common practice, no source).
     """
     table = system.elements
-    name = system.state_names[int(i)]
+    idx = [int(i) for i in states]
     if table is None:
-        return name
+        return [system.state_names[i] for i in idx]
+    buses = set(table.node_names)
     node = system.nodes.get("node")
     part = system.nodes.get("part")
-    bus = str(node[int(i)]) if node is not None else name
-    if bus not in table._pos and f"bus {bus}" not in table._pos:
-        return name
-    word = _PART_WORDS.get(str(part[int(i)])) if part is not None else None
-    return f"bus {bus}" + (f" {word}" if word else "")
+    out = []
+    for i in idx:
+        name = system.state_names[i]
+        bus = str(node[i]) if node is not None else name
+        if bus not in buses:
+            out.append(name)
+            continue
+        word = _PART_WORDS.get(str(part[i])) if part is not None else None
+        out.append(f"bus {bus}" + (f" {word}" if word else ""))
+    return out
 
 
 def link_elements(system: StructuredSystem) -> np.ndarray:
@@ -102,8 +109,7 @@ def link_elements(system: StructuredSystem) -> np.ndarray:
     keys: list[np.ndarray] = []
     owners: list[np.ndarray] = []
     ends = [table.end_a[br], table.end_b[br]]
-    end_c = getattr(table, "end_c", None)
-    c = end_c[br] if end_c is not None else np.full(br.size, -1, np.int64)
+    c = table.end_c[br]
     pairs = [(ends[0], ends[1], np.ones(br.size, bool)), (ends[0], c, c >= 0),
              (ends[1], c, c >= 0)]
     for a, b, ok in pairs:
