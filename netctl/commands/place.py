@@ -117,9 +117,9 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
     if not r.feasible and r.best_effort:
         word = "observable" if r.kind == "sensors" else "controllable"
         dim = "not computed" if r.dimension is None else f"{r.dimension} of {r.goal_dimension}"
-        what = ("target rank (controllable targets)" if r.problem == "target"
-                else f"generic {word} dimension")
-        status = (f"best effort: {r.sites.size} site(s) reach a {what} of "
+        reached = ("target rank (controllable targets)" if r.problem == "target"
+                   else f"generic {word} dimension")
+        status = (f"best effort: {r.sites.size} site(s) reach a {reached} of "
                   f"{dim}; no design on these sites is {word} because of the cause(s) below")
     elif not r.feasible:
         status = "infeasible"

@@ -594,8 +594,9 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     if "elements" in data:  # a grid's element table (branch IDs, buses, units)
         from netctl.io._spec_elements import read_elements
 
-        col = system.nodes.get("node")
-        known = {str(v) for v in col} if col is not None else set(system.state_names)
+        node_col = system.nodes.get("node")
+        known = ({str(v) for v in node_col} if node_col is not None
+                 else set(system.state_names))
         system = system._replace(elements=read_elements(doc, data["elements"], known))
     return SystemSpec(path=str(path), name=name, description=description, system=system,
                       terms=terms,
