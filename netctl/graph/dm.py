@@ -57,12 +57,19 @@ def _alt_bfs(indptr, indices, partner_of_col, starts, row_seen, col_seen):  # pr
 
 def alternating_reach_rows(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
                            col_match: np.ndarray, starts: np.ndarray | None = None,
+                           banned: np.ndarray | int | None = None,
                            ) -> tuple[np.ndarray, np.ndarray]:
     """Rows and columns reachable by alternating paths from ``starts`` (default: the
     unmatched rows). Returns boolean masks ``(rows, cols)``.
 
     With a maximum matching, every column reached is matched, and the rows reached are
     exactly those that some maximum matching leaves unmatched.
+
+    ``banned`` (a column or an array of columns, default none) are taken as absent: no
+    path crosses them and they are never marked reached. With the matched column of row
+    ``r`` banned and ``starts = [r]``, the rows reached are those that compete with
+    ``r`` for too few columns once that column is lost (the failure analyses). The
+    search itself is unchanged: a banned column is marked seen before it starts.
     """
     n_rows = indptr.size - 1
     if starts is None:
@@ -72,10 +79,14 @@ def alternating_reach_rows(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
         starts = np.flatnonzero(~row_has)
     row_seen = np.zeros(n_rows, np.bool_)
     col_seen = np.zeros(n_cols, np.bool_)
+    if banned is not None:
+        col_seen[banned] = True
     if n_rows and np.asarray(starts).size:
         _alt_bfs(np.ascontiguousarray(indptr, np.int64), np.ascontiguousarray(indices, np.int64),
                  np.ascontiguousarray(col_match, np.int64),
                  np.ascontiguousarray(starts, np.int64), row_seen, col_seen)
+    if banned is not None:
+        col_seen[banned] = False
     return row_seen, col_seen
 
 

@@ -137,6 +137,71 @@ def test_alternating_reach_rows_brute_force():
             assert rows[r] == can_be_free
 
 
+def test_alternating_reach_rows_banned_column_brute_force():
+    """With the matched column ``c`` of row ``r`` banned and the search started at ``r``:
+    when losing ``c`` lowers the matching size, row ``x`` is reached iff the rows the
+    matching covered, less ``x``, can still all be matched without ``c`` (an even
+    alternating path from ``r`` to ``x`` swaps ``x`` out; König/Berge exchange). Checked
+    with scipy's maximum bipartite matching on every row of small random graphs; the
+    banned column is never reported reached."""
+    rng = np.random.default_rng(12)
+    checked = 0
+    for _ in range(150):
+        n_rows = int(rng.integers(1, 7))
+        n_cols = int(rng.integers(1, 8))
+        dense = rng.random((n_rows, n_cols)) < 0.4
+        m = sp.csr_array(dense.astype(float))
+        indptr, indices = m.indptr.astype(np.int64), m.indices.astype(np.int64)
+        rm, cm = maximum_matching(indptr, indices, n_cols)
+        size = int((rm >= 0).sum())
+        covered = np.flatnonzero(rm >= 0)
+        for r in covered:
+            c = int(rm[r])
+            d2 = dense.copy()
+            d2[:, c] = False
+            if _scipy_size(sp.csr_array(d2.astype(float))) == size:
+                continue  # the column is not needed: no rivals to compare
+            rows, cols = alternating_reach_rows(indptr, indices, n_cols, cm,
+                                                np.array([r], np.int64), banned=c)
+            assert not cols[c]
+            for x in range(n_rows):
+                keep = np.setdiff1d(covered, [x])
+                sub = d2[keep, :]
+                expect = _scipy_size(sp.csr_array(sub.astype(float))) == keep.size
+                assert rows[x] == expect, (dense, r, x)
+            checked += 1
+    assert checked > 50
+
+
+def test_alternating_reach_rows_banned_is_deleting_the_columns():
+    """Banning columns is the same search as deleting their entries from the graph (any
+    set of columns, any starts; the matching array unchanged), and ``banned=None`` is the
+    search without a ban."""
+    rng = np.random.default_rng(13)
+    differs = 0
+    for _ in range(300):
+        n_rows = int(rng.integers(1, 9))
+        n_cols = int(rng.integers(1, 9))
+        dense = rng.random((n_rows, n_cols)) < 0.35
+        m = sp.csr_array(dense.astype(float))
+        ptr, ind = m.indptr.astype(np.int64), m.indices.astype(np.int64)
+        _, cm = maximum_matching(ptr, ind, n_cols)
+        starts = np.flatnonzero(rng.random(n_rows) < 0.4).astype(np.int64)
+        ban = np.flatnonzero(rng.random(n_cols) < 0.3).astype(np.int64)
+        cut = dense.copy()
+        cut[:, ban] = False
+        mc = sp.csr_array(cut.astype(float), shape=dense.shape)
+        want = alternating_reach_rows(mc.indptr.astype(np.int64),
+                                      mc.indices.astype(np.int64), n_cols, cm, starts)
+        got = alternating_reach_rows(ptr, ind, n_cols, cm, starts, banned=ban)
+        assert np.array_equal(got[0], want[0]) and np.array_equal(got[1], want[1])
+        plain = alternating_reach_rows(ptr, ind, n_cols, cm, starts)
+        none = alternating_reach_rows(ptr, ind, n_cols, cm, starts, banned=None)
+        assert np.array_equal(plain[0], none[0]) and np.array_equal(plain[1], none[1])
+        differs += not np.array_equal(plain[0], got[0])
+    assert differs > 10  # the ban changed the rows reached in many cases
+
+
 def test_scc_and_sources_match_networkx():
     rng = np.random.default_rng(3)
     for _ in range(30):

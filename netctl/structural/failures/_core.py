@@ -11,13 +11,13 @@ from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
-from netctl._jit import njit
 
 from netctl.graph.components import (
     condensation_sources,
     reachable_from,
     strongly_connected_components,
 )
+from netctl.graph.dm import alternating_reach_rows
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural._engine import stack_AB
 from netctl.structural.robustness.contingency import _dominators
@@ -97,37 +97,6 @@ def rank_after(A: sp.csr_array, B: sp.csr_array) -> int:
     return int(np.count_nonzero(rm >= 0))
 
 
-@njit(cache=True, nogil=True)
-def _alt_from(indptr, indices, col_match, start, banned, row_seen, col_seen):  # pragma: no cover
-    """Alternating search from row ``start`` with column ``banned`` removed. Marks the rows
-    and columns reached; returns True when an unmatched column is reached (the row can be
-    re-matched: no rank is lost)."""
-    n_rows = indptr.size - 1
-    queue = np.empty(n_rows, np.int64)
-    queue[0] = start
-    row_seen[start] = True
-    col_seen[banned] = True
-    tail = 1
-    head = 0
-    found = False
-    while head < tail:
-        r = queue[head]
-        head += 1
-        for k in range(indptr[r], indptr[r + 1]):
-            c = indices[k]
-            if col_seen[c]:
-                continue
-            col_seen[c] = True
-            r2 = col_match[c]
-            if r2 < 0:
-                found = True
-            elif not row_seen[r2]:
-                row_seen[r2] = True
-                queue[tail] = r2
-                tail += 1
-    return found
-
-
 @dataclass(frozen=True)
 class DesignFacts:
     """One maximum matching of ``[A B]`` and the input-dominator tree of a design."""
@@ -167,10 +136,9 @@ class DesignFacts:
             return np.zeros(0, np.int64)
         col = self.n + k
         row = int(self.col_match[col])
-        row_seen = np.zeros(self.n, np.bool_)
-        col_seen = np.zeros(self.n + self.m, np.bool_)
-        _alt_from(self.ab_indptr, self.ab_indices, self.col_match, row, col, row_seen,
-                  col_seen)
+        row_seen, _ = alternating_reach_rows(self.ab_indptr, self.ab_indices, self.n + self.m,
+                                             self.col_match, np.array([row], np.int64),
+                                             banned=col)
         return np.flatnonzero(row_seen).astype(np.int64)
 
 
@@ -194,8 +162,6 @@ def design_facts(A: sp.csr_array, B: sp.csr_array) -> DesignFacts:
     col_free = np.zeros(n_cols, np.bool_)
     starts = np.flatnonzero(cm < 0)
     if starts.size:
-        from netctl.graph.dm import alternating_reach_rows
-
         col_free, _ = alternating_reach_rows(tptr, tind, n, rm, starts)
     rank_lost = (~col_free[n:]) & (cm[n:] >= 0) if rank == n else np.zeros(m, bool)
     # flow graph: states 0..n-1, input nodes n..n+m-1; in-lists are the rows of [A B]

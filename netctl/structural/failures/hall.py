@@ -47,7 +47,7 @@ import scipy.sparse as sp
 from netctl.graph.dm import alternating_reach_rows
 from netctl.graph.matching import maximum_matching
 from netctl.structural._engine import stack_AB
-from netctl.structural.failures._core import _alt_from, design_facts, source_components
+from netctl.structural.failures._core import design_facts, source_components
 
 __all__ = ["CutPool", "hall_violations", "hall_secure", "solve_cuts", "deficiency"]
 
@@ -215,12 +215,7 @@ def hall_violations(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int,
     if k == 1:
         f = design_facts(A, B)
         for q in np.flatnonzero(f.rank_lost):
-            col = n + int(q)
-            row = int(f.col_match[col])
-            row_seen = np.zeros(n, np.bool_)
-            col_seen = np.zeros(n + m, np.bool_)
-            _alt_from(f.ab_indptr, f.ab_indices, f.col_match, row, col, row_seen, col_seen)
-            out.append(_hall_cut(A, B0, np.flatnonzero(row_seen), 1))
+            out.append(_hall_cut(A, B0, f.rivals(int(q)), 1))
             if first:
                 return out
         cut = np.flatnonzero(f.cut_off > 0)
