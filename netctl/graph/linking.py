@@ -364,27 +364,30 @@ def _paths(adj_ptr, head, forward, cap0, cap, src_pos, k, n):  # pragma: no cove
 
 
 @njit(cache=True, nogil=True)
-def _to_sink(adj_ptr, head, rev, cap):  # pragma: no cover - compiled
-    """Which nodes reach the super-sink in the residual graph ``cap`` (reverse search)."""
+def _residual_search(adj_ptr, head, rev, cap, start, stop,
+                     backward):  # pragma: no cover - compiled
+    """Nodes joined to ``start`` by arcs with residual capacity in ``cap``: the nodes it
+    reaches, or with ``backward`` the nodes that reach it (each arc ``q`` read as the
+    reverse of arc ``rev[q]``). ``stop`` is marked but never passed through (-1: none)."""
     n_nodes = adj_ptr.size - 1
-    to_sink = np.zeros(n_nodes, np.bool_)
+    seen = np.zeros(n_nodes, np.bool_)
     stack = np.empty(n_nodes, np.int64)
-    to_sink[1] = True
-    stack[0] = 1
+    seen[start] = True
+    stack[0] = start
     top = 1
     while top:
         top -= 1
         v = stack[top]
-        if v == 0:
+        if v == stop:
             continue
         for q in range(adj_ptr[v], adj_ptr[v + 1]):
-            f = rev[q]  # arc head[q] -> v
+            f = rev[q] if backward else q  # backward: the arc head[q] -> v
             u = head[q]
-            if cap[f] > 0 and not to_sink[u]:
-                to_sink[u] = True
+            if cap[f] > 0 and not seen[u]:
+                seen[u] = True
                 stack[top] = u
                 top += 1
-    return to_sink
+    return seen
 
 
 @njit(cache=True, nogil=True)
@@ -539,7 +542,9 @@ def extension(graph: LinkingGraph, linking: Linking, extra: np.ndarray) -> tuple
         if entries.size == 0:
             return False, -int(_INF)
     if "to_sink" not in labels:
-        labels["to_sink"] = _to_sink(graph.adj_ptr, graph.head, graph.rev, linking._residual)
+        # which nodes reach the super-sink in the residual graph (never via the source)
+        labels["to_sink"] = _residual_search(graph.adj_ptr, graph.head, graph.rev,
+                                             linking._residual, 1, 0, True)
     if labels["to_sink"][entries].any():
         return True, -int(_INF)
     if "back" not in labels:
@@ -567,27 +572,8 @@ def minimum_separator(graph: LinkingGraph, *, sources: np.ndarray | None = None
         cap[graph.src_pos[~keep]] = 0
     _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, False,
            np.zeros(graph.adj_ptr.size - 1, np.int64))
-    reach = _residual_reach(graph.adj_ptr, graph.head, cap)
+    reach = _residual_search(graph.adj_ptr, graph.head, graph.rev, cap, 0, -1, False)
     in0 = 2 + k
     ins = reach[in0:in0 + n]
     outs = reach[in0 + n:in0 + 2 * n]
     return np.flatnonzero(ins & ~outs).astype(np.int64)
-
-
-@njit(cache=True, nogil=True)
-def _residual_reach(adj_ptr, head, cap):  # pragma: no cover - compiled
-    n_nodes = adj_ptr.size - 1
-    seen = np.zeros(n_nodes, np.bool_)
-    stack = np.empty(n_nodes, np.int64)
-    seen[0] = True
-    stack[0] = 0
-    top = 1
-    while top:
-        top -= 1
-        v = stack[top]
-        for a in range(adj_ptr[v], adj_ptr[v + 1]):
-            if cap[a] > 0 and not seen[head[a]]:
-                seen[head[a]] = True
-                stack[top] = head[a]
-                top += 1
-    return seen
