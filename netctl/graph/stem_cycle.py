@@ -69,36 +69,6 @@ def _pop(hd, hv, size):  # pragma: no cover - compiled
 
 
 @njit(cache=True, nogil=True)
-def _relax_row(indptr, indices, has_loop, r, base, v, d, pred, pw, done, touched, nt, hd,
-               hv, size):  # pragma: no cover - compiled
-    """Relax the edges of row ``r`` in :func:`_prices`: each real edge (cost 0) and, unless
-    ``r`` has a self-loop, its dummy column ``r`` (cost 1) gives an unsettled column ``c``
-    the label ``base + w - v[c]`` (``base`` = the row's label less its price ``u[r]``).
-    Returns the new counts of touched columns and heap entries."""
-    for e in range(indptr[r], indptr[r + 1] + 1):
-        if e < indptr[r + 1]:
-            c = indices[e]
-            w = 0
-        elif has_loop[r]:
-            break
-        else:
-            c = r
-            w = 1
-        if done[c]:
-            continue
-        nd = base + w - v[c]
-        if nd < d[c]:
-            if d[c] == _INF:
-                touched[nt] = c
-                nt += 1
-            d[c] = nd
-            pred[c] = r
-            pw[c] = w
-            size = _push(hd, hv, size, nd, c)
-    return nt, size
-
-
-@njit(cache=True, nogil=True)
 def _prices(indptr, indices, has_loop, row_match, col_match, cost):  # pragma: no cover
     """Complete ``row_match`` (zero-cost edges only so far, prices 0) to an optimal
     assignment with the dummies; returns the column prices ``v``.
@@ -120,26 +90,51 @@ def _prices(indptr, indices, has_loop, row_match, col_match, cost):  # pragma: n
     for f in range(n):
         if row_match[f] >= 0:
             continue
-        # edges of the free row f (u[f] taken as 0)
-        nt, size = _relax_row(indptr, indices, has_loop, f, np.int64(0), v, d, pred, pw,
-                              done, touched, 0, hd, hv, 0)
+        nt = 0
+        size = 0
         last = -1
         dstar = inf
-        while size > 0:
-            dc = hd[0]
-            c = hv[0]
-            size = _pop(hd, hv, size)
-            if done[c] or dc > d[c]:
-                continue
-            done[c] = True
-            r = col_match[c]
-            if r < 0:
-                last = c
-                dstar = dc
+        # relax the edges of row r from its label less its price u[r] (the free row f
+        # first, u[f] taken as 0), then settle the nearest column: its row comes next,
+        # unless the column is free (the shortest augmenting path ends there)
+        r = f
+        base = np.int64(0)
+        while r >= 0:
+            for e in range(indptr[r], indptr[r + 1] + 1):
+                if e < indptr[r + 1]:
+                    c2 = indices[e]
+                    w = 0
+                elif has_loop[r]:
+                    break
+                else:
+                    c2 = r
+                    w = 1
+                if done[c2]:
+                    continue
+                nd = base + w - v[c2]
+                if nd < d[c2]:
+                    if d[c2] == inf:
+                        touched[nt] = c2
+                        nt += 1
+                    d[c2] = nd
+                    pred[c2] = r
+                    pw[c2] = w
+                    size = _push(hd, hv, size, nd, c2)
+            r = -1
+            while size > 0:
+                dc = hd[0]
+                c = hv[0]
+                size = _pop(hd, hv, size)
+                if done[c] or dc > d[c]:
+                    continue
+                done[c] = True
+                r = col_match[c]
+                if r < 0:
+                    last = c
+                    dstar = dc
+                else:
+                    base = dc - (cost[r] - v[c])
                 break
-            ur = cost[r] - v[c]
-            nt, size = _relax_row(indptr, indices, has_loop, r, dc - ur, v, d, pred, pw,
-                                  done, touched, nt, hd, hv, size)
         # price update on the columns settled before the free one, then reset
         for t in range(nt):
             c = touched[t]
