@@ -26,11 +26,16 @@ __all__ = ["DesignFacts", "design_facts", "is_controlling", "source_components",
            "dedicated_B", "free_rows_after_loss", "rank_after", "Check"]
 
 
-def dedicated_B(n: int, states: np.ndarray) -> sp.csr_array:
-    """``n x len(states)`` input matrix, one dedicated input per listed state."""
+def dedicated_B(n: int, states: np.ndarray, kept: sp.csr_array | None = None
+                ) -> sp.csr_array:
+    """``n x len(states)`` input matrix, one dedicated input per listed state; with
+    ``kept`` (``n x m``), its columns first and the dedicated ones after them. CSR with
+    sorted int64 index arrays."""
     states = np.asarray(states, np.int64)
     B = sp.csr_array((np.ones(states.size), (states, np.arange(states.size))),
                      shape=(n, states.size))
+    if kept is not None and kept.shape[1]:
+        B = sp.csr_array(sp.hstack([kept, B], format="csr"))
     B.sum_duplicates()
     B.sort_indices()
     B.indptr = B.indptr.astype(np.int64)

@@ -47,7 +47,7 @@ import scipy.sparse as sp
 from netctl.graph.dm import alternating_reach_rows
 from netctl.graph.matching import maximum_matching
 from netctl.structural._engine import stack_AB
-from netctl.structural.failures._core import design_facts, source_components
+from netctl.structural.failures._core import dedicated_B, design_facts, source_components
 
 __all__ = ["CutPool", "hall_violations", "hall_secure", "solve_cuts", "deficiency"]
 
@@ -82,15 +82,7 @@ def _touching(B0: sp.csr_array, X: np.ndarray) -> int:
 
 def _design_B(n: int, B0: sp.csr_array, S: np.ndarray) -> sp.csr_array:
     """Kept columns, then one dedicated column per site of ``S``."""
-    S = np.asarray(S, np.int64)
-    D = sp.csr_array((np.ones(S.size), (S, np.arange(S.size))), shape=(n, S.size))
-    B = sp.hstack([B0, D], format="csr") if B0.shape[1] else D
-    B = sp.csr_array(B)
-    B.sum_duplicates()
-    B.sort_indices()
-    B.indptr = B.indptr.astype(np.int64)
-    B.indices = B.indices.astype(np.int64)
-    return B
+    return dedicated_B(n, S, B0)
 
 
 @dataclass

@@ -72,6 +72,23 @@ def _augment_from(k_col, start_rows, tptr, tind, rm, cm, seen, stamp, parent, qu
     return False
 
 
+def _search_state(prob: Reduced, n_cols: int) -> tuple[
+        np.ndarray, np.ndarray, int, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """A maximum matching of the rows ``D`` over the real columns, as ``(rm, cm)`` with
+    ``n_cols`` columns in all (the candidates' after the real ones, unmatched), how many
+    rows it leaves unmatched, and the work arrays of :func:`_augment_from` (``seen``,
+    ``parent``, ``queue``, ``dead``)."""
+    nD, n_real = prob.D.size, prob.n_real
+    rm = np.full(nD, -1, np.int64)
+    if nD:
+        rm, _ = maximum_matching(prob.sub_indptr, prob.sub_indices, n_real)
+    cm = np.full(n_cols, -1, np.int64)
+    mr = np.flatnonzero(rm >= 0)
+    cm[rm[mr]] = mr
+    return (rm, cm, nD - int(mr.size), np.zeros(nD, np.int64), np.full(nD, -1, np.int64),
+            np.empty(max(nD, 1), np.int64), np.zeros(nD, np.bool_))
+
+
 def greedy_cover(prob: Reduced, cands: Candidates) -> Outcome:
     """Cost-effectiveness greedy for the submodular cover g(S) = rank + sources touched.
 
@@ -81,7 +98,6 @@ def greedy_cover(prob: Reduced, cands: Candidates) -> Outcome:
     """
     K = cands.n_candidates
     cost = cands.cost
-    nD = prob.D.size
     cD = prob.cand_D
     cc = prob.cand_comp
     covered = np.zeros(prob.unreached.size, bool)
@@ -91,17 +107,7 @@ def greedy_cover(prob: Reduced, cands: Candidates) -> Outcome:
     tptr_r, tind_r = transpose_csr(prob.sub_indptr, prob.sub_indices, np.int64(n_real))
     tptr = np.concatenate([tptr_r, tptr_r[-1] + cD.indptr[1:].astype(np.int64)])
     tind = np.concatenate([tind_r, cD.indices.astype(np.int64)])
-    rm = np.full(nD, -1, np.int64)
-    if nD:
-        rm, _ = maximum_matching(prob.sub_indptr, prob.sub_indices, n_real)
-    cm = np.full(n_real + K, -1, np.int64)
-    mr = np.flatnonzero(rm >= 0)
-    cm[rm[mr]] = mr
-    need_rank = nD - int(mr.size)
-    seen = np.zeros(nD, np.int64)
-    parent = np.full(nD, -1, np.int64)
-    queue = np.empty(max(nD, 1), np.int64)
-    dead = np.zeros(nD, np.bool_)
+    rm, cm, need_rank, seen, parent, queue, dead = _search_state(prob, n_real + K)
     stamp = 0
     single = np.diff(cD.indptr) > 0
     n_comp = np.diff(cc.indptr).astype(np.int64)
@@ -157,17 +163,9 @@ def greedy_cover(prob: Reduced, cands: Candidates) -> Outcome:
 def _min_cost_rank_basis(prob: Reduced, cost: np.ndarray, tptr: np.ndarray,
                          tind: np.ndarray, single: np.ndarray) -> float:
     """Cheapest set of candidates that restores the term rank (ignoring accessibility)."""
-    nD, n_real = prob.D.size, prob.n_real
+    n_real = prob.n_real
     cD = prob.cand_D
-    rm, _ = maximum_matching(prob.sub_indptr, prob.sub_indices, n_real)
-    cm = np.full(tptr.size - 1, -1, np.int64)
-    mr = np.flatnonzero(rm >= 0)
-    cm[rm[mr]] = mr
-    need = nD - int(mr.size)
-    seen = np.zeros(nD, np.int64)
-    parent = np.full(nD, -1, np.int64)
-    queue = np.empty(max(nD, 1), np.int64)
-    dead = np.zeros(nD, np.bool_)
+    rm, cm, need, seen, parent, queue, dead = _search_state(prob, tptr.size - 1)
     total = 0.0
     order = np.flatnonzero(single)
     order = order[np.argsort(cost[order], kind="stable")]
