@@ -6,6 +6,7 @@ adds the input column ``e_i``; sensors are placed on the dual system (see :mod:`
 
 from __future__ import annotations
 
+import dataclasses
 import itertools
 import math
 import time
@@ -255,7 +256,8 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
             bad = []
     if bad:
         return _infeasible(bad, A, B0, kk, names, base)
-    p = place_inputs(work, sites=sites, verify=False)
+    # the minimum design on the working system: sensors are actuators of the dual
+    p = place_inputs(work, sites=dataclasses.replace(sites, kind="actuator"), verify=False)
     D = np.asarray(p.sites, np.int64)
     try:
         for X, rhs in oracle(D):
