@@ -21,6 +21,7 @@ import json
 import math
 import os
 import re
+import warnings
 from collections.abc import Sequence
 from typing import Any
 
@@ -28,10 +29,11 @@ from netctl.io._common import file_error, read_text
 from netctl.io._grid import DAMPING_COLUMN, INERTIA_COLUMN, GridTables, build_grid, label
 from netctl.system import StructuredSystem
 
-__all__ = ["PPTable", "read_pandapower_json", "grid_tables", "looks_like_pandapower"]
+__all__ = ["PPTable", "read_pandapower_json", "grid_tables", "looks_like_pandapower",
+           "with_loads"]
 
 _TABLES = ("bus", "line", "trafo", "trafo3w", "impedance", "switch", "gen", "sgen",
-           "ext_grid", "storage", "bus_geodata")
+           "ext_grid", "storage", "bus_geodata", "load")
 
 
 class PPTable:
@@ -76,9 +78,12 @@ def _line_of(text: str, key: str) -> int | None:
     return text.count("\n", 0, m.start()) + 1 if m else None
 
 
-def read_pandapower_json(path: str | os.PathLike[str], *, model: str = "given"
-                         ) -> StructuredSystem:
+def read_pandapower_json(path: str | os.PathLike[str], *, model: str = "given",
+                         loads: bool = True) -> StructuredSystem:
     """Read a pandapower network saved as JSON, without importing anything it names.
+
+    Each in-service load becomes a disturbance on its bus (``loads=False`` leaves them
+    out), as :func:`netctl.io.power_grid.from_pandapower` does for a network object.
 
     Raises
     ------
@@ -122,7 +127,54 @@ def read_pandapower_json(path: str | os.PathLike[str], *, model: str = "given"
     sn = body.get("sn_mva", 1.0)
     sn_mva = float(sn) if isinstance(sn, (int, float)) and not isinstance(sn, bool) and sn > 0 \
         else 1.0
-    return build_grid(grid_tables(tables, sn_mva, str(path)), model=model)
+    system = build_grid(grid_tables(tables, sn_mva, str(path)), model=model)
+    load = tables.get("load")
+    if not loads or load is None or len(load) == 0:
+        return system
+    return with_loads(system, load, str(path))
+
+
+def with_loads(system: StructuredSystem, load: PPTable, where: str) -> StructuredSystem:
+    """``system`` with one disturbance per in-service load of the pandapower table ``load``.
+
+    A load is named ``load <index>`` (``load:<index>`` if a bus already carries such a
+    name) and acts on its bus; its ``bus``, ``p_mw``, ``q_mvar`` and the bus coordinates
+    go into the disturbance table. Loads out of service, or on a bus left out, are left
+    out with a warning that counts them.
+    """
+    import numpy as np
+    import scipy.sparse as sp
+
+    state_of = {label(b): k for k, b in enumerate(np.asarray(system.nodes["bus"]).tolist())}
+    on = [v is None or bool(v) for v in load.col("in_service", True)]
+    at = [state_of.get(label(b), -1) if b is not None else -1 for b in load.col("bus", None)]
+    keep = [k for k in range(len(load)) if on[k] and at[k] >= 0]
+    off = len(load) - len(keep)
+    if off:
+        warnings.warn(f"{where}: {off} load(s) out of service or on a bus out of service "
+                      "left out of the disturbances.", stacklevel=3)
+    names = [f"load {load.index[k]}" for k in keep]
+    if set(names) & set(system.state_names):  # a bus named like a load: keep names apart
+        names = [f"load:{load.index[k]}" for k in keep]
+    rows = np.array([at[k] for k in keep], np.int64)
+    E = sp.csr_array((np.ones(rows.size), (rows, np.arange(rows.size))),
+                     shape=(system.n_states, rows.size))
+
+    def col(name: str) -> np.ndarray:
+        vals = load.col(name, None)
+        out = np.full(rows.size, math.nan)
+        for j, k in enumerate(keep):
+            v = vals[k]
+            if isinstance(v, (int, float)) and not isinstance(v, bool):
+                out[j] = float(v)
+        return out
+
+    dnodes: dict[str, np.ndarray] = {"bus": np.asarray(system.nodes["bus"])[rows],
+                                     "p_mw": col("p_mw"), "q_mvar": col("q_mvar")}
+    for c in ("x", "y"):
+        if c in system.nodes:
+            dnodes[c] = np.asarray(system.nodes[c], float)[rows]
+    return system.with_disturbances(E, names=names, nodes=dnodes)
 
 
 def _table(path: object, name: str, entry: Any, line: int | None) -> PPTable:

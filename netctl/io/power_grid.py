@@ -16,15 +16,13 @@ pandapower and without importing anything the file names.
 from __future__ import annotations
 
 import math
-import warnings
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.errors import InvalidSystemError
 from netctl.io._grid import build_grid
-from netctl.io.pandapower_json import PPTable, grid_tables
+from netctl.io.pandapower_json import PPTable, grid_tables, with_loads
 from netctl.system import StructuredSystem
 
 __all__ = ["from_pandapower"]
@@ -92,37 +90,4 @@ def from_pandapower(net: Any, *, model: str = "given", loads: bool = True) -> St
     load = getattr(net, "load", None)
     if not loads or load is None or not hasattr(load, "columns") or len(load) == 0:
         return system
-    return _with_loads(system, load, where)
-
-
-def _with_loads(system: StructuredSystem, load: Any, where: str) -> StructuredSystem:
-    """``system`` with one disturbance per in-service load of the table ``load``."""
-    n_rows = len(load)
-    on = (load["in_service"].to_numpy().astype(bool) if "in_service" in load.columns
-          else np.ones(n_rows, bool))
-    state_of = {int(b): k for k, b in enumerate(np.asarray(system.nodes["bus"]).tolist())}
-    at = np.array([state_of.get(int(b), -1) for b in load["bus"].tolist()], np.int64)
-    keep = on & (at >= 0)
-    off = int(np.count_nonzero(~keep))
-    if off:
-        warnings.warn(f"{where}: {off} load(s) out of service or on a bus out of service "
-                      "left out of the disturbances.", stacklevel=3)
-    idx = np.asarray(load.index.tolist(), dtype=object)[keep]
-    names = [f"load {i}" for i in idx.tolist()]
-    if set(names) & set(system.state_names):  # a bus named like a load: keep names apart
-        names = [f"load:{i}" for i in idx.tolist()]
-    rows = at[keep]
-    E = sp.csr_array((np.ones(rows.size), (rows, np.arange(rows.size))),
-                     shape=(system.n_states, rows.size))
-
-    def col(name: str) -> np.ndarray:
-        if name not in load.columns:
-            return np.full(rows.size, math.nan)
-        return load[name].to_numpy(dtype=float, na_value=math.nan)[keep]
-
-    dnodes: dict[str, np.ndarray] = {"bus": np.asarray(system.nodes["bus"])[rows],
-                                     "p_mw": col("p_mw"), "q_mvar": col("q_mvar")}
-    for c in ("x", "y"):
-        if c in system.nodes:
-            dnodes[c] = np.asarray(system.nodes[c], float)[rows]
-    return system.with_disturbances(E, names=names, nodes=dnodes)
+    return with_loads(system, _pp_table(load, "load"), where)

@@ -150,3 +150,40 @@ def test_loads_out_of_service_are_left_out_with_a_warning():
         s = from_pandapower(net)
     assert s.n_disturbances == len(net.load) - 1
     assert f"load {net.load.index[3]}" not in s.disturbance_names
+
+
+@pytest.mark.parametrize("case", LOAD_CASES)
+def test_saved_grid_reads_its_loads_like_the_network_object(tmp_path, case):
+    # A grid saved with pandapower's to_json and read by netctl's restricted decoder gets
+    # the same load disturbances as the network object; the reference is pandapower's own
+    # load table (bus, p_mw, q_mvar, in service), one load taken out of service.
+    pp = pytest.importorskip("pandapower",
+                             reason="pandapower is not installed (pip install netctl[power])")
+    import pandapower.networks as pn
+
+    from netctl.io.pandapower_json import read_pandapower_json
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        net = getattr(pn, case)()
+    net.load.loc[net.load.index[1], "in_service"] = False
+    path = tmp_path / "grid.json"
+    pp.to_json(net, str(path))
+    live = net.load[net.load.in_service.astype(bool)
+                    & net.bus.in_service.reindex(net.load.bus).to_numpy().astype(bool)]
+    with pytest.warns(UserWarning, match="load.s. out of service"):
+        s = read_pandapower_json(path)
+    assert s.disturbance_names == tuple(f"load {i}" for i in live.index)
+    named = net.bus["name"].notna().all() and net.bus["name"].is_unique
+    for idx, row in live.iterrows():
+        bus = int(row["bus"])
+        assert s.disturbed_by(f"load {idx}") == [str(net.bus.at[bus, "name"]) if named
+                                                 else str(bus)]
+    np.testing.assert_allclose(s.disturbance_nodes["p_mw"], live["p_mw"].to_numpy(float))
+    np.testing.assert_allclose(s.disturbance_nodes["q_mvar"], live["q_mvar"].to_numpy(float))
+    assert read_pandapower_json(path, loads=False).n_disturbances == 0
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        obj = from_pandapower(net)
+    assert obj.disturbance_names == s.disturbance_names
+    assert (obj.E != s.E).nnz == 0
