@@ -27,6 +27,7 @@ from netctl.graph.matching import maximum_matching
 from netctl.records import BRANCH_KINDS, ELEMENT_KINDS, ElementTable
 from netctl.structural._engine import stack_AB
 from netctl.structural.robustness._common import LossOutcomes, _n_d
+from netctl.structural.robustness._rematch import matching_sizes_after
 from netctl.system import StructuredSystem
 
 __all__ = ["ElementEffects", "ElementSweep", "element_effects", "element_sweep",
@@ -167,6 +168,29 @@ def element_effects(system: StructuredSystem) -> ElementEffects:
                           input_ptr=ip, inputs=inf, parallel=par, input_bus=in_node)
 
 
+def _take(ptr: np.ndarray, flat: np.ndarray, sel: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Groups ``sel`` of a ragged array (``flat[ptr[k]:ptr[k + 1]]`` is group ``k``)."""
+    lens = ptr[sel + 1] - ptr[sel]
+    out_ptr = np.zeros(sel.size + 1, np.int64)
+    np.cumsum(lens, out=out_ptr[1:])
+    offs = np.repeat(ptr[sel] - out_ptr[:-1], lens)
+    return out_ptr, flat[np.arange(int(out_ptr[-1]), dtype=np.int64) + offs]
+
+
+def _concat_ragged(p1: np.ndarray, f1: np.ndarray, p2: np.ndarray,
+                   f2: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Group ``k`` of the result: group ``k`` of the first, then of the second."""
+    l1, l2 = np.diff(p1), np.diff(p2)
+    ptr = np.zeros(p1.size, np.int64)
+    np.cumsum(l1 + l2, out=ptr[1:])
+    out = np.empty(int(ptr[-1]), np.int64)
+    first = np.arange(f1.size, dtype=np.int64) + np.repeat(ptr[:-1] - p1[:-1], l1)
+    second = np.arange(f2.size, dtype=np.int64) + np.repeat(ptr[:-1] + l1 - p2[:-1], l2)
+    out[first] = f1
+    out[second] = f2
+    return ptr, out
+
+
 # ---------------------------------------------------------------------- kernels
 @njit(cache=True, nogil=True)
 def _reached(out_ptr, out_idx, out_pos, link_dead, state_dead, start):  # pragma: no cover
@@ -195,48 +219,6 @@ def _reached(out_ptr, out_idx, out_pos, link_dead, state_dead, start):  # pragma
             top += 1
             count += 1
     return count
-
-
-def _matching_after(indptr: np.ndarray, indices: np.ndarray, n_cols: int, row_mate: np.ndarray,
-                    col_mate: np.ndarray, dead_pos: np.ndarray, dead_rows: np.ndarray,
-                    dead_cols: np.ndarray, size: int, row_of: np.ndarray) -> int:
-    """Maximum matching size after removing entries (CSR positions), rows and columns.
-
-    When no surviving vertex loses its partner, the restricted matching is maximum (an
-    augmenting path would have to end at such a vertex); otherwise it is recomputed.
-    """
-    rows = row_of[dead_pos]
-    cols = indices[dead_pos]
-    lost_pairs = rows[row_mate[rows] == cols]
-    dead_r = set(dead_rows.tolist())
-    dead_c = set(dead_cols.tolist())
-    freed = bool(lost_pairs.size)
-    m_r = row_mate[dead_rows]
-    freed = freed or any(c >= 0 and c not in dead_c for c in m_r.tolist())
-    freed = freed or any(r >= 0 and r not in dead_r for r in col_mate[dead_cols].tolist())
-    if not freed:
-        return size - int(np.count_nonzero(m_r >= 0))
-    dr = np.zeros(indptr.size - 1, bool)
-    dr[dead_rows] = True
-    dc = np.zeros(n_cols, bool)
-    dc[dead_cols] = True
-    keep = np.ones(indices.size, bool)
-    keep[dead_pos] = False
-    r_all = row_of
-    keep &= ~dr[r_all] & ~dc[indices]
-    ptr = np.zeros(indptr.size, np.int64)
-    np.cumsum(np.bincount(r_all[keep], minlength=indptr.size - 1), out=ptr[1:])
-    # warm start: the old matching without the lost pairs (still valid), then completed
-    rm0 = row_mate.copy()
-    rm0[rows[row_mate[rows] == cols] if dead_pos.size else dead_pos] = -1
-    rm0[dr] = -1
-    rm0[(rm0 >= 0) & dc[np.maximum(rm0, 0)]] = -1
-    cm0 = np.full(n_cols, -1, np.int64)
-    live = np.flatnonzero(rm0 >= 0)
-    cm0[rm0[live]] = live
-    rm, _ = maximum_matching(ptr, indices[keep].astype(np.int64), n_cols, row_match=rm0,
-                             col_match=cm0)
-    return int(np.count_nonzero(rm >= 0))
 
 
 class _Islands:
@@ -519,14 +501,12 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
     a_ptr = A.indptr.astype(np.int64)
     a_idx = A.indices.astype(np.int64)
     rmA, cmA = maximum_matching(a_ptr, a_idx, n)
-    row_a = np.repeat(np.arange(n, dtype=np.int64), np.diff(a_ptr))
     sizeA = int(np.count_nonzero(rmA >= 0))
     has = m > 0
     ab_ptr, ab_idx, n_ab = stack_AB(A, B)
     ab_ptr, ab_idx = ab_ptr.astype(np.int64), ab_idx.astype(np.int64)
     if has:
         rmAB, cmAB = maximum_matching(ab_ptr, ab_idx, n_ab)
-        row_ab = np.repeat(np.arange(n, dtype=np.int64), np.diff(ab_ptr))
         sizeAB = int(np.count_nonzero(rmAB >= 0))
         # position of each A entry inside [A B] (A's columns come first in every row)
         nb_row = np.diff(B.indptr) if B.nnz else np.zeros(n, np.int64)
@@ -547,6 +527,17 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
     else:
         ok_before = None
     k_n = len(sel)
+    sel_a = np.asarray(sel, np.int64)
+    lp, lf = _take(eff.link_ptr, eff.links, sel_a)
+    sp_, sf = _take(eff.state_ptr, eff.states, sel_a)
+    ip, inf = _take(eff.input_ptr, eff.inputs, sel_a)
+    # one matching each, then a few alternating searches per loss (no rebuild)
+    size_a = matching_sizes_after(a_ptr, a_idx, n, rmA, cmA, lp, lf, sp_, sf, sp_, sf)
+    if has:
+        # the columns a loss removes from [A B]: its states, then its inputs (n + j)
+        dcp, dcf = _concat_ragged(sp_, sf, ip, n + inf)
+        size_ab = matching_sizes_after(ab_ptr, ab_idx, n_ab, rmAB, cmAB, lp, a_in_ab[lf],
+                                       sp_, sf, dcp, dcf)
     after = np.zeros(k_n, np.int64)
     ctrl = np.ones(k_n, bool)
     rank_lost = np.zeros(k_n, bool)
@@ -564,15 +555,10 @@ def element_sweep(system: StructuredSystem, *, kinds: Sequence[str] | None = Non
             ctrl[i] = bool(ok_before) if has else True
             continue
         n_left = n - states.size
-        sz = _matching_after(a_ptr, a_idx, n, rmA, cmA, links, states, states, sizeA, row_a)
-        after[i] = _n_d(n_left, sz)
+        after[i] = _n_d(n_left, int(size_a[i]))
         if not has:
             continue
-        dead_cols = np.concatenate([states, n + inputs]) if inputs.size else states
-        szab = _matching_after(ab_ptr, ab_idx, n_ab, rmAB, cmAB, a_in_ab[links], states,
-                               dead_cols, sizeAB, row_ab) if (links.size or states.size or
-                                                      inputs.size) else sizeAB
-        rank_lost[i] = szab < n_left
+        rank_lost[i] = int(size_ab[i]) < n_left
         if islands is not None and table.end_c[k] < 0:
             a, b = int(table.end_a[k]), int(table.end_b[k])
             if links.size:
