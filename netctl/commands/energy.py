@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._limits import refuse_dense
 from netctl.commands._options import (
     CAUTION,
     NUMERIC_INPUTS_DEFAULT,
@@ -66,6 +67,7 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     if args.top < 0:
         raise OptionError(f"--top must be >= 0, found {args.top}.")
     system, where = system_with_inputs(args)
+    refuse_dense(system, what='the controllability Gramian (energy metrics)', file=args.file)
     weights = resolve_weights(args, system)
     real = realize(system, weights=weights, seed=args.seed)
     r = energy(real, horizon=args.horizon, precision=args.precision,

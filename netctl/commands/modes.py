@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._limits import refuse_dense
 from netctl.commands._options import (
     CAUTION,
     NUMERIC_INPUTS_DEFAULT,
@@ -53,6 +54,7 @@ def _cmd_modes(args: argparse.Namespace) -> int:
     if args.weakest < 0:
         raise OptionError(f"--weakest must be >= 0, found {args.weakest}.")
     system, where = system_with_inputs(args)
+    refuse_dense(system, what='the modal analysis (all eigenvectors of A)', file=args.file)
     weights = resolve_weights(args, system)
     real = realize(system, weights=weights, seed=args.seed)
     tick = numeric_progress(args, "modes", real.n_states, 8.0)

@@ -88,3 +88,25 @@ def test_modes_json_and_agreeing_case(star_file, tmp_path, capsys):
 def test_modes_bad_option(star_file, capsys):
     assert main(["modes", str(star_file), "--weights", "uniform", "--weakest", "-2"]) == 2
     assert "--weakest must be >= 0, found -2" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("verb, what", [("energy", "controllability Gramian"),
+                                        ("modes", "modal analysis")])
+def test_dense_verbs_refuse_large_networks_in_one_actionable_line(verb, what, tmp_path,
+                                                                   capsys):
+    # a directed ring of 5,001 states: one more than the dense limit (5,000 states); a
+    # dense n x n array of doubles is 8 n^2 bytes = 0.2 GB here (arithmetic)
+    n = 5001
+    p = tmp_path / "ring.txt"
+    p.write_text("".join(f"s{i} s{(i + 1) % n}\n" for i in range(n)))
+    out = tmp_path / "never.json"
+    code = main([verb, str(p), "--inputs", "s0", "--weights", "independent",
+                 "--out", str(out)])
+    err = capsys.readouterr().err
+    assert code == 2 and not out.exists()
+    lines = [line for line in err.splitlines() if line.startswith("netctl: error")]
+    assert len(lines) == 1 and len(err.strip().splitlines()) == 1
+    msg = lines[0]
+    assert str(p) in msg and what in msg and "5001 states" in msg
+    assert "0.2 GB" in msg and "limit is 5000 states" in msg
+    assert "netctl verify" in msg and "at most 5000 states" in msg
