@@ -87,7 +87,7 @@ def node_positions(system: StructuredSystem, *, layout: str = "auto",
         warnings.warn(f"{missing} of {n} states have no x/y coordinates; they are placed by "
                       "a force-directed layout inside the box of the known coordinates.",
                       UserWarning, stacklevel=2)
-        auto = _force_layout(system, seed, grid=n > _GRID_ABOVE, quick=quick)
+        auto = _layout(system, seed, grid=n > _GRID_ABOVE, quick=quick)
         lo, hi = xy[known].min(axis=0), xy[known].max(axis=0)
         span = np.where(hi - lo > 0, hi - lo, 1.0)
         alo, ahi = auto.min(axis=0), auto.max(axis=0)
@@ -99,7 +99,7 @@ def node_positions(system: StructuredSystem, *, layout: str = "auto",
         t = 2 * np.pi * np.arange(n) / max(n, 1)
         return np.column_stack([np.cos(t), np.sin(t)]), "circle"
     grid = layout == "fr-grid" or (layout == "auto" and n > _GRID_ABOVE)
-    return _force_layout(system, seed, grid=grid, quick=quick), "fr-grid" if grid else "fr"
+    return _layout(system, seed, grid=grid, quick=quick), "fr-grid" if grid else "fr"
 
 
 def _table_coordinates(system: StructuredSystem) -> np.ndarray | None:
@@ -118,8 +118,52 @@ def _table_coordinates(system: StructuredSystem) -> np.ndarray | None:
     return np.column_stack([x, y])
 
 
-def _force_layout(system: StructuredSystem, seed: int, *, grid: bool,
-                  quick: bool = False) -> np.ndarray:
+def _layout(system: StructuredSystem, seed: int, *, grid: bool,
+            quick: bool = False) -> np.ndarray:
+    """Force-directed positions; above ``_GRID_ABOVE`` states, by place when states share one.
+
+    The node table's ``node`` column (the second-order model writes it: ``b:pos`` and
+    ``b:vel`` belong to bus ``b``) names the place of each state. A large map lays out
+    the places (half the states of a swing model, so about half the time) and draws each
+    place's states side by side on a small ring, a fifth of the median link length
+    across; small maps lay out every state, so that the links inside a place stay
+    visible.
+    """
+    n = system.n_states
+    src, dst = system.edges()
+    col = system.nodes.get("node")
+    if col is None or n <= _GRID_ABOVE:
+        return _force_layout(n, src, dst, seed, grid=grid, quick=quick)
+    labels = np.asarray(col).astype(str)
+    _, first, inv = np.unique(labels, return_index=True, return_inverse=True)
+    k = first.size
+    if k == n:
+        return _force_layout(n, src, dst, seed, grid=grid, quick=quick)
+    rank = np.empty(k, np.int64)
+    rank[np.argsort(first, kind="stable")] = np.arange(k)  # places in order of appearance
+    place = rank[inv.ravel()]
+    ps, pd = place[src], place[dst]
+    between = ps != pd
+    at = _force_layout(k, ps[between], pd[between], seed, grid=grid and k > _GRID_ABOVE,
+                       quick=quick)
+    # each state's slot within its place (states in index order) and the place's size
+    order = np.argsort(place, kind="stable")
+    size = np.bincount(place, minlength=k)
+    start = np.concatenate([[0], np.cumsum(size)[:-1]])
+    slot = np.empty(n, np.int64)
+    slot[order] = np.arange(n) - start[place[order]]
+    if between.any():
+        lengths = np.hypot(*(at[ps[between]] - at[pd[between]]).T)
+        step = float(np.median(lengths[lengths > 0])) if (lengths > 0).any() else 1.0
+    else:
+        step = 1.0
+    theta = 2 * np.pi * slot / np.maximum(size[place], 1) + np.pi
+    rad = np.where(size[place] > 1, 0.1 * step, 0.0)
+    return at[place] + np.column_stack([rad * np.cos(theta), rad * np.sin(theta)])
+
+
+def _force_layout(n: int, src: np.ndarray, dst: np.ndarray, seed: int, *,
+                  grid: bool, quick: bool = False) -> np.ndarray:
     """Fruchterman–Reingold per large weak component, small components packed apart.
 
     A force-directed layout of a graph with many components pushes the small ones to
@@ -127,13 +171,13 @@ def _force_layout(system: StructuredSystem, seed: int, *, grid: bool,
     ``_BIG`` states (at most ``_MAX_BIG`` of them) are laid out one by one, each
     scaled to an area proportional to its size and placed in a row, and all smaller
     components (isolated states, pairs, ...) are drawn as small rings on a grid below
-    them (vectorized; no per-component loop).
+    them (vectorized; no per-component loop). ``src -> dst`` are the links (any
+    orientation; self-loops and repeats are ignored).
     """
+    import scipy.sparse as sp
     from scipy.sparse.csgraph import connected_components
 
-    n = system.n_states
-    src, dst = system.edges()
-    A = system.A
+    A = sp.csr_array((np.ones(src.size, np.int8), (dst, src)), shape=(n, n))
     k, lab = connected_components(A, directed=True, connection="weak")
     sizes = np.bincount(lab, minlength=k)
     order = np.lexsort((np.arange(k), -sizes))  # largest first, ties by label
