@@ -99,10 +99,14 @@ class _Gen:
         self.k1 = self.k[pos] - 1.0
         self.q = self.k[pos] * self.p[pos] / self.mean  # excess-degree weights
 
-    def G(self, x: float) -> float:
+    def G(self, x: Any) -> Any:
+        if np.ndim(x):  # a grid of points at once (the root scan)
+            return np.power(np.asarray(x, np.float64)[:, None], self.k) @ self.p
         return float(np.dot(self.p, np.power(x, self.k)))
 
-    def H(self, x: float) -> float:
+    def H(self, x: Any) -> Any:
+        if np.ndim(x):
+            return np.power(np.asarray(x, np.float64)[:, None], self.k1) @ self.q
         return float(np.dot(self.q, np.power(x, self.k1)))
 
 
@@ -111,12 +115,12 @@ def _clean(x: float) -> float:
     return 0.0 if abs(x) < 1e-12 else float(x)
 
 
-def _roots(f: Callable[[float], float]) -> list[float]:
+def _roots(f: Callable[[Any], Any]) -> list[float]:
     """All sign-change roots of ``f`` on [0, 1], bracketed by a grid, refined by Brent."""
     from scipy.optimize import brentq  # here: scipy.optimize costs ~0.4 s to import
 
     xs = np.linspace(0.0, 1.0, _GRID)
-    fs = np.array([f(x) for x in xs])
+    fs = np.asarray(f(xs), np.float64)  # the whole grid at once; Brent refines by scalars
     roots = [float(x) for x, v in zip(xs, fs) if v == 0.0]
     for i in np.flatnonzero(fs[:-1] * fs[1:] < 0):
         roots.append(float(brentq(f, xs[i], xs[i + 1], xtol=1e-15, rtol=1e-15, maxiter=200)))

@@ -34,9 +34,13 @@ NUMERIC_LIMIT = 20_000
 #: Up to this many states the numeric confirmation uses dense rank tests (the
 #: controllable dimension); above, the sparse certificate (full rank or not).
 NUMERIC_DENSE_LIMIT = 400
-#: Up to this many states the report compares with a null model, with this many samples.
+#: Up to this many states the report compares with a null model, with this many samples
+#: (fewer above ``NULL_FEWER_ABOVE`` states, so that a report on a large grid stays
+#: quick; the section says how many and how to ask for more).
 NULL_LIMIT = 20_000
 NULL_SAMPLES = 40
+NULL_FEWER_ABOVE = 5_000
+NULL_SAMPLES_LARGE = 10
 #: Names listed per list (the JSON report lists all).
 LIST_LIMIT = 200
 
@@ -330,8 +334,9 @@ def null_model_section(ctx: ReportContext) -> Section | None:
         ctx.missing.append(f"null-model comparison (over {NULL_LIMIT} states; run "
                            "netctl compare)")
         return None
+    samples = NULL_SAMPLES if n <= NULL_FEWER_ABOVE else NULL_SAMPLES_LARGE
     r = ctx.cached("null", lambda: compare_to_null(ctx.system, null="degree",
-                                                   samples=NULL_SAMPLES, seed=ctx.seed,
+                                                   samples=samples, seed=ctx.seed,
                                                    executor="local", workers=1))
     import matplotlib
 
@@ -362,7 +367,9 @@ def null_model_section(ctx: ReportContext) -> Section | None:
               f"networks with the same in- and out-degrees (configuration model, seed "
               f"{r.seed}) need {r.mean:.1f} ± {r.std:.1f}: {words} expected from the "
               f"degrees alone (|z| < 2 counts as the same; common practice, no source)."
-              + pred),
+              + pred + ("" if samples == NULL_SAMPLES else
+                        f" Only {samples} samples above {NULL_FEWER_ABOVE} states, to keep "
+                        "the report quick; netctl compare --samples N draws more.")),
          figure(png, "Minimum inputs of the randomized networks (hatched) and of this "
                      "network (vertical line).")),
         data=r.to_dict())
