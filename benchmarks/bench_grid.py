@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import shlex
 import subprocess
 import sys
 import tempfile
@@ -132,7 +133,7 @@ def _medians(text: str) -> dict[str, float]:
 def _versus(args: argparse.Namespace, path: str, bus: str) -> None:
     """Each verb as A (this tree) against B (``--vs-tree``) with farm-bench, in turn."""
     print(f"A: {ROOT}; B: {args.vs_tree}; farm-bench -n {args.repeat} --warmup 1; medians")
-    print("| verb | A cpu s | B cpu s | A/B cpu | A wall s | B wall s | A/B wall | exit A | "
+    print("| verb | A cpu s | B cpu s | A/B cpu | A wall s | B wall s | A/B wall | exit A/B | "
           "target (A cpu) |")
     print("|---|---:|---:|---:|---:|---:|---:|---:|---|")
     only = set(args.only.split(",")) if args.only else None
@@ -142,14 +143,17 @@ def _versus(args: argparse.Namespace, path: str, bus: str) -> None:
                 continue
             argv = [bus if a == "BUS" else a for a in argv]
             a = ["env", f"PYTHONPATH={ROOT}", sys.executable, "-m", "netctl.cli", *argv]
-            b = " ".join(["env", f"PYTHONPATH={args.vs_tree}", sys.executable, "-m",
-                          "netctl.cli", *argv])
+            b = shlex.join(["env", f"PYTHONPATH={args.vs_tree}", sys.executable, "-m",
+                            "netctl.cli", *argv])
+            # from a neutral folder: ``python -m`` puts the working folder first on
+            # sys.path, which would make A and B import the same tree
             r = subprocess.run(["farm-bench", "-n", str(args.repeat), "--warmup", "1",
                                 "--timeout", str(int(args.timeout * 2 * (args.repeat + 1))),
-                                "--vs", b, "--", *a], capture_output=True, text=True)
+                                "--vs", b, "--", *a], capture_output=True, text=True,
+                               cwd=tmp)
             m = _medians(r.stdout)
-            code = next((ln.split()[2] for ln in r.stdout.splitlines()
-                         if ln.startswith("A exit")), "?")
+            code = "/".join(next((ln.split()[2] for ln in r.stdout.splitlines()
+                                  if ln.startswith(f"{x} exit")), "?") for x in "AB")
             target = 10.0 if label.startswith("sweep") else 5.0
             cpu = m.get("A cpu s", float("nan"))
             mark = "ok" if cpu < target else "OVER"
