@@ -45,7 +45,7 @@ __all__ = ["read_text", "read_bytes", "atomic_write", "atomic_group", "ungrouped
            "excerpt", "one_line", "guarded_run", "note_input", "check_outputs", "max_bytes",
            "DEFAULT_MAX_BYTES", "MAX_TEXT_BYTES", "LIMIT_ENV", "check_states",
            "limit_error", "BYTES_PER_STATE", "EXCERPT_CHARS", "spreadsheet_cell",
-           "SpreadsheetSafeWriter"]
+           "protect_name", "unprotect_name", "SpreadsheetSafeWriter"]
 
 #: Default limit on the bytes of one file that a whole-file reader holds in memory (after
 #: gzip decompression). Raise it with the environment variable :data:`LIMIT_ENV`.
@@ -180,25 +180,63 @@ def read_bytes(path: str | os.PathLike[str]) -> bytes:
 
 # ---------------------------------------------------------------------- CSV for people
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+#: A leading apostrophe is added before these (formula starts, and an apostrophe of the
+#: name itself), and a reader removes one leading apostrophe followed by one of them.
+_QUOTE_BEFORE = _FORMULA_START + ("'",)
+_NEGATIVE_NUMBER = re.compile(r"-([0-9]+\.?[0-9]*|\.[0-9]+)([eE][-+]?[0-9]+)?\Z")
+
+
+def protect_name(name: str, *, quote_numbers: bool = False) -> str:
+    """``name`` as a CSV cell that no spreadsheet runs as a formula, reversibly.
+
+    A name starting with ``=``, ``+``, ``-``, ``@``, a tab, a carriage return or an
+    apostrophe is written with one more leading apostrophe (``'=x``, ``''x``); a negative
+    decimal number (``-5``, ``-0.5e3``) is a number to a spreadsheet too and is left as it
+    is, unless ``quote_numbers`` (where a number would be taken for a value, as in a
+    matrix CSV header). :func:`unprotect_name` reverses it exactly (docs/HOSTILE.md,
+    "CSV cells").
+
+    Examples
+    --------
+    >>> [protect_name(x) for x in ("=SUM(A1)", "-5", "-x", "'q", "it's", "pump")]
+    ["'=SUM(A1)", '-5', "'-x", "''q", "it's", 'pump']
+    """
+    if name.startswith(_QUOTE_BEFORE) and (quote_numbers or not _NEGATIVE_NUMBER.match(name)):
+        return "'" + name
+    return name
+
+
+def unprotect_name(cell: str) -> str:
+    """The name a cell written by :func:`protect_name` stands for.
+
+    One leading apostrophe is removed when the next character is one that
+    :func:`protect_name` quotes (``= + - @ '``, tab, carriage return); any other
+    apostrophe is part of the name (so ``'abc`` in a hand-written file stays ``'abc``).
+
+    Examples
+    --------
+    >>> [unprotect_name(x) for x in ("'=SUM(A1)", "-5", "'-x", "''q", "'abc")]
+    ['=SUM(A1)', '-5', '-x', "'q", "'abc"]
+    """
+    if cell[:1] == "'" and cell[1:2] in _QUOTE_BEFORE and cell[1:2]:
+        return cell[1:]
+    return cell
 
 
 def spreadsheet_cell(value: object) -> object:
     """``value`` made safe to open in a spreadsheet: text starting with ``= + - @``, a tab
     or a carriage return gets a leading ``'`` (so it is shown as text, never run as a
-    formula); numbers, including negative ones, are left alone.
+    formula), and so does text starting with ``'`` (so the quoting is reversible, see
+    :func:`unprotect_name`); numbers, including negative ones, are left alone.
 
     Examples
     --------
     >>> spreadsheet_cell("=HYPERLINK(1)"), spreadsheet_cell("-1.5"), spreadsheet_cell(-2)
     ("'=HYPERLINK(1)", '-1.5', -2)
     """
-    if not isinstance(value, str) or not value.startswith(_FORMULA_START):
+    if not isinstance(value, str):
         return value
-    try:
-        float(value)
-        return value
-    except ValueError:
-        return "'" + value
+    return protect_name(value)
 
 
 class SpreadsheetSafeWriter:

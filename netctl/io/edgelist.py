@@ -4,7 +4,10 @@ Columns are separated by commas, tabs, semicolons or spaces (runs of separators 
 as one; there is no quoting, so names may not contain separators); ``#`` starts a
 comment; an optional header line names the columns (``source,target,weight`` or
 similar); a line with a single name declares a state (kept even when it has no link).
-Names may be integers or strings; gzip files are read transparently. Edge ``u v`` means
+Names may be integers or strings; a name written with a leading apostrophe before
+``=``, ``+``, ``-``, ``@``, ``'``, a tab or a carriage return is read without it (the
+spreadsheet quoting of :mod:`netctl.io.edgelist_writer`; ``'=x`` is the name ``=x``).
+gzip files are read transparently. Edge ``u v`` means
 "u influences v" (``A[v, u] != 0``).
 
 The reader streams the file in fixed-size chunks through a compiled scanner
@@ -33,14 +36,16 @@ import scipy.sparse as sp
 from netctl.errors import LimitError, MissingFileError
 from netctl.io import _edgescan as _k
 from netctl.io._common import (
-    atomic_write,
     excerpt,
     file_error,
     limit_error,
     max_bytes,
     note_input,
 )
+from netctl.io._edgemarks import apply_marks, header_marks
+from netctl.io._edgenames import _INT, cat_arrays, factorize_ints, int_order, unquote_names
 from netctl.io._edgesmall import SMALL_BYTES, read_small
+from netctl.io.edgelist_writer import write_edgelist
 from netctl.system import DistinctNames, StructuredSystem
 
 __all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
@@ -55,7 +60,6 @@ _HEADER_WORDS = {"source", "target", "from", "to", "src", "dst", "weight", "u", 
                  "head", "node1", "node2", "origin", "destination", "w", "node", "name",
                  "sources", "targets", "weights", "value"}
 _SPLIT = re.compile(r"[,\t; \r\v\f]+")
-_INT = re.compile(r"-?(0|[1-9][0-9]*)\Z")
 _NUMBER = re.compile(r"[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\Z|[-+]?(inf|nan)\Z", re.I)
 #: Longest edge-list line read (bytes); a longer one is refused with its line number.
 MAX_LINE_BYTES = 1 << 20
@@ -148,6 +152,7 @@ class _Scan:
         except OSError:
             self.size_hint = 0
         self.header_done = False
+        self.quoted = False  # a name starts with an apostrophe (spreadsheet quoting)
         self.chunk_len = 0
         self.half: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None
         # string-mode name table
@@ -427,22 +432,17 @@ class _Scan:
         ne = int(self.st[3])
         src = self.src[:ne]
         dst = self.dst[:ne]
-        iso = _cat(self.iso)
+        iso = cat_arrays(self.iso)
         weighted = self.st[2] == 3
         w = self.w[:ne] if weighted else None
         n_lines = int(self.st[1]) - 1
         if self.mode == _k.MODE_INT:
-            names, (src, dst) = _factorize_ints(src, dst, iso)
+            names, (src, dst) = factorize_ints(src, dst, iso)
         else:
             names = self._decode_names()
-            if names and all(_INT.match(x) for x in names):
-                order = np.argsort(np.array([int(x) for x in names], dtype=object),
-                                   kind="stable") if any(len(x) > 18 for x in names) else \
-                    np.argsort(np.array([int(x) for x in names], dtype=np.int64), kind="stable")
-                rank = np.empty(len(names), np.int64)
-                rank[order] = np.arange(len(names))
-                names = tuple(names[i] for i in order.tolist())
-                src, dst = rank[src], rank[dst]
+            if self.quoted:
+                names, src, dst = unquote_names(names, src, dst)
+            names, src, dst = int_order(names, src, dst)
         if not names:
             raise file_error(self.path, None, "the file holds no links and no states. "
                              "Expected lines 'source target [weight]' (see docs/FORMATS.md).")
@@ -463,51 +463,10 @@ class _Scan:
             raise file_error(self.path, int(self.name_line[i]), f"the name "
                              f"{raw[a:a + min(n, 80)]!r} is not UTF-8 text. Save the file as "
                              "UTF-8 (or plain ASCII).") from None
+        self.quoted = raw.startswith(b"'") or b"\n'" in raw
         names = text.split("\n")
         names.pop()  # after the last line break
         return tuple(names)
-
-
-def _cat(parts: list[np.ndarray], dtype: type = np.int64) -> np.ndarray:
-    if not parts:
-        return np.zeros(0, dtype)
-    return parts[0] if len(parts) == 1 else np.concatenate(parts)
-
-
-def _factorize_ints(src: np.ndarray, dst: np.ndarray, iso: np.ndarray
-                    ) -> tuple[tuple[str, ...], tuple[np.ndarray, np.ndarray]]:
-    """Dense ids in numeric order of the integer names (``src``/``dst`` remapped in place)."""
-    total = src.size + dst.size + iso.size
-    if total == 0:
-        return (), (src, dst)
-    lo = min(int(a.min()) for a in (src, dst, iso) if a.size)
-    hi = max(int(a.max()) for a in (src, dst, iso) if a.size)
-    span = hi - lo + 1
-    if span <= 4 * total + (1 << 20):
-        present = np.zeros(span, np.bool_)
-        for a in (src, dst, iso):
-            _k.mark_present(a, present, lo)
-        if present.all():  # names are every integer lo..hi: ids are a shift
-            uniq = np.arange(lo, hi + 1, dtype=np.int64)
-            if lo:
-                np.subtract(src, lo, out=src)
-                np.subtract(dst, lo, out=dst)
-        else:
-            ids = np.cumsum(present, dtype=np.int64) - 1
-            uniq = np.flatnonzero(present) + lo
-            _k.remap(src, ids, lo)
-            _k.remap(dst, ids, lo)
-    else:  # sort-based factorization (np.unique's hash path is slower on large arrays)
-        allv = np.concatenate([src, dst, iso])
-        order = np.argsort(allv, kind="stable")
-        sv = allv[order]
-        new = np.concatenate([[True], sv[1:] != sv[:-1]])
-        uniq = sv[new]
-        inv = np.empty(allv.size, np.int64)
-        inv[order] = np.cumsum(new) - 1
-        src, dst = inv[:src.size], inv[src.size:src.size + dst.size]
-    text = _k.int_names_text(uniq.astype(np.int64)).tobytes().decode("ascii")
-    return tuple(text.split("\n")[:-1]), (src, dst)
 
 
 def read_edge_arrays(path: str | os.PathLike[str], *,
@@ -554,6 +513,11 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
         small = read_small(path, _is_header, _INT)
         if small is not None:
             note_input(path)  # as _open does: an output may not overwrite this file
+            if any(x[:1] == "'" for x in small.names):
+                names, src, dst = int_order(*unquote_names(small.names, small.sources,
+                                                             small.targets))
+                small = dataclasses.replace(small, names=DistinctNames(names), sources=src,
+                                            targets=dst)
             return small
     scan = _Scan(path, _k.MODE_INT, chunk_bytes)
     try:
@@ -600,59 +564,11 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
         system = one_way._replace(A=sp.csr_array(A + sp.tril(A, k=-1, format="csr").T))
     else:
         system = _system_from_arrays(e, path, model=model)
-    marks = _header_marks(path)
-    if marks:
-        system = _apply_marks(system, marks, path)
-    return system
-
-
-#: Comment lines at the top of an edge list that mark signals (``# disturbances: a, b``).
-MARKS: tuple[str, ...] = ("disturbances", "regulated")
-_MARK = re.compile(r"#\s*(disturbances|regulated)\s*:(.*)\Z", re.IGNORECASE)
-
-
-def _header_marks(path: str | os.PathLike[str]) -> dict[str, list[tuple[str, int]]]:
-    """``{mark: [(name, line), ...]}`` from the comment lines before the first link."""
-    out: dict[str, list[tuple[str, int]]] = {}
     with _open(path) as fh:
-        for lineno, raw in enumerate(fh, start=1):
-            line = raw.decode("utf-8", "replace").strip()
-            if not line:
-                continue
-            if not line.startswith("#"):
-                break  # the header row or the first link: marks come before it
-            m = _MARK.match(line)
-            if m:
-                names = [x.strip() for x in m.group(2).split(",") if x.strip()]
-                out.setdefault(m.group(1).lower(), []).extend((x, lineno) for x in names)
-            if lineno > 10_000:
-                break
-    return out
-
-
-def _apply_marks(system: StructuredSystem, marks: dict[str, list[tuple[str, int]]],
-                 path: object) -> StructuredSystem:
-    from netctl.io._signals import mark_disturbances
-
-    known = set(system.state_names)
-    for mark in ("regulated", "disturbances"):
-        for name, line in marks.get(mark, []):
-            if name not in known:
-                raise file_error(path, line, f"the '# {mark}:' line names {name!r}, which is "
-                                 "not a node of this edge list; name nodes that appear in "
-                                 "a link (or on a line of their own).")
-    reg = [x for x, _ in marks.get("regulated", [])]
-    if reg:
-        system = system.with_regulated(reg)
-    dist = marks.get("disturbances", [])
-    if not dist:
-        return system
-    try:
-        return system.states_to_disturbances([x for x, _ in dist])
-    except Exception:  # find the offending name's own line for the message
-        for name, line in dist:
-            mark_disturbances(system, [name], path, line)
-        return mark_disturbances(system, [x for x, _ in dist], path, dist[0][1])
+        marks = header_marks(fh)
+    if marks:
+        system = apply_marks(system, marks, path)
+    return system
 
 
 def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
@@ -685,63 +601,3 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
     return StructuredSystem(A=A, B=None, C=None, state_names=e.names, input_names=(),
                             output_names=(), nodes=nodes or {}, weighted=w is not None,
                             model=model)
-
-
-def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
-    """Write ``A`` as a comma-separated edge list with a header (atomically).
-
-    States with no link are written as single-name lines so nothing is lost; weights
-    are written when the system is weighted (``repr``, so they read back exactly).
-    Disturbances are written as nodes named on a ``# disturbances:`` line at the top,
-    with their links; regulated outputs that each read one state and are named
-    ``z:<state>`` as a ``# regulated:`` line. Inputs, outputs and the node table are not
-    part of this format (use ``.toml``, GraphML or node-link JSON to keep them).
-    """
-    bad = [s for s in system.state_names if _SPLIT.search(s) or "#" in s or not s]
-    if bad:
-        from netctl.errors import InvalidSystemError
-        raise InvalidSystemError(f"the state name {bad[0]!r} contains a separator or '#', so "
-                                 "it cannot be written to an edge list; rename the state or "
-                                 "write GraphML or node-link JSON instead.")
-    src, dst = system.edges()
-    names = np.array(system.state_names, dtype=object)
-    linked = np.zeros(system.n_states, bool)
-    linked[src] = True
-    linked[dst] = True
-    block = 1 << 18
-    from netctl.io._signals import dedicated_regulated, disturbance_links
-
-    head = ""
-    if system.n_disturbances:
-        bad = [s for s in system.disturbance_names if _SPLIT.search(s) or "#" in s or not s]
-        if bad:
-            from netctl.errors import InvalidSystemError
-            raise InvalidSystemError(f"the disturbance name {bad[0]!r} contains a separator "
-                                     "or '#', so it cannot be written to an edge list; "
-                                     "rename it or write a .toml description instead.")
-        head += f"# disturbances: {', '.join(system.disturbance_names)}\n"
-    reg = dedicated_regulated(system)
-    if reg:
-        head += f"# regulated: {', '.join(reg)}\n"
-    elif reg is None:
-        import warnings as _w
-        _w.warn(f"{path}: the {system.n_regulated} regulated output(s) are not all "
-                "'z:<state>' reading one state each, so they were not written (use a .toml "
-                "system description to keep them).", stacklevel=2)
-    with atomic_write(path) as fh:
-        fh.write(head)
-        fh.write("source,target,weight\n" if system.weighted else "source,target\n")
-        vals = system.A.data
-        for a in range(0, src.size, block):
-            s_names = names[src[a:a + block]].tolist()
-            t_names = names[dst[a:a + block]].tolist()
-            if system.weighted:
-                ws = map(repr, vals[a:a + block].tolist())
-                fh.write("".join(f"{u},{v},{x}\n" for u, v, x in zip(s_names, t_names, ws)))
-            else:
-                fh.write("".join(f"{u},{v}\n" for u, v in zip(s_names, t_names)))
-        for u, v, x in disturbance_links(system):
-            fh.write(f"{u},{v},{x!r}\n" if system.weighted else f"{u},{v}\n")
-        lone = names[~linked].tolist()
-        if lone:
-            fh.write("\n".join(lone) + "\n")

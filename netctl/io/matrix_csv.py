@@ -4,6 +4,10 @@ An optional first line of state names (not numbers) labels the columns; a first 
 names labels the rows (then the first line may start with an empty cell). Entry ``(i, j)``
 nonzero means state ``j`` influences state ``i`` (``A[i, j] != 0``). Separators: comma,
 semicolon, tab or spaces; ``#`` starts a comment.
+
+Names that a spreadsheet would run as formulas (starting with ``=``, ``+``, ``-``, ``@``)
+and names starting with an apostrophe are written with a leading apostrophe, which the
+reader removes (:func:`netctl.io._common.unprotect_name`; ``'=x`` is the name ``=x``).
 """
 
 from __future__ import annotations
@@ -13,12 +17,22 @@ import re
 
 import numpy as np
 
-from netctl.io._common import atomic_write, excerpt, file_error, read_text
+from netctl.io._common import (
+    atomic_write,
+    excerpt,
+    file_error,
+    protect_name,
+    read_text,
+    unprotect_name,
+)
 from netctl.system import StructuredSystem
 
 __all__ = ["read_matrix_csv", "write_matrix_csv"]
 
 _SPLIT = re.compile(r"\s*[,;\t]\s*|\s+")
+#: Characters no matrix CSV name may hold: separators, white space and line breaks of any
+#: kind (the reader splits lines as str.splitlines does), '#', NUL and lone surrogates.
+_CANNOT = re.compile(r"[\s,;#\x00\ud800-\udfff]")
 #: Dense text matrices beyond this many states are refused (use a sparse format).
 MAX_STATES = 20_000
 
@@ -52,7 +66,7 @@ def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> St
         if first:
             first = False
             if any(_num(t) is None for t in toks if t):
-                col_names = [t for t in toks if t]
+                col_names = [unprotect_name(t) for t in toks if t]
                 seen: set[str] = set()
                 for t in col_names:
                     if t in seen:
@@ -63,7 +77,7 @@ def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> St
                 continue
         label = None
         if toks and _num(toks[0]) is None:
-            label, toks = toks[0], toks[1:]
+            label, toks = unprotect_name(toks[0]), toks[1:]
         vals = []
         for k, t in enumerate(toks, start=1):
             v = _num(t)
@@ -106,13 +120,15 @@ def write_matrix_csv(system: StructuredSystem, path: str | os.PathLike[str]) -> 
     if system.n_states > MAX_STATES:
         raise InvalidSystemError(f"{path}: {system.n_states} states are too many for a dense "
                                  f"text matrix (limit {MAX_STATES}); write .mtx or .npz.")
-    bad = [s for s in system.state_names if _SPLIT.search(s) or "#" in s or _num(s) is not None]
-    if bad:
-        raise InvalidSystemError(f"the state name {bad[0]!r} is a number or contains a "
-                                 "separator, so it cannot label a matrix CSV column; rename it "
-                                 "or write .npz/.mtx.")
+    bad = [s for s in system.state_names
+           if not s or _CANNOT.search(s) or _num(protect_name(s, quote_numbers=True)) is not None]
+    if bad:  # '-5' is written '\'-5'; a name such as '5' or 'inf' would read as a value
+        raise InvalidSystemError(f"the state name {bad[0]!r} is empty, a number, or holds a "
+                                 "separator (comma, semicolon, space, tab), '#', a line break "
+                                 "or a lone surrogate, so it cannot label a matrix CSV "
+                                 "column; rename it or write GraphML or node-link JSON.")
     A = system.A.toarray()
     with atomic_write(path) as fh:
-        fh.write(",".join(system.state_names) + "\n")
+        fh.write(",".join(protect_name(x, quote_numbers=True) for x in system.state_names) + "\n")
         for row in A.tolist():
             fh.write(",".join(repr(x) if x else "0" for x in row) + "\n")

@@ -9,8 +9,10 @@ no partial file.
 
 CSV safety: a spreadsheet treats a text cell that starts with ``=``, ``+``, ``-``, ``@``,
 a tab or a carriage return as a formula. Every text cell so starting is written with a
-leading apostrophe (``'=cmd``), which spreadsheets show as text; numbers and booleans are
-written as they are. Parquet is typed and needs no such guard.
+leading apostrophe (``'=cmd``), which spreadsheets show as text, and so is a text cell
+starting with an apostrophe (``''x``), so that removing one apostrophe before those
+characters gives the name back exactly (:func:`netctl.io._common.unprotect_name`,
+docs/HOSTILE.md); numbers, booleans and negative decimal numbers are written as they are. Parquet is typed and needs no such guard.
 """
 
 from __future__ import annotations
@@ -24,14 +26,13 @@ import numpy as np
 
 from netctl._extras import require
 from netctl.errors import OptionError
-from netctl.io._common import atomic_write
+from netctl.io._common import atomic_write, protect_name
 from netctl.tables import result_columns
 
 __all__ = ["TABLE_FORMATS", "csv_cell", "write_table"]
 
 #: format name -> file suffixes
 TABLE_FORMATS: dict[str, tuple[str, ...]] = {"csv": (".csv",), "parquet": (".parquet", ".pq")}
-_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 
 
 def csv_cell(value: Any) -> str:
@@ -49,7 +50,7 @@ def csv_cell(value: Any) -> str:
     if isinstance(value, (float, np.floating)):
         return "" if math.isnan(value) else repr(float(value))
     text = "" if value is None else str(value)
-    return "'" + text if text.startswith(_FORMULA_START) else text
+    return protect_name(text)
 
 
 def _format(path: str | os.PathLike[str], format: str | None) -> str:
