@@ -243,13 +243,22 @@ class SpreadsheetSafeWriter:
     """:func:`csv.writer` whose cells pass through :func:`spreadsheet_cell` (formula
     injection, OWASP "CSV Injection"; common practice)."""
 
-    def __init__(self, fh: IO[str]) -> None:
+    def __init__(self, fh: IO[str], *, protected: bool = False) -> None:
+        """``protected``: the caller passes cells already made safe (text)."""
         import csv
 
+        self._protected = protected
         self._w = csv.writer(fh, lineterminator="\n")
+        # csv quotes a field holding the line terminator ("\n") but not a lone "\r",
+        # which a reader takes for a line break: rows holding one are quoted whole
+        self._all = csv.writer(fh, lineterminator="\n", quoting=csv.QUOTE_ALL)
 
     def writerow(self, row: Iterable[object]) -> None:
-        self._w.writerow([spreadsheet_cell(c) for c in row])
+        cells = list(row) if self._protected else [spreadsheet_cell(c) for c in row]
+        if any(isinstance(c, str) and "\r" in c for c in cells):
+            self._all.writerow(cells)
+        else:
+            self._w.writerow(cells)
 
     def writerows(self, rows: Iterable[Iterable[object]]) -> None:
         for row in rows:

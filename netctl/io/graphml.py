@@ -164,11 +164,37 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
     return graph_to_system(g, path, model=model, what="GraphML")
 
 
+#: Characters XML 1.0 cannot hold, even escaped (control characters other than tab, line
+#: feed and carriage return; lone surrogates; U+FFFE, U+FFFF).
+_NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
+
+
+def _refuse_non_xml(system: StructuredSystem) -> None:
+    """One line naming the first name or node-table text that XML cannot hold."""
+    from netctl.errors import InvalidSystemError
+
+    groups = [("state", system.state_names), ("input", system.input_names),
+              ("output", system.output_names), ("disturbance", system.disturbance_names),
+              ("regulated output", system.regulated_names)]
+    groups += [(f"node-table column {k!r} value", [x for x in v if isinstance(x, str)])
+               for k, v in system.nodes.items() if getattr(v, "dtype", None) == object]
+    groups += [("node-table column", list(system.nodes))]
+    for kind, texts in groups:
+        for t in texts:
+            m = _NOT_XML.search(t)
+            if m:
+                raise InvalidSystemError(
+                    f"the {kind} {t[:80]!r} holds the character {m.group()!r}, which XML "
+                    "(and so GraphML) cannot hold; rename it, or write node-link JSON or a "
+                    ".toml description instead.")
+
+
 def write_graphml(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     """Write the network and node table as GraphML (atomically)."""
     import networkx as nx
 
     warn_not_kept(system, path, "GraphML")
+    _refuse_non_xml(system)
     buf = io.BytesIO()
     nx.write_graphml(system_to_graph(system), buf)
     with atomic_write(path, "wb") as fh:

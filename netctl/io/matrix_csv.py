@@ -121,11 +121,11 @@ def write_matrix_csv(system: StructuredSystem, path: str | os.PathLike[str]) -> 
         raise InvalidSystemError(f"{path}: {system.n_states} states are too many for a dense "
                                  f"text matrix (limit {MAX_STATES}); write .mtx or .npz.")
     bad = [s for s in system.state_names
-           if not s or _CANNOT.search(s) or _num(protect_name(s, quote_numbers=True)) is not None]
+           if not s or _CANNOT.search(s) or s.startswith("\ufeff") or _num(protect_name(s, quote_numbers=True)) is not None]
     if bad:  # '-5' is written '\'-5'; a name such as '5' or 'inf' would read as a value
         raise InvalidSystemError(f"the state name {bad[0]!r} is empty, a number, or holds a "
-                                 "separator (comma, semicolon, space, tab), '#', a line break "
-                                 "or a lone surrogate, so it cannot label a matrix CSV "
+                                 "separator (comma, semicolon, space, tab), '#', a line break, "
+                                 "a lone surrogate or starts with a byte-order mark, so it cannot label a matrix CSV "
                                  "column; rename it or write GraphML or node-link JSON.")
     A = system.A.toarray()
     with atomic_write(path) as fh:

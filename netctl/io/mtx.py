@@ -16,7 +16,7 @@ import scipy.sparse as sp
 from netctl.io._common import atomic_write, check_states, file_error, read_bytes
 from netctl.system import StructuredSystem
 
-__all__ = ["read_mtx", "write_mtx"]
+__all__ = ["read_mtx", "write_mtx", "warn_names_not_kept"]
 
 #: Refuse headers that claim more entries than this (protects memory).
 MAX_ENTRIES = 2_000_000_000
@@ -166,10 +166,28 @@ def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]
     return None, None
 
 
+def warn_names_not_kept(system: StructuredSystem, path: object, fmt: str) -> None:
+    """Warn when ``fmt`` (a matrix-only format) drops names other than ``x0, x1, ...``."""
+    if system.n_inputs or system.n_outputs or system.n_disturbances or system.n_regulated:
+        import warnings
+        warnings.warn(f"{path}: the {fmt} format holds the matrix A only; the inputs, "
+                      "outputs and signals were not written (use a .toml system "
+                      "description to keep them).", stacklevel=3)
+    if any(a != f"x{i}" for i, a in enumerate(system.state_names)):
+        import warnings
+        warnings.warn(f"{path}: the {fmt} format holds no state names; they read back as "
+                      "x0, x1, ... (write .npz, GraphML, node-link JSON or .toml to keep the "
+                      "names).", stacklevel=3)
+
+
 def write_mtx(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
-    """Write ``A`` as a Matrix Market coordinate file (pattern unless weighted)."""
+    """Write ``A`` as a Matrix Market coordinate file (pattern unless weighted).
+
+    The format holds no names: a warning says so unless the names are ``x0, x1, ...``.
+    """
     import scipy.io
 
+    warn_names_not_kept(system, path, "Matrix Market")
     A = sp.coo_matrix(system.A)
     buf = io.BytesIO()
     scipy.io.mmwrite(buf, A, field="real" if system.weighted else "pattern",

@@ -72,12 +72,17 @@ def read_npy(path: str | os.PathLike[str], *, model: str = "given") -> Structure
 
 
 def write_npy(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
-    """Write ``A`` as a dense float64 (or boolean pattern) ``.npy`` array, atomically."""
+    """Write ``A`` as a dense float64 (or boolean pattern) ``.npy`` array, atomically.
+
+    The format holds no names: a warning says so unless the names are ``x0, x1, ...``.
+    """
     from netctl.errors import InvalidSystemError
+    from netctl.io.mtx import warn_names_not_kept
 
     if system.n_states > MAX_DENSE_STATES:
         raise InvalidSystemError(f"{path}: {system.n_states} states are too many for a dense "
                                  f"array (limit {MAX_DENSE_STATES}); write .npz or .mtx.")
+    warn_names_not_kept(system, path, ".npy")
     A = system.A.toarray() if system.weighted else system.A.toarray() != 0
     buf = io.BytesIO()
     np.save(buf, A, allow_pickle=False)

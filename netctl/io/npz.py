@@ -106,6 +106,11 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
 
 def write_npz(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     """Write ``A`` as a compressed CSR ``.npz`` (readable by ``scipy.sparse.load_npz``)."""
+    bad = next((x for x in system.state_names if x.endswith("\x00")), None)
+    if bad is not None:  # numpy's text arrays drop trailing NULs: the name would change
+        from netctl.errors import InvalidSystemError
+        raise InvalidSystemError(f"the state name {bad[:80]!r} ends with a NUL character, "
+                                 "which .npz cannot keep; rename it or write node-link JSON.")
     A = system.A
     buf = io.BytesIO()
     np.savez_compressed(buf, format=np.array(b"csr"), shape=np.array(A.shape),

@@ -34,8 +34,14 @@ _BARE = re.compile(r"[A-Za-z0-9_-]+\Z")
 INLINE_LINKS = 20_000
 
 
+def _str(s: str) -> str:
+    """A TOML basic string: JSON's escapes are TOML's, except that TOML also forbids a raw
+    DEL (U+007F)."""
+    return json.dumps(s, ensure_ascii=False).replace("\x7f", "\\u007f")
+
+
 def _key(s: str) -> str:
-    return s if _BARE.match(s) else json.dumps(s, ensure_ascii=False)
+    return s if _BARE.match(s) else _str(s)
 
 
 def _val(v: Any) -> str:
@@ -47,7 +53,7 @@ def _val(v: Any) -> str:
         return str(v)
     if isinstance(v, float):
         return repr(v)
-    return json.dumps(str(v), ensure_ascii=False)
+    return _str(str(v))
 
 
 def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,

@@ -17,7 +17,6 @@ docs/HOSTILE.md); numbers, booleans and negative decimal numbers are written as 
 
 from __future__ import annotations
 
-import csv
 import math
 import os
 from typing import Any
@@ -26,7 +25,7 @@ import numpy as np
 
 from netctl._extras import require
 from netctl.errors import OptionError
-from netctl.io._common import atomic_write, protect_name
+from netctl.io._common import SpreadsheetSafeWriter, atomic_write, protect_name
 from netctl.tables import result_columns
 
 __all__ = ["TABLE_FORMATS", "csv_cell", "write_table"]
@@ -101,7 +100,7 @@ def write_table(result: Any, path: str | os.PathLike[str], *, format: str | None
     names = list(cols)
     rows = len(next(iter(cols.values()))) if cols else 0
     with atomic_write(path, "w") as fh:
-        w = csv.writer(fh, lineterminator="\n")
+        w = SpreadsheetSafeWriter(fh, protected=True)  # cells come from csv_cell
         w.writerow([csv_cell(c) for c in names])
         for i in range(rows):
             w.writerow([csv_cell(cols[c][i]) for c in names])
