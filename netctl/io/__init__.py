@@ -7,7 +7,9 @@ problems as :class:`~netctl.errors.NetworkFileError` naming the file and line.
 
 from __future__ import annotations
 
+import gzip
 import os
+import re
 import sys
 from collections.abc import Callable
 from pathlib import Path
@@ -193,7 +195,10 @@ def _safely(path: str | os.PathLike[str], fmt: str,
             call: Callable[[], StructuredSystem]) -> StructuredSystem:
     """``call()``, with every failure but netctl's own ended in one line naming the file."""
     try:
-        return call()
+        system = call()
+        if fmt in _ESCAPING_FORMATS:
+            _refuse_lone_surrogates(path, system)
+        return system
     except InvalidSystemError as exc:  # built from the file: name the file
         if isinstance(exc, NetworkFileError) or str(path) in str(exc):
             raise
@@ -216,6 +221,48 @@ def _safely(path: str | os.PathLike[str], fmt: str,
         raise _unexpected(path, fmt, exc) from None
     except Exception as exc:  # no traceback, ever: name the file and what went wrong
         raise _unexpected(path, fmt, exc) from None
+
+
+#: Formats whose text escapes (``\\ud800``, ``&#55296;``) or arrays can hold half of a
+#: UTF-16 pair, which is not a character (UTF-8 text, TOML and XML refuse it themselves).
+_ESCAPING_FORMATS = frozenset({"json", "gml", "npz", "pandapower"})
+_LONE_ESCAPE = re.compile(
+    r"\\u[dD][89abAB][0-9a-fA-F]{2}(?!\\u[dD][c-fC-F])|(?<![0-9a-fA-F]{4})\\u[dD][c-fC-F]"
+    r"[0-9a-fA-F]{2}|&#(5529[6-9]|55[3-9][0-9]{2}|56[0-9]{3}|57[0-2][0-9]{2}|573[0-3][0-9]|"
+    r"5734[0-3]);|&#[xX][dD][89a-fA-F][0-9a-fA-F]{2};")
+
+
+def _refuse_lone_surrogates(path: str | os.PathLike[str], system: StructuredSystem) -> None:
+    """Refuse a name holding a lone surrogate, with the line of its escape."""
+    groups = (system.state_names, system.input_names, system.output_names,
+              system.disturbance_names, system.regulated_names)
+    try:
+        for g in groups:
+            "\n".join(g).encode("utf-8")  # one C-level pass; fails on a lone surrogate
+        return
+    except UnicodeEncodeError:
+        pass
+    name = next(x for g in groups for x in g if _SURROGATE.search(x))
+    line = None
+    if not str(path).endswith(".npz"):
+        try:
+            with open(path, "rb") as fh:
+                head = fh.read(2)
+            opener = gzip.open if head == b"\x1f\x8b" else open
+            with opener(path, "rb") as fh:  # type: ignore[operator]
+                for k, raw in enumerate(fh, start=1):
+                    if _LONE_ESCAPE.search(raw.decode("utf-8", "replace")):
+                        line = k
+                        break
+        except OSError:
+            pass
+    raise file_error(path, line, f"the name {excerpt(name)} holds a lone surrogate "
+                     f"({_SURROGATE.search(name).group()!r}: half of a UTF-16 pair, not a "  # type: ignore[union-attr]
+                     "character), which no text file can hold; correct the name (a UTF-16 "
+                     "pair needs both halves, e.g. \\ud83d\\ude00).")
+
+
+_SURROGATE = re.compile("[\ud800-\udfff]")
 
 
 def _unexpected(path: object, fmt: str, exc: BaseException) -> NetworkFileError:

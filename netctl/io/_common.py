@@ -45,7 +45,8 @@ __all__ = ["read_text", "read_bytes", "atomic_write", "atomic_group", "ungrouped
            "excerpt", "one_line", "guarded_run", "note_input", "check_outputs", "max_bytes",
            "DEFAULT_MAX_BYTES", "MAX_TEXT_BYTES", "LIMIT_ENV", "check_states",
            "limit_error", "BYTES_PER_STATE", "EXCERPT_CHARS", "spreadsheet_cell",
-           "protect_name", "unprotect_name", "SpreadsheetSafeWriter"]
+           "protect_name", "unprotect_name", "SpreadsheetSafeWriter",
+           "refuse_lone_surrogates"]
 
 #: Default limit on the bytes of one file that a whole-file reader holds in memory (after
 #: gzip decompression). Raise it with the environment variable :data:`LIMIT_ENV`.
@@ -237,6 +238,23 @@ def spreadsheet_cell(value: object) -> object:
     if not isinstance(value, str):
         return value
     return protect_name(value)
+
+
+def refuse_lone_surrogates(system: Any, fmt: str) -> None:
+    """Refuse a name holding a lone surrogate (half of a UTF-16 pair, no character): no
+    text file can hold it, and netctl's readers refuse it (one line, before writing)."""
+    groups = (("state", system.state_names), ("input", system.input_names),
+              ("output", system.output_names), ("disturbance", system.disturbance_names),
+              ("regulated output", system.regulated_names))
+    for kind, names in groups:
+        try:
+            "\n".join(names).encode("utf-8")
+        except UnicodeEncodeError:
+            bad = next(x for x in names if re.search("[\ud800-\udfff]", x))
+            from netctl.errors import InvalidSystemError
+            raise InvalidSystemError(f"the {kind} name {excerpt(bad)} holds a lone surrogate "
+                                     "(half of a UTF-16 pair, not a character), so it cannot "
+                                     f"be written to {fmt}; rename it.") from None
 
 
 class SpreadsheetSafeWriter:

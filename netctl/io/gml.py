@@ -11,7 +11,7 @@ import io
 import os
 import re
 
-from netctl.io._common import atomic_write, file_error, read_text
+from netctl.io._common import atomic_write, file_error, read_text, refuse_lone_surrogates
 from netctl.io._graphs import warn_not_kept
 from netctl.io.graphml import graph_to_system, system_to_graph
 from netctl.system import StructuredSystem
@@ -49,6 +49,7 @@ def write_gml(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     import networkx as nx
 
     warn_not_kept(system, path, "GML")
+    refuse_lone_surrogates(system, "GML")
     g = system_to_graph(system)
     for _, d in g.nodes(data=True):
         for k, v in list(d.items()):

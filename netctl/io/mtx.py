@@ -106,6 +106,15 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         line, what = _locate(data, size_line_no, fmt, field, dims)
         raise file_error(path, line, f"could not read the entries: {what or exc}. Each entry "
                          "line must be 'row col [value]' with 1-based indices.") from None
+    want = (2 if field == "pattern" else 3) if fmt == "coordinate" else 1
+    n_stored = claimed if fmt == "coordinate" or symmetry == "general" else \
+        dims[0] * (dims[0] + (1 if symmetry == "symmetric" else -1)) // 2
+    if _count_tokens(data, end + 1) != n_stored * want:
+        # scipy's parser ignores extra numbers on an entry line ('1 2 3.0 7'): find it
+        line, what = _locate(data, size_line_no, fmt, field, dims)
+        raise file_error(path, line, f"{what or 'the entries do not match the size line'}. "
+                         f"Each entry line must be 'row col{' value' if want == 3 else ''}' "
+                         "(1-based indices), nothing more.")
     A = sp.csr_array(M) if sp.issparse(M) else sp.csr_array(np.asarray(M))
     if field == "pattern":
         A = sp.csr_array((np.ones(A.nnz), A.indices, A.indptr), shape=A.shape)
@@ -119,6 +128,29 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
                       f"{'y is' if n_zero == 1 else 'ies are'} not links and were left out.",
                       stacklevel=2)
     return StructuredSystem.from_matrices(A, weighted=field != "pattern", model=model)
+
+
+#: Bytes looked at per step when counting the numbers of the entry lines.
+_COUNT_STEP = 1 << 24
+
+
+def _count_tokens(data: bytes, start: int) -> int:
+    """Numbers (white-space separated words) in ``data[start:]``, comment lines excluded.
+
+    Streams over the bytes in steps of :data:`_COUNT_STEP` with numpy (a few array passes;
+    see benchmarks/RESULTS.md for its cost next to scipy's parser)."""
+    if data.find(b"%", start) >= 0:  # comment lines among the entries: rare, count in Python
+        return sum(len(x.split()) for x in data[start:].split(b"\n")
+                   if not x.lstrip().startswith(b"%"))
+    total = 0
+    prev_space = True
+    for a in range(start, len(data), _COUNT_STEP):
+        arr = np.frombuffer(data, np.uint8, count=min(_COUNT_STEP, len(data) - a), offset=a)
+        space = arr <= 32  # blank, tab, line breaks (a control byte is no number either)
+        total += int(np.count_nonzero(space[:-1] > space[1:]))  # a blank, then a word
+        total += int(prev_space and not space[0])
+        prev_space = bool(space[-1])
+    return total
 
 
 def _nonfinite_line(data: bytes, size_line: int) -> int | None:
@@ -149,7 +181,8 @@ def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]
         count += 1
         text = s[:80].decode("latin-1")
         if len(parts) != want:
-            return k + 1, f"expected {want} numbers, found {text!r}"
+            return k + 1, (f"expected {want} number{'s' if want > 1 else ''}, found "
+                           f"{text!r}")
         try:
             if fmt == "coordinate":
                 i, j = int(parts[0]), int(parts[1])
@@ -167,17 +200,22 @@ def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]
 
 
 def warn_names_not_kept(system: StructuredSystem, path: object, fmt: str) -> None:
-    """Warn when ``fmt`` (a matrix-only format) drops names other than ``x0, x1, ...``."""
+    """Warn when ``fmt`` (a matrix-only format) drops names other than ``x0, x1, ...``,
+    a node table, inputs, outputs or signals."""
     if system.n_inputs or system.n_outputs or system.n_disturbances or system.n_regulated:
         import warnings
         warnings.warn(f"{path}: the {fmt} format holds the matrix A only; the inputs, "
                       "outputs and signals were not written (use a .toml system "
                       "description to keep them).", stacklevel=3)
-    if any(a != f"x{i}" for i, a in enumerate(system.state_names)):
+    named = any(a != f"x{i}" for i, a in enumerate(system.state_names))
+    if named or system.nodes:
         import warnings
-        warnings.warn(f"{path}: the {fmt} format holds no state names; they read back as "
-                      "x0, x1, ... (write .npz, GraphML, node-link JSON or .toml to keep the "
-                      "names).", stacklevel=3)
+        lost = " and ".join(x for x in (
+            "no state names (they read back as x0, x1, ...)" if named else "",
+            f"no node table (the columns {', '.join(sorted(system.nodes))} were not written)"
+            if system.nodes else "") if x)
+        warnings.warn(f"{path}: the {fmt} format holds {lost}; write .npz, GraphML, "
+                      "node-link JSON or .toml to keep them.", stacklevel=3)
 
 
 def write_mtx(system: StructuredSystem, path: str | os.PathLike[str]) -> None:

@@ -13,7 +13,7 @@ import os
 import warnings
 from typing import Any
 
-from netctl.io._common import atomic_write, file_error, read_text
+from netctl.io._common import atomic_write, file_error, read_text, refuse_lone_surrogates
 from netctl.io._graphs import node_rows, system_from_parts, warn_not_kept
 from netctl.io._signals import dedicated_regulated, disturbance_links, disturbance_rows
 from netctl.system import StructuredSystem
@@ -95,6 +95,7 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
 def write_nodelink(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     """Write node-link JSON (directed; node table as node attributes), atomically."""
     warn_not_kept(system, path, "node-link JSON")
+    refuse_lone_surrogates(system, "node-link JSON")
     names = system.state_names
     regulated = set(dedicated_regulated(system) or ())
     nodes = [{"id": n, **row, **({"regulated": True} if n in regulated else {})}

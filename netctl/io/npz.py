@@ -14,7 +14,13 @@ import zipfile
 import numpy as np
 import scipy.sparse as sp
 
-from netctl.io._common import atomic_write, check_states, file_error, read_bytes
+from netctl.io._common import (
+    atomic_write,
+    check_states,
+    file_error,
+    read_bytes,
+    refuse_lone_surrogates,
+)
 from netctl.system import StructuredSystem
 
 __all__ = ["read_npz", "write_npz", "MAX_STATES"]
@@ -106,6 +112,7 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
 
 def write_npz(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     """Write ``A`` as a compressed CSR ``.npz`` (readable by ``scipy.sparse.load_npz``)."""
+    refuse_lone_surrogates(system, ".npz")
     bad = next((x for x in system.state_names if x.endswith("\x00")), None)
     if bad is not None:  # numpy's text arrays drop trailing NULs: the name would change
         from netctl.errors import InvalidSystemError

@@ -173,7 +173,72 @@ STRICT = [
                  id="matrix-csv-duplicate-header"),
     pytest.param("i.csv", b"a,b,1e308\na,b,1e308\n", "i.csv: A has 1 NaN or infinite entry",
                  id="weights-sum-to-infinity"),
+    # extra numbers on an entry line: scipy's parser reads '1 2 3.0' and ignores the 7
+    pytest.param("x.mtx", b"%%MatrixMarket matrix coordinate real general\n% c\n3 3 2\n"
+                 b"1 2 3.0 7\n2 3 1.0\n", "x.mtx:4: expected 3 numbers, found '1 2 3.0 7'",
+                 id="mtx-extra-number-real"),
+    pytest.param("x.mtx", b"%%MatrixMarket matrix coordinate real general\n3 3 2\n"
+                 b"1 2 3.0\n2 3 1.0 0.5\n", "x.mtx:4: expected 3 numbers, found '2 3 1.0 0.5'",
+                 id="mtx-extra-number-last-line"),
+    pytest.param("p.mtx", b"%%MatrixMarket matrix coordinate pattern general\n3 3 2\n"
+                 b"1 2\n2 3 1\n", "p.mtx:4: expected 2 numbers, found '2 3 1'",
+                 id="mtx-pattern-with-value"),
+    pytest.param("a.mtx", b"%%MatrixMarket matrix array real general\n2 2\n1\n0\n0 2\n",
+                 "a.mtx:5: could not read the entries: expected 1 number, found '0 2'", id="mtx-array-two-on-a-line"),
+    # lone surrogates: half of a UTF-16 pair is no character; refused at read, with the line
+    pytest.param("s.json", b'{"directed": true, "nodes": [{"id": "a"},\n{"id": "b\\ud800"}],'
+                 b'\n"links": [{"source": "a", "target": "b\\ud800"}]}',
+                 "s.json:2: the name 'b\\ud800' holds a lone surrogate", id="json-lone-surrogate"),
+    pytest.param("s.json", b'{"directed": true, "nodes": [{"id": "a"},\n{"id": "\\udc00b"}],'
+                 b'\n"links": []}',
+                 "s.json:2: the name '\\udc00b' holds a lone surrogate", id="json-lone-low-half"),
+    pytest.param("s.gml", b'graph [\n directed 1\n node [ id 0 label "a" ]\n'
+                 b' node [ id 1 label "b&#55296;" ]\n edge [ source 0 target 1 ]\n]\n',
+                 "s.gml:4: the name 'b\\ud800' holds a lone surrogate", id="gml-lone-surrogate"),
+    pytest.param("s.npz", b"", "s.npz: the name 'b\\ud800' holds a lone surrogate",
+                 id="npz-lone-surrogate"),
 ]
+
+
+def _npz_named(names):
+    buf = io.BytesIO()
+    np.savez(buf, format=np.array(b"csr"), shape=np.array([2, 2]), data=np.ones(1),
+             indices=np.array([0]), indptr=np.array([0, 0, 1]),
+             state_names=np.array(names), weighted=np.array(False))
+    return buf.getvalue()
+
+
+STRICT = [pytest.param(p.values[0], _npz_named(["a", "b\ud800"]), *p.values[2:], id=p.id)
+          if p.id == "npz-lone-surrogate" else p for p in STRICT]
+
+
+def test_a_whole_utf16_pair_is_a_character(tmp_path):
+    """The escape of a character outside the BMP (a surrogate pair) reads as that one
+    character (RFC 8259, section 7): only a lone half is refused."""
+    from netctl.io import read
+
+    p = tmp_path / "ok.json"
+    p.write_bytes(b'{"directed": true, "nodes": [{"id": "a\\ud83d\\ude00"}, {"id": "b"}],'
+                  b'"links": [{"source": "a\\ud83d\\ude00", "target": "b"}]}')
+    assert read(p).state_names == ("a\U0001f600", "b")
+
+
+def test_matrix_market_symmetric_files_from_scipy_read(tmp_path):
+    """The entry-line count knows how many entries symmetric and skew-symmetric files
+    store (scipy.io.mmwrite as the reference writer)."""
+    import scipy.io
+    import scipy.sparse as sp
+
+    from netctl.io import read
+
+    S = np.array([[1.0, 2, 0], [2, 0, 6], [0, 6, 9]])
+    K = np.array([[0.0, 2, 3], [-2, 0, 6], [-3, -6, 0]])
+    for sym, M in (("symmetric", S), ("skew-symmetric", K), ("general", S)):
+        for dense in (True, False):
+            p = tmp_path / f"{sym}-{dense}.mtx"
+            scipy.io.mmwrite(p, M if dense else sp.coo_matrix(M), symmetry=sym)
+            got = read(p).A.toarray()
+            assert np.array_equal(got != 0, M != 0), (sym, dense)
 
 
 @pytest.mark.parametrize("name, data, message", STRICT)
