@@ -15,6 +15,7 @@ from __future__ import annotations
 import os
 import re
 import warnings
+from collections.abc import Sequence
 
 import numpy as np
 
@@ -28,7 +29,7 @@ __all__ = ["write_edgelist", "unwritable_name"]
 _CANNOT = re.compile(r"[,\t; \r\v\f\n#\x00]|[\ud800-\udfff]")
 
 
-def unwritable_name(names: tuple[str, ...] | list[str]) -> str | None:
+def unwritable_name(names: Sequence[str]) -> str | None:
     """The first name an edge list cannot hold, or ``None``."""
     for s in names:
         if not s or _CANNOT.search(s):

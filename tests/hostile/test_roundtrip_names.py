@@ -225,3 +225,18 @@ def test_cli_refuses_an_unwritable_name_with_exit_2(tmp_path):
     assert code == 2
     assert not out.exists()
     assert sorted(os.listdir(tmp_path)) == ["in.json"]
+
+
+@pytest.mark.parametrize("suffix", [".csv", ".toml"])
+def test_signal_marks_keep_quoted_names(suffix, tmp_path):
+    """Disturbances and regulated outputs named with formula starts survive the edge
+    list's '# disturbances:' / '# regulated:' lines (and a TOML's edge-list side file)."""
+    s = _system(["=w", "-x", "'q", "y"], [(0, 1, 1.0), (1, 2, -0.5), (2, 3, 2.0)])
+    s = s.with_regulated(["'q"]).states_to_disturbances(["=w"])
+    p = tmp_path / ("net" + suffix)
+    write(s, p)
+    back = read(p)
+    assert back.disturbance_names == ("=w",)
+    assert back.regulated_names == s.regulated_names
+    assert sorted(back.state_names) == sorted(s.state_names)
+    assert _links(back) == _links(s)
