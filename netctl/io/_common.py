@@ -27,7 +27,7 @@ import stat
 import sys
 import tempfile
 import zlib
-from collections.abc import Iterable, Iterator
+from collections.abc import Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from contextvars import ContextVar
 from pathlib import Path
@@ -45,7 +45,7 @@ __all__ = ["read_text", "read_bytes", "atomic_write", "atomic_group", "ungrouped
            "excerpt", "one_line", "guarded_run", "note_input", "check_outputs", "max_bytes",
            "DEFAULT_MAX_BYTES", "MAX_TEXT_BYTES", "LIMIT_ENV", "check_states",
            "limit_error", "BYTES_PER_STATE", "EXCERPT_CHARS", "spreadsheet_cell",
-           "protect_name", "unprotect_name", "SpreadsheetSafeWriter",
+           "protect_name", "protect_names", "unprotect_name", "SpreadsheetSafeWriter",
            "refuse_lone_surrogates"]
 
 #: Default limit on the bytes of one file that a whole-file reader holds in memory (after
@@ -184,6 +184,7 @@ _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 #: A leading apostrophe is added before these (formula starts, and an apostrophe of the
 #: name itself), and a reader removes one leading apostrophe followed by one of them.
 _QUOTE_BEFORE = _FORMULA_START + ("'",)
+_QUOTE_FIRST = frozenset(_QUOTE_BEFORE)
 _NEGATIVE_NUMBER = re.compile(r"-([0-9]+\.?[0-9]*|\.[0-9]+)([eE][-+]?[0-9]+)?\Z")
 
 
@@ -205,6 +206,14 @@ def protect_name(name: str, *, quote_numbers: bool = False) -> str:
     if name.startswith(_QUOTE_BEFORE) and (quote_numbers or not _NEGATIVE_NUMBER.match(name)):
         return "'" + name
     return name
+
+
+def protect_names(names: Sequence[str], *, quote_numbers: bool = False) -> list[str]:
+    """:func:`protect_name` of every name (inlined: one set look-up a name that needs
+    nothing, the usual case)."""
+    first = _QUOTE_FIRST
+    return [protect_name(x, quote_numbers=quote_numbers) if x[:1] in first else x
+            for x in names]
 
 
 def unprotect_name(cell: str) -> str:

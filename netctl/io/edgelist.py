@@ -463,7 +463,7 @@ class _Scan:
             raise file_error(self.path, int(self.name_line[i]), f"the name "
                              f"{raw[a:a + min(n, 80)]!r} is not UTF-8 text. Save the file as "
                              "UTF-8 (or plain ASCII).") from None
-        self.quoted = raw.startswith(b"'") or b"\n'" in raw
+        self.quoted = raw.find(b"'") >= 0 and (raw.startswith(b"'") or b"\n'" in raw)
         names = text.split("\n")
         names.pop()  # after the last line break
         return tuple(names)

@@ -20,7 +20,7 @@ from collections.abc import Sequence
 import numpy as np
 
 from netctl.errors import InvalidSystemError
-from netctl.io._common import atomic_write, protect_name
+from netctl.io._common import atomic_write, protect_name, protect_names
 from netctl.system import StructuredSystem
 
 __all__ = ["write_edgelist", "unwritable_name"]
@@ -74,7 +74,7 @@ def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> No
     if bad is not None:
         raise _refuse("disturbance", bad, "a .toml description")
     src, dst = system.edges()
-    names = np.array([protect_name(x) for x in system.state_names], dtype=object)
+    names = np.array(protect_names(system.state_names), dtype=object)
     linked = np.zeros(system.n_states, bool)
     linked[src] = True
     linked[dst] = True

@@ -22,6 +22,7 @@ from netctl.io._common import (
     excerpt,
     file_error,
     protect_name,
+    protect_names,
     read_text,
     unprotect_name,
 )
@@ -129,6 +130,6 @@ def write_matrix_csv(system: StructuredSystem, path: str | os.PathLike[str]) -> 
                                  "column; rename it or write GraphML or node-link JSON.")
     A = system.A.toarray()
     with atomic_write(path) as fh:
-        fh.write(",".join(protect_name(x, quote_numbers=True) for x in system.state_names) + "\n")
+        fh.write(",".join(protect_names(system.state_names, quote_numbers=True)) + "\n")
         for row in A.tolist():
             fh.write(",".join(repr(x) if x else "0" for x in row) + "\n")

@@ -130,25 +130,31 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     return StructuredSystem.from_matrices(A, weighted=field != "pattern", model=model)
 
 
-#: Bytes looked at per step when counting the numbers of the entry lines.
-_COUNT_STEP = 1 << 24
+#: Bytes looked at per step when counting the numbers of the entry lines (small enough
+#: that the step's temporary arrays stay in the processor's cache).
+_COUNT_STEP = 1 << 20
 
 
 def _count_tokens(data: bytes, start: int) -> int:
     """Numbers (white-space separated words) in ``data[start:]``, comment lines excluded.
 
-    Streams over the bytes in steps of :data:`_COUNT_STEP` with numpy (a few array passes;
-    see benchmarks/RESULTS.md for its cost next to scipy's parser)."""
+    Streams over the bytes in steps of :data:`_COUNT_STEP` with numpy into two reused
+    buffers (a few milliseconds for 30 MB; see benchmarks/RESULTS.md)."""
     if data.find(b"%", start) >= 0:  # comment lines among the entries: rare, count in Python
         return sum(len(x.split()) for x in data[start:].split(b"\n")
                    if not x.lstrip().startswith(b"%"))
+    step = _COUNT_STEP
+    space_buf = np.empty(step, np.bool_)
+    start_buf = np.empty(step, np.bool_)
     total = 0
     prev_space = True
-    for a in range(start, len(data), _COUNT_STEP):
-        arr = np.frombuffer(data, np.uint8, count=min(_COUNT_STEP, len(data) - a), offset=a)
-        space = arr <= 32  # blank, tab, line breaks (a control byte is no number either)
-        total += int(np.count_nonzero(space[:-1] > space[1:]))  # a blank, then a word
-        total += int(prev_space and not space[0])
+    for a in range(start, len(data), step):
+        arr = np.frombuffer(data, np.uint8, count=min(step, len(data) - a), offset=a)
+        m = arr.size
+        # blank, tab, line breaks (a control byte is no number either)
+        space = np.less_equal(arr, 32, out=space_buf[:m])
+        word = np.greater(space[:-1], space[1:], out=start_buf[:m - 1])  # blank, then word
+        total += int(np.count_nonzero(word)) + int(prev_space and not space[0])
         prev_space = bool(space[-1])
     return total
 
