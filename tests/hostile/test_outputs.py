@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import errno
 import os
+import re
 import signal
 import subprocess
 import sys
@@ -234,7 +235,15 @@ def test_signal_at_any_moment_leaves_nothing_half_written(tmp_path, delay, sig):
     p.send_signal(sig)
     _, err = p.communicate(timeout=60)
     assert p.returncode in (code, -sig, 0), err
-    assert "Traceback" not in err
+    if sig == signal.SIGINT and "Traceback" in err:
+        # On a loaded machine the interpreter's own start-up can outlast the delay; a
+        # KeyboardInterrupt there is printed by Python before netctl's first line (the
+        # known gap above, tests/hostile/test_startup_window.py). Any frame from netctl's
+        # own code in that traceback is a failure.
+        frames = re.findall(r'File "([^"]+)"', err)
+        assert not any(str(ROOT / "netctl") in f for f in frames), err
+    else:
+        assert "Traceback" not in err
     names = _listing(tmp_path)
     assert [n for n in names if n.startswith(".")] == []
     if "out.json" in names:
