@@ -521,17 +521,18 @@ class StructuredSystem:
     def with_outputs(self, outputs: Any, *, names: Sequence[object] | None = None) -> StructuredSystem:
         """A copy with new output rows: state names/indices (one dedicated sensor each),
         a mapping ``output name -> states it reads``, or a ``p x n`` matrix."""
+        # a 1-D array is a list of states (as with_inputs takes it), not a matrix
+        matrix = sp.issparse(outputs) or (isinstance(outputs, np.ndarray)
+                                          and outputs.ndim == 2)
         if isinstance(outputs, Mapping):
             for v in outputs.values():
                 self.index_of(_as_list(v))  # errors name this system's states
-        elif not (sp.issparse(outputs) or isinstance(outputs, np.ndarray)):
+        elif not matrix:
             self.index_of(_as_list(outputs))
-        dual = self.dual().with_inputs(
-            outputs.T if sp.issparse(outputs) or isinstance(outputs, np.ndarray) else outputs,
-            names=names)
-        if names is None and not isinstance(outputs, Mapping) and not (
-                sp.issparse(outputs) or isinstance(outputs, np.ndarray)):
+        dual = self.dual().with_inputs(outputs.T if matrix else outputs, names=names)
+        if names is None and not isinstance(outputs, Mapping):
             dual = dual._replace(input_names=tuple(
+                f"y{j}" for j in range(dual.n_inputs)) if matrix else tuple(
                 "y:" + s[2:] for s in dual.input_names))
         return dual.dual()
 

@@ -99,3 +99,11 @@ def test_place_two_lines(net, capsys):
 def test_keep_needs_place(net, capsys):
     assert main(["secure", net, "--inputs", "a", "--keep"]) == 2
     assert "--keep go with --place" in capsys.readouterr().err
+
+
+def test_outputs_option_names_sensors_y(net, capsys):
+    # --outputs goes through the name parser (an index array): sensors are y:<state>
+    main(["secure", net, "--outputs", "c,a", "--json"])
+    d = json.loads(capsys.readouterr().out)
+    names = [e["name"] for e in d["audits"][0]["elements"]["elements"]]
+    assert names == ["y:c", "y:a"]

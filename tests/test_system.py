@@ -83,6 +83,19 @@ def test_with_inputs_forms_and_dual():
     assert d.dual().A.nnz == s3.A.nnz
 
 
+def test_with_outputs_names_sensors_y_for_every_form():
+    # a 1-D index array (what the CLI's name parser returns) is a list of states, as in
+    # with_inputs: dedicated sensors named y:<state>, not u:<state>; a matrix gets y<j>
+    s = StructuredSystem.from_edges([0, 1], [1, 2], 3, state_names=["a", "b", "c"])
+    assert s.with_outputs(np.array([2, 0])).output_names == ("y:c", "y:a")
+    assert s.with_outputs(np.array([2, 0])).measured_states().tolist() == [0, 2]
+    assert s.with_outputs(["c"]).output_names == ("y:c",)
+    m = s.with_outputs(np.array([[0.0, 0.0, 1.0]]))
+    assert m.output_names == ("y0",) and m.C.toarray().tolist() == [[0.0, 0.0, 1.0]]
+    assert s.with_outputs(np.array([[0.0, 0.0, 1.0]]), names=["q"]).output_names == ("q",)
+    assert s.with_inputs(np.array([2])).input_names == ("u:c",)
+
+
 def test_from_networkx_undirected_means_both_directions_and_keeps_attributes():
     g = nx.Graph()
     g.add_node("p", x=1.0, y=2.0, actuator=False, zone="north")
