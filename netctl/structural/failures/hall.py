@@ -300,6 +300,9 @@ class CutResult:
     rounds: int
     n_cuts: int
     lp_bound: float
+    #: the bound from the relaxation and HiGHS alone (``lower`` is also capped by the
+    #: incumbent's cost, which is a bound only if the incumbent is truly secure)
+    proven: float = 0.0
 
 
 def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
@@ -424,6 +427,7 @@ def solve_cuts(n: int, elig: np.ndarray, cost: np.ndarray, pool: CutPool,
         offer(S)
     if inc and ub() <= lower + 1e-9:
         return CutResult(S=inc[0], lower=ub(), optimal=True, rounds=rounds,
-                         n_cuts=len(pool.cuts), lp_bound=lp_bound)
+                         n_cuts=len(pool.cuts), lp_bound=lp_bound, proven=float(lower))
     return CutResult(S=inc[0] if inc else None, lower=float(min(lower, ub())), optimal=False,
-                     rounds=rounds, n_cuts=len(pool.cuts), lp_bound=lp_bound)
+                     rounds=rounds, n_cuts=len(pool.cuts), lp_bound=lp_bound,
+                     proven=float(lower))

@@ -17,7 +17,6 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.errors import OptionError
-from netctl.structural.failures._core import is_controlling
 from netctl.structural.failures.audit import _work_system
 from netctl.structural.failures.hall import (
     CutPool,
@@ -27,7 +26,8 @@ from netctl.structural.failures.hall import (
     hall_violations,
     solve_cuts,
 )
-from netctl.structural.failures.links import _without, line_elements
+from netctl.structural.failures.links import line_elements
+from netctl.structural.failures.recheck import Recheck, loss_cuts, recheck_design
 from netctl.structural.placement import Sites, place_inputs, sites_from_nodes
 from netctl.system import StructuredSystem
 
@@ -54,6 +54,10 @@ class SecurePlacement:
     nothing). ``scenarios`` is ``"all"`` when every loss was checked, else
     ``"sampled N"`` (``k``-line losses, sampled: not proven for all). ``lp_bound`` is the
     linear relaxation's value over the cuts found (a proven lower bound).
+    ``verified``: True when every loss was recomputed and none breaks the design, None
+    when only a labelled sample was (all passed), False when the design failed its
+    recheck -- then it is never called optimal, ``gap`` is infinite, and ``recheck``
+    and ``reasons`` name the losses that break it; ``recheck`` says which in words.
     """
 
     kind: str
@@ -76,6 +80,7 @@ class SecurePlacement:
     kept: tuple[str, ...] = ()
     scenarios: str = "all"
     lp_bound: float = 0.0
+    recheck: str = ""
 
     @property
     def site_names(self) -> list[str]:
@@ -93,7 +98,8 @@ class SecurePlacement:
                 "reasons": list(self.reasons),
                 "first_step": [self.state_names[int(i)] for i in self.first_step],
                 "kept": list(self.kept), "scenarios": self.scenarios,
-                "lp_bound": float(self.lp_bound) if math.isfinite(self.lp_bound) else None}
+                "lp_bound": float(self.lp_bound) if math.isfinite(self.lp_bound) else None,
+                "recheck": self.recheck}
 
 
 def _validate(kind: str, against: str, k: int, method: str, time_limit: float) -> None:
@@ -240,8 +246,11 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
     base["scenarios"] = scen
     kk = k if against == "elements" else 0
 
+    t_end = time.monotonic() + float(time_limit)
+
     def oracle(S: np.ndarray) -> list[tuple[np.ndarray, int]]:
-        return _violations(A, B0, S, k, against, lines)
+        left = min(60.0, max(t_end - time.monotonic(), 1.0))
+        return _violations(A, B0, S, k, against, lines, time_limit=left)
 
     # feasibility: every eligible site installed must survive
     allS = np.flatnonzero(elig)
@@ -264,11 +273,15 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
             pool.add(X, rhs)
     except TooMany:
         pass
-    t_end = time.monotonic() + float(time_limit)
-    lower = 0.0
-    lp = 0.0
+    def pool_first(S: np.ndarray) -> list[tuple[np.ndarray, int]]:
+        """Cuts learned so far (rechecks included) that ``S`` violates, else the search."""
+        y = np.zeros(n, np.int64)
+        y[S] = 1
+        hit = [(X, r) for X, r in pool.cuts if int(y[X].sum()) < r]
+        return hit if hit else oracle(S)
+
     def recording(S: np.ndarray) -> list[tuple[np.ndarray, int]]:
-        cuts = oracle(S)
+        cuts = pool_first(S)
         for X, rhs in cuts:
             pool.add(X, rhs)
         return cuts
@@ -276,78 +289,143 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
     def repair(S: np.ndarray) -> np.ndarray | None:
         return _two_step(A, B0, S, elig, cost, recording)[0]
 
-    if method in ("auto", "exact"):
-        res = solve_cuts(n, elig, cost, pool, oracle, t_end, repair=repair)
-        lower, lp = max(lower, res.lower), res.lp_bound
-        if res.optimal and res.S is not None:
-            S = res.S
-            c = float(cost[S].sum())
-            return SecurePlacement(feasible=True, sites=S, cost=c, lower_bound=c,
-                                   optimal=True, gap=0.0, method="milp",
-                                   guarantee="exact minimum cost (integer programme over "
-                                   f"Hall-set cuts, {res.n_cuts} cuts, {res.rounds} integer "
-                                   f"round(s), solved to optimality by HiGHS)"
-                                   + _scen_note(scen),
-                                   verified=_verify(A, B0, S, against, k, lines),
-                                   uncovered=(), reasons=(), lp_bound=lp,
-                                   **base)  # type: ignore[arg-type]
-        if pool.infeasible:
-            return _infeasible(pool.infeasible, A, B0, kk, names, base)
-        inc = res.S
-        if method == "auto" and inc is not None:
-            S2, _ = _two_step(A, B0, D, elig, cost, oracle)
-            if S2 is not None and float(cost[S2].sum()) < float(cost[inc].sum()):
-                inc = S2
-        if inc is not None:
-            c = float(cost[inc].sum())
-            lower = min(lower, c)
-            gap = 0.0 if c <= 0 else (c - lower) / c
-            return SecurePlacement(feasible=True, sites=inc, cost=c, lower_bound=lower,
-                                   optimal=gap <= 1e-12, gap=gap, method="milp-incumbent",
-                                   guarantee=f"best secure design found within "
-                                   f"{time_limit:g} s (rounded linear relaxation or integer "
-                                   "programme, repaired by greedy cover, or the two-step "
-                                   f"design); not proven optimal: lower bound {lower:g} from "
-                                   f"the relaxation over {res.n_cuts} Hall-set cuts and "
-                                   "HiGHS's dual bound" + _scen_note(scen),
-                                   verified=_verify(A, B0, inc, against, k, lines),
-                                   uncovered=(), reasons=(), lp_bound=lp,
-                                   **base)  # type: ignore[arg-type]
-        if method == "exact":
+    def attempt() -> SecurePlacement:
+        """One design and its proven bound (``verified`` filled in by the recheck)."""
+        lower = 0.0
+        lp = 0.0
+        if method in ("auto", "exact"):
+            res = solve_cuts(n, elig, cost, pool, oracle, t_end, repair=repair)
+            lower, lp = max(lower, res.proven), res.lp_bound
+            if res.optimal and res.S is not None:
+                S = res.S
+                c = float(cost[S].sum())
+                return SecurePlacement(feasible=True, sites=S, cost=c, lower_bound=lower,
+                                       optimal=True, gap=0.0, method="milp",
+                                       guarantee="exact minimum cost (integer programme over "
+                                       f"Hall-set cuts, {res.n_cuts} cuts, {res.rounds} "
+                                       "integer round(s), solved to optimality by HiGHS)"
+                                       + _scen_note(scen),
+                                       verified=None, uncovered=(), reasons=(), lp_bound=lp,
+                                       **base)  # type: ignore[arg-type]
+            if pool.infeasible:
+                return _infeasible(pool.infeasible, A, B0, kk, names, base)
+            inc = res.S
+            if method == "auto" and inc is not None:
+                S2, _ = _two_step(A, B0, D, elig, cost, pool_first)
+                if S2 is not None and float(cost[S2].sum()) < float(cost[inc].sum()):
+                    inc = S2
+            if inc is not None:
+                c = float(cost[inc].sum())
+                gap = 0.0 if c <= 0 else max(c - lower, 0.0) / c
+                return SecurePlacement(feasible=True, sites=inc, cost=c, lower_bound=lower,
+                                       optimal=gap <= 1e-12, gap=gap,
+                                       method="milp-incumbent",
+                                       guarantee=f"best secure design found within "
+                                       f"{time_limit:g} s (rounded linear relaxation or "
+                                       "integer programme, repaired by greedy cover, or the "
+                                       "two-step design); not proven optimal: lower bound "
+                                       f"{lower:g} from the relaxation over {res.n_cuts} "
+                                       "Hall-set cuts and HiGHS's dual bound"
+                                       + _scen_note(scen),
+                                       verified=None, uncovered=(), reasons=(), lp_bound=lp,
+                                       **base)  # type: ignore[arg-type]
+            if method == "exact":
+                return SecurePlacement(feasible=True, sites=np.zeros(0, np.int64),
+                                       cost=math.inf, lower_bound=lower, optimal=False,
+                                       gap=math.inf, method="milp", guarantee=f"not finished "
+                                       f"within {time_limit:g} s; only the lower bound "
+                                       f"{lower:g} is proven", verified=None, uncovered=(),
+                                       reasons=("time limit reached",), lp_bound=lp,
+                                       **base)  # type: ignore[arg-type]
+        if method == "two-step":  # its bound: the linear relaxation over the cuts (seconds)
+            res = solve_cuts(n, elig, cost, pool, oracle,
+                             max(t_end, time.monotonic() + 1.0), integer=False)
+            lower, lp = max(lower, res.proven), res.lp_bound
+        S2, guarantee = _two_step(A, B0, D, elig, cost, pool_first)
+        if S2 is None:
             return SecurePlacement(feasible=True, sites=np.zeros(0, np.int64), cost=math.inf,
                                    lower_bound=lower, optimal=False, gap=math.inf,
-                                   method="milp", guarantee=f"not finished within "
-                                   f"{time_limit:g} s; only the lower bound {lower:g} is "
-                                   "proven", verified=None, uncovered=(),
-                                   reasons=("time limit reached",), lp_bound=lp,
+                                   method="two-step", guarantee=guarantee, verified=None,
+                                   uncovered=(), reasons=(guarantee,), lp_bound=lp,
                                    **base)  # type: ignore[arg-type]
-    if method == "two-step":  # its bound: the linear relaxation over the cuts (seconds)
-        res = solve_cuts(n, elig, cost, pool, oracle, time.monotonic() + float(time_limit),
-                         integer=False)
-        lower, lp = max(lower, res.lower), res.lp_bound
-    S2, guarantee = _two_step(A, B0, D, elig, cost, oracle)
-    if S2 is None:
-        return SecurePlacement(feasible=True, sites=np.zeros(0, np.int64), cost=math.inf,
-                               lower_bound=lower, optimal=False, gap=math.inf,
-                               method="two-step", guarantee=guarantee, verified=None,
-                               uncovered=(), reasons=(guarantee,), lp_bound=lp,
-                               **base)  # type: ignore[arg-type]
-    S = S2
-    # any secure design minus its k dearest new sites still works, unless kept elements
-    # can take the losses: then only the minimum design's cost is a bound
-    D_cost = float(cost[D].sum())
-    extra = float(np.sort(cost[elig])[:k].sum()) if against == "elements" and not \
-        B0.shape[1] else 0.0
-    lower = max(lower, D_cost + extra)
-    c = float(cost[S].sum())
-    lower = min(lower, c)
-    gap = 0.0 if c <= 0 else (c - lower) / c
-    return SecurePlacement(feasible=True, sites=S, cost=c, lower_bound=lower,
-                           optimal=gap <= 1e-12, gap=gap, method="two-step",
-                           guarantee=guarantee + _scen_note(scen),
-                           verified=_verify(A, B0, S, against, k, lines),
-                           uncovered=(), reasons=(), first_step=tuple(D.tolist()),
-                           lp_bound=lp, **base)  # type: ignore[arg-type]
+        # any secure design minus its k dearest new sites still works, unless kept
+        # elements can take the losses: then only the minimum design's cost is a bound
+        D_cost = float(cost[D].sum())
+        extra = float(np.sort(cost[elig])[:k].sum()) if against == "elements" and not \
+            B0.shape[1] else 0.0
+        lower = max(lower, D_cost + extra)
+        c = float(cost[S2].sum())
+        gap = 0.0 if c <= 0 else max(c - lower, 0.0) / c
+        return SecurePlacement(feasible=True, sites=S2, cost=c, lower_bound=lower,
+                               optimal=gap <= 1e-12, gap=gap, method="two-step",
+                               guarantee=guarantee + _scen_note(scen), verified=None,
+                               uncovered=(), reasons=(), first_step=tuple(D.tolist()),
+                               lp_bound=lp, **base)  # type: ignore[arg-type]
+
+    # every design is rechecked by recomputation; the losses that break one become cuts
+    # and the search runs again, until a design passes or the time is up
+    tries = 0
+    while True:
+        r = attempt()
+        if not r.feasible or not math.isfinite(r.cost):
+            return r
+        tries += 1
+        chk = recheck_design(A, B0, r.sites, against, k, lines)
+        violated = [] if chk.ok is False else _violated_cuts(pool, r.sites, n)
+        if chk.ok is not False and not violated:
+            return _passed(r, chk)
+        if chk.ok is False:
+            cuts = (_safe(oracle, r.sites) if chk.intact_fails else
+                    loss_cuts(A, B0, r.sites, against, k, lines, chk.failing))
+            new = sum(pool.add(X, rhs) for X, rhs in cuts)
+        else:
+            new = 0
+        if new == 0 or time.monotonic() >= t_end or pool.infeasible:
+            return _failed(r, chk, violated, names, kept, tries)
+
+
+def _safe(oracle: Any, S: np.ndarray) -> list[tuple[np.ndarray, int]]:
+    try:
+        return list(oracle(S))
+    except TooMany:
+        return []
+
+
+def _violated_cuts(pool: CutPool, S: np.ndarray, n: int) -> list[tuple[np.ndarray, int]]:
+    """Learned cuts (each valid for every secure design) that ``S`` violates: proof
+    that ``S`` is not secure."""
+    y = np.zeros(n, np.int64)
+    y[np.asarray(S, np.int64)] = 1
+    return [(X, r) for X, r in pool.cuts if int(y[X].sum()) < r]
+
+
+def _passed(r: SecurePlacement, chk: Recheck) -> SecurePlacement:
+    """A design the recheck passed (every loss, or a labelled sample): its cost is then
+    an upper bound on the optimum, so the lower bound may not exceed it."""
+    lower = min(r.lower_bound, r.cost) if chk.ok else r.lower_bound
+    return dataclasses.replace(r, lower_bound=lower, verified=chk.ok,
+                               recheck=chk.describe())
+
+
+def _failed(r: SecurePlacement, chk: Recheck, violated: list[tuple[np.ndarray, int]],
+            names: tuple[str, ...], kept: tuple[str, ...], tries: int) -> SecurePlacement:
+    """A design that failed its recheck: never optimal, no gap, and the losses (or the
+    violated cut) that break it named."""
+    labels = list(kept) + [names[int(i)] for i in r.sites]
+    if chk.ok is False:
+        note = chk.describe(labels)
+    else:
+        X, rhs = violated[0]
+        shown = ", ".join(names[int(i)] for i in X[:8]) + (", ..." if X.size > 8 else "")
+        note = (f"FAILED: it has {int(np.isin(X, r.sites).sum())} site(s) among the states "
+                f"{{{shown}}}, which need {rhs} (a Hall-set cut valid for every secure "
+                "design): it is NOT secure")
+    return dataclasses.replace(
+        r, optimal=False, gap=math.inf, verified=False, recheck=note,
+        reasons=(note,) + r.reasons,
+        guarantee=(f"NOT SECURE (best effort): the design failed its recheck after {tries} "
+                   f"attempt(s) within the time limit; only the lower bound "
+                   f"{r.lower_bound:g} is proven. Was: " + r.guarantee))
 
 
 def _scen_note(scen: str) -> str:
@@ -356,9 +434,13 @@ def _scen_note(scen: str) -> str:
 
 
 def _violations(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int, against: str,
-                lines: list[np.ndarray] | None) -> list[tuple[np.ndarray, int]]:
-    """Exact separation; beyond the subset limit (``k > 1``), the rank-breaking losses
-    come from the integer programme of :func:`fewest_failures` (one per call)."""
+                lines: list[np.ndarray] | None, time_limit: float = 60.0
+                ) -> list[tuple[np.ndarray, int]]:
+    """Exact separation. Beyond the subset limit (``k > 1``) both of Lin's conditions
+    are still separated exactly: the reach by counting the elements touching each
+    source component (losing them all cuts it off), the rank by the integer programme
+    of :func:`fewest_failures` (one rank-breaking loss per call); :class:`TooMany` when
+    that programme does not finish within ``time_limit``."""
     try:
         return hall_violations(A, B0, S, k, against, lines, limit=_MAX_SUBSETS)
     except TooMany:
@@ -366,18 +448,25 @@ def _violations(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, k: int, agains
     from netctl.structural.failures.hall import _free_rows_of, _hall_cut
     from netctl.structural.failures.withstand import _rank_milp
 
+    out: list[tuple[np.ndarray, int]] = []
+    y = np.zeros(A.shape[0], np.int64)
+    y[np.asarray(S, np.int64)] = 1
+    for C, rhs in _reach_cuts(A, B0, k + 1):  # rhs = k + 1 - e(C)
+        if int(y[C].sum()) < rhs:
+            out.append((C, rhs))
     B = _design_B(A.shape[0], B0, S)
-    res = _rank_milp(A, B, tuple(range(k + 1)), 60.0)  # losses of at most k elements
+    res = _rank_milp(A, B, tuple(range(k + 1)), max(float(time_limit), 1.0))
     if res is None or res[0] is None:
         if res is None or res[1]:
-            return []  # proven: no k losses lower the rank
+            return out  # proven: no k losses lower the rank
         raise TooMany(-1)
     F = np.asarray(res[0], np.int64)
     keep = np.setdiff1d(np.arange(B.shape[1]), F)
     Bk = sp.csr_array(B.tocsc()[:, keep])
     Bk.sort_indices()
     X, _ = _free_rows_of(A, Bk)
-    return [_hall_cut(A, B0, X, k)]
+    out.append(_hall_cut(A, B0, X, k))
+    return out
 
 
 def _infeasible(bad: list[np.ndarray], A: sp.csr_array, B0: sp.csr_array, kk: int,
@@ -404,29 +493,6 @@ def _infeasible(bad: list[np.ndarray], A: sp.csr_array, B0: sp.csr_array, kk: in
 
 
 # ---------------------------------------------------------------------- checks
-def _verify(A: sp.csr_array, B0: sp.csr_array, S: np.ndarray, against: str, k: int,
-            lines: list[np.ndarray] | None) -> bool | None:
-    """Independent check by recomputation (Lin's test per scenario); ``None`` when the
-    scenarios are too many to visit."""
-    n = A.shape[0]
-    B = _design_B(n, B0, S)
-    if not is_controlling(A, B).ok:
-        return False
-    if against == "lines":
-        return all(is_controlling(_without(A, L), B).ok for L in lines or [])
-    m = B.shape[1]
-    q = min(k, m)
-    if math.comb(m, q) > 4 * _MAX_SUBSETS:
-        return None
-    Bc = B.tocsc()
-    for F in itertools.combinations(range(m), q):
-        Bk = sp.csr_array(Bc[:, np.setdiff1d(np.arange(m), F)])
-        Bk.sort_indices()
-        if not is_controlling(A, Bk).ok:
-            return False
-    return True
-
-
 # ---------------------------------------------------------------------- two-step
 def _two_step(A: sp.csr_array, B0: sp.csr_array, D: np.ndarray, elig: np.ndarray,
               cost: np.ndarray, oracle: Any) -> tuple[np.ndarray | None, str]:
