@@ -116,6 +116,20 @@ def test_a_design_failing_its_recheck_is_never_called_optimal(monkeypatch, tmp_p
     assert "NOT SECURE" in out and "optimal" not in out and "FAILED: losing {" in out
 
 
+def test_a_design_below_the_proven_bound_is_never_called_optimal(monkeypatch):
+    # a design cheaper than a proven lower bound cannot be secure: never claimed
+    real = secure.solve_cuts
+
+    def inflated(*a, **kw):
+        import dataclasses
+        res = real(*a, **kw)
+        return dataclasses.replace(res, proven=res.proven + 100.0)
+    monkeypatch.setattr(secure, "solve_cuts", inflated)
+    s, n, edges = _blocks_and_groups(2, 1)
+    r = secure_placement(s, k=2, time_limit=30)
+    assert not r.optimal and r.verified is False and "below the proven" in r.recheck
+
+
 def test_sampled_recheck_says_so_and_exits_per_design(monkeypatch, net_pair, capsys):
     monkeypatch.setattr(recheck, "RECHECK_ALL", 2)
     monkeypatch.setattr(recheck, "RECHECK_SAMPLES", 5)

@@ -378,7 +378,8 @@ def secure_placement(system: StructuredSystem, *, kind: str = "inputs",
         tries += 1
         chk = recheck_design(A, B0, r.sites, against, k, lines)
         violated = [] if chk.ok is False else _violated_cuts(pool, r.sites, n)
-        if chk.ok is not False and not violated:
+        below = chk.ok is not False and r.lower_bound > r.cost + 1e-9
+        if chk.ok is not False and not violated and not below:
             return _passed(r, chk)
         if chk.ok is False:
             cuts = (_safe(oracle, r.sites) if chk.intact_fails else
@@ -420,6 +421,10 @@ def _failed(r: SecurePlacement, chk: Recheck, violated: list[tuple[np.ndarray, i
     labels = list(kept) + [names[int(i)] for i in r.sites]
     if chk.ok is False:
         note = chk.describe(labels)
+    elif not violated:
+        note = (f"FAILED: its cost {r.cost:g} is below the proven lower bound "
+                f"{r.lower_bound:g}, so it cannot be secure (or a bound is wrong): "
+                "not claimed")
     else:
         X, rhs = violated[0]
         shown = ", ".join(names[int(i)] for i in X[:8]) + (", ..." if X.size > 8 else "")
