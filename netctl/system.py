@@ -647,15 +647,47 @@ class StructuredSystem:
         regulated outputs is the transpose of the original one, and ``dual().dual()``
         is the original system. The disturbances' node table does not survive the
         swap (regulated outputs have none).
+
+        Notes
+        -----
+        Every part of ``self`` was validated when it was built, and the transpose of a
+        canonical pattern is canonical, so the dual is assembled without a second
+        validation pass (:meth:`_trusted`): the transposes are the only O(links) work.
+        The one check that can newly fail is kept: the regulated outputs become
+        disturbances, whose names must not be state names.
         """
-        return StructuredSystem(A=self.A.T.tocsr(), B=self.C.T.tocsr(), C=self.B.T.tocsr(),
-                                state_names=self.state_names, input_names=self.output_names,
-                                output_names=self.input_names, nodes=self.nodes,
-                                weighted=self.weighted, model=self.model,
-                                E=self.H.T.tocsr(), H=self.E.T.tocsr(),
-                                disturbance_names=self.regulated_names,
-                                regulated_names=self.disturbance_names,
-                                elements=self.elements)
+        disturbances = self.regulated_names
+        if len(disturbances) and len(self.state_names):
+            clash = _first_common(disturbances, self.state_names)
+            if clash is not None:
+                raise InvalidSystemError(
+                    f"{clash!r} is both a state and a disturbance; a disturbance is never a "
+                    "state: rename one of them.")
+        return StructuredSystem._trusted(
+            A=_transpose(self.A), B=_transpose(self.C), C=_transpose(self.B),
+            state_names=self.state_names, input_names=self.output_names,
+            output_names=self.input_names, nodes=dict(self.nodes),
+            weighted=self.weighted, model=self.model,
+            E=_transpose(self.H), H=_transpose(self.E),
+            disturbance_names=disturbances, regulated_names=self.disturbance_names,
+            disturbance_nodes={}, elements=self.elements,
+            # the states are the same: share their name lookup (built once, never changed)
+            _index={"state": self._index["state"]} if "state" in self._index else {})
+
+    @classmethod
+    def _trusted(cls, **parts: Any) -> StructuredSystem:
+        """A system from parts that are already in stored form (frozen canonical CSR
+        arrays, validated name sequences, read-only node-table columns of the right
+        lengths), without running the constructor's checks (``_index`` may be given: a
+        name lookup to share). Internal: only for parts
+        derived from a validated system by operations that keep them valid."""
+        self = object.__new__(cls)
+        for name in cls.__dataclass_fields__:
+            object.__setattr__(self, name, parts.pop(name, {}) if name == "_index"
+                               else parts.pop(name))
+        if parts:
+            raise TypeError(f"unknown parts {sorted(parts)!r}")
+        return self
 
     def with_self_loops(self) -> StructuredSystem:
         """A copy with self-dynamics on every state (existing diagonal weights kept)."""
@@ -737,3 +769,19 @@ class StructuredSystem:
         return (f"StructuredSystem(n_states={self.n_states}, n_links={self.n_links}, "
                 f"n_inputs={self.n_inputs}, n_outputs={self.n_outputs}, {extra}"
                 f"model={self.model!r}, weighted={self.weighted})")
+
+
+def _transpose(M: sp.csr_array) -> sp.csr_array:
+    """The transpose of a canonical (stored-form) CSR array, itself in stored form.
+
+    Converting the CSC view ``M.T`` to CSR walks the entries in row order of ``M``, so
+    every new row comes out with sorted column indices; a canonical ``M`` has no
+    duplicates, zeros or non-finite values, and neither has its transpose."""
+    r, c = M.shape
+    if M.nnz == 0:
+        return _empty_csr((c, r))
+    T = M.T.tocsr()
+    T.indptr = T.indptr.astype(np.int64, copy=False)
+    T.indices = T.indices.astype(np.int64, copy=False)
+    T.has_canonical_format = True
+    return _freeze(T)
