@@ -181,6 +181,100 @@ def _admissible(fptr, find, fw, srow, scol, cm):  # pragma: no cover - compiled
     return aptr, aind[:pos].copy()
 
 
+@njit(cache=True, nogil=True)
+def _useful(aptr, aind, rm, cm, n_cols):  # pragma: no cover - compiled
+    """The admissible subgraph that can hold an augmenting path: rows and columns from
+    which an alternating path of admissible edges reaches a free column, found by one
+    backward search from the free columns (a column is left by the matched edge to its
+    row; a row is entered through a non-matching admissible edge). Returns the subgraph
+    as CSR over the renumbered useful rows and columns, their original ids, and the
+    current matching in the new numbering."""
+    r = aptr.size - 1
+    tptr = np.zeros(n_cols + 1, np.int64)
+    for k in range(aind.size):
+        tptr[aind[k] + 1] += 1
+    for j in range(n_cols):
+        tptr[j + 1] += tptr[j]
+    tind = np.empty(aind.size, np.int64)
+    fill = tptr[:-1].copy()
+    for i in range(r):
+        for k in range(aptr[i], aptr[i + 1]):
+            j = aind[k]
+            tind[fill[j]] = i
+            fill[j] += 1
+    urow = np.zeros(r, np.bool_)
+    ucol = np.zeros(n_cols, np.bool_)
+    queue = np.empty(n_cols, np.int64)
+    head = 0
+    tail = 0
+    for j in range(n_cols):
+        if cm[j] < 0 and tptr[j + 1] > tptr[j]:
+            ucol[j] = True
+            queue[tail] = j
+            tail += 1
+    while head < tail:
+        j = queue[head]
+        head += 1
+        for k in range(tptr[j], tptr[j + 1]):
+            i = tind[k]
+            if i == cm[j] or urow[i]:
+                continue
+            urow[i] = True
+            c = rm[i]
+            if c >= 0 and not ucol[c]:
+                ucol[c] = True
+                queue[tail] = c
+                tail += 1
+    new_col = np.full(n_cols, -1, np.int64)
+    cols = np.empty(tail, np.int64)
+    nc = 0
+    for j in range(n_cols):
+        if ucol[j]:
+            new_col[j] = nc
+            cols[nc] = j
+            nc += 1
+    nr = 0
+    for i in range(r):
+        if urow[i]:
+            nr += 1
+    rows = np.empty(nr, np.int64)
+    sptr = np.zeros(nr + 1, np.int64)
+    srm = np.full(nr, -1, np.int64)
+    q = 0
+    for i in range(r):
+        if urow[i]:
+            rows[q] = i
+            cnt = 0
+            for k in range(aptr[i], aptr[i + 1]):
+                if ucol[aind[k]]:
+                    cnt += 1
+            sptr[q + 1] = sptr[q] + cnt
+            if rm[i] >= 0:
+                srm[q] = new_col[rm[i]]
+            q += 1
+    sind = np.empty(sptr[nr], np.int64)
+    pos = 0
+    for q in range(nr):
+        i = rows[q]
+        for k in range(aptr[i], aptr[i + 1]):
+            j = aind[k]
+            if ucol[j]:
+                sind[pos] = new_col[j]
+                pos += 1
+    return sptr, sind, rows, cols, srm
+
+
+@njit(cache=True, nogil=True)
+def _write_back(rows, cols, srm, rm, cm):  # pragma: no cover - compiled
+    """Copy the matching of the useful subgraph back into the whole one."""
+    for q in range(rows.size):
+        i = rows[q]
+        if srm[q] >= 0:
+            j = cols[srm[q]]
+            rm[i] = j
+            cm[j] = i
+
+
 def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
                      has_loop: np.ndarray) -> tuple[np.ndarray, int]:
     """Largest set of states covered by vertex-disjoint stems and cycles.
@@ -225,8 +319,11 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
         if _prices(fptr, find, fw, rm, cm, srow, scol) < 0:
             break
         # every shortest augmenting path at once: a maximum matching of the admissible
-        # edges, started from the current one (augmenting paths keep matched vertices)
+        # edges, started from the current one (augmenting paths keep matched vertices),
+        # on the part of them that can hold an augmenting path at all
         aptr, aind = _admissible(fptr, find, fw, srow, scol, cm)
-        rm, cm = maximum_matching(aptr, aind, n_cols, row_match=rm, col_match=cm)
+        sptr, sind, rows, cols, srm = _useful(aptr, aind, rm, cm, n_cols)
+        srm, _ = maximum_matching(sptr, sind, cols.size, row_match=srm)
+        _write_back(rows, cols, srm, rm, cm)
     n_unc = int(np.count_nonzero((rm == np.arange(r)) & ~loops))
     return rm, n_unc

@@ -80,3 +80,33 @@ def test_large_failing_system_agrees_with_scipy():
     acc = accessible_states(structure_of(s.A), s.B)
     assert ctl._hosoe_dimension(s.A, s.B, acc) == \
         ctl._hosoe_dimension_reference(s.A, s.B, acc)
+
+
+FAILING = [  # thousand-state networks with inputs on a few states: many phases, long paths
+    pytest.param("er", 2000, 3.0, 3, 11, id="er-2000-deg3-3-inputs"),
+    pytest.param("er", 4000, 6.0, 10, 12, id="er-4000-deg6-10-inputs"),
+    pytest.param("er", 3000, 1.5, 40, 13, id="er-3000-deg1.5-40-inputs"),
+    pytest.param("sf", 3000, 4.0, 5, 14, id="scale-free-3000-deg4-5-inputs"),
+    pytest.param("loops", 2500, 3.0, 4, 15, id="er-2500-half-self-loops-4-inputs"),
+]
+
+
+@pytest.mark.parametrize("kind, n, degree, n_inputs, random_start", FAILING)
+def test_thousand_state_failing_networks_agree_with_scipy(kind, n, degree, n_inputs,
+                                                          random_start):
+    # reference: SciPy's minimum-weight full bipartite matching (LAPJVsp) on the same
+    # costs; each phase's augmentation is restricted to the useful admissible subgraph
+    from netctl.generate import erdos_renyi, scale_free
+
+    rng = np.random.default_rng(random_start)
+    if kind == "sf":
+        s = scale_free(n, mean_degree=degree, seed=random_start)
+    else:
+        s = erdos_renyi(n, mean_degree=degree, seed=random_start)
+    if kind == "loops":
+        s = s._replace(A=s.A + sp.diags_array((rng.random(n) < 0.5).astype(float)))
+    s = s.with_inputs(rng.choice(n, n_inputs, replace=False).tolist())
+    acc = accessible_states(structure_of(s.A), s.B)
+    got = ctl._hosoe_dimension(s.A, s.B, acc)
+    assert got == ctl._hosoe_dimension_reference(s.A, s.B, acc)
+    assert 0 < got < int(acc.sum()) or kind == "loops"
