@@ -16,7 +16,10 @@ per phase, one multi-source Dijkstra search (Dial's buckets: reduced costs are s
 integers) from every unmatched row gives the shortest augmenting distance ``D``, the
 prices move by ``min(dist, D)``, and a maximum matching of the edges of zero reduced
 cost (the fast matching kernel, started from the current assignment) augments along
-every shortest path at once, so that the next phase has a larger ``D``. The phases are
+every shortest path at once, so that the next phase has a larger ``D``. That matching
+runs only on the rows and columns from which an alternating path of such edges reaches
+a free column (one backward search): every augmenting path lies there, and the rest,
+often more than half of a failing system, would only be searched in vain. The phases are
 as many as the distinct distances (a handful on the networks netctl targets), each
 O(E) plus one warm-started matching. Exact.
 
