@@ -534,7 +534,10 @@ class StructuredSystem:
             dual = dual._replace(input_names=tuple(
                 f"y{j}" for j in range(dual.n_inputs)) if matrix else tuple(
                 "y:" + s[2:] for s in dual.input_names))
-        return dual.dual()
+        back = dual.dual()
+        if self.disturbance_nodes:  # the dual has no table for its regulated outputs
+            back = back._replace(disturbance_nodes=dict(self.disturbance_nodes))
+        return back
 
     def with_disturbances(self, disturbances: Any, *, names: Sequence[object] | None = None,
                           nodes: Mapping[str, Any] | None = None) -> StructuredSystem:

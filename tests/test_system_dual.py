@@ -130,3 +130,15 @@ def test_dual_of_large_empty_parts_shares_the_empty_pattern():
     assert d.B.shape == (n, 0) and d.C.shape == (0, n) and d.B.nnz == d.C.nnz == 0
     assert sp.isspmatrix_csr(d.A) or isinstance(d.A, sp.csr_array)
     assert d.A.indices.dtype == np.int64 and d.A.indptr.dtype == np.int64
+
+
+def test_with_outputs_keeps_the_disturbances_table():
+    # with_outputs goes through the dual twice; nothing in a good system may be dropped
+    # silently (project rule), so the disturbances' own node table must survive
+    s = StructuredSystem.from_named_edges(["a", "b"], ["b", "c"])
+    s = s.with_disturbances(["a"], names=["weather"], nodes={"x": [1.0], "kind": ["sun"]})
+    t = s.with_outputs(["c"])
+    assert t.output_names == ("y:c",)
+    assert t.disturbance_names == ("weather",)
+    assert list(t.disturbance_nodes["x"]) == [1.0]
+    assert list(t.disturbance_nodes["kind"]) == ["sun"]
