@@ -11,7 +11,7 @@ import math
 import os
 import re
 import sys
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
@@ -27,12 +27,33 @@ else:  # pragma: no cover
 __all__ = ["OUTSIDE_ENV"]
 
 
+def _fast_loads(text: str) -> dict[str, Any] | None:
+    """The TOML document parsed by rtoml (compiled, several times faster than the
+    standard library on a large grid's description), or None when rtoml is not
+    installed (extra ``fast-toml``) or refuses the text: the standard library then
+    parses it, so every error message keeps its line and column and a text either
+    parser refuses is judged by the standard library."""
+    try:
+        import rtoml
+    except ImportError:
+        return None
+    try:
+        data = rtoml.loads(text)
+    except Exception:  # noqa: BLE001 (any refusal: the standard parser decides)
+        return None
+    return data if isinstance(data, dict) else None
+
+
 class _Doc:
     """The parsed TOML text with helpers to locate keys for error messages."""
 
     def __init__(self, path: str | os.PathLike[str]) -> None:
         self.path = path
         self.text = read_text(path)
+        data = _fast_loads(self.text)
+        if data is not None:
+            self.data = data
+            return
         try:
             self.data = tomllib.loads(self.text)
         except tomllib.TOMLDecodeError as exc:
@@ -137,17 +158,21 @@ def _node_table(attrs: dict[str, dict[str, Any]], names: list[str]) -> dict[str,
     keys: list[str] = []
     for row in attrs.values():
         keys.extend(k for k in row if k not in keys)
+    rows = list(attrs.values())
+    at = np.fromiter((index[s] for s in attrs), np.int64, len(rows))
     table: dict[str, np.ndarray] = {}
-    for k in keys:
+    for k in keys:  # column by column: one list of the rows' values, one array store
         if k in ("x", "y", "actuator_cost", "sensor_cost"):
             col = np.full(n, np.nan)
+            col[at] = np.array([row.get(k, np.nan) for row in rows], float)
         elif k in ("actuator", "sensor"):
             col = np.ones(n, bool)  # not said: allowed
+            col[at] = np.array([row.get(k, True) for row in rows], bool)
         else:
             col = np.empty(n, dtype=object)
-        for s, row in attrs.items():
-            if k in row:
-                col[index[s]] = row[k]
+            vals = np.empty(len(rows), dtype=object)
+            vals[:] = [row.get(k) for row in rows]  # the objects as they are (None: absent)
+            col[at] = vals
         table[k] = col
     return table
 
@@ -158,14 +183,18 @@ def _node_table(attrs: dict[str, dict[str, Any]], names: list[str]) -> dict[str,
 OUTSIDE_ENV = "NETCTL_ALLOW_OUTSIDE_FILES"
 
 
-def _confine(fpath: Path, path: object, given: str, line: int | None) -> None:
+def _confine(fpath: Path, path: object, given: str,
+             line: int | None | Callable[[], int | None]) -> None:
     """Refuse a referenced file that resolves (through ``..`` and symlinks) outside the
-    folder of the description ``path``, unless :data:`OUTSIDE_ENV` is 1."""
+    folder of the description ``path``, unless :data:`OUTSIDE_ENV` is 1 (``line``: the
+    line for the message, or a function finding it, called only on a refusal)."""
     if os.environ.get(OUTSIDE_ENV, "").strip() == "1":
         return
     folder = Path(os.path.realpath(Path(str(path)).parent))
     target = Path(os.path.realpath(fpath))
     if target != folder and folder not in target.parents:
+        if callable(line):
+            line = line()
         raise file_error(path, line, f"the coupling file {given[:80]!r} lies outside the "
                          f"folder of the description; netctl reads only files beside it or "
                          f"below it. Move the file there, or set {OUTSIDE_ENV}=1 if you "

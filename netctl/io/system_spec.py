@@ -60,6 +60,10 @@ STATE_ATTRIBUTES: dict[str, str] = {
                    "are how it acts on states",
 }
 
+#: attribute names the reader checks or acts on (any other is kept as it is)
+_MEANING = frozenset(STATE_ATTRIBUTES) | {"subsystem"}
+_PLAIN = frozenset((str, bool, int, float))  # value types kept as they are
+
 _SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "disturbances", "regulated",
              "stations", "subsystems", "ties", "elements")
 _SYSTEM_KEYS = ("name", "description", "weighted", "terms", "model")
@@ -199,12 +203,30 @@ def _terms_of(doc: _Doc, system_t: Mapping[str, Any]) -> str:
     return str(terms)
 
 
+#: ``[system] terms`` of the description :func:`read_spec` read last, by file identity
+#: (path, inode, size, modification time): a verb reads the file, then asks for its
+#: terms, and a large grid's description is not parsed twice.
+_LAST_TERMS: dict[tuple[Any, ...], str] = {}
+
+
+def _file_key(path: str | os.PathLike[str]) -> tuple[Any, ...] | None:
+    try:
+        st = os.stat(path)
+    except (OSError, TypeError, ValueError):
+        return None
+    return (os.path.realpath(path), st.st_ino, st.st_size, st.st_mtime_ns)
+
+
 def declared_terms(path: str | os.PathLike[str]) -> str:
     """The ``[system] terms`` a system description declares (``""`` when none).
 
     Reads only the TOML text (not the couplings file it may name); errors as
-    :func:`read_spec` reports them.
+    :func:`read_spec` reports them. The description :func:`read_spec` read last is
+    not parsed again while the file is unchanged.
     """
+    key = _file_key(path)
+    if key is not None and key in _LAST_TERMS:
+        return _LAST_TERMS[key]
     doc = _Doc(path)
     system_t = doc.data.get("system", {})
     return _terms_of(doc, system_t if isinstance(system_t, dict) else {})
@@ -259,6 +281,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     >>> spec.ties
     (('supply', 'pump', 'storage', 'tank', 'state'),)
     """
+    key = _file_key(path)  # before the read: a file changed meanwhile is parsed again
     doc = _Doc(path)
     data = doc.data
     _check_keys(doc, data, _SECTIONS, "the top level")
@@ -296,7 +319,22 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
                             f"{{ x = 1.0, actuator = true }} (or {{}}), found {a!r}.", s)
         state_id(s)
         row: dict[str, Any] = {}
-        for k, v in a.items():
+        special = _MEANING.intersection(a)
+        if all(type(v) in _PLAIN and (type(v) is not float or math.isfinite(v))
+               for v in a.values()):  # plain values: only the meaningful keys need checks
+            row = dict(a)  # same key order; checked keys below are set in place
+            if not special:
+                attrs[s] = row
+                continue
+            for k in ("self", "disturbance"):  # not node-table attributes
+                row.pop(k, None)
+            items = [(k, a[k]) for k in a if k in special]
+        else:
+            items = list(a.items())
+        for k, v in items:
+            if k not in _MEANING and (isinstance(v, (str, bool)) or _number(v)):
+                row[k] = v  # an attribute without a meaning, kept as it is
+                continue
             if k in ("x", "y", "actuator_cost", "sensor_cost"):
                 if not _number(v) or (k.endswith("cost") and v < 0):
                     raise doc.error(f"attribute {k!r} of state {s!r} must be a "
@@ -350,7 +388,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         if not isinstance(f, str):
             raise doc.error(f"[couplings] file must be a path string, found {f!r}.", "file")
         fpath = Path(f) if Path(f).is_absolute() else Path(path).parent / f
-        _confine(fpath, path, f, doc.line_of("file"))
+        _confine(fpath, path, f, lambda: doc.line_of("file"))
         if not fpath.is_file():
             raise MissingFileError(f"{path}:{doc.line_of('file')}: the coupling file {f!r} "
                                    f"(looked for at {fpath}) does not exist; paths are "
@@ -584,13 +622,16 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
             if (names[a], names[b]) not in have:
                 ties.append((owner[names[a]], names[a], owner[names[b]], names[b], "state"))
                 tie_w.append(float(x) if weighted else None)
-    for s in kinds:  # each marked state leaves the states; errors name it and its line
-        try:
-            system.states_to_disturbances([s])
+    if kinds:  # the marked states leave the states in one step; an error names the
+        try:   # first state refused on its own, with its line
+            system = system.states_to_disturbances(kinds)
         except (ValueError, KeyError) as exc:
-            raise doc.error(str(exc), s) from None
-    if kinds:
-        system = system.states_to_disturbances(kinds)
+            for s in kinds:
+                try:
+                    system.states_to_disturbances([s])
+                except (ValueError, KeyError) as exc1:
+                    raise doc.error(str(exc1), s) from None
+            raise doc.error(str(exc), kinds[0]) from None
     if "elements" in data:  # a grid's element table (branch IDs, buses, units)
         from netctl.io._spec_elements import read_elements
 
@@ -598,6 +639,9 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         known = ({str(v) for v in node_col} if node_col is not None
                  else set(system.state_names))
         system = system._replace(elements=read_elements(doc, data["elements"], known))
+    _LAST_TERMS.clear()
+    if key is not None:
+        _LAST_TERMS[key] = terms
     return SystemSpec(path=str(path), name=name, description=description, system=system,
                       terms=terms,
                       inputs=inputs, outputs=outputs, subsystems=subsystems, ties=tuple(ties),

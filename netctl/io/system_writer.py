@@ -103,14 +103,17 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
     if int(off.sum()) > INLINE_LINKS:
         side = Path(path).with_name(Path(path).stem + ".edges.csv")
         lines.append(f"file = {_val(side.name)}")
-    else:
-        items = []
+    items = []
+    if side is None:
         for a, b, x in zip(src[off].tolist(), dst[off].tolist(), vals[off].tolist()):
             w = f", {x!r}" if system.weighted else ""
             items.append(f"  [{_val(names[a])}, {_val(names[b])}{w}],")
-        for a_name, b_name, x in disturbance_links(system):
-            w = f", {x!r}" if system.weighted else ""
-            items.append(f"  [{_val(a_name)}, {_val(b_name)}{w}],")
+    # disturbance links stay inline (the side file holds state links only; a
+    # disturbance's name may not fit an edge list), read after the file's links
+    for a_name, b_name, x in disturbance_links(system):
+        w = f", {x!r}" if system.weighted else ""
+        items.append(f"  [{_val(a_name)}, {_val(b_name)}{w}],")
+    if items or side is None:
         lines += ["links = ["] + items + ["]"]
     for kind, M, pool in (("inputs", system.B.tocsc(), system.input_names),
                           ("outputs", system.C.T.tocsc(), system.output_names),
@@ -157,7 +160,8 @@ def _write_both(system: StructuredSystem, path: str | os.PathLike[str], side: Pa
         edges_only = system._replace(A=system.A - sp.dia_array((diag[None, :], [0]),
                                                                shape=(n, n)),
                                      B=None, C=None, input_names=(), output_names=(), nodes={},
-                                     H=None, regulated_names=())
+                                     H=None, regulated_names=(), E=None,
+                                     disturbance_names=(), disturbance_nodes={})
         write_edgelist(edges_only, side)
     with atomic_write(path) as fh:
         fh.write("\n".join(lines) + "\n")
