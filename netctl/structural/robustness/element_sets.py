@@ -26,9 +26,10 @@ from netctl.errors import OptionError
 from netctl.graph.matching import maximum_matching
 from netctl.records import ELEMENT_KINDS
 from netctl.structural._engine import stack_AB
-from netctl.structural.robustness._common import _n_d
+from netctl.structural.robustness._rematch import matching_sizes_after
 from netctl.structural.robustness.elements import (
-    _matching_after,
+    _concat_ragged,
+    _ragged,
     _reached,
     element_effects,
     state_nodes,
@@ -231,14 +232,10 @@ def element_set_losses(system: StructuredSystem, *, k: int = 2, samples: int = 1
     n, m = system.n_states, system.n_inputs
     a_ptr, a_idx = A.indptr.astype(np.int64), A.indices.astype(np.int64)
     rmA, cmA = maximum_matching(a_ptr, a_idx, n)
-    row_a = np.repeat(np.arange(n, dtype=np.int64), np.diff(a_ptr))
-    sizeA = int(np.count_nonzero(rmA >= 0))
     has = m > 0
     ab_ptr, ab_idx, n_ab = stack_AB(A, B)
     ab_ptr, ab_idx = ab_ptr.astype(np.int64), ab_idx.astype(np.int64)
     rmAB, cmAB = maximum_matching(ab_ptr, ab_idx, n_ab)
-    row_ab = np.repeat(np.arange(n, dtype=np.int64), np.diff(ab_ptr))
-    sizeAB = int(np.count_nonzero(rmAB >= 0))
     nb_row = np.diff(B.indptr) if B.nnz else np.zeros(n, np.int64)
     shift = np.repeat(np.concatenate([[0], np.cumsum(nb_row)[:-1]]), np.diff(A.indptr))
     a_in_ab = np.arange(A.nnz, dtype=np.int64) + shift
@@ -251,43 +248,58 @@ def element_set_losses(system: StructuredSystem, *, k: int = 2, samples: int = 1
     state_dead = np.zeros(n, np.bool_)
     empty = np.zeros(0, np.int64)
 
-    def outcome(members: np.ndarray) -> tuple[int, bool, bool, int]:
+    def lost_by(members: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """The couplings, states and inputs a set of elements takes out."""
         parts = [eff.of(int(sel[j])) for j in members.tolist()]
         links = np.unique(branch_links([int(sel[j]) for j in members.tolist()]))
         states = np.unique(np.concatenate([p[1] for p in parts] + [empty]))
         inputs = np.unique(np.concatenate([p[2] for p in parts] + [empty]))
-        n_left = n - states.size
-        sz = _matching_after(a_ptr, a_idx, n, rmA, cmA, links, states, states, sizeA, row_a)
-        n_d = _n_d(n_left, sz)
-        if not has:
-            return n_d, True, False, 0
-        dead_cols = np.concatenate([states, n + inputs])
-        szab = _matching_after(ab_ptr, ab_idx, n_ab, rmAB, cmAB, a_in_ab[links], states,
-                               dead_cols, sizeAB, row_ab)
-        link_dead[links] = True
-        state_dead[states] = True
-        live = np.setdiff1d(np.arange(m), inputs)
-        start = np.unique(np.concatenate([Bcsc.indices[Bcsc.indptr[j]:Bcsc.indptr[j + 1]]
-                                          for j in live.tolist()] or [empty])).astype(np.int64)
-        reached = _reached(out_ptr, out_idx, out_pos, link_dead, state_dead, start)
-        link_dead[links] = False
-        state_dead[states] = False
-        lost = szab < n_left
-        return n_d, (not lost) and reached == n_left, lost, n_left - reached
+        return links.astype(np.int64), states.astype(np.int64), inputs.astype(np.int64)
 
-    base = outcome(np.zeros(0, np.int64))
+    def outcomes(groups: list[np.ndarray]
+                 ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """Per set: minimum inputs, controllable, rank lost, states unreached. The
+        matching sizes of every set come from one compiled call for A and one for
+        [A B] (a few alternating searches per set from the intact matchings)."""
+        g = len(groups)
+        lost = [lost_by(members) for members in groups]
+        lp, lf = _ragged([x[0] for x in lost])
+        sp_, sf = _ragged([x[1] for x in lost])
+        n_left = n - np.diff(sp_)
+        size_a = matching_sizes_after(a_ptr, a_idx, n, rmA, cmA, lp, lf, sp_, sf, sp_, sf)
+        n_d = np.where(n_left > 0, np.maximum(n_left - size_a, 1), 0)  # as _n_d
+        ctrl = np.ones(g, bool)
+        rank_lost = np.zeros(g, bool)
+        unreached = np.zeros(g, np.int64)
+        if not has:
+            return n_d, ctrl, rank_lost, unreached
+        ip, inf = _ragged([x[2] for x in lost])
+        dcp, dcf = _concat_ragged(sp_, sf, ip, n + inf)
+        size_ab = matching_sizes_after(ab_ptr, ab_idx, n_ab, rmAB, cmAB, lp, a_in_ab[lf],
+                                       sp_, sf, dcp, dcf)
+        rank_lost[:] = size_ab < n_left
+        for i, (links, states, inputs) in enumerate(lost):
+            link_dead[links] = True
+            state_dead[states] = True
+            live = np.setdiff1d(np.arange(m), inputs)
+            start = np.unique(np.concatenate(
+                [Bcsc.indices[Bcsc.indptr[j]:Bcsc.indptr[j + 1]] for j in live.tolist()]
+                or [empty])).astype(np.int64)
+            reached = _reached(out_ptr, out_idx, out_pos, link_dead, state_dead, start)
+            link_dead[links] = False
+            state_dead[states] = False
+            unreached[i] = n_left[i] - reached
+            ctrl[i] = (not rank_lost[i]) and reached == n_left[i]
+        return n_d, ctrl, rank_lost, unreached
+
+    b_nd, b_ctrl, _, _ = outcomes([np.zeros(0, np.int64)])
+    base = (int(b_nd[0]), bool(b_ctrl[0]))
     ok_before = base[1] if has else None
     single = np.zeros(sel.size, bool)
     if has and ok_before:
-        for j in np.unique(sets).tolist():
-            single[j] = not outcome(np.array([j], np.int64))[1]
-    s_n = sets.shape[0]
-    after = np.zeros(s_n, np.int64)
-    ctrl = np.ones(s_n, bool)
-    rank_lost = np.zeros(s_n, bool)
-    unreached = np.zeros(s_n, np.int64)
-    for s in range(s_n):
-        after[s], ctrl[s], rank_lost[s], unreached[s] = outcome(sets[s])
+        ones = np.unique(sets)
+        single[ones] = ~outcomes([np.array([j], np.int64) for j in ones.tolist()])[1]
+    after, ctrl, rank_lost, unreached = outcomes(list(sets))
     return ElementSetLosses(k=k, ids=tuple(table.ids[j] for j in sel.tolist()), sets=sets,
                             exact=exact, n_possible=total, seed=seed, n_states=n,
                             n_inputs=base[0], n_inputs_after=after, has_design=has,
