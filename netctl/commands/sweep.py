@@ -8,6 +8,7 @@ some loss breaks it (or it is not controllable to begin with); without ``--input
 from __future__ import annotations
 
 import argparse
+import time
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
@@ -289,19 +290,49 @@ def _grid_sweep(args: argparse.Namespace, system: Any) -> int:
     return 0 if ok else 1
 
 
+#: the clock that times a sampled N-k run (for the estimate of an exact one)
+_clock = time.perf_counter
+
+#: longest exact N-k run the text suggests (seconds at the measured rate)
+EXACT_RUN_LIMIT_S = 600.0
+
+
+def _duration(seconds: float) -> str:
+    """A rough duration in the largest fitting unit (seconds up to years)."""
+    for unit, size in (("years", 365.25 * 86400), ("days", 86400), ("hours", 3600),
+                       ("minutes", 60)):
+        if seconds >= 2 * size:
+            return f"{seconds / size:,.0f} {unit}"
+    return f"{max(seconds, 1):.0f} s"
+
+
+def _every_set_hint(n_possible: int, n_sets: int, elapsed: float) -> str:
+    """How long examining every set would take at the rate this run measured; the exact
+    run is suggested only when that is at most :data:`EXACT_RUN_LIMIT_S`."""
+    rate = n_sets / max(elapsed, 1e-6)
+    est = n_possible / rate
+    if est <= EXACT_RUN_LIMIT_S:
+        return (f"--samples {n_possible} examines every set, about {_duration(est)} at this "
+                f"run's rate")
+    speed = f"{rate:,.0f} sets/s" if rate >= 1 else f"{rate * 3600:,.0f} sets an hour"
+    return (f"examining every set would take about {_duration(est)} at this run's rate "
+            f"({speed}); a larger --samples narrows the estimate instead")
+
+
 def _grid_sets(args: argparse.Namespace, system: Any) -> int:
     """N-k of a grid (k = --k): every set of k elements when there are at most --samples,
     else --samples distinct sets drawn from --seed; labelled exact or sampled."""
     from netctl.errors import OptionError
     from netctl.structural.robustness.element_sets import element_set_losses
 
+    t0 = _clock()
     try:
         r = element_set_losses(system, k=args.k, samples=args.samples, seed=args.seed)
     except OptionError as exc:
         raise UsageError(f"--k {args.k}: {exc}") from None
     how = (f"all {r.n_sets} sets of {r.k} (exact)" if r.exact else
-           f"SAMPLED: {r.n_sets} of {r.n_possible} sets of {r.k} drawn at random (--seed "
-           f"{r.seed}; --samples {r.n_possible} or more examines every set)")
+           f"SAMPLED: {r.n_sets} of {r.n_possible:,} sets of {r.k} drawn at random "
+           f"(--seed {r.seed}); " + _every_set_hint(r.n_possible, r.n_sets, _clock() - t0))
     lines = [f"{args.file}: {system.n_states} states, model {system.model}",
              f"  N-{r.k} over {len(r.ids)} grid elements: {how}",
              f"  minimum inputs {r.n_inputs}; {r.costly.size} of the {r.n_sets} sets raise it"]
