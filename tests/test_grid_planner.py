@@ -391,6 +391,53 @@ def test_n2_hint_suggests_every_set_only_when_feasible(capsys, monkeypatch):
         "hour)" in out
 
 
+def test_drivers_sensors_whatif_name_grid_states_by_bus(capsys):
+    """Text names a grid's states as the planner does (bus and quantity); JSON keeps the
+    stable state names and adds each one's bus; a network without elements keeps its
+    state names in the text (wording: common practice, no source)."""
+    part = {"vel": "frequency", "pos": "angle"}
+    for verb, key, quantity in (("drivers", "drivers", "frequency"),
+                                ("sensors", "sensors", "angle")):
+        assert main([verb, ISLAND, "--json"]) == 0
+        d = json.loads(capsys.readouterr().out)
+        names = d[key]
+        buses = d[key[:-1] + "_buses"]
+        assert names and [n.split(":")[0] for n in names] == buses
+        assert {part[n.split(":")[1]] for n in names} == {quantity}
+        assert main([verb, ISLAND]) == 0
+        out = capsys.readouterr().out
+        said = ", ".join(f"bus {b} {part[n.split(':')[1]]}" for n, b in zip(names, buses))
+        assert f"({len(names)}): {said}" in out
+        assert ":vel" not in out.split("model second-order", 1)[1].split("Grid:")[0] \
+            .replace("frequency (vel)", "")
+    assert main(["whatif", ISLAND, "--remove-nodes", "1", "--json"]) == 0
+    w = json.loads(capsys.readouterr().out)
+    assert main(["whatif", ISLAND, "--remove-nodes", "1"]) == 0
+    out = capsys.readouterr().out
+    assert w["drivers_gained"] and w["drivers_lost"]
+    for n in w["drivers_gained"] + w["drivers_lost"]:
+        b, p = n.split(":")
+        assert f"bus {b} {part[p]}" in out and n not in out
+    assert main(["drivers", "networks/heating_loop.toml"]) == 0
+    out = capsys.readouterr().out
+    assert "driven states (5): fuel_valve, pipe_south" in out
+
+
+def test_check_fix_names_buses(tmp_path, capsys):
+    """Star 2 - 1 - 3 in the first-order model, input at bus 1: buses 2 and 3 compete for
+    one feeder (a dilation, Lin 1974), so one more input at bus 2 or 3 is the fix; the
+    text says "bus 3", the JSON keeps the state name "3"."""
+    f = _case(tmp_path, _row(1, 2, 0.1) + _row(1, 3, 0.1))
+    args = ["check", str(f), "--inputs", "1", "--model", "first-order"]
+    assert main(args + ["--json"]) == 1
+    d = json.loads(capsys.readouterr().out)
+    fix = d["fix"]["states"]
+    assert not d["controllable"] and len(fix) == 1 and fix[0] in ("2", "3")
+    assert main(args) == 1
+    out = capsys.readouterr().out
+    assert f"smallest fix: add 1 dedicated inputs at bus {fix[0]}\n" in out
+
+
 # ---------------------------------------------------------------- target placement
 def test_place_targets_best_effort_never_optimal(tmp_path, capsys):
     """x0 -> x1, x2 -> x1, x3 -> x1; only x0 may host an actuator; targets x1, x2. x2 is

@@ -38,6 +38,8 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
 def _cmd_check(args: argparse.Namespace) -> int:
     from netctl.structural import controllability, observability
 
+    from netctl.structural.branches import state_labels  # a grid's states by bus
+
     system = load_system(args)
     check_inputs = args.inputs is not None
     check_outputs = args.outputs is not None
@@ -76,7 +78,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
         lines.extend(f"    - {cause}" for cause in r.causes())
         if not r.controllable:
             lines.append(f"  smallest fix: add {r.n_missing_inputs} dedicated {what} at "
-                         + names_line(r.names(r.fix[:SHOWN]), total=r.fix.size))
+                         + names_line(state_labels(system, r.fix[:SHOWN]), total=r.fix.size))
     lines.append("  " + str(caution(args)))
 
     def full() -> dict[str, Any]:

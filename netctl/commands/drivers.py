@@ -37,6 +37,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
 
 def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
     from netctl.structural import minimum_inputs, minimum_sensors
+    from netctl.structural.branches import state_labels  # a grid's states by bus
 
     system = load_system(args)
     with analysis_step(args, system, f"minimum {'sensors' if sensors else 'inputs'}"):
@@ -44,7 +45,14 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
                                                                   dedicated=args.dedicated)
 
     def full() -> dict[str, Any]:
-        return {**design.to_dict(), "file": args.file}
+        d = {**design.to_dict(), "file": args.file}
+        if system.elements is not None:  # a grid: each driven (read) state's bus
+            from netctl.structural.branches import state_buses
+
+            at = state_buses(system)[design.drivers]
+            d["sensor_buses" if sensors else "driver_buses"] = [
+                system.elements.node_names[int(b)] if b >= 0 else None for b in at.tolist()]
+        return d
 
     t = terms(args)
     noun = "sensors" if sensors else "inputs"
@@ -55,7 +63,8 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
              + (f" ({t.fraction} {design.n_inputs / design.n_states:.3g})"
                 if design.n_states else ""),
              f"  {where} ({design.drivers.size}): "
-             + names_line(design.names(design.drivers[:SHOWN]), total=design.drivers.size)]
+             + names_line(state_labels(system, design.drivers[:SHOWN]),
+                          total=design.drivers.size)]
     if not args.dedicated and design.n_inputs < design.drivers.size:
         lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which {t.states} "
                      f"each {noun[:-1]} {'reads' if sensors else 'acts on'}")

@@ -132,8 +132,18 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     if elements:
         lines.insert(2, f"  elements out of service ({len(elements)}): {', '.join(elements)}")
 
+    if system.elements is not None:  # a grid's states in a planner's words
+        from netctl.structural.branches import state_labels
+
+        said = dict(zip(system.state_names, state_labels(system, range(system.n_states))))
+    else:
+        said = {}
+
+    def word(name: str) -> str:
+        return said.get(name, name)
+
     def some(names: Any) -> str:
-        names = list(names)
+        names = [word(x) for x in names]
         if not names:
             return "0"
         return f"{len(names)} ({', '.join(names[:10])}{', ...' if len(names) > 10 else ''})"
@@ -141,7 +151,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     lines.append(f"  drivers gained: {some(w.drivers_gained)}; lost: {some(w.drivers_lost)} "
                  "(one minimum set each)")
     if w.role_changes:
-        ch = [f"{k} {a}->{b}" for k, (a, b) in w.role_changes.items()]
+        ch = [f"{word(k)} {a}->{b}" for k, (a, b) in w.role_changes.items()]
         lines.append(f"  state roles changed ({len(ch)}): {', '.join(ch[:15])}"
                      + (" ..." if len(ch) > 15 else ""))
     if w.link_role_changes:
@@ -150,7 +160,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
         for r in w.reasons_after:
             lines.append(f"    - {r}")
         lines.append(f"  smallest fix after the change: add dedicated inputs at "
-                     f"{', '.join(w.fix_after)}")
+                     f"{', '.join(word(x) for x in w.fix_after)}")
     if w.breaks_design:
         lines.append("  the change BREAKS the given design")
     lines.append("  " + CAUTION)
