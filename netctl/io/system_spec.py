@@ -281,7 +281,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     >>> spec.ties
     (('supply', 'pump', 'storage', 'tank', 'state'),)
     """
-    key = _file_key(path)  # before the read: a file changed meanwhile is parsed again
+    file_key = _file_key(path)  # before the read: a file changed meanwhile is parsed again
     doc = _Doc(path)
     data = doc.data
     _check_keys(doc, data, _SECTIONS, "the top level")
@@ -326,8 +326,8 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
             if not special:
                 attrs[s] = row
                 continue
-            for k in ("self", "disturbance"):  # not node-table attributes
-                row.pop(k, None)
+            for drop in ("self", "disturbance"):  # not node-table attributes
+                row.pop(drop, None)
             items = [(k, a[k]) for k in a if k in special]
         else:
             items = list(a.items())
@@ -640,8 +640,8 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
                  else set(system.state_names))
         system = system._replace(elements=read_elements(doc, data["elements"], known))
     _LAST_TERMS.clear()
-    if key is not None:
-        _LAST_TERMS[key] = terms
+    if file_key is not None:
+        _LAST_TERMS[file_key] = terms
     return SystemSpec(path=str(path), name=name, description=description, system=system,
                       terms=terms,
                       inputs=inputs, outputs=outputs, subsystems=subsystems, ties=tuple(ties),
