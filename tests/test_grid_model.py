@@ -32,7 +32,7 @@ def test_grid_defaults_to_swing_model(tmp_path, capsys):
     assert main(["drivers", str(f)]) == 0
     out = capsys.readouterr()
     assert "6 states, model second-order" in out.out
-    assert "driven states (1): 1:vel" in out.out  # a generator bus, its frequency state
+    assert "driven states (1): bus 1 frequency" in out.out  # a generator bus, its frequency
     # the usual caution for grids (issue 25): a linearized model, not operating decisions
     assert "Grid: results concern a linearized model of the grid, not operating " \
         "decisions" in out.out
