@@ -11,7 +11,7 @@ from types import ModuleType
 
 from netctl.errors import MissingExtraError
 
-__all__ = ["EXTRAS", "require"]
+__all__ = ["EXTRAS", "require", "release"]
 
 #: module -> (distribution on PyPI, netctl extra that installs it)
 EXTRAS: dict[str, tuple[str, str]] = {
@@ -49,3 +49,13 @@ def require(module: str, purpose: str) -> ModuleType:
                else f"pip install {dist}")
         raise MissingExtraError(f"{purpose} needs the optional package {dist!r}, which is "
                                 f"not installed: {how}.") from None
+
+
+def release(text: str) -> tuple[int, ...]:
+    """The major and minor numbers of a version string (``"1.2.3rc1"`` -> ``(1, 2)``),
+    for comparing an installed library with the oldest release an adapter supports."""
+    out = []
+    for part in text.split(".")[:2]:
+        digits = "".join(ch for ch in part if ch.isdigit())
+        out.append(int(digits) if digits else 0)
+    return tuple(out)

@@ -31,7 +31,7 @@ from typing import Any
 
 import numpy as np
 
-from netctl._extras import require
+from netctl._extras import release, require
 from netctl.errors import InvalidSystemError
 from netctl.system import StructuredSystem
 
@@ -42,14 +42,6 @@ MIN_PYPSA: tuple[int, int] = (0, 25)
 _TABLES = ("buses", "lines", "links", "transformers", "generators", "loads")
 
 
-def _version(text: str) -> tuple[int, ...]:
-    out = []
-    for part in text.split(".")[:2]:
-        digits = "".join(ch for ch in part if ch.isdigit())
-        out.append(int(digits) if digits else 0)
-    return tuple(out)
-
-
 def _check(network: Any) -> None:
     pypsa = require("pypsa", "from_pypsa()")
     if isinstance(network, type) or not all(hasattr(network, t) for t in _TABLES):
@@ -58,7 +50,7 @@ def _check(network: Any) -> None:
             f"{type(network).__name__}; for a pandapower net use "
             "netctl.io.power_grid.from_pandapower.")
     found = str(getattr(pypsa, "__version__", "0"))
-    if _version(found) < MIN_PYPSA:
+    if release(found) < MIN_PYPSA:
         raise InvalidSystemError(
             f"from_pypsa needs PyPSA >= {'.'.join(map(str, MIN_PYPSA))}, found {found}: "
             'pip install -U "netctl[pypsa]".')

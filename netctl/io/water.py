@@ -30,7 +30,7 @@ from typing import Any
 
 import numpy as np
 
-from netctl._extras import require
+from netctl._extras import release, require
 from netctl.errors import InvalidSystemError
 from netctl.system import StructuredSystem
 
@@ -38,14 +38,6 @@ __all__ = ["MIN_WNTR", "from_wntr"]
 
 #: Oldest WNTR release whose model API this adapter is written against.
 MIN_WNTR: tuple[int, int] = (1, 0)
-
-
-def _version(text: str) -> tuple[int, ...]:
-    out = []
-    for part in text.split(".")[:2]:
-        digits = "".join(ch for ch in part if ch.isdigit())
-        out.append(int(digits) if digits else 0)
-    return tuple(out)
 
 
 def _check(wn: Any) -> None:
@@ -57,7 +49,7 @@ def _check(wn: Any) -> None:
             f"from_wntr expected a wntr WaterNetworkModel object "
             f"(wntr.network.WaterNetworkModel('network.inp')), found {type(wn).__name__}.")
     found = str(getattr(wntr, "__version__", "0"))
-    if _version(found) < MIN_WNTR:
+    if release(found) < MIN_WNTR:
         raise InvalidSystemError(
             f"from_wntr needs WNTR >= {'.'.join(map(str, MIN_WNTR))}, found {found}: "
             'pip install -U "netctl[water]".')
