@@ -228,8 +228,8 @@ _SUBMODULES = frozenset({"cli", "commands", "ensemble", "errors", "generate", "g
 #: analyses whose results remember the system they were computed on (for the small map
 #: of the notebook view, :meth:`netctl.tables.ResultTables.with_system`)
 _KEEP_SYSTEM = frozenset({
-    "compare_to_null", "controllability", "decoupling", "energy", "exact_controllability",
-    "fixed_modes", "link_roles", "minimum_inputs", "minimum_sensors", "minimum_strong_inputs",
+    "compare_to_null", "contingency_sweep", "controllability", "decoupling", "energy",
+    "exact_controllability", "fixed_modes", "link_roles", "minimum_inputs", "minimum_sensors", "minimum_strong_inputs",
     "modal_controllability", "node_roles", "observability", "place_inputs", "place_sensors",
     "place_target_inputs", "strong_controllability", "summarize", "transfer_rank", "verify"})
 

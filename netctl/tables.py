@@ -30,6 +30,9 @@ A result class only *declares* what its rows are, through three class attributes
     Fields with one value per row; ``_frame_labels`` maps a field of integer codes to the
     labels of the codes (``role`` -> ``("critical", "intermittent", "redundant")``).
 
+A result that holds its system as a field (a before/after comparison holds both) names
+that field in ``_map_system_field``; its notebook map needs no ``with_system``.
+
 The scalar findings of ``to_dict()`` go to ``DataFrame.attrs`` of row tables.
 :func:`result_columns` gives the same columns as plain lists and arrays, without pandas
 (the CSV and Parquet writers in :mod:`netctl.io.tables` use it).
@@ -68,6 +71,7 @@ class ResultTables:
     _frame_sets: tuple[str, ...] = ()
     _frame_values: tuple[str, ...] = ()
     _frame_labels: Mapping[str, Sequence[str]] = {}
+    _map_system_field: str = ""
 
     def to_frame(self) -> Any:
         """The result as a pandas DataFrame (needs the ``frames`` extra: pandas).
@@ -108,7 +112,11 @@ def attach_system(result: Any, system: Any) -> None:
 
 def system_of(result: Any) -> Any:
     """The system ``result`` was computed on, or ``None`` when it does not know."""
-    return getattr(result, "__dict__", {}).get(_SYSTEM_ATTR)
+    kept = getattr(result, "__dict__", {}).get(_SYSTEM_ATTR)
+    field = getattr(result, "_map_system_field", "")
+    if kept is None and field:
+        return getattr(result, field, None)
+    return kept
 
 
 def _to_dict(result: Any) -> dict[str, Any]:

@@ -2,20 +2,29 @@
 
 :func:`result_map_html` draws the system a result was computed on, with the roles the
 result found (driver nodes or sensor sites of a design, states no input reaches, the
-smallest fix, a dilation, node roles, critical links...) and the system's own inputs,
-outputs and disturbances, in the marks of the static maps (:mod:`netctl.viz.style`:
-same shapes, fills and colours). States sit at the node table's ``x``/``y`` when the
-system has them, else on a quick force-directed layout.
+smallest fix, a dilation, node roles, critical links, a placement's chosen and candidate
+sites, a decoupling bottleneck, the losses a contingency sweep found costly...) and the
+system's own inputs, outputs and disturbances, in the marks of the static maps
+(:mod:`netctl.viz.style`: same shapes, fills and colours; which result marks what is
+:mod:`netctl.viz.small_marks`). A before/after comparison (:func:`netctl.what_if`) is
+drawn on the union of the two networks, with the added and removed links and states and
+the driver nodes before and after. States sit at the node table's ``x``/``y`` when the
+system has them, else on a quick force-directed layout. A link ``u -> v`` (``u``
+influences ``v``) that has no partner ``v -> u`` ends in an arrowhead at ``v``; a pair of
+links both ways is one line without heads.
 
-The SVG is self-contained (no script, no external reference, no element ids, so many maps
-can share a page) and well-formed XML; every name is escaped and shown as text (a
-``<title>`` tooltip, and a label on small maps), never as markup. Above
+The SVG is self-contained (no script, no external reference) and well-formed XML. Its
+only element id is the arrowhead's ``<marker>`` (one definition, used by every
+one-way link), named after a hash of what the map draws: maps on one page never clash,
+and identical maps share an identical definition. Every name is escaped and shown as
+text (a ``<title>`` tooltip, and a label on small maps), never as markup. Above
 :data:`SMALL_MAP_STATES` states nothing is drawn: a note gives the counts of each mark
 instead, so showing a result never stalls a notebook.
 """
 
 from __future__ import annotations
 
+import hashlib
 import html
 import re
 import warnings
@@ -24,14 +33,19 @@ from typing import Any
 
 import numpy as np
 
+from netctl.viz.small_marks import Lines, Rows, change_view, result_lines, result_marks
 from netctl.viz.style import INK, MARKS, PAPER, Mark
 
-__all__ = ["SMALL_MAP_LINKS", "SMALL_MAP_STATES", "result_map_html", "result_marks"]
+__all__ = ["SMALL_MAP_HEADS", "SMALL_MAP_LINKS", "SMALL_MAP_STATES", "result_map_html",
+           "result_marks"]
 
 #: Above this many states the notebook view gives counts instead of a map.
 SMALL_MAP_STATES = 2000
 #: Above this many (undirected) links the map shows the states and marks only.
 SMALL_MAP_LINKS = 8000
+#: Above this many one-way links they are drawn without arrowheads (heads would hide
+#: the map; directions are in netctl.viz.draw_map and ``netctl map``).
+SMALL_MAP_HEADS = 1500
 #: Up to this many states, names are written beside the states.
 _LABELS_UP_TO = 40
 #: Width of the drawing area (px); the height follows the aspect of the positions.
@@ -46,8 +60,11 @@ _NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
 
 #: Drawing order of point marks (later on top), as in :func:`netctl.viz.draw_map`.
 _POINT_ORDER = ("role_critical", "role_intermittent", "role_redundant", "disturbed",
-                "unreached", "dilation", "fragile", "driver", "sensor", "suggested",
-                "suggested_sensor")
+                "unreached", "dilation", "bottleneck", "costly", "fragile", "candidate",
+                "candidate_sensor", "removed_state", "former_driver", "driver", "sensor",
+                "suggested", "suggested_sensor")
+#: Drawing order of highlighted links (later on top).
+_LINE_ORDER = ("critical_link", "costly_link", "fragile_link", "removed_link", "added_link")
 
 
 def _text(value: object) -> str:
@@ -55,79 +72,10 @@ def _text(value: object) -> str:
     return html.escape(_NOT_XML.sub("\ufffd", str(value)), quote=True)
 
 
-def _idx(value: Any) -> np.ndarray | None:
-    if value is None:
-        return None
-    arr = np.asarray(value)
-    if arr.dtype.kind not in "iu" or arr.ndim != 1:
-        return None
-    return np.unique(arr.astype(np.int64))
-
-
-def result_marks(result: Any, system: Any) -> list[tuple[str, str, np.ndarray]]:
-    """What the small map marks: ``(mark, legend text, sorted state indices)`` rows.
-
-    The result's own findings come first; the system's own inputs, outputs and
-    disturbances are shown where the result does not replace them (a minimum design
-    replaces the given inputs; a sensor design the given outputs). Rows with no state
-    are left out.
-    """
-    n = int(system.n_states)
-    kind = str(getattr(result, "kind", "inputs"))
-    sensing = kind in ("sensors", "observability")
-    rows: list[tuple[str, str, np.ndarray]] = []
-
-    def add(key: str, label: str, idx: np.ndarray | None) -> None:
-        if idx is not None and idx.size:
-            rows.append((key, label, idx[(idx >= 0) & (idx < n)]))
-
-    design = _idx(getattr(result, "drivers", None))
-    if design is None:
-        design = _idx(getattr(result, "sites", None))
-    if design is not None:
-        add("sensor" if sensing else "driver",
-            "sensor site of this design" if sensing else "driver node of this design", design)
-    if getattr(result, "_frame_rows", "") == "states" and hasattr(result, "critical"):
-        for key, field in (("role_critical", "critical"), ("role_intermittent", "intermittent"),
-                           ("role_redundant", "redundant")):
-            add(key, MARKS[key].label, _idx(getattr(result, field, None)))
-    what = "output sees" if sensing else "input reaches"
-    add("unreached", f"no {what} this state", _idx(getattr(result, "inaccessible", None)))
-    add("unreached", "not forced by the inputs (strong structural test)",
-        _idx(getattr(result, "unforced", None)))
-    if hasattr(result, "unclosed_states"):
-        add("unreached", "on a fixed mode: no station's loop closes it",
-            _idx(result.unclosed_states))
-    add("suggested_sensor" if sensing else "suggested",
-        MARKS["suggested_sensor" if sensing else "suggested"].label,
-        _idx(getattr(result, "fix", None)))
-    dilation = getattr(result, "dilation", None)
-    if dilation is not None and hasattr(dilation, "states"):
-        add("dilation", MARKS["dilation"].label, _idx(dilation.states))
-    if design is None or sensing:
-        add("driver", "driver node: an input of the system acts here",
-            _idx(system.driven_states()))
-    if design is None or not sensing:
-        add("sensor", "sensor site: an output of the system reads here",
-            _idx(system.measured_states()))
-    if system.n_disturbances:
-        add("disturbed", MARKS["disturbed"].label, _idx(system.disturbed_states()))
-    return rows
-
-
-def _critical_links(result: Any) -> tuple[np.ndarray, np.ndarray] | None:
-    if getattr(result, "_frame_rows", "") != "links":
-        return None
-    crit = _idx(getattr(result, "critical", None))
-    if crit is None or not crit.size:
-        return None
-    return (np.asarray(result.sources, np.int64)[crit],
-            np.asarray(result.targets, np.int64)[crit])
-
-
-def _positions(result: Any, system: Any) -> tuple[np.ndarray, str]:
+def _positions(result: Any, system: Any, key: Any) -> tuple[np.ndarray, str]:
+    """Positions of ``system``'s states, cached on ``result`` under ``key`` (a system)."""
     cache = getattr(result, "__dict__", {}).get(_CACHE_ATTR)
-    if cache is not None and cache[0] is system:
+    if cache is not None and cache[0] is key:
         return cache[1], cache[2]
     from netctl.viz.layout import node_positions
 
@@ -136,7 +84,7 @@ def _positions(result: Any, system: Any) -> tuple[np.ndarray, str]:
         pos, how = node_positions(system, quick=True)
     pos = np.asarray(pos, dtype=np.float64).reshape(system.n_states, 2)
     try:
-        object.__setattr__(result, _CACHE_ATTR, (system, pos, how))
+        object.__setattr__(result, _CACHE_ATTR, (key, pos, how))
     except (AttributeError, TypeError):  # a result without __dict__: no cache
         pass
     return pos, how
@@ -163,6 +111,13 @@ def _shape(mk: Mark, r: float) -> str:
         return f"M{-h:.1f} {-h:.1f}H{h:.1f}V{h:.1f}H{-h:.1f}Z" + cross
     if m == "D":
         return f"M0 {-r:.1f}L{r:.1f} 0L0 {r:.1f}L{-r:.1f} 0Z"
+    if m in ("h", "p"):  # hexagon (pointy top), pentagon
+        k = 6 if m == "h" else 5
+        pts = [(r * np.sin(a), -r * np.cos(a)) for a in np.arange(k) * 2 * np.pi / k]
+        return "M" + "L".join(f"{x:.1f} {y:.1f}" for x, y in pts) + "Z"
+    if m == "X":  # a cross drawn as two strokes
+        h = 0.75 * r
+        return f"M{-h:.1f} {-h:.1f}L{h:.1f} {h:.1f}M{h:.1f} {-h:.1f}L{-h:.1f} {h:.1f}"
     if m == "8":  # octagon
         pts = [(r * np.cos(a), r * np.sin(a)) for a in np.pi / 8 + np.arange(8) * np.pi / 4]
         return "M" + "L".join(f"{x:.1f} {y:.1f}" for x, y in pts) + "Z"
@@ -170,7 +125,8 @@ def _shape(mk: Mark, r: float) -> str:
     return f"M{-r:.1f} 0A{r:.1f} {r:.1f} 0 1 0 {r:.1f} 0A{r:.1f} {r:.1f} 0 1 0 {-r:.1f} 0Z"
 
 
-_DASH = {"dashed": ' stroke-dasharray="3 2"', "dotted": ' stroke-dasharray="1 2"'}
+_DASH = {"dashed": ' stroke-dasharray="3 2"', "dotted": ' stroke-dasharray="1 2"',
+         "dashdot": ' stroke-dasharray="5 2 1 2"'}
 
 
 def _style(mk: Mark) -> str:
@@ -185,6 +141,8 @@ def _radius(key: str, n: int) -> float:
     """Mark radius (px): flagged marks a fixed size, plain and role circles shrink with n."""
     if key == "fragile":
         return 8.5
+    if key.startswith("candidate"):
+        return 4.5
     if MARKS[key].size > 2.0:  # drivers, sensors, trouble spots: readable on any map
         return 6.5
     base = float(np.clip(60.0 / np.sqrt(max(n, 1)), 1.5, 5.0))
@@ -192,39 +150,66 @@ def _radius(key: str, n: int) -> float:
 
 
 def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STATES,
-                    max_links: int = SMALL_MAP_LINKS) -> str:
+                    max_links: int = SMALL_MAP_LINKS, max_heads: int = SMALL_MAP_HEADS) -> str:
     """A small inline SVG map of ``system`` with the roles ``result`` found.
 
     Parameters
     ----------
     result : a result object (any of netctl's result classes)
     system : StructuredSystem
-        The system the result was computed on.
+        The system the result was computed on (a before/after comparison carries its
+        own two systems and draws their union instead).
     max_states : int
         Above this many states, a note with the counts of each mark instead of a map.
     max_links : int
         Above this many links, the links are not drawn (the states and marks are).
+    max_heads : int
+        Above this many one-way links, they are drawn without arrowheads.
 
     Returns
     -------
     str
-        An ``<svg>`` element (well-formed XML, no script, no ids) followed by nothing
-        else, or a ``<p>`` note.
+        An ``<svg>`` element (well-formed XML, no script, one id: the arrowhead marker)
+        followed by nothing else, or a ``<p>`` note.
 
     Notes
     -----
     Marks follow :mod:`netctl.viz.style`. Every mark is one ``<path>`` with class
     ``mark <name>`` placed by ``transform="translate(x y)"`` and holding a ``<title>``
-    with the state's name; the legend is the ``<g class="legend">`` group. Positions:
+    with the state's name; the legend is the ``<g class="legend">`` group. Links: pairs
+    of states linked both ways are one ``<path class="links">`` without heads; each
+    one-way link ``u -> v`` is a ``<path>`` from ``u`` to the edge of ``v``'s mark in the
+    group ``<g class="arrows">``, whose ``marker-end`` is the one arrowhead definition;
+    highlighted links are one ``<path class="NAME">`` a kind (``critical_link``,
+    ``fragile_link``, ``costly_link``, ``added_link``, ``removed_link``). Positions:
     the node table's coordinates (x to the right, y up), else a force-directed layout of
     at most 50 iterations (Fruchterman & Reingold 1991), cached on the result. Cost:
     linear in states and links.
     """
+    key = system
+    if hasattr(result, "added_links") and hasattr(result, "before"):  # what_if
+        key = result.before
+        if int(key.n_states) + len(getattr(result, "new_states", ())) > max_states:
+            system, rows, lines = key, [], []
+        else:
+            system, rows, lines = change_view(result)
+    else:
+        rows, lines = result_marks(result, system), result_lines(result)
     n = int(system.n_states)
-    rows = result_marks(result, system)
     if n > max_states:
         return _counts_note(rows, n, max_states)
-    pos, how = _positions(result, system)
+    pos, how = _positions(result, system, key)
+    return _draw(system, rows, lines, pos, how, max_links, max_heads)
+
+
+def _segments(px: np.ndarray, py: np.ndarray, u: np.ndarray, v: np.ndarray) -> str:
+    return "".join(f"M{px[i]:.1f} {py[i]:.1f}L{px[j]:.1f} {py[j]:.1f}"
+                   for i, j in zip(u.tolist(), v.tolist()) if i != j)
+
+
+def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
+          max_links: int, max_heads: int) -> str:
+    n = int(system.n_states)
     # fit into the drawing box, y up (as on a map), aspect kept
     if n:
         lo, hi = pos.min(axis=0), pos.max(axis=0)
@@ -243,35 +228,73 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
     py = top + (hi[1] - pos[:, 1]) * scale + (inner_h - span[1] * scale) / 2
     names = system.state_names
     parts: list[str] = []
+    defs = ""
+    r0 = _radius("state", n)
+    # how far a head stops short of its target's centre: the largest mark drawn there
+    reach = np.full(n, r0 + 1.0)
+    for key, _, idx in rows:
+        if MARKS[key].marker is not None and key not in ("fragile", "bottleneck", "costly"):
+            reach[idx] = np.maximum(reach[idx], _radius(key, n) + 1.0)
 
-    # links: one path for all plain links (each unordered pair once, no self-loops)
+    # links: pairs linked both ways once, plain; one-way links with an arrowhead
     src, dst = system.edges()
     keep = src != dst
-    a, b = np.minimum(src[keep], dst[keep]), np.maximum(src[keep], dst[keep])
-    pairs = np.unique(a.astype(np.int64) * max(n, 1) + b) if a.size else np.zeros(0, np.int64)
+    src, dst = src[keep].astype(np.int64), dst[keep].astype(np.int64)
+    N = max(n, 1)
+    fwd = src * N + dst
+    both = np.isin(dst * N + src, fwd)
+    a, b = np.minimum(src, dst), np.maximum(src, dst)
+    pairs = np.unique(a * N + b) if a.size else np.zeros(0, np.int64)
     links_note = ""
-    if pairs.size > max_links:
+    links_drawn = pairs.size <= max_links
+    if not links_drawn:
         links_note = f"; {pairs.size:,} links not drawn (more than {max_links:,})"
     elif pairs.size:
-        u, v = pairs // max(n, 1), pairs % max(n, 1)
         mk = MARKS["link"]
-        d = "".join(f"M{px[i]:.1f} {py[i]:.1f}L{px[j]:.1f} {py[j]:.1f}"
-                    for i, j in zip(u.tolist(), v.tolist()))
         alpha = float(np.clip(12.0 / np.sqrt(pairs.size), 0.2, 0.9))
-        parts.append(f'<path class="links" d="{d}" fill="none" stroke="{mk.edge}" '
-                     f'stroke-width="{mk.linewidth:.1f}" stroke-opacity="{alpha:.2f}"/>')
-    crit = _critical_links(result)
+        pen = (f'fill="none" stroke="{mk.edge}" stroke-width="{mk.linewidth:.1f}" '
+               f'stroke-opacity="{alpha:.2f}"')
+        one = np.flatnonzero(~both)
+        heads = 0 < one.size <= max_heads
+        plain = np.unique(a[both] * N + b[both]) if heads else pairs
+        if plain.size:
+            parts.append(f'<path class="links" d="{_segments(px, py, plain // N, plain % N)}" '
+                         f"{pen}/>")
+        if heads:
+            u, v = src[one], dst[one]
+            dx, dy = px[v] - px[u], py[v] - py[u]
+            length = np.hypot(dx, dy)
+            cut = np.where(length > 0, np.minimum(reach[v], 0.5 * length) / np.maximum(
+                length, 1e-9), 0.0)
+            ex, ey = px[v] - dx * cut, py[v] - dy * cut
+            arrows = "".join(f'<path d="M{px[i]:.1f} {py[i]:.1f}L{x:.1f} {y:.1f}"/>'
+                             for i, x, y in zip(u.tolist(), ex.tolist(), ey.tolist()))
+            size = 6.0 if n <= 200 else 4.5
+            mid = "netctl-head-" + hashlib.sha1(arrows.encode("utf-8")).hexdigest()[:12]
+            defs = (f'<defs><marker id="{mid}" viewBox="0 0 10 10" refX="9" refY="5" '
+                    f'markerWidth="{size:.1f}" markerHeight="{size:.1f}" '
+                    'markerUnits="userSpaceOnUse" orient="auto">'
+                    f'<path d="M0 1L10 5L0 9Z" fill="{MARKS["state"].edge}"/></marker></defs>')
+            parts.append(f'<g class="arrows" {pen} marker-end="url(#{mid})">{arrows}</g>')
+        elif one.size:
+            links_note = (f"; {one.size:,} one-way links drawn without arrowheads (more "
+                          f"than {max_heads:,})")
     legend_keys: list[tuple[str, str]] = []
-    if crit is not None and not links_note:
-        mk = MARKS["critical_link"]
-        d = "".join(f"M{px[i]:.1f} {py[i]:.1f}L{px[j]:.1f} {py[j]:.1f}"
-                    for i, j in zip(crit[0].tolist(), crit[1].tolist()) if i != j)
-        parts.append(f'<path class="critical_link" d="{d}" fill="none" stroke="{mk.edge}" '
-                     f'stroke-width="2.5" stroke-opacity="0.8"/>')
-        legend_keys.append(("critical_link", mk.label))
+    if links_drawn:
+        by_line = {key: (label, s, t) for key, label, s, t in lines}
+        for key in _LINE_ORDER:
+            if key not in by_line:
+                continue
+            label, s, t = by_line[key]
+            mk = MARKS[key]
+            width = 2.5 if key == "critical_link" else mk.linewidth
+            dash = _DASH.get(mk.linestyle, "")
+            parts.append(f'<path class="{key}" d="{_segments(px, py, s, t)}" fill="none" '
+                         f'stroke="{mk.edge}" stroke-width="{width:.1f}" '
+                         f'stroke-opacity="0.8" stroke-linecap="round"{dash}/>')
+            legend_keys.append((key, label))
 
     # plain states, then the marks in the static maps' order
-    r0 = _radius("state", n)
     st = MARKS["state"]
     circles = []
     for i in range(n):
@@ -308,8 +331,9 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
     for key, label in legend_keys:
         mk = MARKS[key]
         if mk.marker is None:
+            dash = _DASH.get(mk.linestyle, "")
             sample = (f'<path d="M{_PAD - 6:.1f} {y + 6:.1f}H{_PAD + 6:.1f}" '
-                      f'stroke="{mk.edge}" stroke-width="2.5"/>')
+                      f'stroke="{mk.edge}" stroke-width="2.5"{dash}/>')
         else:
             sample = (f'<path transform="translate({_PAD:.1f} {y + 6:.1f})" '
                       f'd="{_shape(mk, 5.0)}" {_style(mk)}/>')
@@ -329,4 +353,4 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
             f'width="{_WIDTH:.0f}" height="{total_h:.0f}" '
             f'viewBox="0 0 {_WIDTH:.0f} {total_h:.0f}" role="img" '
             f'style="background:{PAPER}"><title>network map ({n:,} states)</title>'
-            f'{"".join(parts)}</svg>')
+            f'{defs}{"".join(parts)}</svg>')

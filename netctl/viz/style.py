@@ -33,6 +33,20 @@ mark                   shape / fill                meaning
                        solid fill
 ``suggested_sensor``   downward triangle, hollow,  add a dedicated output here (smallest
                        dashed outline              fix of observability)
+``candidate``          small upward triangle,      an actuator could go here (a placement's
+                       hollow, thin solid outline  candidate site, not chosen)
+``candidate_sensor``   small downward triangle,    a sensor could go here (not chosen)
+                       hollow, thin solid outline
+``bottleneck``         hexagon, hollow, heavy      every disturbance path to the outputs
+                       outline                     crosses these states (decoupling)
+``former_driver``      upward triangle, pale fill  a driver node before a change, not after
+``removed_state``      heavy cross                 a state a change removes
+``costly``             pentagon, hollow, dashed    its loss alone raises the minimum number
+                       outline                     of inputs (does not break the design)
+``added_link``         heavy solid line            link a change adds
+``removed_link``       heavy dotted line           link a change removes
+``fragile_link``       heavy solid violet line     its loss alone breaks the design
+``costly_link``        dash-dot violet line        its loss alone raises the minimum inputs
 =====================  ==========================  =========================================
 """
 
@@ -113,6 +127,29 @@ MARKS: dict[str, Mark] = {
                    linewidth=0.8, size=3.2, zorder=6),
     "suggested_sensor": Mark("add a dedicated output here (smallest fix)", "v", "none", _BLUE,
                              linestyle="dashed", linewidth=1.6, size=5.0, zorder=6.5),
+    # placements: where an actuator (sensor) could go; the chosen ones are drivers (sensors)
+    "candidate": Mark("candidate site (could take an actuator; not chosen)", "^", "none",
+                      _VERMILION, linewidth=0.9, size=1.8, zorder=5.5),
+    "candidate_sensor": Mark("candidate site (could take a sensor; not chosen)", "v", "none",
+                             _BLUE, linewidth=0.9, size=1.8, zorder=5.5),
+    # decoupling: the states every disturbance path to the outputs crosses
+    "bottleneck": Mark("bottleneck: every disturbance path to the outputs crosses it", "h",
+                       "none", _WINE, linewidth=2.2, size=4.0, zorder=5.2),
+    # changes (what-if) and single losses (contingency sweeps)
+    "former_driver": Mark("driver node before the change only", "^", "#F2F2F2", _VERMILION,
+                          linewidth=1.2, size=3.2, zorder=5.9),
+    "removed_state": Mark("state removed by the change", "X", "none", INK, linewidth=1.6,
+                          size=3.0, zorder=5.7),
+    "costly": Mark("its loss alone raises the minimum number of inputs", "p", "none",
+                   _VIOLET, linestyle="dashed", linewidth=1.6, size=4.0, zorder=5.6),
+    "added_link": Mark("link added by the change", None, _TEAL, _TEAL, linewidth=2.2,
+                       zorder=2.4),
+    "removed_link": Mark("link removed by the change", None, _VERMILION, _VERMILION,
+                         linestyle="dotted", linewidth=2.2, zorder=2.4),
+    "fragile_link": Mark("its loss alone breaks the design", None, _VIOLET, _VIOLET,
+                         linewidth=3.0, zorder=2.5),
+    "costly_link": Mark("its loss alone raises the minimum number of inputs", None, _VIOLET,
+                        _VIOLET, linestyle="dashdot", linewidth=2.0, zorder=2.4),
 }
 
 #: Colours for data series in charts (line charts also vary marker and line style).

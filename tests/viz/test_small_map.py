@@ -176,9 +176,10 @@ def test_large_systems_get_counts_not_a_drawing():
     assert "<svg" not in result_map_html(r, small, max_states=3)
     svg = _svg(result_map_html(r, small, max_links=2))
     assert svg.find(f"{SVG}path[@class='links']") is None
+    assert svg.find(f"{SVG}g[@class='arrows']") is None
     assert len(_marks(svg, "driver")) == 1
-    svg = _svg(result_map_html(r, small))
-    assert svg.find(f"{SVG}path[@class='links']") is not None
+    svg = _svg(result_map_html(r, small))  # a one-way path: every link has its head
+    assert len(svg.find(f"{SVG}g[@class='arrows']")) == 3
 
 
 def test_results_without_a_system_still_render(loop):

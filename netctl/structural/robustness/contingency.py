@@ -27,6 +27,7 @@ from netctl.structural.roles import (
     node_role_codes,
 )
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["ContingencySweep", "contingency_sweep"]
 
@@ -180,8 +181,12 @@ def _bridges(A: sp.csr_array, r: _Reach) -> np.ndarray:
 
 # ---------------------------------------------------------------------- single losses
 @dataclass(frozen=True)
-class ContingencySweep(LossOutcomes):
+class ContingencySweep(LossOutcomes, ResultTables):
     """Effect of losing each single link (or state), see :func:`contingency_sweep`.
+
+    In a notebook (from :func:`netctl.contingency_sweep`, or after ``with_system``) it
+    shows its findings and a small map: the links (states) whose loss alone breaks the
+    design or raises the minimum number of inputs.
 
     Attributes
     ----------

@@ -15,21 +15,26 @@ from netctl.structural.controllability import controllability
 from netctl.structural.inputs import minimum_inputs
 from netctl.structural.roles import LINK_ROLES, NODE_ROLES, link_roles, node_roles
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["WhatIf", "apply_change", "what_if"]
 
 
 # ---------------------------------------------------------------------- what-if
 @dataclass(frozen=True)
-class WhatIf:
+class WhatIf(ResultTables):
     """Before and after a proposed change (see :func:`what_if`).
 
     ``before`` / ``after`` are the two systems. ``controllable_before`` /
     ``controllable_after`` concern the system's input design (``None`` without inputs).
     ``drivers_before`` / ``drivers_after`` are one deterministic minimum driver set each
     (state names); ``role_changes`` maps state name -> (role before, role after) for the
-    states present in both; ``link_role_changes`` the same for links.
+    states present in both; ``link_role_changes`` the same for links. In a notebook it
+    shows its findings and a small map of both networks together: the added and removed
+    links and states, and the driver nodes before and after.
     """
+
+    _map_system_field = "before"
 
     before: StructuredSystem = field(repr=False)
     after: StructuredSystem = field(repr=False)
