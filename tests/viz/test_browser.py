@@ -297,3 +297,84 @@ def test_screenshot_has_single_point_marks_where_the_data_puts_them(browser, tmp
     browser.execute_script("window.netctlMaps[0].select(0, false);")
     text = browser.find_element(By.CSS_SELECTOR, ".ncm-details dl").text
     assert "single point of failure" in text and "u:x0" in text
+
+
+ISLAND = ROOT / "networks" / "island_grid.m"
+
+
+def test_clicking_a_link_of_a_grid_names_its_branch(browser, tmp_path):
+    # which branches join which buses, and their kinds, from the case file as read by the
+    # PyPI package matpowercaseframes (MATPOWER convention: a branch with a nonzero tap
+    # ratio is a transformer); netctl names branch row k "branch k"
+    cf = pytest.importorskip("matpowercaseframes").CaseFrames(str(ISLAND))
+    br = cf.branch.reset_index(drop=True)
+    expect: dict[frozenset, list[str]] = {}
+    for k, row in br.iterrows():
+        kind = "transformer" if float(row["TAP"]) != 0.0 else "line"
+        pair = frozenset((str(int(row["F_BUS"])), str(int(row["T_BUS"]))))
+        expect.setdefault(pair, []).append(f"branch {k + 1} ({kind})")
+    assert any(len(v) == 2 for v in expect.values())          # the double circuit
+    assert any("transformer" in x for v in expect.values() for x in v)
+    out = tmp_path / "island.html"
+    assert main(["map", str(ISLAND), "--out", str(out)]) == 0
+    open_page(browser, out)
+    assert console_errors(browser) == []
+    from selenium.webdriver.common.action_chains import ActionChains
+    from selenium.webdriver.common.by import By
+
+    canvas = browser.find_element(By.CSS_SELECTOR, ".ncm-canvas")
+    names, links, xy, (W, H) = browser.execute_script(
+        "var m = window.netctlMaps[0], d = m.d, a = [], xy = [];"
+        "['links', 'paths', 'cycles', 'critical'].forEach(function (k) {"
+        "  a = a.concat(d[k] || []); });"
+        "for (var i = 0; i < m.n; i++) { xy.push(m.screenOf(i)); }"
+        "return [d.names, a, xy, [m.W, m.H]];")
+    xy = np.asarray(xy, float)
+    # the model has two states a bus ('3:pos', '3:vel'); a link between buses a and b
+    bus = [x.split(":")[0] for x in names]
+    segs = [(links[k], links[k + 1]) for k in range(0, len(links), 2)]
+    pairs = [frozenset((bus[u], bus[v])) for u, v in segs]
+
+    def dist(p, u, v):
+        a, b = xy[u], xy[v]
+        t = np.clip(np.dot(p - a, b - a) / max(np.dot(b - a, b - a), 1e-9), 0, 1)
+        return float(np.hypot(*(a + t * (b - a) - p)))
+
+    seen = []
+    for pair, want in expect.items():
+        # a point of one of its links that no state and no link of other buses is near
+        spot = None
+        for (u, v), pr in zip(segs, pairs):
+            if pr != pair:
+                continue
+            for t in (0.5, 0.35, 0.65):
+                p = xy[u] + t * (xy[v] - xy[u])
+                if np.hypot(*(xy - p).T).min() > 16 and all(
+                        dist(p, a, b) > 8 for (a, b), q in zip(segs, pairs) if q != pair):
+                    spot = p
+                    break
+            if spot is not None:
+                break
+        if spot is None:
+            continue
+        # a real click there, on the canvas (offsets from its centre)
+        ActionChains(browser).move_to_element_with_offset(
+            canvas, int(round(spot[0] - W / 2)), int(round(spot[1] - H / 2))).click().perform()
+        settle(browser)
+        sel = browser.execute_script("return window.netctlMaps[0].selLink;")
+        assert sel is not None and frozenset((bus[sel[0]], bus[sel[1]])) == pair, (pair, sel)
+        text = browser.find_element(By.CSS_SELECTOR, ".ncm-details dl").text
+        shown = text.split("element\n", 1)[1].split("\n", 1)[0]
+        assert sorted(shown.split(", ")) == sorted(want), (pair, text)
+        if len(want) > 1:
+            assert "parallel circuits" in text
+        seen.append(want)
+    assert len(seen) >= 5 and len(expect) == 7
+    assert any(len(w) == 2 for w in seen) and any("transformer" in w[0] for w in seen)
+    # a click on empty paper selects nothing new; a click on a state still selects it
+    ActionChains(browser).move_to_element_with_offset(
+        canvas, int(round(xy[0, 0] - W / 2)), int(round(xy[0, 1] - H / 2))).click().perform()
+    settle(browser)
+    assert browser.execute_script("var m = window.netctlMaps[0]; return [m.selected, m.selLink];") \
+        == [0, None]
+    assert console_errors(browser) == []

@@ -10,6 +10,10 @@
  * unreached states, dilations, disturbances, single points of failure, the selection) are drawn on top every frame
  * at a fixed size in screen pixels, with a white halo, last. While the view moves, the
  * cached base is shifted and scaled (cheap) and redrawn sharp once the view rests.
+ *
+ * A click selects the nearest state within 12 px, else the nearest drawn link within
+ * 6 px: its details say which way it acts and, on a grid (data.elements), which branch
+ * of the case it belongs to (ID and kind; every circuit when several are in parallel).
  */
 (function () {
   "use strict";
@@ -123,6 +127,7 @@
     this.frameTimes = [];
     this.layers = {};
     this.selected = -1;
+    this.selLink = null;
     this.build();
   }
 
@@ -155,6 +160,16 @@
     (d.fragile_notes || []).forEach(function (p) {
       (self.fragileWhy[p[0]] = self.fragileWhy[p[0]] || []).push(p[1]);
     });
+    // grid: which elements (branches) own each linked pair of states (key a*n+b, a<b)
+    this.owners = new Map();
+    if (d.elements) {
+      var pr = d.elements.pairs;
+      for (i = 0; i < pr.length; i += 3) {
+        var pk = pr[i] * n + pr[i + 1];
+        if (!this.owners.has(pk)) { this.owners.set(pk, []); }
+        this.owners.get(pk).push(pr[i + 2]);
+      }
+    }
     this.inputsAt = {};
     for (i = 0; i < d.inputs.length; i++) { this.inputsAt[d.inputs[i][0]] = d.inputs[i][1]; }
     this.disturbedBy = {};
@@ -227,7 +242,7 @@
     search.setAttribute("aria-label", "find a state by name");
     var fit = el("button", "ncm-fit", "whole network");
     fit.type = "button";
-    var hint = el("span", "ncm-hint", "drag to pan, wheel or +/- to zoom, click a state for details");
+    var hint = el("span", "ncm-hint", "drag to pan, wheel or +/- to zoom, click a state or a link for details");
     bar.appendChild(search); bar.appendChild(fit); bar.appendChild(hint);
     var results = el("ul", "ncm-results");
     var body = el("div", "ncm-body");
@@ -239,7 +254,7 @@
     stage.appendChild(canvas); stage.appendChild(tip);
     var side = el("div", "ncm-side");
     var details = el("div", "ncm-details");
-    details.appendChild(el("p", "ncm-muted", "Click a state (or find one by name) to see its role, the input that reaches it and its control path."));
+    details.appendChild(el("p", "ncm-muted", "Click a state (or find one by name) to see its role, the input that reaches it and its control path; click a link to see which way it acts" + (d.elements ? " and the branch it belongs to." : ".")));
     var legend = el("div", "ncm-legend");
     legend.appendChild(el("h3", null, "Layers"));
     side.appendChild(legend); side.appendChild(details);
@@ -306,8 +321,13 @@
     canvas.addEventListener("pointerup", function (ev) {
       var r = canvas.getBoundingClientRect();
       if (drag && drag.moved < 4) {
-        var i = self.nearest(ev.clientX - r.left, ev.clientY - r.top, 12);
+        var px = ev.clientX - r.left, py = ev.clientY - r.top;
+        var i = self.nearest(px, py, 12);
         if (i >= 0) { self.select(i, false); }
+        else {
+          var e = self.nearestLink(px, py, 6);
+          if (e) { self.selectLink(e[0], e[1]); }
+        }
       }
       drag = null;
     });
@@ -601,6 +621,14 @@
       ctx.strokeStyle = "rgba(255,255,255,0.9)"; ctx.lineWidth = 7; ctx.stroke();
       ctx.strokeStyle = INK; ctx.lineWidth = 3; ctx.stroke();
     }
+    if (this.selLink) {   // the selected link, cased like the selection's path
+      var p0 = this.screenOf(this.selLink[0]), p1 = this.screenOf(this.selLink[1]);
+      ctx.setLineDash([]); ctx.lineCap = "round";
+      ctx.beginPath(); ctx.moveTo(p0[0], p0[1]); ctx.lineTo(p1[0], p1[1]);
+      ctx.strokeStyle = "rgba(255,255,255,0.9)"; ctx.lineWidth = 8; ctx.stroke();
+      ctx.strokeStyle = INK; ctx.lineWidth = 3.5; ctx.stroke();
+      drawn.selectedLink = 1;
+    }
     // flagged states last, at a fixed size in screen pixels, with a halo
     if (!this.marksInBase) { this.drawFlagged(ctx, drawn); }
     if (this.selected >= 0) {
@@ -740,8 +768,67 @@
 
   function fmt(v) { return Math.abs(v) >= 1000 ? v.toFixed(0) : v.toPrecision(5).replace(/\.?0+$/, ""); }
 
+  /* the drawn link nearest to a screen point (within tol px): [source, target] or null */
+  NetMap.prototype.nearestLink = function (px, py, tol) {
+    var d = this.d, L = this.layers, s = this.s, tx = this.tx, ty = this.ty, wx = this.wx, wy = this.wy;
+    var best = null, bd = tol * tol;
+    ["critical", "paths", "cycles", "links"].forEach(function (key) {
+      var a = d[key];
+      if (!L[key] || !a) { return; }
+      for (var j = 0; j < a.length; j += 2) {
+        var x1 = wx[a[j]] * s + tx, y1 = ty - wy[a[j]] * s, x2 = wx[a[j + 1]] * s + tx, y2 = ty - wy[a[j + 1]] * s;
+        if (px < Math.min(x1, x2) - tol || px > Math.max(x1, x2) + tol ||
+            py < Math.min(y1, y2) - tol || py > Math.max(y1, y2) + tol) { continue; }
+        var dx = x2 - x1, dy = y2 - y1, LL = dx * dx + dy * dy;
+        var t = LL > 0 ? Math.max(0, Math.min(1, ((px - x1) * dx + (py - y1) * dy) / LL)) : 0;
+        var ex = x1 + t * dx - px, ey = y1 + t * dy - py, dd = ex * ex + ey * ey;
+        if (dd < bd) { bd = dd; best = [a[j], a[j + 1]]; }
+      }
+    });
+    return best;
+  };
+
+  /* which drawn layers hold the link u -> v (and whether v -> u is a link too) */
+  NetMap.prototype.linkFacts = function (u, v) {
+    var d = this.d, n = this.n, out = [], back = false;
+    var words = { paths: "control path (matched link)", cycles: "control cycle (matched link)",
+      critical: "critical", links: "other link" };
+    ["critical", "paths", "cycles", "links"].forEach(function (key) {
+      var a = d[key] || [];
+      for (var j = 0; j < a.length; j += 2) {
+        if (a[j] === u && a[j + 1] === v) { out.push(words[key]); }
+        if (a[j] === v && a[j + 1] === u) { back = true; }
+      }
+    });
+    var names = d.names, f = [];
+    f.push(["link", names[u] + " influences " + names[v] + (back ? " (and " + names[v] + " influences " + names[u] + ": a link each way)" : "")]);
+    if (out.length) { f.push(["drawn as", out.join("; ")]); }
+    if (d.elements) {
+      var own = this.owners.get(Math.min(u, v) * n + Math.max(u, v)) || [];
+      var ids = d.elements.ids, kinds = d.elements.kinds;
+      f.push(["element", own.length ? own.map(function (k) { return ids[k] + " (" + kinds[k] + ")"; }).join(", ")
+        : "none (a link inside one bus is part of the model; or no branch joins these buses)"]);
+      if (own.length > 1) { f.push(["parallel circuits", own.length + " branches join these buses"]); }
+    }
+    return f;
+  };
+
+  NetMap.prototype.selectLink = function (u, v) {
+    this.selected = -1;
+    this.trail = null;
+    this.selLink = [u, v];
+    var box = this.details;
+    box.textContent = "";
+    box.appendChild(el("h3", "ncm-name", this.d.names[u] + " \u2192 " + this.d.names[v]));
+    var dl = el("dl");
+    this.linkFacts(u, v).forEach(function (kv) { dl.appendChild(el("dt", null, kv[0])); dl.appendChild(el("dd", null, kv[1])); });
+    box.appendChild(dl);
+    this.invalidate();
+  };
+
   NetMap.prototype.select = function (i, centre) {
     this.selected = i;
+    this.selLink = null;
     this.trail = null;
     var f = this.facts(i), box = this.details;
     box.textContent = "";
