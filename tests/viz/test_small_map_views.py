@@ -264,3 +264,23 @@ def test_contingency_sweep_marks_the_links_whose_loss_breaks_the_design():
         return controllable(n - 1, es, [c for c in cols if c])
 
     assert _marked(svg, "fragile") == {f"x{i}" for i in range(n) if not without(i)}
+
+
+# ---------------------------------------------------------------------- the docs' picture
+def test_the_picture_in_the_docs_is_what_the_script_draws():
+    """docs/notebook_map.svg is redrawn by docs/build_notebook_map.py (run it when the
+    notebook map changes on purpose); the picture is valid XML with its marks."""
+    import importlib.util
+    from pathlib import Path
+
+    docs = Path(__file__).resolve().parents[2] / "docs"
+    spec = importlib.util.spec_from_file_location("build_notebook_map",
+                                                  docs / "build_notebook_map.py")
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    text = mod.notebook_map()
+    assert (docs / "notebook_map.svg").read_text(encoding="utf-8") == text + "\n", (
+        "docs/notebook_map.svg is stale: run python3 docs/build_notebook_map.py")
+    svg = ET.fromstring(text)
+    assert svg.find(f"{SVG}g[@class='arrows']") is not None
+    assert _marked(svg, "driver") == {"boiler", "misting_line"}
