@@ -114,10 +114,10 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
         (which inputs act on each driver); ``disturbances`` when the system has them;
         ``fragile`` (states where a single point of failure sits) and ``fragile_notes``
         (``[state, why]`` pairs); ``elements`` for a grid (the system has an element
-        table): the case's element ``ids`` and ``kinds`` and ``pairs``, flat
-        ``[a, b, k, ...]`` triples (states ``a < b`` linked in either direction, element
-        ``k`` joins their buses; parallel circuits give one triple each), so a click on a
-        link names its branch; ``layers`` (key, label, count, shown at start) and the
+        table): ``bus`` (the bus of each state, -1 for none), the branches' case ``ids``,
+        their ``kinds`` as codes into ``kind_names`` and ``ends`` (flat ``[a, b, c]``
+        bus triples, ``c`` the third bus of a three-winding transformer or -1), so a
+        click on a link names the branch(es) joining its buses; ``layers`` (key, label, count, shown at start) and the
         summary lines.
 
     Notes
@@ -244,12 +244,11 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
 
 
 def _link_owners(system: StructuredSystem) -> dict[str, Any] | None:
-    """Which grid elements (branches) each linked pair of states belongs to.
+    """The grid's branches in the map's terms: the bus of every state and the buses each
+    branch joins, so a click on a link can name the branch(es) joining its two buses.
 
-    ``None`` without an element table. Every in-service branch joining the buses of the
-    two states (both ends, and the third bus of a three-winding transformer) owns the
-    pair; links inside one bus belong to no element. Sorting and binary search: cost
-    ``O((links + branches) log)``.
+    ``None`` without an element table. Only branches (lines, transformers, impedances,
+    switches) travel; the third bus of a three-winding transformer is kept. Linear cost.
     """
     from netctl.records import BRANCH_KINDS
     from netctl.structural.branches import state_buses
@@ -257,37 +256,15 @@ def _link_owners(system: StructuredSystem) -> dict[str, Any] | None:
     table = system.elements
     if table is None:
         return None
-    n = max(system.n_states, 1)
-    bus = state_buses(system)
-    nb = max(len(table.node_names), 1)
-    br = np.array([k for k, t in enumerate(table.kinds) if t in BRANCH_KINDS], np.int64)
-    src, dst = system.edges()
-    a = np.minimum(src, dst).astype(np.int64)
-    b = np.maximum(src, dst).astype(np.int64)
-    ba, bb = bus[a], bus[b]
-    ok = (ba >= 0) & (bb >= 0) & (ba != bb)
-    pair = np.unique(a[ok] * n + b[ok])
-    triples = np.zeros((0, 3), np.int64)
-    if br.size and pair.size:
-        ends = (table.end_a[br], table.end_b[br], table.end_c[br])
-        keys, owners = [], []
-        for x, y in ((0, 1), (0, 2), (1, 2)):
-            u, v = ends[x], ends[y]
-            m = (u >= 0) & (v >= 0) & (u != v)
-            keys.append(np.minimum(u[m], v[m]) * nb + np.maximum(u[m], v[m]))
-            owners.append(br[m])
-        key, own = np.concatenate(keys), np.concatenate(owners)
-        order = np.lexsort((own, key))
-        key, own = key[order], own[order]
-        pa, pb = pair // n, pair % n
-        bk = np.minimum(bus[pa], bus[pb]) * nb + np.maximum(bus[pa], bus[pb])
-        lo, hi = np.searchsorted(key, bk, "left"), np.searchsorted(key, bk, "right")
-        cnt = hi - lo
-        rep = np.repeat(np.arange(pair.size), cnt)
-        offs = np.arange(int(cnt.sum())) - np.repeat(np.cumsum(cnt) - cnt, cnt)
-        triples = np.column_stack([pa[rep], pb[rep], own[lo[rep] + offs]])
-    return {"ids": [str(x) for x in table.ids], "kinds": [str(x) for x in table.kinds],
-            "pairs": triples.reshape(-1).tolist()}
+    br = [k for k, t in enumerate(table.kinds) if t in BRANCH_KINDS]
+    kinds = sorted({table.kinds[k] for k in br})
+    idx = np.asarray(br, np.int64)
+    ends = np.column_stack([table.end_a[idx], table.end_b[idx], table.end_c[idx]]) \
+        if idx.size else np.zeros((0, 3), np.int64)
+    return {"bus": state_buses(system).tolist(), "n_buses": len(table.node_names),
+            "ids": [str(table.ids[k]) for k in br], "kind_names": kinds,
+            "kinds": [kinds.index(table.kinds[k]) for k in br],
+            "ends": ends.astype(np.int64).reshape(-1).tolist()}
 
 
 def _nearest_driver_tree(system: StructuredSystem, drivers: np.ndarray) -> np.ndarray:

@@ -187,12 +187,19 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
     linear in states and links.
     """
     key = system
+    rows: Rows
+    lines: Lines
     if hasattr(result, "added_links") and hasattr(result, "before"):  # what_if
         key = result.before
-        if int(key.n_states) + len(getattr(result, "new_states", ())) > max_states:
-            system, rows, lines = key, [], []
-        else:
-            system, rows, lines = change_view(result)
+        total = int(key.n_states) + len(getattr(result, "new_states", ()))
+        if total > max_states:  # no union built: the counts of the change instead
+            change = [(k, MARKS[k].label, np.zeros(len(getattr(result, f)), np.int64))
+                      for k, f in (("removed_link", "removed_links"),
+                                   ("added_link", "added_links"),
+                                   ("removed_state", "removed_nodes"))
+                      if len(getattr(result, f))]
+            return _counts_note(change, total, max_states)
+        system, rows, lines = change_view(result)
     else:
         rows, lines = result_marks(result, system), result_lines(result)
     n = int(system.n_states)

@@ -235,6 +235,9 @@ def test_what_if_shows_the_change_and_the_drivers_before_and_after():
     assert _marked(svg, "driver") == set(w.drivers_after)
     assert _marked(svg, "former_driver") == set(w.drivers_before) - set(w.drivers_after)
     assert _n_drivers(n, edges) == len(w.drivers_before)
+    # above the cap: no map, the counts of the change
+    note = result_map_html(w, s, max_states=n)
+    assert "<svg" not in note and "link added by the change: 2" in note
 
 
 # ---------------------------------------------------------------------- contingency

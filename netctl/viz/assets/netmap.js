@@ -160,14 +160,20 @@
     (d.fragile_notes || []).forEach(function (p) {
       (self.fragileWhy[p[0]] = self.fragileWhy[p[0]] || []).push(p[1]);
     });
-    // grid: which elements (branches) own each linked pair of states (key a*n+b, a<b)
+    // grid: which branches join each pair of buses (key a*nb+b, a<b)
     this.owners = new Map();
     if (d.elements) {
-      var pr = d.elements.pairs;
-      for (i = 0; i < pr.length; i += 3) {
-        var pk = pr[i] * n + pr[i + 1];
-        if (!this.owners.has(pk)) { this.owners.set(pk, []); }
-        this.owners.get(pk).push(pr[i + 2]);
+      var E = d.elements, nb = E.n_buses, ends = E.ends;
+      var own = function (a, b, k) {
+        if (a < 0 || b < 0 || a === b) { return; }
+        var key = Math.min(a, b) * nb + Math.max(a, b);
+        if (!self.owners.has(key)) { self.owners.set(key, []); }
+        var l = self.owners.get(key);
+        if (l[l.length - 1] !== k) { l.push(k); }
+      };
+      for (i = 0; i < ends.length; i += 3) {
+        var k3 = i / 3;
+        own(ends[i], ends[i + 1], k3); own(ends[i], ends[i + 2], k3); own(ends[i + 1], ends[i + 2], k3);
       }
     }
     this.inputsAt = {};
@@ -804,10 +810,11 @@
     f.push(["link", names[u] + " influences " + names[v] + (back ? " (and " + names[v] + " influences " + names[u] + ": a link each way)" : "")]);
     if (out.length) { f.push(["drawn as", out.join("; ")]); }
     if (d.elements) {
-      var own = this.owners.get(Math.min(u, v) * n + Math.max(u, v)) || [];
-      var ids = d.elements.ids, kinds = d.elements.kinds;
-      f.push(["element", own.length ? own.map(function (k) { return ids[k] + " (" + kinds[k] + ")"; }).join(", ")
-        : "none (a link inside one bus is part of the model; or no branch joins these buses)"]);
+      var E = d.elements, ba = E.bus[u], bb = E.bus[v];
+      var own = ba >= 0 && bb >= 0 && ba !== bb ? this.owners.get(Math.min(ba, bb) * E.n_buses + Math.max(ba, bb)) || [] : [];
+      f.push(["element", own.length ? own.map(function (k) { return E.ids[k] + " (" + E.kind_names[E.kinds[k]] + ")"; }).join(", ")
+        : ba >= 0 && ba === bb ? "none: a link inside one bus is part of the model"
+        : "none: no branch of the case joins these states"]);
       if (own.length > 1) { f.push(["parallel circuits", own.length + " branches join these buses"]); }
     }
     return f;
