@@ -281,7 +281,8 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
             defs = (f'<defs><marker id="{mid}" viewBox="0 0 10 10" refX="9" refY="5" '
                     f'markerWidth="{size:.1f}" markerHeight="{size:.1f}" '
                     'markerUnits="userSpaceOnUse" orient="auto">'
-                    f'<path d="M0 1L10 5L0 9Z" fill="{MARKS["state"].edge}"/></marker></defs>')
+                    f'<path d="M0 1L10 5L0 9Z" fill="{MARKS["state"].edge}" '
+                    f'fill-opacity="{max(alpha, 0.5):.2f}"/></marker></defs>')
             parts.append(f'<g class="arrows" {pen} marker-end="url(#{mid})">{arrows}</g>')
         elif one.size:
             links_note = (f"; {one.size:,} one-way links drawn without arrowheads (more "
