@@ -38,7 +38,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
 def _cmd_check(args: argparse.Namespace) -> int:
     from netctl.structural import controllability, observability
 
-    from netctl.structural.branches import state_labels  # a grid's states by bus
+    from netctl.commands._words import wording  # a grid's states by bus
 
     system = load_system(args)
     check_inputs = args.inputs is not None
@@ -64,6 +64,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
         with analysis_step(args, system, "observability"):
             reports.append(observability(system, dimension=not args.no_dimension))
     t = terms(args)
+    said = wording(system)
     lines = [f"{args.file}: {t.of(system.n_states)}, model {system.model}"]
     ok = True
     for r in reports:
@@ -75,10 +76,10 @@ def _cmd_check(args: argparse.Namespace) -> int:
         lines.append(f"  structurally {word}: {'yes' if r.controllable else 'NO'}"
                      + (f" (generic {word} dimension {dim} of {r.n_states})"
                         if dim is not None and not r.controllable else ""))
-        lines.extend(f"    - {cause}" for cause in r.causes())
+        lines.extend(f"    - {cause}" for cause in r.causes(**said.causes(r.kind)))
         if not r.controllable:
             lines.append(f"  smallest fix: add {r.n_missing_inputs} dedicated {what} at "
-                         + names_line(state_labels(system, r.fix[:SHOWN]), total=r.fix.size))
+                         + names_line(said.of(r.fix[:SHOWN]), total=r.fix.size))
     lines.append("  " + str(caution(args)))
 
     def full() -> dict[str, Any]:
@@ -90,7 +91,23 @@ def _cmd_check(args: argparse.Namespace) -> int:
                 result[r.kind] = r.to_dict()
             result["controllable"] = reports[0].controllable
             result["observable"] = reports[1].controllable
+        if said.grid:  # additive: the bus of every state the result names
+            result["state_buses"] = said.buses(_named(reports))
         return result
 
     emit(args, full, "\n".join(lines))
     return 0 if ok else 1
+
+
+def _named(reports: list[Any]) -> list[str]:
+    """Every state a check's JSON names (unreached, dilation, fix), in state order."""
+    import numpy as np
+
+    parts = []
+    for r in reports:
+        parts += [r.inaccessible, r.fix]
+        if r.dilation is not None:
+            d = r.dilation
+            parts += [d.states, d.region, d.fed_by[d.fed_by < r.n_states]]
+    idx = np.unique(np.concatenate([np.asarray(p, np.int64) for p in parts]))
+    return reports[0].names(idx)

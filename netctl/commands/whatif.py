@@ -132,15 +132,11 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     if elements:
         lines.insert(2, f"  elements out of service ({len(elements)}): {', '.join(elements)}")
 
-    if system.elements is not None:  # a grid's states in a planner's words
-        from netctl.structural.branches import state_labels
+    from netctl.commands._words import wording
 
-        said = dict(zip(system.state_names, state_labels(system, range(system.n_states))))
-    else:
-        said = {}
-
-    def word(name: str) -> str:
-        return said.get(name, name)
+    word = wording(system)  # a grid's states in a planner's words
+    if word.grid:  # additive: the bus of every state the result names
+        d["state_buses"] = word.buses(_named(w))
 
     def some(names: Any) -> str:
         names = [word(x) for x in names]
@@ -157,7 +153,9 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     if w.link_role_changes:
         lines.append(f"  link roles changed: {len(w.link_role_changes)} (--json lists them)")
     if args.inputs is not None and not w.controllable_after:
-        for r in w.reasons_after:
+        reasons = (w.report_after.reasons(**word.reasons())
+                   if word.grid and w.report_after is not None else w.reasons_after)
+        for r in reasons:
             lines.append(f"    - {r}")
         lines.append(f"  smallest fix after the change: add dedicated inputs at "
                      f"{', '.join(word(x) for x in w.fix_after)}")
@@ -168,3 +166,18 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     if args.inputs is not None:
         return 0 if w.controllable_after else 1
     return 1 if w.n_inputs_after > w.n_inputs_before else 0
+
+
+def _named(w: Any) -> list[str]:
+    """Every state name a what-if's JSON names (changes, drivers, roles, fix, reasons)."""
+    names = {x for link in w.added_links + w.removed_links for x in link}
+    names.update(w.removed_nodes, w.drivers_before, w.drivers_after, w.role_changes,
+                 w.fix_after, (x for link in w.link_role_changes for x in link))
+    r = w.report_after
+    if r is not None and r.dilation is not None:
+        d = r.dilation
+        names.update(r.names(d.states), r.names(d.region),
+                     r.names(d.fed_by[d.fed_by < r.n_states]))
+    if r is not None:
+        names.update(r.names(r.inaccessible))
+    return sorted(names)

@@ -28,7 +28,30 @@ from netctl.graph.matching import (
 )
 
 __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
-           "unreached_sources", "accessible_states", "union_sorted"]
+           "unreached_sources", "accessible_states", "union_sorted", "site_preference"]
+
+
+def site_preference(nodes: dict[str, np.ndarray], model: str, *, actuators: bool
+                    ) -> np.ndarray | None:
+    """``prefer`` of :func:`completion`: where a source component's representative goes.
+
+    The node table's ``actuator`` (``sensor``) column when it names at least one site.
+    For actuators in a second-order model (node table column ``part``), an input acts on
+    a velocity (a grid's frequency) state, never on a position (angle): levels 3/1/0 =
+    an eligible velocity state, another velocity state, a position state, so a position
+    is chosen only where the component holds no velocity state (never in the swing
+    model, where each position is fed by its own velocity). DESIGN.md, models.
+    """
+    eligible = nodes.get("actuator" if actuators else "sensor")
+    prefer: np.ndarray | None = None
+    if eligible is not None and eligible.dtype == bool and eligible.any():
+        prefer = eligible
+    part = nodes.get("part")
+    if actuators and part is not None and model.startswith("second-order"):
+        vel = np.asarray(part, dtype=object) == "vel"
+        prefer = vel.astype(np.int8) + (2 * prefer.astype(np.int8) if prefer is not None
+                                        else 0)
+    return prefer
 
 
 def stack_AB(A: sp.csr_array, B: sp.csr_array) -> tuple[np.ndarray, np.ndarray, int]:

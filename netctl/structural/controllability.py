@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -14,6 +14,7 @@ from netctl.structural._engine import (
     Structure,
     accessible_states,
     completion,
+    site_preference,
     stack_AB,
     structure_of,
 )
@@ -120,24 +121,32 @@ class ControllabilityReport(ResultTables):
         return [self.state_names[int(c)] if c < n else self.input_names[int(c) - n]
                 for c in columns]
 
-    def reasons(self) -> list[str]:
-        """Plain-language reasons the property fails (empty when it holds)."""
+    def reasons(self, *, word: Callable[[str], str] | None = None,
+                site: str = "any one of its states") -> list[str]:
+        """Plain-language reasons the property fails (empty when it holds).
+
+        ``word`` maps each state (input) name to the words the text uses (e.g. a grid's
+        ``bus 12 frequency``); by default the names themselves. ``site`` says where in an
+        unreached component the input (output) may go (a grid's inputs: ``"the frequency
+        of any one of its buses"``, never an angle).
+        """
+        said = _said(self, word)
         what = "input" if self.kind == "controllability" else "output"
         reach = "reaches" if self.kind == "controllability" else "sees"
         out: list[str] = []
         for g in self.groups:
-            src = _short(self.names(g.source))
+            src = _short(said.names(g.source))
             tail = (f" and the {g.downstream.size} state(s) downstream of it"
                     if self.kind == "controllability" and g.downstream.size else
                     f" and the {g.downstream.size} state(s) upstream of it"
                     if g.downstream.size else "")
             out.append(f"no {what} {reach} the component {{{src}}}{tail}; "
-                       f"put an {what} on any one of its states.")
+                       f"put an {what} on {site}.")
         if self.dilation is not None and self.dilation.fed_by.size == 0:
             d = self.dilation
             link = "incoming link" if self.kind == "controllability" else "outgoing link"
             out.append(
-                f"dilation: {{{_short(self.names(d.states))}}} has no {link} and no {what}, "
+                f"dilation: {{{_short(said.names(d.states))}}} has no {link} and no {what}, "
                 f"so it needs an {what} of its own; the structural rank of "
                 f"{'[A B]' if self.kind == 'controllability' else '[A; C]'} is "
                 f"{self.structural_rank} < {self.n_states}.")
@@ -145,33 +154,36 @@ class ControllabilityReport(ResultTables):
             d = self.dilation
             verb = "are fed by" if self.kind == "controllability" else "feed"
             out.append(
-                f"dilation: the {d.states.size} state(s) {{{_short(self.names(d.states))}}} "
+                f"dilation: the {d.states.size} state(s) {{{_short(said.names(d.states))}}} "
                 f"{verb} only {d.fed_by.size} state(s)/{what}(s) "
-                f"{{{_short(self.column_names(d.fed_by))}}}; the structural rank of "
+                f"{{{_short(said.columns(d.fed_by))}}}; the structural rank of "
                 f"{'[A B]' if self.kind == 'controllability' else '[A; C]'} is "
                 f"{self.structural_rank} < {self.n_states}.")
         return out
 
-    def causes(self, limit: int = 8) -> list[str]:
+    def causes(self, limit: int = 8, *, word: Callable[[str], str] | None = None,
+               site: str = "any state of each") -> list[str]:
         """Every cause the property fails, grouped by kind with counts (empty when it holds).
 
         One short line per kind: the source components no input reaches (sink components
         no output sees), each named by its first state, and the dilations (the structural
         rank deficiency of ``[A B]``), named by the over-determined region. At most
         ``limit`` names a line, then how many more; :meth:`reasons` explains each cause
-        at length.
+        at length. ``word`` as in :meth:`reasons`; ``site`` says where in each component
+        the input (output) may go.
         """
+        said = _said(self, word)
         what = "input" if self.kind == "controllability" else "output"
         out: list[str] = []
         if self.groups:
             k = len(self.groups)
             end = "source" if self.kind == "controllability" else "sink"
             reach = "reaches" if self.kind == "controllability" else "sees"
-            firsts = [self.state_names[int(g.source[0])] for g in self.groups]
+            firsts = said.names([g.source[0] for g in self.groups])
             out.append(f"{k} {end} component{'s' if k != 1 else ''} no {what} {reach} "
                        f"({_short(firsts, limit)}), leaving {self.inaccessible.size} "
                        f"state(s) {'unreached' if what == 'input' else 'unseen'}; "
-                       f"one {what} on any state of each reaches it.")
+                       f"one {what} on {site} reaches it.")
         deficit = self.n_states - self.structural_rank
         if deficit > 0 and self.dilation is not None:
             region = self.dilation.region
@@ -180,7 +192,7 @@ class ControllabilityReport(ResultTables):
                        f"of {stack} {self.structural_rank} < {self.n_states}; "
                        f"{region.size} state(s) compete for too few "
                        f"{'feeders' if what == 'input' else 'readers'}: "
-                       f"{_short(self.names(region), limit)}).")
+                       f"{_short(said.names(region), limit)}).")
         return out
 
     def to_dict(self) -> dict[str, Any]:
@@ -208,6 +220,26 @@ class ControllabilityReport(ResultTables):
             "fix": {"n_additional": self.n_missing_inputs, "states": self.names(self.fix)},
             "reasons": self.reasons(),
         }
+
+
+class _Said:
+    """Names (states, then columns of ``[A B]``) in the words a text uses."""
+
+    def __init__(self, report: ControllabilityReport,
+                 word: Callable[[str], str] | None) -> None:
+        self.report, self.word = report, word
+
+    def names(self, indices: Any) -> list[str]:
+        got = self.report.names(indices)
+        return got if self.word is None else [self.word(x) for x in got]
+
+    def columns(self, columns: Any) -> list[str]:
+        got = self.report.column_names(columns)
+        return got if self.word is None else [self.word(x) for x in got]
+
+
+def _said(report: ControllabilityReport, word: Callable[[str], str] | None) -> _Said:
+    return _Said(report, word)
 
 
 def _short(names: list[str], limit: int = 8) -> str:
@@ -321,8 +353,8 @@ def _report(system: StructuredSystem, kind: str, dimension: bool) -> Controllabi
     groups = _inaccessible_groups(st, acc) if inaccessible.size else ()
     # a fix for an unreached component goes where an actuator (sensor) may sit, when the
     # node table says where (e.g. a grid's generator buses, their frequency states)
-    site = system.nodes.get("actuator" if kind == "controllability" else "sensor")
-    prefer = site if site is not None and site.dtype == bool and site.any() else None
+    # and, for inputs in a second-order model, on a velocity state, never on a position
+    prefer = site_preference(system.nodes, system.model, actuators=kind == "controllability")
     comp = completion(A, B, st, prefer=prefer)
     rank = comp.matching_size
     dil = _dilation(A, B, comp.row_match) if rank < n else None

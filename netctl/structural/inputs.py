@@ -9,7 +9,7 @@ from typing import Any
 import numpy as np
 import scipy.sparse as sp
 
-from netctl.structural._engine import completion, structure_of
+from netctl.structural._engine import completion, site_preference, structure_of
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
@@ -193,17 +193,8 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
         raise OptionError(f"dedicated must be True or False, found {dedicated!r}.")
     n = system.n_states
     # where a source component needs a representative, prefer states that may host one
-    eligible = system.nodes.get("actuator" if kind == "inputs" else "sensor")
-    prefer: np.ndarray | None = None
-    if eligible is not None and eligible.dtype == bool and eligible.any():
-        prefer = eligible
-    part = system.nodes.get("part")
-    if kind == "inputs" and part is not None and system.model.startswith("second-order"):
-        # an input acts on a frequency (vel) state, never on an angle: an eligible site
-        # first, else a vel state of the component, else any state
-        vel = np.asarray(part, dtype=object) == "vel"
-        prefer = vel.astype(np.int8) + (2 * prefer.astype(np.int8) if prefer is not None
-                                        else 0)
+    # (an input on a velocity (frequency) state, never on an angle, in a second-order model)
+    prefer = site_preference(system.nodes, system.model, actuators=kind == "inputs")
     comp = completion(system.A, sp.csr_array((n, 0)), prefer=prefer)
     drivers = comp.states
     unmatched = comp.unmatched

@@ -11,7 +11,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from netctl.errors import InvalidSystemError, UnknownNameError
-from netctl.structural.controllability import controllability
+from netctl.structural.controllability import ControllabilityReport, controllability
 from netctl.structural.inputs import minimum_inputs
 from netctl.structural.roles import LINK_ROLES, NODE_ROLES, link_roles, node_roles
 from netctl.system import StructuredSystem
@@ -53,6 +53,10 @@ class WhatIf(ResultTables):
     link_role_changes: dict[tuple[str, str], tuple[str, str]]
     reasons_after: tuple[str, ...]
     fix_after: tuple[str, ...]
+    #: Lin's test of the design after the change (``None`` without inputs): its
+    #: ``reasons(word=...)`` words the reasons another way (e.g. a grid's buses).
+    report_after: ControllabilityReport | None = field(default=None, repr=False,
+                                                        compare=False)
 
     @property
     def breaks_design(self) -> bool:
@@ -340,4 +344,4 @@ def what_if(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] |
         drivers_before=tuple(db.driver_names), drivers_after=tuple(da.driver_names),
         role_changes=changes, link_role_changes=link_changes,
         reasons_after=tuple(ca.reasons()) if ca is not None else (),
-        fix_after=tuple(ca.names(ca.fix)) if ca is not None else ())
+        fix_after=tuple(ca.names(ca.fix)) if ca is not None else (), report_after=ca)

