@@ -111,6 +111,10 @@ class Kernel:
         return True
 
     def __call__(self, *args: Any, **kwargs: Any) -> Any:
+        if self.python and any(type(a) is list and not a for a in args):
+            # an empty Python list comes only from a kernel body run in Python (compiled
+            # bodies pass typed lists); numba cannot type it, so stay in Python
+            return self.py_func(*args, **kwargs)
         d = self.dispatcher
         if d is None:
             if self._small(args, kwargs):

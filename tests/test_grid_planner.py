@@ -472,7 +472,9 @@ def test_energy_ranking_lists_frequency_states_only(capsys):
     line = next(x for x in capsys.readouterr().out.splitlines()
                 if "average controllability" in x)
     ranked = line.split("):", 1)[1]
-    assert ":vel" in ranked and ":pos" not in ranked
+    # in the planner's words (bus and quantity): frequencies only, never an angle
+    assert " frequency " in ranked and " angle " not in ranked
+    assert ":vel" not in ranked and ":pos" not in ranked
 
 
 def test_placement_and_fixes_stay_on_frequency_states(capsys):

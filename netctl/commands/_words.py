@@ -9,6 +9,7 @@ always keeps the state names and adds each one's bus (:meth:`Wording.buses`).
 
 from __future__ import annotations
 
+import re
 from collections.abc import Iterable, Sequence
 from typing import TYPE_CHECKING, Any
 
@@ -16,6 +17,8 @@ if TYPE_CHECKING:
     from netctl.system import StructuredSystem
 
 __all__ = ["Wording", "wording"]
+
+_TOKEN = re.compile(r"[^\s,{}()\[\];'\"]+")
 
 
 class Wording:
@@ -76,6 +79,26 @@ class Wording:
         """The words for one state (or input) name; the name itself when it has none."""
         name = str(name)
         return self._said.get(name, name)
+
+    def text(self, line: str) -> str:
+        """A line an analysis wrote with state names, in the planner's words.
+
+        Only names with a colon are replaced (a second-order grid's ``12:vel``, an
+        input's ``u:12:vel``): a first-order grid's states are bare bus numbers, which
+        cannot be told apart from counts in free text, so they stay as written. A name is
+        a whole token (between spaces, commas, brackets, quotes, semicolons), a trailing
+        ``:`` or ``.`` aside.
+        """
+        if not self.swing or ":" not in line:
+            return line
+
+        def one(m: re.Match[str]) -> str:
+            token = m.group(0)
+            core = token.rstrip(":.")
+            said = self._said.get(core)
+            return token if said is None or ":" not in core else said + token[len(core):]
+
+        return _TOKEN.sub(one, line)
 
     def words(self, names: Iterable[Any]) -> list[str]:
         """The words for several names, in order."""

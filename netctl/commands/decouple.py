@@ -7,6 +7,7 @@ from typing import Any
 
 from netctl.commands._options import CAUTION, UsageError, add_inputs, emit, load_system, \
     parse_names
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -73,6 +74,6 @@ def _cmd_decouple(args: argparse.Namespace) -> int:
              f"  decoupled with {r.measured.question}: {yes[r.measured.solvable]}"]
     lines += [f"  - {line}" for line in r.reasons()]
     lines.append(f"  {CAUTION}")
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     ok = r.state_feedback.solvable if args.exit_on == "state-feedback" else r.measured.solvable
     return 0 if ok else 1

@@ -19,6 +19,7 @@ from netctl.commands._options import (
     sample_runner,
     system_with_inputs,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -139,5 +140,5 @@ def _cmd_energy(args: argparse.Namespace) -> int:
                      "with --select K)")
     lines.append("  " + CAUTION)
     d["caution"] = CAUTION
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 1 if r.verdict.failing else 0

@@ -17,6 +17,7 @@ from netctl.commands._options import (
     resolve_weights,
     system_with_inputs,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -126,5 +127,5 @@ def _cmd_modes(args: argparse.Namespace) -> int:
                        "note": "netctl's own choices, no published source"}
     lines.append(("  !! " if verdict.failing else "  ") + verdict.line())
     lines.append("  " + CAUTION)
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 1 if (r.unreached or verdict.failing) else 0

@@ -17,6 +17,7 @@ from netctl.commands._options import (
     progress_enabled,
     terms,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -95,5 +96,5 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
     note = caution(args, engineering=False)
     if note:
         lines.append("  " + note)
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 0

@@ -21,6 +21,7 @@ from netctl.commands._options import (
     names_line,
     parse_names,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -88,7 +89,7 @@ def _cmd_place(args: argparse.Namespace) -> int:
                   "structural controllability (Lin)")
     d["check"] = {"method": check_name, "passed": result.verified}
     d["caution"] = CAUTION
-    emit(args, d, _text(args, result, d, check_name, CAUTION))
+    emit(args, d, wording(system).text(_text(args, result, d, check_name, CAUTION)))  # bus words
     return 0 if result.goal_met else 1
 
 

@@ -17,6 +17,7 @@ from netctl.commands._options import (
     safe_write,
     terms,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -92,7 +93,7 @@ def _cmd_roles(args: argparse.Namespace) -> int:
     lines.append("  " + str(caution(args)))
     if args.csv:
         write_roles_csv(args.csv, nr, lr)
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 0
 
 

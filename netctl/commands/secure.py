@@ -28,6 +28,7 @@ from netctl.commands._options import (
     names_line,
     parse_names,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -176,7 +177,7 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
     out["secure"] = bool(secure)
     out["caution"] = CAUTION
     lines.append("  " + CAUTION)
-    emit(args, out, "\n".join(lines))
+    emit(args, out, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 0 if secure else 1
 
 
@@ -221,7 +222,7 @@ def _place(args: argparse.Namespace, system: Any) -> int:
     d = r.to_dict()
     d["file"] = args.file
     d["caution"] = CAUTION
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     found = r.feasible and (r.sites.size > 0 or (args.keep and r.optimal))
     # a sampled recheck (verified None) that passed does not fail the design
     return 0 if found and r.verified is not False else 1

@@ -7,6 +7,7 @@ import argparse
 from typing import Any
 
 from netctl.commands._options import CAUTION, UsageError, emit, load_system
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -66,5 +67,5 @@ def _cmd_stations(args: argparse.Namespace) -> int:
                                  + [r.output_names[int(i)] for i in r.unassigned_outputs]))
     lines += [f"  - {line}" for line in r.reasons()]
     lines.append(f"  {CAUTION}")
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 1 if r.has_fixed_modes else 0

@@ -21,6 +21,7 @@ from netctl.commands._options import (
     names_line,
     parse_names,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -77,7 +78,7 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         if not rep.strongly_controllable:
             lines.append("  unforced states: " + names_line(rep.unforced_names))
         lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
-        emit(args, d, "\n".join(lines))
+        emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
         return 0 if rep.strongly_controllable else 1
 
     if system.n_inputs:
@@ -101,5 +102,5 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         f"  driven states ({design.n_inputs}): {names_line(design.driver_names)}",
         "  (one set of possibly many)"]
     lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
-    emit(args, d, "\n".join(lines))
+    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 0

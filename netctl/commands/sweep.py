@@ -23,6 +23,7 @@ from netctl.commands._options import (
     parse_names,
     safe_write,
 )
+from netctl.commands._words import wording
 
 if TYPE_CHECKING:
     from netctl.structural.robustness import AttackCurve
@@ -192,7 +193,7 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
     if args.inputs is not None:
         lines.append(f"  design survives every loss examined: {'yes' if ok else 'NO'}")
     lines.append("  " + CAUTION)
-    emit(args, result, "\n".join(lines))
+    emit(args, result, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 0 if ok else 1
 
 
@@ -286,7 +287,7 @@ def _grid_sweep(args: argparse.Namespace, system: Any) -> int:
     lines.append("  " + CAUTION)
     result = {"analysis": "sweep", "file": args.file, "k": 1, "model": system.model,
               "elements": sw.to_dict(rows=bool(args.json or args.out))}
-    emit(args, result, "\n".join(lines))
+    emit(args, result, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 0 if ok else 1
 
 
@@ -364,5 +365,5 @@ def _grid_sets(args: argparse.Namespace, system: Any) -> int:
     lines.append("  " + CAUTION)
     result = {"analysis": "sweep", "file": args.file, "k": r.k, "model": system.model,
               "element_sets": r.to_dict(rows=bool(args.json or args.out))}
-    emit(args, result, "\n".join(lines))
+    emit(args, result, wording(system).text("\n".join(lines)))  # a grid: bus words
     return 0 if ok else 1

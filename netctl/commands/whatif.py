@@ -18,6 +18,7 @@ from netctl.commands._options import (
     load_system,
     parse_names,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -132,8 +133,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     if elements:
         lines.insert(2, f"  elements out of service ({len(elements)}): {', '.join(elements)}")
 
-    from netctl.commands._words import wording
-
+    
     word = wording(system)  # a grid's states in a planner's words
     if word.grid:  # additive: the bus of every state the result names
         d["state_buses"] = word.buses(_named(w))

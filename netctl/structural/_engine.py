@@ -6,6 +6,7 @@ public analyses attach names at their result boundary.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from concurrent.futures import ThreadPoolExecutor
 import functools
 from dataclasses import dataclass, field
@@ -31,7 +32,7 @@ __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
            "unreached_sources", "accessible_states", "union_sorted", "site_preference"]
 
 
-def site_preference(nodes: dict[str, np.ndarray], model: str, *, actuators: bool
+def site_preference(nodes: Mapping[str, np.ndarray], model: str, *, actuators: bool
                     ) -> np.ndarray | None:
     """``prefer`` of :func:`completion`: where a source component's representative goes.
 
