@@ -189,3 +189,67 @@ def test_systems_without_elements_keep_names_and_json(argv, capsys):
     else:
         assert "fuel_valve" not in d["fix"]["states"]
         assert all(f"bus {n}" not in out for n in d["fix"]["states"])
+
+
+# ---------------------------------------------------------------- every other verb
+def _get(d, path):
+    for k in path:
+        d = d[k]
+    return d
+
+
+VERBS = [  # argv after the file; JSON path of named states; the text line that lists them
+    pytest.param(["place"], ("sites",), "  sites (", id="place"),
+    pytest.param(["place", "--sensors"], ("sites",), "  sites (", id="place-sensors"),
+    pytest.param(["secure", "--place"], ("sites",), "  sites (", id="secure-place"),
+    pytest.param(["energy", "--select", "2"], ("selection", "selected"),
+                 "  greedy log-det choice", id="energy"),
+    pytest.param(["modes"], ("exact_controllability", "drivers"), "  driver set (",
+                 id="modes"),
+    pytest.param(["strong"], ("drivers",), "  driven states (", id="strong"),
+    pytest.param(["sweep", "--inputs", "1", "--elements", "nodes"], ("nodes", "breaking"),
+                 None, id="sweep-nodes"),
+    pytest.param(["secure", "--inputs", "1"], None, None, id="secure-audit"),
+    pytest.param(["node-control", "--centrality"], None, None, id="node-control"),
+    pytest.param(["roles"], None, None, id="roles"),
+]
+
+
+@pytest.mark.parametrize("argv, path, marker", VERBS)
+def test_verbs_name_grid_states_by_bus(argv, path, marker, capsys):
+    """case14 (swing model): each verb's text names the states its JSON names by bus and
+    quantity (node table), no state name of the model is left in the text, and no
+    actuator is suggested on an angle (sensors may read angles: PMUs)."""
+    f = _mfile("case14")
+    s = _model(f)
+    said, parts = _words(s), _parts(s)
+    _, d, out = _run(capsys, [argv[0], f, *argv[1:]])
+    _no_state_names(out, s)
+    if path is None:
+        return
+    names = _get(d, path)
+    assert names
+    if marker is not None:
+        line = next(x for x in out.splitlines() if x.startswith(marker))
+        assert ", ".join(said[n] for n in names) in line
+    else:  # one line a lost state: "    - bus 1 angle: cuts ..."
+        for n in names:
+            assert f"    - {said[n]}: " in out
+    if argv[0] != "sweep" and "--sensors" not in argv:
+        assert {parts[n] for n in names} == {"vel"}
+
+
+def test_secure_audit_names_the_input_and_states_by_bus(capsys):
+    """secure --inputs 1 on case14: the single point of failure is the input at bus 1
+    (JSON u:1:vel), worded from its state; the states it alone reaches, as the JSON
+    lists them, appear in bus words."""
+    f = _mfile("case14")
+    s = _model(f)
+    said = _words(s)
+    code, d, out = _run(capsys, ["secure", f, "--inputs", "1"])
+    assert code == 1
+    spof = d["audits"][0]["elements"]["single_points_of_failure"][0]
+    state = spof["name"].removeprefix("u:")
+    assert state in said and f"single point of failure input at {said[state]}:" in out
+    listed = re.findall(r"\d+:(?:pos|vel)", spof["reasons"][0])
+    assert listed and ", ".join(said[n] for n in listed) in out
