@@ -253,3 +253,59 @@ def test_secure_audit_names_the_input_and_states_by_bus(capsys):
     assert state in said and f"single point of failure input at {said[state]}:" in out
     listed = re.findall(r"\d+:(?:pos|vel)", spof["reasons"][0])
     assert listed and ", ".join(said[n] for n in listed) in out
+
+
+_PLANT_SECTIONS = """
+[inputs]
+gov1 = ["1:vel"]
+gov2 = ["2:vel"]
+
+[outputs]
+pmu3 = ["3:pos"]
+pmu14 = ["14:pos"]
+
+[disturbances]
+load9 = ["9:vel"]
+
+[regulated]
+f14 = ["14:vel"]
+
+[stations]
+panel = { inputs = ["gov1", "gov2"] }
+reader = { outputs = ["pmu14", "pmu3"] }
+"""
+
+
+@pytest.fixture
+def case14_plant(tmp_path, capsys):
+    """case14 saved as a system description (``netctl convert``: the element table is
+    kept) with two governors, two angle sensors, a load step at bus 9, the frequency of
+    bus 14 as a regulated output, and stations that close no loop (the governors on one
+    panel, the sensors on a reader): an invented arrangement on a real grid."""
+    f = tmp_path / "case14.toml"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        assert main(["convert", _mfile("case14"), str(f)]) == 0
+    capsys.readouterr()
+    f.write_text(f.read_text() + _PLANT_SECTIONS)
+    return f
+
+
+def test_stations_and_decouple_name_grid_states_by_bus(case14_plant, capsys):
+    """No station's loop closes (Wang & Davison's condition (i), IEEE TAC 18(5), 1973;
+    from memory): the states it names come from the JSON, in bus words in the text; the
+    disturbance line and decouple's bottleneck states likewise."""
+    f = str(case14_plant)
+    s = _model(f)
+    said = _words(s)
+    code, d, out = _run(capsys, ["stations", f])
+    assert code == 1 and not d["condition_i"]["holds"]
+    group = d["condition_i"]["unclosed_groups"][0]
+    assert ", ".join(said[n] for n in group[:8]) in out
+    on = d["disturbances"]["disturbances"]["load9"]
+    assert f"load9 -> {', '.join(said[n] for n in on)}" in out
+    _no_state_names(out, s)
+    code, d, out = _run(capsys, ["decouple", f])
+    assert d["bottleneck_states"]
+    assert f"crosses {', '.join(said[n] for n in d['bottleneck_states'])}" in out
+    _no_state_names(out, s)

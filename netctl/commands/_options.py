@@ -283,6 +283,10 @@ def load_system(args: argparse.Namespace) -> StructuredSystem:
                    or system.n_disturbances > 0 or args.model == "second-order")
     if system.n_disturbances:
         args._disturbances = disturbance_summary(system)
+        if system.elements is not None:  # a grid: the states they act on, in bus words
+            from netctl.commands._words import wording
+
+            args._said = wording(system)
     if system.elements is not None:
         args._grid = {"buses": len(system.elements.node_names),
                       "elements": system.elements.counts(), "model": system.model}
@@ -424,7 +428,10 @@ def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[st
     info = getattr(args, "_disturbances", None)
     if info is not None and text:
         head, _, rest = text.partition("\n")
-        text = head + "\n" + _disturbance_text(info) + ("\n" + rest if rest else "")
+        said = getattr(args, "_said", None)
+        line = _disturbance_text(info)
+        text = (head + "\n" + (said.text(line) if said is not None else line)
+                + ("\n" + rest if rest else ""))
     convention = getattr(args, "file_convention", None)
     if convention:
         text = text.rstrip("\n") + f"\n  ({convention})"
