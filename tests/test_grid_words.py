@@ -309,3 +309,23 @@ def test_stations_and_decouple_name_grid_states_by_bus(case14_plant, capsys):
     assert d["bottleneck_states"]
     assert f"crosses {', '.join(said[n] for n in d['bottleneck_states'])}" in out
     _no_state_names(out, s)
+
+
+@pytest.mark.parametrize("argv, path, marker", [
+    pytest.param(["place"], ("sites",), "  sites (", id="place"),
+    pytest.param(["secure", "--place"], ("sites",), "  sites (", id="secure-place"),
+    pytest.param(["strong"], ("drivers",), "  driven states (", id="strong"),
+    pytest.param(["modes"], ("exact_controllability", "drivers"), "  driver set (",
+                 id="modes"),
+])
+def test_first_order_grid_lists_name_buses(argv, path, marker, capsys):
+    """case14 in the first-order model (one state a bus, named by its bus number): the
+    sites and driven states the JSON names read 'bus N' in the text, as in drivers."""
+    f = _mfile("case14")
+    s = _model(f, "first-order")
+    said = _words(s)
+    _, d, out = _run(capsys, [argv[0], f, *argv[1:], "--model", "first-order"])
+    names = _get(d, path)
+    assert names and all(said[n] == f"bus {n}" for n in names)
+    line = next(x for x in out.splitlines() if x.startswith(marker))
+    assert ", ".join(said[n] for n in names) in line

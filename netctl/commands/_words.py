@@ -89,7 +89,7 @@ class Wording:
         a whole token (between spaces, commas, brackets, quotes, semicolons), a trailing
         ``:`` or ``.`` aside.
         """
-        if not self.swing or ":" not in line:
+        if not self.grid or ":" not in line:
             return line
 
         def one(m: re.Match[str]) -> str:

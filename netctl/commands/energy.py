@@ -68,6 +68,7 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     if args.top < 0:
         raise OptionError(f"--top must be >= 0, found {args.top}.")
     system, where = system_with_inputs(args)
+    said = wording(system)  # a grid's states in bus words
     refuse_dense(system, what='the controllability Gramian (energy metrics)', file=args.file)
     weights = resolve_weights(args, system)
     real = realize(system, weights=weights, seed=args.seed)
@@ -113,7 +114,7 @@ def _cmd_energy(args: argparse.Namespace) -> int:
             d["average_controllability_ranked"] = "vel states only (second-order model)"
         order = order[:args.top]
         lines.append(f"  average controllability ({AVERAGE_NOTE}{where_ranked}): " + ", ".join(
-            f"{real.state_names[i]} {r.average_controllability[i]:.4g}" for i in order))
+            f"{said(real.state_names[i])} {r.average_controllability[i]:.4g}" for i in order))
     budget = args.select
     if budget is None and r.n_states <= AUTO_SELECT_LIMIT:
         budget = -1  # structural count
@@ -126,13 +127,13 @@ def _cmd_energy(args: argparse.Namespace) -> int:
                                       2.0 * real.n_states))
         d["selection"] = sel.to_dict()
         lines.append(f"  greedy log-det choice of {sel.selected.size} among structurally "
-                     f"controllable sets: {', '.join(sel.names(sel.selected))} (log det "
+                     f"controllable sets: {', '.join(said.words(sel.names(sel.selected)))} (log det "
                      f"{sel.objective:.4g}, smallest eigenvalue <= {sel.lambda_min:.3g})")
         if not sel.structurally_controllable:
             lines.append("  !! the eligible actuator sites cannot make the system "
                          "structurally controllable: this set is uncontrollable for every "
                          "weight (structural)")
-        lines.append(f"  structural minimum set: {', '.join(sel.names(sel.structural))} "
+        lines.append(f"  structural minimum set: {', '.join(said.words(sel.names(sel.structural)))} "
                      f"(log det {sel.structural_objective:.4g}, smallest eigenvalue <= "
                      f"{sel.structural_lambda_min:.3g}); log det uses +{sel.epsilon:.2g} I")
     elif r.n_states > AUTO_SELECT_LIMIT and args.select is None:
@@ -140,5 +141,5 @@ def _cmd_energy(args: argparse.Namespace) -> int:
                      "with --select K)")
     lines.append("  " + CAUTION)
     d["caution"] = CAUTION
-    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
+    emit(args, d, said.text("\n".join(lines)))  # a grid: bus words
     return 1 if r.verdict.failing else 0

@@ -55,6 +55,7 @@ def _cmd_modes(args: argparse.Namespace) -> int:
     if args.weakest < 0:
         raise OptionError(f"--weakest must be >= 0, found {args.weakest}.")
     system, where = system_with_inputs(args)
+    said = wording(system)  # a grid's states in bus words
     refuse_dense(system, what='the modal analysis (all eigenvectors of A)', file=args.file)
     weights = resolve_weights(args, system)
     real = realize(system, weights=weights, seed=args.seed)
@@ -77,7 +78,7 @@ def _cmd_modes(args: argparse.Namespace) -> int:
         for m in r.unreached:
             lines.append(f"  !! mode {_ev(m.eigenvalue)} (multiplicity {m.multiplicity}, "
                          f"{m.geometric} eigenvector(s)) is not reached; it lives on "
-                         f"{{{_short(r.names(m.carriers))}}}")
+                         f"{{{_short(said.words(r.names(m.carriers)))}}}")
         lines.append("  " + "!" * 72)
     if args.weakest:
         lines.append(f"  weakest {min(args.weakest, len(r.modes))} mode(s) (reach = cosine "
@@ -86,7 +87,7 @@ def _cmd_modes(args: argparse.Namespace) -> int:
                      "netctl's own thresholds):")
         for m in r.weakest(args.weakest):
             lines.append(f"    {_ev(m.eigenvalue):>24}  x{m.multiplicity}  reach "
-                         f"{m.reach:.3g}  on {{{_short(r.names(m.carriers), 6)}}}")
+                         f"{m.reach:.3g}  on {{{_short(said.words(r.names(m.carriers)), 6)}}}")
     count = (f"exactly {x.n_inputs}" if x.count_certain else
              f"{x.n_inputs} (uncertain: multiplicity margin {x.count_margin:.3g} decades)")
     lines.append(f"  minimum inputs for these weights: {count} (largest geometric "
@@ -97,7 +98,7 @@ def _cmd_modes(args: argparse.Namespace) -> int:
               if x.mixing is not None else
               f"; more drivers than the count of {x.n_inputs}: dedicated inputs need "
               f"{x.n_drivers}")
-    lines.append(f"  driver set ({x.n_drivers}): {{{_short(x.names(x.drivers))}}} -- "
+    lines.append(f"  driver set ({x.n_drivers}): {{{_short(said.words(x.names(x.drivers)))}}} -- "
                  + (f"certified: {x.certificate}{shared}" if x.verified else
                     x.certificate))
     from netctl.numeric.verdict import judge
@@ -127,5 +128,5 @@ def _cmd_modes(args: argparse.Namespace) -> int:
                        "note": "netctl's own choices, no published source"}
     lines.append(("  !! " if verdict.failing else "  ") + verdict.line())
     lines.append("  " + CAUTION)
-    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
+    emit(args, d, said.text("\n".join(lines)))  # a grid: bus words
     return 1 if (r.unreached or verdict.failing) else 0

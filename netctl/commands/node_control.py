@@ -54,6 +54,7 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
         if value < low:
             raise UsageError(f"{name} must be at least {low}, found {value}.")
     system = load_system(args)
+    said = wording(system)  # a grid's states in bus words
     n = system.n_states
     cap = control_capacity(system, sweeps=args.sweeps, burn_in=args.burn_in, seed=args.seed)
     table = drivers_by_degree(system, cap)
@@ -80,14 +81,14 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
              f"{int(np.count_nonzero(c == 0))} never, {between} sometimes"]
     some = np.flatnonzero((c > 0) & (c < 1))
     for i in some[np.lexsort((some, -c[some]))][:args.top]:
-        lines.append(f"    {system.state_names[i]}: {c[i]:.3g} "
+        lines.append(f"    {said(system.state_names[i])}: {c[i]:.3g} "
                      f"(standard error {cap.standard_error[i]:.2g})")
     if cent is not None and n:
         k = cent.centrality
         lines.append(f"  control centrality (largest first; generic controllable dimension "
                      f"from that {t.state} alone, of {n}):")
         for i in np.lexsort((np.arange(n), -k))[:args.top]:
-            lines.append(f"    {system.state_names[i]}: {int(k[i])}")
+            lines.append(f"    {said(system.state_names[i])}: {int(k[i])}")
     lines.append(f"  driver fraction by in-degree (degree: {t.states}, expected fraction of "
                  "them that drive):")
     lines.append("    " + "; ".join(f"{k}: {m}, {f:.3g}" for k, m, f in table.in_degree[:8]))
@@ -96,5 +97,5 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
     note = caution(args, engineering=False)
     if note:
         lines.append("  " + note)
-    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
+    emit(args, d, said.text("\n".join(lines)))  # a grid: bus words
     return 0

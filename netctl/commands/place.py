@@ -21,7 +21,7 @@ from netctl.commands._options import (
     names_line,
     parse_names,
 )
-from netctl.commands._words import wording
+from netctl.commands._words import Wording, wording
 
 __all__ = ["register"]
 
@@ -70,6 +70,7 @@ def _cmd_place(args: argparse.Namespace) -> int:
         raise UsageError("give --sites (dedicated actuators) or --candidates (actuators "
                          "acting on several states), not both.")
     system = load_system(args)
+    said = wording(system)  # a grid's states in bus words
     kind = "sensor" if args.sensors else "actuator"
     sites = (read_sites(args.sites, system, kind=kind) if args.sites
              else sites_from_nodes(system, kind=kind))
@@ -89,7 +90,7 @@ def _cmd_place(args: argparse.Namespace) -> int:
                   "structural controllability (Lin)")
     d["check"] = {"method": check_name, "passed": result.verified}
     d["caution"] = CAUTION
-    emit(args, d, wording(system).text(_text(args, result, d, check_name, CAUTION)))  # bus words
+    emit(args, d, said.text(_text(args, result, d, check_name, CAUTION, said)))  # bus words
     return 0 if result.goal_met else 1
 
 
@@ -100,7 +101,7 @@ def _rank_limit() -> int:
 
 
 def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
-          caution: str) -> str:
+          caution: str, said: Wording) -> str:
     noun = "sensors" if r.kind == "sensors" else "actuators"
     what = {"dedicated": f"dedicated {noun}", "candidates": f"candidate {noun}",
             "target": f"dedicated {noun} for {len(d['targets'] or [])} target state(s)"}
@@ -112,7 +113,7 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
     if r.chosen.size and r.problem == "candidates":
         names = [a["name"] for a in d["actuators" if r.kind == "inputs" else "sensors"]]
         lines.append(f"  chosen {noun} ({len(names)}): {names_line(names)}")
-    lines.append(f"  sites ({r.sites.size}): {names_line(r.site_names) or '(none)'}")
+    lines.append(f"  sites ({r.sites.size}): {names_line(said.words(r.site_names)) or '(none)'}")
     lines.append(f"  total cost: {r.cost:g} (in the units of the site costs; 1 a site "
                  "when none are given)")
     if not r.feasible and r.best_effort:
@@ -148,7 +149,7 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
                 "reached by no chosen actuator"
             state = "unobservable" if r.kind == "sensors" else "uncontrollable"
             lines.append(f"  stays {state}, {verb} ({r.inaccessible.size}): "
-                         f"{names_line(r.names(r.inaccessible))}")
+                         f"{names_line(said.words(r.names(r.inaccessible)))}")
     if r.feasible:
         lines.append("  (one optimum of possibly many; ties broken by state order)")
     else:

@@ -138,6 +138,7 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
         fewest_failures,
     )
 
+    said = wording(system)  # a grid's states and inputs in bus words
     lines = [f"{args.file}: {system.n_states} states, model {system.model}"]
     out: dict[str, Any] = {"file": args.file, "k": args.k, "audits": []}
     secure = True
@@ -156,11 +157,11 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
             lines.extend(f"      - {r}" for r in au.intact_reasons())
         else:
             for c, name in enumerate(ELEMENT_CLASSES[:4]):
-                idx = [au.element_names[int(j)] for j in au.of_class(name)]
+                idx = [said(au.element_names[int(j)]) for j in au.of_class(name)]
                 if idx:
                     lines.append(f"    {name} ({len(idx)}): {names_line(idx)}")
             for j in au.critical[:10].tolist():
-                lines.append(f"    single point of failure {au.element_names[j]}:")
+                lines.append(f"    single point of failure {said(au.element_names[j])}:")
                 lines.extend(f"      - {r}" for r in au.reasons(j))
             if au.critical.size > 10:
                 lines.append(f"    ... {au.critical.size - 10} more (--json lists them)")
@@ -177,7 +178,7 @@ def _audit(args: argparse.Namespace, system: Any, kinds: list[str]) -> int:
     out["secure"] = bool(secure)
     out["caution"] = CAUTION
     lines.append("  " + CAUTION)
-    emit(args, out, wording(system).text("\n".join(lines)))  # a grid: bus words
+    emit(args, out, said.text("\n".join(lines)))  # a grid: bus words
     return 0 if secure else 1
 
 
@@ -190,6 +191,7 @@ def _place(args: argparse.Namespace, system: Any) -> int:
              if args.sites else None)
     r = secure_placement(system, kind=kind, against=args.against, k=args.k, sites=sites,
                          method=args.method, time_limit=args.time_limit, keep=args.keep)
+    said = wording(system)  # a grid's states in bus words
     noun = "sensors" if args.sensors else "actuators"
     what = (f"any {args.k} failure(s) of the design" if args.against == "elements" else
             "any one line" if args.k == 1 else f"any {args.k} lines")
@@ -197,7 +199,7 @@ def _place(args: argparse.Namespace, system: Any) -> int:
              f"  cheapest {'added ' if args.keep else ''}dedicated {noun} surviving {what}"
              + (f" (sites: {args.sites})" if args.sites else "")]
     if args.keep:
-        lines.append(f"  kept ({len(r.kept)}, can fail too): {names_line(list(r.kept))}")
+        lines.append(f"  kept ({len(r.kept)}, can fail too): {names_line(said.words(r.kept))}")
     if r.scenarios != "all":
         lines.append(f"  line losses {r.scenarios}: the design is checked on those only "
                      "(not proven for every combination)")
@@ -210,7 +212,7 @@ def _place(args: argparse.Namespace, system: Any) -> int:
     elif r.sites.size == 0:
         lines.append("  nothing to add: the kept design is already secure (proven)")
     else:
-        lines.append(f"  sites ({r.sites.size}): {names_line(r.site_names)}")
+        lines.append(f"  sites ({r.sites.size}): {names_line(said.words(r.site_names))}")
         status = ("NOT SECURE: the design failed its recheck; proven lower bound "
                   f"{r.lower_bound:g}" if r.verified is False else "optimal (proven)"
                   if r.optimal else
@@ -222,7 +224,7 @@ def _place(args: argparse.Namespace, system: Any) -> int:
     d = r.to_dict()
     d["file"] = args.file
     d["caution"] = CAUTION
-    emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
+    emit(args, d, said.text("\n".join(lines)))  # a grid: bus words
     found = r.feasible and (r.sites.size > 0 or (args.keep and r.optimal))
     # a sampled recheck (verified None) that passed does not fail the design
     return 0 if found and r.verified is not False else 1

@@ -69,14 +69,14 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         rep = strong_controllability(system, diagonal=args.diagonal)
         d: dict[str, Any] = {"file": args.file, "mode": "check", **rep.to_dict(),
                              "notes": notes, "caution": CAUTION}
-        driven = names_line(rep.names(system.driven_states()))
+        driven = names_line(wording(system).words(rep.names(system.driven_states())))
         lines = head + [f"  inputs ({rep.n_inputs}): {driven}",
                         "  strongly structurally controllable: "
                         + ("yes" if rep.strongly_controllable else "NO")]
         for reason in rep.reasons():
             lines.append(f"    - {reason}")
         if not rep.strongly_controllable:
-            lines.append("  unforced states: " + names_line(rep.unforced_names))
+            lines.append("  unforced states: " + names_line(wording(system).words(rep.unforced_names)))
         lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
         emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
         return 0 if rep.strongly_controllable else 1
@@ -99,7 +99,7 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         f"{design.n_inputs} ({quality})",
         f"  method: {design.method}; lower bound {design.lower_bound} from "
         f"{design.lower_bound_source}",
-        f"  driven states ({design.n_inputs}): {names_line(design.driver_names)}",
+        f"  driven states ({design.n_inputs}): {names_line(wording(system).words(design.driver_names))}",
         "  (one set of possibly many)"]
     lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
     emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words
