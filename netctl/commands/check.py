@@ -95,7 +95,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
             result["state_buses"] = said.buses(_named(reports))
         return result
 
-    emit(args, full, "\n".join(lines))
+    emit(args, full, said.text("\n".join(lines)))  # a grid: bus words
     return 0 if ok else 1
 
 

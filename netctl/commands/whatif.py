@@ -162,7 +162,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     if w.breaks_design:
         lines.append("  the change BREAKS the given design")
     lines.append("  " + CAUTION)
-    emit(args, d, "\n".join(lines))
+    emit(args, d, word.text("\n".join(lines)))  # inputs lost etc. in bus words
     if args.inputs is not None:
         return 0 if w.controllable_after else 1
     return 1 if w.n_inputs_after > w.n_inputs_before else 0
