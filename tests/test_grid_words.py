@@ -329,3 +329,27 @@ def test_first_order_grid_lists_name_buses(argv, path, marker, capsys):
     assert names and all(said[n] == f"bus {n}" for n in names)
     line = next(x for x in out.splitlines() if x.startswith(marker))
     assert ", ".join(said[n] for n in names) in line
+
+
+@pytest.mark.parametrize("path, model", [
+    pytest.param("case14", None, id="case14-swing"),
+    pytest.param("case14", "first-order", id="case14-first-order"),
+    pytest.param("networks/heating_loop.csv", None, id="no-elements"),
+])
+def test_wording_agrees_with_state_labels(path, model):
+    """The verbs' lazy wording gives every state the words and the bus of
+    ``state_labels`` / ``state_buses`` (the helpers drivers and roles use), and is the
+    identity without an element table."""
+    from netctl.commands._words import wording
+    from netctl.structural.branches import state_buses, state_labels
+
+    s = _model(_mfile(path) if path.startswith("case") else path, model)
+    w = wording(s)
+    n = s.n_states
+    assert w.of(range(n)) == state_labels(s, range(n))
+    at = state_buses(s).tolist()
+    expect = ({name: (s.elements.node_names[b] if b >= 0 else None)
+               for name, b in zip(s.state_names, at)} if s.elements is not None else {})
+    assert w.buses(s.state_names) == expect
+    if s.elements is None:
+        assert w.text("x: a:b, 1:vel") == "x: a:b, 1:vel" and not w.reasons()

@@ -10,7 +10,7 @@ always keeps the state names and adds each one's bus (:meth:`Wording.buses`).
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:
@@ -18,6 +18,8 @@ if TYPE_CHECKING:
 
 __all__ = ["Wording", "wording"]
 
+#: words of a second-order model's two states (as :func:`netctl.structural.branches.state_labels`)
+_PART_WORDS = {"pos": "angle", "vel": "frequency"}
 _TOKEN = re.compile(r"[^\s,{}()\[\];'\"]+")
 
 
@@ -34,28 +36,50 @@ class Wording:
 
     def __init__(self, system: StructuredSystem) -> None:
         self.grid = system.elements is not None
-        self._state_names: Sequence[str] = system.state_names
+        self._system = system
         #: a second-order grid: inputs act on frequencies only (README, grid section)
         self.swing = (system.elements is not None and "part" in system.nodes
                       and system.model.startswith("second-order"))
-        self._said: dict[str, str] = {}
-        self._bus: dict[str, str | None] = {}
-        if not self.grid:
-            return
-        from netctl.structural.branches import state_buses, state_labels
+        # built on first use, one name at a time: a verb names few of a large grid's states
+        self._said: dict[str, str | None] = {}
+        self._where: dict[str, int] | None = None
+        self._bus_names: set[str] | None = None
 
-        names = system.state_names
-        table = system.elements
-        assert table is not None
-        labels = state_labels(system, range(system.n_states))
-        self._said = dict(zip(names, labels))
-        at = state_buses(system).tolist()
-        self._bus = {name: (table.node_names[b] if b >= 0 else None)
-                     for name, b in zip(names, at)}
-        for name in system.input_names:
-            state = name[2:] if name.startswith("u:") else None
-            if state is not None and state in self._said and self._said[state] != state:
-                self._said[name] = f"input at {self._said[state]}"
+    def _state(self, name: str) -> int:
+        """Index of state ``name``, -1 when it is none."""
+        if self._where is None:
+            names = self._system.state_names
+            self._where = dict(zip(names, range(len(names))))
+        return self._where.get(name, -1)
+
+    def _bus_of(self, i: int) -> str | None:
+        """The bus of state ``i`` (the node table's ``node`` column, else its own name),
+        ``None`` when the element table has no such bus (as ``state_buses``)."""
+        s = self._system
+        if self._bus_names is None:
+            assert s.elements is not None
+            self._bus_names = set(s.elements.node_names)
+        node = s.nodes.get("node")
+        bus = str(node[i]) if node is not None else s.state_names[i]
+        return bus if bus in self._bus_names else None
+
+    def _words_of(self, name: str) -> str | None:
+        """The words for a state or dedicated-input name; ``None``: it has none."""
+        if name in self._said:
+            return self._said[name]
+        said: str | None = None
+        i = self._state(name)
+        if i >= 0:
+            bus = self._bus_of(i)
+            if bus is not None:
+                part = self._system.nodes.get("part")
+                word = _PART_WORDS.get(str(part[i])) if part is not None else None
+                said = f"bus {bus}" + (f" {word}" if word else "")
+        elif name.startswith("u:"):
+            state = self._words_of(name[2:])
+            said = None if state is None else f"input at {state}"
+        self._said[name] = said
+        return said
 
     def reasons(self, kind: str = "controllability") -> dict[str, Any]:
         """Keywords of ``ControllabilityReport.reasons`` for this system: the planner's
@@ -78,7 +102,10 @@ class Wording:
     def __call__(self, name: Any) -> str:
         """The words for one state (or input) name; the name itself when it has none."""
         name = str(name)
-        return self._said.get(name, name)
+        if not self.grid:
+            return name
+        said = self._words_of(name)
+        return name if said is None else said
 
     def text(self, line: str) -> str:
         """A line an analysis wrote with state names, in the planner's words.
@@ -95,8 +122,10 @@ class Wording:
         def one(m: re.Match[str]) -> str:
             token = m.group(0)
             core = token.rstrip(":.")
-            said = self._said.get(core)
-            return token if said is None or ":" not in core else said + token[len(core):]
+            if ":" not in core:
+                return token
+            said = self._words_of(core)
+            return token if said is None else said + token[len(core):]
 
         return _TOKEN.sub(one, line)
 
@@ -106,7 +135,8 @@ class Wording:
 
     def of(self, indices: Iterable[Any]) -> list[str]:
         """The words for state indices of the system this wording was made for."""
-        return [self(self._state_names[int(i)]) for i in indices]
+        names = self._system.state_names
+        return [self(names[int(i)]) for i in indices]
 
     def buses(self, names: Iterable[Any]) -> dict[str, str | None]:
         """JSON: state name -> its bus (``None``: a state of no bus), for those of the
@@ -114,7 +144,12 @@ class Wording:
         without elements."""
         if not self.grid:
             return {}
-        return {str(x): self._bus[str(x)] for x in names if str(x) in self._bus}
+        out: dict[str, str | None] = {}
+        for x in names:
+            i = self._state(str(x))
+            if i >= 0:
+                out[str(x)] = self._bus_of(i)
+        return out
 
 
 def wording(system: StructuredSystem) -> Wording:
