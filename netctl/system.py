@@ -492,11 +492,32 @@ class StructuredSystem:
         return np.unique(self.C.indices).astype(np.int64)
 
     # ------------------------------------------------------------------ transforms
+    def _states_of(self, states: Any) -> np.ndarray:
+        """State indices of ``states``: a 1-D integer array is indices as they are (a
+        state named ``"1"`` that is not state 1 cannot capture them); anything else goes
+        through :meth:`index_of` (names first, then integers as indices).
+
+        Raises
+        ------
+        UnknownNameError
+            A name is unknown, or an index is outside ``0 .. n-1``.
+        """
+        if isinstance(states, np.ndarray) and states.ndim == 1 and states.dtype.kind in "iu":
+            idx = states.astype(np.int64)
+            bad = idx[(idx < 0) | (idx >= self.n_states)]
+            if bad.size:
+                raise UnknownNameError(f"state index {int(bad[0])} is out of range: the "
+                                       f"system has {self.n_states} states (0 .. "
+                                       f"{self.n_states - 1}).")
+            return idx
+        return self.index_of(_as_list(states))
+
     def with_inputs(self, inputs: Any, *, names: Sequence[object] | None = None) -> StructuredSystem:
         """A copy with new input columns (replacing any existing ones).
 
         ``inputs`` may be: a sequence of state names or indices (one dedicated input
-        each); a mapping ``input name -> states it acts on``; or an ``n x m`` matrix.
+        each; a 1-D integer array is always indices, see ``_states_of``); a mapping
+        ``input name -> states it acts on``; or an ``n x m`` matrix.
         """
         n = self.n_states
         input_names: Sequence[object] | None = names
@@ -509,7 +530,7 @@ class StructuredSystem:
         elif sp.issparse(inputs) or (isinstance(inputs, np.ndarray) and inputs.ndim == 2):
             B = inputs
         else:
-            idx = self.index_of(_as_list(inputs))
+            idx = self._states_of(inputs)
             if input_names is None:
                 input_names = [f"u:{self.state_names[i]}" for i in idx]
             B = sp.coo_array((np.ones(idx.size), (idx, np.arange(idx.size))),
@@ -528,7 +549,7 @@ class StructuredSystem:
             for v in outputs.values():
                 self.index_of(_as_list(v))  # errors name this system's states
         elif not matrix:
-            self.index_of(_as_list(outputs))
+            self._states_of(outputs)
         dual = self.dual().with_inputs(outputs.T if matrix else outputs, names=names)
         if names is None and not isinstance(outputs, Mapping):
             dual = dual._replace(input_names=tuple(
