@@ -353,3 +353,22 @@ def test_wording_agrees_with_state_labels(path, model):
     assert w.buses(s.state_names) == expect
     if s.elements is None:
         assert w.text("x: a:b, 1:vel") == "x: a:b, 1:vel" and not w.reasons()
+
+
+@pytest.mark.parametrize("sensors", [False, True])
+def test_sites_file_lists_buses(tmp_path, capsys, sensors):
+    """A planner's site list names buses (case14: buses 3, 6, 8): an actuator site is the
+    bus's frequency, a sensor site its angle (README, grid section), as on the command
+    line; the JSON's sites are those states (node table), the text says the buses."""
+    f = _mfile("case14")
+    s = _model(f)
+    said, parts = _words(s), _parts(s)
+    node = dict(zip(s.state_names, (str(x) for x in s.nodes["node"])))
+    sites = tmp_path / "sites.csv"
+    sites.write_text("state,cost\n3,2\n6,1\n8,1\n")
+    argv = ["place", f, "--sites", str(sites)] + (["--sensors"] if sensors else [])
+    code, d, out = _run(capsys, argv)
+    assert code == 0 and d["sites"]
+    assert {node[n] for n in d["sites"]} <= {"3", "6", "8"}
+    assert {parts[n] for n in d["sites"]} == {"pos" if sensors else "vel"}
+    assert f"sites ({len(d['sites'])}): {', '.join(said[n] for n in d['sites'])}" in out

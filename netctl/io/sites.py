@@ -24,11 +24,26 @@ from netctl.system import StructuredSystem
 __all__ = ["parse_candidates", "parse_sites", "read_candidates", "read_sites"]
 
 
+def _node_state(system: StructuredSystem, name: str, kind: str) -> int | None:
+    """A plain node (bus) name of a second-order model as a site: its velocity
+    (frequency) state for an actuator, its position (angle) state for a sensor, as on the
+    command line (README, grid section); ``None`` when ``name`` is no such node."""
+    if "part" not in system.nodes:
+        return None
+    try:
+        idx = system.index_of([f"{name}:pos", f"{name}:vel"])
+    except KeyError:
+        return None
+    return int(idx[1] if kind == "actuator" else idx[0])
+
+
 def parse_sites(text: str, system: StructuredSystem, *, kind: str = "actuator",
                 source: str = "<sites>") -> Sites:
     """Site data from CSV text: a header ``state,cost`` (or ``state``), then one site a line.
 
-    A state not listed cannot host one. ``#`` starts a comment; fields are separated by
+    A state not listed cannot host one. In a second-order model a node (bus) may be
+    listed by its name: an actuator site is its velocity (frequency) state, a sensor
+    site its position (angle) state. ``#`` starts a comment; fields are separated by
     commas, tabs or semicolons. Without a cost column every listed state costs 1.0.
 
     Raises
@@ -63,7 +78,12 @@ def parse_sites(text: str, system: StructuredSystem, *, kind: str = "actuator",
         try:
             i = int(system.index_of([name])[0])
         except KeyError as exc:
-            raise _err(source, lineno, f"{exc} List only states of the network.") from None
+            j = _node_state(system, name, kind)
+            if j is None:
+                raise _err(source, lineno, f"{exc} List only states of the network"
+                           + (" (or a node's name, e.g. a bus number)" if "part" in system.nodes
+                              else "") + ".") from None
+            i = j
         if i in seen:
             raise _err(source, lineno, f"state {name!r} is listed twice (first on line "
                        f"{seen[i]}); give each site once.")
