@@ -372,3 +372,26 @@ def test_sites_file_lists_buses(tmp_path, capsys, sensors):
     assert {node[n] for n in d["sites"]} <= {"3", "6", "8"}
     assert {parts[n] for n in d["sites"]} == {"pos" if sensors else "vel"}
     assert f"sites ({len(d['sites'])}): {', '.join(said[n] for n in d['sites'])}" in out
+
+
+def test_report_document_names_grid_states_by_bus(tmp_path, capsys):
+    """The bundled island grid, input at bus 1: the Markdown report speaks of buses (the
+    states its JSON twin names, worded from the node table: the design's input, the
+    states strong structural control leaves unforced), no model state name is left,
+    and the JSON report keeps the state names."""
+    f = "networks/island_grid.m"
+    s = _model(f)
+    said = _words(s)
+    md, js = tmp_path / "r.md", tmp_path / "r.json"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        for out in (md, js):
+            assert main(["report", f, "--inputs", "1", "--out", str(out), "--quiet"]) in (0, 1)
+    capsys.readouterr()
+    d = json.loads(js.read_text())
+    text = md.read_text().replace("\\", "")  # Markdown escapes
+    assert d["facts"]["inputs"] == "1:vel" and f"inputs:** {said['1:vel']}" in text
+    strong = next(x for x in d["sections"] if x["key"] == "strong")["data"]
+    assert strong["unforced"]
+    assert ", ".join(said[n] for n in strong["unforced"][:4]) in text
+    _no_state_names(text, s)

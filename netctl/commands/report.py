@@ -14,6 +14,7 @@ from netctl.commands._options import (
     parse_names,
     progress_enabled,
 )
+from netctl.commands._words import wording
 
 __all__ = ["register"]
 
@@ -58,7 +59,11 @@ def _cmd_report(args: argparse.Namespace) -> int:
     report = build_report(system, inputs=inputs, source=args.file, seed=args.seed,
                           progress=progress, weights=args.weights)
     with progress.step(f"writing {args.out}"):
-        write_report(report, args.out)
+        # a grid's states in a planner's words for people (HTML, Markdown); JSON keeps
+        # the state names
+        said = wording(system)
+        write_report(report.reworded(said.text) if said.grid and fmt != "json" else report,
+                     args.out)
     verdict = _verdict(report)
     if args.json:
         sys.stdout.write(report.to_json())

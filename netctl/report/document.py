@@ -12,8 +12,8 @@ import base64
 import html
 import json
 import re
-from collections.abc import Sequence
-from dataclasses import dataclass, field
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 import numpy as np
@@ -124,6 +124,21 @@ class Report:
                 return s
         raise KeyError(f"no section {key!r}; the report has "
                        f"{', '.join(s.key for s in self.sections)}.")
+
+    def reworded(self, word: Callable[[str], str]) -> Report:
+        """The same report with every piece of text for people passed through ``word``
+        (facts, verdicts, paragraphs, notes, list items, table cells, captions), e.g. a
+        grid's states in a planner's words; each section's ``data`` (the JSON) and the
+        interactive map's data are kept as they are."""
+        def block(b: Block) -> Block:
+            rows = tuple(word(r) if isinstance(r, str) else tuple(word(str(c)) for c in r)
+                         for r in b.rows)
+            return replace(b, text=word(b.text) if b.text else b.text, rows=rows)
+
+        return replace(self, facts=tuple((k, word(v)) for k, v in self.facts),
+                       sections=tuple(replace(sec, verdict=word(sec.verdict),
+                                              blocks=tuple(block(b) for b in sec.blocks))
+                                      for sec in self.sections))
 
     # ------------------------------------------------------------------ JSON
     def to_dict(self) -> dict[str, Any]:
