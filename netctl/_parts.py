@@ -8,28 +8,37 @@ stored zeros removed, indices sorted, arrays frozen.
 
 from __future__ import annotations
 
-import functools
 import math
 from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, empty_pattern, is_sparse
 from netctl.errors import InvalidSystemError
 
 __all__ = ["DistinctNames", "NameList", "canonical_csr"]
 
 
-def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> sp.csr_array:
-    """Return ``matrix`` as a canonical float64 CSR array.
+def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> Pattern:
+    """Return ``matrix`` as the :class:`~netctl._csr.Pattern` of a canonical float64 CSR
+    matrix (read-only arrays).
 
     Canonical means: duplicates summed, explicitly stored zeros removed, column indices
-    sorted. NaN or infinite entries are rejected with a message naming ``what``.
+    sorted. NaN or infinite entries are rejected with a message naming ``what``. A
+    ``Pattern`` is taken as it is (only netctl builds them, canonical by construction).
     """
+    if isinstance(matrix, Pattern):
+        if matrix.shape != shape:
+            raise InvalidSystemError(
+                f"{what} must have shape {shape}, found {matrix.shape}. Check the number "
+                "of states, inputs and outputs.")
+        return matrix.frozen()
     shared = _share_canonical(matrix, shape)
     if shared is not None:
         return shared
+    import scipy.sparse as sp
+
     if sp.issparse(matrix) and matrix.nnz == 0 and matrix.shape == shape:
         return _empty_csr(shape)
     if sp.issparse(matrix):
@@ -46,22 +55,30 @@ def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> sp.csr_arra
         raise InvalidSystemError(
             f"{what} must have shape {shape}, found {m.shape}. Check the number of states, "
             "inputs and outputs.")
-    if m.nnz and not np.all(np.isfinite(m.data)):
-        bad = int(np.count_nonzero(~np.isfinite(m.data)))
-        raise InvalidSystemError(
-            f"{what} has {bad} NaN or infinite entr{'y' if bad == 1 else 'ies'}; "
-            "give finite weights, or omit the weights to analyse the pattern only.")
+    check_finite(m.data, what)
     m.sum_duplicates()
     m.eliminate_zeros()
     m.sort_indices()
-    m.indptr = m.indptr.astype(np.int64, copy=False)
-    m.indices = m.indices.astype(np.int64, copy=False)
-    return m
+    return Pattern(m.data, m.indices.astype(np.int64, copy=False),
+                   m.indptr.astype(np.int64, copy=False), shape).frozen()
 
 
-def _share_canonical(matrix: Any, shape: tuple[int, int]) -> sp.csr_array | None:
+def check_finite(data: np.ndarray, what: str) -> None:
+    """Refuse NaN or infinite weights, naming the matrix."""
+    if data.size and not np.all(np.isfinite(data)):
+        bad = int(np.count_nonzero(~np.isfinite(data)))
+        raise InvalidSystemError(
+            f"{what} has {bad} NaN or infinite entr{'y' if bad == 1 else 'ies'}; "
+            "give finite weights, or omit the weights to analyse the pattern only.")
+
+
+def _share_canonical(matrix: Any, shape: tuple[int, int]) -> Pattern | None:
     """Reuse the arrays of an already canonical float64/int64 CSR matrix (read-only views,
     no copy), or return None. Saves a full copy of large networks at every step."""
+    if not is_sparse(matrix):
+        return None
+    import scipy.sparse as sp
+
     if not (isinstance(matrix, (sp.csr_array, sp.csr_matrix)) and matrix.shape == shape
             and matrix.dtype == np.float64 and matrix.indices.dtype == np.int64
             and matrix.indptr.dtype == np.int64):
@@ -69,24 +86,14 @@ def _share_canonical(matrix: Any, shape: tuple[int, int]) -> sp.csr_array | None
     if matrix.nnz and not (matrix.has_canonical_format and np.all(matrix.data != 0)
                            and np.all(np.isfinite(matrix.data))):
         return None
-    m = sp.csr_array(shape, dtype=np.float64)
-    m.data, m.indices, m.indptr = matrix.data.view(), matrix.indices.view(), matrix.indptr.view()
-    m.has_canonical_format = True
-    return m
+    return Pattern(matrix.data.view(), matrix.indices.view(), matrix.indptr.view(),
+                   shape).frozen()
 
 
-@functools.lru_cache(maxsize=32)
-def _empty_csr(shape: tuple[int, int]) -> sp.csr_array:
-    """A canonical CSR array without entries, frozen and shared between systems of the
-    same sizes (read-only, so sharing is safe). Its pointer array comes from
-    ``np.zeros``, whose pages the operating system maps lazily: an empty ``B`` of a
-    10^7-state system costs no memory until something writes to it (nothing can)."""
-    m = sp.csr_array(shape, dtype=np.float64)
-    m.data = np.zeros(0, np.float64)
-    m.indices = np.zeros(0, np.int64)
-    m.indptr = np.zeros(shape[0] + 1, np.int64)
-    m.has_canonical_format = True
-    return _freeze(m)
+def _empty_csr(shape: tuple[int, int]) -> Pattern:
+    """A canonical pattern without entries, frozen and shared between systems of the same
+    sizes (:func:`netctl._csr.empty_pattern`)."""
+    return empty_pattern(shape)
 
 
 class NameList(Sequence[str]):
@@ -214,7 +221,7 @@ def _as_index_array(values: Any, upper: int, what: str) -> np.ndarray:
     return arr
 
 
-def _freeze(a: sp.csr_array) -> sp.csr_array:
+def _freeze(a: Any) -> Any:
     for arr in (a.data, a.indices, a.indptr):
         arr.setflags(write=False)
     return a

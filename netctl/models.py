@@ -22,7 +22,6 @@ from __future__ import annotations
 import warnings
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
@@ -125,6 +124,8 @@ def second_order(network: StructuredSystem) -> StructuredSystem:
     -----
     O(n + E) array code. Orientation: ``A[v, u] != 0`` means ``u`` influences ``v``.
     """
+    import scipy.sparse as sp
+
     n = network.n_states
     A = network.A.tocoo()
     loop = A.row == A.col

@@ -19,12 +19,14 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.errors import OptionError, UnknownNameError
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
 
 __all__ = [
     "BRANCH_KINDS",
@@ -125,6 +127,8 @@ class Candidates:
 
     def matrix(self, chosen: np.ndarray, n: int) -> sp.csr_array:
         """The ``n x len(chosen)`` input matrix of the chosen candidates."""
+        import scipy.sparse as sp
+
         cols = [self.states_of(int(k)) for k in chosen]
         rows = np.concatenate(cols) if cols else np.zeros(0, np.int64)
         cidx = np.repeat(np.arange(len(cols)), [c.size for c in cols])

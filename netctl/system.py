@@ -14,20 +14,24 @@ from __future__ import annotations
 import warnings
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import (
+    Pattern,
+    coo_pattern,
+    is_sparse,
+    n_diagonal,
+    transpose_pattern,
+)
 from netctl._parts import (
     DistinctNames,  # noqa: F401 (readers import it from here)
     NameList,
     _as_index_array,
     _as_list,
-    _count_unique_pairs,
     _empty_csr,
     _first_common,
-    _freeze,
     _is_bool,
     _missing,
     _names,
@@ -38,9 +42,17 @@ from netctl._parts import (
     _table,
     _truthy,  # noqa: F401 (readers import it from here)
     canonical_csr,
+    check_finite,
 )
 from netctl.errors import InvalidSystemError, UnknownNameError
-from netctl.records import ElementTable
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
+
+    from netctl.records import ElementTable
+
+#: the matrices of a system, stored as :class:`~netctl._csr.Pattern` in ``_parts``
+_MATRICES = ("A", "B", "C", "E", "H")
 
 __all__ = ["StructuredSystem", "NameList", "NODE_COLUMNS", "canonical_csr"]
 
@@ -145,55 +157,69 @@ class StructuredSystem:
                     f"{clash!r} is both a state and a disturbance; a disturbance is never a "
                     "state: rename one of them.")
         dnodes = _table(self.disturbance_nodes, q, "disturbance table", "disturbance")
-        object.__setattr__(self, "E", _freeze(E))
-        object.__setattr__(self, "H", _freeze(H))
+        for k in _MATRICES:  # built again from the stored parts when first asked for
+            self.__dict__.pop(k, None)
+        object.__setattr__(self, "_parts", {"A": A, "B": B, "C": C, "E": E, "H": H})
         object.__setattr__(self, "disturbance_names", disturbances)
         object.__setattr__(self, "regulated_names", regulated)
         object.__setattr__(self, "disturbance_nodes", dnodes)
-        object.__setattr__(self, "A", _freeze(A))
-        object.__setattr__(self, "B", _freeze(B))
-        object.__setattr__(self, "C", _freeze(C))
         object.__setattr__(self, "state_names", states)
         object.__setattr__(self, "input_names", inputs)
         object.__setattr__(self, "output_names", outputs)
         object.__setattr__(self, "nodes", nodes)
         object.__setattr__(self, "_index", {})
 
+    # ------------------------------------------------------------------ stored form
+    def pattern(self, part: str) -> Pattern:
+        """The stored CSR arrays of ``part`` (``"A"``, ``"B"``, ``"C"``, ``"E"`` or
+        ``"H"``): canonical, float64 data, int64 indices, read-only.
+
+        The same arrays as ``system.A.indptr`` and so on, without building a scipy
+        array (or importing scipy): the engine and the analyses read these.
+        """
+        return self._parts[part]  # type: ignore[no-any-return]
+
+    def __getstate__(self) -> dict[str, Any]:
+        return {k: v for k, v in self.__dict__.items() if k not in _MATRICES}
+
+    def __setstate__(self, state: dict[str, Any]) -> None:
+        self.__dict__.update(state)
+
     # ------------------------------------------------------------------ sizes
     @property
     def n_states(self) -> int:
         """Number of states ``n``."""
-        return int(self.A.shape[0])
+        return int(self._parts["A"].shape[0])
 
     @property
     def n_inputs(self) -> int:
         """Number of input columns ``m``."""
-        return int(self.B.shape[1])
+        return int(self._parts["B"].shape[1])
 
     @property
     def n_outputs(self) -> int:
         """Number of output rows ``p``."""
-        return int(self.C.shape[0])
+        return int(self._parts["C"].shape[0])
 
     @property
     def n_disturbances(self) -> int:
         """Number of disturbance columns ``q`` (of ``E``)."""
-        return int(self.E.shape[1])
+        return int(self._parts["E"].shape[1])
 
     @property
     def n_regulated(self) -> int:
         """Number of regulated output rows ``r`` (of ``H``)."""
-        return int(self.H.shape[0])
+        return int(self._parts["H"].shape[0])
 
     @property
     def n_links(self) -> int:
         """Number of nonzero entries of ``A`` (self-loops included)."""
-        return int(self.A.nnz)
+        return self._parts["A"].nnz  # type: ignore[no-any-return]
 
     @property
     def n_self_loops(self) -> int:
         """Number of states with self-dynamics (nonzero diagonal of ``A``)."""
-        return int(np.count_nonzero(self.A.diagonal()))
+        return n_diagonal(self._parts["A"])
 
     # ------------------------------------------------------------------ builders
     @classmethod
@@ -254,15 +280,15 @@ class StructuredSystem:
                 raise InvalidSystemError(
                     f"weights must have one value per edge ({src.size}), found {data.size}.")
             weighted = True
-        A = sp.coo_array((data, (dst, src)), shape=(n_states, n_states)).tocsr()
-        n_dup = src.size - _count_unique_pairs(dst, src, n_states)
+        A, n_dup = coo_pattern(dst, src, data if weighted else None, (n_states, n_states))
         if n_dup:
             warnings.warn(
                 f"{n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} merged"
                 + (" (weights summed)" if weighted else "") + ".", stacklevel=2)
-        if not weighted:
-            A.sum_duplicates()
-            A.data[:] = 1.0
+        if weighted:
+            check_finite(A.data, "A")
+        elif n_dup:  # a pattern: a merged link is still 1.0
+            A = Pattern(np.ones(A.nnz), A.indices, A.indptr, A.shape).frozen()
         sys_ = cls(A=A, B=None, C=None, state_names=_seq(state_names), input_names=(),
                    output_names=(), nodes=dict(nodes or {}), weighted=weighted, model=model)
         if inputs is not None:
@@ -328,9 +354,9 @@ class StructuredSystem:
         """
         n = _shape(A, "A")[0]
         if B is None:
-            B = sp.csr_array((n, 0))
+            B = _empty_csr((n, 0))
         if C is None:
-            C = sp.csr_array((0, n))
+            C = _empty_csr((0, n))
         if _is_bool(A):
             weighted = False
         return cls(A=A, B=B, C=C, state_names=_seq(state_names),
@@ -420,8 +446,9 @@ class StructuredSystem:
     # ------------------------------------------------------------------ views
     def edges(self) -> tuple[np.ndarray, np.ndarray]:
         """Edge arrays ``(sources, targets)`` of ``A``, sorted by target then source."""
-        tgt = np.repeat(np.arange(self.n_states, dtype=np.int64), np.diff(self.A.indptr))
-        return self.A.indices.copy(), tgt
+        A = self._parts["A"]
+        tgt = np.repeat(np.arange(self.n_states, dtype=np.int64), np.diff(A.indptr))
+        return A.indices.copy(), tgt
 
     def index_of(self, names: Iterable[object], *, kind: str = "state") -> np.ndarray:
         """Indices of the given state (or ``kind="input"`` / ``"output"``) names.
@@ -475,7 +502,7 @@ class StructuredSystem:
 
     def disturbed_states(self) -> np.ndarray:
         """Sorted indices of the states some disturbance acts on directly."""
-        return np.flatnonzero(np.diff(self.E.indptr)).astype(np.int64)
+        return np.flatnonzero(np.diff(self._parts["E"].indptr)).astype(np.int64)
 
     def disturbed_by(self, disturbance: object) -> list[str]:
         """Names of the states the disturbance (a name or an index) acts on directly."""
@@ -485,11 +512,11 @@ class StructuredSystem:
 
     def driven_states(self) -> np.ndarray:
         """Sorted indices of the states some input acts on directly (driver nodes)."""
-        return np.flatnonzero(np.diff(self.B.indptr)).astype(np.int64)
+        return np.flatnonzero(np.diff(self._parts["B"].indptr)).astype(np.int64)
 
     def measured_states(self) -> np.ndarray:
         """Sorted indices of the states some output reads directly."""
-        return np.unique(self.C.indices).astype(np.int64)
+        return np.unique(self._parts["C"].indices).astype(np.int64)
 
     # ------------------------------------------------------------------ transforms
     def _states_of(self, states: Any) -> np.ndarray:
@@ -526,15 +553,15 @@ class StructuredSystem:
             cols = [self.index_of(_as_list(v)) for v in inputs.values()]
             rows = np.concatenate(cols) if cols else np.zeros(0, np.int64)
             colidx = np.repeat(np.arange(len(cols)), [c.size for c in cols])
-            B = sp.coo_array((np.ones(rows.size), (rows, colidx)), shape=(n, len(cols)))
-        elif sp.issparse(inputs) or (isinstance(inputs, np.ndarray) and inputs.ndim == 2):
+            B: Any = coo_pattern(rows, colidx, None, (n, len(cols)), count=False)[0]
+        elif isinstance(inputs, Pattern) or is_sparse(inputs) or (
+                isinstance(inputs, np.ndarray) and inputs.ndim == 2):
             B = inputs
         else:
             idx = self._states_of(inputs)
             if input_names is None:
                 input_names = [f"u:{self.state_names[i]}" for i in idx]
-            B = sp.coo_array((np.ones(idx.size), (idx, np.arange(idx.size))),
-                             shape=(n, idx.size))
+            B = coo_pattern(idx, np.arange(idx.size), None, (n, idx.size), count=False)[0]
         m = B.shape[1]
         return self._replace(B=B, input_names=tuple(input_names) if input_names is not None
                              else tuple(f"u{k}" for k in range(m)))
@@ -543,7 +570,7 @@ class StructuredSystem:
         """A copy with new output rows: state names/indices (one dedicated sensor each),
         a mapping ``output name -> states it reads``, or a ``p x n`` matrix."""
         # a 1-D array is a list of states (as with_inputs takes it), not a matrix
-        matrix = sp.issparse(outputs) or (isinstance(outputs, np.ndarray)
+        matrix = is_sparse(outputs) or (isinstance(outputs, np.ndarray)
                                           and outputs.ndim == 2)
         if isinstance(outputs, Mapping):
             for v in outputs.values():
@@ -577,11 +604,15 @@ class StructuredSystem:
         """A copy with new regulated outputs ``z = H x``: state names/indices (one each,
         named ``z:<state>``), a mapping ``name -> states it depends on``, or an ``r x n``
         matrix."""
-        if sp.issparse(regulated) or isinstance(regulated, np.ndarray):
+        if is_sparse(regulated) or isinstance(regulated, np.ndarray):
             H, znames = self._columns(regulated.T, names, "z")
         else:
             H, znames = self._columns(regulated, names, "z")
-        return self._replace(H=sp.csr_array(H).T.tocsr(), regulated_names=znames)
+        if not isinstance(H, Pattern):
+            import scipy.sparse as sp
+
+            return self._replace(H=sp.csr_array(H).T.tocsr(), regulated_names=znames)
+        return self._replace(H=transpose_pattern(H), regulated_names=znames)
 
     def states_to_disturbances(self, names: Iterable[object]) -> StructuredSystem:
         """A copy in which the named states become disturbances.
@@ -604,6 +635,8 @@ class StructuredSystem:
         if np.unique(idx).size != idx.size:
             dup = self.state_names[int(np.flatnonzero(np.bincount(idx) > 1)[0])]
             raise InvalidSystemError(f"the disturbance {dup!r} is named twice.")
+        import scipy.sparse as sp
+
         n = self.n_states
         indeg = np.diff(self.A.indptr)
         for i in idx.tolist():
@@ -651,14 +684,14 @@ class StructuredSystem:
             cols = [self.index_of(_as_list(v)) for v in spec.values()]
             rows = np.concatenate(cols) if cols else np.zeros(0, np.int64)
             colidx = np.repeat(np.arange(len(cols)), [c.size for c in cols])
-            M = sp.coo_array((np.ones(rows.size), (rows, colidx)), shape=(n, len(cols)))
+            M = coo_pattern(rows, colidx, None, (n, len(cols)), count=False)[0]
             return M, tuple(str(k) for k in spec.keys())
-        if sp.issparse(spec) or (isinstance(spec, np.ndarray) and spec.ndim == 2):
+        if is_sparse(spec) or (isinstance(spec, np.ndarray) and spec.ndim == 2):
             k = spec.shape[1]
             return spec, (tuple(str(x) for x in names) if names is not None
                           else tuple(f"{prefix}{j}" for j in range(k)))
         idx = self.index_of(_as_list(spec))
-        M = sp.coo_array((np.ones(idx.size), (idx, np.arange(idx.size))), shape=(n, idx.size))
+        M = coo_pattern(idx, np.arange(idx.size), None, (n, idx.size), count=False)[0]
         return M, (tuple(str(x) for x in names) if names is not None
                    else tuple(f"{prefix}:{self.state_names[i]}" for i in idx))
 
@@ -687,12 +720,13 @@ class StructuredSystem:
                 raise InvalidSystemError(
                     f"{clash!r} is both a state and a disturbance; a disturbance is never a "
                     "state: rename one of them.")
+        t = {k: transpose_pattern(v) for k, v in self._parts.items()}
         return StructuredSystem._trusted(
-            A=_transpose(self.A), B=_transpose(self.C), C=_transpose(self.B),
+            A=t["A"], B=t["C"], C=t["B"],
             state_names=self.state_names, input_names=self.output_names,
             output_names=self.input_names, nodes=dict(self.nodes),
             weighted=self.weighted, model=self.model,
-            E=_transpose(self.H), H=_transpose(self.E),
+            E=t["H"], H=t["E"],
             disturbance_names=disturbances, regulated_names=self.disturbance_names,
             disturbance_nodes={}, elements=self.elements,
             # the states are the same: share their name lookup (built once, never changed)
@@ -700,21 +734,30 @@ class StructuredSystem:
 
     @classmethod
     def _trusted(cls, **parts: Any) -> StructuredSystem:
-        """A system from parts that are already in stored form (frozen canonical CSR
-        arrays, validated name sequences, read-only node-table columns of the right
-        lengths), without running the constructor's checks (``_index`` may be given: a
-        name lookup to share). Internal: only for parts
-        derived from a validated system by operations that keep them valid."""
+        """A system from parts that are already in stored form (frozen canonical
+        patterns, or canonical CSR arrays with int64 indices; validated name sequences,
+        read-only node-table columns of the right lengths), without running the
+        constructor's checks (``_index`` may be given: a name lookup to share). Internal:
+        only for parts derived from a validated system by operations that keep them
+        valid."""
         self = object.__new__(cls)
+        stored = {}
         for name in cls.__dataclass_fields__:
+            if name in _MATRICES:
+                m = parts.pop(name)
+                stored[name] = m if isinstance(m, Pattern) else Pattern.of_scipy(m).frozen()
+                continue
             object.__setattr__(self, name, parts.pop(name, {}) if name == "_index"
                                else parts.pop(name))
+        object.__setattr__(self, "_parts", stored)
         if parts:
             raise TypeError(f"unknown parts {sorted(parts)!r}")
         return self
 
     def with_self_loops(self) -> StructuredSystem:
         """A copy with self-dynamics on every state (existing diagonal weights kept)."""
+        import scipy.sparse as sp
+
         n = self.n_states
         diag = self.A.diagonal()
         add = np.where(diag == 0, 1.0, 0.0)
@@ -745,10 +788,11 @@ class StructuredSystem:
         return g
 
     def _replace(self, **changes: Any) -> StructuredSystem:
-        base = dict(A=self.A, B=self.B, C=self.C, state_names=self.state_names,
+        p = self._parts
+        base = dict(A=p["A"], B=p["B"], C=p["C"], state_names=self.state_names,
                     input_names=self.input_names, output_names=self.output_names,
                     nodes=self.nodes, weighted=self.weighted, model=self.model,
-                    E=self.E, H=self.H, disturbance_names=self.disturbance_names,
+                    E=p["E"], H=p["H"], disturbance_names=self.disturbance_names,
                     regulated_names=self.regulated_names,
                     disturbance_nodes=self.disturbance_nodes, elements=self.elements)
         base.update(changes)
@@ -757,7 +801,7 @@ class StructuredSystem:
     def same_as(self, other: StructuredSystem) -> bool:
         """Whether ``other`` has the same parts: patterns and weights of ``A, B, C, E, H``,
         all names, the node tables, ``weighted`` and ``model``."""
-        def eq_matrix(a: sp.csr_array, b: sp.csr_array) -> bool:
+        def eq_matrix(a: Pattern, b: Pattern) -> bool:
             return a.shape == b.shape and a.nnz == b.nnz and bool(
                 np.array_equal(a.indptr, b.indptr) and np.array_equal(a.indices, b.indices)
                 and np.array_equal(a.data, b.data))
@@ -768,7 +812,7 @@ class StructuredSystem:
                 if a[k].dtype.kind == "f" else list(a[k]) == list(b[k]) for k in a)
 
         return (isinstance(other, StructuredSystem)
-                and all(eq_matrix(getattr(self, k), getattr(other, k)) for k in "ABCEH")
+                and all(eq_matrix(self._parts[k], other._parts[k]) for k in _MATRICES)
                 and all(tuple(getattr(self, k)) == tuple(getattr(other, k)) for k in (
                     "state_names", "input_names", "output_names", "disturbance_names",
                     "regulated_names"))
@@ -795,17 +839,24 @@ class StructuredSystem:
                 f"model={self.model!r}, weighted={self.weighted})")
 
 
-def _transpose(M: sp.csr_array) -> sp.csr_array:
-    """The transpose of a canonical (stored-form) CSR array, itself in stored form.
 
-    Converting the CSC view ``M.T`` to CSR walks the entries in row order of ``M``, so
-    every new row comes out with sorted column indices; a canonical ``M`` has no
-    duplicates, zeros or non-finite values, and neither has its transpose."""
-    r, c = M.shape
-    if M.nnz == 0:
-        return _empty_csr((c, r))
-    T = M.T.tocsr()
-    T.indptr = T.indptr.astype(np.int64, copy=False)
-    T.indices = T.indices.astype(np.int64, copy=False)
-    T.has_canonical_format = True
-    return _freeze(T)
+class _SparseView:
+    """``system.A`` (``B``, ``C``, ``E``, ``H``): a scipy ``csr_array`` sharing the stored
+    arrays of that part, built on first access and kept (a non-data descriptor: the
+    instance's own attribute wins once set). Structural analyses read the stored arrays
+    (:meth:`StructuredSystem.pattern`) and never build it, so scipy stays unloaded."""
+
+    def __init__(self, name: str) -> None:
+        self.name = name
+
+    def __get__(self, obj: Any, owner: Any = None) -> Any:
+        if obj is None:
+            return self
+        m = obj._parts[self.name].to_scipy()
+        obj.__dict__[self.name] = m
+        return m
+
+
+for _name in _MATRICES:  # after @dataclass, which keeps them as constructor fields
+    setattr(StructuredSystem, _name, _SparseView(_name))
+del _name

@@ -13,6 +13,7 @@ import re
 import sys
 from collections.abc import Callable
 from pathlib import Path
+from typing import TYPE_CHECKING, Any
 
 from netctl.errors import (
     InvalidSystemError,
@@ -22,39 +23,87 @@ from netctl.errors import (
     OptionError,
 )
 from netctl.io._common import atomic_group, atomic_write, excerpt, file_error, ungrouped
-from netctl.io.edgelist import read_edgelist, write_edgelist
-from netctl.io.gml import read_gml, write_gml
-from netctl.io.graphml import read_graphml, write_graphml
-from netctl.io.matpower import read_matpower
-from netctl.io.matrix_csv import read_matrix_csv, write_matrix_csv
-from netctl.io.mtx import read_mtx, write_mtx
-from netctl.io.nodelink import read_nodelink, write_nodelink
-from netctl.io.npy import read_npy, write_npy
-from netctl.io.npz import read_npz, write_npz
-from netctl.io.pandapower_json import looks_like_pandapower, read_pandapower_json
-from netctl.io.system_spec import declared_terms, read_system, write_system
-from netctl.system import StructuredSystem
+
+if TYPE_CHECKING:
+    from netctl.system import StructuredSystem
 
 __all__ = ["FORMATS", "GRID_FORMATS", "MATRIX_FORMATS", "ORIENTATIONS", "atomic_write",
            "declared_terms",
            "detect_format", "file_convention", "read", "read_state_list", "write"]
 
-Reader = Callable[..., StructuredSystem]
-Writer = Callable[[StructuredSystem, "str | os.PathLike[str]"], None]
+Reader = Callable[..., "StructuredSystem"]
+Writer = Callable[["StructuredSystem", "str | os.PathLike[str]"], None]
+
+#: where each reader and writer lives: public name -> its module (imported on first use,
+#: so that reading one edge list loads neither the XML, the MATPOWER nor the grid readers)
+_HOME: dict[str, str] = {
+    "read_edgelist": "edgelist", "write_edgelist": "edgelist",
+    "read_mtx": "mtx", "write_mtx": "mtx",
+    "read_system": "system_spec", "write_system": "system_spec",
+    "declared_terms": "system_spec",
+    "read_npz": "npz", "write_npz": "npz", "read_npy": "npy", "write_npy": "npy",
+    "read_matrix_csv": "matrix_csv", "write_matrix_csv": "matrix_csv",
+    "read_graphml": "graphml", "write_graphml": "graphml",
+    "read_gml": "gml", "write_gml": "gml",
+    "read_nodelink": "nodelink", "write_nodelink": "nodelink",
+    "read_matpower": "matpower",
+    "read_pandapower_json": "pandapower_json", "looks_like_pandapower": "pandapower_json",
+}
+
+
+def __getattr__(name: str) -> Any:
+    """The readers and writers, imported from their modules on first access (PEP 562)."""
+    home = _HOME.get(name)
+    if home is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    import importlib
+
+    value = getattr(importlib.import_module(f"netctl.io.{home}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(_HOME))
+
+
+class _Deferred:
+    """A reader or writer of :data:`FORMATS` that imports its module when first called."""
+
+    __slots__ = ("__name__", "_target")
+
+    def __init__(self, name: str) -> None:
+        self.__name__ = name
+        self._target: Callable[..., Any] | None = None
+
+    def resolve(self) -> Callable[..., Any]:
+        """The function itself (its module imported)."""
+        if self._target is None:
+            self._target = __getattr__(self.__name__)
+        return self._target
+
+    def __call__(self, *args: Any, **kwargs: Any) -> Any:
+        return self.resolve()(*args, **kwargs)
+
+    def __repr__(self) -> str:
+        return f"<netctl.io.{self.__name__}, imported on first call>"
+
 
 #: format name -> (reader, writer, file suffixes)
 FORMATS: dict[str, tuple[Reader, Writer | None, tuple[str, ...]]] = {
-    "edgelist": (read_edgelist, write_edgelist, (".csv", ".tsv", ".txt", ".edges", ".el")),
-    "mtx": (read_mtx, write_mtx, (".mtx", ".mm")),
-    "system": (read_system, write_system, (".toml",)),
-    "npz": (read_npz, write_npz, (".npz",)),
-    "npy": (read_npy, write_npy, (".npy",)),
-    "matrix-csv": (read_matrix_csv, write_matrix_csv, (".matrix.csv", ".matrix.txt")),
-    "graphml": (read_graphml, write_graphml, (".graphml",)),
-    "gml": (read_gml, write_gml, (".gml",)),
-    "json": (read_nodelink, write_nodelink, (".json",)),
-    "matpower": (read_matpower, None, (".m",)),
-    "pandapower": (read_pandapower_json, None, ()),
+    "edgelist": (_Deferred("read_edgelist"), _Deferred("write_edgelist"),
+                 (".csv", ".tsv", ".txt", ".edges", ".el")),
+    "mtx": (_Deferred("read_mtx"), _Deferred("write_mtx"), (".mtx", ".mm")),
+    "system": (_Deferred("read_system"), _Deferred("write_system"), (".toml",)),
+    "npz": (_Deferred("read_npz"), _Deferred("write_npz"), (".npz",)),
+    "npy": (_Deferred("read_npy"), _Deferred("write_npy"), (".npy",)),
+    "matrix-csv": (_Deferred("read_matrix_csv"), _Deferred("write_matrix_csv"),
+                   (".matrix.csv", ".matrix.txt")),
+    "graphml": (_Deferred("read_graphml"), _Deferred("write_graphml"), (".graphml",)),
+    "gml": (_Deferred("read_gml"), _Deferred("write_gml"), (".gml",)),
+    "json": (_Deferred("read_nodelink"), _Deferred("write_nodelink"), (".json",)),
+    "matpower": (_Deferred("read_matpower"), None, (".m",)),
+    "pandapower": (_Deferred("read_pandapower_json"), None, ()),
 }
 
 #: Formats whose files describe a power grid (read with buses, branches and elements).
@@ -167,6 +216,8 @@ def read(path: str | os.PathLike[str], format: str | None = None, *,
                           "format (GraphML, GML and node-link JSON say whether they are "
                           "directed; a symmetric matrix is already both ways); leave it out.")
     if undirected:
+        from netctl.io.edgelist import read_edgelist
+
         return _safely(path, fmt, lambda: read_edgelist(path, model=model, undirected=True))
     if format is None and fmt == "json" and _sniff_pandapower(path):
         fmt = "pandapower"
@@ -188,6 +239,8 @@ def _sniff_pandapower(path: str | os.PathLike[str]) -> bool:
                 head = gz.read(4096)
     except OSError:
         return False  # the reader reports the problem
+    from netctl.io.pandapower_json import looks_like_pandapower
+
     return looks_like_pandapower(head.decode("utf-8", "replace"))
 
 

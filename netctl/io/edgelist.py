@@ -31,8 +31,9 @@ from pathlib import Path
 from typing import IO
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern
+from netctl._parts import check_finite
 from netctl.errors import LimitError, MissingFileError
 from netctl.io import _edgescan as _k
 from netctl.io._common import (
@@ -560,6 +561,8 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
         hi = np.maximum(e.sources, e.targets)
         one_way = _system_from_arrays(dataclasses.replace(e, sources=lo, targets=hi), path,
                                       model=model)
+        import scipy.sparse as sp
+
         A = one_way.A  # row = hi >= column = lo: each link once; add its mirror
         system = one_way._replace(A=sp.csr_array(A + sp.tril(A, k=-1, format="csr").T))
     else:
@@ -587,10 +590,8 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
         dst, src, np.empty(0) if w is None else w, n, w is not None)
     # the arrays as built (int64, canonical): no index-type round trip through scipy's
     # constructor, and the system shares them instead of copying
-    A = sp.csr_array((n, n))
-    A.data, A.indices, A.indptr = data, indices, indptr
-    A.has_sorted_indices = True
-    A.has_canonical_format = True
+    check_finite(data, "A")
+    A = Pattern(data, indices, indptr, (n, n))
     if n_dup:
         warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
                       "merged" + (" (weights summed)" if w is not None else "") + ".",

@@ -11,9 +11,13 @@ from concurrent.futures import ThreadPoolExecutor
 import functools
 from dataclasses import dataclass, field
 
+from typing import TYPE_CHECKING
+
 import numpy as np
-import scipy.sparse as sp
 from netctl._jit import njit
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
 
 from netctl.graph.components import (
     condensation_sources,
@@ -68,6 +72,8 @@ def stack_AB(A: sp.csr_array, B: sp.csr_array) -> tuple[np.ndarray, np.ndarray, 
                               np.ascontiguousarray(A.indices, np.int64),
                               np.ascontiguousarray(B.indptr, np.int64),
                               np.ascontiguousarray(B.indices, np.int64), np.int64(n)), n + m)
+    import scipy.sparse as sp
+
     AB = sp.hstack([A, B], format="csr")
     AB.sort_indices()
     return AB.indptr.astype(np.int64), AB.indices.astype(np.int64), n + m
@@ -188,7 +194,7 @@ def unreached_sources(A: sp.csr_array | tuple[np.ndarray, np.ndarray],
     source components are sources of ``A``. Strongly connected components are computed
     on ``W`` only, which is empty or small in most sparse networks.
     """
-    indptr, indices = (A.indptr, A.indices) if sp.issparse(A) else A  # type: ignore[union-attr]
+    indptr, indices = (A.indptr, A.indices) if hasattr(A, "indptr") else A  # type: ignore[union-attr]
     n = indptr.size - 1
     empty_rows = indptr[1:] == indptr[:-1]
     is_driven = np.zeros(n, bool)

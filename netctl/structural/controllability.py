@@ -4,10 +4,9 @@ from __future__ import annotations
 
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.graph.dm import alternating_reach_rows
 from netctl.structural._engine import (
@@ -20,6 +19,9 @@ from netctl.structural._engine import (
 )
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
 
 __all__ = [
     "ControllabilityReport",
@@ -345,7 +347,7 @@ def is_structurally_observable(system: StructuredSystem) -> bool:
 
 
 def _report(system: StructuredSystem, kind: str, dimension: bool) -> ControllabilityReport:
-    A, B = system.A, system.B
+    A, B = system.pattern("A"), system.pattern("B")
     n, m = system.n_states, system.n_inputs
     st = structure_of(A)
     acc = accessible_states(st, B)
@@ -444,6 +446,7 @@ def _hosoe_dimension_reference(A: sp.csr_array, B: sp.csr_array, acc: np.ndarray
     """Hosoe's dimension by SciPy's minimum-weight full matching (LAPJVsp) on the same
     costs: an independent reference for tests and benchmarks (slow on huge systems)."""
     # imported here: scipy.sparse.csgraph pulls in scipy.linalg (~0.1 s at start-up)
+    import scipy.sparse as sp
     from scipy.sparse.csgraph import min_weight_full_bipartite_matching
 
     R = np.flatnonzero(acc)

@@ -7,8 +7,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, coo_pattern, diagonal_mask, empty_pattern
 from netctl.structural._engine import completion, site_preference, structure_of
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
@@ -80,14 +80,14 @@ class InputDesign(ResultTables):
         k = self.wiring_indptr.size - 1
         rows = self.wiring_states
         cols = np.repeat(np.arange(k), np.diff(self.wiring_indptr))
-        M = sp.coo_array((np.ones(rows.size), (rows, cols)), shape=(n, k))
+        M = coo_pattern(rows, cols, None, (n, k), count=False)[0]
         prefix = "u" if self.kind == "inputs" else "y"
         sizes = np.diff(self.wiring_indptr)
         names = [f"{prefix}:{self.state_names[int(rows[self.wiring_indptr[j]])]}"
                  if sizes[j] == 1 else f"{prefix}{j}" for j in range(k)]
         if self.kind == "inputs":
             return system.with_inputs(M, names=names)
-        return system.with_outputs(M.T, names=names)
+        return system.with_outputs(M.to_scipy().T, names=names)
 
     def _wiring_names(self) -> list[list[str]]:
         flat = self.names(self.wiring_states)
@@ -195,7 +195,7 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
     # where a source component needs a representative, prefer states that may host one
     # (an input on a velocity (frequency) state, never on an angle, in a second-order model)
     prefer = site_preference(system.nodes, system.model, actuators=kind == "inputs")
-    comp = completion(system.A, sp.csr_array((n, 0)), prefer=prefer)
+    comp = completion(system.pattern("A"), empty_pattern((n, 0)), prefer=prefer)
     drivers = comp.states
     unmatched = comp.unmatched
     reps = comp.representatives
@@ -265,24 +265,23 @@ def summarize(system: StructuredSystem) -> NetworkSummary:
     from netctl.graph.components import weak_component_count
 
     n = system.n_states
-    st = structure_of(system.A)
+    A = system.pattern("A")
+    st = structure_of(A)
     _ = st.n_scc  # components once: the dual shares them (they do not depend on orientation)
     st_dual = st.dual()
     k_weak = weak_component_count(st.in_indptr, st.in_indices)
-    comp = completion(system.A, sp.csr_array((n, 0)), st)
-    # A's transpose as the index arrays already built (no scipy transpose, no data copy)
-    AT = sp.csr_array((n, n), dtype=np.int8)
-    AT.indptr, AT.indices = st.out_indptr, st.out_indices
-    AT.data = np.ones(st.out_indices.size, np.int8)
-    AT.has_sorted_indices = True
+    comp = completion(A, empty_pattern((n, 0)), st)
+    # A's transpose as the index arrays already built (no transpose, no data copy; the
+    # data are never read)
+    AT = Pattern(np.ones(st.out_indices.size, np.int8), st.out_indices, st.out_indptr, (n, n))
     # a maximum matching of A, transposed, is one of A^T: the dual skips the search
     rows = np.flatnonzero(comp.row_match >= 0)
     col_match = np.full(n, -1, np.int64)
     col_match[comp.row_match[rows]] = rows
-    comp_dual = completion(AT, sp.csr_array((n, 0)), st_dual, start=(col_match, comp.row_match))
+    comp_dual = completion(AT, empty_pattern((n, 0)), st_dual, start=(col_match, comp.row_match))
     del rows, col_match
     deg = np.diff(st.in_indptr) + np.diff(st.out_indptr)
-    loops = system.A.diagonal() != 0
+    loops = diagonal_mask(A)
     isolated = int(np.count_nonzero((deg - 2 * loops) == 0))
     return NetworkSummary(
         n_states=n, n_links=system.n_links, n_self_loops=system.n_self_loops,

@@ -395,7 +395,7 @@ def node_roles(system: StructuredSystem) -> NodeRoles:
 
 def _node_roles(system: StructuredSystem, facts: MatchingFacts | None) -> NodeRoles:
     """:func:`node_roles`, reusing the matching of ``facts`` (of ``A``) when given."""
-    A = system.A
+    A = system.pattern("A")
     n = system.n_states
     indptr = A.indptr.astype(np.int64)
     indices = A.indices.astype(np.int64)
@@ -470,7 +470,7 @@ def link_roles(system: StructuredSystem) -> LinkRoles:
 def _roles_facts(system: StructuredSystem) -> MatchingFacts | None:
     """The :class:`MatchingFacts` of ``A`` that :func:`node_roles` and
     :func:`link_roles` share (``None`` for a system without states or links)."""
-    A = system.A
+    A = system.pattern("A")
     if system.n_states == 0 or A.nnz == 0:
         return None
     return matching_facts(A.indptr, A.indices, system.n_states)
@@ -478,7 +478,7 @@ def _roles_facts(system: StructuredSystem) -> MatchingFacts | None:
 
 def _link_roles(system: StructuredSystem, facts: MatchingFacts | None) -> LinkRoles:
     """:func:`link_roles`, reusing ``facts`` (from :func:`roles_facts`) when given."""
-    A = system.A
+    A = system.pattern("A")
     n = system.n_states
     src, tgt = system.edges()
     if n == 0 or A.nnz == 0:
