@@ -84,3 +84,49 @@ def test_structural_verbs_on_a_small_file_do_not_load_numba(tmp_path):
         ["drivers", str(f)], ["check", str(f), "--inputs", "a"], ["inspect", str(f)],
         ["roles", str(f)], ["sensors", str(f)], ["verify", str(f), "--inputs", "a"]))
     assert "numba" not in loaded_after(code)
+
+
+#: the structural verbs that must not load scipy on a small edge list (issue 15: the
+#: import of scipy.sparse, and of scipy.sparse.csgraph with scipy.linalg, cost more than
+#: the rest of such a run; benchmarks/RESULTS.md, start-up)
+NO_SCIPY_VERBS = (["drivers"], ["sensors"], ["inspect"], ["roles"],
+                  ["check", "--inputs", "a"], ["check", "--outputs", "c"],
+                  ["drivers", "--dedicated"], ["sensors", "--dedicated"])
+
+
+def test_structural_verbs_on_a_small_edge_list_load_no_scipy(tmp_path):
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    for argv in NO_SCIPY_VERBS:
+        code = run_main([argv[0], str(f), *argv[1:]])
+        probe = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\n{code}\n"
+                 "print(sorted(m for m in sys.modules if m == 'scipy' "
+                 "or m.startswith('scipy.')))")
+        r = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                           timeout=300, cwd=ROOT)
+        assert r.returncode == 0, r.stderr
+        assert r.stdout.strip().splitlines()[-1] == "[]", (argv, r.stdout[-300:])
+
+
+def test_the_verbs_without_scipy_still_answer(tmp_path, capsys):
+    """The same runs in this process give the published answers (a directed path
+    a -> b -> c needs one driver, its root, and one sensor, its end: Liu, Slotine &
+    Barabási, Nature 473:167-173 (2011), the path example), so the check above cannot
+    pass by a verb that stopped early."""
+    from netctl.cli import main
+
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    import json as _json
+
+    def run(*argv: str) -> dict:
+        try:
+            main([*argv, "--json"])
+        except SystemExit as exc:
+            assert exc.code in (0, None), argv
+        return _json.loads(capsys.readouterr().out)
+
+    assert run("drivers", str(f))["drivers"] == ["a"]
+    assert run("sensors", str(f))["sensors"] == ["c"]
+    assert run("check", str(f), "--inputs", "a")["controllable"] is True
+    assert run("inspect", str(f))["structural_rank"] == 2
