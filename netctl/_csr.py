@@ -47,8 +47,15 @@ class Pattern(NamedTuple):
     indptr: np.ndarray
     shape: tuple[int, int]
 
-    has_sorted_indices = True
-    has_canonical_format = True
+    @property
+    def has_sorted_indices(self) -> bool:
+        """Always true (as scipy's attribute of the same name)."""
+        return True
+
+    @property
+    def has_canonical_format(self) -> bool:
+        """Always true (as scipy's attribute of the same name)."""
+        return True
 
     @property
     def nnz(self) -> int:

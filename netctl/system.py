@@ -14,7 +14,7 @@ from __future__ import annotations
 import warnings
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 
@@ -35,8 +35,7 @@ from netctl._parts import (
     _is_bool,
     _missing,
     _names,
-    _node_table_from_attrs,
-    _py,
+    _node_table_from_attrs,  # noqa: F401 (readers import it from here)
     _seq,
     _shape,
     _table,
@@ -123,6 +122,8 @@ class StructuredSystem:
     disturbance_nodes: Mapping[str, np.ndarray] = field(default_factory=dict)
     elements: ElementTable | None = field(default=None, repr=False, compare=False)
     _index: dict[str, int] = field(default_factory=dict, repr=False, compare=False)
+    #: the stored matrices (not a constructor field): part name -> canonical pattern
+    _parts: ClassVar[dict[str, Pattern]]
 
     def __post_init__(self) -> None:
         n = self.A.shape[0] if hasattr(self.A, "shape") else np.asarray(self.A).shape[0]
@@ -177,7 +178,7 @@ class StructuredSystem:
         The same arrays as ``system.A.indptr`` and so on, without building a scipy
         array (or importing scipy): the engine and the analyses read these.
         """
-        return self._parts[part]  # type: ignore[no-any-return]
+        return self._parts[part]
 
     def __getstate__(self) -> dict[str, Any]:
         return {k: v for k, v in self.__dict__.items() if k not in _MATRICES}
@@ -214,7 +215,7 @@ class StructuredSystem:
     @property
     def n_links(self) -> int:
         """Number of nonzero entries of ``A`` (self-loops included)."""
-        return self._parts["A"].nnz  # type: ignore[no-any-return]
+        return self._parts["A"].nnz
 
     @property
     def n_self_loops(self) -> int:
@@ -381,29 +382,11 @@ class StructuredSystem:
         :data:`NODE_COLUMNS` fill the node table; other scalar attributes are carried in
         the table too. ``weight`` names the edge attribute holding weights.
         """
-        if isinstance(graph, type) or not all(
-                hasattr(graph, a) for a in ("nodes", "edges", "is_directed")):
-            raise InvalidSystemError(
-                f"from_networkx expected a networkx Graph or DiGraph object, found "
-                f"{type(graph).__name__}; for an igraph graph use from_igraph, for a numpy "
-                "or scipy.sparse matrix from_matrices.")
-        nodes_list = list(graph.nodes())
-        index = {v: i for i, v in enumerate(nodes_list)}
-        edges = list(graph.edges(data=True))
-        src = np.fromiter((index[u] for u, _, _ in edges), dtype=np.int64, count=len(edges))
-        dst = np.fromiter((index[v] for _, v, _ in edges), dtype=np.int64, count=len(edges))
-        w = None
-        if weight is not None:
-            w = np.array([d.get(weight, 1.0) for _, _, d in edges], dtype=np.float64)
-        if not graph.is_directed():
-            loops = src == dst
-            src, dst = np.concatenate([src, dst[~loops]]), np.concatenate([dst, src[~loops]])
-            if w is not None:
-                w = np.concatenate([w, w[~loops]])
-        table = _node_table_from_attrs([graph.nodes[v] for v in nodes_list])
-        return cls.from_edges(src, dst, len(nodes_list), weights=w,
-                              state_names=[str(v) for v in nodes_list], inputs=inputs,
-                              nodes=table, model=model)
+        from netctl._graphlibs import networkx_edges
+
+        src, dst, w, names, table = networkx_edges(graph, weight)
+        return cls.from_edges(src, dst, len(names), weights=w, state_names=names,
+                              inputs=inputs, nodes=table, model=model)
 
     @classmethod
     def from_igraph(
@@ -421,27 +404,11 @@ class StructuredSystem:
         gives the state names when present (``_nx_name`` when the graph came from
         ``igraph.Graph.from_networkx``).
         """
-        if isinstance(graph, type) or not all(
-                hasattr(graph, a) for a in ("vcount", "get_edgelist", "is_directed")):
-            raise InvalidSystemError(
-                f"from_igraph expected an igraph Graph object, found {type(graph).__name__}; "
-                "for a networkx graph use from_networkx, for a numpy or scipy.sparse matrix "
-                "from_matrices.")
-        n = graph.vcount()
-        el = np.asarray(graph.get_edgelist(), dtype=np.int64).reshape(-1, 2)
-        src, dst = el[:, 0], el[:, 1]
-        w = np.asarray(graph.es[weight], dtype=np.float64) if weight is not None else None
-        if not graph.is_directed():
-            loops = src == dst
-            src, dst = np.concatenate([src, dst[~loops]]), np.concatenate([dst, src[~loops]])
-            if w is not None:
-                w = np.concatenate([w, w[~loops]])
-        vattrs = graph.vs.attributes()
-        label = "name" if "name" in vattrs else "_nx_name" if "_nx_name" in vattrs else None
-        names = [str(v) for v in graph.vs[label]] if label is not None else None
-        attrs = [{k: graph.vs[i][k] for k in vattrs if k != label} for i in range(n)]
+        from netctl._graphlibs import igraph_edges
+
+        n, src, dst, w, names, table = igraph_edges(graph, weight)
         return cls.from_edges(src, dst, n, weights=w, state_names=names, inputs=inputs,
-                              nodes=_node_table_from_attrs(attrs), model=model)
+                              nodes=table, model=model)
 
     # ------------------------------------------------------------------ views
     def edges(self) -> tuple[np.ndarray, np.ndarray]:
@@ -770,26 +737,13 @@ class StructuredSystem:
         Node attributes: the node table columns, plus ``driven`` (an input acts on it) and
         ``measured``. Edge attribute ``weight`` when the system is weighted.
         """
-        import networkx as nx
+        from netctl._graphlibs import to_networkx
 
-        g = nx.DiGraph()
-        driven = set(self.driven_states().tolist())
-        measured = set(self.measured_states().tolist())
-        for i, name in enumerate(self.state_names):
-            attrs = {k: _py(v[i]) for k, v in self.nodes.items()}
-            g.add_node(name, driven=i in driven, measured=i in measured, **attrs)
-        src, dst = self.edges()
-        vals = self.A.data
-        for k in range(src.size):
-            if self.weighted:
-                g.add_edge(self.state_names[src[k]], self.state_names[dst[k]], weight=float(vals[k]))
-            else:
-                g.add_edge(self.state_names[src[k]], self.state_names[dst[k]])
-        return g
+        return to_networkx(self)
 
     def _replace(self, **changes: Any) -> StructuredSystem:
         p = self._parts
-        base = dict(A=p["A"], B=p["B"], C=p["C"], state_names=self.state_names,
+        base: dict[str, Any] = dict(A=p["A"], B=p["B"], C=p["C"], state_names=self.state_names,
                     input_names=self.input_names, output_names=self.output_names,
                     nodes=self.nodes, weighted=self.weighted, model=self.model,
                     E=p["E"], H=p["H"], disturbance_names=self.disturbance_names,
