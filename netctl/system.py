@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import warnings
 from collections.abc import Iterable, Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
@@ -709,7 +709,8 @@ class StructuredSystem:
         valid."""
         self = object.__new__(cls)
         stored = {}
-        for name in cls.__dataclass_fields__:
+        for f in fields(cls):  # not the ClassVar ``_parts``
+            name = f.name
             if name in _MATRICES:
                 m = parts.pop(name)
                 stored[name] = m if isinstance(m, Pattern) else Pattern.of_scipy(m).frozen()
