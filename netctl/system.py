@@ -73,6 +73,10 @@ class StructuredSystem:
     Arrays of an input that is already a canonical float64 CSR matrix with int64 indices
     are shared (as read-only views), not copied: do not modify them afterwards.
 
+    The matrices are stored as NumPy CSR arrays (:meth:`pattern`); ``A``, ``B``, ``C``,
+    ``E`` and ``H`` are scipy arrays sharing them, built on first access (so that a
+    structural analysis of a small network never imports scipy).
+
     Attributes
     ----------
     A, B, C : scipy.sparse.csr_array
