@@ -24,7 +24,7 @@ if TYPE_CHECKING:
     import scipy.sparse as sp
 
 __all__ = ["Pattern", "SMALL_ENTRIES", "coo_pattern", "diagonal_mask", "empty_pattern",
-           "is_sparse", "n_diagonal", "transpose_pattern"]
+           "hstack_patterns", "is_sparse", "n_diagonal", "take", "transpose_pattern"]
 
 #: Up to this many entries, patterns are assembled and transposed with NumPy (no scipy
 #: import); above it, with scipy's compiled routines (common practice, no source: NumPy's
@@ -188,3 +188,55 @@ def diagonal_mask(p: Pattern) -> np.ndarray:
 def n_diagonal(p: Pattern) -> int:
     """Number of stored entries on the diagonal."""
     return int(np.count_nonzero(diagonal_mask(p)))
+
+
+def take(p: Pattern, rows: np.ndarray | None = None, cols: np.ndarray | None = None
+         ) -> Pattern:
+    """The submatrix of the given rows and columns (distinct indices, in the order given;
+    ``None``: all), canonical and read-only (scipy's ``M[rows][:, cols]``)."""
+    if p.nnz > SMALL_ENTRIES:
+        M = p.to_scipy()
+        if rows is not None:
+            M = M[rows]
+        if cols is not None:
+            M = M[:, cols]
+        return Pattern.of_scipy(_int64(M.tocsr())).frozen()
+    r = np.repeat(np.arange(p.shape[0], dtype=np.int64), np.diff(p.indptr))
+    c = p.indices
+    shape = (p.shape[0] if rows is None else len(rows), p.shape[1] if cols is None else len(cols))
+    keep = np.ones(r.size, bool)
+    if rows is not None:
+        rmap = np.full(p.shape[0], -1, np.int64)
+        rmap[rows] = np.arange(len(rows))
+        r = rmap[r]
+        keep &= r >= 0
+    if cols is not None:
+        cmap = np.full(p.shape[1], -1, np.int64)
+        cmap[cols] = np.arange(len(cols))
+        c = cmap[c]
+        keep &= c >= 0
+    return coo_pattern(r[keep], c[keep], p.data[keep], shape, count=False)[0]
+
+
+def hstack_patterns(a: Pattern, b: Pattern) -> Pattern:
+    """``[a b]`` (equal row counts), canonical and read-only."""
+    shape = (a.shape[0], a.shape[1] + b.shape[1])
+    if a.nnz + b.nnz > SMALL_ENTRIES:
+        import scipy.sparse as sp
+
+        return Pattern.of_scipy(_int64(sp.hstack([a.to_scipy(), b.to_scipy()],
+                                                 format="csr"))).frozen()
+    ra = np.repeat(np.arange(a.shape[0], dtype=np.int64), np.diff(a.indptr))
+    rb = np.repeat(np.arange(b.shape[0], dtype=np.int64), np.diff(b.indptr))
+    return coo_pattern(np.concatenate([ra, rb]), np.concatenate([a.indices, b.indices
+                                                                 + a.shape[1]]),
+                       np.concatenate([a.data, b.data]), shape, count=False)[0]
+
+
+def _int64(M: Any) -> Any:
+    """A scipy CSR matrix in canonical form with int64 index arrays."""
+    M.sum_duplicates()
+    M.sort_indices()
+    M.indices = M.indices.astype(np.int64, copy=False)
+    M.indptr = M.indptr.astype(np.int64, copy=False)
+    return M

@@ -21,8 +21,10 @@ import numpy as np
 from netctl._csr import (
     Pattern,
     coo_pattern,
+    hstack_patterns,
     is_sparse,
     n_diagonal,
+    take,
     transpose_pattern,
 )
 from netctl._parts import (
@@ -478,7 +480,8 @@ class StructuredSystem:
     def disturbed_by(self, disturbance: object) -> list[str]:
         """Names of the states the disturbance (a name or an index) acts on directly."""
         j = int(self.index_of([disturbance], kind="disturbance")[0])
-        rows = np.flatnonzero(self.E[:, [j]].toarray().ravel())
+        E = self._parts["E"]
+        rows = np.repeat(np.arange(E.shape[0]), np.diff(E.indptr))[E.indices == j]
         return [self.state_names[int(i)] for i in rows]
 
     def driven_states(self) -> np.ndarray:
@@ -606,21 +609,20 @@ class StructuredSystem:
         if np.unique(idx).size != idx.size:
             dup = self.state_names[int(np.flatnonzero(np.bincount(idx) > 1)[0])]
             raise InvalidSystemError(f"the disturbance {dup!r} is named twice.")
-        import scipy.sparse as sp
-
         n = self.n_states
-        indeg = np.diff(self.A.indptr)
+        P = self._parts
+        indeg = np.diff(P["A"].indptr)
         for i in idx.tolist():
             if indeg[i]:
-                src = self.state_names[int(self.A.indices[self.A.indptr[i]])]
+                src = self.state_names[int(P["A"].indices[P["A"].indptr[i]])]
                 what = "a self-loop" if src == self.state_names[i] else f"a link from {src!r}"
                 raise InvalidSystemError(
                     f"{self.state_names[i]!r} is marked as a disturbance but has {indeg[i]} "
                     f"incoming link{'s' if indeg[i] > 1 else ''} ({what}); a disturbance is "
                     "exogenous, nothing in the plant acts on it: remove the links into it, or "
                     "model it as a state.")
-        for M, what in ((self.B, "an input acts on"), (self.C.T.tocsr(), "a sensor reads"),
-                        (self.H.T.tocsr(), "a regulated output reads")):
+        for M, what in ((P["B"], "an input acts on"), (transpose_pattern(P["C"]), "a sensor "
+                        "reads"), (transpose_pattern(P["H"]), "a regulated output reads")):
             hit = idx[np.diff(M.indptr)[idx] > 0]
             if hit.size:
                 raise InvalidSystemError(
@@ -629,9 +631,8 @@ class StructuredSystem:
         keep = np.ones(n, bool)
         keep[idx] = False
         kept = np.flatnonzero(keep)
-        A = self.A[kept][:, kept]
-        E_new = self.A[kept][:, idx]
-        E = sp.hstack([self.E[kept], E_new], format="csr")
+        A = take(P["A"], kept, kept)
+        E = hstack_patterns(take(P["E"], kept), take(P["A"], kept, idx))
         dnames = tuple(self.disturbance_names) + tuple(self.state_names[int(i)] for i in idx)
         cols = set(self.nodes) | set(self.disturbance_nodes)
         dnodes: dict[str, np.ndarray] = {}
@@ -643,7 +644,7 @@ class StructuredSystem:
             dnodes[c] = np.concatenate([old_arr, new_arr]) if old_arr.size else new_arr
         names_kept: Any = [self.state_names[int(i)] for i in kept]
         return self._replace(
-            A=A, B=self.B[kept], C=self.C[:, kept], H=self.H[:, kept], E=E,
+            A=A, B=take(P["B"], kept), C=take(P["C"], None, kept), H=take(P["H"], None, kept), E=E,
             state_names=tuple(names_kept), disturbance_names=dnames,
             nodes={c: v[kept] for c, v in self.nodes.items()}, disturbance_nodes=dnodes)
 

@@ -80,3 +80,22 @@ def test_the_scipy_view_shares_the_stored_arrays_and_survives_pickling():
     t = pickle.loads(pickle.dumps(s))
     assert "A" not in vars(t) and t.same_as(s)
     assert np.array_equal(t.A.toarray(), A.toarray())
+
+
+def test_take_and_hstack_match_scipy_slicing(path):
+    rng = np.random.default_rng(17)
+    for _ in range(200):
+        r, c = int(rng.integers(1, 8)), int(rng.integers(1, 8))
+        D = (rng.random((r, c)) < 0.5) * rng.integers(1, 5, (r, c)).astype(float)
+        M = sp.csr_array(D)
+        p = csr.Pattern.of_scipy(M)
+        rows = rng.permutation(r)[:int(rng.integers(0, r + 1))]  # any order, distinct
+        cols = rng.permutation(c)[:int(rng.integers(0, c + 1))]
+        for got, ref in ((csr.take(p, rows, cols), D[rows][:, cols]),
+                         (csr.take(p, rows), D[rows]), (csr.take(p, None, cols), D[:, cols])):
+            assert np.array_equal(got.to_scipy().toarray(), ref)
+            assert np.array_equal(got.indices, sp.csr_array(ref).indices)
+        D2 = (rng.random((r, 3)) < 0.5).astype(float)
+        h = csr.hstack_patterns(p, csr.Pattern.of_scipy(sp.csr_array(D2)))
+        assert np.array_equal(h.to_scipy().toarray(), np.hstack([D, D2]))
+        assert h.indices.dtype == np.int64 and not h.indices.flags.writeable

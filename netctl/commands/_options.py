@@ -344,11 +344,11 @@ def _grid_text(grid: dict[str, Any]) -> str:
 
 def disturbance_summary(system: StructuredSystem) -> dict[str, Any]:
     """JSON-ready description of a system's disturbances and regulated outputs."""
+    H = system.pattern("H")
     return {"n_disturbances": system.n_disturbances,
             "disturbances": {w: system.disturbed_by(j)
                              for j, w in enumerate(system.disturbance_names)},
-            "regulated": {z: system.names_of(system.H.indices[system.H.indptr[r]:
-                                                              system.H.indptr[r + 1]])
+            "regulated": {z: system.names_of(H.indices[H.indptr[r]:H.indptr[r + 1]])
                           for r, z in enumerate(system.regulated_names)},
             "note": "disturbances are exogenous (weather, feeds, utilities): not states, "
                     "never driven or sensed, not counted in minimum inputs or sensors"}

@@ -21,8 +21,8 @@ from pathlib import Path
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, coo_pattern
 from netctl.errors import MissingFileError
 from netctl.io._spec_parts import (  # noqa: F401  (re-exported for io.stations)
     OUTSIDE_ENV,
@@ -164,6 +164,8 @@ class SystemSpec:
                 s = s.with_outputs({y: [states[i] for i in v] for y, v in outs.items()})
             # disturbances (regulated outputs) acting on (reading) some of its states:
             # each subsystem keeps its share, under the same name
+            import scipy.sparse as sp
+
             E = sp.csc_array(full.E[idx])
             dcols = np.flatnonzero(np.diff(E.indptr))
             if dcols.size:
@@ -582,14 +584,14 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         src = np.concatenate([src, ids])
         dst = np.concatenate([dst, ids])
         w = np.concatenate([w, np.array(list(self_w.values()))])
-    A = sp.coo_array((w, (dst, src)), shape=(n, n)).tocsr()
-    A.sum_duplicates()
-    n_dup = src.size - A.nnz
+    # duplicates summed (weighted) or merged to 1.0 (a pattern): NumPy for a small file,
+    # scipy for a large one (netctl._csr)
+    A, n_dup = coo_pattern(dst, src, w if weighted else None, (n, n))
     if n_dup:
         warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
                       "merged" + (" (weights summed)" if weighted else "") + ".", stacklevel=2)
-    if not weighted:
-        A.data[:] = 1.0
+    if not weighted and n_dup:
+        A = Pattern(np.ones(A.nnz), A.indices, A.indptr, A.shape).frozen()
     nodes = _node_table(attrs, names)
     if subsystems:
         col = np.empty(n, dtype=object)
@@ -617,7 +619,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         es, ed = system.edges()
         cross = (label[es] >= 0) & (label[ed] >= 0) & (label[es] != label[ed])
         have = {(t[1], t[3]) for t in ties if t[4] == "state"}
-        vals = system.A.data[cross]
+        vals = system.pattern("A").data[cross]
         for a, b, x in zip(es[cross].tolist(), ed[cross].tolist(), vals.tolist()):
             if (names[a], names[b]) not in have:
                 ties.append((owner[names[a]], names[a], owner[names[b]], names[b], "state"))

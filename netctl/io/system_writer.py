@@ -16,7 +16,6 @@ from pathlib import Path
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.io._common import atomic_group, atomic_write
 from netctl.stations import Station
@@ -155,6 +154,8 @@ def _write_both(system: StructuredSystem, path: str | os.PathLike[str], side: Pa
     n = system.n_states
     diag = system.A.diagonal()
     if side is not None:
+        import scipy.sparse as sp
+
         from netctl.io.edgelist import write_edgelist
 
         edges_only = system._replace(A=system.A - sp.dia_array((diag[None, :], [0]),
