@@ -72,7 +72,10 @@ def run_once(argv: list[str], tree: str | None, cwd: str) -> tuple[float, float,
 
 
 def netctl(args: list[str]) -> list[str]:
-    return [sys.executable, "-c", "from netctl.cli import main; raise SystemExit(main())", *args]
+    # ``-c`` puts the working directory first on the path: the bundled rows run in this
+    # checkout, whose netctl would then shadow the tree named by PYTHONPATH on both sides
+    return [sys.executable, "-c", "import sys; sys.path.remove(''); "
+            "from netctl.cli import main; raise SystemExit(main())", *args]
 
 
 def pairs(label: str, argv: list[str], before: str, after: str, cwd: str, runs: int,
