@@ -23,8 +23,9 @@ import numpy as np
 if TYPE_CHECKING:
     import scipy.sparse as sp
 
-__all__ = ["Pattern", "SMALL_ENTRIES", "coo_pattern", "diagonal_mask", "empty_pattern",
-           "hstack_patterns", "is_sparse", "n_diagonal", "take", "transpose_pattern"]
+__all__ = ["Pattern", "SMALL_ENTRIES", "SparseView", "coo_pattern", "diagonal_mask",
+           "empty_pattern", "hstack_patterns", "is_sparse", "n_diagonal", "take",
+           "transpose_pattern"]
 
 #: Up to this many entries, patterns are assembled and transposed with NumPy (no scipy
 #: import); above it, with scipy's compiled routines (common practice, no source: NumPy's
@@ -240,3 +241,20 @@ def _int64(M: Any) -> Any:
     M.indices = M.indices.astype(np.int64, copy=False)
     M.indptr = M.indptr.astype(np.int64, copy=False)
     return M
+
+
+class SparseView:
+    """``system.A`` (``B``, ``C``, ``E``, ``H``): a scipy ``csr_array`` sharing the stored
+    arrays of that part, built on first access and kept (a non-data descriptor: the
+    instance's own attribute wins once set). Structural analyses read the stored arrays
+    (``StructuredSystem.pattern``) and never build it, so scipy stays unloaded."""
+
+    def __init__(self, name: str) -> None:
+        self.name = name
+
+    def __get__(self, obj: Any, owner: Any = None) -> Any:
+        if obj is None:
+            return self
+        m = obj._parts[self.name].to_scipy()
+        obj.__dict__[self.name] = m
+        return m

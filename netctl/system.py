@@ -20,6 +20,7 @@ import numpy as np
 
 from netctl._csr import (
     Pattern,
+    SparseView,
     coo_pattern,
     hstack_patterns,
     is_sparse,
@@ -178,19 +179,12 @@ class StructuredSystem:
 
     # ------------------------------------------------------------------ stored form
     def pattern(self, part: str) -> Pattern:
-        """The stored CSR arrays of ``part`` (``"A"``, ``"B"``, ``"C"``, ``"E"`` or
-        ``"H"``): canonical, float64 data, int64 indices, read-only.
-
-        The same arrays as ``system.A.indptr`` and so on, without building a scipy
-        array (or importing scipy): the engine and the analyses read these.
-        """
+        """The stored CSR arrays of ``part`` (``"A"`` ... ``"H"``; canonical, read-only):
+        those of ``system.A`` and so on, without building a scipy array or importing scipy."""
         return self._parts[part]
 
-    def __getstate__(self) -> dict[str, Any]:
+    def __getstate__(self) -> dict[str, Any]:  # the scipy views are built again on demand
         return {k: v for k, v in self.__dict__.items() if k not in _MATRICES}
-
-    def __setstate__(self, state: dict[str, Any]) -> None:
-        self.__dict__.update(state)
 
     # ------------------------------------------------------------------ sizes
     @property
@@ -706,12 +700,11 @@ class StructuredSystem:
 
     @classmethod
     def _trusted(cls, **parts: Any) -> StructuredSystem:
-        """A system from parts that are already in stored form (frozen canonical
-        patterns, or canonical CSR arrays with int64 indices; validated name sequences,
-        read-only node-table columns of the right lengths), without running the
-        constructor's checks (``_index`` may be given: a name lookup to share). Internal:
-        only for parts derived from a validated system by operations that keep them
-        valid."""
+        """A system from parts already in stored form (frozen canonical patterns or CSR
+        arrays with int64 indices, validated names, read-only node-table columns of the
+        right lengths), without the constructor's checks (``_index`` may be given: a name
+        lookup to share). Internal: only for parts derived from a validated system by
+        operations that keep them valid."""
         self = object.__new__(cls)
         stored = {}
         for f in fields(cls):  # not the ClassVar ``_parts``
@@ -800,23 +793,6 @@ class StructuredSystem:
 
 
 
-class _SparseView:
-    """``system.A`` (``B``, ``C``, ``E``, ``H``): a scipy ``csr_array`` sharing the stored
-    arrays of that part, built on first access and kept (a non-data descriptor: the
-    instance's own attribute wins once set). Structural analyses read the stored arrays
-    (:meth:`StructuredSystem.pattern`) and never build it, so scipy stays unloaded."""
-
-    def __init__(self, name: str) -> None:
-        self.name = name
-
-    def __get__(self, obj: Any, owner: Any = None) -> Any:
-        if obj is None:
-            return self
-        m = obj._parts[self.name].to_scipy()
-        obj.__dict__[self.name] = m
-        return m
-
-
 for _name in _MATRICES:  # after @dataclass, which keeps them as constructor fields
-    setattr(StructuredSystem, _name, _SparseView(_name))
+    setattr(StructuredSystem, _name, SparseView(_name))
 del _name
