@@ -187,15 +187,16 @@ def _analyse_system(system: Any, shared: dict[str, Any]) -> dict[str, Any]:
         out: dict[str, Any] = {"model": system.model, "n_states": n,
                                "n_links": system.n_links}
         if shared["inputs"] is not None:
-            system = system.with_inputs(parse_names(system, shared["inputs"]))
+            system = system.with_inputs(system.names_of(
+                parse_names(system, shared["inputs"])))
             r = controllability(system)
             out.update(n_inputs=system.n_inputs, controllable=r.controllable,
                        structural_rank=r.structural_rank, n_inaccessible=int(r.inaccessible.size),
                        controllable_dimension=r.controllable_dimension,
                        n_missing_inputs=r.n_missing_inputs)
         if shared["outputs"] is not None:
-            system = system.with_outputs(parse_names(system, shared["outputs"],
-                                                     what="--outputs"))
+            system = system.with_outputs(system.names_of(
+                parse_names(system, shared["outputs"], what="--outputs")))
             o = observability(system, dimension=False)
             out.update(n_outputs=system.n_outputs, observable=o.controllable,
                        n_missing_sensors=o.n_missing_inputs)

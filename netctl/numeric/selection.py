@@ -111,14 +111,14 @@ def _candidate_gramian(i: int, _seed: Any, plan: tuple[Any, ...]) -> np.ndarray:
 def _structurally_controllable(system: StructuredSystem, states: list[int]) -> bool:
     from netctl.structural import controllability
 
-    return bool(controllability(system.with_inputs(np.asarray(states, np.int64)),
+    return bool(controllability(system.with_inputs(system.names_of(states)),
                                 dimension=False).controllable)
 
 
 def _generic_dimension(system: StructuredSystem, states: list[int]) -> int:
     from netctl.structural import controllability
 
-    r = controllability(system.with_inputs(np.asarray(states, np.int64)), dimension=True)
+    r = controllability(system.with_inputs(system.names_of(states)), dimension=True)
     return int(r.controllable_dimension if r.controllable_dimension is not None
                else system.n_states * int(r.controllable))
 

@@ -98,7 +98,8 @@ class StrongInputDesign(ResultTables):
 
     def apply(self, system: StructuredSystem) -> StructuredSystem:
         """``system`` with one dedicated input on each driver (replacing its inputs)."""
-        return system.with_inputs(self.drivers)
+        # by name: a state's name may be another state's row number ('3' in row 1)
+        return system.with_inputs(self.names(self.drivers))
 
     def to_dict(self) -> dict[str, Any]:
         return {
