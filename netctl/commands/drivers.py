@@ -6,6 +6,8 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+import numpy as np
+
 from netctl.commands._options import (
     SHOWN,
     analysis_step,
@@ -44,8 +46,18 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
         design = (minimum_sensors if sensors else minimum_inputs)(system,
                                                                   dedicated=args.dedicated)
 
+    # the minimum is a graph answer: say where it lands on a state the node table says
+    # cannot host an actuator (sensor), rather than propose it silently
+    column = "sensor" if sensors else "actuator"
+    eligible = system.nodes.get(column)
+    barred = None
+    if eligible is not None and np.asarray(eligible).dtype == bool:
+        barred = design.drivers[~np.asarray(eligible, bool)[design.drivers]]
+
     def full() -> dict[str, Any]:
         d = {**design.to_dict(), "file": args.file}
+        if barred is not None:
+            d["not_eligible"] = design.names(barred)
         if system.elements is not None:  # a grid: each driven (read) state's bus
             from netctl.structural.branches import state_buses
 
@@ -65,6 +77,12 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
              f"  {where} ({design.drivers.size}): "
              + names_line(state_labels(system, design.drivers[:SHOWN]),
                           total=design.drivers.size)]
+    if barred is not None and barred.size:
+        lines.append(
+            f"  not allowed by the node table ({column} = false) ({barred.size}): "
+            + names_line(state_labels(system, barred[:SHOWN]), total=barred.size)
+            + "; netctl place" + (" --sensors" if sensors else "")
+            + " finds the cheapest design on the allowed sites")
     if not args.dedicated and design.n_inputs < design.drivers.size:
         lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which {t.states} "
                      f"each {noun[:-1]} {'reads' if sensors else 'acts on'}")
