@@ -84,6 +84,12 @@ def _cmd_place(args: argparse.Namespace) -> int:
                     budget=args.budget, method=args.method, time_limit=args.time_limit)
     d = result.to_dict()
     d["file"] = args.file
+    # the file's own inputs (sensors) are kept and cost nothing (place_inputs,
+    # place_sensors); target placement starts from scratch: say which, or "sites (0)"
+    # on an installed design reads as "nothing placed, nothing needed" with no reason
+    installed = list(system.output_names if args.sensors else system.input_names)
+    if installed:
+        d["kept" if args.targets is None else "not_used"] = installed
     d["site_data"] = (args.candidates if cands else args.sites) or sites.source
     check_name = ("target rank of C_T [B AB ...] over F_p" if result.problem == "target" else
                   "structural observability (Lin, dual)" if args.sensors else
@@ -110,6 +116,12 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
              + ("none given: every state eligible at cost 1" if d["site_data"] == "default"
                 else str(d["site_data"])) + ")"
              + (f", budget {r.budget:g}" if r.budget is not None else "")]
+    for key, how in (("kept", "kept at no cost; the sites below are added to them"),
+                     ("not_used", "not used: target placement starts from no inputs")):
+        if key in d:
+            lines.append(f"  the file's {len(d[key])} installed "
+                         f"{'sensor' if r.kind == 'sensors' else 'input'}(s) "
+                         f"({names_line(d[key])}) {how}")
     if r.chosen.size and r.problem == "candidates":
         names = [a["name"] for a in d["actuators" if r.kind == "inputs" else "sensors"]]
         lines.append(f"  chosen {noun} ({len(names)}): {names_line(names)}")
