@@ -61,3 +61,31 @@ def test_source_state_barred_by_node_table_is_flagged(tmp_path, capsys):
     main(["drivers", str(p)])
     assert "not allowed by the node table (actuator = false) (1): inlet_flow" in \
         capsys.readouterr().out
+
+
+SINK_BARRED = """
+[system]
+name = "invented tank train, gauge barred on the last tank"
+[states]
+inlet = { actuator = true }
+tank1 = { actuator = true }
+tank2 = { actuator = false, sensor = false }
+tank3 = { actuator = true }
+[couplings]
+links = [["inlet", "tank1"], ["tank1", "tank2"], ["tank1", "tank3"]]
+"""
+
+
+def test_check_fix_on_a_barred_sink_is_flagged(tmp_path, capsys):
+    p = tmp_path / "tanks.toml"
+    p.write_text(SINK_BARRED)
+    G = nx.DiGraph([("inlet", "tank1"), ("tank1", "tank2"), ("tank1", "tank3")])
+    # tank2 is a sink component: only a sensor on it sees it (Lin 1974, dual)
+    assert [n for n in G if G.out_degree(n) == 0] == ["tank2", "tank3"]
+    assert main(["check", str(p), "--outputs", "tank3", "--json"]) == 1
+    d = json.loads(capsys.readouterr().out)
+    assert d["fix"]["states"] == ["tank2"] and d["fix_not_eligible"] == ["tank2"]
+    main(["check", str(p), "--outputs", "tank3"])
+    out = capsys.readouterr().out
+    assert "not allowed by the node table (sensor = false) (1): tank2" in out
+    assert "netctl place --sensors" in out

@@ -39,6 +39,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
     from netctl.structural import controllability, observability
 
     from netctl.commands._words import wording  # a grid's states by bus
+    from netctl.commands.drivers import barred_line, not_eligible
 
     system = load_system(args)
     check_inputs = args.inputs is not None
@@ -55,7 +56,8 @@ def _cmd_check(args: argparse.Namespace) -> int:
     if args.inputs is not None:
         system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
     if args.outputs is not None:
-        system = system.with_outputs(system.names_of(parse_names(system, args.outputs, what="--outputs")))
+        system = system.with_outputs(system.names_of(
+            parse_names(system, args.outputs, what="--outputs")))
     reports = []
     if check_inputs:
         with analysis_step(args, system, "controllability"):
@@ -80,15 +82,26 @@ def _cmd_check(args: argparse.Namespace) -> int:
         if not r.controllable:
             lines.append(f"  smallest fix: add {r.n_missing_inputs} dedicated {what} at "
                          + names_line(said.of(r.fix[:SHOWN]), total=r.fix.size))
+            barred = not_eligible(system, r.fix, sensors=r.kind != "controllability")
+            if barred is not None and barred.size:
+                lines.append("    " + barred_line(system, barred, t,
+                                                  sensors=r.kind != "controllability"))
     lines.append("  " + str(caution(args)))
 
     def full() -> dict[str, Any]:
         result: dict[str, Any] = {"file": args.file}
+        parts = []
+        for r in reports:
+            part = r.to_dict()
+            barred = not_eligible(system, r.fix, sensors=r.kind != "controllability")
+            if barred is not None and not r.controllable:  # the fix's states it forbids
+                part["fix_not_eligible"] = system.names_of(barred)
+            parts.append(part)
         if len(reports) == 1:
-            result.update(reports[0].to_dict())
+            result.update(parts[0])
         else:
-            for r in reports:
-                result[r.kind] = r.to_dict()
+            for r, part in zip(reports, parts):
+                result[r.kind] = part
             result["controllable"] = reports[0].controllable
             result["observable"] = reports[1].controllable
         if said.grid:  # additive: the bus of every state the result names

@@ -4,7 +4,7 @@ where to put them."""
 from __future__ import annotations
 
 import argparse
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -19,7 +19,10 @@ from netctl.commands._options import (
     terms,
 )
 
-__all__ = ["register"]
+if TYPE_CHECKING:
+    from netctl.system import StructuredSystem
+
+__all__ = ["barred_line", "not_eligible", "register"]
 
 
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
@@ -48,11 +51,7 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
 
     # the minimum is a graph answer: say where it lands on a state the node table says
     # cannot host an actuator (sensor), rather than propose it silently
-    column = "sensor" if sensors else "actuator"
-    eligible = system.nodes.get(column)
-    barred = None
-    if eligible is not None and np.asarray(eligible).dtype == bool:
-        barred = design.drivers[~np.asarray(eligible, bool)[design.drivers]]
+    barred = not_eligible(system, design.drivers, sensors=sensors)
 
     def full() -> dict[str, Any]:
         d = {**design.to_dict(), "file": args.file}
@@ -78,11 +77,7 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
              + names_line(state_labels(system, design.drivers[:SHOWN]),
                           total=design.drivers.size)]
     if barred is not None and barred.size:
-        lines.append(
-            f"  not allowed by the node table ({column} = false) ({barred.size}): "
-            + names_line(state_labels(system, barred[:SHOWN]), total=barred.size)
-            + "; netctl place" + (" --sensors" if sensors else "")
-            + " finds the cheapest design on the allowed sites")
+        lines.append("  " + barred_line(system, barred, t, sensors=sensors))
     if not args.dedicated and design.n_inputs < design.drivers.size:
         lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which {t.states} "
                      f"each {noun[:-1]} {'reads' if sensors else 'acts on'}")
@@ -92,6 +87,29 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
         lines.append("  " + note)
     emit(args, full, "\n".join(lines))
     return 0
+
+
+def not_eligible(system: StructuredSystem, states: np.ndarray, *,
+                 sensors: bool) -> np.ndarray | None:
+    """Those of ``states`` the node table marks as unable to host an actuator (column
+    ``actuator`` false; ``sensor`` for sensors); None when the table has no such column."""
+    eligible = system.nodes.get("sensor" if sensors else "actuator")
+    if eligible is None or np.asarray(eligible).dtype != bool:
+        return None
+    states = np.asarray(states, np.int64)
+    return states[~np.asarray(eligible, bool)[states]]
+
+
+def barred_line(system: StructuredSystem, barred: np.ndarray, t: Any, *,
+                sensors: bool) -> str:
+    """One line naming the proposed states the node table forbids, and the way out."""
+    from netctl.structural.branches import state_labels
+
+    return (f"not allowed by the node table ({'sensor' if sensors else 'actuator'} = false) "
+            f"({barred.size}): "
+            + names_line(state_labels(system, barred[:SHOWN]), total=barred.size)
+            + "; netctl place" + (" --sensors" if sensors else "")
+            + " finds the cheapest design on the allowed sites")
 
 
 def _cmd_sensors(args: argparse.Namespace) -> int:
