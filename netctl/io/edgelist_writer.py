@@ -57,7 +57,8 @@ def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> No
     Disturbances are written as nodes named on a ``# disturbances:`` line at the top,
     with their links; regulated outputs that each read one state and are named
     ``z:<state>`` as a ``# regulated:`` line. Inputs, outputs and the node table are not
-    part of this format (use ``.toml``, GraphML or node-link JSON to keep them). Names
+    part of this format: a warning names what was not written (use ``.toml``, GraphML or
+    node-link JSON to keep them). Names
     are quoted for spreadsheets (see the module docstring).
 
     Raises
@@ -91,6 +92,15 @@ def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> No
         warnings.warn(f"{path}: the {system.n_regulated} regulated output(s) are not all "
                       "'z:<state>' reading one state each, so they were not written (use a "
                       ".toml system description to keep them).", stacklevel=2)
+    # nothing in a good file is dropped silently: say what this format cannot hold
+    if system.n_inputs or system.n_outputs:
+        warnings.warn(f"{path}: the edge-list format holds the network only; the "
+                      f"{system.n_inputs} input(s) and {system.n_outputs} output(s) were not "
+                      "written (use a .toml system description to keep them).", stacklevel=2)
+    if system.nodes:
+        warnings.warn(f"{path}: the edge-list format holds no node table; the columns "
+                      f"{', '.join(sorted(system.nodes))} were not written (write GraphML, "
+                      "node-link JSON, .npz or .toml to keep them).", stacklevel=2)
     with atomic_write(path) as fh:
         fh.write(head)
         fh.write("source,target,weight\n" if system.weighted else "source,target\n")
