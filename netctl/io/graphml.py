@@ -159,8 +159,13 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
         raise file_error(path, None, f"unknown GraphML attribute type {exc.args[0]!r}; use "
                          "boolean, int, long, float, double or string.") from None
     except (nx.NetworkXError, ValueError, TypeError) as exc:
-        raise file_error(path, None, f"not a GraphML graph netctl can read: {exc}. See "
-                         "docs/FORMATS.md.") from None
+        why = str(exc).rstrip(". ")
+        fix = ("See docs/FORMATS.md." if "directed=" not in why else
+               "A graph that mixes directed and undirected edges is not read: set "
+               "edgedefault=\"directed\" on <graph> and write each two-way link as two "
+               "edges (or drop the directed= attributes).")
+        raise file_error(path, None, f"not a GraphML graph netctl can read: {why}. {fix}"
+                         ) from None
     return graph_to_system(g, path, model=model, what="GraphML")
 
 
