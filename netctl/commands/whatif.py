@@ -1,8 +1,8 @@
 """``netctl whatif FILE``: before and after a proposed change, side by side.
 
-Exit status: with ``--inputs``, 0 when the design is structurally controllable after the
-change and 1 when it is not; without ``--inputs``, 1 when the change raises the minimum
-number of inputs, else 0. 2 on bad usage or input.
+Exit status: with a design (``--inputs``, or the inputs the file declares), 0 when the
+design is structurally controllable after the change and 1 when it is not; without one,
+1 when the change raises the minimum number of inputs, else 0. 2 on bad usage or input.
 """
 
 from __future__ import annotations
@@ -26,7 +26,8 @@ __all__ = ["register"]
 def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: str) -> None:
     """Add the ``whatif`` verb."""
     p = subparsers.add_parser(name, parents=[common], help=help)
-    add_inputs(p, default=None, what="states with a dedicated input (the design to check)")
+    add_inputs(p, default="the inputs the file declares, if any; none: judge the minimum "
+               "inputs", what="states with a dedicated input (the design to check)")
     p.add_argument("--add-links", metavar="FILE|LINKS", default=None,
                    help="links to add: an edge-list file (source,target a line) or "
                         "'a->b,c->d'; unknown names become new states")
@@ -109,6 +110,8 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
                     for p in links.tolist()]
             nodes += [system.state_names[int(i)] for i in states.tolist()]
             drop_inputs.update(inputs.tolist())
+    # a design to judge: --inputs, or the one the file declares (as netctl check does)
+    has_design = args.inputs is not None or system.n_inputs > 0
     w = what_if(system, add_links=add, remove_links=rem, remove_nodes=nodes,
                 remove_inputs=[system.input_names[j] for j in sorted(drop_inputs)])
     d = w.to_dict()
@@ -125,7 +128,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
              f"  {'states':28}{w.before.n_states:>10}{w.after.n_states:>10}",
              f"  {'links':28}{w.before.n_links:>10}{w.after.n_links:>10}",
              f"  {'minimum inputs':28}{w.n_inputs_before:>10}{w.n_inputs_after:>10}"]
-    if args.inputs is not None:
+    if has_design:
         lines.append(f"  {'design controllable':28}{yn(w.controllable_before):>10}"
                      f"{yn(w.controllable_after):>10}")
     if w.inputs_lost:
@@ -152,7 +155,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
                      + (" ..." if len(ch) > 15 else ""))
     if w.link_role_changes:
         lines.append(f"  link roles changed: {len(w.link_role_changes)} (--json lists them)")
-    if args.inputs is not None and not w.controllable_after:
+    if has_design and not w.controllable_after:
         reasons = (w.report_after.reasons(**word.reasons())
                    if word.grid and w.report_after is not None else w.reasons_after)
         for r in reasons:
@@ -163,7 +166,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
         lines.append("  the change BREAKS the given design")
     lines.append("  " + CAUTION)
     emit(args, d, word.text("\n".join(lines)))  # inputs lost etc. in bus words
-    if args.inputs is not None:
+    if has_design:
         return 0 if w.controllable_after else 1
     return 1 if w.n_inputs_after > w.n_inputs_before else 0
 
