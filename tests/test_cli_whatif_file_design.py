@@ -77,3 +77,21 @@ def test_file_design_is_judged_after_the_change(link, capsys):
     assert row == ["design", "controllable", "yes", "yes" if want else "NO"]
     if not want:
         assert "smallest fix after the change" in text
+
+
+@pytest.mark.parametrize("option", ["--add-links", "--remove-links"])
+def test_link_at_a_disturbance_is_one_clear_error(option, tmp_path, capsys):
+    spec = tomllib.loads(PLANT.read_text())
+    # a disturbance of the file (tomllib), linked to a state it already acts on
+    w = next(s for s, v in spec["states"].items() if v.get("disturbance"))
+    v = next(b for a, b in spec["couplings"]["links"] if a == w)
+    out = tmp_path / "o.json"
+    assert main(["whatif", str(PLANT), option, f"{w}->{v}", "--out", str(out)]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and "warning" not in err
+    assert f"{w!r} in the link {w}->{v} is a disturbance, not a state" in err
+    assert not out.exists()
+    f = tmp_path / "links.csv"
+    f.write_text(f"source,target\n{v},{v}\n{w},{v}\n")
+    assert main(["whatif", str(PLANT), option, str(f)]) == 2
+    assert f"{f}:3: {w!r}" in capsys.readouterr().err

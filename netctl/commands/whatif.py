@@ -62,6 +62,12 @@ def _checked(system: Any, value: str | None, what: str, *, new_ok: bool
         for x in (a, b):
             if x in known:
                 continue
+            if x in system.disturbance_names:  # not a new state: one message, no warning
+                where = f"{change.origin}:{line}: " if line is not None else f"{what}: "
+                raise UsageError(
+                    f"{where}{x!r} in the link {a}->{b} is a disturbance, not a state: "
+                    "whatif adds and removes links between states only. To study another "
+                    "disturbance path, change the file's links and compare the two files.")
             close = difflib.get_close_matches(x, list(known), n=3)
             hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
             if new_ok:
