@@ -10,18 +10,22 @@ its dummy (that state holds its own column). The cheapest assignment therefore l
 the fewest states uncovered, which is Hosoe's generic dimension of the controllable
 subspace when the graph is restricted to the input-accessible states [1]_.
 
-The assignment is found by the primal-dual method for minimum-cost flow [2]_: start
-from a maximum matching of the real edges (cost 0, all prices 0, dual feasible); then,
-per phase, one multi-source Dijkstra search (Dial's buckets: reduced costs are small
-integers) from every unmatched row gives the shortest augmenting distance ``D``, the
-prices move by ``min(dist, D)``, and a maximum matching of the edges of zero reduced
-cost (the fast matching kernel, started from the current assignment) augments along
-every shortest path at once, so that the next phase has a larger ``D``. That matching
-runs only on the rows and columns from which an alternating path of such edges reaches
-a free column (one backward search): every augmenting path lies there, and the rest,
-often more than half of a failing system, would only be searched in vain. The phases are
-as many as the distinct distances (a handful on the networks netctl targets), each
-O(E) plus one warm-started matching. Exact.
+The assignment is found by a primal-dual method [2]_ that grows its prices from the
+sink side: start from a maximum matching of the real edges (cost 0, all prices 0); then,
+per phase, one backward Dijkstra search (Dial's buckets: reduced costs are small
+integers) from every free column gives each vertex its least reduced cost to the sink,
+and every price drops by that distance. Reduced costs stay non-negative, matched edges
+stay tight, free columns keep the sink's price and other columns only drop, and the
+shortest augmenting path of *every* free row becomes tight at once (a forward search
+from the free rows makes only the globally shortest ones tight, so it needs one phase
+per distinct distance). A maximum matching of the tight edges, completed from the
+current one by push-relabel with global relabelling [3]_, then augments along as many
+of them as are vertex-disjoint. The assignment LP's optimality conditions (dual
+feasibility, tight matched edges, free columns at the sink's price, other column prices
+below it) hold after every step, so the final perfect assignment is optimal whatever
+order the rows were matched in. On the failing networks netctl targets the phases are
+three or four (``benchmarks/RESULTS.md``), each one search over the edges plus the
+matching. Exact.
 
 References
 ----------
@@ -29,7 +33,14 @@ References
    application", IEEE Trans. Automatic Control 25(6):1116-1119, 1980 (from memory).
    doi:10.1109/TAC.1980.1102506
 .. [2] R. K. Ahuja, T. L. Magnanti, J. B. Orlin, *Network Flows*, Prentice Hall 1993,
-   section 9.8 (primal-dual algorithm; from memory).
+   sections 9.4 (reduced costs, complementary slackness) and 9.8 (primal-dual
+   algorithm; from memory).
+.. [3] B. V. Cherkassky, A. V. Goldberg, P. Martin, J. C. Setubal, J. Stolfi, "Augment
+   or push: a computational study of bipartite matching and unit-capacity flow
+   algorithms", ACM J. Experimental Algorithmics 3, 1998 (from memory);
+   K. Kaya, J. Langguth, F. Manne, B. Uçar, "Push-relabel based algorithms for the
+   maximum transversal problem", Computers & Operations Research 40(5):1266-1275, 2013
+   (from memory). doi:10.1016/j.cor.2012.12.009
 """
 
 from __future__ import annotations
@@ -43,239 +54,227 @@ __all__ = ["stem_cycle_cover"]
 
 
 @njit(cache=True, nogil=True)
-def _with_dummies(ptr, ind, loop):  # pragma: no cover - compiled
-    """CSR of the rows with each row's dummy column appended (weight 1), and weights."""
+def _with_dummies(ptr, ind, loop, fptr, find, fw):  # pragma: no cover - compiled
+    """Fill the CSR of the rows with each row's dummy column appended (weight 1) and
+    the weights (``fptr`` zeros of size r + 1, ``find``/``fw`` of the total size)."""
     r = ptr.size - 1
-    fptr = np.zeros(r + 1, np.int64)
-    extra = 0
-    for i in range(r):
-        if not loop[i]:
-            extra += 1
-    find = np.empty(ind.size + extra, np.int64)
-    fw = np.zeros(ind.size + extra, np.int8)
     pos = 0
     for i in range(r):
         for k in range(ptr[i], ptr[i + 1]):
             find[pos] = ind[k]
+            fw[pos] = 0
             pos += 1
         if not loop[i]:
             find[pos] = i
             fw[pos] = 1
             pos += 1
         fptr[i + 1] = pos
-    return fptr, find, fw
 
 
 @njit(cache=True, nogil=True)
-def _prices(fptr, find, fw, rm, cm, srow, scol):  # pragma: no cover - compiled
-    """One multi-source Dijkstra search (Dial's buckets) from every unmatched row on the
-    reduced costs; moves the prices (stored relative to the sink's) in place and
-    returns the shortest augmenting distance, or -1 when no row is unmatched."""
+def _transpose_w(fptr, find, fw, tptr, tind, tw):  # pragma: no cover - compiled
+    """Fill the column-wise copy of the rows' CSR and its weights (``tptr`` zeros of
+    size n_cols + 1)."""
+    r = fptr.size - 1
+    n_cols = tptr.size - 1
+    for k in range(find.size):
+        tptr[find[k] + 1] += 1
+    for j in range(n_cols):
+        tptr[j + 1] += tptr[j]
+    for i in range(r):
+        for k in range(fptr[i], fptr[i + 1]):
+            j = find[k]
+            p = tptr[j]
+            tind[p] = i
+            tw[p] = fw[k]
+            tptr[j] = p + 1
+    for j in range(n_cols, 0, -1):
+        tptr[j] = tptr[j - 1]
+    tptr[0] = 0
+
+
+@njit(cache=True, nogil=True)
+def _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode,
+                 enext):  # pragma: no cover - compiled
+    """One backward Dijkstra search (Dial's buckets) from the sink over the residual
+    graph: the distance of a row is the least reduced cost of an alternating path from
+    it to a free column (a column's is its matched row's: the matched edge is tight).
+    Every price drops by its vertex's distance (unreached vertices by the largest
+    distance found): for an edge (i, j), ``dist(i) <= rc(i, j) + dist(j)`` keeps the
+    reduced cost non-negative, and the edges of every shortest path become tight. Free
+    columns (distance 0) keep stored price 0; other columns only drop. ``drow``,
+    ``dcol``, ``enode``, ``enext`` are work arrays (sizes r, n_cols, n_cols + 1 twice).
+    Returns the largest distance."""
     r = rm.size
     n_cols = cm.size
-    inf = np.int64(2) ** 62
+    inf = 2 ** 30
     head = np.full(64, -1, np.int64)
-    drow = np.full(r, inf, np.int64)
-    dcol = np.full(n_cols, inf, np.int64)
-    cap = r + n_cols + 16
-    enode = np.empty(cap, np.int64)
-    enext = np.empty(cap, np.int64)
-    ne = 0
-    top = 0
     for i in range(r):
-        if rm[i] < 0:
-            drow[i] = 0
-            enode[ne] = i
+        drow[i] = inf
+    ne = 0
+    for j in range(n_cols):
+        if cm[j] < 0:
+            dcol[j] = 0
+            enode[ne] = j
             enext[ne] = head[0]
             head[0] = ne
             ne += 1
-    if ne == 0:
-        return np.int64(-1)
-    best = inf
-    d = np.int64(0)
-    while d < best and d <= top:
+        else:
+            dcol[j] = inf
+    # a column enters a bucket only when its distance drops, at most once per bucket
+    # level in practice; the entry arrays grow if a network needs more
+    top = 0
+    far = 0
+    d = 0
+    while d <= top:
         e = head[d]
         if e < 0:
             d += 1
             continue
         head[d] = enext[e]
-        x = enode[e]
-        if x < r:
-            i = x
-            if drow[i] != d:
+        j = enode[e]
+        if dcol[j] != d:
+            continue
+        sj = scol[j]
+        mj = cm[j]
+        for k in range(tptr[j], tptr[j + 1]):
+            i = tind[k]
+            if i == mj:
                 continue
-            mi = rm[i]
-            for k in range(fptr[i], fptr[i + 1]):
-                j = find[k]
-                if j == mi:
+            nd = d + tw[k] + srow[i] - sj
+            if nd < drow[i]:
+                drow[i] = nd
+                if nd > far:
+                    far = nd
+                c = rm[i]
+                if c < 0 or nd >= dcol[c]:
                     continue
-                nd = d + fw[k] + srow[i] - scol[j]
-                if nd < dcol[j] and nd < best:
-                    dcol[j] = nd
-                    if nd >= head.size:
-                        h2 = np.full(max(2 * head.size, nd + 1), -1, np.int64)
-                        h2[:head.size] = head
-                        head = h2
-                    if nd > top:
-                        top = nd
-                    if ne >= cap:
-                        en2 = np.empty(2 * cap, np.int64)
-                        ex2 = np.empty(2 * cap, np.int64)
-                        en2[:cap] = enode
-                        ex2[:cap] = enext
-                        enode = en2
-                        enext = ex2
-                        cap = 2 * cap
-                    enode[ne] = r + j
-                    enext[ne] = head[nd]
-                    head[nd] = ne
-                    ne += 1
-        else:
-            j = x - r
-            if dcol[j] != d:
-                continue
-            i2 = cm[j]
-            if i2 < 0:
-                if d + scol[j] < best:  # column -> sink, reduced cost scol[j] >= 0
-                    best = d + scol[j]
-                continue
-            # the matched edge is tight: the row is at the column's distance
-            if d < drow[i2]:
-                drow[i2] = d
-                if ne >= cap:
-                    en2 = np.empty(2 * cap, np.int64)
-                    ex2 = np.empty(2 * cap, np.int64)
-                    en2[:cap] = enode
-                    ex2[:cap] = enext
+                dcol[c] = nd
+                if nd >= head.size:
+                    h2 = np.full(max(2 * head.size, nd + 1), -1, np.int64)
+                    h2[:head.size] = head
+                    head = h2
+                if nd > top:
+                    top = nd
+                if ne >= enode.size:
+                    en2 = np.empty(2 * enode.size, enode.dtype)
+                    ex2 = np.empty(2 * enode.size, enode.dtype)
+                    en2[:ne] = enode[:ne]
+                    ex2[:ne] = enext[:ne]
                     enode = en2
                     enext = ex2
-                    cap = 2 * cap
-                enode[ne] = i2
-                enext[ne] = head[d]
-                head[d] = ne
+                enode[ne] = c
+                enext[ne] = head[nd]
+                head[nd] = ne
                 ne += 1
-    if best >= inf:
-        raise ValueError("no perfect assignment: a row has no column")
-    # true prices += min(dist, best); the sink's += best: stored s += dist - best
     for i in range(r):
-        if drow[i] < best:
-            srow[i] += drow[i] - best
+        srow[i] -= drow[i] if drow[i] < far else far
     for j in range(n_cols):
-        if dcol[j] < best:
-            scol[j] += dcol[j] - best
-    return best
+        scol[j] -= dcol[j] if dcol[j] < far else far
+    return far
 
 
 @njit(cache=True, nogil=True)
-def _admissible(fptr, find, fw, srow, scol, cm):  # pragma: no cover - compiled
-    """CSR of the edges of zero reduced cost into a matched column or a free column of
-    stored price 0 (an admissible end at the sink)."""
-    r = fptr.size - 1
-    aptr = np.zeros(r + 1, np.int64)
-    aind = np.empty(find.size, np.int64)
-    pos = 0
-    for i in range(r):
-        for k in range(fptr[i], fptr[i + 1]):
-            j = find[k]
-            if fw[k] + srow[i] - scol[j] == 0 and (cm[j] >= 0 or scol[j] == 0):
-                aind[pos] = j
-                pos += 1
-        aptr[i + 1] = pos
-    return aptr, aind[:pos].copy()
-
-
-@njit(cache=True, nogil=True)
-def _useful(aptr, aind, rm, cm, n_cols):  # pragma: no cover - compiled
-    """The admissible subgraph that can hold an augmenting path: rows and columns from
-    which an alternating path of admissible edges reaches a free column, found by one
-    backward search from the free columns (a column is left by the matched edge to its
-    row; a row is entered through a non-matching admissible edge). Returns the subgraph
-    as CSR over the renumbered useful rows and columns, their original ids, and the
-    current matching in the new numbering."""
-    r = aptr.size - 1
-    tptr = np.zeros(n_cols + 1, np.int64)
-    for k in range(aind.size):
-        tptr[aind[k] + 1] += 1
-    for j in range(n_cols):
-        tptr[j + 1] += tptr[j]
-    tind = np.empty(aind.size, np.int64)
-    fill = tptr[:-1].copy()
-    for i in range(r):
-        for k in range(aptr[i], aptr[i + 1]):
-            j = aind[k]
-            tind[fill[j]] = i
-            fill[j] += 1
-    urow = np.zeros(r, np.bool_)
-    ucol = np.zeros(n_cols, np.bool_)
-    queue = np.empty(n_cols, np.int64)
-    head = 0
+def _relabel(tptr, tind, tw, rm, cm, srow, scol, psi, queue, inf):  # pragma: no cover
+    """Exact labels of the push-relabel matching: ``psi[j]`` is twice the number of
+    rows on the shortest alternating path of tight edges from column ``j`` to a free
+    column, ``inf`` where there is none. One backward breadth-first search from the free
+    columns; returns the number of edges it scanned."""
+    n_cols = cm.size
     tail = 0
     for j in range(n_cols):
-        if cm[j] < 0 and tptr[j + 1] > tptr[j]:
-            ucol[j] = True
+        if cm[j] < 0:
+            psi[j] = 0
             queue[tail] = j
             tail += 1
+        else:
+            psi[j] = inf
+    head = 0
+    work = 0
     while head < tail:
         j = queue[head]
         head += 1
+        sj = scol[j]
+        nxt = psi[j] + 2
+        work += tptr[j + 1] - tptr[j]
         for k in range(tptr[j], tptr[j + 1]):
             i = tind[k]
-            if i == cm[j] or urow[i]:
-                continue
-            urow[i] = True
             c = rm[i]
-            if c >= 0 and not ucol[c]:
-                ucol[c] = True
+            if c < 0 or c == j or tw[k] + srow[i] != sj:
+                continue
+            if psi[c] == inf:
+                psi[c] = nxt
                 queue[tail] = c
                 tail += 1
-    new_col = np.full(n_cols, -1, np.int64)
-    cols = np.empty(tail, np.int64)
-    nc = 0
-    for j in range(n_cols):
-        if ucol[j]:
-            new_col[j] = nc
-            cols[nc] = j
-            nc += 1
-    nr = 0
-    for i in range(r):
-        if urow[i]:
-            nr += 1
-    rows = np.empty(nr, np.int64)
-    sptr = np.zeros(nr + 1, np.int64)
-    srm = np.full(nr, -1, np.int64)
-    q = 0
-    for i in range(r):
-        if urow[i]:
-            rows[q] = i
-            cnt = 0
-            for k in range(aptr[i], aptr[i + 1]):
-                if ucol[aind[k]]:
-                    cnt += 1
-            sptr[q + 1] = sptr[q] + cnt
-            if rm[i] >= 0:
-                srm[q] = new_col[rm[i]]
-            q += 1
-    sind = np.empty(sptr[nr], np.int64)
-    pos = 0
-    for q in range(nr):
-        i = rows[q]
-        for k in range(aptr[i], aptr[i + 1]):
-            j = aind[k]
-            if ucol[j]:
-                sind[pos] = new_col[j]
-                pos += 1
-    return sptr, sind, rows, cols, srm
+    return work
 
 
 @njit(cache=True, nogil=True)
-def _write_back(rows, cols, srm, rm, cm):  # pragma: no cover - compiled
-    """Copy the matching of the useful subgraph back into the whole one."""
-    for q in range(rows.size):
-        i = rows[q]
-        if srm[q] >= 0:
-            j = cols[srm[q]]
-            rm[i] = j
-            cm[j] = i
+def _push_relabel(fptr, find, fw, tptr, tind, tw, rm, cm, srow, scol, free, psi, queue,
+                  act):  # pragma: no cover - compiled
+    """Maximum matching of the tight edges (zero reduced cost), completed from the
+    current one in place, by push-relabel with global relabelling [3]_: a free row takes
+    its tight column of least label, that column's former row becomes free, and the
+    column's label rises to the row's second least label plus two (labels stay lower
+    bounds of the distance to a free column); a backward search recomputes the exact
+    labels once the pushes since the last one have scanned a quarter as many edges as
+    it did (common practice, no source: fewer wasted pushes by rows that end free, for
+    one more search). Columns never become free again and only tight edges are matched,
+    so the prices stay valid; which rows stay free may change (any may start the next
+    phase). ``free`` holds the free rows on entry; returns those left free (no tight
+    path to a free column). ``queue`` (n_cols) and ``act`` (r + 1) are work arrays."""
+    r = rm.size
+    inf = 2 * (r + cm.size) + 4
+    budget = _relabel(tptr, tind, tw, rm, cm, srow, scol, psi, queue, inf) // 4
+    cap = act.size
+    head = 0
+    n_act = 0
+    for t in range(free.size):
+        act[n_act] = free[t]
+        n_act += 1
+    n_stuck = 0
+    spent = 0
+    while n_act > 0:
+        if spent > budget:
+            budget = _relabel(tptr, tind, tw, rm, cm, srow, scol, psi, queue, inf) // 4
+            spent = 0
+        u = act[head]
+        head += 1
+        if head == cap:
+            head = 0
+        n_act -= 1
+        su = srow[u]
+        best = inf
+        second = inf
+        v = -1
+        spent += fptr[u + 1] - fptr[u]
+        for k in range(fptr[u], fptr[u + 1]):
+            j = find[k]
+            if fw[k] + su != scol[j]:
+                continue
+            p = psi[j]
+            if p < best:
+                second = best
+                best = p
+                v = j
+            elif p < second:
+                second = p
+        if best >= inf:
+            free[n_stuck] = u  # free is no longer read: reuse it for the result
+            n_stuck += 1
+            continue
+        w = cm[v]
+        rm[u] = v
+        cm[v] = u
+        psi[v] = second + 2 if second < inf else inf
+        if w >= 0:
+            rm[w] = -1
+            tl = head + n_act
+            if tl >= cap:
+                tl -= cap
+            act[tl] = w
+            n_act += 1
+    return n_stuck
 
 
 def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
@@ -304,29 +303,51 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
 
     Notes
     -----
-    Primal-dual minimum-cost assignment (module docstring), exact; one of possibly many
-    optimal assignments. Each phase is O(E + V); the phases are few in practice.
+    Primal-dual minimum-cost assignment grown from the sink (module docstring), exact;
+    one of possibly many optimal assignments. Each phase is one O(E + V) search plus a
+    push-relabel matching; the phases are few in practice. The work arrays are int32
+    whenever the sizes allow (less memory traffic on huge networks).
     """
     ptr = np.ascontiguousarray(indptr, np.int64)
     ind = np.ascontiguousarray(indices, np.int64)
     r = ptr.size - 1
     n_cols = int(n_cols)
-    rm, cm = maximum_matching(ptr, ind, n_cols)
+    rm64, _ = maximum_matching(ptr, ind, n_cols)
     if r == 0:
-        return rm, 0
+        return rm64, 0
     loops = np.ascontiguousarray(has_loop, np.bool_)
-    fptr, find, fw = _with_dummies(ptr, ind, loops)
-    srow = np.zeros(r, np.int64)
-    scol = np.zeros(n_cols, np.int64)
-    while True:
-        if _prices(fptr, find, fw, rm, cm, srow, scol) < 0:
-            break
-        # every shortest augmenting path at once: a maximum matching of the admissible
-        # edges, started from the current one (augmenting paths keep matched vertices),
-        # on the part of them that can hold an augmenting path at all
-        aptr, aind = _admissible(fptr, find, fw, srow, scol, cm)
-        sptr, sind, rows, cols, srm = _useful(aptr, aind, rm, cm, n_cols)
-        srm, _ = maximum_matching(sptr, sind, cols.size, row_match=srm)
-        _write_back(rows, cols, srm, rm, cm)
-    n_unc = int(np.count_nonzero((rm == np.arange(r)) & ~loops))
-    return rm, n_unc
+    size = ind.size + r - int(np.count_nonzero(loops))
+    # labels reach 2 (r + n_cols) + 4; distances stay below 2**30
+    dt = np.int32 if max(size, 2 * (r + n_cols) + 8) < 2**31 - 4 else np.int64
+    fptr = np.zeros(r + 1, dt)
+    find = np.empty(size, dt)
+    fw = np.empty(size, np.int8)
+    _with_dummies(ptr, ind, loops, fptr, find, fw)
+    del ind
+    tptr = np.zeros(n_cols + 1, dt)
+    tind = np.empty(size, dt)
+    tw = np.empty(size, np.int8)
+    _transpose_w(fptr, find, fw, tptr, tind, tw)
+    rm = rm64.astype(dt)
+    cm = np.full(n_cols, -1, dt)
+    matched = np.flatnonzero(rm64 >= 0)
+    cm[rm64[matched]] = matched
+    del rm64, matched
+    srow = np.zeros(r, dt)
+    scol = np.zeros(n_cols, dt)
+    drow = np.empty(r, dt)
+    dcol = np.empty(n_cols, dt)
+    enode = np.empty(n_cols + 1, dt)
+    enext = np.empty(n_cols + 1, dt)
+    act = np.empty(r + 1, dt)
+    free = np.flatnonzero(rm < 0).astype(dt)
+    while free.size:
+        _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext)
+        # a maximum matching of the tight edges: every free row whose shortest
+        # augmenting path is still vertex-disjoint from the others' is matched
+        n_free = _push_relabel(fptr, find, fw, tptr, tind, tw, rm, cm, srow, scol,
+                               free, dcol, enode, act)  # the search's arrays, reused
+        free = free[:n_free]
+    rm_out = rm.astype(np.int64)
+    n_unc = int(np.count_nonzero((rm_out == np.arange(r)) & ~loops))
+    return rm_out, n_unc
