@@ -347,6 +347,9 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
         # augmenting path is still vertex-disjoint from the others' is matched
         n_free = _push_relabel(fptr, find, fw, tptr, tind, tw, rm, cm, srow, scol,
                                free, dcol, enode, act)  # the search's arrays, reused
+        if n_free == free.size:  # cannot happen: the dummies make a perfect assignment
+            raise RuntimeError(f"stem-cycle cover: a phase matched none of {n_free} free "
+                               f"rows (internal error; please report)")
         free = free[:n_free]
     rm_out = rm.astype(np.int64)
     n_unc = int(np.count_nonzero((rm_out == np.arange(r)) & ~loops))

@@ -16,7 +16,10 @@ import importlib
 import numpy as np
 import pytest
 import scipy.sparse as sp
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
+import netctl.graph.cover as cov
 from netctl._jit import always_compiled, always_python
 from netctl.graph.cover import stem_cycle_cover
 from netctl.structural._engine import accessible_states, structure_of
@@ -110,3 +113,124 @@ def test_thousand_state_failing_networks_agree_with_scipy(kind, n, degree, n_inp
     got = ctl._hosoe_dimension(s.A, s.B, acc)
     assert got == ctl._hosoe_dimension_reference(s.A, s.B, acc)
     assert 0 < got < int(acc.sum()) or kind == "loops"
+
+
+# -- the phases grown from the sink: adversarial shapes and the invariants of each step --
+
+def _shaped_system(kind: str, n: int, rng: np.random.Generator) -> tuple[sp.csr_array,
+                                                                          sp.csr_array]:
+    """Failing systems of shapes that stress the phases: long chains with the input
+    midway (long augmenting paths), disjoint cycles joined by few links (cycles against
+    stems), many source states feeding a core (many free rows), and sparse random
+    graphs with self-loops."""
+    edges: list[tuple[int, int]] = []  # (u, v): u -> v
+    if kind == "chain":
+        edges += [(k, k + 1) for k in range(n - 1)]
+        edges += [tuple(rng.integers(0, n, 2)) for _ in range(int(rng.integers(0, 4)))]
+    elif kind == "cycles":
+        k = 0
+        while k < n:
+            length = int(rng.integers(1, 7))
+            cyc = list(range(k, min(n, k + length)))
+            edges += [(cyc[t], cyc[(t + 1) % len(cyc)]) for t in range(len(cyc))]
+            k += length
+        edges += [tuple(rng.integers(0, n, 2)) for _ in range(int(rng.integers(1, n // 3 + 2)))]
+    elif kind == "sources":
+        core = min(max(1, n // 3), n - 1)
+        if core:
+            edges += [(int(rng.integers(core, n)), int(rng.integers(0, core)))
+                      for _ in range(n)]
+            edges += [(int(rng.integers(0, core)), int(rng.integers(0, core)))
+                      for _ in range(core)]
+    else:
+        p = float(rng.uniform(0.5, 3.0)) / n
+        mask = rng.random((n, n)) < p
+        edges += [(int(u), int(v)) for v, u in zip(*np.nonzero(mask))]
+        edges += [(v, v) for v in range(n) if rng.random() < 0.2]
+    A = np.zeros((n, n))
+    for u, v in edges:
+        A[v, u] = 1.0
+    m = int(rng.integers(0, 4))
+    B = np.zeros((n, m))
+    for k in range(m):
+        B[rng.integers(0, n), k] = 1.0
+    return sp.csr_array(A), sp.csr_array(B)
+
+
+@settings(max_examples=250, deadline=None)
+@given(st.sampled_from(["chain", "cycles", "sources", "random"]), st.integers(1, 60),
+       st.integers(0, 2**32 - 1), st.booleans(), st.sampled_from(["python", "compiled"]))
+def test_shaped_failing_systems_agree_with_scipy(kind, n, start, any_rows, mode):
+    # reference: SciPy's minimum-weight full bipartite matching (LAPJVsp) on the same
+    # costs (``_hosoe_dimension_reference``); rows: the accessible states, or any subset
+    rng = np.random.default_rng(start)
+    A, B = _shaped_system(kind, n, rng)
+    rows = (rng.random(n) < 0.8) if any_rows else accessible_states(structure_of(A), B)
+    with always_python() if mode == "python" else always_compiled():
+        got = ctl._hosoe_dimension(A, B, rows)
+    assert got == ctl._hosoe_dimension_reference(A, B, rows)
+
+
+def _cover_arrays(A: sp.csr_array, B: sp.csr_array):
+    """The kernels' arrays for ``[A B]`` on every state (as ``stem_cycle_cover`` builds
+    them), with the starting maximum matching."""
+    from netctl.graph.matching import maximum_matching
+
+    AB = sp.hstack([A, B], format="csr") if B.shape[1] else A.tocsr()
+    AB.sort_indices()
+    ptr, ind = AB.indptr.astype(np.int64), AB.indices.astype(np.int64)
+    r, n_cols = A.shape[0], AB.shape[1]
+    loops = A.diagonal() != 0
+    size = ind.size + r - int(loops.sum())
+    fptr, find = np.zeros(r + 1, np.int64), np.empty(size, np.int64)
+    fw = np.empty(size, np.int8)
+    cov._with_dummies(ptr, ind, loops, fptr, find, fw)
+    tptr, tind = np.zeros(n_cols + 1, np.int64), np.empty(size, np.int64)
+    tw = np.empty(size, np.int8)
+    cov._transpose_w(fptr, find, fw, tptr, tind, tw)
+    rm, cm = maximum_matching(ptr, ind, n_cols)
+    return fptr, find, fw, tptr, tind, tw, rm, cm
+
+
+def test_each_phase_keeps_the_optimality_conditions_and_matches_every_tight_path():
+    # the assignment LP's conditions (Ahuja, Magnanti & Orlin 1993, section 9.4, from
+    # memory): reduced costs >= 0, matched edges tight, free columns at the sink's price
+    # (stored 0) and the other columns at or below it; and after each matching step the
+    # matching is maximum on the tight edges (SciPy's maximum_bipartite_matching of the
+    # tight subgraph as reference), with the rows left free reported as such
+    from scipy.sparse.csgraph import maximum_bipartite_matching
+
+    rng = np.random.default_rng(99)
+    phases = 0
+    with always_compiled():
+        for trial in range(120):
+            kind = ["chain", "cycles", "sources", "random"][trial % 4]
+            A, B = _shaped_system(kind, int(rng.integers(5, 80)), rng)
+            fptr, find, fw, tptr, tind, tw, rm, cm = _cover_arrays(A, B)
+            r, n_cols = rm.size, cm.size
+            rows = np.repeat(np.arange(r), np.diff(fptr))
+            srow, scol = np.zeros(r, np.int64), np.zeros(n_cols, np.int64)
+            drow, dcol = np.empty(r, np.int64), np.empty(n_cols, np.int64)
+            enode, enext = np.empty(n_cols + 1, np.int64), np.empty(n_cols + 1, np.int64)
+            act = np.empty(r + 1, np.int64)
+            free = np.flatnonzero(rm < 0)
+            while free.size:
+                cov._sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext)
+                rc = fw + srow[rows] - scol[find]
+                assert (rc >= 0).all(), trial
+                on = rm[rows] == find
+                assert (rc[on] == 0).all(), trial
+                assert (scol[cm < 0] == 0).all() and (scol <= 0).all(), trial
+                n_free = cov._push_relabel(fptr, find, fw, tptr, tind, tw, rm, cm, srow,
+                                           scol, free, dcol, enode, act)
+                free = free[:n_free]
+                phases += 1
+                tight = rc == 0
+                T = sp.csr_matrix((np.ones(int(tight.sum())), (rows[tight], find[tight])),
+                                  shape=(r, n_cols))
+                want = int((maximum_bipartite_matching(T, perm_type="column") >= 0).sum())
+                assert int((rm >= 0).sum()) == want, trial
+                assert sorted(free.tolist()) == np.flatnonzero(rm < 0).tolist(), trial
+                assert ((rc == 0) | ~(rm[rows] == find)).all(), trial
+                assert (cm[rm[rm >= 0]] == np.flatnonzero(rm >= 0)).all(), trial
+    assert phases > 120  # some systems needed more than one phase
