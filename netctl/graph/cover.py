@@ -323,7 +323,7 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     find = np.empty(size, dt)
     fw = np.empty(size, np.int8)
     _with_dummies(ptr, ind, loops, fptr, find, fw)
-    del ind
+    del ptr, ind
     tptr = np.zeros(n_cols + 1, dt)
     tind = np.empty(size, dt)
     tw = np.empty(size, np.int8)

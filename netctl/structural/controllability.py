@@ -438,6 +438,8 @@ def _hosoe_dimension(A: sp.csr_array, B: sp.csr_array, acc: np.ndarray) -> int:
     has_loop = np.zeros(r, bool)
     own = sub_ind == row_new[rows_of]
     has_loop[row_new[rows_of[own]]] = True
+    # the link-sized temporaries go before the search (peak memory on huge systems)
+    del indptr, indices, counts, keep_row, cols, keep, rows_of, own, row_new, new_col
     _, n_unc = stem_cycle_cover(sub_ptr, sub_ind, r + n_cols - n, has_loop)
     return r - n_unc
 
