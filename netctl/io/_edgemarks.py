@@ -26,7 +26,10 @@ def header_marks(lines: Iterable[bytes]) -> dict[str, list[tuple[str, int]]]:
     """``{mark: [(name, line), ...]}`` from the comment lines before the first link."""
     out: dict[str, list[tuple[str, int]]] = {}
     for lineno, raw in enumerate(lines, start=1):
-        line = raw.decode("utf-8", "replace").strip(_BLANK + "\n")
+        line = raw.decode("utf-8", "replace")
+        if lineno == 1 and line.startswith("\ufeff"):  # a byte-order mark, as the links
+            line = line[1:]
+        line = line.strip(_BLANK + "\n")
         if not line:
             continue
         if not line.startswith("#"):

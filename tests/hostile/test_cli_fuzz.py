@@ -1,0 +1,245 @@
+"""Damaged copies of the bundled example files, read through the command line.
+
+Every reader is driven through ``netctl inspect FILE --json`` (the ``main`` function, in
+this process, for speed) on mutations of a good file of its format: truncated, a bad
+byte inserted, the header line twice, two columns swapped, empty, a byte-order mark, CRLF
+line ends, a very long line, NaN / infinite weights. The outcome must be
+
+* exit 0 with valid JSON on standard output (a changed file may be read: a warning says
+  what was dropped or changed), or
+* exit 2 with exactly one line ``netctl: error: FILE...`` on standard error,
+
+never a traceback, never another exit status. A byte-order mark or CRLF line ends change
+nothing: the summary is the one of the good file.
+
+Property-based testing with hypothesis (common practice for parsers, no source). The
+quick suite runs a few dozen files a format; the ``slow`` one a few thousand.
+"""
+
+from __future__ import annotations
+
+import io
+import json
+import os
+import random
+import re
+import shutil
+import warnings
+from contextlib import redirect_stderr, redirect_stdout
+from pathlib import Path
+
+import numpy as np
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from netctl.cli import main
+from netctl.io import FORMATS, read, write
+
+ROOT = Path(__file__).resolve().parents[2]
+NETWORKS = ROOT / "networks"
+
+#: suffix of each seed (the formats' own suffixes; pandapower is a .json)
+SUFFIX = {"edgelist": ".csv", "edgelist-weighted": ".csv", "system": ".toml",
+          "system-plant": ".toml", "matpower": ".m", "graphml": ".graphml",
+          "graphml-small": ".graphml", "mtx": ".mtx", "npz": ".npz", "npy": ".npy",
+          "matrix-csv": ".matrix.csv", "gml": ".gml", "json": ".json",
+          "pandapower": ".json"}
+BINARY = {"npz", "npy"}
+
+
+def _build_seeds(folder: Path) -> dict[str, bytes]:
+    """One good file a seed: the bundled networks, and the formats netctl writes made
+    from the (weighted) chemical plant example by netctl's own writers."""
+    from tests.hostile.test_fuzz import _pandapower_seed
+
+    out = {"edgelist": (NETWORKS / "heating_loop.csv").read_bytes(),
+           "system": (NETWORKS / "heating_loop.toml").read_bytes(),
+           "system-plant": (NETWORKS / "chemical_plant.toml").read_bytes(),
+           "matpower": (NETWORKS / "island_grid.m").read_bytes(),
+           "graphml": (NETWORKS / "water_network.graphml").read_bytes(),
+           "pandapower": _pandapower_seed().encode()}
+    plant = read(NETWORKS / "chemical_plant.toml")
+    rng = np.random.default_rng(3)
+    A = plant.A.copy().astype(float)
+    A.data = rng.uniform(0.5, 2.0, A.nnz).round(3) * rng.choice([-1.0, 1.0], A.nnz)
+    weighted = type(plant).from_matrices(A, state_names=plant.state_names, weighted=True)
+    for fmt, name in [("edgelist-weighted", "w.csv"), ("graphml-small", "s.graphml"),
+                      ("mtx", "s.mtx"), ("npz", "s.npz"), ("npy", "s.npy"),
+                      ("matrix-csv", "s.matrix.csv"), ("gml", "s.gml"), ("json", "s.json")]:
+        p = folder / name
+        with warnings.catch_warnings():  # Matrix Market and .npy keep no names
+            warnings.simplefilter("ignore")
+            write(weighted, p)
+        out[fmt] = p.read_bytes()
+    return out
+
+
+SEEDS: dict[str, bytes] = {}
+
+
+def seeds() -> dict[str, bytes]:
+    if not SEEDS:
+        import tempfile
+
+        with tempfile.TemporaryDirectory() as d:
+            SEEDS.update(_build_seeds(Path(d)))
+    return SEEDS
+
+
+MUTATIONS = ["truncate", "badbyte", "header2", "swap", "empty", "bom", "crlf", "longline",
+             "nanweight", "splice"]
+BAD_BYTES = [b"\x00", b"\xff", b"\x80", b"\xc3", b"\x1a", b'"', b"\\", b"{", b"<", b"#",
+             b",", b"\r", b"'", b"]", b"-", b"e", b"\t", b"\x0b", b"\xef\xbb\xbf"]
+NONFINITE = [b"nan", b"NaN", b"inf", b"-inf", b"Infinity", b"1e999", b"-1e400", b"nan(1)"]
+_NUMBER = re.compile(rb"(?<![A-Za-z_0-9.])-?[0-9]+(\.[0-9]+)?([eE][-+]?[0-9]+)?(?![A-Za-z_0-9])")
+_FIELD_SEP = re.compile(rb"[,\t ]+")
+
+
+def _lines(data: bytes) -> list[bytes]:
+    return data.split(b"\n")
+
+
+def mutate(data: bytes, kind: str, rng: random.Random) -> bytes:
+    """``data`` damaged in one way (``kind`` one of :data:`MUTATIONS`)."""
+    if kind == "truncate":
+        return data[:rng.randint(0, max(len(data) - 1, 0))]
+    if kind == "badbyte":
+        at = rng.randint(0, len(data))
+        return data[:at] + rng.choice(BAD_BYTES) + data[at:]
+    if kind == "header2":  # the first line that is not a comment, twice (or any line)
+        lines = _lines(data)
+        heads = [i for i, x in enumerate(lines) if x.strip() and not x.lstrip().startswith(
+            (b"#", b"%"))]
+        i = heads[0] if heads and rng.random() < 0.7 else rng.randrange(len(lines))
+        return b"\n".join(lines[:i + 1] + [lines[i]] + lines[i + 1:])
+    if kind == "swap":  # two fields of one line (or of every line) swapped
+        lines = _lines(data)
+        rows = [i for i, x in enumerate(lines) if len(_FIELD_SEP.split(x.strip())) >= 2]
+        if not rows:
+            return data
+        chosen = rows if rng.random() < 0.3 else [rng.choice(rows)]
+        for i in chosen:
+            parts = re.split(rb"([,\t ]+)", lines[i])
+            fields = list(range(0, len(parts), 2))
+            if len(fields) >= 2:
+                a, b = rng.sample(fields, 2)
+                parts[a], parts[b] = parts[b], parts[a]
+                lines[i] = b"".join(parts)
+        return b"\n".join(lines)
+    if kind == "empty":
+        return rng.choice([b"", b"\n", b"   \n\n", b"\xef\xbb\xbf", b"\r\n"])
+    if kind == "bom":
+        return b"\xef\xbb\xbf" + data
+    if kind == "crlf":
+        return data.replace(b"\n", b"\r\n")
+    if kind == "longline":
+        lines = _lines(data)
+        i = rng.randrange(len(lines))
+        filler = rng.choice([b"a", b"9", b"x,", b" "]) * rng.choice([3000, 70_000])
+        lines.insert(i, filler) if rng.random() < 0.5 else lines.__setitem__(
+            i, lines[i] + filler)
+        return b"\n".join(lines)
+    if kind == "nanweight":
+        found = list(_NUMBER.finditer(data))
+        if not found:
+            return data
+        picked = rng.sample(found, min(len(found), rng.choice([1, 1, 3])))
+        for m in sorted(picked, key=lambda m: -m.start()):  # right to left: offsets hold
+            data = data[:m.start()] + rng.choice(NONFINITE) + data[m.end():]
+        return data
+    a, b = sorted((rng.randint(0, len(data)), rng.randint(0, len(data))))
+    return data[:a] + rng.randbytes(rng.randint(0, 12)) + data[b:]
+
+
+def _binary_nonfinite(fmt: str, rng: random.Random, folder: Path) -> bytes:
+    """A matrix file (.npy / .npz) whose entries hold NaN or infinity."""
+    A = np.zeros((5, 5))
+    A[1, 0] = A[2, 1] = A[0, 2] = 1.5
+    A[rng.randrange(5), rng.randrange(5)] = rng.choice([np.nan, np.inf, -np.inf])
+    p = folder / ("m" + SUFFIX[fmt])
+    if fmt == "npy":
+        np.save(p, A)
+    else:
+        np.savez(p, A=A)
+    return p.read_bytes()
+
+
+def run_cli(argv: list[str]) -> tuple[int, str, str]:
+    """``netctl ARGV`` in this process: (exit status, stdout, stderr)."""
+    out, err = io.StringIO(), io.StringIO()
+    with redirect_stdout(out), redirect_stderr(err), warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        try:
+            code = main(argv)
+        except SystemExit as exc:  # argparse
+            code = exc.code if isinstance(exc.code, int) else 2
+    return code, out.getvalue(), err.getvalue()
+
+
+def _no_constants(x: str) -> float:
+    raise ValueError(f"JSON holds {x}, which is not JSON")
+
+
+def check_outcome(path: Path, data: bytes) -> tuple[int, str]:
+    """Write ``data`` to ``path``, run inspect on it and check the outcome."""
+    path.write_bytes(data)
+    code, out, err = run_cli(["inspect", str(path), "--json"])
+    assert "Traceback" not in err, err[-2000:]
+    if code == 0:
+        json.loads(out, parse_constant=_no_constants)  # valid JSON, no NaN / Infinity
+        return code, out
+    assert code == 2, f"exit {code}: {err[-600:]!r}"
+    lines = [x for x in err.splitlines() if x.startswith("netctl: error:")]
+    assert len(lines) == 1 and err.endswith("\n"), err[-600:]
+    assert str(path) in lines[0] or path.name in lines[0], lines[0][:400]
+    return code, err
+
+
+def _summary(out: str) -> dict:
+    d = json.loads(out)
+    d.pop("file", None)
+    return d
+
+
+def _one_case(fmt: str, kind: str, rng: random.Random, folder: Path) -> None:
+    seed = seeds()[fmt]
+    path = folder / ("fuzzed" + SUFFIX[fmt])
+    if fmt == "system":  # the loop's wiring is a side file
+        shutil.copy(NETWORKS / "heating_loop.csv", folder / "heating_loop.csv")
+    if kind == "nanweight" and fmt in BINARY:
+        data = _binary_nonfinite(fmt, rng, folder)
+    else:
+        data = mutate(seed, kind, rng)
+    code, text = check_outcome(path, data)
+    if kind in ("bom", "crlf") and fmt not in BINARY:
+        ok, good = check_outcome(path, seed)
+        assert ok == 0, good
+        assert code == 0 and _summary(text) == _summary(good), \
+            f"{fmt}: {kind} changed the reading: {text[-400:]!r}"
+
+
+@pytest.mark.parametrize("fmt", sorted(SUFFIX))
+def test_damaged_examples_through_the_cli(fmt, tmp_path_factory):
+    folder = tmp_path_factory.mktemp(f"cli-fuzz-{fmt}")
+
+    @settings(max_examples=12 if fmt == "graphml" else 25, deadline=None,
+              derandomize=True, suppress_health_check=list(HealthCheck))
+    @given(kind=st.sampled_from(MUTATIONS), r=st.integers(0, 2**32 - 1))
+    def run(kind: str, r: int) -> None:
+        _one_case(fmt, kind, random.Random(r), folder)
+
+    run()
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("fmt", sorted(SUFFIX))
+def test_damaged_examples_through_the_cli_volume(fmt, tmp_path):
+    """A few thousand damaged files a format, reproducible (random start fixed)."""
+    rng = random.Random(f"netctl-cli-fuzz-{fmt}")
+    for _ in range(300 if fmt == "graphml" else 2000):
+        _one_case(fmt, rng.choice(MUTATIONS), random.Random(rng.getrandbits(32)), tmp_path)
+
+
+def test_every_reader_has_a_seed():
+    assert {k.split("-")[0] if k != "matrix-csv" else k for k in SUFFIX} == set(FORMATS)

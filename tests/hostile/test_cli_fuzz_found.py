@@ -1,0 +1,25 @@
+"""Regression tests for the bugs the command-line fuzzing (test_cli_fuzz.py) found, one a
+bug; each failed on the code before its fix."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import netctl.io as nio
+from tests.hostile.test_cli_fuzz import run_cli
+
+ROOT = Path(__file__).resolve().parents[2]
+
+
+def test_byte_order_mark_keeps_the_disturbance_line(tmp_path):
+    """A byte-order mark before an edge list's first comment hid its '# disturbances:'
+    line: the disturbances were read as states, silently."""
+    good = (ROOT / "networks" / "heating_loop.csv").read_bytes()
+    p = tmp_path / "loop.csv"
+    p.write_bytes(b"\xef\xbb\xbf" + good)
+    s = nio.read(p)
+    assert s.disturbance_names == ("outdoor_temp", "solar_collector")
+    assert s.n_states == 12
+    p.write_bytes(b"\xef\xbb\xbf# disturbances: w\nsource,target\nw,a\na,b\n")
+    assert nio.read(p).disturbance_names == ("w",)
+
