@@ -33,6 +33,8 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         Bad banner, non-square matrix, absurd sizes, malformed entries (with the line).
     """
     data = read_bytes(path)
+    if data[:3] == b"\xef\xbb\xbf":  # a byte-order mark (saved as "UTF-8 with BOM")
+        data = data[3:]
     nul = data.find(b"\x00")
     if nul >= 0:  # never hand a NUL byte to scipy's parser (it crashed the process)
         raise file_error(path, data.count(b"\n", 0, nul) + 1, "the file holds a NUL byte; "

@@ -23,3 +23,12 @@ def test_byte_order_mark_keeps_the_disturbance_line(tmp_path):
     p.write_bytes(b"\xef\xbb\xbf# disturbances: w\nsource,target\nw,a\na,b\n")
     assert nio.read(p).disturbance_names == ("w",)
 
+
+def test_matrix_market_with_a_byte_order_mark_is_read(tmp_path):
+    """A Matrix Market file saved as "UTF-8 with BOM" was refused (its banner not seen)."""
+    p = tmp_path / "m.mtx"
+    p.write_bytes(b"\xef\xbb\xbf%%MatrixMarket matrix coordinate real general\n"
+                  b"3 3 2\n2 1 1.5\n3 2 -2\n")
+    s = nio.read(p)
+    assert s.n_states == 3 and s.n_links == 2
+    assert sorted(s.A.data.tolist()) == [-2.0, 1.5]
