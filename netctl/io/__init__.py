@@ -362,15 +362,18 @@ def _write_gzip(writer: Writer, system: StructuredSystem, path: str | os.PathLik
 def read_state_list(text_or_path: str) -> list[str]:
     """Names from ``"a,b,c"`` or from a file with one name a line (``#`` comments).
 
-    A value that names an existing file is read as a file.
+    A value that names an existing file is read as a file, its cells as netctl's CSV
+    writers write them (:mod:`netctl.io._cells`: a name in double quotes keeps its commas,
+    ``#`` and spaces; the spreadsheet quoting is removed, ``'=x`` is the name ``=x``). A
+    list typed on the command line is taken literally.
     """
-    from netctl.io._common import read_text
+    from netctl.io._cells import csv_records
+    from netctl.io._common import read_text, unprotect_name
 
     p = Path(text_or_path)
     if p.is_file():
         out: list[str] = []
-        for raw in read_text(p).splitlines():
-            line = raw.split("#", 1)[0].strip()
-            out.extend(x.strip() for x in line.split(",") if x.strip())
+        for _, _, cells in csv_records(read_text(p), text_or_path, seps=","):
+            out.extend(unprotect_name(x) for x in cells if x)
         return out
     return [x.strip() for x in text_or_path.split(",") if x.strip()]

@@ -266,6 +266,10 @@ def refuse_lone_surrogates(system: Any, fmt: str) -> None:
                                      f"be written to {fmt}; rename it.") from None
 
 
+#: A cell that netctl's readers would not read back as written unless it is quoted.
+_QUOTE_ROW = re.compile(r"[\r#;\t]|\A[\s\ufeff]|\s\Z")
+
+
 class SpreadsheetSafeWriter:
     """:func:`csv.writer` whose cells pass through :func:`spreadsheet_cell` (formula
     injection, OWASP "CSV Injection"; common practice)."""
@@ -277,12 +281,15 @@ class SpreadsheetSafeWriter:
         self._protected = protected
         self._w = csv.writer(fh, lineterminator="\n")
         # csv quotes a field holding the line terminator ("\n") but not a lone "\r",
-        # which a reader takes for a line break: rows holding one are quoted whole
+        # which a reader takes for a line break, nor '#' (a comment to netctl's readers),
+        # the other separators (tab, ';'), surrounding white space (which readers
+        # strip) or a leading U+FEFF (a byte-order mark when first in the file): rows
+        # holding one are quoted whole (see netctl.io._cells)
         self._all = csv.writer(fh, lineterminator="\n", quoting=csv.QUOTE_ALL)
 
     def writerow(self, row: Iterable[object]) -> None:
         cells = list(row) if self._protected else [spreadsheet_cell(c) for c in row]
-        if any(isinstance(c, str) and "\r" in c for c in cells):
+        if any(isinstance(c, str) and _QUOTE_ROW.search(c) for c in cells):
             self._all.writerow(cells)
         else:
             self._w.writerow(cells)

@@ -13,12 +13,14 @@ import re
 from pathlib import Path
 
 from netctl.errors import OptionError
-from netctl.io._common import file_error, read_text
+from netctl.io._common import file_error, read_text, unprotect_name
 from netctl.records import LinkChange
 
 __all__ = ["parse_link_changes", "read_link_changes"]
 
-_SPLIT = re.compile(r"[,\t; ]+")
+#: A name: the edge list's own rule (:mod:`netctl.io._edgesmall`): separated by commas,
+#: tabs, semicolons, spaces, and the blanks ``\r \v \f``; Unicode spaces belong to names.
+_TOKEN = re.compile(r"[^,\t; \r\v\f]+")
 _HEADER = {"source", "target", "from", "to", "src", "dst", "u", "v"}
 
 
@@ -26,7 +28,10 @@ def parse_link_changes(text: str, *, source: str = "<links>",
                        what: str = "links") -> list[LinkChange]:
     """Links from edge-list text: ``source,target`` a line, ``#`` comments, an optional
     header (``source,target``, ``from,to``, ...); fields separated by commas, tabs,
-    semicolons or spaces.
+    semicolons or spaces. Names are read as in an edge list (lines end at ``\n``; the
+    same separators; Unicode spaces belong to names), and the spreadsheet quoting
+    netctl's writers add is removed (``'=x`` is the state ``=x``), so an edge list that
+    netctl wrote reads back with its own names.
 
     Raises
     ------
@@ -39,18 +44,20 @@ def parse_link_changes(text: str, *, source: str = "<links>",
     [('pump', 'tank'), ('tank', 'valve')]
     """
     out: list[LinkChange] = []
-    for lineno, raw in enumerate(text.splitlines(), start=1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
+    first = True
+    for lineno, raw in enumerate(text.split("\n"), start=1):  # lines as an edge list's
+        f = _TOKEN.findall(raw.split("#", 1)[0])
+        if not f:
             continue
-        f = [x for x in _SPLIT.split(line) if x]
-        if not out and len(f) == 2 and f[0].lower() in _HEADER and f[1].lower() in _HEADER:
+        if first and len(f) == 2 and f[0].lower() in _HEADER and f[1].lower() in _HEADER:
+            first = False  # one header at most: a link 'u,v' after it is a link
             continue
+        first = False
         if len(f) != 2:
             raise file_error(source, lineno, f"expected 'source,target', found {len(f)} "
                              f"column(s) in {raw.strip()!r}. One link a line; a link "
                              "'a,b' means a influences b.")
-        out.append(LinkChange(f[0], f[1], lineno, source))
+        out.append(LinkChange(unprotect_name(f[0]), unprotect_name(f[1]), lineno, source))
     if not out:
         raise file_error(source, None, f"{what}: the file lists no links; expected lines "
                          "'source,target'.")

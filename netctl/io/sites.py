@@ -16,8 +16,9 @@ import os
 
 import numpy as np
 
+from netctl.io._cells import csv_records
 from netctl.io._common import file_error as _err
-from netctl.io._common import read_text
+from netctl.io._common import read_text, unprotect_name
 from netctl.records import Candidates, Sites, check_site_kind
 from netctl.system import StructuredSystem
 
@@ -45,6 +46,9 @@ def parse_sites(text: str, system: StructuredSystem, *, kind: str = "actuator",
     listed by its name: an actuator site is its velocity (frequency) state, a sensor
     site its position (angle) state. ``#`` starts a comment; fields are separated by
     commas, tabs or semicolons. Without a cost column every listed state costs 1.0.
+    Cells are read as netctl's CSV writers write them (:mod:`netctl.io._cells`): a name
+    in double quotes keeps its separators, ``#`` and spaces, and the spreadsheet quoting
+    is removed (``'=x`` is the state ``=x``), so a CSV netctl wrote reads back exactly.
 
     Raises
     ------
@@ -58,11 +62,8 @@ def parse_sites(text: str, system: StructuredSystem, *, kind: str = "actuator",
     cost = np.full(n, np.inf)
     header: list[str] | None = None
     seen: dict[int, int] = {}
-    for lineno, raw in enumerate(text.splitlines(), start=1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
-            continue
-        f = [x.strip() for x in _split_fields(line)]
+    for lineno, raw, f in csv_records(text, source):
+        line = raw.strip()
         if header is None:
             low = [x.lower() for x in f]
             if low not in (["state"], ["state", "cost"]):
@@ -74,7 +75,7 @@ def parse_sites(text: str, system: StructuredSystem, *, kind: str = "actuator",
         if len(f) != len(header):
             raise _err(source, lineno, f"expected {len(header)} field(s) "
                        f"({','.join(header)}), found {len(f)} in {raw.strip()!r}.")
-        name = f[0]
+        name = unprotect_name(f[0])
         try:
             i = int(system.index_of([name])[0])
         except KeyError as exc:
@@ -112,18 +113,13 @@ def read_sites(path: str | os.PathLike[str], system: StructuredSystem, *,
     return parse_sites(read_text(path), system, kind=kind, source=str(path))
 
 
-def _split_fields(line: str) -> list[str]:
-    for sep in (",", "\t", ";"):
-        if sep in line:
-            return line.split(sep)
-    return [line]
-
-
 def parse_candidates(text: str, system: StructuredSystem, *,
                      source: str = "<candidates>") -> Candidates:
     """Candidate actuators from CSV text: header ``name,cost,states``, then one candidate
     a line; ``states`` lists the states it acts on separated by spaces or ``;``,
-    e.g. ``valve_2,3.5,t1 t2 t4``.
+    e.g. ``valve_2,3.5,t1 t2 t4``. Cells are read as in :func:`parse_sites` (double
+    quotes, spreadsheet quoting removed from the name and from each state); a state whose
+    name holds a space or ``;`` cannot be listed here.
 
     Raises
     ------
@@ -136,11 +132,8 @@ def parse_candidates(text: str, system: StructuredSystem, *,
     costs: list[float] = []
     header_seen = False
     where: dict[str, int] = {}
-    for lineno, raw in enumerate(text.splitlines(), start=1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
-            continue
-        f = [x.strip() for x in line.split(",")]
+    for lineno, raw, f in csv_records(text, source, seps=","):
+        line = raw.strip()
         if not header_seen:
             if [x.lower() for x in f] != ["name", "cost", "states"]:
                 raise _err(source, lineno, f"expected the header 'name,cost,states', found "
@@ -151,7 +144,7 @@ def parse_candidates(text: str, system: StructuredSystem, *,
         if len(f) != 3:
             raise _err(source, lineno, f"expected 3 fields (name,cost,states), found {len(f)} "
                        f"in {raw.strip()!r}; separate the states with spaces or ';', not ','.")
-        name, c_txt, s_txt = f
+        name, c_txt, s_txt = unprotect_name(f[0]), f[1], f[2]
         if not name:
             raise _err(source, lineno, "the candidate has no name; give one in the first field.")
         if name in where:
@@ -165,7 +158,7 @@ def parse_candidates(text: str, system: StructuredSystem, *,
         if not np.isfinite(c) or c < 0:
             raise _err(source, lineno, f"the cost {c_txt!r} of {name!r} must be a finite "
                        "number >= 0.")
-        st_names = [x for x in s_txt.replace(";", " ").split() if x]
+        st_names = [unprotect_name(x) for x in s_txt.replace(";", " ").split() if x]
         if not st_names:
             raise _err(source, lineno, f"candidate {name!r} acts on no state; list the states "
                        "it acts on in the third field.")

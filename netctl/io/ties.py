@@ -3,15 +3,15 @@
 One header line ``from_system,from_state,to_system,to_state[,kind]`` then one tie a line;
 ``kind`` is ``state`` (a link from one subsystem's state to another's, the default) or
 ``signal`` (an output of one subsystem feeds an input of another). Lines starting with
-``#`` and blank lines are skipped. Errors name the file, the line and the fix.
+``#`` and blank lines are skipped. Cells are read as netctl's CSV writers write them
+(:mod:`netctl.io._cells`: double quotes, and the spreadsheet quoting of the state names
+removed, ``'=x`` is the state ``=x``). Errors name the file, the line and the fix.
 """
 
 from __future__ import annotations
 
-import csv
-import io
-
-from netctl.io._common import file_error, read_text
+from netctl.io._cells import csv_records
+from netctl.io._common import file_error, read_text, unprotect_name
 from netctl.records import TIE_KINDS, Tie
 
 __all__ = ["TIES_HEADER", "read_ties"]
@@ -25,11 +25,8 @@ def read_ties(path: str) -> list[Tie]:
     text = read_text(path)
     ties: list[Tie] = []
     header_seen = False
-    for lineno, raw in enumerate(text.splitlines(), start=1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
-            continue
-        fields = [f.strip() for f in next(csv.reader(io.StringIO(line)))]
+    for lineno, raw, fields in csv_records(text, path, seps=","):
+        line = raw.strip()
         if not header_seen:
             low = [f.lower() for f in fields]
             if tuple(low[:4]) != TIES_HEADER or len(low) > 5 or (
@@ -51,7 +48,8 @@ def read_ties(path: str) -> list[Tie]:
             raise file_error(path, lineno, f"kind {fields[4]!r} is not one of "
                              f"{', '.join(TIE_KINDS)}; 'state' links two states, 'signal' "
                              "feeds an output into an input.")
-        ties.append(Tie(fields[0], fields[1], fields[2], fields[3], kind))
+        ties.append(Tie(fields[0], unprotect_name(fields[1]), fields[2],
+                        unprotect_name(fields[3]), kind))
     if not header_seen:
         raise file_error(path, None, f"the file is empty; expected the header "
                          f"'{','.join(TIES_HEADER)}[,kind]' and one tie a line.")

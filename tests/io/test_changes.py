@@ -67,3 +67,12 @@ def test_inline_errors(value, message):
     with pytest.raises(OptionError) as exc:
         read_link_changes(value, "--add-links")
     assert str(exc.value).startswith(message)
+
+
+def test_only_the_first_line_can_be_a_header():
+    """A link between states named like header words ('u,v', 'from,to') after the header
+    is a link: it was skipped as a second header, silently (found by the round trip of
+    edge lists netctl writes, tests/hostile/test_name_lists_roundtrip.py)."""
+    got = parse_link_changes("source,target\nu,v\nfrom,to\n")
+    assert [c.pair for c in got] == [("u", "v"), ("from", "to")]
+    assert [c.line for c in got] == [2, 3]
