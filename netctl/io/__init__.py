@@ -340,23 +340,54 @@ def write(system: StructuredSystem, path: str | os.PathLike[str], format: str | 
 
 
 def _write_gzip(writer: Writer, system: StructuredSystem, path: str | os.PathLike[str]) -> None:
-    """Write uncompressed beside the target, then gzip into place atomically."""
+    """Write uncompressed into a scratch folder beside the target, then gzip into place
+    atomically.
+
+    The writer sees the user's file name without ``.gz`` (so a TOML description's name and
+    its side edge list are named after the user's file, not after a scratch file), and
+    every warning and error it raises names the user's path. Side files a writer puts
+    beside its file (a large TOML description's edge list) are moved beside the target,
+    uncompressed, in the same atomic group.
+    """
     import gzip
     import shutil
     import tempfile
+    import warnings
 
     target = Path(path)
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=target.name[:-3],
-                               dir=target.parent if str(target.parent) else ".")
-    os.close(fd)
+    parent = target.parent if str(target.parent) else Path(".")
     try:
-        with ungrouped():
-            writer(system, tmp)
-        with atomic_write(target, "wb") as out, open(tmp, "rb") as src, \
+        scratch = tempfile.mkdtemp(prefix=f".{target.name[:64]}.", dir=parent)
+    except OSError as exc:
+        from netctl.io._common import _write_error
+
+        raise _write_error(path, exc) from None
+    inner = Path(scratch) / target.name[:-3]
+
+    def user_path(text: str) -> str:
+        return text.replace(str(inner), str(path)).replace(scratch + os.sep, str(parent) + os.sep)
+
+    try:
+        with ungrouped(), warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            try:
+                writer(system, inner)
+            except NetctlError as exc:
+                exc.args = (user_path(str(exc)),) + exc.args[1:]
+                raise
+        for w in caught:  # again, naming the user's file
+            warnings.warn_explicit(user_path(str(w.message)), w.category, w.filename,
+                                   w.lineno)
+        with atomic_write(target, "wb") as out, open(inner, "rb") as src, \
                 gzip.GzipFile(fileobj=out, mode="wb", mtime=0) as gz:
             shutil.copyfileobj(src, gz)
+        for side in sorted(os.listdir(scratch)):
+            if side != inner.name:
+                with atomic_write(parent / side, "wb") as out, \
+                        open(os.path.join(scratch, side), "rb") as src:
+                    shutil.copyfileobj(src, out)
     finally:
-        os.unlink(tmp)
+        shutil.rmtree(scratch, ignore_errors=True)
 
 
 def read_state_list(text_or_path: str) -> list[str]:
