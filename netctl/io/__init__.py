@@ -15,6 +15,8 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
+import numpy as np
+
 from netctl.errors import (
     InvalidSystemError,
     LimitError,
@@ -286,16 +288,12 @@ _LONE_ESCAPE = re.compile(
 
 
 def _refuse_lone_surrogates(path: str | os.PathLike[str], system: StructuredSystem) -> None:
-    """Refuse a name holding a lone surrogate, with the line of its escape."""
-    groups = (system.state_names, system.input_names, system.output_names,
-              system.disturbance_names, system.regulated_names)
-    try:
-        for g in groups:
-            "\n".join(g).encode("utf-8")  # one C-level pass; fails on a lone surrogate
+    """Refuse a name or a node-table text (attribute name or value, element ID) holding a
+    lone surrogate, with the line of its escape."""
+    what = _lone_surrogate(system)
+    if what is None:
         return
-    except UnicodeEncodeError:
-        pass
-    name = next(x for g in groups for x in g if _SURROGATE.search(x))
+    text, where, fix = what
     line = None
     if not str(path).endswith(".npz"):
         try:
@@ -309,10 +307,52 @@ def _refuse_lone_surrogates(path: str | os.PathLike[str], system: StructuredSyst
                         break
         except OSError:
             pass
-    raise file_error(path, line, f"the name {excerpt(name)} holds a lone surrogate "
-                     f"({_SURROGATE.search(name).group()!r}: half of a UTF-16 pair, not a "  # type: ignore[union-attr]
-                     "character), which no text file can hold; correct the name (a UTF-16 "
+    raise file_error(path, line, f"{where.format(excerpt(text))} holds a lone surrogate "
+                     f"({_SURROGATE.search(text).group()!r}: half of a UTF-16 pair, not a "  # type: ignore[union-attr]
+                     f"character), which no text file can hold; correct the {fix} (a UTF-16 "
                      "pair needs both halves, e.g. \\ud83d\\ude00).")
+
+
+def _encodes(texts: list[str]) -> bool:
+    try:
+        "\n".join(texts).encode("utf-8")  # one C-level pass; fails on a lone surrogate
+        return True
+    except UnicodeEncodeError:
+        return False
+
+
+def _lone_surrogate(system: StructuredSystem) -> tuple[str, str, str] | None:
+    """(text, where it is, what to correct) of the first name or node-table text holding
+    a lone surrogate."""
+    groups = (system.state_names, system.input_names, system.output_names,
+              system.disturbance_names, system.regulated_names)
+    if not all(_encodes(list(g)) for g in groups):
+        return next((x, "the name {}", "name") for g in groups for x in g
+                    if _SURROGATE.search(x))
+    tables = ((system.nodes, "state", system.state_names),
+              (system.disturbance_nodes, "disturbance", system.disturbance_names))
+    for table, kind, names in tables:
+        for key, col in table.items():
+            if _SURROGATE.search(key):
+                return key, "the node attribute name {}", "attribute name"
+            arr = np.asarray(col)
+            if arr.dtype.kind not in "OU":
+                continue
+            values = arr.tolist()
+            texts = [x for x in values if isinstance(x, str)]
+            if _encodes(texts):
+                continue
+            k = next(k for k, x in enumerate(values)
+                     if isinstance(x, str) and _SURROGATE.search(x))
+            return (values[k], f"the value {{}} of the attribute {excerpt(key)} of {kind} "
+                    f"{excerpt(names[k])}", "value")
+    el = system.elements
+    if el is not None:
+        for label, ids in (("element ID", el.ids), ("bus name", el.node_names)):
+            if not _encodes(list(ids)):
+                return (next(x for x in ids if _SURROGATE.search(x)), f"the {label} {{}}",
+                        label)
+    return None
 
 
 _SURROGATE = re.compile("[\ud800-\udfff]")

@@ -197,6 +197,20 @@ STRICT = [
                  "s.gml:4: the name 'b\\ud800' holds a lone surrogate", id="gml-lone-surrogate"),
     pytest.param("s.npz", b"", "s.npz: the name 'b\\ud800' holds a lone surrogate",
                  id="npz-lone-surrogate"),
+    # ... and in the node table (attribute values and names): refused at read like a name
+    # (they were refused only when writing, so inspect read them)
+    pytest.param("v.json", b'{"directed": true, "nodes": [{"id": "a"},\n{"id": "b", '
+                 b'"tag": "x\\ud800"}],\n"links": [{"source": "a", "target": "b"}]}',
+                 "v.json:2: the value 'x\\ud800' of the attribute 'tag' of state 'b' holds "
+                 "a lone surrogate", id="json-node-value-lone-surrogate"),
+    pytest.param("k.json", b'{"directed": true, "nodes": [{"id": "a"},\n{"id": "b", '
+                 b'"t\\udc00": 1}],\n"links": []}',
+                 "k.json:2: the node attribute name 't\\udc00' holds a lone surrogate",
+                 id="json-node-key-lone-surrogate"),
+    pytest.param("v.gml", b'graph [\n directed 1\n node [ id 0 label "a" ]\n'
+                 b' node [ id 1 label "b" tag "x&#55296;" ]\n edge [ source 0 target 1 ]\n]\n',
+                 "v.gml:4: the value 'x\\ud800' of the attribute 'tag' of state 'b' holds a "
+                 "lone surrogate", id="gml-node-value-lone-surrogate"),
 ]
 
 
@@ -210,6 +224,17 @@ def _npz_named(names):
 
 STRICT = [pytest.param(p.values[0], _npz_named(["a", "b\ud800"]), *p.values[2:], id=p.id)
           if p.id == "npz-lone-surrogate" else p for p in STRICT]
+
+
+@pytest.mark.parametrize("name, data, message", [p for p in STRICT if "node-" in p.id])
+def test_node_table_lone_surrogate_refused_by_inspect(tmp_path, monkeypatch, capsys, name,
+                                                      data, message):
+    """Reading alone refuses it (inspect writes nothing): exit 2, one line."""
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / name).write_bytes(data)
+    assert main(["inspect", name, "--json"]) == 2
+    err = capsys.readouterr().err
+    assert message in err and err.count("\n") == 1, err
 
 
 def test_a_whole_utf16_pair_is_a_character(tmp_path):
