@@ -9,12 +9,13 @@ quoting as the links (:func:`netctl.io._common.unprotect_name`).
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable
+import warnings
+from collections.abc import Callable, Iterable, Sequence
 
 from netctl.io._common import file_error, unprotect_name
 from netctl.system import StructuredSystem
 
-__all__ = ["MARKS", "header_marks", "apply_marks"]
+__all__ = ["MARKS", "header_marks", "apply_marks", "repeated_header"]
 
 #: Comment lines at the top of an edge list that mark signals (``# disturbances: a, b``).
 MARKS: tuple[str, ...] = ("disturbances", "regulated")
@@ -68,3 +69,40 @@ def apply_marks(system: StructuredSystem, marks: dict[str, list[tuple[str, int]]
         for name, line in dist:
             mark_disturbances(system, [name], path, line)
         return mark_disturbances(system, [x for x, _ in dist], path, dist[0][1])
+
+
+#: Networks with more states are not checked for a repeated header row (about 20 ms a
+#: million names a spelling; common practice, no source).
+_CHECKED_NAMES = 2_000_000
+
+
+def repeated_header(lines: Iterable[bytes], path: object,
+                    fields: Callable[[str], list[str]],
+                    is_header: Callable[[list[str]], bool], names: Sequence[str]) -> None:
+    """Warn when the header row appears again further down (a file pasted together from
+    two): it is read as a link between states named like the header's words, which is
+    kept (it may be meant), but said. The file is scanned only when the first row is a
+    header and both of its words are state names, in networks of at most
+    :data:`_CHECKED_NAMES` states (the look-up scans every name)."""
+    header: list[str] | None = None
+    for lineno, raw in enumerate(lines, start=1):
+        f = fields(raw.decode("utf-8", "replace").lstrip("\ufeff"))
+        if not f:
+            continue
+        low = [x.lower() for x in f]
+        if header is None:
+            if (not is_header(f) or len(names) > _CHECKED_NAMES
+                    or not _variants(low[0], names) or not _variants(low[1], names)):
+                return
+            header = low
+            continue
+        if low == header:
+            warnings.warn(f"{path}:{lineno}: the header row {' '.join(f)!r} appears again; "
+                          f"it was read as a link between states named {f[0]!r} and "
+                          f"{f[1]!r}. Delete the line if it is a stray header.", stacklevel=4)
+            return
+
+
+def _variants(word: str, names: Sequence[str]) -> list[str]:
+    """The spellings of ``word`` (lower, Title, UPPER) that are names (a C-level scan)."""
+    return [x for x in {word, word.title(), word.upper()} if x in names]

@@ -43,7 +43,7 @@ from netctl.io._common import (
     max_bytes,
     note_input,
 )
-from netctl.io._edgemarks import apply_marks, header_marks
+from netctl.io._edgemarks import apply_marks, header_marks, repeated_header
 from netctl.io._edgenames import _INT, cat_arrays, factorize_ints, int_order, unquote_names
 from netctl.io._edgesmall import SMALL_BYTES, read_small
 from netctl.io.edgelist_writer import write_edgelist
@@ -569,6 +569,8 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
         system = _system_from_arrays(e, path, model=model)
     with _open(path) as fh:
         marks = header_marks(fh)
+    with _open(path) as fh:
+        repeated_header(fh, path, _fields, _is_header, system.state_names)
     if marks:
         system = apply_marks(system, marks, path)
     return system

@@ -32,3 +32,17 @@ def test_matrix_market_with_a_byte_order_mark_is_read(tmp_path):
     s = nio.read(p)
     assert s.n_states == 3 and s.n_links == 2
     assert sorted(s.A.data.tolist()) == [-2.0, 1.5]
+
+
+def test_repeated_header_row_is_kept_with_a_warning(tmp_path):
+    """The header row twice (two files pasted together) was read silently as a link
+    between two new states 'source' and 'target'; it is kept (it may be meant) but said,
+    with the line."""
+    p = tmp_path / "pasted.csv"
+    p.write_text("source,target\na,b\nSource,Target\nb,c\n")
+    code, out, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 0
+    assert f"{p}:3: the header row 'Source Target' appears again" in err, err
+    p.write_text("source,target\na,b\nsource,x\n")  # a state named 'source' alone: quiet
+    code, out, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 0 and "warning" not in err, err
