@@ -53,4 +53,7 @@ def read_ties(path: str) -> list[Tie]:
     if not header_seen:
         raise file_error(path, None, f"the file is empty; expected the header "
                          f"'{','.join(TIES_HEADER)}[,kind]' and one tie a line.")
+    if not ties:
+        raise file_error(path, None, f"the file lists no tie; add one tie a line after the "
+                         f"header, e.g. 'plant,c,ctrl,p' ({','.join(TIES_HEADER)}).")
     return ties

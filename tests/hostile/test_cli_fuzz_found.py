@@ -46,3 +46,16 @@ def test_repeated_header_row_is_kept_with_a_warning(tmp_path):
     p.write_text("source,target\na,b\nsource,x\n")  # a state named 'source' alone: quiet
     code, out, err = run_cli(["inspect", str(p), "--json"])
     assert code == 0 and "warning" not in err, err
+
+
+def test_ties_file_with_no_tie_is_named(tmp_path):
+    """A ties file holding only its header: the message did not name the file."""
+    (tmp_path / "plant.csv").write_text("source,target\na,b\n")
+    (tmp_path / "ctrl.csv").write_text("source,target\np,q\n")
+    ties = tmp_path / "ties.csv"
+    ties.write_text("from_system,from_state,to_system,to_state\n# none yet\n")
+    code, _, err = run_cli(["join", str(tmp_path / "plant.csv"), str(tmp_path / "ctrl.csv"),
+                            "--ties", str(ties)])
+    assert code == 2
+    assert err == f"netctl: error: {ties}: the file lists no tie; add one tie a line after " \
+        "the header, e.g. 'plant,c,ctrl,p' (from_system,from_state,to_system,to_state).\n"
