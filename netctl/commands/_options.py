@@ -383,10 +383,33 @@ def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs",
     try:
         return system.index_of(names)
     except NetctlError as exc:
+        where = _name_line(system, value, what, whole_bus)
         if isinstance(exc, UnknownNameError) and system.elements is not None:
-            raise UnknownNameError(f"{what}: {exc} Grid states are bus numbers (or "
+            raise UnknownNameError(f"{where}{what}: {exc} Grid states are bus numbers (or "
                                    "'BUS:pos' / 'BUS:vel' in the swing model).") from None
-        raise type(exc)(f"{what}: {exc}") from None
+        raise type(exc)(f"{where}{what}: {exc}") from None
+
+
+def _name_line(system: StructuredSystem, value: str, what: str, whole_bus: bool) -> str:
+    """``"FILE:LINE: "`` of the first name of a name-list file that is not a state (``""``
+    for a list typed on the command line)."""
+    from pathlib import Path
+
+    from netctl.errors import NetctlError
+    from netctl.io._cells import name_lines
+    from netctl.io._common import read_text
+
+    if not Path(value).is_file():
+        return ""
+    for name, line in name_lines(read_text(value), value):
+        try:
+            one = [name]
+            if system.model == "second-order" or "part" in system.nodes:
+                one = _node_names(system, one, what, whole_bus)
+            system.index_of(one)
+        except NetctlError:
+            return f"{value}:{line}: "
+    return f"{value}: "
 
 
 def _node_names(system: StructuredSystem, names: list[str], what: str, whole_bus: bool

@@ -438,13 +438,10 @@ def read_state_list(text_or_path: str) -> list[str]:
     ``#`` and spaces; the spreadsheet quoting is removed, ``'=x`` is the name ``=x``). A
     list typed on the command line is taken literally.
     """
-    from netctl.io._cells import csv_records
-    from netctl.io._common import read_text, unprotect_name
+    from netctl.io._cells import name_lines
+    from netctl.io._common import read_text
 
     p = Path(text_or_path)
     if p.is_file():
-        out: list[str] = []
-        for _, _, cells in csv_records(read_text(p), text_or_path, seps=","):
-            out.extend(unprotect_name(x) for x in cells if x)
-        return out
+        return [x for x, _ in name_lines(read_text(p), text_or_path)]
     return [x.strip() for x in text_or_path.split(",") if x.strip()]

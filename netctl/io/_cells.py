@@ -19,7 +19,7 @@ from collections.abc import Iterator
 
 from netctl.io._common import file_error
 
-__all__ = ["csv_records"]
+__all__ = ["csv_records", "name_lines"]
 
 _LINES = re.compile(r"\r\n|\r|\n")
 
@@ -136,3 +136,13 @@ def csv_records(text: str, source: object, *, seps: str = ",\t;"
             rec, end = rec + end + nxt[1], nxt[2]  # the cell's own line break, kept
         if cells != [""]:
             yield lineno, rec, cells
+
+
+def name_lines(text: str, source: object) -> list[tuple[str, int]]:
+    """(name, line) of every name in a name-list file: one name a line or several
+    separated by commas, ``#`` comments, cells as :func:`csv_records` reads them and the
+    spreadsheet quoting removed (``'=x`` is the name ``=x``)."""
+    from netctl.io._common import unprotect_name
+
+    return [(unprotect_name(x), lineno) for lineno, _, cells in
+            csv_records(text, source, seps=",") for x in cells if x]

@@ -59,3 +59,16 @@ def test_ties_file_with_no_tie_is_named(tmp_path):
     assert code == 2
     assert err == f"netctl: error: {ties}: the file lists no tie; add one tie a line after " \
         "the header, e.g. 'plant,c,ctrl,p' (from_system,from_state,to_system,to_state).\n"
+
+
+def test_unknown_name_in_a_name_list_file_names_file_and_line(tmp_path):
+    """--inputs FILE with a name that is no state: the message named the option only."""
+    names = tmp_path / "inputs.txt"
+    names.write_text("# drives\nfuel_valve\nbypa, storage_tank\n")
+    code, _, err = run_cli(["check", str(ROOT / "networks" / "heating_loop.csv"),
+                            "--inputs", str(names)])
+    assert code == 2
+    assert err.startswith(f"netctl: error: {names}:3: --inputs: unknown state name 'bypa'")
+    code, _, err = run_cli(["check", str(ROOT / "networks" / "heating_loop.csv"),
+                            "--inputs", "fuel_valve,bypa"])  # typed: no file to name
+    assert code == 2 and err.startswith("netctl: error: --inputs: unknown state name 'bypa'")
