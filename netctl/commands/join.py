@@ -79,6 +79,7 @@ def _read_parts(path: str, name: str, args: argparse.Namespace) -> dict[str, Any
 
 
 def _cmd_join(args: argparse.Namespace) -> int:
+    from netctl.errors import NetctlError
     from netctl.io import read_state_list
     from netctl.structural.interconnect import interconnection
 
@@ -94,10 +95,13 @@ def _cmd_join(args: argparse.Namespace) -> int:
                                  "NAME=PATH, e.g. plant_a=a.csv.")
             systems[sub] = system
             ties.extend(sub_ties)
+    tie_lines: dict[str, int] = {}
     if args.ties:
-        from netctl.io.ties import read_ties
+        from netctl.io.ties import read_tie_lines
 
-        ties.extend(read_ties(args.ties))
+        for tie, line in read_tie_lines(args.ties):
+            ties.append(tie)
+            tie_lines.setdefault(f"tie {tie.label()}:", line)
     if not ties and len(systems) > 1:
         raise UsageError("join needs ties between the subsystems: --ties FILE (CSV "
                          "from_system,from_state,to_system,to_state[,kind]) or a TOML system description "
@@ -105,7 +109,13 @@ def _cmd_join(args: argparse.Namespace) -> int:
     inputs = read_state_list(args.inputs) if args.inputs is not None else None
     if inputs is not None and not inputs:
         raise UsageError("--inputs names no state; give 'sub.state,...' or a file.")
-    r = interconnection(systems, ties, inputs=inputs, separator=args.separator)
+    try:
+        r = interconnection(systems, ties, inputs=inputs, separator=args.separator)
+    except NetctlError as exc:  # a tie of the --ties file: name its file and line
+        at = next((k for lab, k in tie_lines.items() if str(exc).startswith(lab)), None)
+        if at is None:
+            raise
+        raise type(exc)(f"{args.ties}:{at}: {exc}") from None
     d = r.to_dict()
     s = r.composite.system
     if s.n_disturbances:  # emit() prints them apart, as every verb does

@@ -14,7 +14,7 @@ from netctl.io._cells import csv_records
 from netctl.io._common import file_error, read_text, unprotect_name
 from netctl.records import TIE_KINDS, Tie
 
-__all__ = ["TIES_HEADER", "read_ties"]
+__all__ = ["TIES_HEADER", "read_ties", "read_tie_lines"]
 
 #: The columns a ties file starts with.
 TIES_HEADER = ("from_system", "from_state", "to_system", "to_state")
@@ -22,8 +22,14 @@ TIES_HEADER = ("from_system", "from_state", "to_system", "to_state")
 
 def read_ties(path: str) -> list[Tie]:
     """Ties from a CSV file (see the module docstring); errors name the file and line."""
+    return [t for t, _ in read_tie_lines(path)]
+
+
+def read_tie_lines(path: str) -> list[tuple[Tie, int]]:
+    """(tie, line) of every tie of a CSV file (see :func:`read_ties`), so that a caller
+    checking the ties against subsystems can name the line of a bad one."""
     text = read_text(path)
-    ties: list[Tie] = []
+    ties: list[tuple[Tie, int]] = []
     header_seen = False
     for lineno, raw, fields in csv_records(text, path, seps=","):
         line = raw.strip()
@@ -48,8 +54,8 @@ def read_ties(path: str) -> list[Tie]:
             raise file_error(path, lineno, f"kind {fields[4]!r} is not one of "
                              f"{', '.join(TIE_KINDS)}; 'state' links two states, 'signal' "
                              "feeds an output into an input.")
-        ties.append(Tie(fields[0], unprotect_name(fields[1]), fields[2],
-                        unprotect_name(fields[3]), kind))
+        ties.append((Tie(fields[0], unprotect_name(fields[1]), fields[2],
+                         unprotect_name(fields[3]), kind), lineno))
     if not header_seen:
         raise file_error(path, None, f"the file is empty; expected the header "
                          f"'{','.join(TIES_HEADER)}[,kind]' and one tie a line.")

@@ -72,3 +72,18 @@ def test_unknown_name_in_a_name_list_file_names_file_and_line(tmp_path):
     code, _, err = run_cli(["check", str(ROOT / "networks" / "heating_loop.csv"),
                             "--inputs", "fuel_valve,bypa"])  # typed: no file to name
     assert code == 2 and err.startswith("netctl: error: --inputs: unknown state name 'bypa'")
+
+
+def test_bad_tie_names_the_ties_file_and_line(tmp_path):
+    """A tie naming no subsystem or no state: the message named the tie but not the
+    file and line it came from."""
+    (tmp_path / "plant.csv").write_text("source,target\na,b\nb,c\n")
+    (tmp_path / "ctrl.csv").write_text("source,target\np,q\n")
+    ties = tmp_path / "ties.csv"
+    for bad, what in [("pl]ant,c,ctrl,p", "no subsystem named 'pl]ant'"),
+                      ("plant,zz,ctrl,p", "unknown state name 'zz'")]:
+        ties.write_text(f"from_system,from_state,to_system,to_state\nplant,c,ctrl,p\n{bad}\n")
+        code, _, err = run_cli(["join", str(tmp_path / "plant.csv"),
+                                str(tmp_path / "ctrl.csv"), "--ties", str(ties)])
+        assert code == 2 and err.startswith(f"netctl: error: {ties}:3: tie "), err
+        assert what in err and err.count("\n") == 1
