@@ -376,6 +376,11 @@ def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs",
 
     names = read_state_list(value)
     if not names:
+        from pathlib import Path
+
+        if Path(value).is_file():
+            raise UsageError(f"{value}: {what}: the file names no state; list one state "
+                             "name a line (or several separated by commas).")
         raise UsageError(f"{what} names no state; give comma-separated state names or a "
                          "file with one name a line.")
     if system.model == "second-order" or "part" in system.nodes:

@@ -108,7 +108,8 @@ def _cmd_join(args: argparse.Namespace) -> int:
                          "with [[ties]].")
     inputs = read_state_list(args.inputs) if args.inputs is not None else None
     if inputs is not None and not inputs:
-        raise UsageError("--inputs names no state; give 'sub.state,...' or a file.")
+        where = f"{args.inputs}: " if Path(args.inputs).is_file() else ""
+        raise UsageError(f"{where}--inputs names no state; give 'sub.state,...' or a file.")
     try:
         r = interconnection(systems, ties, inputs=inputs, separator=args.separator)
     except NetctlError as exc:  # a tie of the --ties file: name its file and line

@@ -87,3 +87,19 @@ def test_bad_tie_names_the_ties_file_and_line(tmp_path):
                                 str(tmp_path / "ctrl.csv"), "--ties", str(ties)])
         assert code == 2 and err.startswith(f"netctl: error: {ties}:3: tie "), err
         assert what in err and err.count("\n") == 1
+
+
+def test_name_list_file_with_no_name_is_named(tmp_path):
+    """--inputs FILE whose lines are all comments: the message did not name the file."""
+    names = tmp_path / "inputs.txt"
+    names.write_text("# drives, none yet\n\n")
+    code, _, err = run_cli(["check", str(ROOT / "networks" / "heating_loop.csv"),
+                            "--inputs", str(names)])
+    assert code == 2 and err.startswith(f"netctl: error: {names}: --inputs: the file names "
+                                        "no state"), err
+    (tmp_path / "p.csv").write_text("source,target\na,b\n")
+    (tmp_path / "q.csv").write_text("source,target\nc,d\n")
+    (tmp_path / "t.csv").write_text("from_system,from_state,to_system,to_state\np,b,q,c\n")
+    code, _, err = run_cli(["join", str(tmp_path / "p.csv"), str(tmp_path / "q.csv"),
+                            "--ties", str(tmp_path / "t.csv"), "--inputs", str(names)])
+    assert code == 2 and err.startswith(f"netctl: error: {names}: --inputs names no state")
