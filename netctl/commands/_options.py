@@ -386,13 +386,38 @@ def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs",
     if system.model == "second-order" or "part" in system.nodes:
         names = _node_names(system, names, what, whole_bus)
     try:
-        return system.index_of(names)
+        idx = system.index_of(names)
     except NetctlError as exc:
         where = _name_line(system, value, what, whole_bus)
         if isinstance(exc, UnknownNameError) and system.elements is not None:
             raise UnknownNameError(f"{where}{what}: {exc} Grid states are bus numbers (or "
                                    "'BUS:pos' / 'BUS:vel' in the swing model).") from None
         raise type(exc)(f"{where}{what}: {exc}") from None
+    if len(set(idx.tolist())) != len(idx):
+        _refuse_repeat(system, value, what, idx)
+    return idx
+
+
+def _refuse_repeat(system: StructuredSystem, value: str, what: str, idx: np.ndarray) -> None:
+    """A state named twice in a name list: refused naming it (and the file's lines)."""
+    from pathlib import Path
+
+    from netctl.io._cells import name_lines
+    from netctl.io._common import read_text
+
+    pos = idx.tolist()
+    k = next(k for k in range(1, len(pos)) if pos[k] in pos[:k])
+    first = pos.index(pos[k])
+    state = system.state_names[pos[k]]
+    where, also = "", ""
+    if Path(value).is_file():
+        lines = [line for _, line in name_lines(read_text(value), value)]
+        if len(lines) == len(pos):  # one state a name (not a bus named for two states)
+            where, also = f"{value}:{lines[k]}: ", f" (first on line {lines[first]})"
+        else:
+            where = f"{value}: "
+    raise UsageError(f"{where}{what}: the state {state!r} is named twice{also}; name each "
+                     "state once.")
 
 
 def _name_line(system: StructuredSystem, value: str, what: str, whole_bus: bool) -> str:

@@ -103,3 +103,18 @@ def test_name_list_file_with_no_name_is_named(tmp_path):
     code, _, err = run_cli(["join", str(tmp_path / "p.csv"), str(tmp_path / "q.csv"),
                             "--ties", str(tmp_path / "t.csv"), "--inputs", str(names)])
     assert code == 2 and err.startswith(f"netctl: error: {names}: --inputs names no state")
+
+
+def test_state_named_twice_in_a_name_list(tmp_path):
+    """The header line twice in an --inputs file: the message spoke of an input
+    'u:fuel_valve' used twice, naming neither the file nor the line."""
+    names = tmp_path / "inputs.txt"
+    names.write_text("fuel_valve\nbypass_valve\nfuel_valve\n")
+    net = str(ROOT / "networks" / "heating_loop.csv")
+    code, _, err = run_cli(["check", net, "--inputs", str(names)])
+    assert code == 2
+    assert err == (f"netctl: error: {names}:3: --inputs: the state 'fuel_valve' is named "
+                   "twice (first on line 1); name each state once.\n")
+    code, _, err = run_cli(["check", net, "--inputs", "fuel_valve,fuel_valve"])
+    assert code == 2 and err == ("netctl: error: --inputs: the state 'fuel_valve' is named "
+                                 "twice; name each state once.\n")
