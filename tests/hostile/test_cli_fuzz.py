@@ -254,3 +254,68 @@ def test_every_reader_has_a_seed():
     assert {k.split("-")[0] if k != "matrix-csv" else k for k in SUFFIX} == set(FORMATS)
     assert set(MUTATIONS) >= {"truncate", "badbyte", "header2", "swap", "empty", "bom",
                               "crlf", "longline", "nanweight"}
+
+
+# ---------------------------------------------------------------------- side readers
+#: The readers of the files a verb takes beside the network: (seed file name, its good
+#: content, the command, with {F} for the damaged file and {D} for the folder).
+SIDE = {
+    "sites": ("sites.csv", b"state,cost\nboiler_temp,2.5\nsupply_header,1\npipe_north,3\n"
+              b"fuel_valve,0.5\nstorage_tank,1\nbypass_valve,1\npipe_south,2\n",
+              ["place", "{D}/heating_loop.csv", "--sites", "{F}", "--json"]),
+    "candidates": ("cands.csv", b"name,cost,states\nv1,2,boiler_temp supply_header\n"
+                   b"v2,1.5,pipe_north;pipe_south\nv3,1,fuel_valve\nv4,1,bypass_valve\n"
+                   b"v5,1,storage_tank\nv6,4,outdoor_temp\n",
+                   ["place", "{D}/heating_loop.csv", "--candidates", "{F}", "--json"]),
+    "links": ("links.csv", b"source,target\nstorage_tank,pipe_north\nboiler_temp,pipe_south\n",
+              ["whatif", "{D}/heating_loop.toml", "--add-links", "{F}", "--json"]),
+    "names": ("inputs.txt", b"# drives\nfuel_valve\nbypass_valve, storage_tank\n",
+              ["check", "{D}/heating_loop.csv", "--inputs", "{F}", "--json"]),
+    "ties": ("ties.csv", b"from_system,from_state,to_system,to_state,kind\nplant,c,ctrl,p,state\n",
+             ["join", "{D}/plant.csv", "{D}/ctrl.csv", "--ties", "{F}", "--inputs", "plant.a",
+              "--json"]),
+    "stations": ("st.toml", (NETWORKS / "stations" / "heating_loop_stations.toml").read_bytes(),
+                 ["stations", "{D}/heating_loop.toml", "--stations", "{F}", "--json"]),
+}
+
+
+def _side_case(which: str, kind: str, rng: random.Random, folder: Path) -> None:
+    name, seed, argv = SIDE[which]
+    for f in ("heating_loop.csv", "heating_loop.toml"):
+        shutil.copy(NETWORKS / f, folder / f)
+    (folder / "plant.csv").write_text("source,target\na,b\nb,c\n")
+    (folder / "ctrl.csv").write_text("source,target\np,q\np,r\n")
+    path = folder / name
+    path.write_bytes(mutate(seed, kind, rng))
+    code, out, err = run_cli([a.replace("{D}", str(folder)).replace("{F}", str(path))
+                              for a in argv])
+    assert "Traceback" not in err, err[-2000:]
+    if code in (0, 1):  # the verb ran: 1 is "the property does not hold"
+        json.loads(out, parse_constant=_no_constants)
+        return
+    assert code == 2, f"exit {code}: {err[-600:]!r}"
+    lines = [x for x in err.splitlines() if x.startswith("netctl: error:")]
+    assert len(lines) == 1 and err.endswith("\n"), err[-600:]
+    assert name in lines[0], f"{which} ({kind}): the message does not name {name}: {lines[0]}"
+
+
+@pytest.mark.parametrize("which", sorted(SIDE))
+def test_damaged_side_files_through_the_cli(which, tmp_path_factory):
+    folder = tmp_path_factory.mktemp(f"cli-side-{which}")
+
+    @settings(max_examples=30, deadline=None, derandomize=True,
+              suppress_health_check=list(HealthCheck))
+    @given(kind=st.sampled_from(MUTATIONS), r=st.integers(0, 2**32 - 1))
+    def run(kind: str, r: int) -> None:
+        _side_case(which, kind, random.Random(r), folder)
+
+    run()
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("which", sorted(SIDE))
+def test_damaged_side_files_through_the_cli_volume(which, tmp_path):
+    """A thousand damaged side files a reader, reproducible (random start fixed)."""
+    rng = random.Random(f"netctl-cli-side-{which}")
+    for _ in range(1000):
+        _side_case(which, rng.choice(MUTATIONS), random.Random(rng.getrandbits(32)), tmp_path)
