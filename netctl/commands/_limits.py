@@ -9,7 +9,8 @@ __all__ = ["refuse_dense"]
 
 
 def refuse_dense(system: StructuredSystem, *, what: str, file: str) -> None:
-    """Refuse, before any numeric work, a system too large for a dense method.
+    """Refuse, before any numeric work, a system too large for a dense method (or whose
+    weights are too large for its arithmetic, :func:`netctl.numeric.rank.weight_overflow`).
 
     One line: the size and the limit, why (one dense ``n x n`` matrix of doubles is
     ``8 n^2`` bytes and the method costs O(n^3)), and what to run instead.
@@ -20,10 +21,14 @@ def refuse_dense(system: StructuredSystem, *, what: str, file: str) -> None:
        2013: dense Schur decomposition and Lyapunov solvers cost O(n^3) operations on
        n x n arrays (from memory).
     """
-    from netctl.numeric.rank import DENSE_LIMIT
+    from netctl.errors import InvalidSystemError
+    from netctl.numeric.rank import DENSE_LIMIT, weight_overflow
 
     n = system.n_states
     if n <= DENSE_LIMIT:
+        too_large = weight_overflow(system)
+        if too_large:
+            raise InvalidSystemError(f"{file}: {too_large}")
         return
     grid = system.elements is not None
     per_bus = 2 if system.model.startswith("second-order") else 1

@@ -36,7 +36,7 @@ import numpy as np
 import scipy.linalg as la
 import scipy.sparse as sp
 
-from netctl.errors import OptionError
+from netctl.errors import InvalidSystemError, OptionError
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
@@ -44,6 +44,9 @@ __all__ = ["RankTest", "LostMode", "staircase", "pbh", "staircase_dimension", "D
 
 DENSE_LIMIT = 5000
 _EPS = float(np.finfo(float).eps)
+#: Largest weight magnitude a dense numeric analysis takes: norms, Gramians and products
+#: square the weights, and a double overflows past about 1.8e308 (IEEE 754).
+MAX_WEIGHT = 1e150
 
 
 @dataclass(frozen=True)
@@ -148,7 +151,23 @@ def _dense(system: StructuredSystem, limit: int = DENSE_LIMIT) -> tuple[np.ndarr
             f"a dense test on {n} states would need {8 * n * n / 1e9:.1f} GB and O(n^3) "
             f"time; the limit is {limit} states. Use method 'certificate' (sparse) for "
             "large networks.")
+    too_large = weight_overflow(system)
+    if too_large:
+        raise InvalidSystemError(too_large)
     return system.A.toarray(), system.B.toarray()
+
+
+def weight_overflow(system: StructuredSystem) -> str | None:
+    """Why the weights of ``system`` are too large for a dense numeric analysis (a weight
+    beyond :data:`MAX_WEIGHT`), or ``None``."""
+    for M in (system.A, system.B):
+        big = float(np.max(np.abs(M.data))) if M.nnz else 0.0
+        if big > MAX_WEIGHT:
+            return (f"a weight of magnitude {big:.3g} is beyond what the numeric analyses "
+                    f"can square (about {MAX_WEIGHT:.0e}; a double overflows past 1.8e308), "
+                    "so their results would be infinite or NaN. Rescale the weights (other "
+                    "units), or use the structural analyses, which do not depend on them.")
+    return None
 
 
 def _default_tol(A: np.ndarray, B: np.ndarray) -> float:

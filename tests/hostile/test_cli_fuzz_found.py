@@ -118,3 +118,40 @@ def test_state_named_twice_in_a_name_list(tmp_path):
     code, _, err = run_cli(["check", net, "--inputs", "fuel_valve,fuel_valve"])
     assert code == 2 and err == ("netctl: error: --inputs: the state 'fuel_valve' is named "
                                  "twice; name each state once.\n")
+
+
+def _huge_weights(tmp_path):
+    """A small weighted chain whose weights reach 1e305 (a damaged binary file gave
+    such numbers): finite, read, but beyond squaring."""
+    import numpy as np
+
+    A = np.zeros((4, 4))
+    A[1, 0], A[2, 1], A[3, 2], A[0, 3] = 1.5, -3e305, 2e-322, 7e200
+    A[2, 2] = -1e250
+    p = tmp_path / "huge.npy"
+    np.save(p, A)
+    return p
+
+
+def test_numeric_verbs_refuse_weights_too_large_to_square(tmp_path):
+    """report crashed with a traceback (OverflowError in the modal analysis); modes and
+    energy refuse before any work, naming the file."""
+    p = _huge_weights(tmp_path)
+    for verb in ("modes", "energy"):
+        code, _, err = run_cli([verb, str(p), "--json"])
+        assert code == 2 and err.startswith(f"netctl: error: {p}: a weight of magnitude "
+                                            "3e+305 is beyond"), err
+    code, _, err = run_cli(["report", str(p), "--out", str(tmp_path / "r.html")])
+    assert "Traceback" not in err and code in (0, 1), err
+    assert "a weight of magnitude 3e+305 is beyond" in (tmp_path / "r.html").read_text()
+
+
+def test_modal_analysis_refuses_huge_weights(tmp_path):
+    import pytest
+
+    from netctl.errors import InvalidSystemError
+    from netctl.numeric.modal import modal_controllability
+
+    s = nio.read(_huge_weights(tmp_path)).with_inputs([0])
+    with pytest.raises(InvalidSystemError, match="magnitude 3e\\+305"):
+        modal_controllability(s)
