@@ -56,6 +56,8 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
     w = None
     if weights is not None:
         try:
+            if any(isinstance(x, (bool, np.bool_)) for x in weights):
+                raise TypeError("a boolean is no weight")  # float(True) would be 1.0
             w = np.array([1.0 if x is None else float(x) for x in weights], dtype=np.float64)
         except (TypeError, ValueError):
             bad = next(x for x in weights if not _is_number(x))
@@ -87,6 +89,8 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
 
 
 def _is_number(x: Any) -> bool:
+    if isinstance(x, (bool, np.bool_)):
+        return False
     try:
         float(x)
         return True

@@ -155,3 +155,14 @@ def test_modal_analysis_refuses_huge_weights(tmp_path):
     s = nio.read(_huge_weights(tmp_path)).with_inputs([0])
     with pytest.raises(InvalidSystemError, match="magnitude 3e\\+305"):
         modal_controllability(s)
+
+
+def test_boolean_edge_weight_is_refused(tmp_path):
+    """"weight": true in node-link JSON was read as the weight 1.0, silently."""
+    p = tmp_path / "b.json"
+    p.write_text('{"directed": true, "nodes": [{"id": "a"}, {"id": "b"}], "links": '
+                 '[{"source": "a", "target": "b", "weight": true}]}')
+    code, _, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 2
+    assert err == (f"netctl: error: {p}: the edge weight True is not a number; give "
+                   "numeric weights (or none).\n")
