@@ -94,6 +94,10 @@ def _name_list(doc: _Doc, value: Any, where: str, key: str) -> list[str]:
     if isinstance(value, str):
         return [value]
     if isinstance(value, list) and all(isinstance(v, str) for v in value):
+        if len(set(value)) != len(value):  # each column entry once (a repeat summed to 2)
+            dup = next(x for k, x in enumerate(value) if x in value[:k])
+            raise doc.error(f"{where} lists the state {dup!r} twice; list each state once.",
+                            key)
         return list(value)
     raise doc.error(f"{where} must be a state name or a list of state names such as "
                     f"[\"a\", \"b\"], found {value!r}.", key)

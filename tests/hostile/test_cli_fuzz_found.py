@@ -166,3 +166,15 @@ def test_boolean_edge_weight_is_refused(tmp_path):
     assert code == 2
     assert err == (f"netctl: error: {p}: the edge weight True is not a number; give "
                    "numeric weights (or none).\n")
+
+
+def test_toml_input_listing_a_state_twice_is_refused(tmp_path):
+    """An input acting on ["a", "a"] was read with the entry B = 2 (the repeat summed),
+    silently; the line is named now."""
+    p = tmp_path / "s.toml"
+    p.write_text('[states]\na = {}\nb = {}\n[couplings]\nlinks = [["a", "b"]]\n'
+                 '[inputs]\nu = ["a", "a"]\n')
+    code, _, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 2
+    assert err == (f"netctl: error: {p}:7: input 'u' lists the state 'a' twice; list each "
+                   "state once.\n")
