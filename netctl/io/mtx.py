@@ -118,6 +118,15 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
                          f"Each entry line must be 'row col{' value' if want == 3 else ''}' "
                          "(1-based indices), nothing more.")
     A = sp.csr_array(M) if sp.issparse(M) else sp.csr_array(np.asarray(M))
+    n_dup = 0
+    if sp.issparse(M):  # an entry given twice is summed (scipy): said, as edge lists do
+        A.sum_duplicates()
+        n_dup = int(M.nnz) - int(A.nnz)
+    if n_dup:
+        import warnings
+        warnings.warn(f"{path}: {n_dup} entr{'y' if n_dup == 1 else 'ies'} given twice "
+                      f"{'was' if n_dup == 1 else 'were'} merged"
+                      + (" (values summed)." if field != "pattern" else "."), stacklevel=2)
     if field == "pattern":
         A = sp.csr_array((np.ones(A.nnz), A.indices, A.indptr), shape=A.shape)
     if A.nnz and not np.all(np.isfinite(A.data)):

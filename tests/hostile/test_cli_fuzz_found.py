@@ -178,3 +178,18 @@ def test_toml_input_listing_a_state_twice_is_refused(tmp_path):
     assert code == 2
     assert err == (f"netctl: error: {p}:7: input 'u' lists the state 'a' twice; list each "
                    "state once.\n")
+
+
+def test_matrix_market_entry_given_twice_is_said(tmp_path):
+    """An entry line repeated (as the damaged files had it): the values were summed
+    silently; edge lists warn about the same merge."""
+    p = tmp_path / "d.mtx"
+    p.write_text("%%MatrixMarket matrix coordinate real general\n2 2 2\n1 1 1.0\n1 1 2.0\n")
+    code, out, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 0
+    assert f"{p}: 1 entry given twice was merged (values summed)." in err, err
+    import pytest
+
+    with pytest.warns(UserWarning, match="given twice"):
+        A = nio.read(p).A
+    assert A.toarray().tolist() == [[3.0, 0.0], [0.0, 0.0]]  # summed, as scipy reads it
