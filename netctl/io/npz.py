@@ -101,6 +101,13 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     A = sp.csr_array(M, dtype=np.float64)
     if A.nnz and not np.all(np.isfinite(A.data)):
         raise file_error(path, None, "some values are NaN or infinite; give finite weights.")
+    stored = int(M.nnz)  # coo counts a repeat, even where csr_array already summed it
+    A.sum_duplicates()  # an entry stored twice is summed (scipy): said, as edge lists do
+    if A.nnz < stored:
+        import warnings
+        k = stored - A.nnz
+        warnings.warn(f"{path}: {k} entr{'y' if k == 1 else 'ies'} stored twice "
+                      f"{'was' if k == 1 else 'were'} merged (values summed).", stacklevel=2)
     zero = int(np.count_nonzero(A.data == 0))
     if zero:
         import warnings

@@ -1,9 +1,11 @@
-"""Regression tests for the bugs the command-line fuzzing (test_cli_fuzz.py) found, one a
-bug; each failed on the code before its fix."""
+"""Regression tests for the bugs the command-line fuzzing (test_cli_fuzz.py) and the hand
+probes after it found, one a bug; each failed on the code before its fix."""
 
 from __future__ import annotations
 
 from pathlib import Path
+
+import pytest
 
 import netctl.io as nio
 from tests.hostile.test_cli_fuzz import run_cli
@@ -147,8 +149,6 @@ def test_numeric_verbs_refuse_weights_too_large_to_square(tmp_path):
 
 
 def test_modal_analysis_refuses_huge_weights(tmp_path):
-    import pytest
-
     from netctl.errors import InvalidSystemError
     from netctl.numeric.modal import modal_controllability
 
@@ -188,8 +188,21 @@ def test_matrix_market_entry_given_twice_is_said(tmp_path):
     code, out, err = run_cli(["inspect", str(p), "--json"])
     assert code == 0
     assert f"{p}: 1 entry given twice was merged (values summed)." in err, err
-    import pytest
-
     with pytest.warns(UserWarning, match="given twice"):
         A = nio.read(p).A
     assert A.toarray().tolist() == [[3.0, 0.0], [0.0, 0.0]]  # summed, as scipy reads it
+
+
+@pytest.mark.parametrize("fmt", ["csr", "coo"])
+def test_npz_entry_stored_twice_is_said(tmp_path, fmt):
+    """A sparse .npz storing one entry twice: summed silently before."""
+    import numpy as np
+
+    p = tmp_path / "d.npz"
+    parts = (dict(indices=np.array([1, 1]), indptr=np.array([0, 2, 2])) if fmt == "csr"
+             else dict(row=np.array([0, 0]), col=np.array([1, 1])))
+    np.savez(p, format=np.array(fmt.encode()), shape=np.array([2, 2]),
+             data=np.array([1.0, 2.0]), state_names=np.array(["a", "b"]),
+             weighted=np.array(True), **parts)
+    code, out, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 0 and f"{p}: 1 entry stored twice was merged (values summed)." in err
