@@ -15,7 +15,7 @@ from collections.abc import Callable, Iterable, Sequence
 from netctl.io._common import file_error, unprotect_name
 from netctl.system import StructuredSystem
 
-__all__ = ["MARKS", "header_marks", "apply_marks", "repeated_header"]
+__all__ = ["MARKS", "header_marks", "apply_marks", "quoted_names", "repeated_header"]
 
 #: Comment lines at the top of an edge list that mark signals (``# disturbances: a, b``).
 MARKS: tuple[str, ...] = ("disturbances", "regulated")
@@ -106,3 +106,15 @@ def repeated_header(lines: Iterable[bytes], path: object,
 def _variants(word: str, names: Sequence[str]) -> list[str]:
     """The spellings of ``word`` (lower, Title, UPPER) that are names (a C-level scan)."""
     return [x for x in {word, word.title(), word.upper()} if x in names]
+
+
+def quoted_names(names: Sequence[str], path: object) -> None:
+    """Warn when every name is wrapped in double quotes (a spreadsheet's "quote all"
+    export): an edge list takes quotes as part of a name (a name may hold them), so the
+    states are named ``"a"``, not ``a``."""
+    if not names or not all(len(x) > 1 and x[0] == '"' == x[-1] for x in names[:1000]):
+        return
+    if all(len(x) > 1 and x[0] == '"' == x[-1] for x in names):
+        warnings.warn(f"{path}: every name is wrapped in double quotes (e.g. {names[0]}); "
+                      "an edge list keeps quotes as part of the names. If the file was "
+                      "saved with every field quoted, save it without quotes.", stacklevel=4)

@@ -43,7 +43,7 @@ from netctl.io._common import (
     max_bytes,
     note_input,
 )
-from netctl.io._edgemarks import apply_marks, header_marks, repeated_header
+from netctl.io._edgemarks import apply_marks, header_marks, quoted_names, repeated_header
 from netctl.io._edgenames import _INT, cat_arrays, factorize_ints, int_order, unquote_names
 from netctl.io._edgesmall import SMALL_BYTES, read_small
 from netctl.io.edgelist_writer import write_edgelist
@@ -127,7 +127,9 @@ def _line_text(chunk: bytes, start: int, end: int) -> str:
 
 
 def _is_header(f: list[str]) -> bool:
-    """Whether the first content line's fields are a header row, not a link."""
+    """Whether the first content line's fields are a header row, not a link (its words
+    may be in double quotes, as a spreadsheet quoting every field writes them)."""
+    f = [x[1:-1] if len(x) > 1 and x[0] == '"' == x[-1] else x for x in f]
     return (len(f) >= 2 and all(x.lower() in _HEADER_WORDS for x in f[:2])
             and f[0].lower() != f[1].lower()  # 'u,u,...' is a self-loop
             and (len(f) < 3 or _NUMBER.match(f[2]) is None))  # 'u,v,0.5' a link
@@ -571,6 +573,7 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
         marks = header_marks(fh)
     with _open(path) as fh:
         repeated_header(fh, path, _fields, _is_header, system.state_names)
+    quoted_names(system.state_names, path)
     if marks:
         system = apply_marks(system, marks, path)
     return system

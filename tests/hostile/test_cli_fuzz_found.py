@@ -3,6 +3,7 @@ probes after it found, one a bug; each failed on the code before its fix."""
 
 from __future__ import annotations
 
+import json
 from pathlib import Path
 
 import pytest
@@ -206,3 +207,18 @@ def test_npz_entry_stored_twice_is_said(tmp_path, fmt):
              weighted=np.array(True), **parts)
     code, out, err = run_cli(["inspect", str(p), "--json"])
     assert code == 0 and f"{p}: 1 entry stored twice was merged (values summed)." in err
+
+
+def test_edge_list_with_every_name_quoted_is_said(tmp_path):
+    """A spreadsheet's "quote every field" export: its quoted header row was read as a
+    link between two states '"source"' and '"target"', and the states were named '"a"'
+    and so on, silently. The header is a header now; the names keep their quotes (an edge
+    list's names may hold them), and that is said."""
+    p = tmp_path / "q.csv"
+    p.write_text('"source","target"\n"a","b"\n"b","c"\n')
+    code, out, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 0 and f'{p}: every name is wrapped in double quotes (e.g. "a")' in err
+    assert json.loads(out)["n_states"] == 3 and json.loads(out)["n_links"] == 2
+    p.write_text('source,target\n"quoted",b\n')  # one such name: a name, quiet
+    code, out, err = run_cli(["inspect", str(p), "--json"])
+    assert code == 0 and "warning" not in err
