@@ -71,8 +71,8 @@ def apply_marks(system: StructuredSystem, marks: dict[str, list[tuple[str, int]]
         return mark_disturbances(system, [x for x, _ in dist], path, dist[0][1])
 
 
-#: Networks with more states are not checked for a repeated header row (about 20 ms a
-#: million names a spelling; common practice, no source).
+#: Networks with more states are not checked for a repeated header row (the check scans
+#: the names, about 10 ms a million; common practice, no source).
 _CHECKED_NAMES = 2_000_000
 
 
@@ -92,7 +92,7 @@ def repeated_header(lines: Iterable[bytes], path: object,
         low = [x.lower() for x in f]
         if header is None:
             if (not is_header(f) or len(names) > _CHECKED_NAMES
-                    or not _variants(low[0], names) or not _variants(low[1], names)):
+                    or not _variants(f[0], names) or not _variants(f[1], names)):
                 return
             header = low
             continue
@@ -104,8 +104,9 @@ def repeated_header(lines: Iterable[bytes], path: object,
 
 
 def _variants(word: str, names: Sequence[str]) -> list[str]:
-    """The spellings of ``word`` (lower, Title, UPPER) that are names (a C-level scan)."""
-    return [x for x in {word, word.title(), word.upper()} if x in names]
+    """The spellings of a header word (as written, in lower case, Title case) that are
+    names (a C-level scan of the names for each)."""
+    return [x for x in dict.fromkeys((word, word.lower(), word.title())) if x in names]
 
 
 def quoted_names(names: Sequence[str], path: object) -> None:
