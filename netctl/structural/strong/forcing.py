@@ -215,10 +215,11 @@ def _closure_kernel(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black, w
 
 @njit(cache=True, nogil=True)
 def _greedy_kernel(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black, w, forcer,
-                   n_states):  # pragma: no cover - compiled
-    """Greedy forcing: whenever forcing stalls, blacken one white vertex next to an
-    eligible vertex with the fewest white neighbours (ties: lowest index), so that it
-    comes closest to forcing; if none exists, the lowest-index white state."""
+                   n_states, allowed):  # pragma: no cover - compiled
+    """Greedy forcing: whenever forcing stalls, blacken one ``allowed`` white vertex next
+    to a vertex allowed to force with the fewest white neighbours (ties: lowest index),
+    so that it comes closest to forcing; if none exists, the lowest-index allowed white
+    state. Stops early (states left white) when no allowed white state remains."""
     N = black.size
     queue = np.empty(3 * N + 1, np.int64)
     tail = 0
@@ -255,16 +256,18 @@ def _greedy_kernel(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black, w,
             if w[j] != k or k < 2 or not (white_ok[j] or black[j]):
                 continue
             for p in range(out_ptr[j], out_ptr[j + 1]):
-                if not black[out_idx[p]]:
+                if not black[out_idx[p]] and allowed[out_idx[p]]:
                     t = out_idx[p]
                     break
-            if t < 0 and closed[j] and not black[j]:
+            if t < 0 and closed[j] and not black[j] and allowed[j]:
                 t = j
             if t >= 0:
                 break
         if t < 0:
-            while black[scan]:
+            while scan < n_states and (black[scan] or not allowed[scan]):
                 scan += 1
+            if scan >= n_states:
+                break  # no allowed white state left: the caller reports the rest
             t = scan
         chosen[n_chosen] = t
         n_chosen += 1
@@ -394,14 +397,18 @@ def _closure(g: _Graph, rule: _Rule, black0: np.ndarray) -> tuple[np.ndarray, np
     return black, forcer
 
 
-def _greedy(g: _Graph, rule: _Rule, black0: np.ndarray) -> np.ndarray:
+def _greedy(g: _Graph, rule: _Rule, black0: np.ndarray,
+            allowed: np.ndarray | None = None) -> np.ndarray:
+    """Greedy forcing set added to ``black0``, its members drawn from ``allowed`` (every
+    state when None)."""
     black = black0.copy()
     if black.size == 0:
         return np.zeros(0, np.int64)
+    ok = np.ones(g.n, np.bool_) if allowed is None else np.asarray(allowed, np.bool_)
     w = _white_counts(g, rule, black)
     forcer = np.full(black.size, -1, np.int64)
     return _greedy_kernel(g.out_ptr, g.out_idx, g.in_ptr, g.in_idx, rule.closed,
-                          rule.white_ok, black, w, forcer, g.n)
+                          rule.white_ok, black, w, forcer, g.n, ok)
 
 
 def _prepare(system: StructuredSystem, diagonal: object) -> str:

@@ -67,6 +67,13 @@ class StrongInputDesign(ResultTables):
         Where the bound comes from.
     gap : int
         ``n_inputs - lower_bound`` (0 when optimal).
+    sites : str
+        Which states the search drew drivers from ("" when every state was allowed).
+    n_eligible : int
+        How many states that is (-1 when every state was allowed).
+    feasible : bool
+        False when no set of allowed states forces every state; then ``drivers`` is
+        empty and ``unreachable`` lists the states every allowed set leaves unforced.
     """
 
     _frame_rows = "states"
@@ -84,6 +91,10 @@ class StrongInputDesign(ResultTables):
     seconds: float
     state_names: Sequence[str] = field(repr=False)
     model: str = "given"
+    sites: str = ""
+    n_eligible: int = -1
+    feasible: bool = True
+    unreachable: np.ndarray = field(default_factory=lambda: np.zeros(0, np.int64), repr=False)
 
     @property
     def gap(self) -> int:
@@ -117,6 +128,10 @@ class StrongInputDesign(ResultTables):
             "lower_bound_source": self.lower_bound_source,
             "gap": self.gap,
             "iterations": self.iterations,
+            **({} if not self.sites else {
+                "sites": {"rule": self.sites, "n_eligible": self.n_eligible,
+                          "feasible": self.feasible,
+                          "unreachable": self.names(self.unreachable)}}),
         }
 
 
@@ -133,9 +148,12 @@ def _all_forced(g: _Graph, rules: list[_Rule], S: np.ndarray) -> list[np.ndarray
     return forts
 
 
-def _greedy_set(g: _Graph, rules: list[_Rule], prune: bool) -> np.ndarray:
+def _greedy_set(g: _Graph, rules: list[_Rule], prune: bool,
+                allowed: np.ndarray | None = None) -> np.ndarray:
     """Greedy set forcing under every rule: rules in each order, keep the smaller, then
-    (when ``prune``) drop members whose removal keeps every rule forcing."""
+    (when ``prune``) drop members whose removal keeps every rule forcing. Members come
+    from ``allowed`` (every state when None; the caller has checked that the allowed
+    states together force everything)."""
     n = g.n
     best: np.ndarray | None = None
     orders = [rules] if len(rules) == 1 else [rules, rules[::-1]]
@@ -144,7 +162,7 @@ def _greedy_set(g: _Graph, rules: list[_Rule], prune: bool) -> np.ndarray:
         b0[n:] = True
         chosen: list[np.ndarray] = []
         for rule in order:
-            add = _greedy(g, rule, b0)
+            add = _greedy(g, rule, b0, allowed)
             b0[add] = True
             chosen.append(add)
         S = np.concatenate(chosen)
@@ -204,15 +222,19 @@ class _OutOfTime(Exception):
 
 
 def _exact(g: _Graph, rules: list[_Rule], upper: np.ndarray, lower: int,
-           time_limit: float, t0: float) -> tuple[np.ndarray, int, bool, int]:
+           time_limit: float, t0: float, allowed: np.ndarray | None = None
+           ) -> tuple[np.ndarray, int, bool, int]:
     """Branch and bound over forts, then (if time ran out) an integer-program bound.
 
     Every forcing set meets every fort, so at a node with partial set ``S`` a minimal
     fort ``F`` disjoint from ``S`` is found and the search branches on its members, the
     i-th branch excluding the members before it (no set is visited twice). Nodes are
     pruned by ``|S|`` plus a packing of pairwise disjoint forts from the pool that ``S``
-    misses. Returns (best set, proven lower bound, optimal, nodes explored)."""
+    misses. States outside ``allowed`` are forbidden from the start (never branched on,
+    removed from the forts of the bounds). Returns (best set, proven lower bound,
+    optimal, nodes explored)."""
     n, N = g.n, g.n + g.m
+    forb0 = np.zeros(n, bool) if allowed is None else ~np.asarray(allowed, bool)
     closed2 = np.ascontiguousarray(np.stack([r.closed for r in rules]))
     ok2 = np.ascontiguousarray(np.stack([r.white_ok for r in rules]))
     state: dict[str, Any] = {"best": np.sort(upper).astype(np.int64),
@@ -265,16 +287,15 @@ def _exact(g: _Graph, rules: list[_Rule], upper: np.ndarray, lower: int,
             fb[v] = True
 
     try:
-        rec(np.zeros(n, bool), 0, np.zeros(n, bool))
+        rec(np.zeros(n, bool), 0, forb0.copy())
     except _OutOfTime:
         pass
     else:
         best = state["best"]
         return best, int(best.size), True, state["nodes"]
     best = state["best"]
-    lb = max(lower, _packing(state["pool"], state["order"], np.zeros(n, bool),
-                             np.zeros(n, bool), n))
-    lb = max(lb, _fort_cover_bound(state["pool"][:state["n_pool"]],
+    lb = max(lower, _packing(state["pool"], state["order"], np.zeros(n, bool), forb0, n))
+    lb = max(lb, _fort_cover_bound(state["pool"][:state["n_pool"]] & ~forb0,
                                    max(0.05, time_limit - (time.perf_counter() - t0))))
     return best, lb, best.size <= lb, state["nodes"]
 
@@ -299,8 +320,53 @@ def _fort_cover_bound(pool: np.ndarray, seconds: float) -> int:
     return 0
 
 
+def _site_tiers(system: StructuredSystem, sites: Any) -> list[tuple[str, np.ndarray | None]]:
+    """The sets of states the search may draw drivers from, most preferred first.
+
+    ``sites="node table"``: the shared actuator-site preference
+    (:func:`netctl.structural._engine.site_preference`): the ``actuator`` column where it
+    names a site (states marked false are never used); in a second-order model the
+    velocity (frequency) states with an actuator site, then any velocity state, never a
+    position (angle) state. ``"any"``: every state. A boolean array: exactly those.
+    """
+    n = system.n_states
+    if isinstance(sites, str):
+        if sites == "any":
+            return [("", None)]
+        if sites != "node table":
+            raise OptionError(f"sites must be 'node table', 'any' or a boolean array over "
+                              f"the states, found {sites!r}.")
+        from netctl.structural._engine import site_preference
+
+        pref = site_preference(system.nodes, system.model, actuators=True)
+        if pref is None:
+            return [("", None)]
+        if pref.dtype == bool:
+            return [("states with an actuator site (node table column 'actuator')", pref)]
+        tiers = []
+        if (pref >= 3).any():
+            tiers.append(("velocity (frequency) states with an actuator site", pref >= 3))
+        tiers.append(("velocity (frequency) states; never a position (angle) state",
+                      pref >= 1))
+        return tiers
+    mask = np.asarray(sites)
+    if mask.dtype != bool or mask.shape != (n,):
+        raise OptionError(f"sites must be a boolean array of shape ({n},), found dtype "
+                          f"{mask.dtype} and shape {mask.shape}; or 'node table' / 'any'.")
+    return [("the states given", mask)]
+
+
+def _unforceable(g: _Graph, rules: list[_Rule], allowed: np.ndarray) -> np.ndarray:
+    """States some rule leaves white even when every allowed state is black."""
+    left = np.zeros(g.n, bool)
+    for F in _all_forced(g, rules, np.flatnonzero(allowed)):
+        left[F] = True
+    return np.flatnonzero(left).astype(np.int64)
+
+
 def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given",
-                          method: str = "auto", time_limit: float = 60.0) -> StrongInputDesign:
+                          method: str = "auto", time_limit: float = 60.0,
+                          sites: Any = "node table") -> StrongInputDesign:
     r"""Fewest dedicated inputs that make ``system`` strongly structurally controllable.
 
     Existing inputs of ``system`` are ignored (as in :func:`netctl.minimum_inputs`);
@@ -318,6 +384,13 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
         :data:`EXACT_AUTO_LIMIT` states, greedy beyond.
     time_limit : float, default 60
         Seconds for the exact method (the greedy one always finishes).
+    sites : "node table", "any" or boolean array, default "node table"
+        Which states may get an input. ``"node table"``: the node table's ``actuator``
+        column (states marked false never), and in a second-order (swing) model only
+        velocity (frequency) states -- those with an actuator site first, any velocity
+        state when they cannot force everything -- never a position (angle), as
+        ``drivers`` and ``place`` do. When no allowed set forces every state the design
+        says so (``feasible`` False, ``unreachable``) instead of using another state.
 
     Returns
     -------
@@ -393,12 +466,29 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
     run = method
     if method == "auto":
         run = "exact" if n <= EXACT_AUTO_LIMIT else "greedy"
+    tiers = _site_tiers(system, sites)
     lower, source = _lower_bound(system, g, rules, diagonal)
+    rule_text, allowed = tiers[0]
+    unreachable = np.zeros(0, np.int64)
+    for rule_text, allowed in tiers:
+        unreachable = (np.zeros(0, np.int64) if allowed is None or not n
+                       else _unforceable(g, rules, allowed))
+        if unreachable.size == 0:
+            break
+    n_ok = -1 if allowed is None else int(np.count_nonzero(allowed))
+    if unreachable.size:
+        return StrongInputDesign(n_states=n, n_inputs=0, drivers=np.zeros(0, np.int64),
+                                 diagonal=diagonal, method=run, optimal=False,
+                                 lower_bound=int(lower), lower_bound_source=source,
+                                 iterations=0, seconds=time.perf_counter() - t0,
+                                 state_names=system.state_names, model=system.model,
+                                 sites=rule_text, n_eligible=n_ok, feasible=False,
+                                 unreachable=unreachable)
     prune = n * max(1, g.out_idx.size) <= 5e6 or run == "exact"
-    S = _greedy_set(g, rules, prune) if n else np.zeros(0, np.int64)
+    S = _greedy_set(g, rules, prune, allowed) if n else np.zeros(0, np.int64)
     it = 0
     if run == "exact" and n and S.size > lower:
-        S, lb, _, it = _exact(g, rules, S, lower, float(time_limit), t0)
+        S, lb, _, it = _exact(g, rules, S, lower, float(time_limit), t0, allowed)
         if lb > lower:
             lower, source = lb, ("branch and bound over forts (complete search)"
                                  if lb == S.size else "fort packing / fort cover bound")
@@ -407,4 +497,5 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
                              method=run, optimal=S.size == lower, lower_bound=int(lower),
                              lower_bound_source=source, iterations=it,
                              seconds=time.perf_counter() - t0,
-                             state_names=system.state_names, model=system.model)
+                             state_names=system.state_names, model=system.model,
+                             sites=rule_text, n_eligible=n_ok)
