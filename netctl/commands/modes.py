@@ -101,6 +101,13 @@ def _cmd_modes(args: argparse.Namespace) -> int:
     lines.append(f"  driver set ({x.n_drivers}): {{{_short(said.words(x.names(x.drivers)))}}} -- "
                  + (f"certified: {x.certificate}{shared}" if x.verified else
                     x.certificate))
+    if x.sites:
+        lines.append(f"  drivers drawn from the actuator sites: {x.sites} ({x.n_eligible} "
+                     "state(s))" if x.feasible else
+                     f"  !! no driver set on the actuator sites ({x.sites}, {x.n_eligible} "
+                     f"state(s)): the mode at eigenvalue {_ev(x.unreachable_mode or 0j)} is "
+                     "not reached from any of them; mark more states as actuator sites in "
+                     "the node table")
     from netctl.numeric.verdict import judge
     from netctl.structural import controllability
 

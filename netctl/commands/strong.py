@@ -89,6 +89,21 @@ def _cmd_strong(args: argparse.Namespace) -> int:
     with warnings.catch_warnings():  # the search has already warned about the diagonal
         warnings.simplefilter("ignore")
         check = strong_controllability(design.apply(system), diagonal=args.diagonal)
+    if not design.feasible:
+        d = {"file": args.file, "mode": "minimum", **design.to_dict(),
+             "strongly_controllable": False, "unforced": design.names(design.unreachable),
+             "notes": notes, "caution": CAUTION}
+        lines = head + [
+            f"  !! no set of dedicated inputs on the actuator sites ({design.sites}, "
+            f"{design.n_eligible} state(s)) makes the network strongly structurally "
+            "controllable",
+            "  never forced even with an input on every site: "
+            + names_line(wording(system).words(design.names(design.unreachable))),
+            "  mark more states as actuator sites in the node table, or check a design of "
+            "your own with --inputs"]
+        lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
+        emit(args, d, wording(system).text("\n".join(lines)))
+        return 1
     d = {"file": args.file, "mode": "minimum", **design.to_dict(),
          "strongly_controllable": check.strongly_controllable,
          "unforced": check.unforced_names, "notes": notes, "caution": CAUTION}
@@ -100,6 +115,8 @@ def _cmd_strong(args: argparse.Namespace) -> int:
         f"  method: {design.method}; lower bound {design.lower_bound} from "
         f"{design.lower_bound_source}",
         f"  driven states ({design.n_inputs}): {names_line(wording(system).words(design.driver_names))}",
+        *([f"  drawn from the actuator sites: {design.sites} ({design.n_eligible} state(s))"]
+          if design.sites else []),
         "  (one set of possibly many)"]
     lines += [f"  note: {x}" for x in notes] + ["  " + CAUTION]
     emit(args, d, wording(system).text("\n".join(lines)))  # a grid: bus words

@@ -80,6 +80,14 @@ class ExactControllability(ResultTables):
         attained), or ``None`` when that could not be certified.
     multiplicities : tuple of Multiplicity
         Every eigenvalue cluster with algebraic multiplicity above one.
+    sites : str
+        Which states the drivers were drawn from ("" when every state was allowed).
+    n_eligible : int
+        How many states that is (-1 when every state was allowed).
+    feasible : bool
+        False when no dedicated inputs on those states control the system (then
+        ``drivers`` is empty, ``verified`` False and ``unreachable_mode`` an eigenvalue
+        whose left eigenvectors vanish on every allowed state).
     """
 
     _frame_rows = "states"
@@ -100,6 +108,10 @@ class ExactControllability(ResultTables):
     count_margin: float = np.inf
     arithmetic: str = "float"
     mixing: np.ndarray | None = field(default=None, repr=False)
+    sites: str = ""
+    n_eligible: int = -1
+    feasible: bool = True
+    unreachable_mode: complex | None = None
 
     @property
     def n_drivers(self) -> int:
@@ -138,6 +150,11 @@ class ExactControllability(ResultTables):
                  "algebraic": m.algebraic, "geometric": m.geometric,
                  "margin": _jf(m.margin)}
                 for m in self.multiplicities],
+            **({} if not self.sites else {"sites": {
+                "rule": self.sites, "n_eligible": self.n_eligible, "feasible": self.feasible,
+                "unreachable_mode": (None if self.unreachable_mode is None else
+                                     [round(self.unreachable_mode.real, 12),
+                                      round(self.unreachable_mode.imag, 12)])}}),
         }
 
 
@@ -200,7 +217,8 @@ def _modular_rank(Mint: Any, D: np.ndarray, R: np.ndarray | None = None) -> int:
 
 def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
                           arithmetic: str = "auto", seed: int = 0,
-                          progress: Progress | None = None) -> ExactControllability:
+                          progress: Progress | None = None,
+                          sites: Any = "node table") -> ExactControllability:
     r"""Minimum inputs and a driver set for the *given* weights (exact controllability).
 
     By the PBH test, ``(A, B)`` is controllable iff ``rank [A - lambda I, B] = n`` at
@@ -223,6 +241,14 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
     progress : callable(stage, done, total), optional
         Told of the eigenvalues, each cluster rank decision and each step of the PBH
         certification (:data:`netctl.numeric._tasks.Progress`).
+    sites : "node table", "any" or boolean array, default "node table"
+        Which states may be drivers (:func:`netctl.structural._engine.site_tiers`): the
+        node table's ``actuator`` column, and in a second-order (swing) model velocity
+        (frequency) states only, never positions (angles). When the drivers found
+        above include another state, they are chosen again on the allowed states (at
+        each eigenvalue the rows of ``A - lambda I`` off the allowed states are taken
+        first, the dependent allowed rows become drivers); when no allowed set
+        exists, ``feasible`` is False and ``unreachable_mode`` names the eigenvalue.
 
     Returns
     -------
@@ -325,6 +351,28 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
             if _modular_rank(rat[0], np.array(sorted(chosen), np.int64)) == n:
                 certificate, verified = ("exact (Krylov rank modulo a prime, "
                                          "integer-scaled A)"), True
+    from netctl.structural._engine import site_tiers
+
+    tiers = site_tiers(system.nodes, system.model, n, sites)
+    site_rule, allowed = tiers[0]
+    feasible, bad_mode = True, None
+    if allowed is not None and not all(bool(allowed[i]) for i in chosen):
+        for site_rule, allowed in tiers:
+            assert allowed is not None
+            got, bad_mode = _fill_on_sites(A, clusters, np.asarray(allowed, bool), t)
+            if got is not None:
+                chosen, bad_mode = got, None
+                break
+        feasible = bad_mode is None
+        certificate, verified = "", False
+        if not feasible:
+            chosen = set()
+            certificate = ("no driver set on the allowed sites: the mode at eigenvalue "
+                           f"{complex(bad_mode):.6g} is not reached from them")
+        elif rat is not None and n <= _MODULAR_CERT_LIMIT and \
+                _modular_rank(rat[0], np.array(sorted(chosen), np.int64)) == n:
+            certificate, verified = "exact (Krylov rank modulo a prime, integer-scaled A)", True
+    n_ok = -1 if allowed is None else int(np.count_nonzero(allowed))
     drivers = np.array(sorted(chosen), np.int64)
     announce(progress, "staircase check of the drivers", 0, 1)
     Bd = np.zeros((n, drivers.size))
@@ -335,7 +383,7 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
     announce(progress, "staircase check of the drivers", 1, 1)
     kept = dec.kept if np.isfinite(dec.kept) else ts
     margin = float(np.log10(kept / max(dec.dropped, ts))) if kept > 0 else -np.inf
-    if not verified:
+    if not verified and feasible:
         if dim == n and margin >= CERTAIN_DECADES:
             certificate, verified = f"staircase, margin {margin:.3g} decades", True
         elif dim == n:
@@ -359,7 +407,56 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         verified=verified, verification_margin=margin, multiplicities=mults,
         symmetric=symmetric, state_names=names, weights=weights, certificate=certificate,
         count_certain=bool(count_certain), count_margin=float(count_margin),
-        arithmetic="exact" if use_exact else "float", mixing=mixing)
+        arithmetic="exact" if use_exact else "float", mixing=mixing, sites=site_rule,
+        n_eligible=n_ok, feasible=feasible,
+        unreachable_mode=None if bad_mode is None else complex(bad_mode))
+
+
+def _fill_on_sites(A: np.ndarray, clusters: list[Cluster], allowed: np.ndarray,
+                   tol: float) -> tuple[set[int] | None, complex | None]:
+    """Drivers drawn from ``allowed`` only (floating point), or ``(None, eigenvalue)``
+    when some eigenvalue cannot be reached from them.
+
+    PBH with dedicated inputs on ``D``: at each eigenvalue the rows of ``A - mu I``
+    outside ``D`` must be independent. Simple eigenvalues: the allowed state where the
+    left eigenvector is largest, unless a driver already sees it. Repeated ones: the
+    rows are taken in order, states off the allowed set first, by a QR decomposition
+    without pivoting of their transpose; a row with a diagonal entry of ``R`` at or
+    below ``tol`` depends on the rows before it and becomes a driver -- impossible when
+    it is not allowed.
+    """
+    n = A.shape[0]
+    lam, VL = la.eig(A, left=True, right=False)
+    chosen: set[int] = set()
+    for c in sorted(clusters, key=lambda c: (-c.geometric, c.eigenvalue.real,
+                                             c.eigenvalue.imag)):
+        if c.algebraic == 1:
+            i = int(c.indices[0]) if c.indices.size else int(np.argmin(np.abs(lam - c.eigenvalue)))
+            w = np.abs(VL[:, i]) / np.linalg.norm(VL[:, i])
+            if chosen and np.max(w[sorted(chosen)]) > 1e-8:
+                continue
+            on = np.where(allowed, w, 0.0)
+            if on.max() <= 1e-8:
+                return None, complex(c.eigenvalue)
+            chosen.add(int(np.argmax(on)))
+            continue
+        rest = [i for i in range(n) if i not in chosen]
+        rest.sort(key=lambda i: (bool(allowed[i]), i))
+        if not rest:
+            continue
+        M = (A - c.eigenvalue * np.eye(n))[rest]
+        r = la.qr(M.T, mode="r")[0]
+        diag = np.abs(np.diagonal(r))
+        dep = [rest[k] for k in range(len(rest)) if k >= diag.size or diag[k] <= tol]
+        if any(not allowed[i] for i in dep):
+            return None, complex(c.eigenvalue)
+        chosen.update(dep)
+    if not chosen:
+        on = np.flatnonzero(allowed)
+        if on.size == 0:
+            return None, complex(lam[0]) if lam.size else 0j
+        chosen.add(int(on[0]))
+    return chosen, None
 
 
 def _float_pbh_fill(A: np.ndarray, clusters: list[Cluster], chosen: set[int], tol: float,

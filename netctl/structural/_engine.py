@@ -15,6 +15,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 from netctl._jit import njit
+from netctl.errors import OptionError
 
 if TYPE_CHECKING:
     import scipy.sparse as sp
@@ -33,7 +34,7 @@ from netctl.graph.matching import (
 )
 
 __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
-           "unreached_sources", "accessible_states", "union_sorted", "site_preference"]
+           "unreached_sources", "accessible_states", "union_sorted", "site_preference", "site_tiers"]
 
 
 def site_preference(nodes: Mapping[str, np.ndarray], model: str, *, actuators: bool
@@ -57,6 +58,41 @@ def site_preference(nodes: Mapping[str, np.ndarray], model: str, *, actuators: b
         prefer = vel.astype(np.int8) + (2 * prefer.astype(np.int8) if prefer is not None
                                         else 0)
     return prefer
+
+
+def site_tiers(nodes: Mapping[str, np.ndarray], model: str, n: int,
+               sites: object = "node table") -> list[tuple[str, np.ndarray | None]]:
+    """Sets of states an actuator search may use, most preferred first, each with a
+    sentence naming it.
+
+    ``sites="node table"``: from :func:`site_preference`: ``[("", None)]`` when every
+    state may host one; the ``actuator`` column's sites (states marked false never); in
+    a second-order model the velocity (frequency) states with an actuator site, then
+    every velocity state, never a position (angle). ``"any"``: every state. A boolean
+    array of shape ``(n,)``: exactly those states.
+    """
+    if not isinstance(sites, str):
+        mask = np.asarray(sites)
+        if mask.dtype != bool or mask.shape != (n,):
+            raise OptionError(f"sites must be a boolean array of shape ({n},), found dtype "
+                              f"{mask.dtype} and shape {mask.shape}; or 'node table' / "
+                              "'any'.")
+        return [("the states given", mask)]
+    if sites == "any":
+        return [("", None)]
+    if sites != "node table":
+        raise OptionError(f"sites must be 'node table', 'any' or a boolean array over the "
+                          f"states, found {sites!r}.")
+    pref = site_preference(nodes, model, actuators=True)
+    if pref is None:
+        return [("", None)]
+    if pref.dtype == bool:
+        return [("states with an actuator site (node table column 'actuator')", pref)]
+    tiers: list[tuple[str, np.ndarray | None]] = []
+    if (pref >= 3).any():
+        tiers.append(("velocity (frequency) states with an actuator site", pref >= 3))
+    tiers.append(("velocity (frequency) states; never a position (angle) state", pref >= 1))
+    return tiers
 
 
 def stack_AB(A: sp.csr_array, B: sp.csr_array) -> tuple[np.ndarray, np.ndarray, int]:

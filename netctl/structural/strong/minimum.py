@@ -320,42 +320,6 @@ def _fort_cover_bound(pool: np.ndarray, seconds: float) -> int:
     return 0
 
 
-def _site_tiers(system: StructuredSystem, sites: Any) -> list[tuple[str, np.ndarray | None]]:
-    """The sets of states the search may draw drivers from, most preferred first.
-
-    ``sites="node table"``: the shared actuator-site preference
-    (:func:`netctl.structural._engine.site_preference`): the ``actuator`` column where it
-    names a site (states marked false are never used); in a second-order model the
-    velocity (frequency) states with an actuator site, then any velocity state, never a
-    position (angle) state. ``"any"``: every state. A boolean array: exactly those.
-    """
-    n = system.n_states
-    if isinstance(sites, str):
-        if sites == "any":
-            return [("", None)]
-        if sites != "node table":
-            raise OptionError(f"sites must be 'node table', 'any' or a boolean array over "
-                              f"the states, found {sites!r}.")
-        from netctl.structural._engine import site_preference
-
-        pref = site_preference(system.nodes, system.model, actuators=True)
-        if pref is None:
-            return [("", None)]
-        if pref.dtype == bool:
-            return [("states with an actuator site (node table column 'actuator')", pref)]
-        tiers = []
-        if (pref >= 3).any():
-            tiers.append(("velocity (frequency) states with an actuator site", pref >= 3))
-        tiers.append(("velocity (frequency) states; never a position (angle) state",
-                      pref >= 1))
-        return tiers
-    mask = np.asarray(sites)
-    if mask.dtype != bool or mask.shape != (n,):
-        raise OptionError(f"sites must be a boolean array of shape ({n},), found dtype "
-                          f"{mask.dtype} and shape {mask.shape}; or 'node table' / 'any'.")
-    return [("the states given", mask)]
-
-
 def _unforceable(g: _Graph, rules: list[_Rule], allowed: np.ndarray) -> np.ndarray:
     """States some rule leaves white even when every allowed state is black."""
     left = np.zeros(g.n, bool)
@@ -466,7 +430,9 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
     run = method
     if method == "auto":
         run = "exact" if n <= EXACT_AUTO_LIMIT else "greedy"
-    tiers = _site_tiers(system, sites)
+    from netctl.structural._engine import site_tiers
+
+    tiers = site_tiers(system.nodes, system.model, n, sites)
     lower, source = _lower_bound(system, g, rules, diagonal)
     rule_text, allowed = tiers[0]
     unreachable = np.zeros(0, np.int64)
