@@ -84,6 +84,11 @@ def site_tiers(nodes: Mapping[str, np.ndarray], model: str, n: int,
         raise OptionError(f"sites must be 'node table', 'any' or a boolean array over the "
                           f"states, found {sites!r}.")
     pref = site_preference(nodes, model, actuators=True)
+    col = nodes.get("actuator")
+    if pref is None and col is not None and col.dtype == bool and col.size == n:
+        # a column marking no state at all: nowhere, not everywhere
+        return [("states with an actuator site (node table column 'actuator': none)",
+                 np.zeros(n, bool))]
     if pref is None:
         return [("", None)]
     if pref.dtype == bool:
