@@ -63,13 +63,13 @@ def site_preference(nodes: Mapping[str, np.ndarray], model: str, *, actuators: b
 def site_tiers(nodes: Mapping[str, np.ndarray], model: str, n: int,
                sites: object = "node table") -> list[tuple[str, np.ndarray | None]]:
     """Sets of states an actuator search may use, most preferred first, each with a
-    sentence naming it.
+    sentence naming it (``[("", None)]``: every state).
 
-    ``sites="node table"``: from :func:`site_preference`: ``[("", None)]`` when every
-    state may host one; the ``actuator`` column's sites (states marked false never); in
-    a second-order model the velocity (frequency) states with an actuator site, then
-    every velocity state, never a position (angle). ``"any"``: every state. A boolean
-    array of shape ``(n,)``: exactly those states.
+    ``sites="node table"``: the states :func:`site_preference` ranks highest and the node
+    table allows: the ``actuator`` column's sites (a state marked false never; a column
+    marking none allows none), and in a second-order model only velocity (frequency)
+    states, never a position (angle). ``"any"``: every state. A boolean array of shape
+    ``(n,)``: exactly those states (a user's own site list overrides the node table).
     """
     if not isinstance(sites, str):
         mask = np.asarray(sites)
@@ -85,19 +85,19 @@ def site_tiers(nodes: Mapping[str, np.ndarray], model: str, n: int,
                           f"states, found {sites!r}.")
     pref = site_preference(nodes, model, actuators=True)
     col = nodes.get("actuator")
-    if pref is None and col is not None and col.dtype == bool and col.size == n:
-        # a column marking no state at all: nowhere, not everywhere
-        return [("states with an actuator site (node table column 'actuator': none)",
-                 np.zeros(n, bool))]
+    has_col = col is not None and col.dtype == bool and col.size == n
     if pref is None:
+        if has_col:  # a column marking no state at all: nowhere, not everywhere
+            return [("states with an actuator site (node table column 'actuator': none)",
+                     np.zeros(n, bool))]
         return [("", None)]
     if pref.dtype == bool:
         return [("states with an actuator site (node table column 'actuator')", pref)]
-    tiers: list[tuple[str, np.ndarray | None]] = []
-    if (pref >= 3).any():
-        tiers.append(("velocity (frequency) states with an actuator site", pref >= 3))
-    tiers.append(("velocity (frequency) states; never a position (angle) state", pref >= 1))
-    return tiers
+    # second-order: 3 = velocity with a site, 1 = other velocity, 0 = position
+    if has_col:
+        return [("frequency (velocity) states with an actuator site (node table column "
+                 "'actuator'); never an angle (position)", pref >= 3)]
+    return [("frequency (velocity) states; never an angle (position)", pref >= 1)]
 
 
 def stack_AB(A: sp.csr_array, B: sp.csr_array) -> tuple[np.ndarray, np.ndarray, int]:
