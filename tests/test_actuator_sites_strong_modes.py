@@ -239,3 +239,24 @@ def test_modes_avoids_states_marked_false_and_passes_pbh(k):
     assert mask[x.drivers].all(), (x.names(x.drivers), x0.names(x0.drivers))
     assert _pbh_controllable(A, x.drivers)
     assert x.n_drivers >= x.n_inputs
+
+
+def test_a_sites_file_overrides_the_node_table(tmp_path, capsys):
+    """--sites: the user's own list wins over the node table, for both verbs."""
+    s = resolve_model(read(ISLAND), None)
+    part = np.asarray(s.nodes["part"], dtype=object)
+    listed = [i for i in range(s.n_states) if part[i] == "vel" and not _sites(s)[i]]
+    f = tmp_path / "sites.csv"
+    f.write_text("state,cost\n" + "".join(f"{s.state_names[i]},1\n" for i in listed))
+    assert main(["strong", ISLAND, "--diagonal", "free", "--sites", str(f), "--json"]) in (0, 1)
+    d = json.loads(capsys.readouterr().out)
+    pos = {name: k for k, name in enumerate(s.state_names)}
+    A = s.A.toarray() != 0
+    adj = [np.flatnonzero(A[:, j]).tolist() for j in range(s.n_states)]
+    assert d["sites"]["feasible"] == _forces_all(adj, set(listed), s.n_states)
+    assert all(pos[n] in listed for n in d["drivers"])
+    if d["sites"]["feasible"]:
+        assert _forces_all(adj, {pos[n] for n in d["drivers"]}, s.n_states)
+    main(["modes", ISLAND, "--weights", "symmetric", "--sites", str(f), "--json"])
+    x = json.loads(capsys.readouterr().out)["exact_controllability"]
+    assert x["drivers"] and all(pos[n] in listed for n in x["drivers"]), x["drivers"]

@@ -11,6 +11,7 @@ from netctl.commands._options import (
     NUMERIC_INPUTS_DEFAULT,
     add_inputs,
     add_seed,
+    add_sites,
     add_weights,
     emit,
     numeric_progress,
@@ -28,6 +29,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     add_inputs(p, default=NUMERIC_INPUTS_DEFAULT)
     add_weights(p, default=None)
     add_seed(p, help="random seed of the sampled weights (default 0)")
+    add_sites(p)
     p.add_argument("--weakest", type=int, default=5, metavar="K",
                    help="modes listed, weakest first (default 5; --json lists all)")
     p.set_defaults(func=_cmd_modes)
@@ -61,7 +63,12 @@ def _cmd_modes(args: argparse.Namespace) -> int:
     real = realize(system, weights=weights, seed=args.seed)
     tick = numeric_progress(args, "modes", real.n_states, 8.0)
     r = modal_controllability(real, progress=tick)
-    x = exact_controllability(real, progress=tick)
+    sites: Any = "node table"
+    if args.sites:
+        from netctl.io.sites import read_sites
+
+        sites = read_sites(args.sites, real, kind="actuator").eligible  # overrides the table
+    x = exact_controllability(real, progress=tick, sites=sites)
     d = r.to_dict()
     d["file"] = args.file
     d["inputs_from"] = where

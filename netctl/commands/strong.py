@@ -16,6 +16,7 @@ from typing import Any
 from netctl.commands._options import (
     CAUTION,
     add_inputs,
+    add_sites,
     emit,
     load_system,
     names_line,
@@ -32,6 +33,7 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
 
     p = subparsers.add_parser(name, parents=[common], help=help)
     add_inputs(p, default="the inputs the file declares; if none, search for a smallest set")
+    add_sites(p)
     p.add_argument("--search", action="store_true",
                    help="search for a smallest set even when the file declares inputs")
     p.add_argument("--diagonal", choices=list(DIAGONALS), default="as-given",
@@ -84,8 +86,13 @@ def _cmd_strong(args: argparse.Namespace) -> int:
     if system.n_inputs:
         notes.append(f"the file's {system.n_inputs} input(s) are not used by the search "
                      "(--search); without --search they are checked")
+    sites: Any = "node table"
+    if args.sites:
+        from netctl.io.sites import read_sites
+
+        sites = read_sites(args.sites, system, kind="actuator").eligible  # overrides the table
     design = minimum_strong_inputs(system, diagonal=args.diagonal, method=args.method,
-                                   time_limit=args.time_limit)
+                                   time_limit=args.time_limit, sites=sites)
     with warnings.catch_warnings():  # the search has already warned about the diagonal
         warnings.simplefilter("ignore")
         check = strong_controllability(design.apply(system), diagonal=args.diagonal)
