@@ -368,7 +368,7 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         if not feasible:
             chosen = set()
             certificate = ("no driver set on the allowed sites: the mode at eigenvalue "
-                           f"{complex(bad_mode):.6g} is not reached from them")
+                           f"{complex(bad_mode or 0j):.6g} is not reached from them")
         elif rat is not None and n <= _MODULAR_CERT_LIMIT and \
                 _modular_rank(rat[0], np.array(sorted(chosen), np.int64)) == n:
             certificate, verified = "exact (Krylov rank modulo a prime, integer-scaled A)", True
