@@ -5,8 +5,9 @@ not hold; 2 bad usage or bad input (a message naming the file, the line and the 
 
 The verbs live in :mod:`netctl.commands` (one module each, listed in
 :data:`netctl.commands.VERBS`); their shared options and helpers in
-:mod:`netctl.commands._options`. Only the module of the verb being run is imported, so
-``netctl --help`` and a verb on a small file start fast. No analysis logic lives here.
+:mod:`netctl.commands._options`, ``_load`` (the system, name lists) and ``_emit`` (the
+output). Only the module of the verb being run is imported, so ``netctl --help`` and a
+verb on a small file start fast. No analysis logic lives here.
 """
 
 from __future__ import annotations
@@ -21,17 +22,10 @@ from typing import NoReturn
 
 from netctl._meta import __version__
 from netctl.commands import VERBS
-from netctl.commands._options import (  # re-exported: older callers import them from here
-    CAUTION,
-    UsageError,
-    common_parser,
-    disturbance_summary,
-    emit,
-    guard_files,
-    load_system,
-    parse_names,
-    terminal_safe,
-)
+# re-exported: older callers import them from here
+from netctl.commands._emit import emit, terminal_safe
+from netctl.commands._load import disturbance_summary, load_system, parse_names
+from netctl.commands._options import CAUTION, UsageError, common_parser, guard_files
 from netctl.errors import NetctlError
 
 __all__ = ["main", "build_parser", "load_system", "emit", "CAUTION", "parse_names",

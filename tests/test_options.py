@@ -13,7 +13,8 @@ import io
 import pytest
 
 from netctl.cli import build_parser
-from netctl.commands._options import names_line, progress_enabled
+from netctl.commands._emit import names_line
+from netctl.commands._options import progress_enabled
 from netctl.report.progress import Progress
 
 # --model: None = the file's own model (first-order for a plain network, second-order for

@@ -3,8 +3,9 @@
 To add a verb: write ``netctl/commands/NAME.py`` with
 ``register(subparsers, common, name, help)`` (add the parser and its options; use the
 shared options of :mod:`netctl.commands._options`; ``set_defaults(func=handler)``) and
-add one line to :data:`VERBS`. Keep the module's top level light (argparse and
-:mod:`netctl.commands._options` only): readers, analyses, matplotlib and Dask are
+add one line to :data:`VERBS`; the handler reads with :mod:`netctl.commands._load` and
+prints with :mod:`netctl.commands._emit`. Keep the module's top level light (argparse,
+``_options``, ``_load`` and ``_emit`` only): readers, analyses, matplotlib and Dask are
 imported inside the handler, so that ``netctl --help`` and every other verb start fast.
 Handlers raise :class:`netctl.errors.NetctlError` subclasses or
 :class:`~netctl.commands._options.UsageError` for bad input (exit status 2) and return 0

@@ -1,10 +1,13 @@
-"""Command-line options and helpers shared by every verb of ``netctl``.
+"""Command-line options shared by every verb of ``netctl``, and what they mean at run time.
 
-One place defines each option a verb may take (its name, meaning and default), and the
-helpers every handler uses: :func:`load_system`, :func:`parse_names`, :func:`emit`,
-:func:`names_line`, :data:`CAUTION`, :func:`terms` (the vocabulary of the text summaries)
-and :class:`UsageError`. Verb modules import from
-here, never from :mod:`netctl.cli` (which only builds the parser and dispatches).
+One place defines each option a verb may take (its name, meaning and default: ``add_*``
+and :func:`common_parser`), the vocabulary of the text summaries (:func:`terms`,
+:func:`caution`), the guard of the files the options name (:func:`guard_files`), how long
+steps are run and shown (``--quiet``, ``--executor``: :func:`sample_runner`,
+:func:`long_step`) and :class:`UsageError`. Reading the system and the name lists lives in
+:mod:`netctl.commands._load`, printing and writing the result in
+:mod:`netctl.commands._emit`. Verb modules import from these three, never from
+:mod:`netctl.cli` (which only builds the parser and dispatches).
 
 Everything at module level is light (argparse and the standard library): the readers,
 models and analyses are imported inside the functions, so that ``netctl --help`` and the
@@ -15,39 +18,30 @@ from __future__ import annotations
 
 import argparse
 import os
-import sys
-from collections.abc import Callable, Iterator, Sequence
+from collections.abc import Iterator, Sequence
 from contextlib import AbstractContextManager, contextmanager
 from dataclasses import dataclass
-from typing import IO, TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any
 
 from netctl._meta import CAUTION
 from netctl.errors import NetctlError
 
 if TYPE_CHECKING:
-    import numpy as np
-
     from netctl.system import StructuredSystem
 
 __all__ = [
-    "CAUTION", "NUMERIC_INPUTS_DEFAULT", "RESEARCH_CAUTION", "SHOWN", "TERMS", "Terms",
+    "CAUTION", "NUMERIC_INPUTS_DEFAULT", "RESEARCH_CAUTION", "TERMS", "Terms",
     "UsageError", "add_terms", "caution", "terms", "add_candidates", "add_common", "add_executor_options",
     "add_format",
     "add_inputs", "add_json", "add_model", "add_out", "add_outputs", "add_quiet", "add_reading",
     "add_samples", "add_seed", "add_sites", "add_weights", "common_parser",
-    "disturbance_summary", "emit",
-    "load_system", "names_line", "parse_names", "progress_enabled", "resolve_weights",
-    "sample_runner", "EXECUTOR_MIN_STATES", "long_step", "analysis_step",
+    "progress_enabled",
+    "sample_runner", "EXECUTOR_MIN_STATES", "long_step", "analysis_step", "read_step",
     "numeric_progress", "DENSE_FLOPS_PER_SECOND",
-    "safe_write", "system_with_inputs", "terminal_safe", "guard_files",
+    "guard_files",
     "INPUT_OPTIONS", "OUTPUT_OPTIONS",
 ]
 
-_GRID_CAUTION = ("results concern a linearized model of the grid, not operating decisions, "
-                 "which stay with the system operator's procedures and applicable codes")
-
-#: names listed in a text summary before "... (N more; --json lists all)"
-SHOWN = 30
 
 _NAMES_HELP = "'a,b,c' or a file, one name a line"
 
@@ -249,273 +243,6 @@ def add_executor_options(p: argparse.ArgumentParser) -> None:
                    help="Dask scheduler address, e.g. tcp://10.0.0.5:8786 (with --executor dask)")
 
 
-# ---------------------------------------------------------------------- helpers
-def load_system(args: argparse.Namespace) -> StructuredSystem:
-    """Read ``args.file`` and apply ``args.model``.
-
-    When the file declares disturbances, they are noted on ``args`` so that :func:`emit`
-    reports them separately in every verb's output (they are never states, never driven
-    and never sensed). How a matrix file (or an undirected edge list) was read is
-    recorded in ``args.file_convention``, which :func:`emit` prints and adds to the JSON.
-    """
-    from netctl.io import detect_format, file_convention, read
-    from netctl.models import resolve_model
-
-    orientation = getattr(args, "orientation", None)
-    undirected = bool(getattr(args, "undirected", False))
-    try:
-        size = os.path.getsize(args.file)
-    except (OSError, TypeError, ValueError):
-        size = 0
-    with long_step(args, f"reading {args.file}", size / READ_BYTES_PER_SECOND):
-        system = resolve_model(read(args.file, args.format, orientation=orientation,
-                                    undirected=undirected), args.model)
-    fmt = args.format or detect_format(args.file)
-    args.file_convention = file_convention(fmt, orientation=orientation,
-                                           undirected=undirected)
-    if fmt == "system":
-        from netctl.io import declared_terms
-
-        args._declared_terms = declared_terms(args.file)
-    # a plant or grid: a system description that does not declare itself a network
-    # study, disturbances, or swing-type (second-order) grid dynamics
-    args._plant = ((fmt == "system" and getattr(args, "_declared_terms", "") != "network")
-                   or system.n_disturbances > 0 or args.model == "second-order")
-    if system.n_disturbances:
-        args._disturbances = disturbance_summary(system)
-        if system.elements is not None:  # a grid: the states they act on, in bus words
-            from netctl.commands._words import wording
-
-            args._said = wording(system)
-    if system.elements is not None:
-        args._grid = {"buses": len(system.elements.node_names),
-                      "elements": system.elements.counts(), "model": system.model}
-        if system.model == "second-order":
-            args._grid["swing"] = swing_parameters(system)
-    return system
-
-
-def swing_parameters(system: StructuredSystem) -> dict[str, Any]:
-    """Where the swing model's inertia and damping came from: the number of buses with a
-    value from the case (optional generator columns) and the defaults used elsewhere."""
-    import numpy as np
-
-    from netctl.models import SWING_DEFAULTS
-
-    buses = len(system.elements.node_names) if system.elements is not None else 0
-    per = max(system.n_states // max(buses, 1), 1)
-    out: dict[str, Any] = {"defaults": dict(SWING_DEFAULTS),
-                           "units": {"inertia": "M = 2H, seconds (H on the case's MVA "
-                                                "base)", "damping": "D, per unit"}}
-    for key in ("inertia", "damping"):
-        col = system.nodes.get(key)
-        given = 0
-        if col is not None:
-            v = np.asarray(col, float)
-            ok = np.isfinite(v) & ((v > 0) if key == "inertia" else True)
-            given = int(np.count_nonzero(ok)) // per
-        out[f"{key}_from_case"] = given
-    out["buses"] = buses
-    return out
-
-
-def _grid_text(grid: dict[str, Any]) -> str:
-    """``  grid: 7 buses, 8 branches (7 lines, 1 transformer), 2 generators; ...``."""
-    from netctl.records import BRANCH_KINDS, kinds_text
-
-    kinds = grid["elements"]
-    nbr = sum(c for k, c in kinds.items() if k in BRANCH_KINDS)
-    parts = kinds_text({k: c for k, c in kinds.items() if k in BRANCH_KINDS})
-    ngen = kinds.get("generator", 0)
-    per = ("2 states a bus: angle (pos) and frequency (vel)"
-           if grid["model"] == "second-order" else "1 state a bus")
-    text = (f"  grid: {grid['buses']} buses, {nbr} branches ({parts}), {ngen} generating "
-            f"unit(s); model {grid['model']} ({per})")
-    sw = grid.get("swing")
-    if sw is not None:
-        d = sw["defaults"]
-        text += (f"\n  swing parameters: inertia M = 2H from the case at "
-                 f"{sw['inertia_from_case']} of {sw['buses']} buses, damping D at "
-                 f"{sw['damping_from_case']}; elsewhere the defaults M = {d['inertia']:g} s, "
-                 f"D = {d['damping']:g} per unit (generator columns inertia_s, damping_pu; "
-                 "README, grid section)")
-    return text
-
-
-def disturbance_summary(system: StructuredSystem) -> dict[str, Any]:
-    """JSON-ready description of a system's disturbances and regulated outputs."""
-    H = system.pattern("H")
-    return {"n_disturbances": system.n_disturbances,
-            "disturbances": {w: system.disturbed_by(j)
-                             for j, w in enumerate(system.disturbance_names)},
-            "regulated": {z: system.names_of(H.indices[H.indptr[r]:H.indptr[r + 1]])
-                          for r, z in enumerate(system.regulated_names)},
-            "note": "disturbances are exogenous (weather, feeds, utilities): not states, "
-                    "never driven or sensed, not counted in minimum inputs or sensors"}
-
-
-def _disturbance_text(info: dict[str, Any]) -> str:
-    parts = [f"{w} -> {', '.join(on[:4])}{', ...' if len(on) > 4 else ''}"
-             for w, on in list(info["disturbances"].items())[:SHOWN]]
-    more = info["n_disturbances"] - len(parts)
-    return (f"  disturbances ({info['n_disturbances']}; not states, never driven or sensed): "
-            + "; ".join(parts) + (f"; ... ({more} more; --json lists all)" if more > 0 else ""))
-
-
-def parse_names(system: StructuredSystem, value: str, *, what: str = "--inputs",
-                whole_bus: bool = False) -> np.ndarray:
-    """State indices from a comma-separated list or a file with one name a line.
-
-    In a second-order model a plain node (bus) name means the node: its velocity
-    (frequency) state for an input, its position (angle) state for a sensor, and both of
-    its states with ``whole_bus`` (a removal). In a grid, an input named on an angle
-    state and the removal of half a bus are refused.
-    """
-    from netctl.errors import NetctlError, UnknownNameError
-    from netctl.io import read_state_list
-
-    names = read_state_list(value)
-    if not names:
-        from pathlib import Path
-
-        if Path(value).is_file():
-            raise UsageError(f"{value}: {what}: the file names no state; list one state "
-                             "name a line (or several separated by commas).")
-        raise UsageError(f"{what} names no state; give comma-separated state names or a "
-                         "file with one name a line.")
-    if system.model == "second-order" or "part" in system.nodes:
-        names = _node_names(system, names, what, whole_bus)
-    try:
-        idx = system.index_of(names)
-    except NetctlError as exc:
-        where = _name_line(system, value, what, whole_bus)
-        if isinstance(exc, UnknownNameError) and system.elements is not None:
-            raise UnknownNameError(f"{where}{what}: {exc} Grid states are bus numbers (or "
-                                   "'BUS:pos' / 'BUS:vel' in the swing model).") from None
-        raise type(exc)(f"{where}{what}: {exc}") from None
-    if len(set(idx.tolist())) != len(idx):
-        _refuse_repeat(system, value, what, idx)
-    return idx
-
-
-def _refuse_repeat(system: StructuredSystem, value: str, what: str, idx: np.ndarray) -> None:
-    """A state named twice in a name list: refused naming it (and the file's lines)."""
-    from pathlib import Path
-
-    from netctl.io._cells import name_lines
-    from netctl.io._common import read_text
-
-    pos = idx.tolist()
-    k = next(k for k in range(1, len(pos)) if pos[k] in pos[:k])
-    first = pos.index(pos[k])
-    state = system.state_names[pos[k]]
-    where, also = "", ""
-    if Path(value).is_file():
-        lines = [line for _, line in name_lines(read_text(value), value)]
-        if len(lines) == len(pos):  # one state a name (not a bus named for two states)
-            where, also = f"{value}:{lines[k]}: ", f" (first on line {lines[first]})"
-        else:
-            where = f"{value}: "
-    raise UsageError(f"{where}{what}: the state {state!r} is named twice{also}; name each "
-                     "state once.")
-
-
-def _name_line(system: StructuredSystem, value: str, what: str, whole_bus: bool) -> str:
-    """``"FILE:LINE: "`` of the first name of a name-list file that is not a state (``""``
-    for a list typed on the command line)."""
-    from pathlib import Path
-
-    from netctl.errors import NetctlError
-    from netctl.io._cells import name_lines
-    from netctl.io._common import read_text
-
-    if not Path(value).is_file():
-        return ""
-    for name, line in name_lines(read_text(value), value):
-        try:
-            one = [name]
-            if system.model == "second-order" or "part" in system.nodes:
-                one = _node_names(system, one, what, whole_bus)
-            system.index_of(one)
-        except NetctlError:
-            return f"{value}:{line}: "
-    return f"{value}: "
-
-
-def _node_names(system: StructuredSystem, names: list[str], what: str, whole_bus: bool
-                ) -> list[str]:
-    """Plain node names of a second-order model, mapped to its states (see parse_names)."""
-    known = set(system.state_names)
-    grid = system.elements is not None
-    sensing = "output" in what or "sensor" in what
-    out: list[str] = []
-    for name in names:
-        if name in known:
-            base, _, part = name.rpartition(":")
-            if grid and whole_bus and part in ("pos", "vel"):
-                raise UsageError(f"{what}: {name!r} is half of bus {base!r}; a bus is removed "
-                                 f"with both of its states: give {base!r}.")
-            if grid and not sensing and not whole_bus and part == "pos":
-                raise UsageError(f"{what}: {name!r} is the angle of bus {base!r}; power enters "
-                                 "a bus's frequency (power balance), never its angle: give "
-                                 f"{base!r} or {base + ':vel'!r}.")
-            out.append(name)
-        elif f"{name}:vel" in known and f"{name}:pos" in known:
-            if whole_bus:
-                out += [f"{name}:pos", f"{name}:vel"]
-            else:
-                out.append(f"{name}:pos" if sensing else f"{name}:vel")
-        else:
-            out.append(name)
-    return out
-
-
-def emit(args: argparse.Namespace, result: dict[str, Any] | Callable[[], dict[str, Any]],
-         text: str) -> None:
-    """Print ``text`` (or the JSON with ``--json``) and write ``--out`` atomically.
-
-    ``result`` may be a callable returning the dictionary, so that the full JSON of a
-    very large result is only built when ``--json`` or ``--out`` asks for it.
-    """
-    want_out = bool(getattr(args, "out", None))
-    info = getattr(args, "_disturbances", None)
-    if info is not None and text:
-        head, _, rest = text.partition("\n")
-        said = getattr(args, "_said", None)
-        line = _disturbance_text(info)
-        text = (head + "\n" + (said.text(line) if said is not None else line)
-                + ("\n" + rest if rest else ""))
-    convention = getattr(args, "file_convention", None)
-    if convention:
-        text = text.rstrip("\n") + f"\n  ({convention})"
-    grid = getattr(args, "_grid", None)
-    if grid is not None and text:
-        head, _, rest = text.partition("\n")
-        text = head + "\n" + _grid_text(grid) + ("\n" + rest if rest else "")
-        text = text.rstrip("\n") + "\n  Grid: " + _GRID_CAUTION + "."
-    if args.json or want_out:
-        data = result() if callable(result) else result
-        if info is not None and isinstance(data, dict):
-            data = {**data, "disturbances": info}
-        if convention and isinstance(data, dict):
-            data = {**data, "file_convention": convention}
-        if grid is not None and isinstance(data, dict):
-            data = {**data, "grid": {**grid, "caution": _GRID_CAUTION}}
-        from netctl.commands._json import encode, tagged
-
-        # indented for a person at a terminal (or a small --out file), else compact
-        pretty = _isatty(sys.stdout) if args.json else True
-        payload = encode(tagged(data, getattr(args, "command", None)), pretty=pretty)
-        if want_out:
-            from netctl.io import atomic_write
-
-            with atomic_write(args.out) as fh:
-                fh.write(payload)
-    if want_out and str(args.out) == "-":
-        return  # "--out -": the JSON went to standard output, alone
-    sys.stdout.write(payload if args.json else terminal_safe(text.rstrip("\n")) + "\n")
-
-
 #: argument names (argparse ``dest``) whose values name files a verb reads ...
 INPUT_OPTIONS = ("file", "more", "ties", "inputs", "outputs", "sites", "candidates",
                  "targets", "add_links", "remove_links", "remove_nodes")
@@ -549,72 +276,6 @@ def guard_files(args: argparse.Namespace) -> Iterator[None]:
         yield
 
 
-def terminal_safe(text: str) -> str:
-    r"""``text`` with control, escape and bidirectional-override characters (and lone
-    surrogates) shown as Python escapes, so that a name in a file never drives the
-    terminal.
-
-    Examples
-    --------
-    >>> terminal_safe("pump\x1b[31m")
-    'pump\\x1b[31m'
-    """
-    return "".join(c if c.isprintable() or c == "\n" else ascii(c)[1:-1] for c in text)
-
-
-def _isatty(stream: Any) -> bool:
-    isatty = getattr(stream, "isatty", None)
-    try:
-        return bool(isatty and isatty())
-    except ValueError:  # a closed stream
-        return False
-
-
-def system_with_inputs(args: argparse.Namespace) -> tuple[StructuredSystem, str]:
-    """The system with ``--inputs`` (or the file's, or a minimum dedicated set) and a note
-    saying which."""
-    from netctl.structural import minimum_inputs
-
-    system = load_system(args)
-    if args.inputs is not None:
-        return system.with_inputs(system.names_of(parse_names(system, args.inputs))), "inputs: --inputs"
-    if system.n_inputs:
-        return system, "inputs: from the file"
-    design = minimum_inputs(system, dedicated=True)
-    return (design.apply(system),
-            f"inputs: none given, so a minimum dedicated set ({design.drivers.size}) "
-            "from the structural analysis")
-
-
-def resolve_weights(args: argparse.Namespace, system: StructuredSystem) -> str:
-    """``--weights``, or ``given`` for a weighted file; an option error otherwise."""
-    from netctl.errors import OptionError
-    from netctl.numeric.realize import PARAMETERIZATIONS
-
-    if args.weights is not None:
-        return str(args.weights)
-    if system.weighted:
-        return "given"
-    raise OptionError(f"{args.file} carries no weights; choose which numbers to use with "
-                      f"--weights ({', '.join(k for k in PARAMETERIZATIONS if k != 'given')}).")
-
-
-def names_line(names: Sequence[str], limit: int = SHOWN, total: int | None = None) -> str:
-    """At most ``limit`` names, then how many more (``total`` when only a prefix of the
-    names was built).
-
-    Examples
-    --------
-    >>> names_line(["a", "b", "c"], limit=2)
-    'a, b, ... (1 more; --json lists all)'
-    """
-    total = len(names) if total is None else total
-    shown = list(names[:limit])
-    if total <= limit:
-        return ", ".join(shown)
-    return ", ".join(shown) + f", ... ({total - limit} more; --json lists all)"
-
-
 def terms(args: argparse.Namespace) -> Terms:
     """The vocabulary of this run: ``--terms``, else the file's ``[system] terms``
     (recorded by :func:`load_system`), else ``engineering``."""
@@ -638,19 +299,6 @@ def progress_enabled(args: argparse.Namespace) -> bool | None:
     """``False`` with ``--quiet``; else ``None`` (progress shows when stderr is a
     terminal)."""
     return False if getattr(args, "quiet", False) else None
-
-
-@contextmanager
-def safe_write(path: str) -> Iterator[IO[str]]:
-    """:func:`netctl.io.atomic_write`, with write failures reported as usage errors."""
-    from netctl.io import atomic_write
-
-    try:
-        with atomic_write(path) as fh:
-            yield fh
-    except OSError as exc:
-        raise UsageError(f"cannot write {path}: {exc.strerror or exc}; check that the "
-                         "directory exists and is writable.") from None
 
 
 #: States from which numeric samples run on the executor (local processes by default):
@@ -729,3 +377,12 @@ def analysis_step(args: argparse.Namespace, system: StructuredSystem,
                   text: str) -> AbstractContextManager[None]:
     """:func:`long_step` for an analysis linear in the links of ``system``."""
     return long_step(args, text, system.n_links / LINKS_PER_SECOND)
+
+
+def read_step(args: argparse.Namespace, path: str) -> AbstractContextManager[None]:
+    """:func:`long_step` for reading the file ``path`` (by its size)."""
+    try:
+        size = os.path.getsize(path)
+    except (OSError, TypeError, ValueError):
+        size = 0
+    return long_step(args, f"reading {path}", size / READ_BYTES_PER_SECOND)

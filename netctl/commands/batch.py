@@ -18,6 +18,7 @@ from pathlib import Path
 from typing import Any
 
 
+from netctl.commands._load import parse_names
 from netctl.commands._options import (
     CAUTION,
     UsageError,
@@ -29,7 +30,6 @@ from netctl.commands._options import (
     add_out,
     add_outputs,
     add_quiet,
-    parse_names,
     progress_enabled,
 )
 from netctl.errors import NetctlError

@@ -6,18 +6,15 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._emit import SHOWN, emit, names_line
+from netctl.commands._load import load_system, parse_names
 from netctl.commands._options import (
-    SHOWN,
     UsageError,
     add_inputs,
     add_outputs,
     add_terms,
-    caution,
     analysis_step,
-    emit,
-    load_system,
-    names_line,
-    parse_names,
+    caution,
     terms,
 )
 

@@ -11,7 +11,8 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import emit, load_system
+from netctl.commands._emit import emit
+from netctl.commands._load import load_system
 
 __all__ = ["register"]
 

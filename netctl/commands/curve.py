@@ -6,6 +6,7 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._emit import emit
 from netctl.commands._options import (
     UsageError,
     add_json,
@@ -14,7 +15,6 @@ from netctl.commands._options import (
     add_seed,
     add_terms,
     caution,
-    emit,
     progress_enabled,
 )
 

@@ -5,8 +5,9 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import CAUTION, UsageError, add_inputs, emit, load_system, \
-    parse_names
+from netctl.commands._emit import emit
+from netctl.commands._load import load_system, parse_names
+from netctl.commands._options import CAUTION, UsageError, add_inputs
 from netctl.commands._words import wording
 
 __all__ = ["register"]

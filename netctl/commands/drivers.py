@@ -8,16 +8,9 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
-from netctl.commands._options import (
-    SHOWN,
-    analysis_step,
-    add_terms,
-    caution,
-    emit,
-    load_system,
-    names_line,
-    terms,
-)
+from netctl.commands._emit import SHOWN, emit, names_line
+from netctl.commands._load import load_system
+from netctl.commands._options import add_terms, analysis_step, caution, terms
 
 if TYPE_CHECKING:
     from netctl.system import StructuredSystem

@@ -6,6 +6,8 @@ import argparse
 from typing import Any
 
 from netctl.commands._limits import refuse_dense
+from netctl.commands._emit import emit
+from netctl.commands._load import resolve_weights, system_with_inputs
 from netctl.commands._options import (
     CAUTION,
     NUMERIC_INPUTS_DEFAULT,
@@ -13,11 +15,8 @@ from netctl.commands._options import (
     add_inputs,
     add_seed,
     add_weights,
-    emit,
     numeric_progress,
-    resolve_weights,
     sample_runner,
-    system_with_inputs,
 )
 from netctl.commands._words import wording
 

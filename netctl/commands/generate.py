@@ -10,7 +10,8 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import add_json, add_seed, emit
+from netctl.commands._emit import emit
+from netctl.commands._options import add_json, add_seed
 
 __all__ = ["register"]
 

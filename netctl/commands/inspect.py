@@ -5,14 +5,9 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import (
-    add_terms,
-    analysis_step,
-    caution,
-    emit,
-    load_system,
-    terms,
-)
+from netctl.commands._emit import emit
+from netctl.commands._load import load_system
+from netctl.commands._options import add_terms, analysis_step, caution, terms
 
 __all__ = ["register"]
 

@@ -19,13 +19,9 @@ import argparse
 from pathlib import Path
 from typing import Any
 
-from netctl.commands._options import (
-    CAUTION,
-    UsageError,
-    add_inputs,
-    disturbance_summary,
-    emit,
-)
+from netctl.commands._emit import emit
+from netctl.commands._load import disturbance_summary
+from netctl.commands._options import CAUTION, UsageError, add_inputs
 
 __all__ = ["register"]
 

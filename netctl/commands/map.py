@@ -7,14 +7,8 @@ import argparse
 import sys
 from typing import Any, cast
 
-from netctl.commands._options import (
-    UsageError,
-    add_inputs,
-    add_seed,
-    load_system,
-    parse_names,
-    progress_enabled,
-)
+from netctl.commands._load import load_system, parse_names
+from netctl.commands._options import UsageError, add_inputs, add_seed, progress_enabled
 
 __all__ = ["register"]
 
@@ -138,7 +132,7 @@ def _cmd_map(args: argparse.Namespace) -> int:
 
 def _grid_lines(args: argparse.Namespace, marks: Any) -> str:
     """For a grid: buses and branches, the critical branches by ID, the grid caution."""
-    from netctl.commands._options import _GRID_CAUTION, _grid_text
+    from netctl.commands._emit import _GRID_CAUTION, _grid_text
 
     grid = getattr(args, "_grid", None)
     if grid is None:

@@ -7,13 +7,13 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._emit import emit
+from netctl.commands._load import load_system
 from netctl.commands._options import (
     UsageError,
     add_seed,
     add_terms,
     caution,
-    emit,
-    load_system,
     progress_enabled,
     terms,
 )

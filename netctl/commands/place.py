@@ -11,16 +11,9 @@ import argparse
 import math
 from typing import Any
 
-from netctl.commands._options import (
-    CAUTION,
-    UsageError,
-    add_candidates,
-    add_sites,
-    emit,
-    load_system,
-    names_line,
-    parse_names,
-)
+from netctl.commands._emit import emit, names_line
+from netctl.commands._load import load_system, parse_names
+from netctl.commands._options import CAUTION, UsageError, add_candidates, add_sites
 from netctl.commands._words import Wording, wording
 
 __all__ = ["register"]

@@ -6,14 +6,8 @@ import argparse
 import sys
 from typing import Any
 
-from netctl.commands._options import (
-    UsageError,
-    add_inputs,
-    add_seed,
-    load_system,
-    parse_names,
-    progress_enabled,
-)
+from netctl.commands._load import load_system, parse_names
+from netctl.commands._options import UsageError, add_inputs, add_seed, progress_enabled
 from netctl.commands._words import wording
 
 __all__ = ["register"]
@@ -73,7 +67,7 @@ def _cmd_report(args: argparse.Namespace) -> int:
                          f"states); sections: {keys}\n  design: {verdict[1]}\n")
         grid = getattr(args, "_grid", None)
         if grid is not None:  # a grid: buses and branches, and its caution
-            from netctl.commands._options import _GRID_CAUTION, _grid_text
+            from netctl.commands._emit import _GRID_CAUTION, _grid_text
 
             sys.stdout.write(_grid_text(grid) + "\n  Grid: " + _GRID_CAUTION + ".\n")
     return 0 if verdict[0] else 1

@@ -8,15 +8,9 @@ from typing import Any
 
 import numpy as np
 
-from netctl.commands._options import (
-    add_terms,
-    analysis_step,
-    caution,
-    emit,
-    load_system,
-    safe_write,
-    terms,
-)
+from netctl.commands._emit import emit, safe_write
+from netctl.commands._load import load_system
+from netctl.commands._options import add_terms, analysis_step, caution, terms
 from netctl.commands._words import wording
 
 __all__ = ["register"]

@@ -17,17 +17,9 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import (
-    CAUTION,
-    UsageError,
-    add_inputs,
-    add_outputs,
-    add_sites,
-    emit,
-    load_system,
-    names_line,
-    parse_names,
-)
+from netctl.commands._emit import emit, names_line
+from netctl.commands._load import load_system, parse_names
+from netctl.commands._options import CAUTION, UsageError, add_inputs, add_outputs, add_sites
 from netctl.commands._words import wording
 
 __all__ = ["register"]

@@ -6,7 +6,9 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import CAUTION, UsageError, emit, load_system
+from netctl.commands._emit import emit
+from netctl.commands._load import load_system
+from netctl.commands._options import CAUTION, UsageError
 from netctl.commands._words import wording
 
 __all__ = ["register"]

@@ -13,15 +13,9 @@ import argparse
 import warnings
 from typing import Any
 
-from netctl.commands._options import (
-    CAUTION,
-    add_inputs,
-    add_sites,
-    emit,
-    load_system,
-    names_line,
-    parse_names,
-)
+from netctl.commands._emit import emit, names_line
+from netctl.commands._load import load_system, parse_names
+from netctl.commands._options import CAUTION, add_inputs, add_sites
 from netctl.commands._words import wording
 
 __all__ = ["register"]

@@ -12,17 +12,9 @@ import time
 from collections.abc import Callable
 from typing import TYPE_CHECKING, Any
 
-from netctl.commands._options import (
-    CAUTION,
-    UsageError,
-    add_inputs,
-    add_samples,
-    add_seed,
-    emit,
-    load_system,
-    parse_names,
-    safe_write,
-)
+from netctl.commands._emit import emit, safe_write
+from netctl.commands._load import load_system, parse_names
+from netctl.commands._options import CAUTION, UsageError, add_inputs, add_samples, add_seed
 from netctl.commands._words import wording
 
 if TYPE_CHECKING:

@@ -5,17 +5,17 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._emit import emit
+from netctl.commands._load import system_with_inputs
 from netctl.commands._options import (
     CAUTION,
     NUMERIC_INPUTS_DEFAULT,
-    add_inputs,
     add_executor_options,
+    add_inputs,
     add_samples,
     add_seed,
     add_weights,
-    emit,
     sample_runner,
-    system_with_inputs,
 )
 
 __all__ = ["register"]
