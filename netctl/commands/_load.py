@@ -30,10 +30,11 @@ __all__ = ["disturbance_summary", "load_system", "parse_names", "resolve_weights
 def load_system(args: argparse.Namespace) -> StructuredSystem:
     """Read ``args.file`` and apply ``args.model``.
 
-    When the file declares disturbances, they are noted on ``args`` so that :func:`emit`
-    reports them separately in every verb's output (they are never states, never driven
-    and never sensed). How a matrix file (or an undirected edge list) was read is
-    recorded in ``args.file_convention``, which :func:`emit` prints and adds to the JSON.
+    When the file declares disturbances, they are noted on ``args`` so that
+    :func:`~netctl.commands._emit.emit` reports them separately in every verb's output
+    (they are never states, never driven and never sensed). How a matrix file (or an
+    undirected edge list) was read is recorded in ``args.file_convention``, which
+    ``emit`` prints and adds to the JSON.
     """
     from netctl.io import detect_format, file_convention, read
     from netctl.models import resolve_model

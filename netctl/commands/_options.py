@@ -278,7 +278,7 @@ def guard_files(args: argparse.Namespace) -> Iterator[None]:
 
 def terms(args: argparse.Namespace) -> Terms:
     """The vocabulary of this run: ``--terms``, else the file's ``[system] terms``
-    (recorded by :func:`load_system`), else ``engineering``."""
+    (recorded by :func:`~netctl.commands._load.load_system`), else ``engineering``."""
     name = (getattr(args, "terms", None) or getattr(args, "_declared_terms", "")
             or "engineering")
     return TERMS[name]
