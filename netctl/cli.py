@@ -78,8 +78,29 @@ class Terminated(KeyboardInterrupt):
     """Raised by the SIGTERM handler so that cleanup runs as for Ctrl-C (exit 143)."""
 
 
+#: Signals received during this run. A library can catch the KeyboardInterrupt our handlers
+#: raise and raise something else (numba, interrupted while compiling, leaves "no compiled
+#: object yet"); the run must still end as interrupted, not as a bad file.
+_received: list[int] = []
+
+
 def _on_sigterm(signum: int, frame: object) -> None:
+    _received.append(signum)
     raise Terminated()
+
+
+def _on_sigint(signum: int, frame: object) -> None:
+    _received.append(signum)
+    raise KeyboardInterrupt()
+
+
+def _interruption() -> KeyboardInterrupt | None:
+    """The interruption a signal of this run stands for, or ``None``."""
+    import signal
+
+    if not _received:
+        return None
+    return Terminated() if signal.SIGTERM in _received else KeyboardInterrupt()
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -92,13 +113,20 @@ def main(argv: Sequence[str] | None = None) -> int:
     """
     import signal
 
-    previous = None
+    previous = previous_int = None
+    _received.clear()
     try:
         previous = signal.signal(signal.SIGTERM, _on_sigterm)
-    except ValueError:  # not the main thread: leave the handler alone
+        if signal.getsignal(signal.SIGINT) is signal.default_int_handler:
+            previous_int = signal.signal(signal.SIGINT, _on_sigint)
+    except ValueError:  # not the main thread: leave the handlers alone
         pass
     try:
-        return _main(argv)
+        code = _main(argv)
+        stop = _interruption() if code != 0 else None
+        if stop is not None:  # a library turned the interruption into an error
+            raise stop
+        return code
     except BrokenPipeError:
         try:
             devnull = os.open(os.devnull, os.O_WRONLY)
@@ -107,12 +135,22 @@ def main(argv: Sequence[str] | None = None) -> int:
             pass
         return 141
     except KeyboardInterrupt as exc:
-        term = isinstance(exc, Terminated)
-        print("netctl: terminated" if term else "netctl: interrupted", file=sys.stderr)
-        return 143 if term else 130
+        return _interrupted(isinstance(exc, Terminated))
+    except Exception:
+        stop = _interruption()
+        if stop is None:
+            raise
+        return _interrupted(isinstance(stop, Terminated))  # a library's error after a signal
     finally:
         if previous is not None:
             signal.signal(signal.SIGTERM, previous)
+        if previous_int is not None:
+            signal.signal(signal.SIGINT, previous_int)
+
+
+def _interrupted(term: bool) -> int:
+    print("netctl: terminated" if term else "netctl: interrupted", file=sys.stderr)
+    return 143 if term else 130
 
 
 def _main(argv: Sequence[str] | None) -> int:
@@ -130,6 +168,9 @@ def _main(argv: Sequence[str] | None) -> int:
             with guard_files(args):  # no output over an input; see _options.guard_files
                 code = func(args)
         except NetctlError as exc:  # UsageError is one (also when run as __main__)
+            stop = _interruption()
+            if stop is not None:  # the error is the interruption in disguise
+                raise stop from None
             _flush_warnings(caught)
             print(f"netctl: error: {terminal_safe(str(exc))}", file=sys.stderr)
             return 2
