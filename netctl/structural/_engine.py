@@ -34,7 +34,19 @@ from netctl.graph.matching import (
 )
 
 __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
-           "unreached_sources", "accessible_states", "union_sorted", "site_preference", "site_tiers"]
+           "unreached_sources", "accessible_states", "union_sorted", "site_preference",
+           "site_tiers", "sites_to_avoid"]
+
+
+def sites_to_avoid(nodes: Mapping[str, np.ndarray], *, actuators: bool) -> np.ndarray | None:
+    """``avoid`` of :func:`completion`: the states the node table's ``actuator``
+    (``sensor``) column marks false, or None when the column is absent, not boolean, or
+    false nowhere (then the matching, and every result, is as without it)."""
+    eligible = nodes.get("actuator" if actuators else "sensor")
+    if eligible is None or np.asarray(eligible).dtype != bool:
+        return None
+    barred = ~np.asarray(eligible, bool)
+    return barred if barred.any() else None
 
 
 def site_preference(nodes: Mapping[str, np.ndarray], model: str, *, actuators: bool
@@ -271,7 +283,8 @@ _THREAD_MIN_LINKS = 200_000
 
 def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
                prefer: np.ndarray | None = None,
-               start: tuple[np.ndarray, np.ndarray] | None = None) -> Completion:
+               start: tuple[np.ndarray, np.ndarray] | None = None,
+               avoid: np.ndarray | None = None) -> Completion:
     """Fewest dedicated inputs to add so that ``(A, [B, new])`` is structurally controllable.
 
     Count = ``m_u + beta - alpha`` (Commault & Dion 2013; Pequito, Kar & Aguiar 2016):
@@ -296,6 +309,25 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     ``start``: ``(row_match, col_match)``, a matching of ``[A B]`` already known to be
     maximum (e.g. the transpose of ``A``'s for ``A``'s transpose); it is copied and the
     matching search is skipped.
+
+    ``avoid`` (boolean per state, e.g. the node table's ``actuator`` column negated)
+    decides which states are left unmatched: a maximum matching of the links into the
+    avoided states alone is found first and then completed to a maximum matching of
+    ``[A B]``. Augmenting paths never unmatch a matched row (the augmenting-path
+    property, Lovász & Plummer 1986, from memory), so the result is a maximum matching
+    that leaves as few avoided states unmatched as any maximum matching can (the sets of
+    rows a matching covers form a transversal matroid, Edmonds & Fulkerson 1965, from
+    memory: a maximum matching covering the largest coverable set of avoided rows
+    exists). The count does not change. The later search for source components that can
+    hold an unmatched state (``alpha``) first lets an extra column take only states not
+    avoided, then any: a heuristic, not proven to keep the fewest avoided states.
+
+    References
+    ----------
+    .. [1] L. Lovász, M. D. Plummer, *Matching Theory*, North-Holland, 1986 (augmenting
+       paths; from memory).
+    .. [2] J. Edmonds, D. R. Fulkerson, "Transversals and matroid partition", J. Res.
+       NBS 69B:147-153, 1965 (from memory).
     """
     n = A.shape[0]
     # index arrays int64 as the system stores them (no copies); every work array of one
@@ -323,10 +355,12 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     elif ab_ind.size >= _THREAD_MIN_LINKS:
         with ThreadPoolExecutor(max_workers=1) as pool:
             job = pool.submit(unreached_sources, a_arrays, out, driven)
-            row_match, col_match = matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)
+            row_match, col_match = _avoiding_matching(ab_ptr, ab_ind, n_cols, transpose,
+                                                      dt, avoid)
             n_trivial, cptr, members = job.result()
     else:
-        row_match, col_match = matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)
+        row_match, col_match = _avoiding_matching(ab_ptr, ab_ind, n_cols, transpose, dt,
+                                                  avoid)
         n_trivial, cptr, members = unreached_sources(a_arrays, out, driven)
     del out
     matching_size = int(np.count_nonzero(row_match >= 0))
@@ -345,6 +379,15 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
         # row_match and col_match are ours (fresh from the matching): extend in place;
         # rows matched to an extra column are then marked unmatched again
         row_match[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
+        if avoid is not None and np.any(avoid):
+            # the row an extra column takes is left unmatched: first from the states
+            # not avoided only, then (never unmatching a row) from all
+            ok = ~np.asarray(avoid, bool)[members]
+            ok_ptr = np.zeros_like(cptr)
+            np.cumsum(np.add.reduceat(ok, cptr[:-1]) if members.size else
+                      np.zeros(n_comp, np.int64), out=ok_ptr[1:])
+            extend_matching(transpose, n_cols, row_match, col_match,
+                            (ok_ptr, members[ok]), x_match, inplace=True)
         extend_matching(transpose, n_cols, row_match, col_match, (cptr, members), x_match,
                         inplace=True)
         row_match[row_match >= n_cols] = -1
@@ -369,6 +412,24 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
                       n_unreached_sources=n_unreached,
                       n_sources_hit=n_unreached - int(missed.size),
                       row_match=row_match.astype(np.int64, copy=False))
+
+
+def _avoiding_matching(ab_ptr: np.ndarray, ab_ind: np.ndarray, n_cols: int,
+                       transpose: tuple[np.ndarray, np.ndarray], dt: type,
+                       avoid: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
+    """A maximum matching of ``[A B]``; with ``avoid``, one that matches as many avoided
+    rows as possible (see :func:`completion`)."""
+    if avoid is None or not np.any(avoid):
+        return matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)
+    avoid = np.asarray(avoid, bool)
+    lens = np.diff(ab_ptr)
+    sub_ptr = np.zeros(ab_ptr.size, np.int64)
+    np.cumsum(np.where(avoid, lens, 0), out=sub_ptr[1:])
+    sub_ind = ab_ind[np.repeat(avoid, lens)]
+    # the links into avoided rows only, then completed on the whole graph from there
+    rm, cm = matching_work(sub_ptr, sub_ind, n_cols, dtype=dt)
+    del sub_ptr, sub_ind
+    return matching_work(ab_ptr, ab_ind, n_cols, transpose, rm, cm, dtype=dt)
 
 
 def union_sorted(a: np.ndarray, b: np.ndarray, n: int) -> np.ndarray:

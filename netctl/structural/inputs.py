@@ -9,7 +9,12 @@ from typing import Any
 import numpy as np
 
 from netctl._csr import Pattern, coo_pattern, diagonal_mask, empty_pattern
-from netctl.structural._engine import completion, site_preference, structure_of
+from netctl.structural._engine import (
+    completion,
+    site_preference,
+    sites_to_avoid,
+    structure_of,
+)
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
@@ -195,7 +200,11 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
     # where a source component needs a representative, prefer states that may host one
     # (an input on a velocity (frequency) state, never on an angle, in a second-order model)
     prefer = site_preference(system.nodes, system.model, actuators=kind == "inputs")
-    comp = completion(system.pattern("A"), empty_pattern((n, 0)), prefer=prefer)
+    # which states are left unmatched: as few the node table bars as any maximum
+    # matching allows (the count does not depend on it)
+    avoid = sites_to_avoid(system.nodes, actuators=kind == "inputs")
+    comp = completion(system.pattern("A"), empty_pattern((n, 0)), prefer=prefer,
+                      avoid=avoid)
     drivers = comp.states
     unmatched = comp.unmatched
     reps = comp.representatives
