@@ -70,7 +70,8 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
              + names_line(state_labels(system, design.drivers[:SHOWN]),
                           total=design.drivers.size)]
     if barred is not None and barred.size:
-        lines.append("  " + barred_line(system, barred, t, sensors=sensors))
+        lines.append("  " + barred_line(system, barred, t, sensors=sensors,
+                                             preferred=True))
     if not args.dedicated and design.n_inputs < design.drivers.size:
         lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which {t.states} "
                      f"each {noun[:-1]} {'reads' if sensors else 'acts on'}")
@@ -94,13 +95,16 @@ def not_eligible(system: StructuredSystem, states: np.ndarray, *,
 
 
 def barred_line(system: StructuredSystem, barred: np.ndarray, t: Any, *,
-                sensors: bool) -> str:
-    """One line naming the proposed states the node table forbids, and the way out."""
+                sensors: bool, preferred: bool = False) -> str:
+    """One line naming the proposed states the node table forbids, and the way out
+    (``preferred``: the analysis already left as few of them as a maximum matching can)."""
     from netctl.structural.branches import state_labels
 
     return (f"not allowed by the node table ({'sensor' if sensors else 'actuator'} = false) "
             f"({barred.size}): "
             + names_line(state_labels(system, barred[:SHOWN]), total=barred.size)
+            + ("; allowed states were preferred and no maximum matching avoids these"
+               if preferred else "")
             + "; netctl place" + (" --sensors" if sensors else "")
             + " finds the cheapest design on the allowed sites")
 
