@@ -311,21 +311,21 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     matching search is skipped.
 
     ``avoid`` (boolean per state, e.g. the node table's ``actuator`` column negated)
-    decides which states are left unmatched: a maximum matching of the links into the
-    avoided states alone is found first and then completed to a maximum matching of
-    ``[A B]``. Augmenting paths never unmatch a matched row (the augmenting-path
-    property, Lovász & Plummer 1986, from memory), so the result is a maximum matching
-    that leaves as few avoided states unmatched as any maximum matching can (the sets of
-    rows a matching covers form a transversal matroid, Edmonds & Fulkerson 1965, from
-    memory: a maximum matching covering the largest coverable set of avoided rows
-    exists). The count does not change. The later search for source components that can
+    decides which states are left unmatched: a maximum matching ``M1`` of the links into
+    the avoided states alone is merged with a maximum matching of ``[A B]`` into one
+    that is maximum and still matches every row ``M1`` matches (Mendelsohn–Dulmage; the
+    same guarantee as completing ``M1`` by augmenting paths, which never unmatch a row:
+    Lovász & Plummer 1986; both from memory). No matching matches more avoided rows
+    than ``M1``, so none leaves fewer avoided states unmatched (the sets of rows a
+    matching covers form a transversal matroid, Edmonds & Fulkerson 1965, from memory).
+    The count does not change. The later search for source components that can
     hold an unmatched state (``alpha``) first lets an extra column take only states not
     avoided, then any: a heuristic, not proven to keep the fewest avoided states.
 
     References
     ----------
     .. [1] L. Lovász, M. D. Plummer, *Matching Theory*, North-Holland, 1986 (augmenting
-       paths; from memory).
+       paths; the Mendelsohn–Dulmage theorem; from memory).
     .. [2] J. Edmonds, D. R. Fulkerson, "Transversals and matroid partition", J. Res.
        NBS 69B:147-153, 1965 (from memory).
     """
@@ -418,18 +418,51 @@ def _avoiding_matching(ab_ptr: np.ndarray, ab_ind: np.ndarray, n_cols: int,
                        transpose: tuple[np.ndarray, np.ndarray], dt: type,
                        avoid: np.ndarray | None) -> tuple[np.ndarray, np.ndarray]:
     """A maximum matching of ``[A B]``; with ``avoid``, one that matches as many avoided
-    rows as possible (see :func:`completion`)."""
+    rows as possible (see :func:`completion`).
+
+    ``M1``, a maximum matching of the links into avoided rows, and ``M``, a maximum
+    matching of the whole graph, are merged in linear time (the Mendelsohn–Dulmage
+    construction, from memory): every path of ``M1 ∪ M`` that starts at a row matched by
+    ``M1`` only takes its ``M1`` links, every other component keeps ``M``'s. The result
+    covers ``M1``'s rows and ``M``'s columns, so it is maximum. (Completing ``M1`` by
+    augmenting paths gives the same guarantee but was 75 times slower at 10^6 states.)
+    """
+    m = matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)
     if avoid is None or not np.any(avoid):
-        return matching_work(ab_ptr, ab_ind, n_cols, transpose, dtype=dt)
+        return m
     avoid = np.asarray(avoid, bool)
     lens = np.diff(ab_ptr)
     sub_ptr = np.zeros(ab_ptr.size, np.int64)
     np.cumsum(np.where(avoid, lens, 0), out=sub_ptr[1:])
     sub_ind = ab_ind[np.repeat(avoid, lens)]
-    # the links into avoided rows only, then completed on the whole graph from there
-    rm, cm = matching_work(sub_ptr, sub_ind, n_cols, dtype=dt)
+    # the links into avoided rows only
+    m1_row, _ = matching_work(sub_ptr, sub_ind, n_cols, dtype=dt)
     del sub_ptr, sub_ind
-    return matching_work(ab_ptr, ab_ind, n_cols, transpose, rm, cm, dtype=dt)
+    row_match, col_match = m
+    _merge_matchings(m1_row, row_match.copy(), col_match.copy(), row_match, col_match)
+    return row_match, col_match
+
+
+@njit(cache=True, nogil=True)
+def _merge_matchings(m1_row, m_row, m_col, row_match, col_match):  # pragma: no cover
+    """In place on ``row_match``/``col_match`` (= ``M`` on entry; ``m_col`` a copy of
+    ``M``'s column side): along every path from a row matched by ``M1`` only, take
+    ``M1``'s links."""
+    for r0 in range(m1_row.size):
+        if m1_row[r0] < 0 or m_row[r0] >= 0:
+            continue
+        r = r0
+        while True:
+            c = m1_row[r]
+            if c < 0:
+                row_match[r] = -1  # the path ends at a row matched by M only
+                break
+            row_match[r] = c
+            col_match[c] = r
+            nxt = m_col[c]
+            if nxt < 0:
+                break
+            r = nxt
 
 
 def union_sorted(a: np.ndarray, b: np.ndarray, n: int) -> np.ndarray:
