@@ -12,8 +12,9 @@
 
 from __future__ import annotations
 
-import importlib
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
+
+from netctl._lazy import lazy_names
 
 if TYPE_CHECKING:
     from netctl.ensemble.cavity import CavityPrediction, cavity_driver_fraction, degree_distribution
@@ -72,14 +73,4 @@ __all__ = [
 ]
 
 
-def __getattr__(name: str) -> Any:
-    module = _LAZY.get(name)
-    if module is None:
-        raise AttributeError(f"module 'netctl.ensemble' has no attribute {name!r}")
-    value = getattr(importlib.import_module(module), name)
-    globals()[name] = value
-    return value
-
-
-def __dir__() -> list[str]:
-    return sorted(set(globals()) | set(__all__))
+__getattr__, __dir__ = lazy_names(__name__, _LAZY, globals(), __all__)

@@ -17,6 +17,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from netctl._lazy import lazy_names
 from netctl.errors import (
     InvalidSystemError,
     LimitError,
@@ -53,20 +54,8 @@ _HOME: dict[str, str] = {
 }
 
 
-def __getattr__(name: str) -> Any:
-    """The readers and writers, imported from their modules on first access (PEP 562)."""
-    home = _HOME.get(name)
-    if home is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    import importlib
-
-    value = getattr(importlib.import_module(f"netctl.io.{home}"), name)
-    globals()[name] = value
-    return value
-
-
-def __dir__() -> list[str]:
-    return sorted(set(globals()) | set(_HOME))
+# The readers and writers, imported from their modules on first access (PEP 562).
+__getattr__, __dir__ = lazy_names(__name__, _HOME, globals())
 
 
 class _Deferred:

@@ -11,6 +11,8 @@ import sys
 import types
 from typing import TYPE_CHECKING, Any
 
+from netctl._lazy import lazy_names
+
 if TYPE_CHECKING:
     from netctl.structural.controllability import (
         ControllabilityReport,
@@ -71,20 +73,8 @@ __all__ = [
 ]
 
 
-def __getattr__(name: str) -> Any:
-    """A public name, imported from its module on first access (PEP 562)."""
-    home = _HOME.get(name)
-    if home is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    import importlib
-
-    value = getattr(importlib.import_module(f"{__name__}.{home}"), name)
-    globals()[name] = value
-    return value
-
-
-def __dir__() -> list[str]:
-    return sorted(set(globals()) | set(__all__))
+# A public name, imported from its module on first access (PEP 562).
+__getattr__, __dir__ = lazy_names(__name__, _HOME, globals(), __all__)
 
 
 class _Package(types.ModuleType):
