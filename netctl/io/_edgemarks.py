@@ -11,11 +11,13 @@ from __future__ import annotations
 import re
 import warnings
 from collections.abc import Callable, Iterable, Sequence
+from typing import IO
 
 from netctl.io._common import file_error, unprotect_name
 from netctl.system import StructuredSystem
 
-__all__ = ["MARKS", "header_marks", "apply_marks", "quoted_names", "repeated_header"]
+__all__ = ["MARKS", "header_marks", "late_mark", "apply_marks", "quoted_names",
+           "repeated_header"]
 
 #: Comment lines at the top of an edge list that mark signals (``# disturbances: a, b``).
 MARKS: tuple[str, ...] = ("disturbances", "regulated")
@@ -23,9 +25,22 @@ _MARK = re.compile(r"#[ \t\r\v\f]*(disturbances|regulated)[ \t\r\v\f]*:(.*)\Z", 
 _BLANK = " \t\r\v\f"  # the edge list's own separators (never Unicode spaces: names keep them)
 
 
-def header_marks(lines: Iterable[bytes]) -> dict[str, list[tuple[str, int]]]:
-    """``{mark: [(name, line), ...]}`` from the comment lines before the first link."""
+#: A mark line anywhere in the bytes of an edge list (the late-mark check).
+_LATE = re.compile(rb"^[ \t\r\v\f]*#[ \t\r\v\f]*(disturbances|regulated)[ \t\r\v\f]*:",
+                   re.IGNORECASE | re.MULTILINE)
+_LATE_CHUNK = 1 << 22
+
+
+def header_marks(lines: Iterable[bytes], path: object = None
+                 ) -> dict[str, list[tuple[str, int]]]:
+    """``{mark: [(name, line), ...]}`` from the comment lines before the first link.
+
+    With ``path`` and ``lines`` an open binary file, the rest of the file is then
+    scanned (:func:`late_mark`): a mark line after the first link (or the header row) is
+    an error, since the link reader takes it for a plain comment and the marked nodes
+    would silently stay states."""
     out: dict[str, list[tuple[str, int]]] = {}
+    lineno = 0
     for lineno, raw in enumerate(lines, start=1):
         line = raw.decode("utf-8", "replace")
         if lineno == 1 and line.startswith("\ufeff"):  # a byte-order mark, as the links
@@ -34,15 +49,41 @@ def header_marks(lines: Iterable[bytes]) -> dict[str, list[tuple[str, int]]]:
         if not line:
             continue
         if not line.startswith("#"):
+            if path is not None and hasattr(lines, "read"):
+                late_mark(lines, lineno, path)  # type: ignore[arg-type]
             break  # the header row or the first link: marks come before it
         m = _MARK.match(line)
         if m:
             names = [unprotect_name(x.strip(_BLANK)) for x in m.group(2).split(",")
                      if x.strip(_BLANK)]
             out.setdefault(m.group(1).lower(), []).extend((x, lineno) for x in names)
-        if lineno > 10_000:
-            break
     return out
+
+
+def late_mark(fh: IO[bytes], lineno: int, path: object) -> None:
+    """Raise :class:`~netctl.errors.NetworkFileError` at the first ``# disturbances:`` /
+    ``# regulated:`` line in the rest of ``fh``, which is positioned just after line
+    ``lineno`` (the first link or the header row). Read in chunks cut at line breaks;
+    a chunk without ``#`` (the usual case) costs one byte search."""
+    tail = b""
+    while True:
+        data = fh.read(_LATE_CHUNK)
+        buf = tail + data
+        if data:
+            cut = buf.rfind(b"\n") + 1
+            buf, tail = buf[:cut], buf[cut:]
+        if b"#" in buf:
+            m = _LATE.search(buf)
+            if m:
+                line = lineno + buf.count(b"\n", 0, m.start()) + 1
+                mark = m.group(1).decode().lower()
+                raise file_error(path, line, f"the '# {mark}:' line comes after the first "
+                                 "link, where it would be read as a plain comment (its "
+                                 f"nodes would stay states); move the '# {mark}:' line "
+                                 "above the first link (and above a header row).")
+        lineno += buf.count(b"\n")
+        if not data:
+            return
 
 
 def apply_marks(system: StructuredSystem, marks: dict[str, list[tuple[str, int]]],

@@ -570,7 +570,7 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
     else:
         system = _system_from_arrays(e, path, model=model)
     with _open(path) as fh:
-        marks = header_marks(fh)
+        marks = header_marks(fh, path)
     with _open(path) as fh:
         repeated_header(fh, path, _fields, _is_header, system.state_names)
     quoted_names(system.state_names, path)
