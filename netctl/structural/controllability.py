@@ -14,6 +14,7 @@ from netctl.structural._engine import (
     accessible_states,
     completion,
     site_preference,
+    sites_to_avoid,
     stack_AB,
     structure_of,
 )
@@ -357,7 +358,10 @@ def _report(system: StructuredSystem, kind: str, dimension: bool) -> Controllabi
     # node table says where (e.g. a grid's generator buses, their frequency states)
     # and, for inputs in a second-order model, on a velocity state, never on a position
     prefer = site_preference(system.nodes, system.model, actuators=kind == "controllability")
-    comp = completion(A, B, st, prefer=prefer)
+    # the fix leaves as few states the node table bars unmatched as any maximum matching
+    # allows, as the minimum input design does (the count does not depend on it)
+    avoid = sites_to_avoid(system.nodes, actuators=kind == "controllability")
+    comp = completion(A, B, st, prefer=prefer, avoid=avoid)
     rank = comp.matching_size
     dil = _dilation(A, B, comp.row_match) if rank < n else None
     ok = bool(inaccessible.size == 0 and rank == n)
