@@ -435,7 +435,7 @@ def test_check_fix_names_buses(tmp_path, capsys):
     assert not d["controllable"] and len(fix) == 1 and fix[0] in ("2", "3")
     assert main(args) == 1
     out = capsys.readouterr().out
-    assert f"smallest fix: add 1 dedicated inputs at bus {fix[0]}\n" in out
+    assert f"smallest fix: add 1 dedicated input at bus {fix[0]}\n" in out
 
 
 # ---------------------------------------------------------------- target placement

@@ -124,7 +124,8 @@ def test_check_causes_and_fix_in_bus_words_no_angle_input(tmp_path, capsys):
     assert all(said[n] in cause for n in firsts)
     assert "frequency of any bus of each" in cause
     fix = ", ".join(said[n] for n in d["fix"]["states"])
-    assert f"smallest fix: add {len(d['fix']['states'])} dedicated inputs at {fix}\n" in out
+    k = len(d['fix']['states'])
+    assert f"smallest fix: add {k} dedicated input{'s' if k != 1 else ''} at {fix}\n" in out
     _no_state_names(out, s)
 
 

@@ -82,8 +82,9 @@ class Terms:
     unmatched: str        # the count n - |M*|
 
     def of(self, n: int, what: str | None = None) -> str:
-        """``"12 states"`` / ``"12 nodes"`` (or ``what`` in place of the noun)."""
-        return f"{n} {what or self.states}"
+        """``"12 states"`` / ``"12 nodes"``, ``"1 state"`` (or ``what`` in place of the
+        noun)."""
+        return f"{n} {what or (self.state if n == 1 else self.states)}"
 
 
 #: vocabulary name -> its words (closed set; ``--terms`` and ``[system] terms``)

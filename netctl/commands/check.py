@@ -69,8 +69,9 @@ def _cmd_check(args: argparse.Namespace) -> int:
     for r in reports:
         ok &= r.controllable
         word = "controllable" if r.kind == "controllability" else "observable"
-        what = (("driver nodes" if t.name == "network" else "inputs")
-                if r.kind == "controllability" else "sensors")
+        what = (("driver node" if t.name == "network" else "input")
+                if r.kind == "controllability" else "sensor")
+        what += "s" if r.n_missing_inputs != 1 else ""
         dim = r.controllable_dimension
         lines.append(f"  structurally {word}: {'yes' if r.controllable else 'NO'}"
                      + (f" (generic {word} dimension {dim} of {r.n_states})"

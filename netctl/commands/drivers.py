@@ -73,7 +73,8 @@ def _cmd_drivers(args: argparse.Namespace, sensors: bool = False) -> int:
         lines.append("  " + barred_line(system, barred, t, sensors=sensors,
                                              preferred=True))
     if not args.dedicated and design.n_inputs < design.drivers.size:
-        lines.append(f"  wiring: {design.n_inputs} {noun}; see --json for which {t.states} "
+        lines.append(f"  wiring: {design.n_inputs} {noun if design.n_inputs != 1 else noun[:-1]}"
+                     f"; see --json for which {t.states} "
                      f"each {noun[:-1]} {'reads' if sensors else 'acts on'}")
     lines.append(f"  (one minimum set of possibly many; ties broken by {t.state} order)")
     note = caution(args, engineering=False)

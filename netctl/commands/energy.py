@@ -86,7 +86,8 @@ def _cmd_energy(args: argparse.Namespace) -> int:
                  f"double precision (hardest unit target needs energy >= "
                  f"{r.worst_energy_bound:.3g})")
     lines = [f"{args.file}: {r.n_states} states, {r.n_inputs} input(s), model {real.model}",
-             f"  {where}; weights: {weights} (seed {args.seed})",
+             f"  {where}; weights: {weights}" + (
+                 "" if weights == "given" else f" (seed {args.seed})"),
              f"  Gramian: {r.horizon_note}; from its Cholesky factor",
              f"  {small}, largest {r.lambda_max:.4g}, trace {r.trace:.4g}, log det "
              f"{'<= ' if not resolved else ''}{r.log_det:.4g}",

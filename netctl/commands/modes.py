@@ -75,7 +75,8 @@ def _cmd_modes(args: argparse.Namespace) -> int:
     d["exact_controllability"] = x.to_dict()
     d["caution"] = CAUTION
     lines = [f"{args.file}: {r.n_states} states, {r.n_inputs} input(s), model {real.model}",
-             f"  {where}; weights: {weights} (seed {args.seed})",
+             f"  {where}; weights: {weights}" + (
+                 "" if weights == "given" else f" (seed {args.seed})"),
              f"  modes not reached: {len(r.unreached)}" + (
                  f" ({sum(m.multiplicity for m in r.unreached)} eigenvalue(s) counted with "
                  "multiplicity)" if r.unreached else "")]

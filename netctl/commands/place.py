@@ -104,7 +104,8 @@ def _text(args: argparse.Namespace, r: Any, d: dict[str, Any], check_name: str,
     noun = "sensors" if r.kind == "sensors" else "actuators"
     what = {"dedicated": f"dedicated {noun}", "candidates": f"candidate {noun}",
             "target": f"dedicated {noun} for {len(d['targets'] or [])} target state(s)"}
-    lines = [f"{args.file}: {len(r.state_names)} states, model {r.model}",
+    n = len(r.state_names)
+    lines = [f"{args.file}: {n} state{'s' if n != 1 else ''}, model {r.model}",
              f"  placing {what[r.problem]} (site data: "
              + ("none given: every state eligible at cost 1" if d["site_data"] == "default"
                 else str(d["site_data"])) + ")"
