@@ -26,8 +26,7 @@ _BLANK = " \t\r\v\f"  # the edge list's own separators (never Unicode spaces: na
 
 
 #: A mark line anywhere in the bytes of an edge list (the late-mark check).
-_LATE = re.compile(rb"^[ \t\r\v\f]*#[ \t\r\v\f]*(disturbances|regulated)[ \t\r\v\f]*:",
-                   re.IGNORECASE | re.MULTILINE)
+_LATE = re.compile(rb"#[ \t\r\v\f]*(disturbances|regulated)[ \t\r\v\f]*:", re.IGNORECASE)
 _LATE_CHUNK = 1 << 22
 
 
@@ -63,27 +62,54 @@ def header_marks(lines: Iterable[bytes], path: object = None
 def late_mark(fh: IO[bytes], lineno: int, path: object) -> None:
     """Raise :class:`~netctl.errors.NetworkFileError` at the first ``# disturbances:`` /
     ``# regulated:`` line in the rest of ``fh``, which is positioned just after line
-    ``lineno`` (the first link or the header row). Read in chunks cut at line breaks;
-    a chunk without ``#`` (the usual case) costs one byte search."""
-    tail = b""
+    ``lineno`` (the first link or the header row). Read in chunks; a chunk without
+    ``#`` (the usual case) costs one byte search, and lines are counted only when a mark
+    is found (the file is then read again up to it)."""
+    start = fh.tell()
+    done = 0  # bytes of the rest before ``tail``
+    tail = b""  # the end of the last chunk after its last line break
     while True:
         data = fh.read(_LATE_CHUNK)
-        buf = tail + data
-        if data:
-            cut = buf.rfind(b"\n") + 1
-            buf, tail = buf[:cut], buf[cut:]
-        if b"#" in buf:
-            m = _LATE.search(buf)
+        if b"#" in data or b"#" in tail:
+            buf = tail + data
+            cut = buf.rfind(b"\n") + 1 if data else len(buf)
+            low = buf.lower()  # the words first (byte searches), then the pattern
+            m = None
+            if low.find(b"disturbances", 0, cut) >= 0 or low.find(b"regulated", 0, cut) >= 0:
+                m = next((x for x in _LATE.finditer(buf, 0, cut)  # '#' first on its line
+                          if not buf[buf.rfind(b"\n", 0, x.start()) + 1:x.start()].strip(
+                              _BLANK.encode())), None)
             if m:
-                line = lineno + buf.count(b"\n", 0, m.start()) + 1
+                fh.seek(start)
+                line = lineno + 1 + _count_lines(fh, done + m.start())
                 mark = m.group(1).decode().lower()
                 raise file_error(path, line, f"the '# {mark}:' line comes after the first "
                                  "link, where it would be read as a plain comment (its "
                                  f"nodes would stay states); move the '# {mark}:' line "
                                  "above the first link (and above a header row).")
-        lineno += buf.count(b"\n")
+            done += cut
+            tail = buf[cut:]
+        else:
+            cut = data.rfind(b"\n") + 1
+            if cut:
+                done += len(tail) + cut
+                tail = data[cut:]
+            else:
+                tail += data
         if not data:
             return
+
+
+def _count_lines(fh: IO[bytes], size: int) -> int:
+    """Line breaks in the next ``size`` bytes of ``fh``."""
+    count = 0
+    while size > 0:
+        data = fh.read(min(size, _LATE_CHUNK))
+        if not data:
+            break
+        count += data.count(b"\n")
+        size -= len(data)
+    return count
 
 
 def apply_marks(system: StructuredSystem, marks: dict[str, list[tuple[str, int]]],
