@@ -68,6 +68,16 @@ class Progress:
                 self.stream.flush()
 
 
+def _terminal(stream: TextIO | None, enabled: bool | None) -> TextIO | None:
+    """The stream to show progress on (stderr by default), or ``None`` when progress is
+    off: ``enabled`` false, or left unset and the stream is not a terminal."""
+    out = stream if stream is not None else sys.stderr
+    if enabled is None:
+        isatty = getattr(out, "isatty", None)
+        enabled = bool(isatty and isatty())
+    return out if enabled else None
+
+
 def count_progress(what: str, *, stream: TextIO | None = None,
                    enabled: bool | None = None) -> Callable[[int, int], None] | None:
     """A ``progress(done, total)`` callback that rewrites one stderr line ("netctl: WHAT
@@ -85,11 +95,8 @@ def count_progress(what: str, *, stream: TextIO | None = None,
     >>> count_progress("samples", stream=io.StringIO()) is None
     True
     """
-    out = stream if stream is not None else sys.stderr
-    if enabled is None:
-        isatty = getattr(out, "isatty", None)
-        enabled = bool(isatty and isatty())
-    if not enabled:
+    out = _terminal(stream, enabled)
+    if out is None:
         return None
 
     def tick(done: int, total: int) -> None:
@@ -121,11 +128,8 @@ def stage_progress(what: str, *, stream: TextIO | None = None,
     >>> stage_progress("modes", stream=io.StringIO()) is None
     True
     """
-    out = stream if stream is not None else sys.stderr
-    if enabled is None:
-        isatty = getattr(out, "isatty", None)
-        enabled = bool(isatty and isatty())
-    if not enabled:
+    out = _terminal(stream, enabled)
+    if out is None:
         return None
     state: dict[str, Any] = {"stage": None, "open": False}
 
