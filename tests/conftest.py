@@ -55,3 +55,29 @@ def random_pattern(rng, n, p, loops=False):
 @pytest.fixture
 def rng():
     return np.random.default_rng(20261202)
+
+
+@pytest.fixture
+def full_disk(monkeypatch):
+    """Every write through netctl's atomic writer fails with ENOSPC, as on a full disk
+    (the files are opened, so the failure comes mid-write, not at open)."""
+    import errno
+
+    import netctl.io._common as common
+
+    real = common.os.fdopen
+
+    class Full:
+        def __init__(self, fh):
+            self.fh = fh
+
+        def __enter__(self):
+            return self
+
+        def __exit__(self, *exc):
+            self.fh.close()
+
+        def write(self, data):
+            raise OSError(errno.ENOSPC, "No space left on device")
+
+    monkeypatch.setattr(common.os, "fdopen", lambda *a, **k: Full(real(*a, **k)))

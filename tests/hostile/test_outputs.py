@@ -7,7 +7,6 @@ atomic (temporary file, then rename); an interrupted run leaves no partial file.
 
 from __future__ import annotations
 
-import errno
 import os
 import re
 import signal
@@ -138,25 +137,8 @@ def test_bad_output_places_one_line_exit_2(tmp_path, monkeypatch, capsys, net, o
     assert _listing(tmp_path) == ["net.csv", "sub"]
 
 
-def test_full_disk_during_a_write_leaves_nothing(tmp_path, monkeypatch, capsys, net):
-    import netctl.io._common as common
-
-    real = os.fdopen
-
-    class Full:
-        def __init__(self, fh):
-            self.fh = fh
-
-        def __enter__(self):
-            return self
-
-        def __exit__(self, *exc):
-            self.fh.close()
-
-        def write(self, data):
-            raise OSError(errno.ENOSPC, "No space left on device")
-
-    monkeypatch.setattr(common.os, "fdopen", lambda *a, **k: Full(real(*a, **k)))
+def test_full_disk_during_a_write_leaves_nothing(tmp_path, monkeypatch, capsys, net,
+                                                 full_disk):
     assert _run(tmp_path, monkeypatch, ["convert", "net.csv", "out.json"]) == 2
     err = capsys.readouterr().err
     assert "cannot write out.json: the disk is full" in err

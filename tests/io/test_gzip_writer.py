@@ -3,7 +3,6 @@ side edge list is named after the user's file (not after a scratch file)."""
 
 from __future__ import annotations
 
-import errno
 import gzip
 import os
 import warnings
@@ -33,27 +32,9 @@ def test_writer_warning_names_the_users_file(tmp_path, name):
     assert sorted(os.listdir(tmp_path)) == [name]
 
 
-def test_writer_error_names_the_users_file(tmp_path, monkeypatch):
+def test_writer_error_names_the_users_file(tmp_path, full_disk):
     """A full disk while the uncompressed copy is written: the message names e.csv.gz
     (it named the scratch file), and nothing is left behind."""
-    import netctl.io._common as common
-
-    real = common.os.fdopen
-
-    class Full:
-        def __init__(self, fh):
-            self.fh = fh
-
-        def __enter__(self):
-            return self
-
-        def __exit__(self, *exc):
-            self.fh.close()
-
-        def write(self, data):
-            raise OSError(errno.ENOSPC, "No space left on device")
-
-    monkeypatch.setattr(common.os, "fdopen", lambda *a, **k: Full(real(*a, **k)))
     with pytest.raises(OutputFileError) as info:
         write(_cycle(3), tmp_path / "e.csv.gz")
     assert str(info.value) == (f"cannot write {tmp_path / 'e.csv.gz'}: the disk is full; free "
