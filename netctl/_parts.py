@@ -8,6 +8,7 @@ stored zeros removed, indices sorted, arrays frozen.
 
 from __future__ import annotations
 
+import itertools
 import math
 from collections.abc import Iterable, Mapping, Sequence
 from typing import Any
@@ -17,7 +18,7 @@ import numpy as np
 from netctl._csr import Pattern, empty_pattern, is_sparse
 from netctl.errors import InvalidSystemError
 
-__all__ = ["DistinctNames", "NameList", "canonical_csr"]
+__all__ = ["DistinctNames", "NameList", "canonical_csr", "name_lookup"]
 
 
 def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> Pattern:
@@ -332,3 +333,27 @@ def _truthy(v: Any) -> bool:
     if isinstance(v, str):
         return v.strip().lower() in ("1", "true", "yes", "y", "t")
     return bool(v)
+
+
+
+#: :func:`name_lookup` finds at most this many names in a pool of at least
+#: ``LARGE_POOL`` by one pass over the pool instead of hashing all of it: 0.2 s instead
+#: of 1.3-2.6 s for 100 names among 3*10^6 (benchmarks/RESULTS.md).
+FEW_NAMES = 256
+LARGE_POOL = 200_000
+
+
+def name_lookup(pool: Sequence[str], names: Sequence[object], cache: dict[str, Any],
+                key: str) -> dict[str, int]:
+    """A name -> position dict for looking up ``names`` in ``pool``: of the whole pool
+    (then kept in ``cache[key]`` for the next lookup), or, for a few names in a large
+    pool, of those names only (one pass, nothing kept)."""
+    if len(names) <= FEW_NAMES and len(pool) >= LARGE_POOL:
+        wanted = {str(name) for name in names}
+        found: dict[str, int] = {}
+        for i, name in zip(itertools.count(), pool):
+            if name in wanted and name not in found:
+                found[name] = i
+        return found
+    cache[key] = whole = {name: i for i, name in enumerate(pool)}
+    return whole

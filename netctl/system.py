@@ -45,6 +45,7 @@ from netctl._parts import (
     _truthy,  # noqa: F401 (readers import it from here)
     canonical_csr,
     check_finite,
+    name_lookup,
 )
 from netctl.errors import InvalidSystemError, UnknownNameError
 
@@ -425,9 +426,9 @@ class StructuredSystem:
         """
         pool = self._pool(kind)
         lookup = self._index.get(kind)
+        names = names if isinstance(names, (list, tuple)) else list(names)
         if lookup is None and not isinstance(pool, NameList):
-            lookup = {name: i for i, name in enumerate(pool)}  # type: ignore[assignment]
-            self._index[kind] = lookup  # type: ignore[assignment]
+            lookup = name_lookup(pool, names, self._index, kind)
         out = []
         for name in names:
             key = str(name)

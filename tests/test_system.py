@@ -136,3 +136,26 @@ def test_from_named_edges_orders_by_first_appearance():
     assert s.state_names == ("spare", "pump", "tank", "valve")
     assert s.A[2, 1] == 1.0 and s.A[3, 2] == 1.0 and s.n_links == 2
     assert s.driven_states().tolist() == [1]
+
+
+def test_index_of_few_names_in_a_large_pool_matches_the_whole_index():
+    """A few names among many are found by one pass over the pool (no whole index kept);
+    the positions equal Python's ``list.index`` on the same names, and unknown names
+    and integer positions behave as with the whole index."""
+    import netctl._parts as parts
+
+    rng = np.random.default_rng(5)
+    n = parts.LARGE_POOL + 17
+    names = [f"v{k}" for k in rng.permutation(n)]
+    s = StructuredSystem.from_edges(np.arange(n - 1), np.arange(1, n), n, state_names=names)
+    asked = [names[int(k)] for k in rng.integers(0, n, 40)]
+    got = s.index_of(asked)
+    assert got.tolist() == [names.index(a) for a in asked]
+    assert "state" not in s._index  # nothing kept: the next lookup passes again
+    assert s.index_of(iter(asked[:3])).tolist() == got[:3].tolist()
+    assert s.index_of([0, n - 1]).tolist() == [0, n - 1]  # integers as positions
+    with pytest.raises(UnknownNameError):
+        s.index_of(["no-such-state"])
+    many = [names[int(k)] for k in rng.integers(0, n, parts.FEW_NAMES + 1)]
+    assert s.index_of(many).tolist() == [names.index(a) for a in many]
+    assert "state" in s._index  # the whole index, kept
