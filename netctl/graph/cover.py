@@ -50,7 +50,51 @@ from netctl._jit import njit
 
 from netctl.graph.matching import maximum_matching
 
-__all__ = ["stem_cycle_cover"]
+__all__ = ["stem_cycle_cover", "accessible_rows"]
+
+
+@njit(cache=True, nogil=True)
+def _restrict(aptr, aind, bptr, bind, new_id, r, ptr, ind, loop):  # pragma: no cover
+    """Fill the CSR of ``[A B]`` on the rows and state columns with ``new_id >= 0`` (new
+    numbers ``0..r-1``; input ``k`` becomes column ``r + k``) and mark the self-loops;
+    returns the number of entries."""
+    pos = 0
+    for v in range(aptr.size - 1):
+        nv = new_id[v]
+        if nv < 0:
+            continue
+        for e in range(aptr[v], aptr[v + 1]):
+            nu = new_id[aind[e]]
+            if nu >= 0:
+                ind[pos] = nu
+                pos += 1
+                if nu == nv:
+                    loop[nv] = True
+        for e in range(bptr[v], bptr[v + 1]):
+            ind[pos] = r + bind[e]
+            pos += 1
+        ptr[nv + 1] = pos
+    return pos
+
+
+def accessible_rows(a_ptr: np.ndarray, a_ind: np.ndarray, b_ptr: np.ndarray,
+                    b_ind: np.ndarray, n_inputs: int, keep: np.ndarray
+                    ) -> tuple[np.ndarray, np.ndarray, int, np.ndarray]:
+    """``[A B]`` restricted to the states in ``keep`` (rows and state columns; every
+    input kept), as :func:`stem_cycle_cover` takes it: ``(indptr, indices, n_cols,
+    has_loop)``, states renumbered in order (``r`` kept states, then the inputs), in one
+    compiled pass over the entries (no link-sized temporaries but the result)."""
+    keep = np.asarray(keep, np.bool_)
+    r = int(np.count_nonzero(keep))
+    new_id = np.cumsum(keep, dtype=np.int64) - 1
+    new_id[~keep] = -1
+    ptr = np.zeros(r + 1, np.int64)
+    ind = np.empty(np.asarray(a_ind).size + np.asarray(b_ind).size, np.int64)
+    loop = np.zeros(r, np.bool_)
+    size = _restrict(np.ascontiguousarray(a_ptr, np.int64), np.ascontiguousarray(a_ind, np.int64),
+                     np.ascontiguousarray(b_ptr, np.int64), np.ascontiguousarray(b_ind, np.int64),
+                     new_id, np.int64(r), ptr, ind, loop)
+    return ptr, ind[:size], r + int(n_inputs), loop
 
 
 @njit(cache=True, nogil=True)

@@ -380,19 +380,30 @@ def _report(system: StructuredSystem, kind: str, dimension: bool) -> Controllabi
 
 
 def _inaccessible_groups(st: Structure, acc: np.ndarray) -> tuple[InaccessibleGroup, ...]:
-    from netctl.graph.components import label_reach
+    from netctl.graph.components import (condensation_sources, label_reach,
+                                         strongly_connected_components)
 
-    comps = np.unique(st.scc[~acc])
-    sources = comps[st.source_scc[comps]]
+    unreached = ~acc
+    if "_components" in st.__dict__:  # the whole graph's components, already at hand
+        k, scc, is_source = st.n_scc, st.scc, st.source_scc
+    else:
+        # a predecessor of an inaccessible state is inaccessible, so the inaccessible
+        # states are whole components of the graph, and a source component of their
+        # subgraph is one of the whole graph: decompose that subgraph only (Tarjan over
+        # its in-edges; the accessible part, most of a failing design, is not visited)
+        k, scc = strongly_connected_components(st.in_indptr, st.in_indices, unreached)
+        is_source = condensation_sources(st.in_indptr, st.in_indices, scc, k)
+    comps = np.unique(scc[unreached])
+    sources = comps[is_source[comps]]
     # members of every unreached source component, grouped (one sort, not one scan each)
-    slot = np.full(st.n_scc, -1, np.int64)
+    slot = np.full(k + 1, -1, np.int64)  # slot[-1] (label -1: accessible) stays -1
     slot[sources] = np.arange(sources.size)
-    members = np.flatnonzero(slot[st.scc] >= 0)
-    members = members[np.argsort(slot[st.scc[members]], kind="stable")]
-    bounds = np.searchsorted(slot[st.scc[members]], np.arange(sources.size + 1))
+    members = np.flatnonzero(slot[scc] >= 0)
+    members = members[np.argsort(slot[scc[members]], kind="stable")]
+    bounds = np.searchsorted(slot[scc[members]], np.arange(sources.size + 1))
     # one labelled search: each inaccessible state goes to the first source reaching it
-    labels = label_reach(st.out_indptr, st.out_indices, members, slot[st.scc[members]], ~acc)
-    down = np.flatnonzero((labels >= 0) & (slot[st.scc] < 0))
+    labels = label_reach(st.out_indptr, st.out_indices, members, slot[scc[members]], unreached)
+    down = np.flatnonzero((labels >= 0) & (slot[scc] < 0))
     down = down[np.argsort(labels[down], kind="stable")]
     dbounds = np.searchsorted(labels[down], np.arange(sources.size + 1))
     return tuple(InaccessibleGroup(source=members[bounds[k]:bounds[k + 1]],
@@ -415,36 +426,16 @@ def _dilation(A: sp.csr_array, B: sp.csr_array, row_match: np.ndarray) -> Dilati
 def _hosoe_dimension(A: sp.csr_array, B: sp.csr_array, acc: np.ndarray) -> int:
     """Hosoe's generic dimension: the most accessible states covered by disjoint stems
     and cycles (:func:`netctl.graph.cover.stem_cycle_cover`, primal-dual phases)."""
-    from netctl.graph.cover import stem_cycle_cover
+    from netctl.graph.cover import accessible_rows, stem_cycle_cover
 
-    n = A.shape[0]
     acc = np.asarray(acc, bool)
     r = int(np.count_nonzero(acc))
     if r == 0:
         return 0
-    indptr, indices, n_cols = stack_AB(A, B)
-    indptr = np.asarray(indptr, np.int64)
-    indices = np.asarray(indices, np.int64)
-    # restrict [A B] to the accessible rows and state columns (inputs all kept): one
-    # mask over the entries, columns renumbered monotonically (rows stay sorted)
-    new_col = np.full(n_cols, -1, np.int64)
-    new_col[np.flatnonzero(acc)] = np.arange(r)
-    new_col[n:] = r + np.arange(n_cols - n)
-    counts = np.diff(indptr)
-    keep_row = np.repeat(acc, counts)
-    cols = new_col[indices]
-    keep = keep_row & (cols >= 0)
-    rows_of = np.repeat(np.arange(n, dtype=np.int64), counts)[keep]
-    sub_ind = cols[keep]
-    row_new = np.cumsum(acc) - 1
-    sub_ptr = np.zeros(r + 1, np.int64)
-    np.cumsum(np.bincount(row_new[rows_of], minlength=r), out=sub_ptr[1:])
-    has_loop = np.zeros(r, bool)
-    own = sub_ind == row_new[rows_of]
-    has_loop[row_new[rows_of[own]]] = True
-    # the link-sized temporaries go before the search (peak memory on huge systems)
-    del indptr, indices, counts, keep_row, cols, keep, rows_of, own, row_new, new_col
-    _, n_unc = stem_cycle_cover(sub_ptr, sub_ind, r + n_cols - n, has_loop)
+    # [A B] on the accessible rows and state columns (inputs all kept), one pass
+    ptr, ind, n_cols, has_loop = accessible_rows(A.indptr, A.indices, B.indptr, B.indices,
+                                                 B.shape[1], acc)
+    _, n_unc = stem_cycle_cover(ptr, ind, n_cols, has_loop)
     return r - n_unc
 
 

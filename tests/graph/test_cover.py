@@ -234,3 +234,28 @@ def test_each_phase_keeps_the_optimality_conditions_and_matches_every_tight_path
                 assert ((rc == 0) | ~(rm[rows] == find)).all(), trial
                 assert (cm[rm[rm >= 0]] == np.flatnonzero(rm >= 0)).all(), trial
     assert phases > 120  # some systems needed more than one phase
+
+
+@pytest.mark.parametrize("mode", ["python", "compiled"])
+def test_accessible_rows_equals_scipy_slicing(mode):
+    """The one-pass restriction of ``[A B]`` to the kept states equals SciPy's: hstack,
+    then keep the rows and the state columns of the kept states (inputs all kept); the
+    self-loop marks equal the kept diagonal of ``A``."""
+    rng = np.random.default_rng(8)
+    with always_python() if mode == "python" else always_compiled():
+        for _ in range(60):
+            n, m = int(rng.integers(1, 30)), int(rng.integers(0, 4))
+            A = sp.random_array((n, n), density=float(rng.uniform(0.02, 0.3)), rng=rng,
+                                format="csr")
+            B = sp.random_array((n, m), density=0.3, rng=rng, format="csr")
+            keep = rng.random(n) < rng.uniform(0.2, 1.0)
+            ptr, ind, n_cols, loops = cov.accessible_rows(A.indptr, A.indices, B.indptr,
+                                                          B.indices, m, keep)
+            ref_ = sp.hstack([A, B], format="csr")[keep][:, np.r_[np.flatnonzero(keep),
+                                                                   n + np.arange(m)]]
+            ref_ = ref_.tocsr()
+            ref_.sort_indices()
+            got = sp.csr_array((np.ones(ind.size), ind, ptr), shape=ref_.shape)
+            assert n_cols == ref_.shape[1]
+            assert (got != (ref_ != 0)).nnz == 0
+            assert loops.tolist() == (A.diagonal()[keep] != 0).tolist()

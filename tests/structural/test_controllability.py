@@ -242,14 +242,40 @@ def test_inaccessible_groups_partition_and_are_reachable():
         g.add_nodes_from(range(n))
         g.add_edges_from(map(tuple, edges.tolist()))
         reached = set(inputs).union(*[nx.descendants(g, i) for i in inputs]) if inputs else set()
+        sccs = [set(c) for c in nx.strongly_connected_components(g)]
         assert set(r.inaccessible.tolist()) == set(range(n)) - reached
         listed = [i for grp in r.groups for i in grp.source.tolist() + grp.downstream.tolist()]
         assert sorted(listed) == r.inaccessible.tolist()  # a partition
         for grp in r.groups:
             src = set(grp.source.tolist())
             assert all(set(g.predecessors(v)) <= src for v in src)  # a source component
+            assert src in sccs  # a whole strongly connected component
             reach = set().union(*[nx.descendants(g, v) for v in src])
             assert set(grp.downstream.tolist()) <= reach
+
+
+def test_inaccessible_groups_same_from_subgraph_and_whole_graph_components():
+    """The groups come out the same whether the components of the whole graph are at hand
+    or only the inaccessible subgraph is decomposed (the accessible part is skipped)."""
+    from netctl.structural._engine import accessible_states, structure_of
+    from netctl.structural.controllability import _inaccessible_groups
+
+    rng = np.random.default_rng(22)
+    for _ in range(120):
+        n = int(rng.integers(2, 40))
+        edges = random_pattern(rng, n, float(rng.uniform(0.02, 0.15)))
+        s = from_edges(edges, n) if len(edges) else StructuredSystem.from_edges([], [], n)
+        s = s.with_inputs(sorted(set(rng.integers(0, n, int(rng.integers(1, 4))).tolist())))
+        A, B = s.pattern("A"), s.pattern("B")
+        acc = accessible_states(structure_of(A), B)
+        if acc.all():
+            continue
+        part = _inaccessible_groups(structure_of(A), acc)
+        st = structure_of(A)
+        _ = st.n_scc  # the whole graph's components first
+        whole = _inaccessible_groups(st, acc)
+        assert [(g.source.tolist(), g.downstream.tolist()) for g in part] == \
+            [(g.source.tolist(), g.downstream.tolist()) for g in whole]
 
 
 def test_stacked_pattern_equals_scipy_hstack():
