@@ -61,3 +61,26 @@ def test_progress_on_a_terminal_and_silence_otherwise(monkeypatch, capsys, net, 
     assert err == ""
     _, err = _stderr(monkeypatch, argv, io.StringIO())  # a pipe or a file: no progress
     assert err == ""
+
+
+def test_check_shows_the_dimension_phases_on_a_terminal(monkeypatch, tmp_path):
+    """``check`` on a large failing design: one line a stage (reach and matching, then
+    the controllable dimension, ending at all the unmatched states placed), only on a
+    terminal and never with ``--quiet``; the links-per-second estimate is lowered so
+    that a small network counts as large."""
+    monkeypatch.setattr("netctl.commands._options.LINKS_PER_SECOND", 1.0)
+    f = tmp_path / "net.csv"
+    # a star out of a plus a chain: one input on a leaves b, c, d dilated
+    f.write_text("a,b\na,c\na,d\nd,e\ne,f\n")
+    argv = ["check", str(f), "--inputs", "a"]
+    code, err = _stderr(monkeypatch, argv, Tty())
+    assert code == 1
+    lines = [line.split("\r")[-1] for line in err.split("\n") if line]
+    assert lines[0] == "netctl: controllability: reach and matching 1/1"
+    assert lines[-1].startswith("netctl: controllability: controllable dimension ")
+    done, total = lines[-1].rsplit(" ", 1)[1].split("/")
+    assert done == total and int(total) > 0
+    _, err = _stderr(monkeypatch, [*argv, "--quiet"], Tty())
+    assert err == ""
+    _, err = _stderr(monkeypatch, argv, io.StringIO())
+    assert err == ""

@@ -374,6 +374,19 @@ def numeric_progress(args: argparse.Namespace, label: str, n_states: int,
     return stage_progress(label)
 
 
+def link_progress(args: argparse.Namespace, system: StructuredSystem, label: str) -> Any:
+    """``progress(stage, done, total)`` (:func:`netctl.report.progress.stage_progress`)
+    for an analysis linear in the links of ``system`` when it is expected to take
+    :data:`PROGRESS_MIN_SECONDS` or more, stderr is a terminal and ``--quiet`` is off;
+    else ``None``."""
+    if (system.n_links / LINKS_PER_SECOND < PROGRESS_MIN_SECONDS
+            or progress_enabled(args) is False):
+        return None
+    from netctl.report.progress import stage_progress
+
+    return stage_progress(label)
+
+
 def analysis_step(args: argparse.Namespace, system: StructuredSystem,
                   text: str) -> AbstractContextManager[None]:
     """:func:`long_step` for an analysis linear in the links of ``system``."""

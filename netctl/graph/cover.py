@@ -30,7 +30,7 @@ matching. Exact.
 References
 ----------
 .. [1] S. Hosoe, "Determination of generic dimensions of controllable subspaces and its
-   application", IEEE Trans. Automatic Control 25(6):1116-1119, 1980 (from memory).
+   application", IEEE Trans. Automatic Control 25(6):1192-1196, 1980 (from memory).
    doi:10.1109/TAC.1980.1102506
 .. [2] R. K. Ahuja, T. L. Magnanti, J. B. Orlin, *Network Flows*, Prentice Hall 1993,
    sections 9.4 (reduced costs, complementary slackness) and 9.8 (primal-dual
@@ -44,6 +44,8 @@ References
 """
 
 from __future__ import annotations
+
+from collections.abc import Callable
 
 import numpy as np
 from netctl._jit import njit
@@ -322,7 +324,9 @@ def _push_relabel(fptr, find, fw, tptr, tind, tw, rm, cm, srow, scol, free, psi,
 
 
 def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
-                     has_loop: np.ndarray) -> tuple[np.ndarray, int]:
+                     has_loop: np.ndarray, *,
+                     progress: Callable[[int, int], None] | None = None
+                     ) -> tuple[np.ndarray, int]:
     """Largest set of states covered by vertex-disjoint stems and cycles.
 
     Parameters
@@ -335,6 +339,9 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
         ``r`` plus the number of inputs.
     has_loop : ndarray of bool, shape (r,)
         Whether each state has a self-loop (the real edge ``(v, v)``).
+    progress : callable, optional
+        ``progress(done, total)`` after the maximum matching and after every phase:
+        ``total`` rows were left free by the matching, ``done`` of them are placed.
 
     Returns
     -------
@@ -385,6 +392,9 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     enext = np.empty(n_cols + 1, dt)
     act = np.empty(r + 1, dt)
     free = np.flatnonzero(rm < 0).astype(dt)
+    n_free0 = free.size
+    if progress is not None:
+        progress(0, n_free0)
     while free.size:
         _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext)
         # a maximum matching of the tight edges: every free row whose shortest
@@ -395,6 +405,8 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
             raise RuntimeError(f"stem-cycle cover: a phase matched none of {n_free} free "
                                f"rows (internal error; please report)")
         free = free[:n_free]
+        if progress is not None:
+            progress(n_free0 - n_free, n_free0)
     rm_out = rm.astype(np.int64)
     n_unc = int(np.count_nonzero((rm_out == np.arange(r)) & ~loops))
     return rm_out, n_unc

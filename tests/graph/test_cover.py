@@ -1,6 +1,6 @@
 """Largest stem-cycle cover (Hosoe's dimension) by primal-dual phases: cross-checks.
 
-Hosoe's theorem (S. Hosoe, IEEE Trans. Automatic Control 25(6):1116-1119, 1980, from
+Hosoe's theorem (S. Hosoe, IEEE Trans. Automatic Control 25(6):1192-1196, 1980, from
 memory): the generic dimension of the controllable subspace is the largest number of
 input-accessible states covered by disjoint stems and cycles. Checked against (a) the
 generic rank of the controllability matrix ``[B, AB, ..., A^{n-1} B]`` at random weights
