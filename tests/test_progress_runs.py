@@ -77,7 +77,8 @@ def test_check_shows_the_dimension_phases_on_a_terminal(monkeypatch, tmp_path):
     assert code == 1
     lines = [line.split("\r")[-1] for line in err.split("\n") if line]
     assert lines[0] == "netctl: controllability: reach and matching 1/1"
-    assert lines[-1].startswith("netctl: controllability: controllable dimension ")
+    assert lines[-1].startswith("netctl: controllability: controllable dimension "
+                                "(--no-dimension skips it) ")
     done, total = lines[-1].rsplit(" ", 1)[1].split("/")
     assert done == total and int(total) > 0
     _, err = _stderr(monkeypatch, [*argv, "--quiet"], Tty())
