@@ -26,12 +26,7 @@ from netctl.graph.components import (
     reachable_from,
     strongly_connected_components,
 )
-from netctl.graph.matching import (
-    extend_matching,
-    index_dtype,
-    matching_work,
-    transpose_index,
-)
+from netctl.graph.matching import index_dtype, matching_work, transpose_index
 
 __all__ = ["Structure", "structure_of", "completion", "Completion", "stack_AB",
            "unreached_sources", "accessible_states", "union_sorted", "site_preference",
@@ -294,7 +289,7 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
 
     ``alpha`` is found by giving every unreached source component an extra column
     adjacent to its states and extending the maximum matching with as many extra columns
-    as possible (:func:`netctl.graph.matching.extend_matching`). Components that already
+    as possible (:func:`netctl.graph.extra_columns.extend_matching`). Components that already
     hold an unmatched state start with their extra column matched to it (states with no
     in-link always do); only the others are searched for, so the usual case costs nothing
     beyond the first matching. The unreached source components come from
@@ -376,6 +371,10 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     x_match[fr_comp[keep][::-1]] = free_rows[keep][::-1]
     del comp_of, fr_comp, keep
     if np.any(x_match == -1):
+        # imported here: only a component holding no free state needs the search (a
+        # small network's run usually has none and loads one module less)
+        from netctl.graph.extra_columns import extend_matching
+
         # row_match and col_match are ours (fresh from the matching): extend in place;
         # rows matched to an extra column are then marked unmatched again
         row_match[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
