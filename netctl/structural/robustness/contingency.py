@@ -1,7 +1,9 @@
 """Every single link (or state) lost in turn: :func:`contingency_sweep`.
 
 Computed from one maximum matching of ``A`` (and one of ``[A B]``) plus dominators of the
-input-reachability graph, not by one recomputation per element.
+input-reachability graph, not by one recomputation per element: what a state's loss does
+to the matching is read from that matching's alternating structure
+(:func:`matching_loss_after_node_removal`).
 
 Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
 """
@@ -21,9 +23,9 @@ from netctl.structural.robustness._common import LossOutcomes, _check_elements, 
 from netctl.structural.roles import (
     LINK_ROLES,
     NODE_ROLES,
+    MatchingFacts,
     edge_classes,
     matching_facts,
-    matching_loss_after_node_removal,
     node_role_codes,
 )
 from netctl.system import StructuredSystem
@@ -177,6 +179,121 @@ def _bridges(A: sp.csr_array, r: _Reach) -> np.ndarray:
     other = live & ~is_idom & ~dom_x
     n_other = np.bincount(v[other], minlength=n)
     return is_idom & (n_other[v] == 0)
+
+
+# ---------------------------------------------------------------------- node losses
+@njit(cache=True, nogil=True)
+def _reach_queries(indptr, indices, scc, topo, sources, targets, out):  # pragma: no cover
+    """out[q] = targets[q] reachable from sources[q] (pruned by topological position)."""
+    n = indptr.size - 1
+    stamp = np.zeros(n, np.int64)
+    queue = np.empty(n, np.int64)
+    for q in range(sources.size):
+        s = sources[q]
+        t = targets[q]
+        if scc[s] == scc[t]:
+            out[q] = True
+            continue
+        limit = topo[scc[t]]
+        if topo[scc[s]] > limit:
+            out[q] = False
+            continue
+        mark = q + 1
+        stamp[s] = mark
+        queue[0] = s
+        head = 0
+        tail = 1
+        found = False
+        while head < tail and not found:
+            u = queue[head]
+            head += 1
+            for k in range(indptr[u], indptr[u + 1]):
+                w = indices[k]
+                if w == t or scc[w] == scc[t]:
+                    found = True
+                    break
+                if stamp[w] != mark and topo[scc[w]] < limit:
+                    stamp[w] = mark
+                    queue[tail] = w
+                    tail += 1
+        out[q] = found
+
+
+@njit(cache=True, nogil=True)
+def _topo_of_components(indptr, indices, scc, k):  # pragma: no cover - compiled
+    """Topological position of every component of the condensation (Kahn)."""
+    n = indptr.size - 1
+    indeg = np.zeros(k, np.int64)
+    cnt = np.zeros(k + 1, np.int64)
+    for u in range(n):
+        for e in range(indptr[u], indptr[u + 1]):
+            a = scc[u]
+            b = scc[indices[e]]
+            if a != b:
+                indeg[b] += 1
+                cnt[a + 1] += 1
+    for a in range(k):
+        cnt[a + 1] += cnt[a]
+    fill = cnt[:-1].copy()
+    adj = np.empty(cnt[k], np.int64)
+    for u in range(n):
+        for e in range(indptr[u], indptr[u + 1]):
+            a = scc[u]
+            b = scc[indices[e]]
+            if a != b:
+                adj[fill[a]] = b
+                fill[a] += 1
+    topo = np.empty(k, np.int64)
+    queue = np.empty(k, np.int64)
+    tail = 0
+    for a in range(k):
+        if indeg[a] == 0:
+            queue[tail] = a
+            tail += 1
+    head = 0
+    while head < tail:
+        a = queue[head]
+        topo[a] = head
+        head += 1
+        for e in range(cnt[a], cnt[a + 1]):
+            b = adj[e]
+            indeg[b] -= 1
+            if indeg[b] == 0:
+                queue[tail] = b
+                tail += 1
+    return topo
+
+
+def matching_loss_after_node_removal(f: MatchingFacts, nodes: np.ndarray) -> np.ndarray:
+    """How much the maximum matching shrinks (0, 1 or 2) when row ``v`` and column ``v``
+    are both deleted, for each ``v`` in ``nodes`` (rows and columns share the first
+    indices, as for ``A`` or ``[A B]``).
+
+    Exact. Row ``v`` free in some maximum matching and column ``v`` free in some (they
+    can be freed at once, by the Dulmage–Mendelsohn structure): 0. Exactly one of them:
+    1. Neither: 1 if ``v`` is matched to itself, or if the row matched to column ``v``
+    reaches row ``v`` in the alternating graph (an augmenting path then repairs one of the
+    two lost edges); else 2. The reachability questions are answered by searches pruned
+    to the components between the two ends (worst case linear each).
+    """
+    nodes = np.asarray(nodes, np.int64)
+    rf = f.rows_free[nodes]
+    cf = f.cols_free[nodes]
+    loss = 2 - rf.astype(np.int64) - cf.astype(np.int64)
+    hard = np.flatnonzero(loss == 2)
+    if hard.size:
+        v = nodes[hard]
+        self_matched = f.row_match[v] == v
+        loss[hard[self_matched]] = 1
+        q = hard[~self_matched]
+        if q.size:
+            topo = _topo_of_components(f.h_indptr, f.h_indices, f.h_scc, np.int64(f.h_n_scc))
+            srcs = f.col_match[nodes[q]]
+            out = np.zeros(q.size, np.bool_)
+            _reach_queries(f.h_indptr, f.h_indices, f.h_scc, topo,
+                           np.ascontiguousarray(srcs), np.ascontiguousarray(nodes[q]), out)
+            loss[q[out]] = 1
+    return loss
 
 
 # ---------------------------------------------------------------------- single losses
@@ -344,7 +461,7 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
       state's loss deletes its row and column of the bipartite graph; whether ``|M*|``
       drops by 0, 1 or 2 follows from the alternating reachability of that row and
       column and, in the remaining case, from one pruned search in the alternating graph
-      (:func:`~netctl.structural.roles.matching_loss_after_node_removal`).
+      (:func:`matching_loss_after_node_removal`).
     * The design ``(A, B)`` (Lin's theorem [2]_): the rank condition fails after a link
       loss iff the link is in every maximum matching of ``[A B]`` (critical in the
       ``[A B]`` sense), and after a state loss by the same row-and-column rule on
