@@ -98,7 +98,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
     elements: list[str] = []
     drop_inputs: set[int] = set()
     if args.remove_elements:
-        from netctl.structural.robustness.elements import element_effects
+        from netctl.structural.robustness.outages import element_effects
 
         eff = element_effects(system)
         elements = read_state_list(args.remove_elements)

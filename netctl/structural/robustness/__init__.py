@@ -17,12 +17,23 @@
 Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
 """
 
+from typing import TYPE_CHECKING
+
+from netctl._lazy import lazy_names
 from netctl.structural.robustness._common import ELEMENTS
 from netctl.structural.robustness.attack import ATTACK_STRATEGIES, AttackCurve, attack_curve
 from netctl.structural.robustness.contingency import ContingencySweep, contingency_sweep
-from netctl.structural.robustness.elements import ElementSweep, element_effects, element_sweep
 from netctl.structural.robustness.sampled import SampledLosses, sampled_losses
 from netctl.structural.robustness.whatif import WhatIf, apply_change, what_if
+
+if TYPE_CHECKING:
+    from netctl.structural.robustness.elements import ElementSweep, element_sweep
+    from netctl.structural.robustness.outages import element_effects
+
+#: the grid-element analyses, imported from their modules on first access (PEP 562): they
+#: serve grid files only, so a sweep or what-if on any other network does not load them
+_HOME: dict[str, str] = {"ElementSweep": "elements", "element_sweep": "elements",
+                         "element_effects": "outages"}
 
 __all__ = [
     "ATTACK_STRATEGIES",
@@ -40,3 +51,5 @@ __all__ = [
     "sampled_losses",
     "what_if",
 ]
+
+__getattr__, __dir__ = lazy_names(__name__, _HOME, globals(), __all__)

@@ -27,10 +27,10 @@ from netctl.graph.matching import maximum_matching
 from netctl.records import ELEMENT_KINDS
 from netctl.structural._engine import stack_AB
 from netctl.structural.robustness._rematch import matching_sizes_after
-from netctl.structural.robustness.elements import (
+from netctl.structural.robustness.elements import _reached
+from netctl.structural.robustness.outages import (
     _concat_ragged,
     _ragged,
-    _reached,
     element_effects,
     state_nodes,
 )
