@@ -15,7 +15,7 @@ from __future__ import annotations
 
 import os
 
-from netctl.io.system_spec import _check_keys, _Doc, _read_stations_table, _SECTIONS
+from netctl.io._spec_parts import _SECTIONS, _check_keys, _Doc, _read_stations_table
 from netctl.stations import Station, make_stations
 from netctl.system import StructuredSystem
 

@@ -11,8 +11,6 @@ verb for a ``.toml`` file. Orientation: a coupling ``[u, v]`` is the edge ``u ->
 
 from __future__ import annotations
 
-import difflib
-import math
 import os
 import warnings
 from collections.abc import Mapping
@@ -24,15 +22,18 @@ import numpy as np
 
 from netctl._csr import Pattern, coo_pattern
 from netctl.errors import MissingFileError
-from netctl.io._spec_parts import (  # noqa: F401  (re-exported for io.stations)
-    OUTSIDE_ENV,
+from netctl.io._spec_parts import (
+    _SECTIONS,
+    STATE_ATTRIBUTES,
     _check_keys,
     _confine,
     _Doc,
-    _name_list,
-    _node_table,
-    _number,
+    _read_links,
+    _read_signals,
     _read_stations_table,
+    _read_states,
+    _read_subsystems,
+    _read_ties,
 )
 from netctl.io.system_writer import INLINE_LINKS, _MODEL_NAMES, write_system  # noqa: F401
 from netctl.records import TIE_KINDS
@@ -42,39 +43,13 @@ from netctl.system import StructuredSystem
 __all__ = ["SystemSpec", "read_spec", "read_system", "write_system", "INLINE_LINKS", "TIE_KINDS",
            "STATE_ATTRIBUTES", "TERMS", "declared_terms"]
 
-#: Kinds of tie between subsystems: a ``state`` tie is a link from a state of one
-#: subsystem to a state of another; a ``signal`` tie feeds an output of one subsystem
-#: into an input of another (the input is then no longer external).
-
-#: State attributes with a meaning (and a type check); any other scalar attribute is
-#: kept in the node table as it is.
-STATE_ATTRIBUTES: dict[str, str] = {
-    "x": "number (map coordinate)",
-    "y": "number (map coordinate)",
-    "actuator": "true/false: may host an actuator",
-    "actuator_cost": "number >= 0",
-    "sensor": "true/false: may host a sensor",
-    "sensor_cost": "number >= 0",
-    "self": "true/false or a number: self-dynamics (damping, decay) and its weight",
-    "disturbance": "true/false: the node is a disturbance (not a state); its couplings "
-                   "are how it acts on states",
-}
-
-#: attribute names the reader checks or acts on (any other is kept as it is)
-_MEANING = frozenset(STATE_ATTRIBUTES) | {"subsystem"}
-_PLAIN = frozenset((str, bool, int, float))  # value types kept as they are
-
-_SECTIONS = ("system", "states", "couplings", "inputs", "outputs", "disturbances", "regulated",
-             "stations", "subsystems", "ties", "elements")
+#: ``[system]`` and ``[couplings]`` keys (the other tables are checked in
+#: :mod:`netctl.io._spec_parts`)
 _SYSTEM_KEYS = ("name", "description", "weighted", "terms", "model")
+_COUPLING_KEYS = ("file", "links", "undirected")
 
 #: ``[system] terms``: the words summaries use (closed set; see docs/FORMATS.md)
 TERMS: tuple[str, ...] = ("engineering", "network")
-
-#: Models a description may record for its states (the names of
-#: :data:`netctl.models.MODELS`; io does not import the models layer).
-_COUPLING_KEYS = ("file", "links", "undirected")
-_TIE_KEYS = ("from", "to", "kind", "weight")
 
 
 @dataclass(frozen=True)
@@ -234,7 +209,34 @@ def declared_terms(path: str | os.PathLike[str]) -> str:
     return _terms_of(doc, system_t if isinstance(system_t, dict) else {})
 
 
-
+def _node_table(attrs: dict[str, dict[str, Any]], names: list[str]) -> dict[str, np.ndarray]:
+    """The node table: one column per attribute the states carry (coordinates and costs
+    as floats, NaN where not given; actuator/sensor as booleans, True where not said;
+    any other as the objects given, None where absent)."""
+    n = len(names)
+    if not any(attrs.values()):
+        return {}
+    index = {s: i for i, s in enumerate(names)}
+    keys: list[str] = []
+    for row in attrs.values():
+        keys.extend(k for k in row if k not in keys)
+    rows = list(attrs.values())
+    at = np.fromiter((index[s] for s in attrs), np.int64, len(rows))
+    table: dict[str, np.ndarray] = {}
+    for k in keys:  # column by column: one list of the rows' values, one array store
+        if k in ("x", "y", "actuator_cost", "sensor_cost"):
+            col = np.full(n, np.nan)
+            col[at] = np.array([row.get(k, np.nan) for row in rows], float)
+        elif k in ("actuator", "sensor"):
+            col = np.ones(n, bool)  # not said: allowed
+            col[at] = np.array([row.get(k, True) for row in rows], bool)
+        else:
+            col = np.empty(n, dtype=object)
+            vals = np.empty(len(rows), dtype=object)
+            vals[:] = [row.get(k) for row in rows]  # the objects as they are (None: absent)
+            col[at] = vals
+        table[k] = col
+    return table
 
 
 def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSpec:
@@ -310,70 +312,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         return i
 
     # ---- states and their attributes
-    states_t = data.get("states", {})
-    attrs: dict[str, dict[str, Any]] = {}
-    self_w: dict[str, float] = {}
-    any_self_weight = False
-    kinds: list[str] = []  # nodes marked disturbance = true, in file order
-    for s, a in states_t.items():
-        if not isinstance(a, dict):
-            raise doc.error(f"state {s!r} must be a table of attributes such as "
-                            f"{{ x = 1.0, actuator = true }} (or {{}}), found {a!r}.", s)
-        state_id(s)
-        row: dict[str, Any] = {}
-        special = _MEANING.intersection(a)
-        if all(type(v) in _PLAIN and (type(v) is not float or math.isfinite(v))
-               for v in a.values()):  # plain values: only the meaningful keys need checks
-            row = dict(a)  # same key order; checked keys below are set in place
-            if not special:
-                attrs[s] = row
-                continue
-            for drop in ("self", "disturbance"):  # not node-table attributes
-                row.pop(drop, None)
-            items = [(k, a[k]) for k in a if k in special]
-        else:
-            items = list(a.items())
-        for k, v in items:
-            if k not in _MEANING and (isinstance(v, (str, bool)) or _number(v)):
-                row[k] = v  # an attribute without a meaning, kept as it is
-                continue
-            if k in ("x", "y", "actuator_cost", "sensor_cost"):
-                if not _number(v) or (k.endswith("cost") and v < 0):
-                    raise doc.error(f"attribute {k!r} of state {s!r} must be a "
-                                    f"{STATE_ATTRIBUTES[k]}, found {v!r}.", s, k)
-                row[k] = float(v)
-            elif k in ("actuator", "sensor"):
-                if not isinstance(v, bool):
-                    raise doc.error(f"attribute {k!r} of state {s!r} must be true or false, "
-                                    f"found {v!r}.", s, k)
-                row[k] = v
-            elif k == "self":
-                if isinstance(v, bool):
-                    if v:
-                        self_w[s] = 1.0
-                elif _number(v) and v != 0:
-                    self_w[s] = float(v)
-                    any_self_weight = True
-                else:
-                    raise doc.error(f"attribute 'self' of state {s!r} must be true, false "
-                                    f"or a nonzero finite number (its weight), found {v!r}.",
-                                    s, k)
-            elif k == "disturbance":
-                if not isinstance(v, bool):
-                    raise doc.error(f"attribute 'disturbance' of {s!r} must be true or false, "
-                                    f"found {v!r}.", s, k)
-                if v:
-                    kinds.append(s)
-            elif k == "subsystem":
-                raise doc.error(f"state {s!r}: put states into subsystems in the "
-                                "[subsystems] section, not with a 'subsystem' attribute.", s, k)
-            elif isinstance(v, (str, bool)) or _number(v):
-                row[k] = v
-            else:
-                raise doc.error(f"attribute {k!r} of state {s!r} has the type "
-                                f"{type(v).__name__} ({v!r}); node attributes must be "
-                                "numbers, strings or true/false.", s, k)
-        attrs[s] = row
+    attrs, self_w, any_self_weight, kinds = _read_states(doc, data.get("states", {}), state_id)
 
     # ---- couplings
     coup = data.get("couplings", {})
@@ -402,80 +341,18 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         src_parts.append(remap[e.sources])
         dst_parts.append(remap[e.targets])
         w_parts.append(e.weights)
-    links = coup.get("links", [])
-    if not isinstance(links, list):
-        raise doc.error("[couplings] links must be a list such as [[\"a\", \"b\"], "
-                        "[\"b\", \"c\", 0.5]].", "links")
-    if links:
-        ls, ld, lw = [], [], []
-        some_w = False
-        for item in links:
-            ok = (isinstance(item, list) and len(item) in (2, 3)
-                  and all(isinstance(x, str) for x in item[:2])
-                  and (len(item) == 2 or _number(item[2])))
-            if not ok:
-                raise doc.error(f"each coupling must be [\"source\", \"target\"] or "
-                                f"[\"source\", \"target\", weight], found {item!r}.",
-                                *(x for x in (item if isinstance(item, list) else [])
-                                  if isinstance(x, str)))
-            ls.append(state_id(item[0]))
-            ld.append(state_id(item[1]))
-            some_w |= len(item) == 3
-            lw.append(float(item[2]) if len(item) == 3 else math.nan)
-        src_parts.append(np.array(ls, np.int64))
-        dst_parts.append(np.array(ld, np.int64))
-        wa = np.array(lw)
-        if some_w and np.isnan(wa).any():
-            k = int(np.isnan(wa).sum())
-            warnings.warn(f"{path}: {k} coupling(s) without a weight were given the weight "
-                          "1.0 because other couplings have weights.", stacklevel=2)
-        w_parts.append(np.where(np.isnan(wa), 1.0, wa) if some_w else None)
+
+    links = _read_links(doc, coup.get("links", []), state_id, path)
+    if links is not None:
+        src_parts.append(links[0])
+        dst_parts.append(links[1])
+        w_parts.append(links[2])
 
     # ---- subsystems
-    subs_t = data.get("subsystems", {})
-    subsystems: dict[str, tuple[str, ...]] = {}
-    owner: dict[str, str] = {}
-    for sub, val in subs_t.items():
-        if isinstance(val, dict):
-            _check_keys(doc, val, ("states",), f"subsystem {sub!r}", sub)
-            val = val.get("states", [])
-        members = _name_list(doc, val, f"subsystem {sub!r}", sub)
-        for s in members:
-            if s in owner:
-                raise doc.error(f"state {s!r} is in two subsystems ({owner[s]!r} and "
-                                f"{sub!r}); each state belongs to at most one.", s)
-            owner[s] = sub
-            state_id(s)
-        subsystems[sub] = tuple(members)
+    subsystems, owner = _read_subsystems(doc, data.get("subsystems", {}), state_id)
 
     n_before_io = len(names)
-
-    def known_states(vals: list[str], where: str, key: str) -> list[str]:
-        for s in vals:
-            if s not in index:
-                close = difflib.get_close_matches(s, names, n=2)
-                hint = f" Did you mean {', '.join(map(repr, close))}?" if close else ""
-                raise doc.error(f"{where} names {s!r}, which is not a state.{hint} Declare "
-                                "it under [states] or in a coupling.", key, s)
-        return vals
-
-    inputs: dict[str, tuple[str, ...]] = {}
-    for u, v in data.get("inputs", {}).items():
-        inputs[u] = tuple(known_states(_name_list(doc, v, f"input {u!r}", u),
-                                       f"input {u!r}", u))
-    outputs: dict[str, tuple[str, ...]] = {}
-    for y, v in data.get("outputs", {}).items():
-        outputs[y] = tuple(known_states(_name_list(doc, v, f"output {y!r}", y),
-                                        f"output {y!r}", y))
-    signals: dict[str, dict[str, tuple[str, ...]]] = {}
-    for sec in ("disturbances", "regulated"):
-        signals[sec] = {}
-        for z, v in data.get(sec, {}).items():
-            if z in index:
-                raise doc.error(f"{sec} {z!r} has the name of a state; give it its own name "
-                                "(or mark the node with disturbance = true).", z)
-            signals[sec][z] = tuple(known_states(_name_list(doc, v, f"{sec} {z!r}", z),
-                                                 f"{sec} {z!r}", z))
+    inputs, outputs, signals = _read_signals(doc, data, index, names)
     for s in kinds:
         if s in owner:
             raise doc.error(f"{s!r} is a disturbance but is listed in subsystem {owner[s]!r}; "
@@ -483,70 +360,12 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     assert len(names) == n_before_io
 
     # ---- ties
-    ties_t = data.get("ties", [])
-    if not isinstance(ties_t, list) or not all(isinstance(t, dict) for t in ties_t):
-        raise doc.error("ties are written as [[ties]] tables with from = [\"subsystem\", "
-                        "\"name\"] and to = [\"subsystem\", \"name\"].", "ties")
-    ties: list[tuple[str, str, str, str, str]] = []
-    tie_w: list[float | None] = []
-    consumed: set[str] = set()
-    ts, td, tw = [], [], []
-    for t in ties_t:
-        _check_keys(doc, t, _TIE_KEYS, "[[ties]]", "ties")
-        ends = []
-        for key in ("from", "to"):
-            v = t.get(key)
-            if not (isinstance(v, list) and len(v) == 2 and all(isinstance(x, str) for x in v)):
-                raise doc.error(f"a tie's {key!r} must be [\"subsystem\", \"name\"], found "
-                                f"{v!r}.", key)
-            if v[0] not in subsystems:
-                raise doc.error(f"a tie names the subsystem {v[0]!r}, which is not declared "
-                                f"under [subsystems] (declared: "
-                                f"{', '.join(map(repr, subsystems)) or 'none'}).", v[0])
-            ends.append((v[0], v[1]))
-        kind = t.get("kind", "state")
-        if kind not in TIE_KINDS:
-            raise doc.error(f"a tie's kind must be one of {', '.join(TIE_KINDS)}, found "
-                            f"{kind!r}.", "kind")
-        (fs, fn), (us, un) = ends
-        if fs == us:
-            raise doc.error(f"the tie {fs}.{fn} -> {us}.{un} stays inside subsystem {fs!r}; "
-                            "ties join two different subsystems (put links inside a "
-                            "subsystem under [couplings]).", fn)
-        weight = t.get("weight")
-        if weight is not None and (not _number(weight) or weight == 0):
-            raise doc.error(f"a tie's weight must be a nonzero finite number, found "
-                            f"{weight!r}.", "weight")
-        if kind == "state":
-            for s, sub in ((fn, fs), (un, us)):
-                if owner.get(s) != sub:
-                    raise doc.error(f"the tie names state {s!r} of subsystem {sub!r}, but "
-                                    f"{s!r} is not one of its states.", s)
-            ts.append([index[fn]])
-            td.append([index[un]])
-        else:
-            if fn not in outputs or any(owner.get(s) != fs for s in outputs[fn]):
-                raise doc.error(f"a signal tie starts at {fs}.{fn}: {fn!r} must be an "
-                                f"output under [outputs] reading only states of {fs!r}.", fn)
-            if un not in inputs or any(owner.get(s) != us for s in inputs[un]):
-                raise doc.error(f"a signal tie ends at {us}.{un}: {un!r} must be an input "
-                                f"under [inputs] acting only on states of {us!r}.", un)
-            if un in consumed:
-                raise doc.error(f"the input {un!r} is fed by two signal ties; give each "
-                                "input at most one.", un)
-            consumed.add(un)
-            a = [index[s] for s in outputs[fn]]
-            b = [index[s] for s in inputs[un]]
-            ts.append(np.repeat(a, len(b)).tolist())
-            td.append(np.tile(b, len(a)).tolist())
-        tw.append([1.0 if weight is None else float(weight)] * len(ts[-1]))
-        ties.append((fs, fn, us, un, kind))
-        tie_w.append(None if weight is None else float(weight))
-    if ts:
-        src_parts.append(np.array(sum(ts, []), np.int64))
-        dst_parts.append(np.array(sum(td, []), np.int64))
-        w_parts.append(np.array(sum(tw, []), np.float64)
-                       if any(w is not None for w in tie_w) else None)
+    ties, tie_w, consumed, tie_links = _read_ties(doc, data.get("ties", []), subsystems, owner,
+                                                  index, inputs, outputs)
+    if tie_links is not None:
+        src_parts.append(tie_links[0])
+        dst_parts.append(tie_links[1])
+        w_parts.append(tie_links[2])
 
     # ---- control stations
     stations = _read_stations_table(doc, data.get("stations", {}),
