@@ -91,6 +91,13 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
         system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
     add = _checked(system, args.add_links, "--add-links", new_ok=True)
     rem = _checked(system, args.remove_links, "--remove-links", new_ok=False)
+    if system.elements is not None and (add or rem):
+        # a grid changes by whole elements: no half line, no term of the model itself
+        from netctl.structural.robustness.gridlinks import grid_link_problem
+
+        problem = grid_link_problem(system, add=add, remove=rem)
+        if problem is not None:
+            raise UsageError(problem)
     nodes = None
     if args.remove_nodes:
         nodes = [system.state_names[i] for i in
