@@ -131,3 +131,18 @@ def test_networks_without_elements_change_link_by_link(capsys):
                  "pipe_south->substation_mill", "--json"]) in (0, 1)
     d = json.loads(capsys.readouterr().out)
     assert d["change"]["removed_links"] == [["pipe_south", "substation_mill"]]
+
+
+def test_sweep_of_single_links_on_a_grid_says_they_are_not_equipment(capsys):
+    """``sweep --elements links`` (or nodes) on a grid still answers what was asked but
+    warns that a single link is half a line or a term of the model; the default element
+    sweep and a network without elements do not warn (common practice, no source)."""
+    grid = "networks/island_grid.m"
+    for kind in ("links", "nodes"):
+        assert main(["sweep", grid, "--inputs", "1:vel", "--elements", kind]) in (0, 1)
+        err = capsys.readouterr().err
+        assert f"--elements {kind} on a grid" in err and "--elements grid" in err
+    assert main(["sweep", grid, "--inputs", "1:vel"]) in (0, 1)
+    assert "warning" not in capsys.readouterr().err
+    assert main(["sweep", "networks/heating_loop.csv", "--elements", "links"]) in (0, 1)
+    assert "on a grid" not in capsys.readouterr().err

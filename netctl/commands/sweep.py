@@ -91,6 +91,15 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
     elements = args.elements or ("grid" if system.elements is not None else "both")
     if elements == "grid":
         return _grid_sweep(args, system)
+    if system.elements is not None:
+        import warnings
+
+        # asked for on purpose, but not what a planner's N-1 means
+        warnings.warn(f"--elements {elements} on a grid loses single links and states of "
+                      "the model: one direction of a line (a line is a link each way) and "
+                      "the terms inside a bus (angle-frequency, damping) are not equipment; "
+                      "--elements grid (the default here) loses whole branches, buses and "
+                      "generators.", stacklevel=2)
     kinds = ["links", "nodes"] if elements == "both" else [elements]
     result: dict[str, Any] = {"analysis": "sweep", "file": args.file, "k": args.k,
                               "model": system.model}
