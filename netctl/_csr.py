@@ -23,9 +23,9 @@ import numpy as np
 if TYPE_CHECKING:
     import scipy.sparse as sp
 
-__all__ = ["Pattern", "SMALL_ENTRIES", "SparseView", "coo_pattern", "diagonal_mask",
-           "empty_pattern", "hstack_patterns", "is_sparse", "n_diagonal", "take",
-           "transpose_pattern"]
+__all__ = ["Pattern", "SMALL_ENTRIES", "SparseView", "coo_pattern", "diagonal", "diagonal_mask",
+           "empty_pattern", "hstack_patterns", "is_sparse", "n_diagonal", "padded", "take",
+           "to_dense", "transpose_pattern", "with_full_diagonal", "without_diagonal"]
 
 #: Up to this many entries, patterns are assembled and transposed with NumPy (no scipy
 #: import); above it, with scipy's compiled routines (common practice, no source: NumPy's
@@ -186,9 +186,70 @@ def diagonal_mask(p: Pattern) -> np.ndarray:
     return mask
 
 
+def diagonal(p: Pattern) -> np.ndarray:
+    """The diagonal's values, 0.0 where none is stored (scipy's ``M.diagonal()``)."""
+    rows = np.repeat(np.arange(p.shape[0], dtype=np.int64), np.diff(p.indptr))
+    on = p.indices == rows
+    out = np.zeros(min(p.shape), np.float64)
+    out[rows[on]] = p.data[on]
+    return out
+
+
+def to_dense(p: Pattern) -> np.ndarray:
+    """The matrix as a dense float64 array (scipy's ``M.toarray()``)."""
+    out = np.zeros(p.shape, np.float64)
+    out[np.repeat(np.arange(p.shape[0], dtype=np.int64), np.diff(p.indptr)), p.indices] = p.data
+    return out
+
+
 def n_diagonal(p: Pattern) -> int:
     """Number of stored entries on the diagonal."""
     return int(np.count_nonzero(diagonal_mask(p)))
+
+
+def padded(p: Pattern, shape: tuple[int, int]) -> Pattern:
+    """The pattern grown to ``shape`` with empty rows and columns after its own (scipy's
+    ``vstack`` / ``hstack`` with an empty block), read-only; shares ``data`` and
+    ``indices``."""
+    rows, cols = int(shape[0]), int(shape[1])
+    if rows < p.shape[0] or cols < p.shape[1]:
+        raise ValueError(f"padded: {shape} is smaller than {p.shape}")
+    indptr = p.indptr
+    if rows > p.shape[0]:
+        indptr = np.concatenate([indptr, np.full(rows - p.shape[0], indptr[-1], np.int64)])
+    return Pattern(p.data, p.indices, indptr, (rows, cols)).frozen()
+
+
+def without_diagonal(p: Pattern) -> Pattern:
+    """The pattern with its diagonal entries removed, canonical and read-only (scipy's
+    ``A - dia(A.diagonal())`` with the cancelled entries eliminated). One linear pass,
+    any size."""
+    rows = np.repeat(np.arange(p.shape[0], dtype=np.int64), np.diff(p.indptr))
+    keep = p.indices != rows
+    if keep.all():
+        return p
+    indptr = np.zeros(p.shape[0] + 1, np.int64)
+    np.cumsum(np.bincount(rows[keep], minlength=p.shape[0]), out=indptr[1:])
+    return Pattern(p.data[keep], p.indices[keep], indptr, p.shape).frozen()
+
+
+def with_full_diagonal(p: Pattern, value: float = 1.0) -> Pattern:
+    """The square pattern with ``value`` on every diagonal entry it does not store
+    (stored ones kept), canonical and read-only (scipy's ``A + dia(add)``). One linear
+    pass, any size."""
+    n = p.shape[0]
+    rows = np.repeat(np.arange(n, dtype=np.int64), np.diff(p.indptr))
+    has = np.zeros(n, bool)
+    has[rows[p.indices == rows]] = True
+    miss = np.flatnonzero(~has)
+    if miss.size == 0:
+        return p
+    below = np.bincount(rows[p.indices < rows], minlength=n)  # entries left of the diagonal
+    at = p.indptr[miss] + below[miss]  # insert before these (sorted) positions
+    added = np.zeros(n + 1, np.int64)
+    added[miss + 1] = 1
+    return Pattern(np.insert(p.data, at, value), np.insert(p.indices, at, miss),
+                   p.indptr + np.cumsum(added), p.shape).frozen()
 
 
 def take(p: Pattern, rows: np.ndarray | None = None, cols: np.ndarray | None = None

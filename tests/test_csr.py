@@ -99,3 +99,38 @@ def test_take_and_hstack_match_scipy_slicing(path):
         h = csr.hstack_patterns(p, csr.Pattern.of_scipy(sp.csr_array(D2)))
         assert np.array_equal(h.to_scipy().toarray(), np.hstack([D, D2]))
         assert h.indices.dtype == np.int64 and not h.indices.flags.writeable
+
+
+def _same(p, M):
+    """``p`` equals the canonical scipy matrix ``M`` array by array."""
+    M = sp.csr_array(M)
+    M.sum_duplicates()
+    M.eliminate_zeros()
+    M.sort_indices()
+    assert p.shape == M.shape
+    assert np.array_equal(p.indptr, M.indptr) and np.array_equal(p.indices, M.indices)
+    assert np.array_equal(p.data, M.data)
+
+
+def test_diagonal_edits_dense_form_and_padding_match_scipy():
+    """The helpers the small-file paths of strong, whatif and convert use, against the
+    scipy expressions they replace (``A - dia(A.diagonal())``, ``A + dia(add)``,
+    ``A.diagonal()``, ``A.toarray()``, ``vstack`` / ``hstack`` with an empty block)."""
+    rng = np.random.default_rng(17)
+    for _ in range(300):
+        n = int(rng.integers(0, 9))
+        D = (rng.random((n, n)) < 0.35) * rng.choice([-2.0, 1.0, 3.5], (n, n))
+        M = sp.csr_array(D)
+        M.indices, M.indptr = M.indices.astype(np.int64), M.indptr.astype(np.int64)
+        p = csr.Pattern.of_scipy(M).frozen()
+        diag = M.diagonal()
+        _same(csr.without_diagonal(p), M - sp.dia_array((diag[None, :], [0]), shape=(n, n)))
+        add = np.where(diag == 0, 1.0, 0.0)
+        _same(csr.with_full_diagonal(p), M + sp.dia_array((add[None, :], [0]), shape=(n, n)))
+        assert np.array_equal(csr.diagonal(p), diag)
+        assert np.array_equal(csr.to_dense(p), M.toarray())
+        extra_r, extra_c = int(rng.integers(0, 3)), int(rng.integers(0, 3))
+        grown = csr.padded(p, (n + extra_r, n + extra_c))
+        _same(grown, sp.block_array([[M, sp.csr_array((n, extra_c))],
+                                     [sp.csr_array((extra_r, n)),
+                                      sp.csr_array((extra_r, extra_c))]]))
