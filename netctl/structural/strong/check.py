@@ -9,10 +9,9 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.errors import OptionError
 from netctl.structural.strong.forcing import (
@@ -28,6 +27,9 @@ from netctl.structural.strong.forcing import (
 )
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
 
 __all__ = [
     "StrongReport",
@@ -78,7 +80,7 @@ def forcing_closure(system: StructuredSystem, black: Any, *,
     """
     diagonal = _check_diagonal(diagonal)
     n = system.n_states
-    g = _graph(system.A, system.B)
+    g = _graph(system.pattern("A"), system.pattern("B"))
     idx = np.asarray(black, dtype=np.int64).reshape(-1)
     if idx.size and (idx.min() < 0 or idx.max() >= n):
         raise OptionError(f"black states must be indices 0..{n - 1}, found "
@@ -227,7 +229,7 @@ def strong_controllability(system: StructuredSystem, *,
     """
     diagonal = _prepare(system, diagonal)
     n = system.n_states
-    g = _graph(system.A, system.B)
+    g = _graph(system.pattern("A"), system.pattern("B"))
     b0 = np.zeros(n + g.m, bool)
     b0[n:] = True
     by_cond: dict[str, np.ndarray] = {}
@@ -318,7 +320,7 @@ def strong_witness(system: StructuredSystem, *,
     diagonal = _prepare(system, diagonal)
     n = system.n_states
     loops = _loops(system, diagonal)
-    g = _graph(system.A, system.B)
+    g = _graph(system.pattern("A"), system.pattern("B"))
     b0 = np.zeros(n + g.m, bool)
     b0[n:] = True
     for rule in _rules(loops, diagonal, g.m):
@@ -386,6 +388,8 @@ def _build_witness(system: StructuredSystem, g: _Graph, rule: _Rule, black: np.n
     diag[ci] = lam - sums[ci]
     dt = np.flatnonzero(diag_term[:n])
     diag[dt] = term_value(K[dt] - 1, dt)
+    import scipy.sparse as sp
+
     st = row < n
     A_rows = np.concatenate([row[col < n], np.arange(n)])
     A_cols = np.concatenate([col[col < n], np.arange(n)])

@@ -16,9 +16,9 @@ import warnings
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.sparse as sp
-from netctl._jit import njit
 
+from netctl._csr import Pattern, diagonal_mask
+from netctl._jit import njit
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
 
@@ -62,7 +62,7 @@ def _loops(system: StructuredSystem, diagonal: str) -> np.ndarray:
         return np.zeros(n, bool)
     if diagonal == "nonzero":
         return np.ones(n, bool)
-    return system.A.diagonal() != 0
+    return diagonal_mask(system.pattern("A"))
 
 
 def _rules(loops: np.ndarray, diagonal: str, n_extra: int) -> list[_Rule]:
@@ -119,8 +119,9 @@ def _in_adjacency(a_ptr, a_idx, b_ptr, b_idx, n, m):  # pragma: no cover - compi
     return ptr, idx
 
 
-def _graph(A: sp.csr_array, B: sp.csr_array | None) -> _Graph:
-    """Adjacency arrays from canonical CSR patterns (sorted, no duplicates), O(n + E)."""
+def _graph(A: Pattern, B: Pattern | None) -> _Graph:
+    """Adjacency arrays from canonical CSR patterns (sorted, no duplicates; a system's
+    stored :meth:`~netctl.system.StructuredSystem.pattern`), O(n + E)."""
     from netctl.graph import transpose_csr
 
     n = A.shape[0]
@@ -129,11 +130,7 @@ def _graph(A: sp.csr_array, B: sp.csr_array | None) -> _Graph:
         b_ptr = np.zeros(n + 1, np.int64)
         b_idx = np.zeros(0, np.int64)
     else:
-        B = sp.csr_array(B)
-        B.sum_duplicates()
         b_ptr, b_idx = B.indptr, B.indices
-    A = sp.csr_array(A)
-    A.sum_duplicates()
     in_ptr, in_idx = _in_adjacency(A.indptr, A.indices, b_ptr, b_idx, n, m)
     out_ptr, out_idx = transpose_csr(in_ptr, in_idx, n + m)
     return _Graph(n=n, m=m, out_ptr=out_ptr.astype(np.int64, copy=False),
@@ -417,7 +414,7 @@ def _prepare(system: StructuredSystem, diagonal: object) -> str:
                           "one with StructuredSystem.from_edges or netctl.io.read.")
     diagonal = _check_diagonal(diagonal)
     if diagonal == "zero" and system.n_self_loops:
-        loops = np.flatnonzero(system.A.diagonal() != 0)
+        loops = np.flatnonzero(diagonal_mask(system.pattern("A")))
         shown = ", ".join(system.state_names[i] for i in loops[:5])
         warnings.warn(f"diagonal='zero' treats the {loops.size} self-loop(s) in the pattern "
                       f"({shown}{', ...' if loops.size > 5 else ''}) as a_ii = 0; use "

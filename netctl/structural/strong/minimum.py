@@ -13,8 +13,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import empty_pattern, with_full_diagonal, without_diagonal
 from netctl.errors import OptionError
 from netctl.structural.strong.forcing import (
     DIAGONALS,
@@ -185,13 +185,12 @@ def _generic_bound(system: StructuredSystem, diagonal: str) -> int:
     from netctl.structural._engine import completion, structure_of
 
     n = system.n_states
-    A = system.A
+    A = system.pattern("A")
     if diagonal in ("zero", "free"):
-        A = sp.csr_array(A - sp.dia_array((A.diagonal()[None, :], [0]), shape=(n, n)))
-        A.eliminate_zeros()
+        A = without_diagonal(A)
     elif diagonal == "nonzero":
-        A = system.with_self_loops().A
-    comp = completion(A, sp.csr_array((n, 0)), structure_of(A))
+        A = with_full_diagonal(A)  # the pattern of system.with_self_loops()
+    comp = completion(A, empty_pattern((n, 0)), structure_of(A))
     return int(comp.states.size)
 
 
@@ -303,6 +302,7 @@ def _exact(g: _Graph, rules: list[_Rule], upper: np.ndarray, lower: int,
 def _fort_cover_bound(pool: np.ndarray, seconds: float) -> int:
     """Lower bound: the fewest states meeting every fort of ``pool`` (HiGHS; its dual
     bound when the time runs out)."""
+    import scipy.sparse as sp
     from scipy.optimize import Bounds, LinearConstraint, milp
 
     if pool.shape[0] == 0:
@@ -425,7 +425,7 @@ def minimum_strong_inputs(system: StructuredSystem, *, diagonal: str = "as-given
                           f"{time_limit!r}; 60 is usual (the exact search then reports the "
                           "best set found and a lower bound).")
     n = system.n_states
-    g = _graph(system.A, None)
+    g = _graph(system.pattern("A"), None)
     rules = _rules(_loops(system, diagonal), diagonal, 0)
     run = method
     if method == "auto":
