@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
+
 from netctl._jit import njit
 
 from netctl.errors import OptionError
@@ -41,7 +41,7 @@ Progress = Callable[[int, int], None]
 
 
 def _pattern(system: StructuredSystem) -> tuple[np.ndarray, np.ndarray, int]:
-    A = system.A
+    A = system.pattern("A")
     return (np.asarray(A.indptr, np.int64), np.asarray(A.indices, np.int64), system.n_states)
 
 
@@ -269,6 +269,7 @@ def minimum_driver_sets(system: StructuredSystem, *, limit: int = 20) -> list[tu
     """
     from itertools import combinations
 
+    import scipy.sparse as sp
     from scipy.sparse.csgraph import maximum_bipartite_matching
 
     n = system.n_states
@@ -364,7 +365,7 @@ def control_centrality(system: StructuredSystem, *, states: Any = None,
     >>> control_centrality(s).centrality.tolist()
     [2, 1, 1, 1, 1]
     """
-    A = sp.csr_array(system.A)
+    A = system.pattern("A")
     n = system.n_states
     pick = np.arange(n) if states is None else np.unique(np.asarray(states, np.int64))
     if pick.size and (pick.min() < 0 or pick.max() >= n):
@@ -399,6 +400,8 @@ def _control_centrality_by_assignments(system: StructuredSystem, *,
                                        states: Any = None) -> np.ndarray:
     """Reference: one minimum-cost assignment per state on the states it reaches
     (REFERENCES.md §1 construction); slow, for cross-checks and the benchmark."""
+    import scipy.sparse as sp
+
     A = system.A
     n = system.n_states
     At = A.T.tocsr()
