@@ -20,20 +20,31 @@ Orientation: edge ``u -> v`` iff ``A[v, u] != 0`` (see :mod:`netctl`).
 from typing import TYPE_CHECKING
 
 from netctl._lazy import lazy_names
-from netctl.structural.robustness._common import ELEMENTS
-from netctl.structural.robustness.attack import ATTACK_STRATEGIES, AttackCurve, attack_curve
-from netctl.structural.robustness.contingency import ContingencySweep, contingency_sweep
-from netctl.structural.robustness.sampled import SampledLosses, sampled_losses
-from netctl.structural.robustness.whatif import WhatIf, apply_change, what_if
 
 if TYPE_CHECKING:
+    from netctl.structural.robustness._common import ELEMENTS
+    from netctl.structural.robustness.attack import (
+        ATTACK_STRATEGIES,
+        AttackCurve,
+        attack_curve,
+    )
+    from netctl.structural.robustness.contingency import ContingencySweep, contingency_sweep
     from netctl.structural.robustness.elements import ElementSweep, element_sweep
     from netctl.structural.robustness.outages import element_effects
+    from netctl.structural.robustness.sampled import SampledLosses, sampled_losses
+    from netctl.structural.robustness.whatif import WhatIf, apply_change, what_if
 
-#: the grid-element analyses, imported from their modules on first access (PEP 562): they
-#: serve grid files only, so a sweep or what-if on any other network does not load them
-_HOME: dict[str, str] = {"ElementSweep": "elements", "element_sweep": "elements",
-                         "element_effects": "outages"}
+#: public name -> the module (under this package) that defines it; imported on first
+#: access (PEP 562): the grid-element analyses serve grid files only, and a what-if on a
+#: small file loads neither the sweeps nor scipy
+_HOME: dict[str, str] = {
+    "ELEMENTS": "_common", "ATTACK_STRATEGIES": "attack", "AttackCurve": "attack",
+    "attack_curve": "attack", "ContingencySweep": "contingency",
+    "contingency_sweep": "contingency", "ElementSweep": "elements",
+    "element_effects": "outages", "element_sweep": "elements",
+    "SampledLosses": "sampled", "sampled_losses": "sampled", "WhatIf": "whatif",
+    "apply_change": "whatif", "what_if": "whatif",
+}
 
 __all__ = [
     "ATTACK_STRATEGIES",
@@ -51,5 +62,6 @@ __all__ = [
     "sampled_losses",
     "what_if",
 ]
+
 
 __getattr__, __dir__ = lazy_names(__name__, _HOME, globals(), __all__)

@@ -8,8 +8,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import coo_pattern, padded, take
 from netctl.errors import InvalidSystemError, UnknownNameError
 from netctl.structural.controllability import ControllabilityReport, controllability
 from netctl.structural.inputs import minimum_inputs
@@ -182,13 +182,13 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
     s2 = np.concatenate([src[keep_link], add_src, loops])
     t2 = np.concatenate([tgt[keep_link], add_tgt, loops])
     w2 = np.concatenate([_edge_weights(system)[keep_link], np.ones(add_src.size + loops.size)])
-    A = sp.coo_array((w2, (t2, s2)), shape=(N, N)).tocsr()
-    B = sp.vstack([system.B, sp.csr_array((len(new), system.n_inputs))], format="csr")
-    C = sp.hstack([system.C, sp.csr_array((system.n_outputs, len(new)))], format="csr")
-    # disturbances (E) and regulated outputs (H) follow the states: new states are
-    # reached by no disturbance and read by no regulated output
-    E = sp.vstack([system.E, sp.csr_array((len(new), system.n_disturbances))], format="csr")
-    H = sp.hstack([system.H, sp.csr_array((system.n_regulated, len(new)))], format="csr")
+    A = coo_pattern(t2, s2, w2, (N, N), count=False)[0]
+    # new states: no input acts on them, no output, disturbance or regulated output
+    # reads or reaches them (empty rows of B and E, empty columns of C and H)
+    B = padded(system.pattern("B"), (N, system.n_inputs))
+    C = padded(system.pattern("C"), (system.n_outputs, N))
+    E = padded(system.pattern("E"), (N, system.n_disturbances))
+    H = padded(system.pattern("H"), (system.n_regulated, N))
     nodes = _extend_nodes(system.nodes, len(new))
     grown = StructuredSystem(A=A, B=B, C=C, state_names=all_names,
                              input_names=system.input_names, output_names=system.output_names,
@@ -203,24 +203,27 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
             raise UnknownNameError(f"remove_inputs: no input {unknown[0]!r}; the inputs are "
                                    f"{', '.join(grown.input_names[:8])}.")
         keep_in = [j for j, x in enumerate(grown.input_names) if x not in set(gone)]
-        grown = grown._replace(B=grown.B[:, keep_in],
+        grown = grown._replace(B=take(grown.pattern("B"), cols=np.asarray(keep_in, np.int64)),
                                input_names=tuple(grown.input_names[j] for j in keep_in))
     if not rnodes:
         return grown, tuple(new), tuple(gone)
     keep = np.ones(N, bool)
     keep[rnode_idx] = False
-    Bk = grown.B[keep].tocsr()
-    used = np.diff(Bk.tocsc().indptr) > 0
-    had = np.diff(grown.B.tocsc().indptr) > 0
+    kept = np.flatnonzero(keep)
+    B0 = grown.pattern("B")
+    Bk = take(B0, rows=kept)
+    used = np.bincount(Bk.indices, minlength=B0.shape[1]) > 0
+    had = np.bincount(B0.indices, minlength=B0.shape[1]) > 0
     lost_inputs = tuple(grown.input_names[int(j)] for j in np.flatnonzero(had & ~used))
-    Ck = grown.C[:, keep].tocsr()
     out = StructuredSystem(
-        A=grown.A[keep][:, keep].tocsr(), B=Bk[:, used], C=Ck,
-        state_names=tuple(all_names[int(i)] for i in np.flatnonzero(keep)),
+        A=take(grown.pattern("A"), kept, kept), B=take(Bk, cols=np.flatnonzero(used)),
+        C=take(grown.pattern("C"), cols=kept),
+        state_names=tuple(all_names[int(i)] for i in kept),
         input_names=tuple(x for x, u in zip(grown.input_names, used) if u),
         output_names=grown.output_names,
         nodes={c: v[keep] for c, v in grown.nodes.items()}, weighted=system.weighted,
-        model=system.model, E=grown.E[keep].tocsr(), H=grown.H[:, keep].tocsr(),
+        model=system.model, E=take(grown.pattern("E"), rows=kept),
+        H=take(grown.pattern("H"), cols=kept),
         disturbance_names=grown.disturbance_names, regulated_names=grown.regulated_names,
         disturbance_nodes=grown.disturbance_nodes)
     return out, tuple(new), tuple(gone) + lost_inputs
@@ -228,7 +231,7 @@ def apply_change(system: StructuredSystem, *, add_links: Iterable[Sequence[objec
 
 def _edge_weights(system: StructuredSystem) -> np.ndarray:
     """Weights in :meth:`StructuredSystem.edges` order (CSR order of ``A``)."""
-    return np.asarray(system.A.data, np.float64).copy()
+    return np.asarray(system.pattern("A").data, np.float64).copy()
 
 
 def _extend_nodes(nodes: Any, extra: int) -> dict[str, np.ndarray]:
