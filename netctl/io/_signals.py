@@ -73,7 +73,9 @@ def disturbance_rows(system: StructuredSystem) -> list[dict[str, Any]]:
 
 def disturbance_links(system: StructuredSystem) -> Iterable[tuple[str, str, float]]:
     """``(disturbance, state, weight)`` for every entry of ``E``, column by column."""
-    E = system.E.tocsc()
+    from netctl._csr import transpose_pattern
+
+    E = transpose_pattern(system.pattern("E"))  # row j: the states disturbance j acts on
     for j, w in enumerate(system.disturbance_names):
         for p in range(E.indptr[j], E.indptr[j + 1]):
             yield w, system.state_names[int(E.indices[p])], float(E.data[p])
@@ -82,7 +84,7 @@ def disturbance_links(system: StructuredSystem) -> Iterable[tuple[str, str, floa
 def dedicated_regulated(system: StructuredSystem) -> list[str] | None:
     """States read by regulated outputs when each reads one state and is named
     ``z:<state>`` (what a node attribute can say), else None."""
-    H = system.H
+    H = system.pattern("H")
     if not system.n_regulated:
         return []
     if not np.all(np.diff(H.indptr) == 1):

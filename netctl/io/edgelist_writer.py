@@ -104,7 +104,7 @@ def write_edgelist(system: StructuredSystem, path: str | os.PathLike[str]) -> No
     with atomic_write(path) as fh:
         fh.write(head)
         fh.write("source,target,weight\n" if system.weighted else "source,target\n")
-        vals = system.A.data
+        vals = system.pattern("A").data
         for a in range(0, src.size, block):
             s_names = names[src[a:a + block]].tolist()
             t_names = names[dst[a:a + block]].tolist()

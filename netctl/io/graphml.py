@@ -61,7 +61,7 @@ def system_to_graph(system: StructuredSystem) -> Any:
     if system.weighted:
         g.add_weighted_edges_from(zip((names[i] for i in src.tolist()),
                                       (names[i] for i in dst.tolist()),
-                                      system.A.data.tolist()))
+                                      system.pattern("A").data.tolist()))
         g.add_weighted_edges_from(disturbance_links(system))
     else:
         g.add_edges_from(zip((names[i] for i in src.tolist()),

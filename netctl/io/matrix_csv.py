@@ -128,7 +128,9 @@ def write_matrix_csv(system: StructuredSystem, path: str | os.PathLike[str]) -> 
                                  "separator (comma, semicolon, space, tab), '#', a line break, "
                                  "a lone surrogate or starts with a byte-order mark, so it cannot label a matrix CSV "
                                  "column; rename it or write GraphML or node-link JSON.")
-    A = system.A.toarray()
+    from netctl._csr import to_dense
+
+    A = to_dense(system.pattern("A"))
     with atomic_write(path) as fh:
         fh.write(",".join(protect_names(system.state_names, quote_numbers=True)) + "\n")
         for row in A.tolist():

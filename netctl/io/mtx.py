@@ -11,7 +11,6 @@ import io
 import os
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.io._common import atomic_write, check_states, file_error, read_bytes
 from netctl.system import StructuredSystem
@@ -101,6 +100,7 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         # a line break and crashes the process (found by tests/hostile/test_fuzz.py)
         data = data + b"\n"
     import scipy.io  # here: 0.03 s of start-up that other formats do not need
+    import scipy.sparse as sp
 
     try:
         M = scipy.io.mmread(io.BytesIO(data))
@@ -241,6 +241,7 @@ def write_mtx(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     The format holds no names: a warning says so unless the names are ``x0, x1, ...``.
     """
     import scipy.io
+    import scipy.sparse as sp
 
     warn_names_not_kept(system, path, "Matrix Market")
     A = sp.coo_matrix(system.A)

@@ -105,7 +105,7 @@ def write_nodelink(system: StructuredSystem, path: str | os.PathLike[str]) -> No
     src, dst = system.edges()
     if system.weighted:
         links = [{"source": names[a], "target": names[b], "weight": w} for a, b, w in
-                 zip(src.tolist(), dst.tolist(), system.A.data.tolist())]
+                 zip(src.tolist(), dst.tolist(), system.pattern("A").data.tolist())]
         links += [{"source": a, "target": b, "weight": w}
                   for a, b, w in disturbance_links(system)]
     else:

@@ -83,7 +83,11 @@ def write_npy(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
         raise InvalidSystemError(f"{path}: {system.n_states} states are too many for a dense "
                                  f"array (limit {MAX_DENSE_STATES}); write .npz or .mtx.")
     warn_names_not_kept(system, path, ".npy")
-    A = system.A.toarray() if system.weighted else system.A.toarray() != 0
+    from netctl._csr import to_dense
+
+    A = to_dense(system.pattern("A"))
+    if not system.weighted:
+        A = A != 0
     buf = io.BytesIO()
     np.save(buf, A, allow_pickle=False)
     with atomic_write(path, "wb") as fh:

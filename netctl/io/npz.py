@@ -12,7 +12,6 @@ import os
 import zipfile
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.io._common import (
     atomic_write,
@@ -75,6 +74,8 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         raise file_error(path, None, f"the file claims {n} states, more than netctl reads "
                          f"({MAX_STATES}); check the file.")
     check_states(path, n)
+    import scipy.sparse as sp  # here: only reading needs it (writing stores the arrays)
+
     try:
         data = z["data"]
         if fmt in ("csr", "csc"):
@@ -125,7 +126,7 @@ def write_npz(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
         from netctl.errors import InvalidSystemError
         raise InvalidSystemError(f"the state name {bad[:80]!r} ends with a NUL character, "
                                  "which .npz cannot keep; rename it or write node-link JSON.")
-    A = system.A
+    A = system.pattern("A")  # the arrays of system.A, without building it
     buf = io.BytesIO()
     np.savez_compressed(buf, format=np.array(b"csr"), shape=np.array(A.shape),
                         data=A.data, indices=A.indices, indptr=A.indptr,

@@ -17,6 +17,7 @@ from typing import Any
 
 import numpy as np
 
+from netctl._csr import diagonal, transpose_pattern, without_diagonal
 from netctl.io._common import atomic_group, atomic_write
 from netctl.stations import Station
 from netctl.system import StructuredSystem
@@ -69,7 +70,7 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
     """
     names = system.state_names
     n = system.n_states
-    diag = system.A.diagonal()
+    diag = diagonal(system.pattern("A"))
     lines = ["# netctl system description (schema: docs/FORMATS.md).",
              "# A coupling [u, v] means state u influences state v (A[v, u] != 0).",
              "", "[system]", f"name = {_val(Path(path).stem)}",
@@ -95,7 +96,7 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
         lines.append(f"{_key(dname)} = {{ "
                      + ", ".join(f"{_key(k)} = {_val(v)}" for k, v in row.items()) + " }")
     src, dst = system.edges()
-    vals = system.A.data
+    vals = system.pattern("A").data
     off = src != dst
     lines += ["", "[couplings]"]
     side = None
@@ -114,9 +115,11 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
         items.append(f"  [{_val(a_name)}, {_val(b_name)}{w}],")
     if items or side is None:
         lines += ["links = ["] + items + ["]"]
-    for kind, M, pool in (("inputs", system.B.tocsc(), system.input_names),
-                          ("outputs", system.C.T.tocsc(), system.output_names),
-                          ("regulated", system.H.T.tocsc(), system.regulated_names)):
+    # per input: the states it acts on (rows of B's transpose); per output and regulated
+    # output: the states it reads (rows of C, H); sorted, as scipy's CSC columns
+    for kind, M, pool in (("inputs", transpose_pattern(system.pattern("B")), system.input_names),
+                          ("outputs", system.pattern("C"), system.output_names),
+                          ("regulated", system.pattern("H"), system.regulated_names)):
         if pool:
             lines += ["", f"[{kind}]"]
             for j, nm in enumerate(pool):
@@ -151,15 +154,10 @@ def write_system(system: StructuredSystem, path: str | os.PathLike[str], *,
 
 def _write_both(system: StructuredSystem, path: str | os.PathLike[str], side: Path | None,
                 lines: list[str]) -> None:
-    n = system.n_states
-    diag = system.A.diagonal()
     if side is not None:
-        import scipy.sparse as sp
-
         from netctl.io.edgelist import write_edgelist
 
-        edges_only = system._replace(A=system.A - sp.dia_array((diag[None, :], [0]),
-                                                               shape=(n, n)),
+        edges_only = system._replace(A=without_diagonal(system.pattern("A")),
                                      B=None, C=None, input_names=(), output_names=(), nodes={},
                                      H=None, regulated_names=(), E=None,
                                      disturbance_names=(), disturbance_nodes={})
