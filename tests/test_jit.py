@@ -24,7 +24,7 @@ from netctl.graph import (
     reachable_from,
     strongly_connected_components,
 )
-from netctl.graph.components import weak_component_count
+from netctl.graph.components import weak_component_count, weak_component_labels
 from netctl.structural import controllability, minimum_inputs
 from netctl.system import StructuredSystem
 
@@ -82,6 +82,11 @@ def test_components_and_reach_python_and_compiled_agree_with_references(g):
         assert np.array_equal(reach, reach_ref)
     for k_weak in _both(lambda: weak_component_count(m.indptr, m.indices)):
         assert k_weak == nx.number_weakly_connected_components(ref)
+    # the labels, numbered by smallest vertex, against NetworkX's weak components
+    weak = sorted(sorted(c) for c in nx.weakly_connected_components(ref))
+    for k, labels in _both(lambda: weak_component_labels(m.indptr, m.indices)):
+        assert k == len(weak)
+        assert [sorted(np.flatnonzero(labels == i).tolist()) for i in range(k)] == weak
 
 
 @settings(max_examples=100, deadline=None)

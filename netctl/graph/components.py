@@ -6,7 +6,7 @@ import numpy as np
 from netctl._jit import njit
 
 __all__ = ["strongly_connected_components", "condensation_sources", "reachable_from",
-           "label_reach", "induced_subgraph", "weak_component_count"]
+           "label_reach", "induced_subgraph", "weak_component_count", "weak_component_labels"]
 
 
 def _index(a: np.ndarray) -> np.ndarray:
@@ -272,3 +272,27 @@ def weak_component_count(indptr: np.ndarray, indices: np.ndarray) -> int:
         return 0
     parent = np.empty(n, np.int32 if n < 2**31 - 1 else np.int64)
     return int(_weak_count(_index(indptr), _index(indices), parent))
+
+
+def weak_component_labels(indptr: np.ndarray, indices: np.ndarray) -> tuple[int, np.ndarray]:
+    """Weakly connected components of a directed graph given as CSR (either orientation):
+    ``(n_components, labels)``, labels numbered in order of each component's smallest
+    vertex (deterministic). The union–find of :func:`weak_component_count`, then every
+    vertex pointed at its root."""
+    n = indptr.size - 1
+    if n <= 0:
+        return 0, np.zeros(0, np.int64)
+    parent = np.empty(n, np.int32 if n < 2**31 - 1 else np.int64)
+    k = int(_weak_count(_index(indptr), _index(indices), parent))
+    root = parent.astype(np.int64)
+    while True:  # pointer jumping: each round at least halves every path
+        up = root[root]
+        if np.array_equal(up, root):
+            break
+        root = up
+    # roots are each component's smallest vertex (unions keep the smaller root), so
+    # numbering the roots in increasing order numbers components by smallest vertex
+    first = np.zeros(n, np.int64)
+    first[np.unique(root)] = np.arange(k)
+    return k, first[root]
+
