@@ -22,8 +22,8 @@ from __future__ import annotations
 from collections.abc import Iterable
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import take
 from netctl.errors import OptionError
 from netctl.graph.matching import maximum_matching
 from netctl.system import StructuredSystem
@@ -130,9 +130,9 @@ def target_rank(system: StructuredSystem, targets: Iterable[object], *,
     if not isinstance(trials, int) or trials < 1:
         raise OptionError(f"trials must be an integer >= 1, found {trials!r}.")
     drv = np.unique(np.asarray([] if drivers is None else list(drivers), np.int64))
-    B = system.B.tocoo()
-    rows_b = np.concatenate([B.row.astype(np.int64), drv])
-    cols_b = np.concatenate([B.col.astype(np.int64), system.n_inputs + np.arange(drv.size)])
+    B = system.pattern("B")  # entries in CSR (row-major) order, as B.tocoo() lists them
+    rows_b = np.concatenate([np.repeat(np.arange(n, dtype=np.int64), np.diff(B.indptr)), drv])
+    cols_b = np.concatenate([B.indices.astype(np.int64), system.n_inputs + np.arange(drv.size)])
     m = system.n_inputs + drv.size
     if T.size == 0:
         return 0
@@ -234,7 +234,7 @@ def gao_greedy_drivers(system: StructuredSystem, targets: Iterable[object]) -> n
     """
     T = target_index(system, targets)
     n = system.n_states
-    A = system.A
+    A = system.pattern("A")
     drivers = np.zeros(n, bool)
     C = T
     seen: dict[bytes, int] = {}
@@ -249,7 +249,7 @@ def gao_greedy_drivers(system: StructuredSystem, targets: Iterable[object]) -> n
             break
         seen[key] = step
         history.append(C)
-        sub = A[C]  # rows C, columns: in-neighbours (all states)
+        sub = take(A, rows=C)  # rows C, columns: in-neighbours (all states)
         rm, _ = maximum_matching(sub.indptr.astype(np.int64), sub.indices.astype(np.int64), n)
         drivers[C[rm < 0]] = True
         C = np.unique(rm[rm >= 0])

@@ -509,3 +509,29 @@ def test_infeasible_sites_give_the_best_effort_design_against_brute_force():
             assert dims[tuple(p.sites.tolist())] == best
             if method == "auto":  # exhaustive below EXHAUSTIVE_MAX_CANDIDATES sites
                 assert p.sites.size == fewest and p.cost == fewest
+
+
+def test_small_and_large_paths_place_the_same_design(monkeypatch):
+    """The small-network path (NumPy patterns, NumPy union-find for the components of
+    the assignment; no scipy unless a component has several rows) and the large one
+    (scipy, forced with the size threshold at 0) choose the same sites at the same cost,
+    dedicated and greedy, actuators and sensors, on random cases; the costs are also
+    checked against brute force above (Pequito, Kar & Aguiar 2016, exact minimum)."""
+    import netctl._csr as csr
+
+    rng = np.random.default_rng(6021)
+    for trial in range(150):
+        s = _random_system(rng, n_max=8)
+        n = s.n_states
+        eligible = rng.random(n) < 0.8
+        cost = rng.integers(0, 4, n).astype(float)  # ties between sites on purpose
+        sites = parse_sites(_sites_text(s, eligible, cost), s)
+        runs = []
+        for small in (True, False):
+            with monkeypatch.context() as m:
+                if not small:
+                    m.setattr(csr, "SMALL_ENTRIES", 0)
+                runs.append([place_inputs(s, sites=sites).to_dict(),
+                             place_inputs(s, sites=sites, method="greedy").to_dict(),
+                             place_sensors(s).to_dict()])
+        assert runs[0] == runs[1], (trial, s.edges()[0].tolist(), s.edges()[1].tolist())

@@ -14,9 +14,13 @@ References
 
 from __future__ import annotations
 
-import numpy as np
-import scipy.sparse as sp
+from typing import Any
 
+import numpy as np
+
+from netctl import _csr
+from netctl._csr import Pattern, coo_pattern, is_sparse
+from netctl._csr import take as take_pattern
 from netctl.records import Candidates
 from netctl.structural.placement._reduced import Outcome, Reduced, gather_ranges
 
@@ -24,18 +28,38 @@ __all__ = ["assignment_by_component", "dedicated_assignment"]
 
 
 # ====================================================================== dedicated: exact
-def assignment_by_component(M: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:
+def _components(M: Pattern) -> np.ndarray:
+    """Component label of each row, then of each column, of the bipartite graph of
+    ``M``: NumPy union–find on small graphs (no scipy), scipy's on large ones. Only
+    which rows and columns share a component matters (each is solved on its own)."""
+    n_rows, n_cols = M.shape
+    if M.nnz <= _csr.SMALL_ENTRIES:
+        from netctl.graph.components import weak_component_labels
+
+        indptr = np.concatenate([np.asarray(M.indptr, np.int64),
+                                 np.full(n_cols, M.indptr[-1], np.int64)])
+        return weak_component_labels(indptr, np.asarray(M.indices, np.int64) + n_rows)[1]
+    import scipy.sparse as sp
+    from scipy.sparse.csgraph import connected_components
+
+    Ms = M.to_scipy()
+    G = sp.bmat([[None, Ms], [Ms.T, None]], format="csr")
+    return connected_components(G, directed=False)[1]
+
+
+def assignment_by_component(M: Any) -> tuple[np.ndarray, np.ndarray]:
     """Row-perfect min-cost assignment of ``M``, solved per connected component.
 
     Components of the bipartite graph are independent, and LAPJVsp is superlinear, so
     the many small components of sparse networks are solved separately; a component
-    with one row takes its cheapest edge (ties: the smallest column).
+    with one row takes its cheapest edge (ties: the smallest column). ``M``: a
+    :class:`~netctl._csr.Pattern` or a scipy sparse matrix; scipy is imported only when
+    a component has several rows (or the graph is large).
     """
-    from scipy.sparse.csgraph import connected_components, min_weight_full_bipartite_matching
-
+    if is_sparse(M):
+        M = Pattern.of_scipy(_canonical(M))
     n_rows, n_cols = M.shape
-    G = sp.bmat([[None, M], [M.T, None]], format="csr")
-    _, lab = connected_components(G, directed=False)
+    lab = _components(M)
     rlab = lab[:n_rows]
     counts = np.bincount(rlab, minlength=lab.max(initial=-1) + 1)
     col_of_row = np.full(n_rows, -1, np.int64)
@@ -54,8 +78,10 @@ def assignment_by_component(M: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:
         rows_p = multi[np.argsort(rlab[multi], kind="stable")]
         col_lab = lab[n_rows:]
         cols_p = np.argsort(col_lab, kind="stable")
-        P = M[rows_p][:, cols_p].tocsr()
-        P.sort_indices()
+        import scipy.sparse as sp
+        from scipy.sparse.csgraph import min_weight_full_bipartite_matching
+
+        P = take_pattern(M, rows_p, cols_p)
         r_bounds = np.concatenate([[0], np.flatnonzero(np.diff(rlab[rows_p])) + 1,
                                    [rows_p.size]])
         c_starts = np.searchsorted(col_lab[cols_p], np.arange(counts.size + 1))
@@ -68,6 +94,18 @@ def assignment_by_component(M: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:
             r_i, c_i = min_weight_full_bipartite_matching(sub)
             col_of_row[rows_p[r0 + r_i]] = cols_p[c0 + c_i]
     return np.arange(n_rows, dtype=np.int64), col_of_row
+
+
+def _canonical(M: Any) -> Any:
+    """A scipy matrix as canonical CSR (duplicates summed, indices sorted, int64)."""
+    import scipy.sparse as sp
+
+    C = sp.csr_array(M, dtype=np.float64, copy=True)
+    C.sum_duplicates()
+    C.sort_indices()
+    C.indices = C.indices.astype(np.int64)
+    C.indptr = C.indptr.astype(np.int64)
+    return C
 
 
 def dedicated_assignment(prob: Reduced, cands: Candidates) -> Outcome:
@@ -105,8 +143,7 @@ def dedicated_assignment(prob: Reduced, cands: Candidates) -> Outcome:
         w = np.concatenate([np.ones(r_real.size), 1.0 + cost[elig],
                             1.0 + cost[src] - minc[comp_of[src]]])
         n_cols = prob.n_real + elig.size + n_u
-        M = sp.csr_matrix((w, (rows, cols)), shape=(nD, n_cols))
-        M.sum_duplicates()
+        M = coo_pattern(rows, cols, w, (nD, n_cols), count=False)[0]
         r_ind, c_ind = assignment_by_component(M)
         priv = (c_ind >= prob.n_real) & (c_ind < prob.n_real + elig.size)
         srcm = c_ind >= prob.n_real + elig.size

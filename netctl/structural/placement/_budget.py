@@ -21,7 +21,6 @@ import itertools
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.graph.components import reachable_from
 from netctl.records import Candidates
@@ -73,6 +72,8 @@ class DimensionOracle:
         hit = self.cache.get(key)
         if hit is not None:
             return hit
+        import scipy.sparse as sp  # here: the best effort alone needs it
+
         n = self.n
         M = self.cands.matrix(np.asarray(key, np.int64), n)
         B = sp.hstack([self.B, M], format="csr") if self.B.shape[1] else M.tocsr()

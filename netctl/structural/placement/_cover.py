@@ -17,6 +17,8 @@ from __future__ import annotations
 import heapq
 
 import numpy as np
+
+from netctl._csr import transpose_pattern
 from netctl._jit import njit
 
 from netctl.graph.matching import maximum_matching, transpose_csr
@@ -152,7 +154,7 @@ def greedy_cover(prob: Reduced, cands: Candidates) -> Outcome:
     if prob.deficiency:
         lb = max(lb, _min_cost_rank_basis(prob, cost, tptr, tind, single))
     if prob.unreached.size:
-        ccs = cc.tocsc()  # feasible: every unreached source has a candidate
+        ccs = transpose_pattern(cc)  # per component its candidates; feasible: every unreached source has a candidate
         per = np.minimum.reduceat(cost[ccs.indices], ccs.indptr[:-1])
         lb = max(lb, float(per.max()))
     return Outcome("candidates", "greedy", True, False, chosen_a, total, min(lb, total), None,

@@ -9,8 +9,8 @@ the Notes of :func:`netctl.structural.placement.place_inputs`.
 from __future__ import annotations
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import coo_pattern, hstack_patterns
 from netctl.errors import OptionError
 from netctl.graph.matching import maximum_matching
 from netctl.records import Candidates, Sites
@@ -64,7 +64,7 @@ def place_design(system: StructuredSystem, kind: str, sites: Sites | None,
 
 def _solve(work: StructuredSystem, cands: Candidates, budget: float | None, method: str,
            time_limit: float) -> Outcome:
-    A, B = work.A, work.B
+    A, B = work.pattern("A"), work.pattern("B")
     n = work.n_states
     st = structure_of(A)
     prob = reduce_problem(A, B, st, cands)
@@ -118,8 +118,12 @@ def _lin_check(work: StructuredSystem, cands: Candidates, out: Outcome, verify: 
     chosen = np.asarray(out.chosen, np.int64)
     verified: bool | None = None
     dim = out.dimension
-    M = cands.matrix(chosen, n)
-    B = sp.hstack([work.B, M], format="csr") if work.n_inputs else M
+    # the chosen columns (cands.matrix without scipy), after the existing inputs
+    cols = [cands.states_of(int(k)) for k in chosen]
+    M = coo_pattern(np.concatenate(cols) if cols else np.zeros(0, np.int64),
+                    np.repeat(np.arange(len(cols), dtype=np.int64), [c.size for c in cols]),
+                    None, (n, len(cols)), count=False)[0]
+    B = hstack_patterns(work.pattern("B"), M) if work.n_inputs else M
     design = work._replace(B=B, input_names=tuple(f"u{k}" for k in range(B.shape[1])))
     claimed = out.feasible and not out.best_effort
     if claimed:
@@ -130,10 +134,10 @@ def _lin_check(work: StructuredSystem, cands: Candidates, out: Outcome, verify: 
         ok = bool(rep.controllable)
     else:
         # no claim to check; accessibility and rank only (near-linear, any size)
-        st = structure_of(work.A)
+        st = structure_of(work.pattern("A"))
         acc = accessible_states(st, B)
         inacc = np.flatnonzero(~acc).astype(np.int64)
-        indptr, indices, n_cols = stack_AB(work.A, B)
+        indptr, indices, n_cols = stack_AB(work.pattern("A"), B)
         rm, _ = maximum_matching(indptr, indices, n_cols)
         ok = bool(acc.all() and np.all(rm >= 0))
     if dim is None:

@@ -15,7 +15,6 @@ References
 from __future__ import annotations
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.records import Candidates
 from netctl.structural.placement._cover import greedy_cover
@@ -33,7 +32,9 @@ def solve_milp(prob: Reduced, cands: Candidates, time_limit: float) -> Outcome:
     nD = prob.D.size
     real_r = np.repeat(np.arange(nD), np.diff(prob.sub_indptr))
     real_c = prob.sub_indices
-    cD = prob.cand_D.tocoo()
+    import scipy.sparse as sp
+
+    cD = prob.cand_D.to_scipy().tocoo()
     cand_k, cand_r = cD.row.astype(np.int64), cD.col.astype(np.int64)
     n_x = real_r.size + cand_k.size
     n_var = n_x + K
@@ -63,7 +64,7 @@ def solve_milp(prob: Reduced, cands: Candidates, time_limit: float) -> Outcome:
         ub.append(np.zeros(K))
         off += K
     # every unreached source component touched by a chosen candidate
-    cc = prob.cand_comp.tocoo()
+    cc = prob.cand_comp.to_scipy().tocoo()
     if prob.unreached.size:
         blocks_r.append(cc.col.astype(np.int64) + off)
         blocks_c.append(n_x + cc.row.astype(np.int64))

@@ -12,8 +12,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, coo_pattern, transpose_pattern
 from netctl.graph.dm import alternating_reach_rows
 from netctl.graph.matching import maximum_matching
 from netctl.records import Candidates
@@ -70,15 +70,16 @@ class Reduced:
     unreached: np.ndarray       # labels of source components no existing input reaches
     comp_slot: np.ndarray       # per component: slot in `unreached`, or -1
     scc: np.ndarray
-    cand_D: sp.csr_array        # K x |D| incidence (candidate acts on D row)
-    cand_comp: sp.csr_array     # K x len(unreached) incidence
+    cand_D: Pattern             # K x |D| incidence (candidate acts on D row)
+    cand_comp: Pattern          # K x len(unreached) incidence (all values 1)
     useful: np.ndarray          # bool per candidate: touches D or an unreached source
 
     def milp_size(self) -> int:
         return int(self.sub_indices.size + self.cand_D.nnz + self.useful.sum())
 
 
-def reduce_problem(A: sp.csr_array, B: sp.csr_array, st: Structure, cands: Candidates) -> Reduced:
+def reduce_problem(A: Pattern, B: Pattern, st: Structure, cands: Candidates) -> Reduced:
+    """The reduced problem of ``(A, B)`` (a system's stored patterns) for ``cands``."""
     n = A.shape[0]
     indptr, indices, n_cols = stack_AB(A, B)
     row_match, col_match = maximum_matching(indptr, indices, n_cols)
@@ -108,17 +109,11 @@ def reduce_problem(A: sp.csr_array, B: sp.csr_array, st: Structure, cands: Candi
     d_local[D] = np.arange(D.size)
     loc = d_local[cands.indices]
     keep = loc >= 0
-    cand_D = sp.csr_array((np.ones(int(keep.sum())), (krow[keep], loc[keep])),
-                          shape=(K, D.size))
+    cand_D = coo_pattern(krow[keep], loc[keep], None, (K, D.size), count=False)[0]
     slot = comp_slot[st.scc[cands.indices]]
     keep = slot >= 0
-    cc = sp.csr_array((np.ones(int(keep.sum())), (krow[keep], slot[keep])),
-                      shape=(K, unreached.size))
-    cc.sum_duplicates()
-    cc.data[:] = 1.0
-    for M in (cand_D, cc):
-        M.sum_duplicates()
-        M.sort_indices()
+    cc = coo_pattern(krow[keep], slot[keep], None, (K, unreached.size), count=False)[0]
+    cc = Pattern(np.ones(cc.nnz), cc.indices, cc.indptr, cc.shape).frozen()
     useful = (np.diff(cand_D.indptr) > 0) | (np.diff(cc.indptr) > 0)
     return Reduced(n=n, D=D, deficiency=deficiency, sub_indptr=sub_indptr,
                     sub_indices=sub_indices, n_real=int(col_mask.sum()), unreached=unreached,
@@ -144,7 +139,7 @@ def infeasibility(work: StructuredSystem, prob: Reduced, cands: Candidates) -> l
     reasons: list[str] = []
     word = "site" if cands.dedicated else "candidate actuator"
     # accessibility: an unreached source component no candidate touches
-    touched = np.diff(prob.cand_comp.tocsc().indptr) > 0
+    touched = np.bincount(prob.cand_comp.indices, minlength=prob.cand_comp.shape[1]) > 0
     bad_slots = np.flatnonzero(~touched)
     named = np.zeros(prob.n, bool)
     if bad_slots.size:
@@ -167,7 +162,7 @@ def infeasibility(work: StructuredSystem, prob: Reduced, cands: Candidates) -> l
                            "'inaccessible' list names every state no input reaches).")
     # rank: the D rows must be matchable into real columns plus all candidates
     if prob.deficiency:
-        cD = prob.cand_D.tocsc()  # column r lists candidates acting on D row r
+        cD = transpose_pattern(prob.cand_D)  # row r lists candidates acting on D row r
         ind, ptr = _augment_rows(prob.sub_indptr, prob.sub_indices, cD.indptr, cD.indices,
                                  prob.n_real)
         n_cols = prob.n_real + cands.n_candidates

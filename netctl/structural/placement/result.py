@@ -9,14 +9,16 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.records import Candidates
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
 
 __all__ = ["Placement"]
 
@@ -119,6 +121,8 @@ class Placement(ResultTables):
 
     def apply(self, system: StructuredSystem) -> StructuredSystem:
         """``system`` with the chosen actuators (sensors) added to its existing ones."""
+        import scipy.sparse as sp
+
         M = self.design()
         names = [self.candidates.names[int(k)] for k in self.chosen]
         if self.kind == "inputs":

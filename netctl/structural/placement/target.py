@@ -17,8 +17,8 @@ import itertools
 from collections.abc import Iterable
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import empty_pattern, take, transpose_pattern
 from netctl.errors import OptionError
 from netctl.graph.components import reachable_from
 from netctl.graph.matching import maximum_matching
@@ -104,7 +104,7 @@ def place_target_inputs(
     if T.size == 0:
         raise OptionError("targets is empty; name at least one state to control.")
     n = system.n_states
-    base = system._replace(B=sp.csr_array((n, 0)), input_names=())
+    base = system._replace(B=empty_pattern((n, 0)), input_names=())
 
     def check(cands: Candidates, out: Outcome) -> Check:
         verified: bool | None = None
@@ -250,15 +250,14 @@ def _lower_bound_count(system: StructuredSystem, T: np.ndarray) -> int:
     """
     if T.size == 0:
         return 0
-    sub = system.A[T]
+    sub = take(system.pattern("A"), rows=np.asarray(T, np.int64))
     rm, _ = maximum_matching(sub.indptr.astype(np.int64), sub.indices.astype(np.int64),
                              system.n_states)
     return max(1, int(np.count_nonzero(rm < 0)))
 
 
 def _out_adj(system: StructuredSystem) -> tuple[np.ndarray, np.ndarray]:
-    At = system.A.T.tocsr()
-    At.sort_indices()
+    At = transpose_pattern(system.pattern("A"))
     return At.indptr.astype(np.int64), At.indices.astype(np.int64)
 
 
