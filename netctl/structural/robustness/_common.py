@@ -5,8 +5,8 @@ from __future__ import annotations
 from collections.abc import Callable
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, transpose_pattern
 from netctl.errors import OptionError
 from netctl.graph.components import reachable_from
 from netctl.graph.matching import maximum_matching
@@ -29,29 +29,30 @@ def _n_d(n: int, size: int) -> int:
     return max(n - size, 1) if n else 0
 
 
-def _remove_links(A: sp.csr_array, drop: np.ndarray) -> sp.csr_array:
+def _remove_links(A: Pattern, drop: np.ndarray) -> Pattern:
+    """``A`` (a stored pattern) without the links at CSR positions ``drop``."""
     keep = np.ones(A.nnz, bool)
     keep[drop] = False
     n = A.shape[0]
     rows = np.repeat(np.arange(n, dtype=np.int64), np.diff(A.indptr))[keep]
     ptr = np.zeros(n + 1, np.int64)
     np.cumsum(np.bincount(rows, minlength=n), out=ptr[1:])
-    return sp.csr_array((A.data[keep], A.indices[keep], ptr), shape=A.shape)
+    return Pattern(A.data[keep], A.indices[keep], ptr, A.shape).frozen()
 
 
-def _design_ok(A: sp.csr_array, B: sp.csr_array) -> tuple[bool, int, int]:
+def _design_ok(A: Pattern, B: Pattern) -> tuple[bool, int, int]:
     """(controllable, rank of [A B], number of inaccessible states), recomputed."""
     n = A.shape[0]
     indptr, indices, n_cols = stack_AB(A, B)
     rm, _ = maximum_matching(indptr, indices, n_cols)
     rank = int(np.count_nonzero(rm >= 0))
-    At = A.T.tocsr()
+    At = transpose_pattern(A)
     reach = reachable_from(At.indptr, At.indices, np.flatnonzero(np.diff(B.indptr)))
     unreached = int(n - np.count_nonzero(reach))
     return bool(rank == n and unreached == 0), rank, unreached
 
 
-def _matching_size(A: sp.csr_array) -> int:
+def _matching_size(A: Pattern) -> int:
     if A.shape[0] == 0:
         return 0
     rm, _ = maximum_matching(A.indptr, A.indices, A.shape[1])

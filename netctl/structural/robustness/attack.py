@@ -9,6 +9,7 @@ from typing import Any
 
 import numpy as np
 
+from netctl._csr import take
 from netctl.errors import OptionError
 from netctl.structural.robustness._common import (
     Progress,
@@ -81,7 +82,7 @@ class AttackCurve:
 
 def _attack_order(system: StructuredSystem, elements: str, strategy: str,
                   rng: np.random.Generator) -> np.ndarray:
-    A = system.A
+    A = system.pattern("A")
     n = system.n_states
     indeg = np.diff(A.indptr)
     outdeg = np.bincount(A.indices, minlength=n)
@@ -160,7 +161,7 @@ def attack_curve(system: StructuredSystem, *, elements: str = "nodes",
     if not (isinstance(max_fraction, (int, float)) and 0 < max_fraction <= 1):
         raise OptionError(f"max_fraction must be in (0, 1], found {max_fraction!r}.")
     rng = np.random.default_rng(seed)
-    A = system.A
+    A = system.pattern("A")
     n = system.n_states
     total = n if elements == "nodes" else A.nnz
     order = _attack_order(system, elements, strategy, rng)
@@ -172,7 +173,7 @@ def attack_curve(system: StructuredSystem, *, elements: str = "nodes",
         if elements == "nodes":
             keep = np.ones(n, bool)
             keep[order[:c]] = False
-            A2 = A[keep][:, keep].tocsr() if c else A
+            A2 = take(A, np.flatnonzero(keep), np.flatnonzero(keep)) if c else A
             n2 = n - c
         else:
             A2 = _remove_links(A, order[:c]) if c else A

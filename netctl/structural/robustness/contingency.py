@@ -15,7 +15,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
+
+from netctl._csr import Pattern, transpose_pattern
 from netctl._jit import njit
 
 from netctl.structural._engine import stack_AB
@@ -150,10 +151,9 @@ class _Reach:
     size: np.ndarray  # states dominated (itself included); 0 when unreachable
 
 
-def _reach_structure(A: sp.csr_array, B: sp.csr_array) -> _Reach:
+def _reach_structure(A: Pattern, B: Pattern) -> _Reach:
     n = A.shape[0]
-    At = A.T.tocsr()
-    At.sort_indices()
+    At = transpose_pattern(A)
     driven = np.zeros(n, np.bool_)
     driven[np.flatnonzero(np.diff(B.indptr))] = True
     idom, pre, size = _dominators(At.indptr.astype(np.int64), At.indices.astype(np.int64),
@@ -163,7 +163,7 @@ def _reach_structure(A: sp.csr_array, B: sp.csr_array) -> _Reach:
     return _Reach(reachable=reach, idom=idom[:n], pre=pre, size=np.where(reach, size[:n], 0))
 
 
-def _bridges(A: sp.csr_array, r: _Reach) -> np.ndarray:
+def _bridges(A: Pattern, r: _Reach) -> np.ndarray:
     """Bool per link of ``A`` (CSR order): losing it cuts its target off every input.
 
     Edge ``x -> v`` is such a bridge iff ``x`` is the immediate dominator of ``v`` and
@@ -501,7 +501,7 @@ def contingency_sweep(system: StructuredSystem, *, elements: str = "links") -> C
     [False, False, True]
     """
     _check_elements(elements)
-    A, B = system.A, system.B
+    A, B = system.pattern("A"), system.pattern("B")
     n, m = system.n_states, system.n_inputs
     fA = matching_facts(A.indptr, A.indices, n)
     has_design = m > 0

@@ -9,6 +9,7 @@ from typing import Any
 
 import numpy as np
 
+from netctl._csr import take
 from netctl.errors import OptionError
 from netctl.graph.matching import maximum_matching
 from netctl.structural.robustness._common import (
@@ -143,7 +144,7 @@ def sampled_losses(system: StructuredSystem, *, elements: str = "links", k: int 
     for name, val, low in (("k", k, 1), ("samples", samples, 1)):
         if not isinstance(val, (int, np.integer)) or isinstance(val, bool) or val < low:
             raise OptionError(f"{name} must be an integer >= {low}, found {val!r}.")
-    A, B = system.A, system.B
+    A, B = system.pattern("A"), system.pattern("B")
     n = system.n_states
     total = A.nnz if elements == "links" else n
     if k > total:
@@ -177,10 +178,11 @@ def sampled_losses(system: StructuredSystem, *, elements: str = "links", k: int 
         else:
             keep = np.ones(n, bool)
             keep[pick] = False
-            A2 = A[keep][:, keep].tocsr()
+            kept = np.flatnonzero(keep)
+            A2 = take(A, kept, kept)
             nd[s] = _n_d(n - k, _matching_size(A2))
             if has_design:
-                ok[s] = _design_ok(A2, B[keep].tocsr())[0]
+                ok[s] = _design_ok(A2, take(B, rows=kept))[0]
         if progress is not None:
             progress(s + 1, samples)
     return SampledLosses(elements=elements, k=int(k), seed=int(seed), n_states=n,
