@@ -10,8 +10,8 @@ generated. Edge ``u -> v`` means "u influences v" (``A[v, u] != 0``).
 from __future__ import annotations
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import coo_pattern
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
 
@@ -40,7 +40,8 @@ def _check(value: float, name: str, low: float, high: float | None = None) -> No
 
 def _system(src: np.ndarray, dst: np.ndarray, n: int, *, nodes: dict | None = None,
             model: str = "first-order") -> StructuredSystem:
-    A = sp.csr_array((np.ones(src.size), (dst, src)), shape=(n, n))
+    A = coo_pattern(np.asarray(dst, np.int64), np.asarray(src, np.int64), None, (n, n),
+                    count=False)[0]
     return StructuredSystem(A=A, B=None, C=None, state_names=tuple(map(str, range(n))),
                             input_names=(), output_names=(), nodes=nodes or {},
                             weighted=False, model=model)
