@@ -130,3 +130,74 @@ def test_the_verbs_without_scipy_still_answer(tmp_path, capsys):
     assert run("sensors", str(f))["sensors"] == ["c"]
     assert run("check", str(f), "--inputs", "a")["controllable"] is True
     assert run("inspect", str(f))["structural_rank"] == 2
+
+
+#: more verbs that must not load scipy on the same two-line edge list ({f}: the file,
+#: {d}: a scratch folder): the import of scipy.sparse (and of csgraph, which brings
+#: scipy.linalg) was most of their run (issue 15, goal 1; benchmarks/RESULTS.md)
+NO_SCIPY_MORE = (
+    ["strong", "{f}"], ["strong", "{f}", "--inputs", "a"],
+    ["strong", "{f}", "--diagonal", "zero"], ["strong", "{f}", "--diagonal", "nonzero"],
+    ["node-control", "{f}"], ["node-control", "{f}", "--centrality"],
+    ["place", "{f}"], ["place", "{f}", "--sensors"], ["place", "{f}", "--method", "greedy"],
+    ["place", "{f}", "--targets", "c"],
+    ["whatif", "{f}", "--inputs", "a", "--remove-links", "a->b"],
+    ["whatif", "{f}", "--add-links", "c->d", "--remove-nodes", "b"],
+    ["convert", "{f}", "{d}/out.csv"], ["convert", "{f}", "{d}/out.toml"],
+    ["convert", "{f}", "{d}/out.graphml"], ["convert", "{f}", "{d}/out.json"],
+    ["convert", "{f}", "{d}/out.npz"], ["convert", "{f}", "{d}/out.matrix.csv"],
+    ["sweep", "{f}", "--inputs", "a"], ["sweep", "{f}", "--attack", "degree"],
+    ["generate", "erdos-renyi", "{d}/gen.csv", "--nodes", "3"],
+)
+
+
+def _scipy_modules_after(argv: list[str]) -> list[str]:
+    probe = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\n{run_main(argv)}\n"
+             "print(sorted(m for m in sys.modules if m == 'scipy' or m.startswith('scipy.')))")
+    r = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                       timeout=300, cwd=ROOT)
+    assert r.returncode == 0, r.stderr
+    return json.loads(r.stdout.strip().splitlines()[-1].replace("'", '"'))
+
+
+def test_more_verbs_on_a_small_edge_list_load_no_scipy(tmp_path):
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    for argv in NO_SCIPY_MORE:
+        args = [a.format(f=f, d=tmp_path) for a in argv]
+        assert _scipy_modules_after(args) == [], args
+
+
+def test_the_more_verbs_without_scipy_still_answer(tmp_path, capsys):
+    """The same runs give the published answers, so the check above cannot pass by a
+    verb that stopped early. The path a -> b -> c driven at a: one input, at its root
+    (Liu, Slotine & Barabási, Nature 473:167-173 (2011)); strongly controllable, since a
+    forces b and b forces c (zero forcing, Monshizadeh, Zhang & Camlibel, IEEE TAC
+    59(9):2562-2567 (2014)); a is in every minimum driver set (control capacity 1, Jia
+    & Barabási, Sci. Rep. 3:2354 (2013)); losing a -> b cuts b and c off the input."""
+    from netctl.cli import main
+    from netctl.io import read
+
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+
+    def run(*argv: str, ok: tuple[int, ...] = (0,)) -> dict:
+        try:
+            main([*argv, "--json"])
+        except SystemExit as exc:
+            assert (exc.code or 0) in ok, argv
+        return json.loads(capsys.readouterr().out)
+
+    assert run("strong", str(f), "--inputs", "a")["strongly_controllable"] is True
+    assert run("strong", str(f))["drivers"] == ["a"]
+    assert run("node-control", str(f))["capacity"]["capacity"] == {
+        "a": 1.0, "b": 0.0, "c": 0.0}
+    assert run("place", str(f))["sites"] == ["a"]
+    assert run("place", str(f), "--sensors")["sites"] == ["c"]
+    w = run("whatif", str(f), "--inputs", "a", "--remove-links", "a->b", ok=(1,))
+    assert w["before"]["controllable"] is True and w["after"]["controllable"] is False
+    assert w["after"]["fix"] == ["b"]
+    for out in ("out.csv", "out.toml", "out.graphml", "out.npz"):
+        run("convert", str(f), str(tmp_path / out))
+        back = read(tmp_path / out)
+        assert back.n_states == 3 and back.n_links == 2, out
