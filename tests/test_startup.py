@@ -133,7 +133,7 @@ def test_the_verbs_without_scipy_still_answer(tmp_path, capsys):
 
 
 #: more verbs that must not load scipy on the same two-line edge list ({f}: the file,
-#: {d}: a scratch folder): the import of scipy.sparse (and of csgraph, which brings
+#: {d}: a scratch folder; stations: a bundled small plant): the import of scipy.sparse (and of csgraph, which brings
 #: scipy.linalg) was most of their run (issue 15, goal 1; benchmarks/RESULTS.md)
 NO_SCIPY_MORE = (
     ["strong", "{f}"], ["strong", "{f}", "--inputs", "a"],
@@ -148,6 +148,8 @@ NO_SCIPY_MORE = (
     ["convert", "{f}", "{d}/out.npz"], ["convert", "{f}", "{d}/out.matrix.csv"],
     ["sweep", "{f}", "--inputs", "a"], ["sweep", "{f}", "--attack", "degree"],
     ["generate", "erdos-renyi", "{d}/gen.csv", "--nodes", "3"],
+    # a bundled plant of 12 states with its control stations ({n}: networks/)
+    ["stations", "{n}/heating_loop.toml", "--stations", "{n}/stations/heating_loop_stations.toml"],
 )
 
 
@@ -164,7 +166,7 @@ def test_more_verbs_on_a_small_edge_list_load_no_scipy(tmp_path):
     f = tmp_path / "two.txt"
     f.write_text("a b\nb c\n")
     for argv in NO_SCIPY_MORE:
-        args = [a.format(f=f, d=tmp_path) for a in argv]
+        args = [a.format(f=f, d=tmp_path, n=ROOT / "networks") for a in argv]
         assert _scipy_modules_after(args) == [], args
 
 

@@ -34,7 +34,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
+
+from netctl._csr import Pattern, coo_pattern
 from netctl._jit import njit
 
 from netctl.graph.components import strongly_connected_components
@@ -49,14 +50,19 @@ MAX_LOOP_STATIONS = 20
 
 
 # ------------------------------------------------------------------ condition (i)
-def _unclosed(A: sp.csr_array, B: sp.csr_array, C: sp.csr_array,
+def _coords(M: Pattern) -> tuple[np.ndarray, np.ndarray]:
+    """Row and column of every stored entry (CSR order, as ``M.tocoo()``)."""
+    return np.repeat(np.arange(M.shape[0], dtype=np.int64), np.diff(M.indptr)), M.indices
+
+
+def _unclosed(A: Pattern, B: Pattern, C: Pattern,
               stations: Sequence[Station]) -> list[np.ndarray]:
     """State groups (strong components of the closed-loop digraph holding no feedback
     link), each sorted; groups ordered by smallest state."""
     n, m, p = A.shape[0], B.shape[1], C.shape[0]
-    Ac, Bc, Cc = A.tocoo(), B.tocoo(), C.tocoo()
-    src = [Ac.col, n + Bc.col, Cc.col]
-    dst = [Ac.row, Bc.row, n + m + Cc.row]
+    (a_r, a_c), (b_r, b_c), (c_r, c_c) = _coords(A), _coords(B), _coords(C)
+    src = [a_c, n + b_c, c_c]
+    dst = [a_r, b_r, n + m + c_r]
     for st in stations:
         if st.inputs and st.outputs:
             yy, uu = np.meshgrid(np.asarray(st.outputs), np.asarray(st.inputs))
@@ -65,7 +71,7 @@ def _unclosed(A: sp.csr_array, B: sp.csr_array, C: sp.csr_array,
     s = np.concatenate(src).astype(np.int64)
     d = np.concatenate(dst).astype(np.int64)
     N = n + m + p
-    G = sp.csr_array((np.ones(s.size), (s, d)), shape=(N, N))
+    G = coo_pattern(s, d, None, (N, N), count=False)[0]
     _, labels = strongly_connected_components(G.indptr, G.indices)
     closed = np.zeros(labels.max() + 1 if N else 0, bool)
     closed[labels[n:n + m]] = True  # a component holding an input holds a feedback link
@@ -183,14 +189,19 @@ def _scan(ptr, idx, n, row_on, col_on, in_ptr, in_idx, out_ptr, out_idx, stop_be
     return best, best_mask, visited
 
 
-def _rank_condition(A: sp.csr_array, B: sp.csr_array, C: sp.csr_array,
+def _rank_condition(A: Pattern, B: Pattern, C: Pattern,
                     stations: Sequence[Station], *, first_failure: bool, max_loop: int
                     ) -> tuple[int, list[int], list[int], int]:
     """(least rank, stations in I, stations in J, subsets visited) over loop stations."""
     n, m, p = A.shape[0], B.shape[1], C.shape[0]
-    M = sp.block_array([[A, B], [C, None]], format="csr") if (m or p) else sp.csr_array(A)
-    M = sp.csr_array(M)
-    M.sort_indices()
+    if m or p:  # [[A, B], [C, 0]], canonical
+        (a_r, a_c), (b_r, b_c), (c_r, c_c) = _coords(A), _coords(B), _coords(C)
+        M = coo_pattern(np.concatenate([a_r, b_r, n + c_r]),
+                        np.concatenate([a_c, n + b_c, c_c]),
+                        np.concatenate([A.data, B.data, C.data]), (n + p, n + m),
+                        count=False)[0]
+    else:
+        M = A
     loop = [i for i, st in enumerate(stations) if st.inputs and st.outputs]
     if len(loop) > max_loop:
         raise ValueError(
@@ -372,8 +383,8 @@ def _candidates(system: StructuredSystem, stations: tuple[Station, ...]):
 
 
 def _apply(system: StructuredSystem, stations: tuple[Station, ...], f: StationChange
-           ) -> tuple[sp.csr_array, list[Station]]:
-    C = system.C
+           ) -> tuple[Pattern, list[Station]]:
+    C = system.pattern("C")
     st = list(stations)
     if f.kind == "move-output":
         st[f.source] = Station(st[f.source].name, st[f.source].inputs,
@@ -393,9 +404,9 @@ def _apply(system: StructuredSystem, stations: tuple[Station, ...], f: StationCh
         del st[f.target]
     else:
         p = C.shape[0]
-        row = sp.csr_array((np.ones(1), (np.zeros(1, np.int64), np.array([f.item]))),
-                           shape=(1, system.n_states))
-        C = sp.csr_array(sp.vstack([C, row], format="csr"))
+        rows, cols = _coords(C)  # a new last row reading state f.item
+        C = coo_pattern(np.append(rows, p), np.append(cols, int(f.item)),
+                        np.append(C.data, 1.0), (p + 1, system.n_states), count=False)[0]
         st[f.target] = Station(st[f.target].name, st[f.target].inputs,
                                st[f.target].outputs + (p,))
     return C, st
@@ -455,7 +466,7 @@ def fixed_modes(system: StructuredSystem, stations: Sequence[Station], *,
     """
     stations = tuple(stations)
     check_stations(system, stations)
-    A, B, C = system.A, system.B, system.C
+    A, B, C = system.pattern("A"), system.pattern("B"), system.pattern("C")
     unclosed = _unclosed(A, B, C, stations)
     least, in_I, in_J, visited = _rank_condition(A, B, C, stations, first_failure=False,
                                                  max_loop=max_loop_stations)
