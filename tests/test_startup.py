@@ -150,6 +150,7 @@ NO_SCIPY_MORE = (
     ["generate", "erdos-renyi", "{d}/gen.csv", "--nodes", "3"],
     # a bundled plant of 12 states with its control stations ({n}: networks/)
     ["stations", "{n}/heating_loop.toml", "--stations", "{n}/stations/heating_loop_stations.toml"],
+    ["join", "p={f}", "q={f}", "--ties", "{d}/ties.csv"],
 )
 
 
@@ -165,6 +166,7 @@ def _scipy_modules_after(argv: list[str]) -> list[str]:
 def test_more_verbs_on_a_small_edge_list_load_no_scipy(tmp_path):
     f = tmp_path / "two.txt"
     f.write_text("a b\nb c\n")
+    (tmp_path / "ties.csv").write_text("from_system,from_state,to_system,to_state\np,c,q,a\n")
     for argv in NO_SCIPY_MORE:
         args = [a.format(f=f, d=tmp_path, n=ROOT / "networks") for a in argv]
         assert _scipy_modules_after(args) == [], args

@@ -16,8 +16,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, coo_pattern, take, transpose_pattern
 from netctl.errors import InvalidSystemError, OptionError, UnknownNameError
 from netctl.records import TIE_KINDS, Tie
 from netctl.structural.controllability import ControllabilityReport, controllability
@@ -118,8 +118,9 @@ def compose(systems: Mapping[str, StructuredSystem], ties: Sequence[Tie | Sequen
         else:
             y = _lookup(S, t.from_system, t.from_name, "output", t)
             u = _lookup(T, t.to_system, t.to_name, "input", t)
-            read = S.C.indices[S.C.indptr[y]:S.C.indptr[y + 1]].astype(np.int64)
-            Bc = T.B.tocsc()
+            SC = S.pattern("C")
+            read = SC.indices[SC.indptr[y]:SC.indptr[y + 1]].astype(np.int64)
+            Bc = transpose_pattern(T.pattern("B"))  # row u: the states input u acts on
             acted = Bc.indices[Bc.indptr[u]:Bc.indptr[u + 1]].astype(np.int64)
             if read.size == 0 or acted.size == 0:
                 raise InvalidSystemError(f"tie {t.label()}: the output reads no state or the "
@@ -130,39 +131,37 @@ def compose(systems: Mapping[str, StructuredSystem], ties: Sequence[Tie | Sequen
             rows.append(rr.ravel())
             cols.append(cc.ravel())
             consumed[in_offsets[pos[t.to_system]] + u] = True
-    blocks_A = sp.block_diag([systems[nm].A for nm in names], format="csr") if N else \
-        sp.csr_array((0, 0))
+    blocks_A = _block_diag([systems[nm].pattern("A") for nm in names])
     if rows:
         r = np.concatenate(rows)
         c = np.concatenate(cols)
-        extra = sp.coo_array((np.ones(r.size), (r, c)), shape=(N, N)).tocsr()
-        extra.data[:] = 1.0
-        present = blocks_A.multiply(extra)
-        if present.nnz:
-            raise InvalidSystemError(f"{present.nnz} tie link(s) duplicate a link already "
+        extra = coo_pattern(r, c, None, (N, N), count=False)[0]  # each tie link once
+        a_rows = np.repeat(np.arange(N, dtype=np.int64), np.diff(blocks_A.indptr))
+        e_rows = np.repeat(np.arange(N, dtype=np.int64), np.diff(extra.indptr))
+        n_present = int(np.count_nonzero(np.isin(e_rows * max(N, 1) + extra.indices,
+                                                 a_rows * max(N, 1) + blocks_A.indices)))
+        if n_present:
+            raise InvalidSystemError(f"{n_present} tie link(s) duplicate a link already "
                                      "inside a subsystem; list each link once.")
-        A = (blocks_A + extra).tocsr()
+        A = coo_pattern(np.concatenate([a_rows, e_rows]),
+                        np.concatenate([blocks_A.indices, extra.indices]),
+                        np.concatenate([blocks_A.data, np.ones(extra.nnz)]), (N, N),
+                        count=False)[0]
     else:
         A = blocks_A
-    Bfull = sp.block_diag([systems[nm].B for nm in names], format="csc") if in_offsets[-1] \
-        else sp.csc_array((N, 0))
-    B = Bfull[:, np.flatnonzero(~consumed)] if consumed.any() else Bfull
-    Cfull = sp.block_diag([systems[nm].C for nm in names], format="csr") if \
-        sum(systems[nm].n_outputs for nm in names) else sp.csr_array((0, N))
+    Bfull = _block_diag([systems[nm].pattern("B") for nm in names])
+    B = take(Bfull, cols=np.flatnonzero(~consumed)) if consumed.any() else Bfull
+    Cfull = _block_diag([systems[nm].pattern("C") for nm in names])
     state_names = [f"{nm}{separator}{x}" for nm in names for x in systems[nm].state_names]
     input_names = [f"{nm}{separator}{x}" for nm in names for x in systems[nm].input_names]
     output_names = [f"{nm}{separator}{x}" for nm in names for x in systems[nm].output_names]
     kept_inputs = [x for x, c in zip(input_names, consumed) if not c]
     models = {systems[nm].model for nm in names}
     # disturbances and regulated outputs stay with their subsystem (block diagonal)
-    q = sum(systems[nm].n_disturbances for nm in names)
-    r_reg = sum(systems[nm].n_regulated for nm in names)
-    Efull = sp.block_diag([systems[nm].E for nm in names], format="csr") if q else \
-        sp.csr_array((N, 0))
-    Hfull = sp.block_diag([systems[nm].H for nm in names], format="csr") if r_reg else \
-        sp.csr_array((0, N))
+    Efull = _block_diag([systems[nm].pattern("E") for nm in names])
+    Hfull = _block_diag([systems[nm].pattern("H") for nm in names])
     composite = StructuredSystem(
-        A=A, B=sp.csr_array(B), C=Cfull, state_names=tuple(state_names),
+        A=A, B=B, C=Cfull, state_names=tuple(state_names),
         input_names=tuple(kept_inputs), output_names=tuple(output_names),
         nodes=_stack_nodes([systems[nm] for nm in names]),
         weighted=all(systems[nm].weighted for nm in names),
@@ -178,6 +177,24 @@ def compose(systems: Mapping[str, StructuredSystem], ties: Sequence[Tie | Sequen
                      offsets=offsets, consumed_inputs=tuple(x for x, c in
                                                            zip(input_names, consumed) if c),
                      approximate=tuple(approx))
+
+
+def _block_diag(parts: list[Pattern]) -> Pattern:
+    """The block-diagonal matrix of canonical patterns (scipy's ``block_diag``),
+    canonical and read-only: each row lies in one block, its columns shifted by the
+    widths of the blocks before."""
+    data, indices, indptr = [], [], [np.zeros(1, np.int64)]
+    n_rows = n_cols = nnz = 0
+    for p in parts:
+        data.append(p.data)
+        indices.append(p.indices + n_cols)
+        indptr.append(p.indptr[1:] + nnz)
+        n_rows += p.shape[0]
+        n_cols += p.shape[1]
+        nnz += p.nnz
+    return Pattern(np.concatenate(data) if data else np.zeros(0),
+                   np.concatenate(indices) if indices else np.zeros(0, np.int64),
+                   np.concatenate(indptr), (n_rows, n_cols)).frozen()
 
 
 def _stack_nodes(parts: list[StructuredSystem]) -> dict[str, np.ndarray]:
