@@ -428,7 +428,7 @@ class StructuredSystem:
         lookup = self._index.get(kind)
         names = names if isinstance(names, (list, tuple)) else list(names)
         if lookup is None and not isinstance(pool, NameList):
-            lookup = name_lookup(pool, names, self._index, kind)
+            lookup = name_lookup(pool, names, self._index, kind)  # type: ignore[assignment]
         out = []
         for name in names:
             key = str(name)
