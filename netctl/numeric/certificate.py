@@ -18,17 +18,34 @@ from netctl.numeric.rank import _EPS, RankTest, _margin
 from netctl.numeric.verdict import MARGIN_DECADES
 from netctl.system import StructuredSystem
 
-__all__ = ["sparse_certificate", "THRESHOLD_LU_FROM", "PIVOT_THRESHOLD"]
+__all__ = ["sparse_certificate", "THRESHOLD_LU_FROM", "ONE_WAY_BELOW", "PIVOT_THRESHOLD"]
 
 #: Strongly connected blocks of at least this many states in all are factorized first
 #: with threshold pivoting on a symmetric fill-reducing ordering (our choice, measured
 #: in benchmarks/RESULTS.md: below it the reference factorization takes milliseconds).
 THRESHOLD_LU_FROM = 2000
+#: ... and when fewer than this fraction of their links are reciprocated (u -> v and
+#: v -> u): on networks with links both ways (grids, ring lattices) the reference
+#: ordering filled less in our measurements, on directed random networks the symmetric
+#: one (benchmarks/RESULTS.md; our choice, no published source).
+ONE_WAY_BELOW = 0.5
 #: The diagonal entry stays the pivot while it is at least this fraction of the largest
 #: entry below it in its column (threshold partial pivoting; 0.1 is the value commonly
 #: recommended, Duff, Erisman & Reid, "Direct Methods for Sparse Matrices", 1986, §5.4 --
 #: from memory).
 PIVOT_THRESHOLD = 0.1
+
+
+def _reciprocity(A: sp.spmatrix, states: np.ndarray) -> float:
+    """Fraction of the links among ``states`` (self-loops aside) whose reverse is a
+    link too."""
+    P = sp.csr_matrix(A)[states][:, states].tocoo()
+    off = (P.row != P.col) & (P.data != 0)
+    P = sp.csr_matrix((np.ones(int(off.sum()), np.int8), (P.row[off], P.col[off])),
+                      shape=P.shape)
+    if P.nnz == 0:
+        return 0.0
+    return float(P.multiply(P.T).nnz) / float(P.nnz)
 
 
 def _partial_pivots(blk: sp.csc_matrix) -> np.ndarray:
@@ -112,8 +129,9 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
 
     Two factorizations, one decision rule. The reference one (COLAMD column ordering,
     partial pivoting) must find every pivot above ``tol = n eps max(1, max|M|)``.
-    Blocks of :data:`THRESHOLD_LU_FROM` states or more are first factorized with the
-    matched entries kept on the diagonal: a symmetric minimum-degree ordering of
+    Blocks of :data:`THRESHOLD_LU_FROM` states or more whose links are mostly one-way
+    (:data:`ONE_WAY_BELOW`) are first factorized with the matched entries kept on the
+    diagonal: a symmetric minimum-degree ordering of
     ``|M| + |M|^T`` and threshold pivoting (:data:`PIVOT_THRESHOLD`) [2]_, several times
     less fill on random networks. Its witness counts only when every pivot clears a
     tolerance raised by its element growth (``tol max(1, max|L| max|U| / max(1,
@@ -186,7 +204,8 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
         blk = sp.csc_matrix((sub.data[same], (sub.row[same], sub.col[same])),
                             shape=(order.size, order.size))
         others = float(diag[~big].min(initial=np.inf))
-        fast = _threshold_pivots(blk, tol) if order.size >= THRESHOLD_LU_FROM else None
+        fast = (_threshold_pivots(blk, tol) if order.size >= THRESHOLD_LU_FROM
+                and _reciprocity(real.A, order) < ONE_WAY_BELOW else None)
         if fast is not None and min(float(fast[0].min(initial=np.inf)), others) >= (
                 10.0 ** MARGIN_DECADES) * fast[1]:
             pivots.append(fast[0])

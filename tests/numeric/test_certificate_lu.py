@@ -34,9 +34,10 @@ from netctl.numeric.verdict import MARGIN_DECADES
 
 def _certify(system: StructuredSystem, path: str, weights: str = "given", seed: int = 0):
     """The certificate with the faster factorization tried on every block of two or more
-    states (``threshold``) or never (``reference``)."""
+    states, links both ways or not (``threshold``), or never (``reference``)."""
     limit = 0 if path == "threshold" else 10**12
-    with mock.patch.object(certificate, "THRESHOLD_LU_FROM", limit):
+    with mock.patch.object(certificate, "THRESHOLD_LU_FROM", limit), \
+            mock.patch.object(certificate, "ONE_WAY_BELOW", 2.0):
         return sparse_certificate(system, weights=weights, seed=seed)
 
 
@@ -205,3 +206,46 @@ def test_a_witness_close_to_its_tolerance_leaves_the_decision_to_the_reference(
     if not used:
         assert (r.smallest_kept, r.tolerance, r.margin) == (
             ref.smallest_kept, ref.tolerance, ref.margin)
+
+
+def test_reciprocity_matches_networkx():
+    # the gate of the faster path: networkx.overall_reciprocity on the states' subgraph
+    import networkx as nx
+
+    rng = np.random.default_rng(11)
+    for _ in range(40):
+        n = int(rng.integers(3, 40))
+        A = (rng.random((n, n)) < 3.0 / n).astype(float)
+        A[np.arange(n), np.arange(n)] = rng.random(n) < 0.3  # self-loops are left out
+        keep = np.sort(rng.choice(n, int(rng.integers(2, n + 1)), replace=False))
+        G = nx.DiGraph()
+        G.add_nodes_from(range(keep.size))
+        sub = A[np.ix_(keep, keep)]
+        G.add_edges_from((j, i) for i, j in zip(*np.nonzero(sub)) if i != j)
+        expected = nx.overall_reciprocity(G) if G.number_of_edges() else 0.0
+        assert certificate._reciprocity(sp.csr_matrix(A), keep) == pytest.approx(expected)
+
+
+def test_grids_keep_the_reference_factorization_and_directed_networks_do_not():
+    # links both ways (a 60 x 60 grid, one input): the reference LU; a directed random
+    # network with one large block: the faster path (default thresholds)
+    from netctl.structural import minimum_inputs
+
+    k = 60
+    idx = np.arange(k * k).reshape(k, k)
+    a = np.concatenate([idx[:, :-1].ravel(), idx[:-1, :].ravel()])
+    b = np.concatenate([idx[:, 1:].ravel(), idx[1:, :].ravel()])
+    grid = StructuredSystem.from_edges(np.concatenate([a, b]), np.concatenate([b, a]), k * k,
+                                       inputs=[0])
+    r = sparse_certificate(grid, seed=1)
+    assert r.dimension == k * k and r.blocks.sum() >= certificate.THRESHOLD_LU_FROM
+    assert "threshold pivoting" not in r.note
+    rng = np.random.default_rng(5)
+    n = 12000
+    u, v = rng.integers(0, n, 4 * n), rng.integers(0, n, 4 * n)
+    key = np.unique(u[u != v] * n + v[u != v])
+    s = StructuredSystem.from_edges(key // n, key % n, n)
+    s = minimum_inputs(s, dedicated=True).apply(s)
+    r = sparse_certificate(s, seed=1)
+    assert r.dimension == n and r.blocks[0] >= certificate.THRESHOLD_LU_FROM
+    assert "threshold pivoting" in r.note
