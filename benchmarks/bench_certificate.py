@@ -6,8 +6,9 @@ For each network file (read as ``netctl verify`` reads it, a minimum dedicated i
 when the file has no inputs, ``independent`` weights, random start 0): the blocks of the
 matched columns of ``[A B]``, the reciprocity of their links, and both factorizations
 timed in turn -- the reference (COLAMD, partial pivoting) and the faster one
-(``MMD_AT_PLUS_A``, threshold pivoting 0.1) -- with the margin each would report. Whole verbs are timed with ``farm-bench`` (see
-benchmarks/RESULTS.md, "Sparse certificate on random directed networks").
+(``MMD_AT_PLUS_A``, threshold pivoting 0.1) -- with the margin each would report. Whole
+verbs are timed with ``farm-bench`` (see benchmarks/RESULTS.md, "Sparse certificate on
+random directed networks").
 
 Networks of the table (scenarios of our own, reproducible)::
 

@@ -31,8 +31,8 @@ THRESHOLD_LU_FROM = 2000
 ONE_WAY_BELOW = 0.5
 #: The diagonal entry stays the pivot while it is at least this fraction of the largest
 #: entry below it in its column (threshold partial pivoting; 0.1 is the value commonly
-#: recommended, Duff, Erisman & Reid, "Direct Methods for Sparse Matrices", 1986, §5.4 --
-#: from memory).
+#: recommended, Duff, Erisman & Reid, "Direct Methods for Sparse Matrices", 1986 -- from
+#: memory).
 PIVOT_THRESHOLD = 0.1
 
 
@@ -131,16 +131,19 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
     partial pivoting) must find every pivot above ``tol = n eps max(1, max|M|)``.
     Blocks of :data:`THRESHOLD_LU_FROM` states or more whose links are mostly one-way
     (:data:`ONE_WAY_BELOW`) are first factorized with the matched entries kept on the
-    diagonal: a symmetric minimum-degree ordering of
-    ``|M| + |M|^T`` and threshold pivoting (:data:`PIVOT_THRESHOLD`) [2]_, several times
-    less fill on random networks. Its witness counts only when every pivot clears a
-    tolerance raised by its element growth (``tol max(1, max|L| max|U| / max(1,
-    max|M|))``, from the backward error bound ``gamma_n |L||U|`` of LU [3]_) by at
+    diagonal: a symmetric minimum-degree ordering of ``|M| + |M|^T`` and threshold
+    pivoting (:data:`PIVOT_THRESHOLD`) [2]_ (on random directed networks about 1.7x less
+    fill and 2-3x less time, benchmarks/RESULTS.md). Its witness counts only when every
+    pivot clears a tolerance raised by its element growth (``tol max(1, max|L| max|U| /
+    max(1, max|M|))``, from the backward error bound ``gamma_n |L||U|`` of LU [3]_) by at
     least :data:`~netctl.numeric.verdict.MARGIN_DECADES` decades; otherwise the
-    reference factorization decides, exactly as before. Either way a certificate is a
-    pivot sequence of an LU of ``M`` that stays clear of the rounding its own
-    factorization can commit; neither path is rank-revealing in the strict sense
-    (no LU is), which is why a failure is only *inconclusive*.
+    reference factorization decides, exactly as before. Either way a certificate is the
+    pivot sequence of an LU of ``M`` clear of its tolerance; an exactly singular block
+    shows as a pivot at the rounding level of the factorization, which the tolerance
+    covers (checked against exact arithmetic in the tests). Neither path is
+    rank-revealing in the strict sense (no LU is: a triangular factor can hide a tiny
+    singular value behind moderate pivots), which is why a failure is only
+    *inconclusive* and why the verb settles close calls with other tests.
 
     References
     ----------
