@@ -91,7 +91,7 @@ BAD = [
     pytest.param("a,b\nc,d,1.0,9\n", "2: expected 'source target [weight]', found 4 columns",
                  id="too-many-columns"),
     pytest.param("a,b,1.0\nc,d,heavy\n", "2: the weight 'heavy' is not a number", id="bad-weight"),
-    pytest.param("a,b,1\nc,d\n", "2: this line has 2 columns but earlier lines have 3",
+    pytest.param("a,b,1\nc,d\n", "2: this line has 2 columns: 'c,d', but earlier link lines have 3",
                  id="mixed-columns"),
     pytest.param("# only a comment\n\n", "the file holds no links and no states", id="empty"),
     pytest.param(b"a,b\n\xff\xfe,c\n", "2: the name", id="bad-encoding"),

@@ -8,16 +8,16 @@ from __future__ import annotations
 
 import math
 import warnings
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from typing import Any
 
 import numpy as np
 
-from netctl.io._common import file_error
+from netctl.io._common import excerpt, file_error
 from netctl.io._signals import apply_node_kinds, regulated_not_kept
 from netctl.system import StructuredSystem, _node_table_from_attrs
 
-__all__ = ["system_from_parts", "node_rows", "refuse_unsafe_xml", "warn_not_kept"]
+__all__ = ["Locate", "system_from_parts", "node_rows", "refuse_unsafe_xml", "warn_not_kept"]
 
 _SCALARS = (str, int, float, bool)
 _NUMERIC = ("x", "y", "actuator_cost", "sensor_cost")
@@ -27,30 +27,52 @@ def _scalar(v: Any) -> bool:
     return isinstance(v, _SCALARS) or isinstance(v, (np.integer, np.floating, np.bool_))
 
 
+#: ``locate(kind, index)``: the line of the file that holds node ``index`` (``kind``
+#: ``"node"``) or edge ``index`` (``"edge"``) of the lists given to
+#: :func:`system_from_parts`, or None where the format (or the file) does not say.
+Locate = Callable[[str, int], "int | None"]
+
+
+def _no_line(kind: str, index: int) -> int | None:
+    return None
+
+
 def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mapping[str, Any]],
                       sources: Sequence[int], targets: Sequence[int],
                       weights: Sequence[Any] | None, directed: bool, *,
-                      model: str, what: str) -> StructuredSystem:
+                      model: str, what: str, locate: Locate | None = None) -> StructuredSystem:
     """Build a system from node names, node attribute dicts and edge index lists.
 
-    Raises NetworkFileError for non-scalar node attributes and non-numeric weights.
+    Raises NetworkFileError for non-scalar node attributes, non-numeric, NaN or infinite
+    weights and two nodes of one name, each naming the node or link and, where
+    ``locate`` finds it, the line (it is called only on such an error: a good file
+    pays nothing for it).
     """
-    for name, a in zip(names, attrs):
+    where = locate or _no_line
+    for i, (name, a) in enumerate(zip(names, attrs)):
         for k, v in a.items():
             if not _scalar(v):
-                raise file_error(path, None, f"attribute {k!r} of node {str(name)!r} has the "
-                                 f"type {type(v).__name__} ({v!r}); node attributes must be "
-                                 f"numbers, strings or booleans in a {what} file for netctl.")
+                raise file_error(path, where("node", i), f"attribute {k!r} of node "
+                                 f"{str(name)!r} has the type {type(v).__name__} ({v!r}); node "
+                                 f"attributes must be numbers, strings or booleans in a {what} "
+                                 "file for netctl.")
             if k in _NUMERIC and (isinstance(v, (bool, np.bool_)) or not _is_number(v)
                                   or not math.isfinite(float(v))):
-                raise file_error(path, None, f"attribute {k!r} of node {str(name)!r} must be "
-                                 f"a finite number, found {v!r}.")
+                raise file_error(path, where("node", i), f"attribute {k!r} of node "
+                                 f"{str(name)!r} must be a finite number, found {v!r}; give "
+                                 "a finite number (or leave the attribute out).")
     str_names = [str(x) for x in names]
     if len(set(str_names)) != len(str_names):
-        seen: set[str] = set()
-        dup = next(x for x in str_names if x in seen or seen.add(x))  # type: ignore[func-returns-value]
-        raise file_error(path, None, f"two nodes have the name {dup!r} (as text); give every "
-                         "node a distinct id.")
+        first: dict[str, int] = {}
+        for i, x in enumerate(str_names):
+            if x in first:
+                break
+            first[x] = i
+        before = where("node", first[x])
+        raise file_error(path, where("node", i), f"a second node has the name {x!r} (as "
+                         "text; the first is "
+                         f"{f'on line {before}' if before is not None else f'node {first[x]}'}"
+                         f"); give every node a distinct id.")
     src = np.asarray(sources, dtype=np.int64)
     dst = np.asarray(targets, dtype=np.int64)
     w = None
@@ -60,12 +82,16 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
                 raise TypeError("a boolean is no weight")  # float(True) would be 1.0
             w = np.array([1.0 if x is None else float(x) for x in weights], dtype=np.float64)
         except (TypeError, ValueError):
-            bad = next(x for x in weights if not _is_number(x))
-            raise file_error(path, None, f"the edge weight {bad!r} is not a number; give "
-                             "numeric weights (or none).") from None
+            e = next(i for i, x in enumerate(weights) if x is not None and not _is_number(x))
+            raise file_error(path, where("edge", e), f"the weight {weights[e]!r} of the link "
+                             f"{_link(str_names, src, dst, e)} is not a number; give numeric "
+                             "weights (or none).") from None
         if not np.all(np.isfinite(w)):
-            raise file_error(path, None, "some edge weights are NaN or infinite; give finite "
-                             "weights.")
+            e = int(np.flatnonzero(~np.isfinite(w))[0])
+            raise file_error(path, where("edge", e), f"the link "
+                             f"{_link(str_names, src, dst, e)} has the weight "
+                             f"{weights[e]!r}, which is NaN or infinite; give a finite "
+                             "weight.")
         zero = w == 0
         if zero.any():
             nz = int(zero.sum())
@@ -86,6 +112,11 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
     for c in caught:
         warnings.warn(f"{path}: {c.message}", stacklevel=3)
     return apply_node_kinds(system, path)
+
+
+def _link(names: Sequence[str], src: np.ndarray, dst: np.ndarray, e: int) -> str:
+    """``'u' -> 'v'``: link ``e`` by the names of its ends."""
+    return f"{excerpt(names[int(src[e])])} -> {excerpt(names[int(dst[e])])}"
 
 
 def _is_number(x: Any) -> bool:

@@ -43,6 +43,7 @@ from netctl.io._common import (
     max_bytes,
     note_input,
 )
+from netctl.io._edgecolumns import empty_weight, mixed_columns
 from netctl.io._edgemarks import apply_marks, header_marks, quoted_names, repeated_header
 from netctl.io._edgenames import _INT, cat_arrays, factorize_ints, int_order, unquote_names
 from netctl.io._edgesmall import SMALL_BYTES, read_small
@@ -398,9 +399,21 @@ class _Scan:
         if st[10] == _k.ERR_TOO_MANY:
             raise file_error(self.path, line, f"expected 'source target [weight]', found {nf} "
                              f"columns in {excerpt(text)}. {_FORMAT_HELP}")
-        raise file_error(self.path, line, f"this line has {nf} columns but earlier lines have "
-                         f"{int(st[2])}: {excerpt(text)}. Give a weight on every link line or on none "
-                         "(a line with one name declares a state).")
+        fix = "Give a weight on every link line or on none (a line with one name declares a state)."
+        where = mixed_columns(self.path, line, text, nf, _is_header)
+        if where is None:
+            raise file_error(self.path, line, f"this line has {nf} columns but earlier lines "
+                             f"have {int(st[2])}: {excerpt(text)}. {fix}")
+        if where.line != line:  # an earlier line's weight is empty: that line is to correct
+            raise file_error(self.path, where.line, f"the weight column of this line is "
+                             f"empty ({excerpt(where.text)} ends with a separator), but line "
+                             f"{line} gives a weight ({excerpt(text)}). {fix}")
+        raw = chunk[int(st[11]):int(st[12])].decode("utf-8", errors="replace")
+        said = ("the weight column of this line is empty" if empty_weight(raw) else
+                f"this line has {nf} columns")
+        raise file_error(self.path, line, f"{said}: {excerpt(text)}, but earlier link lines "
+                         f"have {int(st[2])} (the first: line {where.first_line}, "
+                         f"{excerpt(where.first_text)}). {fix}")
 
     def _fallback_weights(self, chunk: bytes, w: np.ndarray, edges: np.ndarray,
                           lines: np.ndarray, starts: np.ndarray, ends: np.ndarray) -> None:

@@ -7,13 +7,15 @@ are written as 1/0 and read back as true/false.
 
 from __future__ import annotations
 
+import html
 import io
 import os
 import re
+from typing import Any
 
 from netctl.io._common import atomic_write, file_error, read_text, refuse_lone_surrogates
 from netctl.io._graphs import warn_not_kept
-from netctl.io.graphml import graph_to_system, system_to_graph
+from netctl.io.graphml import Find, finite_weight, graph_to_system, system_to_graph
 from netctl.system import StructuredSystem
 
 __all__ = ["read_gml", "write_gml"]
@@ -37,11 +39,104 @@ def read_gml(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         msg = str(exc)
         m = re.search(r"at \((\d+), (\d+)\)", msg)
         line = int(m.group(1)) if m else None
+        dup = _DUPLICATE.search(msg)
+        if dup:  # networkx names the id or label, not where it is
+            raise _duplicate(path, text, dup.group(1), dup.group(2)) from None
         raise file_error(path, line, f"malformed GML: {msg}. Check brackets and quotes; "
                          "every node needs an id and a unique label.") from None
     except (ValueError, TypeError, KeyError) as exc:
         raise file_error(path, None, f"not a GML graph netctl can read: {exc}.") from None
-    return graph_to_system(g, path, model=model, what="GML")
+    return graph_to_system(g, path, model=model, what="GML", find=_finder(text))
+
+
+#: networkx's message for a node id or label given twice
+_DUPLICATE = re.compile(r"node (id|label) (.*) is duplicated")
+#: GML's tokens, as networkx reads them: keys, numbers, strings, brackets; '#' comments
+_TOKEN = re.compile(r'([A-Za-z][0-9A-Za-z_]*)|([+-]?(?:[0-9]*\.[0-9]+|[0-9]+\.?[0-9]*|INF)'
+                    r'(?:[Ee][+-]?[0-9]+)?)|("[^"]*")|(\[)|(\])|#[^\n]*|\s+|(.)')
+
+
+def _blocks(text: str) -> list[tuple[str, int, dict[str, str]]]:
+    """The node and edge blocks of a GML graph, in file order: (``node`` or ``edge``, the
+    line it opens on, its scalar keys with their values as written, strings unquoted
+    and unescaped)."""
+    out: list[tuple[str, int, dict[str, str]]] = []
+    stack: list[str] = []
+    key: str | None = None
+    current: dict[str, str] | None = None
+    for m in _TOKEN.finditer(text):
+        word, number, string, opening, closing, other = m.groups()
+        if opening is not None:
+            stack.append(key or "")
+            if len(stack) == 2 and stack[0] == "graph" and stack[1] in ("node", "edge"):
+                current = {}
+                out.append((stack[1], text.count("\n", 0, m.start()) + 1, current))
+            key = None
+        elif closing is not None:
+            if stack:
+                stack.pop()
+            if len(stack) < 2:
+                current = None
+            key = None
+        elif key is None and word is not None:
+            key = word
+        elif key is not None and (word or number or string) is not None:
+            value = html.unescape(string[1:-1]) if string is not None else (word or number)
+            if current is not None and len(stack) == 2:
+                current.setdefault(key, value)
+            key = None
+        elif other is not None:
+            key = None
+    return out
+
+
+def _same(written: str | None, key: Any) -> bool:
+    """Whether an id or label as written in the file is ``key`` as networkx read it."""
+    if written is None:
+        return False
+    if written == str(key):
+        return True
+    try:
+        return float(written) == float(key)
+    except (TypeError, ValueError):
+        return False
+
+
+def _duplicate(path: object, text: str, what: str, shown: str) -> Exception:
+    """The error for a node id or label given twice, with the lines of both."""
+    field = what
+    key = shown[1:-1] if shown[:1] in "'\"" and shown[-1:] == shown[:1] else shown
+    lines = [line for kind, line, d in _blocks(text) if kind == "node" and
+             _same(d.get(field), key)]
+    line = lines[1] if len(lines) > 1 else None
+    first = f" (first on line {lines[0]})" if len(lines) > 1 else ""
+    return file_error(path, line, f"a second node has the {field} {shown}{first}; give "
+                      f"every node its own {field}.")
+
+
+def _finder(text: str) -> Find:
+    """``find`` for :func:`graph_to_system` over the GML ``text`` (labels name the
+    nodes, edges give ids): tokenized again only when a line is asked for."""
+    found: list[list[tuple[str, int, dict[str, str]]]] = []
+
+    def find(kind: str, key: Any) -> int | None:
+        if not found:
+            found.append(_blocks(text))
+        blocks = found[0]
+        nodes = [(line, d) for k, line, d in blocks if k == "node"]
+        if kind == "node":
+            return next((line for line, d in nodes if _same(d.get("label"), key)), None)
+        ids = [next((d.get("id") for _, d in nodes if _same(d.get("label"), end)), None)
+               for end in key]
+        hits = [(line, d.get("weight")) for k, line, d in blocks if k == "edge"
+                and all(_same(d.get(end), i) for end, i in zip(("source", "target"), ids)
+                        if i is not None)
+                and None not in ids]
+        bad = [line for line, w in hits if w is not None and not finite_weight(w)]
+        lines = bad or [line for line, _ in hits]
+        return lines[0] if lines else None
+
+    return find
 
 
 def write_gml(system: StructuredSystem, path: str | os.PathLike[str]) -> None:

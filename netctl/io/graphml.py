@@ -10,9 +10,11 @@ regulated output reading the node (see :mod:`netctl.io._signals`).
 from __future__ import annotations
 
 import io
+import math
 import os
 import re
 import warnings
+from collections.abc import Callable
 from typing import Any
 
 from netctl.io._common import atomic_write, excerpt, file_error, read_bytes
@@ -20,11 +22,19 @@ from netctl.io._graphs import node_rows, refuse_unsafe_xml, system_from_parts, w
 from netctl.io._signals import dedicated_regulated, disturbance_links, disturbance_rows
 from netctl.system import StructuredSystem
 
-__all__ = ["read_graphml", "write_graphml", "graph_to_system", "system_to_graph"]
+__all__ = ["read_graphml", "write_graphml", "graph_to_system", "system_to_graph", "Find",
+           "finite_weight"]
 
 
-def graph_to_system(g: Any, path: object, *, model: str, what: str) -> StructuredSystem:
-    """A networkx graph (as read from ``path``) as a system; warns about what is not kept."""
+#: ``find(kind, key)``: the line of the node ``key`` (``kind`` ``"node"``, the graph's
+#: node key) or of the edge ``key`` (``"edge"``, a pair of node keys), or None.
+Find = Callable[[str, Any], "int | None"]
+
+
+def graph_to_system(g: Any, path: object, *, model: str, what: str,
+                    find: Find | None = None) -> StructuredSystem:
+    """A networkx graph (as read from ``path``) as a system; warns about what is not kept.
+    ``find`` places a node or edge the system refuses on its line of the file."""
     nodes = list(g.nodes())
     index = {v: i for i, v in enumerate(nodes)}
     edges = list(g.edges(data=True))
@@ -37,11 +47,17 @@ def graph_to_system(g: Any, path: object, *, model: str, what: str) -> Structure
             f"graph attributes {', '.join(map(repr, dropped))} are not kept" if dropped else "")
             if x) + ".", stacklevel=3)
     weighted = any("weight" in d for _, _, d in edges)
+
+    def locate(kind: str, k: int) -> int | None:
+        if find is None:
+            return None
+        return find(kind, nodes[k] if kind == "node" else (edges[k][0], edges[k][1]))
+
     return system_from_parts(
         path, nodes, [dict(g.nodes[v]) for v in nodes],
         [index[u] for u, _, _ in edges], [index[v] for _, v, _ in edges],
         [d.get("weight") for _, _, d in edges] if weighted else None,
-        g.is_directed(), model=model, what=what)
+        g.is_directed(), model=model, what=what, locate=locate)
 
 
 def system_to_graph(system: StructuredSystem) -> Any:
@@ -79,6 +95,7 @@ def _check_ids(path: object, data: bytes) -> None:
     parser = xml.parsers.expat.ParserCreate()
     nodes: dict[str, tuple[int, list[tuple[str, str]]]] = {}
     ends: list[tuple[str, int]] = []
+    again: list[tuple[str, int, int]] = []  # (id, first line, line of the repeat)
     state: dict[str, Any] = {"node": None, "key": None, "text": [], "depth": 0}
 
     def start(tag: str, attrs: dict[str, str]) -> None:
@@ -116,6 +133,8 @@ def _check_ids(path: object, data: bytes) -> None:
                 raise file_error(path, line, f"the node id {excerpt(nid)} is declared again "
                                  f"with different attributes (first on line {nodes[nid][0]}); "
                                  "give each node one declaration.")
+            if nid in nodes:
+                again.append((nid, nodes[nid][0], line))
             nodes.setdefault(nid, (line, attrs))
 
     parser.StartElementHandler = start
@@ -129,6 +148,96 @@ def _check_ids(path: object, data: bytes) -> None:
         if nid not in nodes:
             raise file_error(path, line, f"an edge names the node {excerpt(nid)}, which no "
                              "<node> declares; declare it (netctl does not invent states).")
+    if again:
+        nid, first, line = again[0]
+        more = f" ({len(again) - 1} more node ids likewise)" if len(again) > 1 else ""
+        warnings.warn(f"{path}:{line}: the node id {excerpt(nid)} is declared again, with the "
+                      f"same attributes (first on line {first}); read as one node{more}. "
+                      "GraphML wants each id once: remove the repeat, or give a different "
+                      "node its own id.", stacklevel=3)
+
+
+def finite_weight(value: Any) -> bool:
+    """Whether ``value`` (a weight as the file gives it) reads as a finite number."""
+    if isinstance(value, bool):
+        return False
+    try:
+        return math.isfinite(float(value))
+    except (TypeError, ValueError, OverflowError):
+        return False
+
+
+def _finder(data: bytes, directed: bool) -> Find:
+    """``find`` for :func:`graph_to_system` over the GraphML ``data``: one more expat pass,
+    made only when a line is asked for. An edge is found by its ends; among several,
+    the first whose weight is not a finite number."""
+    import xml.parsers.expat
+
+    found: dict[str, Any] = {}
+
+    def scan() -> None:
+        parser = xml.parsers.expat.ParserCreate()
+        nodes: dict[str, int] = {}
+        edges: dict[tuple[str, str], list[tuple[int, str | None]]] = {}
+        weight_keys: set[str] = set()
+        state: dict[str, Any] = {"edge": None, "data": None, "text": [], "depth": 0}
+
+        def start(tag: str, attrs: dict[str, str]) -> None:
+            local = tag.rsplit(":", 1)[-1]
+            line = parser.CurrentLineNumber
+            if local == "key" and attrs.get("attr.name") == "weight" and \
+                    attrs.get("for", "all") in ("edge", "all"):
+                weight_keys.add(attrs.get("id", ""))
+            elif local == "graph":
+                state["depth"] += 1
+            elif state["depth"] != 1:
+                return
+            elif local == "node" and "id" in attrs:
+                nodes.setdefault(attrs["id"], line)
+            elif local == "edge":
+                state["edge"] = [(attrs.get("source", ""), attrs.get("target", "")), line, None]
+            elif local == "data" and state["edge"] is not None and \
+                    attrs.get("key") in weight_keys:
+                state["data"], state["text"] = True, []
+
+        def chars(text: str) -> None:
+            if state["data"]:
+                state["text"].append(text)
+
+        def end(tag: str) -> None:
+            local = tag.rsplit(":", 1)[-1]
+            if local == "graph":
+                state["depth"] -= 1
+            elif local == "data" and state["data"]:
+                state["edge"][2] = "".join(state["text"]).strip()
+                state["data"] = None
+            elif local == "edge" and state["edge"] is not None:
+                ends, line, weight = state["edge"]
+                edges.setdefault(ends, []).append((line, weight))
+                state["edge"] = None
+
+        parser.StartElementHandler = start
+        parser.EndElementHandler = end
+        parser.CharacterDataHandler = chars
+        try:
+            parser.Parse(data, True)
+        except xml.parsers.expat.ExpatError:
+            pass
+        found.update(nodes=nodes, edges=edges)
+
+    def find(kind: str, key: Any) -> int | None:
+        if not found:
+            scan()
+        if kind == "node":
+            return found["nodes"].get(str(key))
+        u, v = str(key[0]), str(key[1])
+        hits = found["edges"].get((u, v), []) + (
+            [] if directed else found["edges"].get((v, u), []))
+        bad = [line for line, w in hits if w is not None and not finite_weight(w)]
+        lines = bad or [line for line, _ in hits]
+        return lines[0] if lines else None
+
+    return find
 
 
 def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:
@@ -166,7 +275,8 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
                "edges (or drop the directed= attributes).")
         raise file_error(path, None, f"not a GraphML graph netctl can read: {why}. {fix}"
                          ) from None
-    return graph_to_system(g, path, model=model, what="GraphML")
+    return graph_to_system(g, path, model=model, what="GraphML",
+                           find=_finder(data, g.is_directed()))
 
 
 #: Characters XML 1.0 cannot hold, even escaped (control characters other than tab, line

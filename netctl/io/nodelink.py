@@ -9,12 +9,14 @@ layout networkx's ``node_link_data`` writes.
 from __future__ import annotations
 
 import json
+import json.decoder
+import json.scanner
 import os
 import warnings
 from typing import Any
 
 from netctl.io._common import atomic_write, file_error, read_text, refuse_lone_surrogates
-from netctl.io._graphs import node_rows, system_from_parts, warn_not_kept
+from netctl.io._graphs import Locate, node_rows, system_from_parts, warn_not_kept
 from netctl.io._signals import dedicated_regulated, disturbance_links, disturbance_rows
 from netctl.system import StructuredSystem
 
@@ -56,13 +58,14 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
                          "objects.")
     names: list[Any] = []
     attrs: list[dict[str, Any]] = []
+    locate = _locator(text, "links" if "links" in data else "edges")
     for k, node in enumerate(data["nodes"]):
         if not isinstance(node, dict) or "id" not in node:
-            raise file_error(path, None, f"node {k} ({node!r:.60}) has no \"id\"; every node "
-                             "is an object with an \"id\".")
+            raise file_error(path, locate("node", k), f"node {k} ({node!r:.60}) has no "
+                             "\"id\"; every node is an object with an \"id\".")
         if isinstance(node["id"], bool) or not isinstance(node["id"], (str, int)):
-            raise file_error(path, None, f"node {k} has the id {node['id']!r}; ids must be "
-                             "strings or integers.")
+            raise file_error(path, locate("node", k), f"node {k} has the id {node['id']!r}; "
+                             "ids must be strings or integers.")
         names.append(node["id"])
         attrs.append({a: v for a, v in node.items() if a != "id"})
     index = {v: i for i, v in enumerate(names)}
@@ -71,12 +74,12 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     extra: set[str] = set()
     for k, e in enumerate(links):
         if not isinstance(e, dict) or "source" not in e or "target" not in e:
-            raise file_error(path, None, f"link {k} ({e!r:.60}) needs \"source\" and "
-                             "\"target\".")
+            raise file_error(path, locate("edge", k), f"link {k} ({e!r:.60}) needs "
+                             "\"source\" and \"target\".")
         for end in ("source", "target"):
             if not isinstance(e[end], (str, int)) or e[end] not in index:
-                raise file_error(path, None, f"link {k} names the {end} {e[end]!r}, which is "
-                                 "not in \"nodes\"; list every node.")
+                raise file_error(path, locate("edge", k), f"link {k} names the {end} "
+                                 f"{e[end]!r}, which is not in \"nodes\"; list every node.")
         src.append(index[e["source"]])
         dst.append(index[e["target"]])
         if weighted:
@@ -89,7 +92,49 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     if not isinstance(directed, bool):
         raise file_error(path, None, f"\"directed\" must be true or false, found {directed!r}.")
     return system_from_parts(path, names, attrs, src, dst, wts if weighted else None,
-                             directed, model=model, what="node-link JSON")
+                             directed, model=model, what="node-link JSON", locate=locate)
+
+
+class _At(dict):  # type: ignore[type-arg]
+    """A JSON object with the offset of its opening brace in the text."""
+
+    at = 0
+
+
+def _parse_object(s_and_end: tuple[str, int], strict: bool, scan_once: Any,
+                  object_hook: Any, object_pairs_hook: Any,
+                  memo: dict[str, str] | None = None) -> tuple[_At, int]:
+    obj, end = json.decoder.JSONObject(s_and_end, strict, scan_once, None, None, memo)  # type: ignore[attr-defined]
+    found = _At(obj)
+    found.at = s_and_end[1] - 1
+    return found, end
+
+
+def _locator(text: str, key: str) -> Locate:
+    """``locate(kind, k)``: the line of node ``k`` (``"node"``) or link ``k`` (``"edge"``,
+    in the list ``key``). The text is parsed again, keeping each object's offset, only
+    when a line is asked for (the pure-Python parser: an error's price, not a read's)."""
+    found: list[Any] = []
+
+    def locate(kind: str, k: int) -> int | None:
+        if not found:
+            decoder = json.JSONDecoder()
+            decoder.parse_object = _parse_object  # type: ignore[attr-defined]
+            decoder.scan_once = json.scanner.py_make_scanner(decoder)  # type: ignore[attr-defined]
+            try:
+                found.append(decoder.decode(text))
+            except (ValueError, RecursionError):
+                found.append(None)
+        doc = found[0]
+        items = doc.get("nodes" if kind == "node" else key) if isinstance(doc, dict) else None
+        if not isinstance(items, list) or not 0 <= k < len(items):
+            return None
+        item = items[k]
+        if not isinstance(item, _At):  # not an object: its place is not kept
+            return None
+        return text.count("\n", 0, item.at) + 1
+
+    return locate
 
 
 def write_nodelink(system: StructuredSystem, path: str | os.PathLike[str]) -> None:

@@ -165,8 +165,8 @@ def test_boolean_edge_weight_is_refused(tmp_path):
                  '[{"source": "a", "target": "b", "weight": true}]}')
     code, _, err = run_cli(["inspect", str(p), "--json"])
     assert code == 2
-    assert err == (f"netctl: error: {p}: the edge weight True is not a number; give "
-                   "numeric weights (or none).\n")
+    assert err == (f"netctl: error: {p}:1: the weight True of the link 'a' -> 'b' is not a "
+                   "number; give numeric weights (or none).\n")
 
 
 def test_toml_input_listing_a_state_twice_is_refused(tmp_path):

@@ -210,8 +210,9 @@ def test_writer_refuses_names_with_separators(tmp_path):
 BAD = [
     pytest.param("a b\nb c d e\n", r"net\.csv:2: expected 'source target \[weight\]', found 4 "
                  r"columns in 'b c d e'\. Columns are separated", id="too-many-columns"),
-    pytest.param("a b\nb c 1\n", r"net\.csv:2: this line has 3 columns but earlier lines "
-                 r"have 2: 'b c 1'\. Give a weight on every link line", id="mixed-columns"),
+    pytest.param("a b\nb c 1\n", r"net\.csv:2: this line has 3 columns: 'b c 1', but earlier "
+                 r"link lines have 2 \(the first: line 1, 'a b'\)\. Give a weight on every link "
+                 r"line", id="mixed-columns"),
     pytest.param("1 2 0.5\n2 3 heavy\n", r"net\.csv:2: the weight 'heavy' is not a number\. "
                  r"Use a decimal number", id="bad-weight"),
     pytest.param("1 2 nan\n", r"net\.csv:1: the weight 'nan' is not a finite number",
@@ -310,7 +311,8 @@ PARALLEL_CASES = [
                  id="fallback-weights-and-lone-name"),
     pytest.param("".join(f"{i} {i + 1}\n" for i in range(300)) + "5 6 1\n"
                  + "".join(f"{i} {i + 1} 2\n" for i in range(100)),
-                 r"net\.csv:301: this line has 3 columns but earlier lines have 2",
+                 r"net\.csv:301: this line has 3 columns: '5 6 1', but earlier link lines "
+                 r"have 2 \(the first: line 1, '0 1'\)",
                  id="columns-change-in-second-half"),
     pytest.param("".join(f"{i} {i + 1}\n" for i in range(300)) + "1 2 3 4\n"
                  + "".join(f"{i} {i + 1} 2 3 4\n" for i in range(100)),

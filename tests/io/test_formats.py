@@ -191,7 +191,7 @@ BAD = [
     pytest.param("x.gml", 'graph [\n node [ id 0 label "a" pos [ x 1 y 2 ] ]\n]\n',
                  r"attribute 'pos' of node 'a' has the type dict", id="gml-nested-attribute"),
     pytest.param("x.json", '{"nodes": [{"id": "a"}], "links": [{"source": "a", "target": "b"}]}',
-                 r"x\.json: link 0 names the target 'b', which is not in \"nodes\"",
+                 r"x\.json:1: link 0 names the target 'b', which is not in \"nodes\"",
                  id="json-unknown-node"),
     pytest.param("x.json", '{"nodes": [\n{"id": "a",}\n]}', r"x\.json:2: invalid JSON at column",
                  id="json-syntax"),
@@ -201,8 +201,8 @@ BAD = [
                  r"attribute 'x' of node 'a' must be a finite number, found 'north'",
                  id="json-x-not-number"),
     pytest.param("x.json", '{"nodes": [{"id": "a"}, {"id": "b"}], "links": [{"source": "a", '
-                 '"target": "b", "weight": "heavy"}]}', r"the edge weight 'heavy' is not a "
-                 r"number", id="json-bad-weight"),
+                 '"target": "b", "weight": "heavy"}]}', r"x\.json:1: the weight 'heavy' of the "
+                 r"link 'a' -> 'b' is not a number", id="json-bad-weight"),
     pytest.param("x.mtx", "%%MatrixMarket matrix coordinate real general\n"
                  "1000000 1000000 1000000000000\n1 1 1.0\n",
                  r"x\.mtx:2: the header claims 1000000 states and 1000000000000 entries, more "
