@@ -8,6 +8,7 @@ quoting as the links (:func:`netctl.io._common.unprotect_name`).
 
 from __future__ import annotations
 
+import json
 import re
 import warnings
 from collections.abc import Callable, Iterable, Sequence
@@ -17,7 +18,7 @@ from netctl.io._common import file_error, unprotect_name
 from netctl.system import StructuredSystem
 
 __all__ = ["MARKS", "header_marks", "late_mark", "apply_marks", "quoted_names",
-           "repeated_header"]
+           "repeated_header", "coupling_file_marks"]
 
 #: Comment lines at the top of an edge list that mark signals (``# disturbances: a, b``).
 MARKS: tuple[str, ...] = ("disturbances", "regulated")
@@ -136,6 +137,47 @@ def apply_marks(system: StructuredSystem, marks: dict[str, list[tuple[str, int]]
         for name, line in dist:
             mark_disturbances(system, [name], path, line)
         return mark_disturbances(system, [x for x, _ in dist], path, dist[0][1])
+
+
+_BARE_KEY = re.compile(r"[A-Za-z0-9_-]+\Z")
+
+
+def _key(name: str) -> str:
+    """``name`` as a TOML key (bare, or a basic string)."""
+    return name if _BARE_KEY.match(name) else json.dumps(name)
+
+
+def coupling_file_marks(path: object, spec: object, disturbances: Iterable[str],
+                        regulated: Iterable[str]) -> None:
+    """Check the mark lines of a system description's coupling file (an edge list).
+
+    A description takes what each node is from its own tables; a ``# disturbances:`` /
+    ``# regulated:`` line of its coupling file may only repeat it. A mark the
+    description does not say would be lost silently, so it is refused, on its line,
+    with the two ways out; a mark after the first link is refused as in any edge list
+    (:func:`late_mark`). ``disturbances``: the states the description turns into
+    disturbances; ``regulated``: the states its regulated outputs read."""
+    from netctl.io.edgelist import _open
+
+    with _open(path) as fh:  # type: ignore[arg-type]
+        marks = header_marks(fh, path)
+    said = {"disturbances": set(disturbances), "regulated": set(regulated)}
+    for mark, found in marks.items():
+        for name, line in found:
+            if name in said[mark]:
+                continue
+            if mark == "disturbances":
+                lack = "does not declare it a disturbance"
+                fix = f"declare it there ([states] {_key(name)} = {{ disturbance = true }})"
+            else:
+                lack = "has no regulated output reading it"
+                fix = ("add a regulated output reading it there ([regulated] "
+                       f"{_key('z_' + name)} = [{json.dumps(name)}])")
+            raise file_error(path, line, f"the '# {mark}:' line names {name!r}, but the "
+                             f"description {spec} {lack}: a description says what each node "
+                             "is in its own tables, so this mark of its coupling file would "
+                             f"be lost. {fix[0].upper()}{fix[1:]}, or take {name!r} off the "
+                             "mark line.")
 
 
 #: Networks with more states are not checked for a repeated header row (the check scans

@@ -324,6 +324,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     src_parts: list[np.ndarray] = []
     dst_parts: list[np.ndarray] = []
     w_parts: list[np.ndarray | None] = []
+    coupling_file: Path | None = None
     if "file" in coup:
         f = coup["file"]
         if not isinstance(f, str):
@@ -334,9 +335,14 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
             raise MissingFileError(f"{path}:{doc.line_of('file')}: the coupling file {f!r} "
                                    f"(looked for at {fpath}) does not exist; paths are "
                                    "relative to the TOML file.")
-        from netctl.io.edgelist import read_edge_arrays
+        from netctl.io._edgemarks import quoted_names, repeated_header
+        from netctl.io.edgelist import _fields, _is_header, _open, read_edge_arrays
 
         e = read_edge_arrays(fpath)
+        coupling_file = fpath  # its mark lines are checked once the description is read
+        with _open(fpath) as fh:  # as a plain edge list says them
+            repeated_header(fh, fpath, _fields, _is_header, e.names)
+        quoted_names(e.names, fpath)
         remap = np.fromiter((state_id(s) for s in e.names), np.int64, len(e.names))
         src_parts.append(remap[e.sources])
         dst_parts.append(remap[e.targets])
@@ -443,6 +449,11 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
             if (names[a], names[b]) not in have:
                 ties.append((owner[names[a]], names[a], owner[names[b]], names[b], "state"))
                 tie_w.append(float(x) if weighted else None)
+    if coupling_file is not None:
+        from netctl.io._edgemarks import coupling_file_marks
+
+        coupling_file_marks(coupling_file, path, kinds,
+                            {x for v in signals["regulated"].values() for x in v})
     if kinds:  # the marked states leave the states in one step; an error names the
         try:   # first state refused on its own, with its line
             system = system.states_to_disturbances(kinds)

@@ -202,3 +202,76 @@ def test_empty_weight_through_the_cli(tmp_path, monkeypatch, capsys):
     assert err.startswith("netctl: error: e.csv:1: the weight column of this line is empty"), err
     assert err.count("\n") == 1
     assert sorted(p.name for p in tmp_path.iterdir()) == ["e.csv"]
+
+
+# ---------------------------------------------------------------- coupling files
+#: a description whose wiring is a coupling file; 'weather' is a disturbance, 'level' is
+#: read by a regulated output (invented plant)
+_SPEC = ('[states]\nweather = { disturbance = true }\n\n[couplings]\nfile = "wiring.csv"\n\n'
+         '[inputs]\npump = ["tank"]\n\n[regulated]\nz_level = ["level"]\n')
+_WIRING = "source,target\nweather,tank\ntank,level\nlevel,valve\n"
+
+
+def _run_spec(tmp_path, monkeypatch, capsys, wiring: str) -> tuple[int, str]:
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "plant.toml").write_text(_SPEC)
+    (tmp_path / "wiring.csv").write_text(wiring)
+    code = main(["convert", "plant.toml", "out.json"])
+    return code, capsys.readouterr().err
+
+
+@pytest.mark.parametrize("marks", ["", "# disturbances: weather\n", "# regulated: level\n",
+                                   "# disturbances: weather\n# regulated: level\n"],
+                         ids=["none", "same-disturbance", "same-regulated", "both"])
+def test_coupling_file_marks_that_repeat_the_description_are_read(tmp_path, monkeypatch,
+                                                                  capsys, marks):
+    """netctl's own bundled heating loop is so: its edge list marks the weather and the
+    sun, which the description declares too."""
+    code, err = _run_spec(tmp_path, monkeypatch, capsys, marks + _WIRING)
+    assert code == 0, err
+    s = read(tmp_path / "plant.toml")
+    assert s.disturbance_names == ("weather",) and s.regulated_names == ("z_level",)
+
+
+COUPLING_MARKS = [
+    pytest.param("# disturbances: weather, valve\n" + _WIRING,
+                 "wiring.csv:1: the '# disturbances:' line names 'valve', but the description "
+                 "plant.toml does not declare it a disturbance", "Declare it there ([states] "
+                 "valve = { disturbance = true }), or take 'valve' off the mark line.",
+                 id="disturbance-not-declared"),
+    pytest.param("# wiring of the tank\n# regulated: tank\n" + _WIRING,
+                 "wiring.csv:2: the '# regulated:' line names 'tank', but the description "
+                 "plant.toml has no regulated output reading it", "Add a regulated output "
+                 "reading it there ([regulated] z_tank = [\"tank\"]), or take 'tank' off the "
+                 "mark line.", id="regulated-not-declared"),
+    pytest.param(_WIRING + "# disturbances: weather\n",
+                 "wiring.csv:5: the '# disturbances:' line comes after the first link",
+                 "move the '# disturbances:' line above the first link", id="late-mark"),
+]
+
+
+@pytest.mark.parametrize("wiring, message, fix", COUPLING_MARKS)
+def test_coupling_file_marks_are_never_read_as_comments(tmp_path, monkeypatch, capsys,
+                                                        wiring, message, fix):
+    """A mark line of a coupling file was read as a plain comment: a node it marked, and
+    the description did not, stayed a state, silently. Now it is refused on its line,
+    as an edge list read alone refuses a mark it cannot keep (the late mark)."""
+    code, err = _run_spec(tmp_path, monkeypatch, capsys, wiring)
+    assert code == 2
+    assert err.startswith(f"netctl: error: {message}"), err
+    assert fix in err and err.count("\n") == 1, err
+    line = int(message.split(":")[1])
+    assert "# " in wiring.splitlines()[line - 1]
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["plant.toml", "wiring.csv"]
+
+
+def test_coupling_file_repeated_header_is_said(tmp_path):
+    """The checks of an edge list read alone run on a coupling file too: a header row
+    pasted again further down is read as a link, and said (it was silent)."""
+    (tmp_path / "plant.toml").write_text('[couplings]\nfile = "wiring.csv"\n')
+    (tmp_path / "wiring.csv").write_text("source,target\nsource,a\na,target\n"
+                                         "source,target\nb,a\n")
+    with pytest.warns(UserWarning, match=r"wiring\.csv:4: the header row 'source target' "
+                      "appears again"):
+        s = read(tmp_path / "plant.toml")
+    assert s.n_links == 4
