@@ -255,16 +255,31 @@ def _safely(path: str | os.PathLike[str], fmt: str,
                          f"{sys.getrecursionlimit()}); a network file needs only a few "
                          "levels. Check the file.", path=path) from None
     except OverflowError as exc:
-        raise file_error(path, None, f"a number is too large ({exc}); weights and "
-                         "attributes must fit in a 64-bit float.") from None
+        raise file_error(path, _long_number_line(path, 309), f"a number is too large ({exc}); "
+                         "weights and attributes must fit in a 64-bit float.") from None
     except ValueError as exc:
         if "integer string conversion" in str(exc):
-            raise LimitError(f"{path}: a number has more digits than netctl reads "
-                             f"({sys.get_int_max_str_digits()}); check the file.",
-                             path=path) from None
+            line = _long_number_line(path, sys.get_int_max_str_digits() + 1)
+            raise LimitError(f"{path}{'' if line is None else f':{line}'}: a number has more "
+                             f"digits than netctl reads ({sys.get_int_max_str_digits()}); "
+                             "write it with fewer (netctl keeps numbers as 64-bit floats, "
+                             "about 17 significant digits).", path=path, line=line) from None
         raise _unexpected(path, fmt, exc) from None
     except Exception as exc:  # no traceback, ever: name the file and what went wrong
         raise _unexpected(path, fmt, exc) from None
+
+
+def _long_number_line(path: str | os.PathLike[str], digits: int) -> int | None:
+    """The line of the first run of at least ``digits`` digits (on the error path only:
+    more than Python converts to an integer, or than a float holds, 309)."""
+    from netctl.io._common import read_bytes
+
+    try:
+        data = read_bytes(path)
+    except NetctlError:
+        return None
+    m = re.search(rb"[0-9]{%d,}" % digits, data)
+    return None if m is None else data.count(b"\n", 0, m.start()) + 1
 
 
 #: Formats whose text escapes (``\\ud800``, ``&#55296;``) or arrays can hold half of a

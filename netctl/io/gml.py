@@ -42,15 +42,48 @@ def read_gml(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         dup = _DUPLICATE.search(msg)
         if dup:  # networkx names the id or label, not where it is
             raise _duplicate(path, text, dup.group(1), dup.group(2)) from None
-        raise file_error(path, line, f"malformed GML: {msg}. Check brackets and quotes; "
-                         "every node needs an id and a unique label.") from None
+        twice = _given_twice(text)
+        if twice is not None and ("[" in msg or "unhashable" in msg):
+            raise file_error(path, *twice) from None
+        item = _ITEM.match(msg)
+        if line is None and item:  # networkx counts the node or edge, from 0
+            kinds = [b for b in _blocks(text) if b[0] == item.group(1)]
+            k = int(item.group(2))
+            line = kinds[k][1] if k < len(kinds) else None
+        fix = ("Give each link once." if "is duplicated" in msg else
+               "Declare that node (node [ id ... label ... ]), or correct the edge's id."
+               if "undefined" in msg else
+               "Every node needs an id and a label, every edge a source and a target."
+               if "has no" in msg else
+               "Check brackets and quotes; every node needs an id and a unique label.")
+        raise file_error(path, line, f"malformed GML: {msg}. {fix}") from None
     except (ValueError, TypeError, KeyError) as exc:
+        if "integer string conversion" in str(exc):
+            raise  # the reader's caller names the line of the long number
+        twice = _given_twice(text)
+        if twice is not None:
+            raise file_error(path, *twice) from None
         raise file_error(path, None, f"not a GML graph netctl can read: {exc}.") from None
     return graph_to_system(g, path, model=model, what="GML", find=_finder(text))
 
 
 #: networkx's message for a node id or label given twice
 _DUPLICATE = re.compile(r"node (id|label) (.*) is duplicated")
+#: networkx's messages about the node or edge number k (from 0, in file order)
+_ITEM = re.compile(r"(node|edge) #(\d+)")
+#: keys that name a node or an edge's ends: one value each
+_ONCE = ("id", "label", "source", "target")
+
+
+def _given_twice(text: str) -> tuple[int, str] | None:
+    """(line, message) for the first node or edge that gives one of :data:`_ONCE` twice
+    (networkx makes a list of the two values and then fails without a line)."""
+    for kind, line, d in _blocks(text):
+        key = d.get("\0twice")
+        if key is not None:
+            return line, (f"this {kind} gives {key!r} twice; give each {kind} one "
+                          f"{key!r}.")
+    return None
 #: GML's tokens, as networkx reads them: keys, numbers, strings, brackets; '#' comments
 _TOKEN = re.compile(r'([A-Za-z][0-9A-Za-z_]*)|([+-]?(?:[0-9]*\.[0-9]+|[0-9]+\.?[0-9]*|INF)'
                     r'(?:[Ee][+-]?[0-9]+)?)|("[^"]*")|(\[)|(\])|#[^\n]*|\s+|(.)')
@@ -83,6 +116,8 @@ def _blocks(text: str) -> list[tuple[str, int, dict[str, str]]]:
         elif key is not None and (word or number or string) is not None:
             value = html.unescape(string[1:-1]) if string is not None else (word or number)
             if current is not None and len(stack) == 2:
+                if key in current and key in _ONCE:
+                    current.setdefault("\0twice", key)
                 current.setdefault(key, value)
             key = None
         elif other is not None:

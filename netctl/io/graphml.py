@@ -273,10 +273,63 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
                "A graph that mixes directed and undirected edges is not read: set "
                "edgedefault=\"directed\" on <graph> and write each two-way link as two "
                "edges (or drop the directed= attributes).")
-        raise file_error(path, None, f"not a GraphML graph netctl can read: {why}. {fix}"
+        line = None
+        value = _BAD_VALUE.search(why)
+        key = _NO_KEY.search(why)
+        if value:  # a <data> value its key's attr.type does not read
+            line = _data_line(data, text=value.group(1))
+            fix = "Give a value of the key's attr.type (or change the type in its <key>)."
+        elif key:
+            line = _data_line(data, key=key.group(1))
+            fix = "Declare the key (a <key id=... for=... attr.name=... attr.type=...>)."
+        raise file_error(path, line, f"not a GraphML graph netctl can read: {why}. {fix}"
                          ) from None
     return graph_to_system(g, path, model=model, what="GraphML",
                            find=_finder(data, g.is_directed()))
+
+
+#: networkx's (Python's) messages for a value that its type does not read, and for a
+#: <data> element whose key no <key> declares
+_BAD_VALUE = re.compile(r"(?:could not convert string to float|invalid literal for int\(\) "
+                        r"with base \d+): '(.*)'\Z")
+_NO_KEY = re.compile(r"Bad GraphML data: no key (.*)\Z")
+
+
+def _data_line(data: bytes, *, key: str | None = None, text: str | None = None
+               ) -> int | None:
+    """The line of the first <data> element with the key ``key`` or the (stripped) text
+    ``text`` (an expat pass, on the error path only)."""
+    import xml.parsers.expat
+
+    parser = xml.parsers.expat.ParserCreate()
+    state: dict[str, Any] = {"line": None, "text": None, "found": None}
+
+    def start(tag: str, attrs: dict[str, str]) -> None:
+        if tag.rsplit(":", 1)[-1] == "data" and state["found"] is None:
+            if key is not None and attrs.get("key") == key:
+                state["found"] = parser.CurrentLineNumber
+            state["line"], state["text"] = parser.CurrentLineNumber, []
+
+    def chars(t: str) -> None:
+        if state["text"] is not None:
+            state["text"].append(t)
+
+    def end(tag: str) -> None:
+        if tag.rsplit(":", 1)[-1] == "data" and state["text"] is not None:
+            if text is not None and state["found"] is None and \
+                    "".join(state["text"]).strip() == text.strip():
+                state["found"] = state["line"]
+            state["text"] = None
+
+    parser.StartElementHandler = start
+    parser.EndElementHandler = end
+    parser.CharacterDataHandler = chars
+    try:
+        parser.Parse(data, True)
+    except xml.parsers.expat.ExpatError:
+        pass
+    found: int | None = state["found"]
+    return found
 
 
 #: Characters XML 1.0 cannot hold, even escaped (control characters other than tab, line

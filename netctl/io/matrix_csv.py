@@ -57,6 +57,7 @@ def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> St
     rows: list[list[float]] = []
     col_names: list[str] | None = None
     row_names: list[str] = []
+    row_lines: list[int] = []
     first = True
     for lineno, raw in enumerate(read_text(path).splitlines(), start=1):
         line = raw.split("#", 1)[0].strip()
@@ -94,14 +95,23 @@ def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> St
             raise file_error(path, lineno, f"more than {MAX_STATES} rows: too large for a dense "
                              "text matrix; use .mtx or .npz.")
         rows.append(vals)
+        row_lines.append(lineno)
         if label is not None:
             row_names.append(label)
     if not rows:
         raise file_error(path, None, "the file holds no matrix rows.")
     n = len(rows)
     if len(rows[0]) != n:
-        raise file_error(path, None, f"the matrix is {n} x {len(rows[0])}; a state matrix A "
-                         "must be square (n x n).")
+        m = len(rows[0])
+        if n > m:  # the first row beyond a square
+            raise file_error(path, row_lines[m], f"the matrix is {n} x {m}; a state matrix A "
+                             f"must be square (n x n), and this is row {m + 1} of rows of {m} "
+                             "numbers: remove the extra rows, or give every row one number "
+                             "per state.")
+        raise file_error(path, row_lines[-1], f"the matrix is {n} x {m}; a state matrix A "
+                         f"must be square (n x n), and the rows end here, at row {n} of rows "
+                         f"of {m} numbers: add the missing rows, or give every row one "
+                         "number per state.")
     names = col_names if col_names is not None else (row_names if len(row_names) == n else None)
     if names is not None and len(names) != n:
         raise file_error(path, 1, f"the header names {len(names)} states but the matrix has "

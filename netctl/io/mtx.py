@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import io
 import os
+import re
 
 import numpy as np
 
@@ -106,6 +107,12 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         M = scipy.io.mmread(io.BytesIO(data))
     except Exception as exc:  # scipy raises ValueError/OverflowError/... without a line
         line, what = _locate(data, size_line_no, fmt, field, dims)
+        said = _SAYS_LINE.match(str(exc))  # scipy's own reader names the line it stopped at
+        if line is None and what is None and said:
+            line = int(said.group(1))
+            found = data.split(b"\n")[line - 1:line] or [b""]
+            what = (f"{said.group(2).rstrip('. ').lower()} "
+                    f"(found {found[0].strip()[:80].decode('latin-1')!r})")
         raise file_error(path, line, f"could not read the entries: {what or exc}. Each entry "
                          "line must be 'row col [value]' with 1-based indices.") from None
     want = (2 if field == "pattern" else 3) if fmt == "coordinate" else 1
@@ -117,6 +124,14 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         raise file_error(path, line, f"{what or 'the entries do not match the size line'}. "
                          f"Each entry line must be 'row col{' value' if want == 3 else ''}' "
                          "(1-based indices), nothing more.")
+    if len(data.translate(None, _NUMBER_BYTES)) > len(data[:end + 1].translate(None,
+                                                                         _NUMBER_BYTES)):
+        # scipy's parser reads '1_5' as 1 and '2.5x' as 2.5, silently: a byte that is in
+        # no number sends the entries through the strict look (a C-level pass otherwise)
+        line, what = _locate(data, size_line_no, fmt, field, dims)
+        if line is not None:
+            raise file_error(path, line, f"could not read the entries: {what}. Each entry "
+                             "line must be 'row col [value]' with 1-based indices.")
     A = sp.csr_array(M) if sp.issparse(M) else sp.csr_array(np.asarray(M))
     n_dup = 0
     if sp.issparse(M):  # an entry given twice is summed (scipy): said, as edge lists do
@@ -188,6 +203,7 @@ def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]
             ) -> tuple[int | None, str | None]:
     """Find the first bad entry line (only on the error path; plain Python)."""
     want = (2 if field == "pattern" else 3) if fmt == "coordinate" else 1
+    claimed = dims[2] if fmt == "coordinate" else dims[0] * dims[1]
     count = 0
     lines = data.split(b"\n")
     for k in range(size_line, len(lines)):
@@ -206,14 +222,27 @@ def _locate(data: bytes, size_line: int, fmt: str, field: str, dims: list[int]
                 if not (1 <= i <= dims[0] and 1 <= j <= dims[1]):
                     return k + 1, (f"the index ({i}, {j}) is outside 1..{dims[0]} "
                                    f"(found {text!r})")
-            if want != 2:
-                float(parts[-1])
+            if want != 2 and not _REAL.match(parts[-1]):  # float() takes '1_0'; scipy not
+                raise ValueError(parts[-1])
         except ValueError:
             return k + 1, f"expected numbers, found {text!r}"
-    claimed = dims[2] if fmt == "coordinate" else dims[0] * dims[1]
+        if count == claimed + 1:  # the first entry line beyond the count
+            return k + 1, (f"the size line (line {size_line}) claims {claimed} entries, and "
+                           f"this is entry {count} ({text!r}); correct the count, or remove "
+                           "the extra entries")
     if count != claimed:
-        return None, f"the size line claims {claimed} entries but the file has {count}"
+        return size_line, (f"the size line claims {claimed} entries but the file has "
+                           f"{count}; correct the count, or restore the missing entries")
     return None, None
+
+
+#: The bytes of entry lines of numbers (digits, signs, point, exponent, white space)
+_NUMBER_BYTES = b"0123456789eE.+- \t\r\n\v\f"
+_SAYS_LINE = re.compile(r"Line (\d+): (.*)\Z")
+#: A real number as Matrix Market writes it (C's strtod without hexadecimal and Python's
+#: digit separators, which scipy's reader refuses)
+_REAL = re.compile(rb"[-+]?([0-9]+\.?[0-9]*|\.[0-9]+)([eE][-+]?[0-9]+)?\Z|"
+                   rb"[-+]?(inf|infinity|nan)\Z", re.IGNORECASE)
 
 
 def warn_names_not_kept(system: StructuredSystem, path: object, fmt: str) -> None:

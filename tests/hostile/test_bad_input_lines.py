@@ -275,3 +275,73 @@ def test_coupling_file_repeated_header_is_said(tmp_path):
                       "appears again"):
         s = read(tmp_path / "plant.toml")
     assert s.n_links == 4
+
+
+# ---------------------------------------------------------------- found by the fuzzing
+# More random starts and damage kinds of tests/hostile/test_cli_fuzz.py (a number taken
+# out with its separator kept, a line repeated, a mark line, a value of another type, an
+# id copied over another) gave these messages without a line; each names it now.
+_MTX = "%%MatrixMarket matrix coordinate real general\n% a comment\n3 3 {n}\n1 2 1.0\n{tail}"
+_GML_HEAD = 'graph [\n  directed 1\n  node [ id 0 label "a" ]\n  node [ id 1 label "b" ]\n'
+FOUND = [
+    pytest.param("x.mtx", _MTX.format(n=2, tail="2 3 1.0\n3 1 2.0\n"),
+                 ":6: could not read the entries: the size line (line 3) claims 2 entries, and "
+                 "this is entry 3 ('3 1 2.0'); correct the count", "3 1 2.0",
+                 id="mtx-more-entries-than-claimed"),
+    pytest.param("x.mtx", _MTX.format(n=3, tail="2 3 1.0\n"),
+                 ":3: could not read the entries: the size line claims 3 entries but the file "
+                 "has 2; correct the count, or restore the missing entries", "3 3 3",
+                 id="mtx-fewer-entries-than-claimed"),
+    pytest.param("x.mtx", _MTX.format(n=2, tail="2 3 1_0\n"),
+                 ":5: could not read the entries: expected numbers, found '2 3 1_0'", "1_0",
+                 id="mtx-python-digit-separator"),  # scipy 1.17 read it as 1, silently
+    pytest.param("x.mtx", _MTX.format(n=2, tail="2 3 2.5x\n"),
+                 ":5: could not read the entries: expected numbers, found '2 3 2.5x'", "2.5x",
+                 id="mtx-trailing-letter"),  # scipy 1.17 read it as 2.5, silently
+    pytest.param("x.mtx", _MTX.format(n=2, tail="2 3 +inf\n"),
+                 ":5: could not read the entries: invalid floating-point value (found "
+                 "'2 3 +inf')", "+inf", id="mtx-plus-inf"),
+    pytest.param("x.toml", "[states]\na = { x = 1 }\nb = { x = " + "9" * 5000 + " }\n",
+                 ":3: a number has more digits than netctl reads (4300); write it with fewer",
+                 "b = ", id="toml-5000-digits"),
+    pytest.param("x.gml", _GML_HEAD + "  node [ id " + "7" * 5000 + ' label "c" ]\n]\n',
+                 ":5: a number has more digits than netctl reads", "label \"c\"",
+                 id="gml-5000-digit-id"),
+    pytest.param("x.gml", _GML_HEAD + "  edge [ source 0 target 1 ]\n"
+                 "  edge [ source 0 target 1 ]\n]\n",
+                 ":6: malformed GML: edge #1 (0->1) is duplicated. Give each link once.",
+                 "edge", id="gml-edge-twice"),
+    pytest.param("x.gml", _GML_HEAD + "  edge [ source 0 target 1 ]\n"
+                 "  edge [ source 1 target 9 ]\n]\n",
+                 ":6: malformed GML: edge #1 has undefined target 9. Declare that node",
+                 "target 9", id="gml-undeclared-target"),
+    pytest.param("x.gml", _GML_HEAD + "  edge [\n    source 0\n    target 1\n    source 1\n"
+                 "  ]\n]\n", ":5: this edge gives 'source' twice; give each edge one "
+                 "'source'.", "edge [", id="gml-source-twice"),
+    pytest.param("x.gml", _GML_HEAD + "  edge [ source 0 target 1 ]\n  edge [ target 0 ]\n]\n",
+                 ":6: malformed GML: edge #1 has no 'source' attribute. Every node needs an id "
+                 "and a label, every edge a source and a target.", "target 0",
+                 id="gml-edge-without-source"),
+    pytest.param("x.graphml", _graphml('    <edge source="b" target="c"><data key="d0">nan(1)'
+                                       '</data></edge>\n'),
+                 ":10: not a GraphML graph netctl can read: could not convert string to float: "
+                 "'nan(1)'. Give a value of the key's attr.type", "nan(1)",
+                 id="graphml-value-not-of-its-type"),
+    pytest.param("x.graphml", _graphml('    <edge source="b" target="c"><data key="d7">2'
+                                       '</data></edge>\n'),
+                 ":10: not a GraphML graph netctl can read: Bad GraphML data: no key d7. "
+                 "Declare the key", "d7", id="graphml-undeclared-key"),
+    pytest.param("x.matrix.csv", "0,1,0\n1,0,1\n# the last row\n0,1,0\n0,1,0\n",
+                 ":5: the matrix is 4 x 3; a state matrix A must be square (n x n), and this is "
+                 "row 4 of rows of 3 numbers", "0,1,0", id="matrix-csv-row-too-many"),
+    pytest.param("x.matrix.csv", "0,1,0\n1,0,1\n\n",
+                 ":2: the matrix is 2 x 3; a state matrix A must be square (n x n), and the "
+                 "rows end here", "1,0,1", id="matrix-csv-rows-missing"),
+]
+
+
+@pytest.mark.parametrize("name, text, message, on_line", FOUND)
+def test_fuzz_findings_name_the_line(tmp_path, monkeypatch, capsys, name, text, message,
+                                     on_line):
+    test_graph_files_name_the_line(tmp_path, monkeypatch, capsys, name, text, message,
+                                   on_line)
