@@ -11,6 +11,7 @@ description's folder. Assembling the system from what they return is
 from __future__ import annotations
 
 import difflib
+import json
 import math
 import os
 import re
@@ -73,17 +74,24 @@ class _Doc:
             raise file_error(path, line, f"not valid TOML{col}: {msg}. Check quotes, "
                              "brackets and '=' signs (see docs/FORMATS.md).") from None
 
-    def line_of(self, *words: str) -> int | None:
-        """Line of the first line mentioning every word (keys, names), or None."""
+    def line_of(self, *words: str, section: str | None = None) -> int | None:
+        """Line of the first line mentioning every word (keys, names), or None; with
+        ``section``, the first such line after that section's ``[header]``."""
         pats = [re.compile(r"(?<![\w-])" + re.escape(w) + r"(?![\w-])") for w in words if w]
+        head = re.compile(r"\s*\[\s*" + re.escape(section) + r"\s*\]") if section else None
         for k, line in enumerate(self.text.splitlines(), start=1):
+            if head is not None:
+                if head.match(line):
+                    head = None
+                continue
             code = line.split("#", 1)[0] if '"' not in line else line
             if all(p.search(code) for p in pats):
                 return k
         return None
 
-    def error(self, message: str, *words: str) -> Exception:
-        return file_error(self.path, self.line_of(*words) if words else None, message)
+    def error(self, message: str, *words: str, section: str | None = None) -> Exception:
+        return file_error(self.path, self.line_of(*words, section=section) if words else None,
+                          message)
 
 
 def _check_keys(doc: _Doc, table: Mapping[str, Any], allowed: Sequence[str], where: str,
@@ -236,10 +244,16 @@ def _read_links(doc: _Doc, links: Any, state_id: Callable[[str], int],
               and all(isinstance(x, str) for x in item[:2])
               and (len(item) == 2 or _number(item[2])))
         if not ok:
-            raise doc.error(f"each coupling must be [\"source\", \"target\"] or "
-                            f"[\"source\", \"target\", weight], found {item!r}.",
-                            *(x for x in (item if isinstance(item, list) else [])
-                              if isinstance(x, str)))
+            message = (f"each coupling must be [\"source\", \"target\"] or [\"source\", "
+                       f"\"target\", weight], found {item!r}.")
+            if isinstance(item, list):
+                raise doc.error(message, *(x for x in item if isinstance(x, str)),
+                                section="couplings")
+            # a lone value: its line if one line of the links holds it alone
+            alone = re.compile(r"^[\s,\[]*" + re.escape(json.dumps(item) if isinstance(
+                item, str) else repr(item)) + r"[\s,\]]*(#.*)?$")
+            found = [k for k, x in enumerate(doc.text.splitlines(), start=1) if alone.match(x)]
+            raise file_error(doc.path, found[0] if len(found) == 1 else None, message)
         ls.append(state_id(item[0]))
         ld.append(state_id(item[1]))
         some_w |= len(item) == 3

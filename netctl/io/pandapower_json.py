@@ -225,8 +225,8 @@ def _bus_ref(t: PPTable, col: str, k: int, by_index: dict[Any, str], path: str) 
     v = t.col(col, None)[k]
     if isinstance(v, float) and v.is_integer():
         v = int(v)
-    if v in by_index and not isinstance(v, bool):
-        return by_index[v]
+    if isinstance(v, (int, str)) and not isinstance(v, bool) and v in by_index:
+        return by_index[v]  # (a list or an object is no bus index, and unhashable)
     raise file_error(path, t.line, f"table {t.name!r}, row {t.index[k]!r}: {col} names bus "
                      f"{v!r}, which is not in the bus table; add the bus or correct the "
                      "index.")

@@ -304,6 +304,9 @@ FOUND = [
     pytest.param("x.toml", "[states]\na = { x = 1 }\nb = { x = " + "9" * 5000 + " }\n",
                  ":3: a number has more digits than netctl reads (4300); write it with fewer",
                  "b = ", id="toml-5000-digits"),
+    pytest.param("x.toml", '[states]\na = {}\nb = {}\n\n[couplings]\nlinks = [\n  ["a", "b"],\n'
+                 '  "a",\n]\n', ':8: each coupling must be ["source", "target"] or ["source", '
+                 '"target", weight], found \'a\'.', '"a",', id="toml-coupling-not-a-pair"),
     pytest.param("x.gml", _GML_HEAD + "  node [ id " + "7" * 5000 + ' label "c" ]\n]\n',
                  ":5: a number has more digits than netctl reads", "label \"c\"",
                  id="gml-5000-digit-id"),
@@ -345,3 +348,21 @@ def test_fuzz_findings_name_the_line(tmp_path, monkeypatch, capsys, name, text, 
                                      on_line):
     test_graph_files_name_the_line(tmp_path, monkeypatch, capsys, name, text, message,
                                    on_line)
+
+
+def test_pandapower_bus_reference_that_is_an_object(tmp_path, monkeypatch, capsys):
+    """A line's from_bus given as {} (a value of another type) ended in 'cannot be read as
+    pandapower (TypeError: unhashable type)'; it is named like any unknown bus now."""
+    from tests.hostile.test_fuzz import _pandapower_seed
+
+    good = _pandapower_seed()
+    bad = good.replace("[[0, 1, 1.0, 0.4, true]", "[[{}, 1, 1.0, 0.4, true]", 1)
+    assert bad != good
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "g.json").write_text(bad)
+    assert main(["convert", "g.json", "out.toml"]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("netctl: error: g.json:"), err
+    assert "table 'line', row 0: from_bus names bus {}, which is not in the bus table" in err
+    line = int(err.split(":")[3])  # the line of the table (its rows are one JSON string)
+    assert '"line"' in bad.splitlines()[line - 1]
