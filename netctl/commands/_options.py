@@ -87,6 +87,11 @@ class Terms:
         return f"{n} {what or (self.state if n == 1 else self.states)}"
 
 
+def links_text(n: int) -> str:
+    """``"1 link"``, ``"12 links"``."""
+    return f"{n} link" if n == 1 else f"{n} links"
+
+
 #: vocabulary name -> its words (closed set; ``--terms`` and ``[system] terms``)
 TERMS: dict[str, Terms] = {
     "engineering": Terms(name="engineering", state="state", states="states",

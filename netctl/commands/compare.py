@@ -14,6 +14,7 @@ from netctl.commands._options import (
     add_seed,
     add_terms,
     caution,
+    links_text,
     progress_enabled,
     terms,
 )
@@ -70,7 +71,7 @@ def _cmd_compare(args: argparse.Namespace) -> int:
     z = r.z_score
     t = terms(args)
     frac = "fraction" if t.name == "engineering" else t.fraction
-    lines = [f"{args.file}: {t.of(n)}, {r.n_links} links, model {r.model}",
+    lines = [f"{args.file}: {t.of(n)}, {links_text(r.n_links)}, model {r.model}",
              f"  observed {t.inputs}: {r.observed_n_inputs} "
              f"({frac} {_fmt(r.fraction(r.observed_n_inputs))})",
              f"  null model '{r.null}' ({r.n_samples} samples, seed {r.seed}): "

@@ -11,6 +11,7 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from netctl.commands._options import links_text
 from netctl.commands._emit import emit
 from netctl.commands._load import load_system
 
@@ -43,7 +44,7 @@ def _cmd_convert(args: argparse.Namespace) -> int:
               "n_inputs": system.n_inputs, "n_outputs": system.n_outputs,
               "weighted": system.weighted, "node_columns": sorted(system.nodes)}
     text = (f"{args.file} ({fmt_in}) -> {args.output} ({fmt_out}): {system.n_states} states, "
-            f"{system.n_links} links ({system.n_self_loops} self-loops), "
+            f"{links_text(system.n_links)} ({system.n_self_loops} self-loops), "
             f"{system.n_inputs} inputs, {system.n_outputs} outputs, model {system.model}"
             f"{', weighted' if system.weighted else ''}")
     emit(args, result, text)

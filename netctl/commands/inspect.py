@@ -7,7 +7,7 @@ from typing import Any
 
 from netctl.commands._emit import emit
 from netctl.commands._load import load_system
-from netctl.commands._options import add_terms, analysis_step, caution, terms
+from netctl.commands._options import add_terms, analysis_step, caution, links_text, terms
 
 __all__ = ["register"]
 
@@ -29,7 +29,7 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
     d["file"] = args.file
     t = terms(args)
     text = (
-        f"{args.file}: {t.of(s.n_states)}, {s.n_links} links ({s.n_self_loops} self-loops), "
+        f"{args.file}: {t.of(s.n_states)}, {links_text(s.n_links)} ({s.n_self_loops} self-loops), "
         f"model {s.model}{', weighted' if s.weighted else ''}\n"
         f"  components: {s.n_weak_components} weak, {s.n_strong_components} strong "
         f"({s.n_source_components} source, {s.n_sink_components} sink); "

@@ -21,7 +21,7 @@ from typing import Any
 
 from netctl.commands._emit import emit
 from netctl.commands._load import disturbance_summary
-from netctl.commands._options import CAUTION, UsageError, add_inputs
+from netctl.commands._options import CAUTION, UsageError, add_inputs, links_text
 
 __all__ = ["register"]
 
@@ -118,7 +118,7 @@ def _cmd_join(args: argparse.Namespace) -> int:
     if s.n_disturbances:  # emit() prints them apart, as every verb does
         args._disturbances = disturbance_summary(s)
     lines = [f"composite of {', '.join(r.composite.subsystems)}: {s.n_states} states, "
-             f"{s.n_links} links, {len(ties)} tie(s), {s.n_inputs} external input(s)"]
+             f"{links_text(s.n_links)}, {len(ties)} tie(s), {s.n_inputs} external input(s)"]
     if r.composite.consumed_inputs:
         lines.append(f"  inputs fed by signal ties: {', '.join(r.composite.consumed_inputs)}")
     if r.composite.approximate:

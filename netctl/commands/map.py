@@ -8,7 +8,7 @@ import sys
 from typing import Any, cast
 
 from netctl.commands._load import load_system, parse_names
-from netctl.commands._options import UsageError, add_inputs, add_seed, progress_enabled
+from netctl.commands._options import UsageError, add_inputs, add_seed, links_text, progress_enabled
 
 __all__ = ["register"]
 
@@ -124,7 +124,7 @@ def _cmd_map(args: argparse.Namespace) -> int:
                 "graphml": "GraphML export"}.get(kind, "map")
         sys.stdout.write(
             f"{args.out}: {what} of {args.file} ({system.n_states} states, "
-            f"{system.n_links} links, {how} layout)\n"
+            f"{links_text(system.n_links)}, {how} layout)\n"
             f"  {marks.n_inputs} input(s) on {marks.drivers.size} driver node(s) "
             f"({design}); structurally controllable: {verdict}\n" + _grid_lines(args, marks))
     return 0 if marks.controllable else 1

@@ -14,6 +14,7 @@ from netctl.commands._options import (
     add_seed,
     add_terms,
     caution,
+    links_text,
     progress_enabled,
     terms,
 )
@@ -73,7 +74,7 @@ def _cmd_node_control(args: argparse.Namespace) -> int:
     c = cap.capacity
     between = int(np.count_nonzero((c > 0) & (c < 1)))
     t = terms(args)
-    lines = [f"{args.file}: {t.of(n)}, {system.n_links} links, model {system.model}",
+    lines = [f"{args.file}: {t.of(n)}, {links_text(system.n_links)}, model {system.model}",
              f"  {t.unmatched} in every minimum driver set: {cap.n_drivers}"
              + (f" (n_D = {cap.n_drivers / n:.3g})" if n else ""),
              f"  control capacity ({cap.sweeps} sweeps after {cap.burn_in} burn-in, seed "

@@ -10,7 +10,7 @@ import numpy as np
 
 from netctl.commands._emit import emit, safe_write
 from netctl.commands._load import load_system
-from netctl.commands._options import add_terms, analysis_step, caution, terms
+from netctl.commands._options import add_terms, analysis_step, caution, links_text, terms
 from netctl.commands._words import wording
 
 __all__ = ["register"]
@@ -64,7 +64,7 @@ def _cmd_roles(args: argparse.Namespace) -> int:
         d["links"] = lr.to_dict()["links"]
     nc, lc = nr.counts(), lr.counts()
     t = terms(args)
-    lines = [f"{args.file}: {t.of(nr.n_states)}, {lr.n_links} links, model {system.model}",
+    lines = [f"{args.file}: {t.of(nr.n_states)}, {links_text(lr.n_links)}, model {system.model}",
              f"  {t.inputs}: {nr.n_inputs} (structural rank of A {nr.matching_size} of "
              f"{nr.n_states})",
              f"  {t.states}: {nc['critical']} critical, {nc['intermittent']} intermittent, "

@@ -15,7 +15,7 @@ from typing import Any
 
 from netctl.commands._emit import emit, names_line
 from netctl.commands._load import load_system, parse_names
-from netctl.commands._options import CAUTION, add_inputs, add_sites
+from netctl.commands._options import CAUTION, add_inputs, add_sites, links_text
 from netctl.commands._words import wording
 
 __all__ = ["register"]
@@ -51,7 +51,7 @@ def _cmd_strong(args: argparse.Namespace) -> int:
     )
 
     system = load_system(args)
-    head = [f"{args.file}: {system.n_states} states, {system.n_links} links "
+    head = [f"{args.file}: {system.n_states} states, {links_text(system.n_links)} "
             f"({system.n_self_loops} self-loops), model {system.model}",
             f"  diagonal: {args.diagonal} ({DIAGONALS[args.diagonal]})"]
     notes = []

@@ -14,7 +14,14 @@ from typing import TYPE_CHECKING, Any
 
 from netctl.commands._emit import emit, safe_write
 from netctl.commands._load import load_system, parse_names
-from netctl.commands._options import CAUTION, UsageError, add_inputs, add_samples, add_seed
+from netctl.commands._options import (
+    CAUTION,
+    UsageError,
+    add_inputs,
+    add_samples,
+    add_seed,
+    links_text,
+)
 from netctl.commands._words import wording
 
 if TYPE_CHECKING:
@@ -103,7 +110,7 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
     kinds = ["links", "nodes"] if elements == "both" else [elements]
     result: dict[str, Any] = {"analysis": "sweep", "file": args.file, "k": args.k,
                               "model": system.model}
-    lines = [f"{args.file}: {system.n_states} states, {system.n_links} links, "
+    lines = [f"{args.file}: {system.n_states} states, {links_text(system.n_links)}, "
              f"model {system.model}"]
     ok = True
     csv_rows: list[list[Any]] = []

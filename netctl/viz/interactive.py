@@ -236,7 +236,7 @@ def map_payload(system: StructuredSystem, marks: MapMarks, placement: Placement,
                    for L in layers],
         "notes": notes,
         "summary": [
-            f"{n} states, {system.n_links} links, model {marks.model}; {marks.n_inputs} "
+            f"{n} states, {system.n_links} link{'' if system.n_links == 1 else 's'}, model {marks.model}; {marks.n_inputs} "
             f"input(s) on {drivers.size} driver node(s) from {design}.",
             f"Verdict: {verdict}.",
         ],

@@ -299,7 +299,7 @@ def _default_title(system: StructuredSystem, marks: MapMarks, how: str) -> str:
               "circle": "circular layout", "given": "given positions"}.get(how, how)
     import textwrap
 
-    first = (f"{n} states, {system.n_links} links, model {marks.model}: {marks.n_inputs} "
+    first = (f"{n} states, {system.n_links} link{'' if system.n_links == 1 else 's'}, model {marks.model}: {marks.n_inputs} "
              f"input(s) on {marks.drivers.size} driver node(s) from {design}")
     # wrapped to the map's width, so a long title never runs under the legend
     return "\n".join(textwrap.wrap(first, 88) + textwrap.wrap(f"{verdict}; {placed}", 88))
