@@ -303,7 +303,7 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
 
     ``start``: ``(row_match, col_match)``, a matching of ``[A B]`` already known to be
     maximum (e.g. the transpose of ``A``'s for ``A``'s transpose); it is copied and the
-    matching search is skipped.
+    matching search is skipped (so is ``avoid``: the start decides the matching).
 
     ``avoid`` (boolean per state, e.g. the node table's ``actuator`` column negated)
     decides which states are left unmatched: a maximum matching ``M1`` of the links into
@@ -313,9 +313,17 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     Lovász & Plummer 1986; both from memory). No matching matches more avoided rows
     than ``M1``, so none leaves fewer avoided states unmatched (the sets of rows a
     matching covers form a transversal matroid, Edmonds & Fulkerson 1965, from memory).
-    The count does not change. The later search for source components that can
-    hold an unmatched state (``alpha``) first lets an extra column take only states not
-    avoided, then any: a heuristic, not proven to keep the fewest avoided states.
+    The count does not change. When some unreached source component then holds no
+    unmatched state, the extra columns are matched by
+    :func:`netctl.graph.costmatch.extend_matching_least_cost` instead: a fix is the
+    rows no real column takes plus one state (not avoided where the component has one)
+    of each component whose extra column stays free, so a matching of the largest size
+    whose reward (avoided rows taken by a real column, plus the extra columns matched
+    of components avoided throughout) is the largest gives the fewest inputs and,
+    among those, the fewest on avoided states; successive shortest paths from this
+    start reach it exactly (the start is optimal for its size: it takes the most
+    avoided rows, and no extra column is yet matched). Brute force in
+    ``tests/structural/test_check_fix_avoid_barred.py``.
 
     References
     ----------
@@ -373,22 +381,23 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
     if np.any(x_match == -1):
         # imported here: only a component holding no free state needs the search (a
         # small network's run usually has none and loads one module less)
+        from netctl.graph.costmatch import extend_matching_least_cost
         from netctl.graph.extra_columns import extend_matching
 
         # row_match and col_match are ours (fresh from the matching): extend in place;
         # rows matched to an extra column are then marked unmatched again
-        row_match[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
-        if avoid is not None and np.any(avoid):
-            # the row an extra column takes is left unmatched: first from the states
-            # not avoided only, then (never unmatching a row) from all
-            ok = ~np.asarray(avoid, bool)[members]
-            ok_ptr = np.zeros_like(cptr)
-            np.cumsum(np.add.reduceat(ok, cptr[:-1]) if members.size else
-                      np.zeros(n_comp, np.int64), out=ok_ptr[1:])
-            extend_matching(transpose, n_cols, row_match, col_match,
-                            (ok_ptr, members[ok]), x_match, inplace=True)
-        extend_matching(transpose, n_cols, row_match, col_match, (cptr, members), x_match,
-                        inplace=True)
+        if avoid is not None and start is None and np.any(avoid):
+            # exact: fewest extra inputs, then fewest on avoided states (see Notes);
+            # row_match matches as many avoided rows as any maximum matching
+            bar = np.asarray(avoid, bool)
+            full = (np.logical_and.reduceat(bar[members], cptr[:-1]) if members.size
+                    else np.zeros(n_comp, bool))
+            x_match = extend_matching_least_cost(transpose, n_cols, row_match, col_match,
+                                                 (cptr, members), bar, full)
+        else:
+            row_match[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
+            extend_matching(transpose, n_cols, row_match, col_match, (cptr, members),
+                            x_match, inplace=True)
         row_match[row_match >= n_cols] = -1
     del transpose, col_match
     unmatched = np.flatnonzero(row_match < 0)

@@ -1,0 +1,323 @@
+"""Extra columns added to a maximum matching at least cost, rewards 0/1 on the rows.
+
+The job: a maximum matching ``M`` of a bipartite graph (rows, real columns) is given,
+and extra columns, each adjacent to a set of rows, are to be matched as well. Among the
+matchings of largest size of the graph with the extra columns (their real part keeps
+its size: an augmenting path never unmatches a column), find one of largest *reward*:
+a row matched to a real column earns ``barred[row]``, a row matched to an extra column
+``k`` earns ``barred[row]`` when ``full[k]`` and nothing otherwise. (In
+:func:`netctl.structural._engine.completion` this is the smallest fix that holds as few
+barred states as possible: see its Notes.)
+
+Method: successive shortest augmenting paths (min-cost flow; Ahuja, Magnanti & Orlin
+1993, ch. 9) from the free extra columns, started from ``M``, with node potentials so
+that every search is Dijkstra's on non-negative reduced costs, stopped as soon as the
+cheapest free row is known; each search is followed by a depth-first search that
+augments along as many vertex-disjoint zero-reduced-cost paths as it finds (the
+primal-dual method, ibid. 9.8), so that equal-cost augmentations share one search.
+Successive shortest paths stay optimal for each size provided the start is; ``M`` is
+optimal for its size exactly when it matches as many rewarded (barred) rows as any
+maximum matching of the real graph, which is the caller's duty. Costs are integers of
+absolute value at most 1 per arc, so distances stay small.
+
+References
+----------
+.. [1] R. K. Ahuja, T. L. Magnanti, J. B. Orlin, *Network Flows: Theory, Algorithms,
+   and Applications*, Prentice Hall, 1993 (successive shortest paths, reduced costs,
+   the primal-dual algorithm; from memory).
+.. [2] R. Jonker, A. Volgenant, "A shortest augmenting path algorithm for dense and
+   sparse linear assignment problems", Computing 38:325-340, 1987
+   (doi:10.1007/BF02278710; Dijkstra stopped early with the potentials of the settled
+   nodes updated).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from netctl._jit import njit
+
+__all__ = ["extend_matching_least_cost"]
+
+
+def extend_matching_least_cost(
+    transpose: tuple[np.ndarray, np.ndarray],
+    n_cols: int,
+    row_match: np.ndarray,
+    col_match: np.ndarray,
+    extra: tuple[np.ndarray, np.ndarray],
+    barred: np.ndarray,
+    full: np.ndarray,
+) -> np.ndarray:
+    """Match as many extra columns as possible, then earn the largest reward, in place.
+
+    Parameters
+    ----------
+    transpose : (tptr, tind)
+        Column-wise adjacency of the real columns.
+    row_match, col_match : ndarray
+        A maximum matching of the real graph that matches as many ``barred`` rows as any
+        maximum matching (one integer type). Completed in place; a row matched to extra
+        column ``k`` holds ``n_cols + k``.
+    extra : (xptr, xind)
+        Rows each extra column may take.
+    barred : ndarray of bool, one per row
+    full : ndarray of bool, one per extra column
+        Whether a row matched to that extra column earns its ``barred``.
+
+    Returns
+    -------
+    ndarray
+        Row matched to each extra column, ``-1`` if none (type of ``row_match``).
+
+    Notes
+    -----
+    Reward of a matching: the number of barred rows matched to a real column or to a
+    ``full`` extra column. The result has the most extra columns matched of any
+    matching whose real part is maximum and, among those, the largest reward. Each round
+    is one Dijkstra search and one depth-first search over the part of the graph that
+    alternating paths from the free extra columns reach; the number of rounds is at most
+    the number of extra columns, and in practice a handful.
+    """
+    dt = row_match.dtype
+    x_match = np.full(extra[0].size - 1, -1, dt)
+    if x_match.size:
+        _least_cost_extend(np.ascontiguousarray(transpose[0], dt),
+                           np.ascontiguousarray(transpose[1], dt), int(n_cols), row_match,
+                           col_match, np.ascontiguousarray(extra[0], dt),
+                           np.ascontiguousarray(extra[1], dt), x_match,
+                           np.ascontiguousarray(barred, np.uint8),
+                           np.ascontiguousarray(full, np.uint8))
+    return x_match
+
+
+@njit(cache=True, nogil=True)
+def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match,
+                       barred, full):  # pragma: no cover - compiled
+    """Successive shortest paths; see :func:`extend_matching_least_cost`.
+
+    Nodes: rows ``0..n-1``, then column ``c`` (real, or extra ``n_cols + k``) as
+    ``n + c``; a super-source ``s`` before every free extra column and a sink ``t``
+    after every free row, kept as the two numbers ``pi_s`` and ``pi_t``. Arc costs are
+    minus the reward: column ``c`` -> row ``v`` (``v`` takes ``c``) costs
+    ``-reward(v, c)``, row ``v`` -> its column ``m`` (``v`` leaves ``m``) costs
+    ``+reward(v, m)``. Reduced cost ``cost + pi[tail] - pi[head] >= 0``.
+    """
+    n = row_match.size
+    n_x = xptr.size - 1
+    n_nodes = n + n_cols + n_x
+    big = 1 << 30
+    # potentials: columns 0, rows -barred, t -1: every arc of the start (a maximum
+    # matching of the real graph, no extra column matched) has a non-negative reduced
+    # cost (col -> row: -barred + barred; row -> its real column: barred - barred;
+    # free row -> t: -barred + 1)
+    pi = np.zeros(n_nodes, np.int32)
+    for v in range(n):
+        if barred[v]:
+            pi[v] = -1
+    pi_s = 0
+    pi_t = -1
+    dist = np.full(n_nodes, big, np.int32)
+    touched = np.empty(n_nodes, np.int64)
+    cap = 1024
+    hkey = np.empty(cap, np.int64)
+    hnode = np.empty(cap, np.int64)
+    stamp = np.full(n, -1, np.int32)
+    stack_col = np.empty(n + 1, np.int64)
+    stack_pos = np.empty(n + 1, np.int64)
+    stack_row = np.empty(n + 1, np.int64)
+    rnd = 0
+    while True:
+        # --- Dijkstra from s, stopped when the cheapest free row is known
+        hsize = 0
+        ntouch = 0
+        best = big
+        for k in range(n_x):
+            if x_match[k] != -1:
+                continue
+            u = n + n_cols + k
+            d0 = pi_s - pi[u]
+            dist[u] = d0
+            touched[ntouch] = u
+            ntouch += 1
+            if hsize == cap:
+                cap *= 2
+                hkey = np.concatenate((hkey, np.empty(hsize, np.int64)))
+                hnode = np.concatenate((hnode, np.empty(hsize, np.int64)))
+            i = hsize  # sift up
+            hsize += 1
+            while i > 0:
+                p = (i - 1) // 2
+                if hkey[p] <= d0:
+                    break
+                hkey[i] = hkey[p]
+                hnode[i] = hnode[p]
+                i = p
+            hkey[i] = d0
+            hnode[i] = u
+        while hsize > 0:
+            d = hkey[0]
+            u = hnode[0]
+            hsize -= 1  # pop: move the last item down from the root
+            if hsize > 0:
+                lk = hkey[hsize]
+                ln = hnode[hsize]
+                i = 0
+                while True:
+                    ch = 2 * i + 1
+                    if ch >= hsize:
+                        break
+                    if ch + 1 < hsize and hkey[ch + 1] < hkey[ch]:
+                        ch += 1
+                    if hkey[ch] >= lk:
+                        break
+                    hkey[i] = hkey[ch]
+                    hnode[i] = hnode[ch]
+                    i = ch
+                hkey[i] = lk
+                hnode[i] = ln
+            if d > dist[u]:
+                continue  # stale
+            if d >= best:
+                break
+            nlo = 0
+            nhi = 0
+            nd_out = 0
+            if u >= n:  # a column: rows that may take it
+                c = u - n
+                if c < n_cols:
+                    lo = tptr[c]
+                    hi = tptr[c + 1]
+                else:
+                    lo = xptr[c - n_cols]
+                    hi = xptr[c - n_cols + 1]
+                for p in range(lo, hi):
+                    v = tind[p] if c < n_cols else xind[p]
+                    if row_match[v] == c:
+                        continue
+                    rw = barred[v] if (c < n_cols or full[c - n_cols]) else 0
+                    nd = d - rw + pi[u] - pi[v]
+                    if nd < dist[v]:
+                        if dist[v] == big:
+                            touched[ntouch] = v
+                            ntouch += 1
+                        dist[v] = nd
+                        if hsize == cap:
+                            cap *= 2
+                            hkey = np.concatenate((hkey, np.empty(hsize, np.int64)))
+                            hnode = np.concatenate((hnode, np.empty(hsize, np.int64)))
+                        i = hsize
+                        hsize += 1
+                        while i > 0:
+                            q = (i - 1) // 2
+                            if hkey[q] <= nd:
+                                break
+                            hkey[i] = hkey[q]
+                            hnode[i] = hnode[q]
+                            i = q
+                        hkey[i] = nd
+                        hnode[i] = v
+            else:  # a row: to t when free, else to the column it holds
+                m = row_match[u]
+                if m == -1:
+                    cand = d + pi[u] - pi_t
+                    if cand < best:
+                        best = cand
+                    continue
+                w = n + m
+                rw = barred[u] if (m < n_cols or full[m - n_cols]) else 0
+                nd = d + rw + pi[u] - pi[w]
+                if nd < dist[w]:
+                    if dist[w] == big:
+                        touched[ntouch] = w
+                        ntouch += 1
+                    dist[w] = nd
+                    if hsize == cap:
+                        cap *= 2
+                        hkey = np.concatenate((hkey, np.empty(hsize, np.int64)))
+                        hnode = np.concatenate((hnode, np.empty(hsize, np.int64)))
+                    i = hsize
+                    hsize += 1
+                    while i > 0:
+                        q = (i - 1) // 2
+                        if hkey[q] <= nd:
+                            break
+                        hkey[i] = hkey[q]
+                        hnode[i] = hnode[q]
+                        i = q
+                    hkey[i] = nd
+                    hnode[i] = w
+        if best == big:
+            for i in range(ntouch):
+                dist[touched[i]] = big
+            break  # no augmenting path: the extra part is as large as it can be
+        # --- potentials: pi += min(dist, best) - best (s: -best, t: 0, others 0)
+        for i in range(ntouch):
+            u = touched[i]
+            if dist[u] < best:
+                pi[u] += dist[u] - best
+            dist[u] = big
+        pi_s -= best
+        # --- augment along vertex-disjoint paths of zero reduced cost
+        augmented = 0
+        for k in range(n_x):
+            if x_match[k] != -1 or pi_s - pi[n + n_cols + k] != 0:
+                continue
+            top = 0
+            stack_col[0] = n_cols + k
+            stack_pos[0] = xptr[k]
+            found = -1
+            while top >= 0:
+                c = stack_col[top]
+                if c < n_cols:
+                    end = tptr[c + 1]
+                else:
+                    end = xptr[c - n_cols + 1]
+                pos = stack_pos[top]
+                nxt = -1
+                while pos < end:
+                    v = tind[pos] if c < n_cols else xind[pos]
+                    pos += 1
+                    if stamp[v] == rnd or row_match[v] == c:
+                        continue
+                    rw = barred[v] if (c < n_cols or full[c - n_cols]) else 0
+                    if pi[n + c] - rw - pi[v] != 0:
+                        continue
+                    stamp[v] = rnd
+                    m = row_match[v]
+                    if m == -1:
+                        if pi[v] - pi_t == 0:
+                            nxt = v
+                            break
+                        continue
+                    rw2 = barred[v] if (m < n_cols or full[m - n_cols]) else 0
+                    if rw2 + pi[v] - pi[n + m] != 0:
+                        continue
+                    nxt = v
+                    break
+                stack_pos[top] = pos
+                if nxt == -1:
+                    top -= 1
+                    continue
+                stack_row[top] = nxt
+                if row_match[nxt] == -1:
+                    found = nxt
+                    break
+                c2 = row_match[nxt]
+                top += 1
+                stack_col[top] = c2
+                stack_pos[top] = tptr[c2] if c2 < n_cols else xptr[c2 - n_cols]
+            if found != -1:
+                t = top
+                while t >= 0:
+                    c = stack_col[t]
+                    r = stack_row[t]
+                    row_match[r] = c
+                    if c < n_cols:
+                        col_match[c] = r
+                    else:
+                        x_match[c - n_cols] = r
+                    t -= 1
+                augmented += 1
+        rnd += 1
+        if augmented == 0:
+            break  # cannot happen with exact potentials; a guard against a loop
