@@ -81,8 +81,10 @@ def extend_matching_least_cost(
     dt = row_match.dtype
     x_match = np.full(extra[0].size - 1, -1, dt)
     if x_match.size:
+        # node ids (rows, then real and extra columns) in the type of the indices
+        tdt = dt if row_match.size + n_cols + x_match.size < 2**31 - 1 else np.int64
         _least_cost_extend(np.ascontiguousarray(transpose[0], dt),
-                           np.ascontiguousarray(transpose[1], dt), int(n_cols), row_match,
+                           np.ascontiguousarray(transpose[1], tdt), int(n_cols), row_match,
                            col_match, np.ascontiguousarray(extra[0], dt),
                            np.ascontiguousarray(extra[1], dt), x_match,
                            np.ascontiguousarray(barred, np.uint8),
@@ -100,7 +102,9 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
     after every free row, kept as the two numbers ``pi_s`` and ``pi_t``. Arc costs are
     minus the reward: column ``c`` -> row ``v`` (``v`` takes ``c``) costs
     ``-reward(v, c)``, row ``v`` -> its column ``m`` (``v`` leaves ``m``) costs
-    ``+reward(v, m)``. Reduced cost ``cost + pi[tail] - pi[head] >= 0``.
+    ``+reward(v, m)``. Reduced cost ``cost + pi[tail] - pi[head] >= 0``. Returns the
+    number of depth-first passes and of nodes the Dijkstra searches touched (for
+    measurements).
     """
     n = row_match.size
     n_x = xptr.size - 1
@@ -117,15 +121,16 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
     pi_s = 0
     pi_t = -1
     dist = np.full(n_nodes, big, np.int32)
-    touched = np.empty(n_nodes, np.int64)
+    touched = np.empty(n_nodes, tind.dtype)
     cap = 1024
-    hkey = np.empty(cap, np.int64)
-    hnode = np.empty(cap, np.int64)
+    hkey = np.empty(cap, np.int32)
+    hnode = np.empty(cap, tind.dtype)
     stamp = np.full(n, -1, np.int32)
-    stack_col = np.empty(n + 1, np.int64)
+    stack_col = np.empty(n + 1, tind.dtype)
     stack_pos = np.empty(n + 1, np.int64)
-    stack_row = np.empty(n + 1, np.int64)
+    stack_row = np.empty(n + 1, tind.dtype)
     rnd = 0
+    work = 0
     while True:
         # --- Dijkstra from s, stopped when the cheapest free row is known
         hsize = 0
@@ -141,8 +146,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
             ntouch += 1
             if hsize == cap:
                 cap *= 2
-                hkey = np.concatenate((hkey, np.empty(hsize, np.int64)))
-                hnode = np.concatenate((hnode, np.empty(hsize, np.int64)))
+                hkey = np.concatenate((hkey, np.empty(hsize, np.int32)))
+                hnode = np.concatenate((hnode, np.empty(hsize, tind.dtype)))
             i = hsize  # sift up
             hsize += 1
             while i > 0:
@@ -201,10 +206,17 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                             touched[ntouch] = v
                             ntouch += 1
                         dist[v] = nd
+                        if row_match[v] == -1:
+                            # a free row: t's key known at once (the search stops when
+                            # nothing cheaper is left), and nothing to scan from it
+                            cand = nd + pi[v] - pi_t
+                            if cand < best:
+                                best = cand
+                            continue
                         if hsize == cap:
                             cap *= 2
-                            hkey = np.concatenate((hkey, np.empty(hsize, np.int64)))
-                            hnode = np.concatenate((hnode, np.empty(hsize, np.int64)))
+                            hkey = np.concatenate((hkey, np.empty(hsize, np.int32)))
+                            hnode = np.concatenate((hnode, np.empty(hsize, tind.dtype)))
                         i = hsize
                         hsize += 1
                         while i > 0:
@@ -216,13 +228,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                             i = q
                         hkey[i] = nd
                         hnode[i] = v
-            else:  # a row: to t when free, else to the column it holds
+            else:  # a matched row: to the column it holds
                 m = row_match[u]
-                if m == -1:
-                    cand = d + pi[u] - pi_t
-                    if cand < best:
-                        best = cand
-                    continue
                 w = n + m
                 rw = barred[u] if (m < n_cols or full[m - n_cols]) else 0
                 nd = d + rw + pi[u] - pi[w]
@@ -233,8 +240,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                     dist[w] = nd
                     if hsize == cap:
                         cap *= 2
-                        hkey = np.concatenate((hkey, np.empty(hsize, np.int64)))
-                        hnode = np.concatenate((hnode, np.empty(hsize, np.int64)))
+                        hkey = np.concatenate((hkey, np.empty(hsize, np.int32)))
+                        hnode = np.concatenate((hnode, np.empty(hsize, tind.dtype)))
                     i = hsize
                     hsize += 1
                     while i > 0:
@@ -246,6 +253,7 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                         i = q
                     hkey[i] = nd
                     hnode[i] = w
+        work += ntouch
         if best == big:
             for i in range(ntouch):
                 dist[touched[i]] = big
@@ -257,67 +265,74 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                 pi[u] += dist[u] - best
             dist[u] = big
         pi_s -= best
-        # --- augment along vertex-disjoint paths of zero reduced cost
-        augmented = 0
-        for k in range(n_x):
-            if x_match[k] != -1 or pi_s - pi[n + n_cols + k] != 0:
-                continue
-            top = 0
-            stack_col[0] = n_cols + k
-            stack_pos[0] = xptr[k]
-            found = -1
-            while top >= 0:
-                c = stack_col[top]
-                if c < n_cols:
-                    end = tptr[c + 1]
-                else:
-                    end = xptr[c - n_cols + 1]
-                pos = stack_pos[top]
-                nxt = -1
-                while pos < end:
-                    v = tind[pos] if c < n_cols else xind[pos]
-                    pos += 1
-                    if stamp[v] == rnd or row_match[v] == c:
-                        continue
-                    rw = barred[v] if (c < n_cols or full[c - n_cols]) else 0
-                    if pi[n + c] - rw - pi[v] != 0:
-                        continue
-                    stamp[v] = rnd
-                    m = row_match[v]
-                    if m == -1:
-                        if pi[v] - pi_t == 0:
-                            nxt = v
-                            break
-                        continue
-                    rw2 = barred[v] if (m < n_cols or full[m - n_cols]) else 0
-                    if rw2 + pi[v] - pi[n + m] != 0:
-                        continue
-                    nxt = v
-                    break
-                stack_pos[top] = pos
-                if nxt == -1:
-                    top -= 1
+        # --- augment along vertex-disjoint paths of zero reduced cost, pass after
+        # pass while one finds any (new reverse arcs may open more at this cost)
+        total = 0
+        while True:
+            augmented = 0
+            for k in range(n_x):
+                if x_match[k] != -1 or pi_s - pi[n + n_cols + k] != 0:
                     continue
-                stack_row[top] = nxt
-                if row_match[nxt] == -1:
-                    found = nxt
-                    break
-                c2 = row_match[nxt]
-                top += 1
-                stack_col[top] = c2
-                stack_pos[top] = tptr[c2] if c2 < n_cols else xptr[c2 - n_cols]
-            if found != -1:
-                t = top
-                while t >= 0:
-                    c = stack_col[t]
-                    r = stack_row[t]
-                    row_match[r] = c
+                top = 0
+                stack_col[0] = n_cols + k
+                stack_pos[0] = xptr[k]
+                found = -1
+                while top >= 0:
+                    c = stack_col[top]
                     if c < n_cols:
-                        col_match[c] = r
+                        end = tptr[c + 1]
                     else:
-                        x_match[c - n_cols] = r
-                    t -= 1
-                augmented += 1
-        rnd += 1
-        if augmented == 0:
+                        end = xptr[c - n_cols + 1]
+                    pos = stack_pos[top]
+                    nxt = -1
+                    while pos < end:
+                        v = tind[pos] if c < n_cols else xind[pos]
+                        pos += 1
+                        if stamp[v] == rnd or row_match[v] == c:
+                            continue
+                        rw = barred[v] if (c < n_cols or full[c - n_cols]) else 0
+                        if pi[n + c] - rw - pi[v] != 0:
+                            continue
+                        stamp[v] = rnd
+                        m = row_match[v]
+                        if m == -1:
+                            if pi[v] - pi_t == 0:
+                                nxt = v
+                                break
+                            continue
+                        rw2 = barred[v] if (m < n_cols or full[m - n_cols]) else 0
+                        if rw2 + pi[v] - pi[n + m] != 0:
+                            continue
+                        nxt = v
+                        break
+                    stack_pos[top] = pos
+                    if nxt == -1:
+                        top -= 1
+                        continue
+                    stack_row[top] = nxt
+                    if row_match[nxt] == -1:
+                        found = nxt
+                        break
+                    c2 = row_match[nxt]
+                    top += 1
+                    stack_col[top] = c2
+                    stack_pos[top] = tptr[c2] if c2 < n_cols else xptr[c2 - n_cols]
+                if found != -1:
+                    t = top
+                    while t >= 0:
+                        c = stack_col[t]
+                        r = stack_row[t]
+                        row_match[r] = c
+                        if c < n_cols:
+                            col_match[c] = r
+                        else:
+                            x_match[c - n_cols] = r
+                        t -= 1
+                    augmented += 1
+            rnd += 1
+            total += augmented
+            if augmented == 0:
+                break
+        if total == 0:
             break  # cannot happen with exact potentials; a guard against a loop
+    return rnd, work
