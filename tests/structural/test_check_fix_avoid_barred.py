@@ -145,3 +145,78 @@ def test_drivers_hold_fewest_barred_states_by_brute_force():
         tried += 1
         worse += int(barred[d].sum()) > best
     assert tried == 1000 and worse == 0
+
+
+def _lsa_fewest_barred(n, edges, driven, barred):
+    """Fewest inputs, then fewest barred among them, by scipy's linear_sum_assignment
+    (Crouse 2016, a shortest augmenting path method) on the assignment form of the same
+    problem: each state takes one in-neighbour (a link ``u -> v`` lets ``v`` take column
+    ``u``), an input of ``driven``, the extra column of the unreached source component
+    it lies in (then it gets an input and the component is reached), or nothing (it
+    gets an input). Weights: ``BIG`` for every column taken, plus 1 where a barred state
+    takes a real column or the extra column of a component barred throughout. Unreached
+    source components from networkx's condensation. Returns (fix size, barred in fix)."""
+    from scipy.optimize import linear_sum_assignment
+
+    G = nx.DiGraph()
+    G.add_nodes_from(range(n))
+    G.add_edges_from(edges)
+    C = nx.condensation(G)
+    reached = set(driven)
+    for d in driven:
+        reached |= nx.descendants(G, d)
+    comps = [sorted(C.nodes[c]["members"]) for c in C if C.in_degree(c) == 0
+             and not set(C.nodes[c]["members"]) & reached]
+    BIG = 4 * n + 4
+    ncol = n + len(driven) + len(comps) + n  # states, inputs, extra, "nothing"
+    W = np.full((n, ncol), -10**9, np.int64)
+    for u, v in edges:
+        W[v, u] = BIG + int(barred[v])
+    for k, d in enumerate(driven):
+        W[d, n + k] = BIG + int(barred[d])
+    for j, comp in enumerate(comps):
+        full = all(barred[comp])
+        for v in comp:
+            W[v, n + len(driven) + j] = BIG + int(full and barred[v])
+    W[np.arange(n), n + len(driven) + len(comps) + np.arange(n)] = 0
+    rows, cols = linear_sum_assignment(W, maximize=True)
+    real = {int(r) for r, c in zip(rows, cols) if c < n + len(driven)}
+    taken = {int(c) - n - len(driven) for c in cols
+             if n + len(driven) <= c < n + len(driven) + len(comps)}
+    fix = [v for v in range(n) if v not in real]
+    cost = int(barred[fix].sum())
+    for j, comp in enumerate(comps):
+        if j not in taken:  # one more input, on a state not barred if there is one
+            fix.append(comp[0])
+            cost += int(all(barred[comp]))
+    return len(fix), cost
+
+
+def test_medium_networks_fix_matches_assignment_optimum():
+    """Networks of 150-400 states with planted source cycles, too large for subsets:
+    the fix's size and barred count equal the optimum of the assignment form, solved by
+    scipy (no brute force; the form is argued in netctl.structural._engine.completion)."""
+    rng = np.random.default_rng(17)
+    for _ in range(12):
+        n = int(rng.integers(150, 400))
+        src, dst = rng.integers(0, n, 2 * n), rng.integers(0, n, 2 * n)
+        ring_states = rng.permutation(n)[: n // 5]
+        keep = ~np.isin(dst, ring_states)
+        src, dst = list(src[keep]), list(dst[keep])
+        for k in range(0, ring_states.size, 3):
+            ring = ring_states[k:k + int(rng.integers(1, 4))]
+            src += list(ring)
+            dst += list(np.roll(ring, -1))
+        src, dst = np.array(src), np.array(dst)
+        barred = rng.random(n) < 0.4
+        driven = sorted(rng.choice(n, 2, replace=False).tolist())
+        Bm = np.zeros((n, 2))
+        Bm[driven, [0, 1]] = 1
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            s = StructuredSystem.from_edges(src, dst, n_states=n,
+                                            nodes={"actuator": ~barred}).with_inputs(Bm)
+        fix = controllability(s, dimension=False).fix
+        edges = set(zip(src.tolist(), dst.tolist()))
+        assert (fix.size, int(barred[fix].sum())) == _lsa_fewest_barred(n, edges, driven,
+                                                                         barred)
