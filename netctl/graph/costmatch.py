@@ -15,6 +15,8 @@ that every search is Dijkstra's on non-negative reduced costs, stopped as soon a
 cheapest free row is known; each search is followed by a depth-first search that
 augments along as many vertex-disjoint zero-reduced-cost paths as it finds (the
 primal-dual method, ibid. 9.8), so that equal-cost augmentations share one search.
+Rows that every maximum matching of the real graph takes are left out of the searches
+(they lie on no augmenting path).
 Successive shortest paths stay optimal for each size provided the start is; ``M`` is
 optimal for its size exactly when it matches as many rewarded (barred) rows as any
 maximum matching of the real graph, which is the caller's duty. Costs are integers of
@@ -35,11 +37,13 @@ from __future__ import annotations
 
 import numpy as np
 from netctl._jit import njit
+from netctl.graph.dm import alternating_reach_rows
 
 __all__ = ["extend_matching_least_cost"]
 
 
 def extend_matching_least_cost(
+    csr: tuple[np.ndarray, np.ndarray],
     transpose: tuple[np.ndarray, np.ndarray],
     n_cols: int,
     row_match: np.ndarray,
@@ -52,6 +56,8 @@ def extend_matching_least_cost(
 
     Parameters
     ----------
+    csr : (indptr, indices)
+        Row-wise adjacency of the real graph (columns adjacent to each row).
     transpose : (tptr, tind)
         Column-wise adjacency of the real columns.
     row_match, col_match : ndarray
@@ -73,14 +79,22 @@ def extend_matching_least_cost(
     -----
     Reward of a matching: the number of barred rows matched to a real column or to a
     ``full`` extra column. The result has the most extra columns matched of any
-    matching whose real part is maximum and, among those, the largest reward. Each round
-    is one Dijkstra search and one depth-first search over the part of the graph that
-    alternating paths from the free extra columns reach; the number of rounds is at most
-    the number of extra columns, and in practice a handful.
+    matching whose real part is maximum and, among those, the largest reward. The
+    searches visit only rows that some maximum matching of the real graph leaves free
+    (the rows an alternating search from the free rows reaches, found once, linear: the
+    horizontal tail of the Dulmage-Mendelsohn decomposition), since an augmenting path
+    read backwards is an alternating path from a free row. Each round is one Dijkstra
+    search and depth-first passes over that part; the number of rounds is at most the
+    number of extra columns, and in practice a handful.
     """
     dt = row_match.dtype
     x_match = np.full(extra[0].size - 1, -1, dt)
     if x_match.size:
+        # rows that no maximum matching of the real graph leaves free (the alternating
+        # search from the free rows does not reach them) lie on no augmenting path: an
+        # augmenting path read backwards is an alternating path from a free row
+        live = alternating_reach_rows(csr[0], csr[1], n_cols,
+                                      col_match)[0].view(np.uint8)
         # node ids (rows, then real and extra columns) in the type of the indices
         tdt = dt if row_match.size + n_cols + x_match.size < 2**31 - 1 else np.int64
         _least_cost_extend(np.ascontiguousarray(transpose[0], dt),
@@ -88,13 +102,13 @@ def extend_matching_least_cost(
                            col_match, np.ascontiguousarray(extra[0], dt),
                            np.ascontiguousarray(extra[1], dt), x_match,
                            np.ascontiguousarray(barred, np.uint8),
-                           np.ascontiguousarray(full, np.uint8))
+                           np.ascontiguousarray(full, np.uint8), live)
     return x_match
 
 
 @njit(cache=True, nogil=True)
 def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match,
-                       barred, full):  # pragma: no cover - compiled
+                       barred, full, live):  # pragma: no cover - compiled
     """Successive shortest paths; see :func:`extend_matching_least_cost`.
 
     Nodes: rows ``0..n-1``, then column ``c`` (real, or extra ``n_cols + k``) as
@@ -197,7 +211,7 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                     hi = xptr[c - n_cols + 1]
                 for p in range(lo, hi):
                     v = tind[p] if c < n_cols else xind[p]
-                    if row_match[v] == c:
+                    if row_match[v] == c or not live[v]:
                         continue
                     rw = barred[v] if (c < n_cols or full[c - n_cols]) else 0
                     nd = d - rw + pi[u] - pi[v]
@@ -288,7 +302,7 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                     while pos < end:
                         v = tind[pos] if c < n_cols else xind[pos]
                         pos += 1
-                        if stamp[v] == rnd or row_match[v] == c:
+                        if stamp[v] == rnd or row_match[v] == c or not live[v]:
                             continue
                         rw = barred[v] if (c < n_cols or full[c - n_cols]) else 0
                         if pi[n + c] - rw - pi[v] != 0:

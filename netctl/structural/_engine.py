@@ -392,8 +392,9 @@ def completion(A: sp.csr_array, B: sp.csr_array, st: Structure | None = None, *,
             bar = np.asarray(avoid, bool)
             full = (np.logical_and.reduceat(bar[members], cptr[:-1]) if members.size
                     else np.zeros(n_comp, bool))
-            x_match = extend_matching_least_cost(transpose, n_cols, row_match, col_match,
-                                                 (cptr, members), bar, full)
+            x_match = extend_matching_least_cost((ab_ptr, ab_ind), transpose, n_cols,
+                                                 row_match, col_match, (cptr, members),
+                                                 bar, full)
         else:
             row_match[x_match[x_match >= 0]] = n_cols + np.flatnonzero(x_match >= 0)
             extend_matching(transpose, n_cols, row_match, col_match, (cptr, members),

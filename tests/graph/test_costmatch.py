@@ -67,7 +67,8 @@ def test_least_cost_extension_matches_networkx_max_weight_matching(mode):
         prm, _, _ = extend_matching(tr, n_c, rm, cm, (xptr, xind),
                                     np.full(len(extra), -1, np.int64))
         with (_jit.always_python() if mode == "python" else _jit.always_compiled()):
-            xm = extend_matching_least_cost(tr, n_c, rm, cm, (xptr, xind), barred, full)
+            xm = extend_matching_least_cost((ptr, ind), tr, n_c, rm, cm, (xptr, xind),
+                                            barred, full)
         # a valid matching: real part as before in size, extra columns on their rows
         for k, r in enumerate(xm.tolist()):
             if r >= 0:
