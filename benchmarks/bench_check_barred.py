@@ -23,6 +23,7 @@ import warnings
 
 sys.path.insert(0, sys.argv[1])
 import numpy as np  # noqa: E402
+import scipy.sparse as sp  # noqa: E402
 
 from netctl import StructuredSystem  # noqa: E402
 from netctl.structural import controllability  # noqa: E402
@@ -55,12 +56,10 @@ for n in [int(float(a)) for a in sys.argv[2:]] or [10**5, 10**6]:
         rng = np.random.default_rng(1)
         barred = rng.random(n) < 0.3
         driven = rng.choice(n, n // 1000, replace=False)
-        B = np.zeros((n, driven.size))
+        B = sp.csr_array((np.ones(driven.size), (driven, np.arange(driven.size))),
+                         shape=(n, driven.size))
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            import scipy.sparse as sp
-            B = sp.csr_array((np.ones(driven.size), (driven, np.arange(driven.size))),
-                             shape=(n, driven.size))
             s = StructuredSystem.from_edges(src, dst, n_states=n,
                                             nodes={"actuator": ~barred}).with_inputs(B)
         r = controllability(s, dimension=False)  # warm-up (compiled kernels)
