@@ -17,7 +17,8 @@ import pytest
 
 from netctl import _jit
 from netctl.graph.costmatch import extend_matching_least_cost
-from netctl.graph.matching import extend_matching, transpose_index
+from netctl.graph.extra_columns import extend_matching
+from netctl.graph.matching import transpose_index
 
 BIG = 1000
 
