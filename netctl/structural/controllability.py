@@ -372,8 +372,8 @@ def _report(system: StructuredSystem, kind: str, dimension: bool,
     # node table says where (e.g. a grid's generator buses, their frequency states)
     # and, for inputs in a second-order model, on a velocity state, never on a position
     prefer = site_preference(system.nodes, system.model, actuators=kind == "controllability")
-    # the fix leaves as few states the node table bars unmatched as any maximum matching
-    # allows, as the minimum input design does (the count does not depend on it)
+    # of the smallest fixes, one with the fewest states the node table bars (exact, also
+    # with cycles: completion's Notes), as the minimum input design does
     avoid = sites_to_avoid(system.nodes, actuators=kind == "controllability")
     comp = completion(A, B, st, prefer=prefer, avoid=avoid)
     rank = comp.matching_size

@@ -147,8 +147,10 @@ def minimum_inputs(system: StructuredSystem, *, dedicated: bool = False) -> Inpu
     shared inputs, input 0 also acts on one state of each source component still
     unreached. When ``n > 0`` at least one input is needed. Where a source component needs
     a representative, a state the node table allows to host an actuator (column
-    ``actuator``; ``sensor`` for sensors) is preferred; constrained and cost-aware
-    placement proper is :mod:`netctl.structural.placement`.
+    ``actuator``; ``sensor`` for sensors) is preferred, and of all the smallest driver
+    sets the one chosen holds as few states that column bars as any (exact: a
+    least-cost matching, :func:`netctl.structural._engine.completion`); constrained and
+    cost-aware placement proper is :mod:`netctl.structural.placement`.
 
     The minimum set is one of possibly many; ties are broken deterministically by the
     matching order (state indices). Cost: two maximum matchings and the strongly
@@ -200,8 +202,8 @@ def _design(system: StructuredSystem, kind: str, dedicated: bool) -> InputDesign
     # where a source component needs a representative, prefer states that may host one
     # (an input on a velocity (frequency) state, never on an angle, in a second-order model)
     prefer = site_preference(system.nodes, system.model, actuators=kind == "inputs")
-    # which states are left unmatched: as few the node table bars as any maximum
-    # matching allows (the count does not depend on it)
+    # of the smallest driver sets, one with the fewest states the node table bars (the
+    # count does not depend on it)
     avoid = sites_to_avoid(system.nodes, actuators=kind == "inputs")
     comp = completion(system.pattern("A"), empty_pattern((n, 0)), prefer=prefer,
                       avoid=avoid)
