@@ -16,11 +16,13 @@ cheapest free row is known; each search is followed by a depth-first search that
 augments along as many vertex-disjoint zero-reduced-cost paths as it finds (the
 primal-dual method, ibid. 9.8), so that equal-cost augmentations share one search.
 Rows that every maximum matching of the real graph takes are left out of the searches
-(they lie on no augmenting path).
-Successive shortest paths stay optimal for each size provided the start is; ``M`` is
-optimal for its size exactly when it matches as many rewarded (barred) rows as any
-maximum matching of the real graph, which is the caller's duty. Costs are integers of
-absolute value at most 1 per arc, so distances stay small.
+(they lie on no augmenting path). Successive shortest paths stay optimal for each size
+provided the start is; ``M`` is optimal for its size when it matches as many rewarded
+(barred) rows as any maximum matching of the real graph, which is the caller's duty
+(the potentials the kernel starts from, 0 on columns and ``-barred`` on rows, give
+every arc between rows and columns a non-negative reduced cost, so no cycle of them
+gains; a path from a free row to a matched one gains nothing by that choice of ``M``).
+Arc costs are -1, 0 or 1.
 
 References
 ----------
