@@ -12,13 +12,20 @@
 
 4. Whole verbs, before / after (issue 22, item 4): ``--networks DIR`` writes sparse
    directed networks of 120, 200, 1000 and 2000 states (mean out-degree 4 plus a self-loop on
-   every state: damping), then time two code trees in turn with ``farm-bench``::
+   every state: damping), then time two code trees as whole processes in turn (before,
+   after, before, after, ... after one warm-up of each; medians and medians of the paired
+   ratios after/before), as ``in_turn`` and ``run_once`` of ``bench_verbs.py`` do
+   (``os.wait4``: wall, user + system CPU, peak resident set), or by hand with
+   ``/usr/bin/time -v``, from a neutral folder (``python3 -m`` puts the working folder
+   first on ``sys.path``)::
 
-       farm-bench -n 3 --vs 'env PYTHONPATH=BEFORE python3 -m netctl modes DIR/net1000.txt
-           --weights independent --quiet' -- env PYTHONPATH=AFTER python3 -m netctl modes
-           DIR/net1000.txt --weights independent --quiet
-       (the same for ``energy DIR/net120.txt --weights independent --json --quiet``:
-        the Gramian, the rank test and the greedy choice of the structural count)
+       /usr/bin/time -v env PYTHONPATH=BEFORE python3 -m netctl modes DIR/net1000.txt \\
+           --weights independent --quiet
+       /usr/bin/time -v env PYTHONPATH=AFTER python3 -m netctl modes DIR/net1000.txt \\
+           --weights independent --quiet
+       (three such pairs; the same for ``energy DIR/net120.txt --weights independent
+        --json --quiet``: the Gramian, the rank test and the greedy choice of the
+        structural count)
 
 Networks are synthetic scenarios of our own making (seeded). The machine is shared:
 quote ratios from one run, not absolute times.
