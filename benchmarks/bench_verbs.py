@@ -78,6 +78,40 @@ def netctl(args: list[str]) -> list[str]:
             "from netctl.cli import main; raise SystemExit(main())", *args]
 
 
+Run = tuple[float, float, float, int]
+
+
+def in_turn(first: tuple[list[str], str | None], second: tuple[list[str], str | None],
+            cwd: str, runs: int) -> list[tuple[Run, Run]]:
+    """``runs`` pairs of whole processes, ``(argv, tree)`` ``first`` then ``second`` each
+    time, after one warm-up of each (not counted: numba's cache, page cache); one pair only
+    if the first warm-up passes the timeout."""
+    warm = run_once(*first, cwd)
+    if warm[0] == float("inf"):
+        runs = 1
+    run_once(*second, cwd)
+    return [(run_once(*first, cwd), run_once(*second, cwd)) for _ in range(runs)]
+
+
+def medians(rows: list[tuple[Run, Run]]) -> dict[str, float]:
+    """Median wall and CPU seconds of sides ``a`` and ``b`` of ``(a, b)`` pairs, the medians
+    of the pair-by-pair ratios a/b, and the peak resident MiB of ``a`` (largest)."""
+    med = statistics.median
+    return {"a wall": med(r[0][0] for r in rows), "a cpu": med(r[0][1] for r in rows),
+            "b wall": med(r[1][0] for r in rows), "b cpu": med(r[1][1] for r in rows),
+            "ratio wall": med(r[0][0] / r[1][0] for r in rows),
+            "ratio cpu": med(r[0][1] / r[1][1] for r in rows),
+            "a peak": max(r[0][2] for r in rows)}
+
+
+def seconds(x: float) -> str:
+    return "> timeout" if x == float("inf") else f"{x:.3f}"
+
+
+def ratio(x: float) -> str:
+    return "—" if x != x or x in (float("inf"), 0.0) else f"{x:.2f}"
+
+
 def pairs(label: str, argv: list[str], before: str, after: str, cwd: str, runs: int,
           baseline_argv: list[str] | None = None) -> str:
     """One table row: ``argv`` under ``after`` against ``baseline_argv`` (default: the same
@@ -86,30 +120,12 @@ def pairs(label: str, argv: list[str], before: str, after: str, cwd: str, runs: 
     b_tree = None if baseline_argv else before
     if ONLY and not any(w in label for w in ONLY):
         return f"| {label} | (skipped) |"
-    warm = run_once(b_argv, b_tree, cwd)  # warm-up, not counted (numba's cache, page cache)
-    if warm[0] == float("inf"):  # the baseline alone passes the timeout: run once
-        runs = 1
-    run_once(argv, after, cwd)
-    rows = []
-    for _ in range(runs):
-        b = run_once(b_argv, b_tree, cwd)
-        a = run_once(argv, after, cwd)
-        rows.append((a, b))
-    med = statistics.median
-    aw, ac = med(r[0][0] for r in rows), med(r[0][1] for r in rows)
-    bw, bc = med(r[1][0] for r in rows), med(r[1][1] for r in rows)
-    rw = med(r[0][0] / r[1][0] for r in rows)
-    rc = med(r[0][1] / r[1][1] for r in rows)
-    peak = max(r[0][2] for r in rows)
+    rows = [(a, b) for b, a in in_turn((b_argv, b_tree), (argv, after), cwd, runs)]
+    m = medians(rows)
     codes = f"{rows[0][1][3]}/{rows[0][0][3]}"
-    def f(x: float) -> str:
-        return "> timeout" if x == float("inf") else f"{x:.3f}"
-
-    def r(x: float) -> str:
-        return "—" if x != x or x in (float("inf"), 0.0) else f"{x:.2f}"
-
-    return (f"| {label} | {f(bw)} | {f(aw)} | {f(bc)} | {f(ac)} | {r(rw)} | {r(rc)} "
-            f"| {peak:.0f} | {codes} |")
+    return (f"| {label} | {seconds(m['b wall'])} | {seconds(m['a wall'])} "
+            f"| {seconds(m['b cpu'])} | {seconds(m['a cpu'])} | {ratio(m['ratio wall'])} "
+            f"| {ratio(m['ratio cpu'])} | {m['a peak']:.0f} | {codes} |")
 
 
 def generate(work: Path, size: str, after: str) -> tuple[Path, Path, int]:
