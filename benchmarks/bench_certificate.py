@@ -7,8 +7,9 @@ when the file has no inputs, ``independent`` weights, random start 0): the block
 matched columns of ``[A B]``, the reciprocity of their links, and both factorizations
 timed in turn -- the reference (COLAMD, partial pivoting) and the faster one
 (``MMD_AT_PLUS_A``, threshold pivoting 0.1) -- with the margin each would report. Whole
-verbs are timed with ``farm-bench`` (see benchmarks/RESULTS.md, "Sparse certificate on
-random directed networks").
+verbs are timed as whole processes, before and after in turn (``in_turn`` and ``run_once``
+of ``bench_verbs.py``, or ``/usr/bin/time -v``; see benchmarks/RESULTS.md, "Sparse
+certificate on random directed networks").
 
 Networks of the table (scenarios of our own, reproducible)::
 
