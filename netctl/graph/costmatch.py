@@ -40,6 +40,7 @@ from __future__ import annotations
 import numpy as np
 from netctl._jit import njit
 from netctl.graph.dm import alternating_reach_rows
+from netctl.graph.extra_columns import _flip_path
 
 __all__ = ["extend_matching_least_cost"]
 
@@ -109,6 +110,26 @@ def extend_matching_least_cost(
 
 
 @njit(cache=True, nogil=True)
+def _heap_push(hkey, hnode, hsize, key, node):  # pragma: no cover - compiled
+    """Push ``(key, node)`` on the binary min-heap ``hkey[:hsize]``/``hnode[:hsize]``
+    (sift up), doubling both arrays when full; returns the arrays (new when grown)."""
+    if hsize == hkey.size:
+        hkey = np.concatenate((hkey, np.empty(hsize, hkey.dtype)))
+        hnode = np.concatenate((hnode, np.empty(hsize, hnode.dtype)))
+    i = hsize
+    while i > 0:
+        q = (i - 1) // 2
+        if hkey[q] <= key:
+            break
+        hkey[i] = hkey[q]
+        hnode[i] = hnode[q]
+        i = q
+    hkey[i] = key
+    hnode[i] = node
+    return hkey, hnode
+
+
+@njit(cache=True, nogil=True)
 def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match,
                        barred, full, live):  # pragma: no cover - compiled
     """Successive shortest paths; see :func:`extend_matching_least_cost`.
@@ -138,9 +159,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
     pi_t = -1
     dist = np.full(n_nodes, big, np.int32)
     touched = np.empty(n_nodes, tind.dtype)
-    cap = 1024
-    hkey = np.empty(cap, np.int32)
-    hnode = np.empty(cap, tind.dtype)
+    hkey = np.empty(1024, np.int32)
+    hnode = np.empty(1024, tind.dtype)
     stamp = np.full(n, -1, np.int32)
     stack_col = np.empty(n + 1, tind.dtype)
     stack_pos = np.empty(n + 1, np.int64)
@@ -160,21 +180,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
             dist[u] = d0
             touched[ntouch] = u
             ntouch += 1
-            if hsize == cap:
-                cap *= 2
-                hkey = np.concatenate((hkey, np.empty(hsize, np.int32)))
-                hnode = np.concatenate((hnode, np.empty(hsize, tind.dtype)))
-            i = hsize  # sift up
+            hkey, hnode = _heap_push(hkey, hnode, hsize, d0, u)
             hsize += 1
-            while i > 0:
-                p = (i - 1) // 2
-                if hkey[p] <= d0:
-                    break
-                hkey[i] = hkey[p]
-                hnode[i] = hnode[p]
-                i = p
-            hkey[i] = d0
-            hnode[i] = u
         while hsize > 0:
             d = hkey[0]
             u = hnode[0]
@@ -200,9 +207,6 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                 continue  # stale
             if d >= best:
                 break
-            nlo = 0
-            nhi = 0
-            nd_out = 0
             if u >= n:  # a column: rows that may take it
                 c = u - n
                 if c < n_cols:
@@ -229,21 +233,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                             if cand < best:
                                 best = cand
                             continue
-                        if hsize == cap:
-                            cap *= 2
-                            hkey = np.concatenate((hkey, np.empty(hsize, np.int32)))
-                            hnode = np.concatenate((hnode, np.empty(hsize, tind.dtype)))
-                        i = hsize
+                        hkey, hnode = _heap_push(hkey, hnode, hsize, nd, v)
                         hsize += 1
-                        while i > 0:
-                            q = (i - 1) // 2
-                            if hkey[q] <= nd:
-                                break
-                            hkey[i] = hkey[q]
-                            hnode[i] = hnode[q]
-                            i = q
-                        hkey[i] = nd
-                        hnode[i] = v
             else:  # a matched row: to the column it holds
                 m = row_match[u]
                 w = n + m
@@ -254,21 +245,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                         touched[ntouch] = w
                         ntouch += 1
                     dist[w] = nd
-                    if hsize == cap:
-                        cap *= 2
-                        hkey = np.concatenate((hkey, np.empty(hsize, np.int32)))
-                        hnode = np.concatenate((hnode, np.empty(hsize, tind.dtype)))
-                    i = hsize
+                    hkey, hnode = _heap_push(hkey, hnode, hsize, nd, w)
                     hsize += 1
-                    while i > 0:
-                        q = (i - 1) // 2
-                        if hkey[q] <= nd:
-                            break
-                        hkey[i] = hkey[q]
-                        hnode[i] = hnode[q]
-                        i = q
-                    hkey[i] = nd
-                    hnode[i] = w
         work += ntouch
         if best == big:
             for i in range(ntouch):
@@ -334,16 +312,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                     stack_col[top] = c2
                     stack_pos[top] = tptr[c2] if c2 < n_cols else xptr[c2 - n_cols]
                 if found != -1:
-                    t = top
-                    while t >= 0:
-                        c = stack_col[t]
-                        r = stack_row[t]
-                        row_match[r] = c
-                        if c < n_cols:
-                            col_match[c] = r
-                        else:
-                            x_match[c - n_cols] = r
-                        t -= 1
+                    _flip_path(stack_col, stack_row, top, row_match, col_match, x_match,
+                               n_cols)
                     augmented += 1
             rnd += 1
             total += augmented

@@ -27,6 +27,24 @@ __all__ = ["extend_matching"]
 
 
 @njit(cache=True, nogil=True)
+def _flip_path(stack_col, stack_row, top, row_match, col_match, x_match,
+               n_cols):  # pragma: no cover - compiled
+    """Augment along the alternating path on the search stack: row ``stack_row[t]``
+    takes column ``stack_col[t]`` for ``t = top .. 0`` (columns from ``n_cols`` on are
+    the extra columns, matched in ``x_match``)."""
+    t = top
+    while t >= 0:
+        c = stack_col[t]
+        r = stack_row[t]
+        row_match[r] = c
+        if c < n_cols:
+            col_match[c] = r
+        else:
+            x_match[c - n_cols] = r
+        t -= 1
+
+
+@njit(cache=True, nogil=True)
 def _extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match):  # pragma: no cover
     """DFS from every free extra column; see :func:`extend_matching`."""
     n_rows = row_match.size
@@ -76,16 +94,7 @@ def _extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match):  # p
                 stack_col[top] = c2
                 stack_pos[top] = tptr[c2] if c2 < n_cols else xptr[c2 - n_cols]
             if found != -1:
-                t = top
-                while t >= 0:
-                    c = stack_col[t]
-                    r = stack_row[t]
-                    row_match[r] = c
-                    if c < n_cols:
-                        col_match[c] = r
-                    else:
-                        x_match[c - n_cols] = r
-                    t -= 1
+                _flip_path(stack_col, stack_row, top, row_match, col_match, x_match, n_cols)
                 augmented += 1
         if augmented == 0:
             break
