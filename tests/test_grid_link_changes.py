@@ -146,3 +146,21 @@ def test_sweep_of_single_links_on_a_grid_says_they_are_not_equipment(capsys):
     assert "warning" not in capsys.readouterr().err
     assert main(["sweep", "networks/heating_loop.csv", "--elements", "links"]) in (0, 1)
     assert "on a grid" not in capsys.readouterr().err
+
+
+def test_python_what_if_warns_on_half_a_line():
+    """The Python ``what_if`` answers what it is given but warns when a grid change is not
+    a whole element; a whole line gives no warning (common practice, no source)."""
+    from netctl.io import read
+    from netctl.models import resolve_model
+    from netctl.structural.robustness import what_if
+
+    g = resolve_model(read("networks/island_grid.m"), None)
+    with pytest.warns(UserWarning, match="half a line"):
+        w = what_if(g, remove_links=[("1:pos", "2:vel")])
+    assert [tuple(x) for x in w.removed_links] == [("1:pos", "2:vel")]
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        what_if(g, remove_links=[("1:pos", "2:vel"), ("2:pos", "1:vel")])

@@ -24,7 +24,9 @@ __all__ = ["grid_link_problem"]
 
 def grid_link_problem(system: StructuredSystem, *,
                       add: Sequence[tuple[str, str]] | None = None,
-                      remove: Sequence[tuple[str, str]] | None = None) -> str | None:
+                      remove: Sequence[tuple[str, str]] | None = None,
+                      words: tuple[str, str, str] = ("--add-links", "--remove-links",
+                                                     "--remove-elements")) -> str | None:
     """Why a change of links does not fit a grid's elements, or ``None`` when it does.
 
     Parameters
@@ -33,6 +35,9 @@ def grid_link_problem(system: StructuredSystem, *,
         A grid (with an element table); any other system is never objected to.
     add, remove : sequences of (source, target) state names
         The links to add and to remove (states that exist; new states are not judged).
+    words : (str, str, str)
+        How the message names the links to add, the links to remove and the element
+        outage (the command line's options by default).
 
     Returns
     -------
@@ -51,6 +56,7 @@ def grid_link_problem(system: StructuredSystem, *,
     table = system.elements
     if table is None or not (add or remove):
         return None
+    add_w, remove_w, element_w = words
     node = state_nodes(system, table)
     part = system.nodes.get("part")
     names = system.state_names
@@ -74,9 +80,9 @@ def grid_link_problem(system: StructuredSystem, *,
         if p < 0 or q < 0:
             continue
         if p == q:
-            return (f"--remove-links: {a}->{b} lies inside bus {bus[p]} (the model's own "
+            return (f"{remove_w}: {a}->{b} lies inside bus {bus[p]} (the model's own "
                     "angle-frequency or damping term, not equipment); take the bus out of "
-                    f"service with --remove-elements 'bus {bus[p]}'.")
+                    f"service with {element_w} 'bus {bus[p]}'.")
         pair = {p, q}
         between = sorted((s, t) for s, t in existing
                          if {where(s), where(t)} == pair and where(s) != where(t))
@@ -84,9 +90,9 @@ def grid_link_problem(system: StructuredSystem, *,
         if left:
             ids = [table.ids[k] for k in range(len(table)) if table.kinds[k] in BRANCH_KINDS
                    and {int(table.end_a[k]), int(table.end_b[k])} == pair]
-            fix = (f"take it out with --remove-elements '{','.join(ids)}'" if ids else
+            fix = (f"take it out with {element_w} '{','.join(ids)}'" if ids else
                    "remove every link between the two buses")
-            return (f"--remove-links: {a}->{b} is one of the {len(between)} links between "
+            return (f"{remove_w}: {a}->{b} is one of the {len(between)} links between "
                     f"bus {bus[p]} and bus {bus[q]}, and "
                     f"{', '.join(f'{names[s]}->{names[t]}' for s, t in left)} would stay: "
                     "that takes half a line out (a line couples its two buses both ways); "
@@ -98,13 +104,13 @@ def grid_link_problem(system: StructuredSystem, *,
             continue
         a, b = names[u], names[v]
         if p == q:
-            return (f"--add-links: {a}->{b} lies inside bus {bus[p]}: the model's own terms "
+            return (f"{add_w}: {a}->{b} lies inside bus {bus[p]}: the model's own terms "
                     "(angle-frequency, damping) come from --model, not from links; to "
                     "study a new line, add the links between two buses.")
         mu, mv = state_at.get((q, quantity[u])), state_at.get((p, quantity[v]))
         if mu is None or mv is None or (mu, mv) in existing or (mu, mv) in added:
             continue
-        return (f"--add-links: {a}->{b} alone adds half a line between bus {bus[p]} and "
+        return (f"{add_w}: {a}->{b} alone adds half a line between bus {bus[p]} and "
                 f"bus {bus[q]} (a line couples its two buses both ways); add "
                 f"{names[mu]}->{names[mv]} as well.")
     return None

@@ -3,6 +3,7 @@
 
 from __future__ import annotations
 
+import warnings
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
@@ -299,6 +300,20 @@ def what_if(system: StructuredSystem, *, add_links: Iterable[Sequence[object]] |
     >>> w.controllable_before, w.controllable_after, w.breaks_design, w.drivers_gained
     (True, False, True, ['x2'])
     """
+    add_links = None if add_links is None else [tuple(x) for x in add_links]
+    remove_links = None if remove_links is None else [tuple(x) for x in remove_links]
+    if system.elements is not None and (add_links or remove_links):
+        # a grid changes by whole elements (the command line refuses anything else)
+        from netctl.structural.robustness.gridlinks import grid_link_problem
+
+        problem = grid_link_problem(
+            system, add=[(str(a), str(b)) for a, b in add_links or ()],
+            remove=[(str(a), str(b)) for a, b in remove_links or ()],
+            words=("add_links", "remove_links", "the element outage (netctl whatif "
+                   "--remove-elements)"))
+        if problem is not None:
+            warnings.warn(f"{problem} The answer below is for the links as given.",
+                          stacklevel=2)
     after, new, lost_inputs = apply_change(system, add_links=add_links,
                                            remove_links=remove_links, remove_nodes=remove_nodes,
                                            remove_inputs=remove_inputs)
