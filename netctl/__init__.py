@@ -80,7 +80,7 @@ if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
         place_sensors,
         place_target_inputs,
     )
-    from netctl.structural.robustness import contingency_sweep, what_if
+    from netctl.structural.robustness import ElementSweep, contingency_sweep, element_sweep, what_if
     from netctl.structural.roles import LinkRoles, NodeRoles, link_roles, node_roles
     from netctl.structural.strong import (
         StrongInputDesign,
@@ -97,6 +97,7 @@ if TYPE_CHECKING:  # the eager imports, for type checkers and IDEs
 _LAZY: dict[str, str] = {
     "ControllabilityReport": "netctl.structural",
     "DecouplingReport": "netctl.structural",
+    "ElementSweep": "netctl.structural.robustness",
     "EnergyReport": "netctl.numeric",
     "ExactControllability": "netctl.numeric",
     "FixedModesReport": "netctl.structural",
@@ -128,6 +129,7 @@ _LAZY: dict[str, str] = {
     "controllability": "netctl.structural",
     "decoupling": "netctl.structural",
     "degree_preserving_swaps": "netctl.ensemble",
+    "element_sweep": "netctl.structural.robustness",
     "energy": "netctl.numeric",
     "exact_controllability": "netctl.numeric",
     "fixed_modes": "netctl.structural",
@@ -158,6 +160,7 @@ _LAZY: dict[str, str] = {
 __all__ = [
     "ControllabilityReport",
     "DecouplingReport",
+    "ElementSweep",
     "EnergyReport",
     "ExactControllability",
     "FixedModesReport",
@@ -190,6 +193,7 @@ __all__ = [
     "controllability",
     "decoupling",
     "degree_preserving_swaps",
+    "element_sweep",
     "energy",
     "exact_controllability",
     "fixed_modes",
@@ -228,7 +232,8 @@ _SUBMODULES = frozenset({"cli", "commands", "ensemble", "errors", "generate", "g
 #: analyses whose results remember the system they were computed on (for the small map
 #: of the notebook view, :meth:`netctl.tables.ResultTables.with_system`)
 _KEEP_SYSTEM = frozenset({
-    "compare_to_null", "contingency_sweep", "controllability", "decoupling", "energy",
+    "compare_to_null", "contingency_sweep", "controllability", "decoupling", "element_sweep",
+    "energy",
     "exact_controllability", "fixed_modes", "link_roles", "minimum_inputs", "minimum_sensors", "minimum_strong_inputs",
     "modal_controllability", "node_roles", "observability", "place_inputs", "place_sensors",
     "place_target_inputs", "strong_controllability", "summarize", "transfer_rank", "verify"})

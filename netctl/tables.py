@@ -21,8 +21,9 @@ A result class only *declares* what its rows are, through three class attributes
 ``_frame_rows``
     ``"states"`` (one row per state, column ``state`` holds its name, so the table joins
     onto an asset table by name), ``"links"`` (one row per link of ``A``, columns
-    ``source`` and ``target``: ``source`` influences ``target``) or ``"summary"`` (one
-    row of the scalar findings).
+    ``source`` and ``target``: ``source`` influences ``target``), ``"elements"`` (one row
+    per element of a grid, columns ``element``, its case ID, and ``kind``) or
+    ``"summary"`` (one row of the scalar findings).
 ``_frame_sets``
     Fields that are sorted index arrays into the rows (``drivers``, ``critical``...):
     each becomes a boolean column of the same name.
@@ -144,18 +145,24 @@ def result_columns(result: Any) -> tuple[str, dict[str, Any]]:
     cols: dict[str, Any] = {}
     if rows == "summary":
         return rows, {k: [v] for k, v in scalar_findings(result).items()}
-    names = list(result.state_names)
     if rows == "states":
+        names = list(result.state_names)
         count = len(names)
         cols["state"] = names
+    elif rows == "elements":  # a grid's elements by their case IDs
+        count = len(result.ids)
+        cols["element"] = list(result.ids)
+        cols["kind"] = list(result.kinds)
     elif rows == "links":
+        names = list(result.state_names)
         src = np.asarray(result.sources, np.int64)
         dst = np.asarray(result.targets, np.int64)
         count = int(src.size)
         cols["source"] = [names[i] for i in src.tolist()]
         cols["target"] = [names[i] for i in dst.tolist()]
     else:  # a class declared something else: a programming error, not user input
-        raise ValueError(f"_frame_rows must be 'states', 'links' or 'summary', found {rows!r}.")
+        raise ValueError(f"_frame_rows must be 'states', 'links', 'elements' or 'summary', "
+                         f"found {rows!r}.")
     for f in getattr(result, "_frame_sets", ()):
         idx = getattr(result, f)
         if idx is None:

@@ -19,6 +19,8 @@ EXPECTED = sorted([
     # roles, robustness, interconnection
     "LinkRoles", "NodeRoles", "contingency_sweep", "interconnection", "link_roles",
     "node_roles", "what_if",
+    # a grid's N-1 over its elements (case IDs)
+    "ElementSweep", "element_sweep",
     # placement under constraints, target control
     "Placement", "place_inputs", "place_sensors", "place_target_inputs",
     # strong structural controllability

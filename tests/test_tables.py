@@ -18,6 +18,7 @@ import pytest
 import netctl
 import netctl.io as nio
 from netctl.errors import MissingExtraError
+from netctl.models import resolve_model
 from netctl.numeric import realize
 
 pd = pytest.importorskip("pandas")
@@ -49,6 +50,9 @@ PRODUCERS = {
     "DecouplingReport": lambda s: netctl.decoupling(
         s.with_inputs(["fuel_valve", "bypass_valve"]).with_regulated(
             {"return_temp": ["return_header"]})),
+    # a grid's N-1 over its elements (the bundled island grid, not the heating loop)
+    "ElementSweep": lambda s: netctl.element_sweep(resolve_model(
+        netctl.io.read("networks/island_grid.m"), None).with_inputs(["1:vel"])),
     "EnergyReport": lambda s: netctl.energy(_stable(s)),
     "ExactControllability": lambda s: netctl.exact_controllability(realize(s, seed=1)),
     "FixedModesReport": lambda s: netctl.fixed_modes(
@@ -102,6 +106,9 @@ def test_to_frame_and_html_work_on_a_bundled_network(name, loop):
                     loop.state_names[int(i)] for i in np.sort(idx)], f
     elif rows == "links":
         assert len(frame) == result.n_links
+    elif rows == "elements":
+        assert frame["element"].tolist() == list(result.ids)
+        assert frame.loc[frame["breaking"], "element"].tolist() == d["breaking"]
     else:
         assert len(frame) == 1
     for k, v in d.items():  # scalar findings travel with the table

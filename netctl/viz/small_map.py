@@ -201,7 +201,7 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
             return _counts_note(change, total, max_states)
         system, rows, lines = change_view(result)
     else:
-        rows, lines = result_marks(result, system), result_lines(result)
+        rows, lines = result_marks(result, system), result_lines(result, system)
     n = int(system.n_states)
     if n > max_states:
         return _counts_note(rows, n, max_states)

@@ -101,6 +101,8 @@ def result_marks(result: Any, system: Any) -> Rows:
             _idx(np.asarray(fixes, np.int64)))
     if hasattr(result, "cut_off_states") and getattr(result, "elements", "") == "nodes":
         _sweep_states(result, add)
+    if getattr(result, "_frame_rows", "") == "elements":  # a grid's N-1 over elements
+        _element_states(result, system, add)
     if design is None or sensing:
         add("driver", "driver node: an input of the system acts here",
             _idx(system.driven_states()))
@@ -121,11 +123,51 @@ def _sweep_states(result: Any, add: Any) -> None:
     add("costly", MARKS["costly"].label, _idx(src[costly]))
 
 
-def result_lines(result: Any) -> Lines:
+def _element_effects(result: Any, system: Any) -> tuple[Any, np.ndarray, np.ndarray]:
+    """What each element of a grid sweep removes, and the positions of the losses that
+    break the design and of the others that raise the minimum inputs."""
+    from netctl.structural.robustness import element_effects
+
+    breaking = np.asarray(result.breaking, np.int64)
+    return (element_effects(system), breaking,
+            np.setdiff1d(np.asarray(result.costly, np.int64), breaking))
+
+
+def _element_states(result: Any, system: Any, add: Any) -> None:
+    """Buses (their states) and generators (the states their inputs act on) whose loss
+    alone breaks the design / raises the minimum inputs."""
+    eff, breaking, costly = _element_effects(result, system)
+    B = system.pattern("B")
+    acted = np.repeat(np.arange(system.n_states, dtype=np.int64), np.diff(B.indptr))
+    for key, label, pos in (("fragile", "its loss (bus or generator) alone breaks the "
+                             "design", breaking),
+                            ("costly", "its loss (bus or generator) alone raises the "
+                             "minimum number of inputs", costly)):
+        states = [np.zeros(0, np.int64)]
+        for k in pos.tolist():
+            _, lost, inputs = eff.of(k)
+            states.append(lost)
+            states.append(acted[np.isin(B.indices, inputs)])
+        add(key, label, _idx(np.concatenate(states)))
+
+
+def result_lines(result: Any, system: Any = None) -> Lines:
     """Highlighted links of a result: critical links (link roles, every maximum matching),
-    and for a contingency sweep of links the links whose single loss breaks the design or
-    raises the minimum number of inputs."""
+    for a contingency sweep of links the links whose single loss breaks the design or
+    raises the minimum number of inputs, and for a grid's sweep over elements (given
+    ``system``) the links of the branches whose loss does."""
     out: Lines = []
+    if getattr(result, "_frame_rows", "") == "elements" and system is not None:
+        eff, breaking, costly = _element_effects(result, system)
+        src, dst = system.edges()
+        for key, label, pos in (("fragile_link", "a branch whose loss alone breaks the "
+                                 "design", breaking),
+                                ("costly_link", "a branch whose loss alone raises the "
+                                 "minimum number of inputs", costly)):
+            links = np.unique(np.concatenate([np.zeros(0, np.int64)]
+                                             + [eff.of(k)[0] for k in pos.tolist()]))
+            if links.size:
+                out.append((key, label, src[links], dst[links]))
     if getattr(result, "_frame_rows", "") == "links":
         crit = _idx(getattr(result, "critical", None))
         if crit is not None and crit.size:

@@ -35,6 +35,7 @@ from netctl.structural.robustness.outages import (
     state_nodes,
 )
 from netctl.system import StructuredSystem
+from netctl.tables import ResultTables
 
 __all__ = ["ElementSweep", "element_sweep"]
 
@@ -210,8 +211,14 @@ class _Islands:
 
 # ---------------------------------------------------------------------- the sweep
 @dataclass(frozen=True)
-class ElementSweep(LossOutcomes):
+class ElementSweep(LossOutcomes, ResultTables):
     """Each element of a grid lost in turn (see :func:`element_sweep`).
+
+    ``to_frame()`` gives one row per element (its case ID, kind, the minimum inputs and
+    the design after its loss, whether it breaks the design or raises the minimum
+    inputs); in a notebook (from :func:`netctl.element_sweep`, or after ``with_system``)
+    it shows its findings and a small map: the branches whose loss alone breaks the
+    design or raises the minimum inputs, and the buses and generators likewise.
 
     Attributes
     ----------
@@ -243,6 +250,10 @@ class ElementSweep(LossOutcomes):
     model: str = "given"
     buses: tuple[tuple[str, ...], ...] = field(default=(), repr=False)
     states_per_bus: int = 1
+
+    _frame_rows = "elements"
+    _frame_sets = ("breaking", "costly")
+    _frame_values = ("n_inputs_after", "controllable_after", "no_change")
 
     @property
     def n_elements(self) -> int:
