@@ -86,21 +86,35 @@ def system_to_graph(system: StructuredSystem) -> Any:
     return g
 
 
+def _expat_pass(data: bytes, start: Callable[[str, dict[str, str], int], None],
+                end: Callable[[str], None], chars: Callable[[str], None]) -> bool:
+    """One expat pass over ``data`` for the line look-ups: ``start(local tag, attributes,
+    line)``, ``end(local tag)``, ``chars(text)`` (tags without their namespace prefix);
+    False when the XML is malformed (the full parser reports that, with its line)."""
+    import xml.parsers.expat
+
+    parser = xml.parsers.expat.ParserCreate()
+    parser.StartElementHandler = lambda tag, attrs: start(
+        tag.rsplit(":", 1)[-1], attrs, parser.CurrentLineNumber)
+    parser.EndElementHandler = lambda tag: end(tag.rsplit(":", 1)[-1])
+    parser.CharacterDataHandler = chars
+    try:
+        parser.Parse(data, True)
+    except xml.parsers.expat.ExpatError:
+        return False
+    return True
+
+
 def _check_ids(path: object, data: bytes) -> None:
     """Refuse what networkx would merge or invent silently: a node id declared twice
     with different attributes, and an edge to a node no ``<node>`` declares (each with
     its line)."""
-    import xml.parsers.expat
-
-    parser = xml.parsers.expat.ParserCreate()
     nodes: dict[str, tuple[int, list[tuple[str, str]]]] = {}
     ends: list[tuple[str, int]] = []
     again: list[tuple[str, int, int]] = []  # (id, first line, line of the repeat)
     state: dict[str, Any] = {"node": None, "key": None, "text": [], "depth": 0}
 
-    def start(tag: str, attrs: dict[str, str]) -> None:
-        local = tag.rsplit(":", 1)[-1]
-        line = parser.CurrentLineNumber
+    def start(local: str, attrs: dict[str, str], line: int) -> None:
         if local == "graph":
             state["depth"] += 1
         if state["depth"] != 1:  # nested graphs are networkx's business
@@ -119,8 +133,7 @@ def _check_ids(path: object, data: bytes) -> None:
         if state["key"] is not None:
             state["text"].append(text)
 
-    def end(tag: str) -> None:
-        local = tag.rsplit(":", 1)[-1]
+    def end(local: str) -> None:
         if local == "graph":
             state["depth"] -= 1
         elif local == "data" and state["key"] is not None and state["node"] is not None:
@@ -137,12 +150,7 @@ def _check_ids(path: object, data: bytes) -> None:
                 again.append((nid, nodes[nid][0], line))
             nodes.setdefault(nid, (line, attrs))
 
-    parser.StartElementHandler = start
-    parser.EndElementHandler = end
-    parser.CharacterDataHandler = chars
-    try:
-        parser.Parse(data, True)
-    except xml.parsers.expat.ExpatError:
+    if not _expat_pass(data, start, end, chars):
         return  # malformed XML: the full parser reports it with its line
     for nid, line in ends:
         if nid not in nodes:
@@ -171,20 +179,15 @@ def _finder(data: bytes, directed: bool) -> Find:
     """``find`` for :func:`graph_to_system` over the GraphML ``data``: one more expat pass,
     made only when a line is asked for. An edge is found by its ends; among several,
     the first whose weight is not a finite number."""
-    import xml.parsers.expat
-
     found: dict[str, Any] = {}
 
     def scan() -> None:
-        parser = xml.parsers.expat.ParserCreate()
         nodes: dict[str, int] = {}
         edges: dict[tuple[str, str], list[tuple[int, str | None]]] = {}
         weight_keys: set[str] = set()
         state: dict[str, Any] = {"edge": None, "data": None, "text": [], "depth": 0}
 
-        def start(tag: str, attrs: dict[str, str]) -> None:
-            local = tag.rsplit(":", 1)[-1]
-            line = parser.CurrentLineNumber
+        def start(local: str, attrs: dict[str, str], line: int) -> None:
             if local == "key" and attrs.get("attr.name") == "weight" and \
                     attrs.get("for", "all") in ("edge", "all"):
                 weight_keys.add(attrs.get("id", ""))
@@ -204,8 +207,7 @@ def _finder(data: bytes, directed: bool) -> Find:
             if state["data"]:
                 state["text"].append(text)
 
-        def end(tag: str) -> None:
-            local = tag.rsplit(":", 1)[-1]
+        def end(local: str) -> None:
             if local == "graph":
                 state["depth"] -= 1
             elif local == "data" and state["data"]:
@@ -216,13 +218,7 @@ def _finder(data: bytes, directed: bool) -> Find:
                 edges.setdefault(ends, []).append((line, weight))
                 state["edge"] = None
 
-        parser.StartElementHandler = start
-        parser.EndElementHandler = end
-        parser.CharacterDataHandler = chars
-        try:
-            parser.Parse(data, True)
-        except xml.parsers.expat.ExpatError:
-            pass
+        _expat_pass(data, start, end, chars)
         found.update(nodes=nodes, edges=edges)
 
     def find(kind: str, key: Any) -> int | None:
@@ -299,35 +295,26 @@ def _data_line(data: bytes, *, key: str | None = None, text: str | None = None
                ) -> int | None:
     """The line of the first <data> element with the key ``key`` or the (stripped) text
     ``text`` (an expat pass, on the error path only)."""
-    import xml.parsers.expat
-
-    parser = xml.parsers.expat.ParserCreate()
     state: dict[str, Any] = {"line": None, "text": None, "found": None}
 
-    def start(tag: str, attrs: dict[str, str]) -> None:
-        if tag.rsplit(":", 1)[-1] == "data" and state["found"] is None:
+    def start(local: str, attrs: dict[str, str], line: int) -> None:
+        if local == "data" and state["found"] is None:
             if key is not None and attrs.get("key") == key:
-                state["found"] = parser.CurrentLineNumber
-            state["line"], state["text"] = parser.CurrentLineNumber, []
+                state["found"] = line
+            state["line"], state["text"] = line, []
 
     def chars(t: str) -> None:
         if state["text"] is not None:
             state["text"].append(t)
 
-    def end(tag: str) -> None:
-        if tag.rsplit(":", 1)[-1] == "data" and state["text"] is not None:
+    def end(local: str) -> None:
+        if local == "data" and state["text"] is not None:
             if text is not None and state["found"] is None and \
                     "".join(state["text"]).strip() == text.strip():
                 state["found"] = state["line"]
             state["text"] = None
 
-    parser.StartElementHandler = start
-    parser.EndElementHandler = end
-    parser.CharacterDataHandler = chars
-    try:
-        parser.Parse(data, True)
-    except xml.parsers.expat.ExpatError:
-        pass
+    _expat_pass(data, start, end, chars)
     found: int | None = state["found"]
     return found
 
