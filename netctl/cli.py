@@ -18,7 +18,7 @@ import os
 import sys
 import warnings
 from collections.abc import Callable, Collection, Sequence
-from typing import NoReturn
+from typing import Any, NoReturn
 
 from netctl._meta import __version__
 from netctl.commands import VERBS
@@ -83,15 +83,63 @@ class Terminated(KeyboardInterrupt):
 #: object yet"); the run must still end as interrupted, not as a bad file.
 _received: list[int] = []
 
+#: Signals that arrived while Python ran inside a callback from compiled code, to raise
+#: again a moment later (see ``_raise_when_safe``).
+_deferred: list[int] = []
 
-def _on_sigterm(signum: int, frame: object) -> None:
+#: The SIGALRM handler before the first deferral, put back when the run ends.
+_alarm_before: list[Any] = []
+
+#: How long to wait before raising a deferred signal again, in seconds.
+_RETRY_S = 0.05
+
+
+def _inside_compiled_callback(frame: Any) -> bool:
+    """Whether ``frame`` runs under llvmlite, as when numba's first compile of a kernel
+    calls back into Python to store the object code in its cache. An exception raised in
+    such a callback cannot unwind the compiled caller: Python prints it with a traceback
+    ("Exception ignored in ...") and the run goes on as if no signal had come."""
+    marker = f"{os.sep}llvmlite{os.sep}"
+    while frame is not None:
+        if marker in frame.f_code.co_filename:
+            return True
+        frame = frame.f_back
+    return False
+
+
+def _raise_when_safe(signum: int, frame: Any) -> None:
+    """Raise the interruption ``signum`` stands for, or, inside a compiled callback, raise
+    it again ``_RETRY_S`` later (a one-shot SIGALRM), when the callback has returned."""
+    import signal
+
+    if _inside_compiled_callback(frame) and hasattr(signal, "setitimer"):
+        if not _alarm_before:
+            _alarm_before.append(signal.signal(signal.SIGALRM, _on_deferred))
+        _deferred.append(signum)
+        signal.setitimer(signal.ITIMER_REAL, _RETRY_S)
+        return
+    if _deferred:
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        _deferred.clear()
+    raise Terminated() if signum == signal.SIGTERM else KeyboardInterrupt()
+
+
+def _on_sigterm(signum: int, frame: Any) -> None:
     _received.append(signum)
-    raise Terminated()
+    _raise_when_safe(signum, frame)
 
 
-def _on_sigint(signum: int, frame: object) -> None:
+def _on_sigint(signum: int, frame: Any) -> None:
     _received.append(signum)
-    raise KeyboardInterrupt()
+    _raise_when_safe(signum, frame)
+
+
+def _on_deferred(signum: int, frame: Any) -> None:
+    """SIGALRM after a deferred signal: raise it now if safe (SIGTERM before SIGINT)."""
+    import signal
+
+    if _deferred:
+        _raise_when_safe(signal.SIGTERM if signal.SIGTERM in _deferred else _deferred[0], frame)
 
 
 def _interruption() -> KeyboardInterrupt | None:
@@ -115,6 +163,7 @@ def main(argv: Sequence[str] | None = None) -> int:
 
     previous = previous_int = None
     _received.clear()
+    _deferred.clear()
     try:
         previous = signal.signal(signal.SIGTERM, _on_sigterm)
         if signal.getsignal(signal.SIGINT) is signal.default_int_handler:
@@ -142,6 +191,10 @@ def main(argv: Sequence[str] | None = None) -> int:
             raise
         return _interrupted(isinstance(stop, Terminated))  # a library's error after a signal
     finally:
+        if _alarm_before:  # a signal was deferred: cancel any retry, put SIGALRM back
+            signal.setitimer(signal.ITIMER_REAL, 0)
+            signal.signal(signal.SIGALRM, _alarm_before.pop())
+            _deferred.clear()
         if previous is not None:
             signal.signal(signal.SIGTERM, previous)
         if previous_int is not None:

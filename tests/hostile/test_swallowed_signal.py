@@ -64,3 +64,73 @@ def test_handlers_are_put_back(tmp_path, monkeypatch):
     before = signal.getsignal(signal.SIGINT), signal.getsignal(signal.SIGTERM)
     assert main(["drivers", "g.csv"]) == 0
     assert (signal.getsignal(signal.SIGINT), signal.getsignal(signal.SIGTERM)) == before
+
+
+# A signal that lands while compiled code has called back into Python: numba's first compile
+# of a kernel hands the object code to a Python callback of llvmlite's (to write its cache).
+# An exception raised there cannot unwind the compiled caller; Python prints it with a
+# traceback ("Exception ignored in ...") and the run goes on. Seen once in CI (SIGTERM 0.5 s
+# into a `convert` with a cold numba cache). The handler must wait until the callback has
+# returned. The probe builds a real C -> Python callback with ctypes whose code is filed
+# under llvmlite's package, as numba's is, and sends the signal from inside it.
+_CALLBACK_PROBE = r"""
+import ctypes, os, signal, sys, time
+sys.path.insert(0, {root!r})
+import llvmlite
+import netctl.cli as cli
+import netctl.io as nio
+
+where = os.path.join(os.path.dirname(llvmlite.__file__), "binding", "executionengine.py")
+space = {{}}
+exec(compile("def store(data):\n    import os, time\n    os.kill(os.getpid(), {sig})\n"
+             "    time.sleep(0.2)\n", where, "exec"), space)
+store = ctypes.CFUNCTYPE(None, ctypes.c_int)(space["store"])
+entry = nio.FORMATS["edgelist"]
+
+def read(path, model=None):
+    store(1)           # the signal arrives in here
+    time.sleep(2.0)    # back in netctl's own code: it must end the run now
+    return entry[0](path, model)
+
+nio.FORMATS["edgelist"] = (read, *entry[1:])
+sys.exit(cli.main(["convert", "g.csv", "out.json"]))
+"""
+
+
+@pytest.mark.parametrize("sig, code", [(signal.SIGTERM, 143), (signal.SIGINT, 130)])
+def test_signal_inside_a_compiled_callback_ends_the_run_without_a_traceback(
+        tmp_path, sig, code):
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[2]
+    (tmp_path / "g.csv").write_text("a,b\nb,c\n")
+    r = subprocess.run([sys.executable, "-c", _CALLBACK_PROBE.format(root=str(root), sig=int(sig))],
+                       cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert r.returncode == code, r.stderr
+    assert "Traceback" not in r.stderr and "Exception ignored" not in r.stderr, r.stderr
+    assert ("terminated" if sig == signal.SIGTERM else "interrupted") in r.stderr
+    assert sorted(os.listdir(tmp_path)) == ["g.csv"]
+
+
+def test_a_signal_deferred_then_outrun_leaves_no_alarm_behind(tmp_path, monkeypatch):
+    """A deferral whose run ends before the retry cancels the retry and puts SIGALRM back."""
+    import netctl.cli as cli
+
+    (tmp_path / "g.csv").write_text("a,b\n")
+    monkeypatch.chdir(tmp_path)
+    before = signal.getsignal(signal.SIGALRM)
+    real = cli._main
+
+    def run(argv):
+        code = real(argv)
+        cli._alarm_before.append(signal.signal(signal.SIGALRM, cli._on_deferred))
+        cli._deferred.append(signal.SIGTERM)
+        signal.setitimer(signal.ITIMER_REAL, 30.0)
+        return code
+
+    monkeypatch.setattr(cli, "_main", run)
+    assert cli.main(["drivers", "g.csv"]) == 0
+    assert signal.getitimer(signal.ITIMER_REAL) == (0.0, 0.0)
+    assert signal.getsignal(signal.SIGALRM) == before and not cli._deferred
