@@ -94,14 +94,22 @@ _alarm_before: list[Any] = []
 _RETRY_S = 0.05
 
 
+#: llvmlite's Python functions that compiled code calls back (numba's object cache): the
+#: file (relative to site-packages) and the function names.
+_CALLBACKS = (f"{os.sep}llvmlite{os.sep}binding{os.sep}executionengine.py",
+              ("_raw_object_cache_notify", "_raw_object_cache_getbuffer"))
+
+
 def _inside_compiled_callback(frame: Any) -> bool:
-    """Whether ``frame`` runs under llvmlite, as when numba's first compile of a kernel
-    calls back into Python to store the object code in its cache. An exception raised in
-    such a callback cannot unwind the compiled caller: Python prints it with a traceback
-    ("Exception ignored in ...") and the run goes on as if no signal had come."""
-    marker = f"{os.sep}llvmlite{os.sep}"
+    """Whether ``frame`` runs under one of llvmlite's callbacks from compiled code, as when
+    numba's first compile of a kernel hands the object code to Python to store in its cache.
+    An exception raised in such a callback cannot unwind the compiled caller: Python prints
+    it with a traceback ("Exception ignored in ...") and the run goes on as if no signal had
+    come. Anywhere else (llvmlite's own imports included) the interruption is raised at once."""
+    where, names = _CALLBACKS
     while frame is not None:
-        if marker in frame.f_code.co_filename:
+        code = frame.f_code
+        if code.co_name in names and code.co_filename.endswith(where):
             return True
         frame = frame.f_back
     return False

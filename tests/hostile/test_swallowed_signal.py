@@ -72,7 +72,7 @@ def test_handlers_are_put_back(tmp_path, monkeypatch):
 # traceback ("Exception ignored in ...") and the run goes on. Seen once in CI (SIGTERM 0.5 s
 # into a `convert` with a cold numba cache). The handler must wait until the callback has
 # returned. The probe builds a real C -> Python callback with ctypes whose code is filed
-# under llvmlite's package, as numba's is, and sends the signal from inside it.
+# under llvmlite's name for it, as numba's is, and sends the signal from inside it.
 _CALLBACK_PROBE = r"""
 import ctypes, os, signal, sys, time
 sys.path.insert(0, {root!r})
@@ -82,9 +82,9 @@ import netctl.io as nio
 
 where = os.path.join(os.path.dirname(llvmlite.__file__), "binding", "executionengine.py")
 space = {{}}
-exec(compile("def store(data):\n    import os, time\n    os.kill(os.getpid(), {sig})\n"
+exec(compile("def _raw_object_cache_notify(data):\n    import os, time\n    os.kill(os.getpid(), {sig})\n"
              "    time.sleep(0.2)\n", where, "exec"), space)
-store = ctypes.CFUNCTYPE(None, ctypes.c_int)(space["store"])
+store = ctypes.CFUNCTYPE(None, ctypes.c_int)(space["_raw_object_cache_notify"])
 entry = nio.FORMATS["edgelist"]
 
 def read(path, model=None):
@@ -134,3 +134,21 @@ def test_a_signal_deferred_then_outrun_leaves_no_alarm_behind(tmp_path, monkeypa
     assert cli.main(["drivers", "g.csv"]) == 0
     assert signal.getitimer(signal.ITIMER_REAL) == (0.0, 0.0)
     assert signal.getsignal(signal.SIGALRM) == before and not cli._deferred
+
+
+def test_a_signal_elsewhere_in_llvmlite_is_raised_at_once():
+    """Only llvmlite's callbacks from compiled code defer the signal: one that lands while
+    llvmlite is being imported or is called from Python must interrupt there and then (a
+    deferred one could fire later inside C code that prints and swallows it)."""
+    import llvmlite
+
+    import netctl.cli as cli
+
+    space: dict = {}
+    where = os.path.join(os.path.dirname(llvmlite.__file__), "binding", "ffi.py")
+    exec(compile("import sys\nframe = sys._getframe()\n", where, "exec"), space)
+    before = signal.getsignal(signal.SIGALRM)
+    with pytest.raises(KeyboardInterrupt):
+        cli._on_sigint(signal.SIGINT, space["frame"])
+    assert not cli._deferred and signal.getsignal(signal.SIGALRM) == before
+    cli._received.clear()
