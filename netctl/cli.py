@@ -101,15 +101,17 @@ _CALLBACKS = (f"{os.sep}llvmlite{os.sep}binding{os.sep}executionengine.py",
 
 
 def _inside_compiled_callback(frame: Any) -> bool:
-    """Whether ``frame`` runs under one of llvmlite's callbacks from compiled code, as when
-    numba's first compile of a kernel hands the object code to Python to store in its cache.
-    An exception raised in such a callback cannot unwind the compiled caller: Python prints
-    it with a traceback ("Exception ignored in ...") and the run goes on as if no signal had
+    """Whether ``frame`` runs where an exception cannot unwind its caller: under one of
+    llvmlite's callbacks from compiled code (numba's first compile of a kernel hands the
+    object code to Python to store in its cache), or under a destructor (``__del__``, as
+    llvmlite's handles free their LLVM objects). Python prints an exception raised there
+    with a traceback ("Exception ignored in ...") and the run goes on as if no signal had
     come. Anywhere else (llvmlite's own imports included) the interruption is raised at once."""
     where, names = _CALLBACKS
     while frame is not None:
         code = frame.f_code
-        if code.co_name in names and code.co_filename.endswith(where):
+        if code.co_name == "__del__" or (code.co_name in names
+                                         and code.co_filename.endswith(where)):
             return True
         frame = frame.f_back
     return False
