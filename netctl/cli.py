@@ -101,17 +101,19 @@ _CALLBACKS = (f"{os.sep}llvmlite{os.sep}binding{os.sep}executionengine.py",
 
 
 def _inside_compiled_callback(frame: Any) -> bool:
-    """Whether ``frame`` runs where an exception cannot unwind its caller: under one of
+    """Whether ``frame`` runs where an exception may not unwind to netctl: under one of
     llvmlite's callbacks from compiled code (numba's first compile of a kernel hands the
-    object code to Python to store in its cache), or under a destructor (``__del__``, as
-    llvmlite's handles free their LLVM objects). Python prints an exception raised there
-    with a traceback ("Exception ignored in ...") and the run goes on as if no signal had
-    come. Anywhere else (llvmlite's own imports included) the interruption is raised at once."""
+    object code to Python to store in its cache), under a destructor (``__del__``, as
+    llvmlite's handles free their LLVM objects) or in the import system (whose module locks
+    are freed by weak-reference callbacks). Python prints an exception raised there with a
+    traceback ("Exception ignored in ...") and the run goes on as if no signal had come; so
+    the interruption waits until the callback, the destructor or the import is over.
+    Anywhere else (llvmlite called from Python included) it is raised at once."""
     where, names = _CALLBACKS
     while frame is not None:
         code = frame.f_code
-        if code.co_name == "__del__" or (code.co_name in names
-                                         and code.co_filename.endswith(where)):
+        if (code.co_name == "__del__" or code.co_filename.startswith("<frozen importlib")
+                or (code.co_name in names and code.co_filename.endswith(where))):
             return True
         frame = frame.f_back
     return False

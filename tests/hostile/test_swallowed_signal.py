@@ -193,3 +193,50 @@ def test_signal_inside_a_destructor_ends_the_run_without_a_traceback(tmp_path, s
     assert r.returncode == code, r.stderr
     assert "Traceback" not in r.stderr and "Exception ignored" not in r.stderr, r.stderr
     assert sorted(os.listdir(tmp_path)) == ["g.csv"]
+
+
+# And inside a weak-reference callback of the import system: importlib frees a module's
+# lock through one (seen in CI: Ctrl-C 0.2 s into `convert`, during the imports). The probe
+# files its callback under importlib's frozen name, as the real one is.
+_WEAKREF_PROBE = r"""
+import os, signal, sys, time, weakref
+sys.path.insert(0, {root!r})
+import netctl.cli as cli
+import netctl.io as nio
+
+space = {{}}
+exec(compile("def cb(ref):\n    import os, time\n    os.kill(os.getpid(), {sig})\n"
+             "    time.sleep(0.2)\n", "<frozen importlib._bootstrap>", "exec"), space)
+
+class Lock:
+    pass
+
+entry = nio.FORMATS["edgelist"]
+
+def read(path, model=None):
+    lock = Lock()
+    ref = weakref.ref(lock, space["cb"])
+    del lock           # the callback runs now: the signal arrives in it
+    time.sleep(2.0)    # back in netctl's own code: it must end the run now
+    return entry[0](path, model)
+
+nio.FORMATS["edgelist"] = (read, *entry[1:])
+sys.exit(cli.main(["convert", "g.csv", "out.json"]))
+"""
+
+
+@pytest.mark.parametrize("sig, code", [(signal.SIGTERM, 143), (signal.SIGINT, 130)])
+def test_signal_inside_an_import_callback_ends_the_run_without_a_traceback(
+        tmp_path, sig, code):
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[2]
+    (tmp_path / "g.csv").write_text("a,b\nb,c\n")
+    r = subprocess.run([sys.executable, "-c",
+                        _WEAKREF_PROBE.format(root=str(root), sig=int(sig))],
+                       cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert r.returncode == code, r.stderr
+    assert "Traceback" not in r.stderr and "Exception ignored" not in r.stderr, r.stderr
+    assert sorted(os.listdir(tmp_path)) == ["g.csv"]
