@@ -14,6 +14,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
+
 ROOT = Path(__file__).resolve().parents[1]
 
 #: never needed to import the package or to print the help
@@ -205,3 +207,63 @@ def test_the_more_verbs_without_scipy_still_answer(tmp_path, capsys):
         run("convert", str(f), str(tmp_path / out))
         back = read(tmp_path / out)
         assert back.n_states == 3 and back.n_links == 2, out
+
+
+#: what each light form of ``map`` and ``report`` must not load on the two-line file
+#: (issue 15, goal 1): igraph's import brings matplotlib.pyplot with it, and scipy.sparse
+#: with csgraph costs more than the rest of a small run (benchmarks/RESULTS.md, small maps)
+NOT_FOR_A_SMALL_MAP = ("scipy", "scipy.sparse", "igraph", "matplotlib", "matplotlib.pyplot",
+                       "networkx", "numba", "pandas")
+#: a drawn figure needs matplotlib's figure and a canvas, never pyplot nor igraph
+NOT_FOR_A_FIGURE = ("scipy", "scipy.sparse", "igraph", "matplotlib.pyplot", "networkx",
+                    "numba", "pandas")
+#: the HTML report draws its figures with matplotlib (and its numeric section samples
+#: weights with scipy), but needs neither pyplot nor igraph
+NOT_FOR_A_SMALL_REPORT = ("igraph", "matplotlib.pyplot", "networkx", "numba", "pandas")
+
+
+def _modules_after(argv: list[str], watch: tuple[str, ...]) -> list[str]:
+    probe = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\n{run_main(argv)}\n"
+             f"import json\nprint(json.dumps(sorted(m for m in sys.modules if m in {watch!r})))")
+    r = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                       timeout=300, cwd=ROOT)
+    assert r.returncode == 0, r.stderr
+    return json.loads(r.stdout.strip().splitlines()[-1])
+
+
+def test_map_without_out_stops_before_loading_the_map_code(tmp_path):
+    f = tmp_path / "two.csv"
+    f.write_text("a,b\nb,c\n")
+    assert _modules_after(["map", str(f)], NOT_FOR_A_SMALL_MAP) == []
+
+
+@pytest.mark.parametrize("suffix", ["html", "geojson"])
+def test_small_interactive_map_and_export_load_no_scipy_igraph_or_matplotlib(tmp_path, suffix):
+    f = tmp_path / "two.csv"
+    f.write_text("a,b\nb,c\n")
+    out = tmp_path / f"m.{suffix}"
+    assert _modules_after(["map", str(f), "--out", str(out)], NOT_FOR_A_SMALL_MAP) == []
+    assert out.stat().st_size > 0
+    # a bundled plant of 12 states without coordinates, with inputs, sensors and
+    # disturbances: its audit of the design may load scipy, but its layout needs no
+    # igraph, and nothing loads matplotlib or networkx
+    plant = ROOT / "networks" / "heating_loop.toml"
+    loaded = _modules_after(["map", str(plant), "--out", str(out)], NOT_FOR_A_SMALL_MAP)
+    assert set(loaded).isdisjoint({"igraph", "matplotlib", "networkx"}), loaded
+
+
+@pytest.mark.parametrize("suffix", ["svg", "png", "pdf"])
+def test_small_figure_map_loads_no_pyplot_igraph_or_scipy(tmp_path, suffix):
+    f = tmp_path / "two.csv"
+    f.write_text("a,b\nb,c\n")
+    out = tmp_path / f"m.{suffix}"
+    assert _modules_after(["map", str(f), "--out", str(out)], NOT_FOR_A_FIGURE) == []
+    assert out.stat().st_size > 0
+
+
+def test_small_report_loads_no_pyplot_or_igraph(tmp_path):
+    f = tmp_path / "two.csv"
+    f.write_text("a,b\nb,c\n")
+    out = tmp_path / "r.html"
+    assert _modules_after(["report", str(f), "--out", str(out)], NOT_FOR_A_SMALL_REPORT) == []
+    assert "data:image/png;base64," in out.read_text(encoding="utf-8")  # figures drawn

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import argparse
 import sys
-from typing import Any, cast
+from typing import Any
 
 from netctl.commands._load import load_system, parse_names
 from netctl.commands._options import UsageError, add_inputs, add_seed, links_text, progress_enabled
@@ -66,18 +66,19 @@ def _kind(path: str) -> str:
 
 
 def _cmd_map(args: argparse.Namespace) -> int:
-    from netctl.report.progress import Progress
-    from netctl.viz.interactive import MAP_STATE_LIMIT, check_map_size
-
     if not args.out:
         raise UsageError("map needs --out FILE: grid.html (interactive), a figure ending in "
                          ".png, .svg or .pdf, or an export ending in .geojson or .graphml.")
     kind = _kind(args.out)  # reject a bad suffix before any work
     if not (args.dpi > 0):
         raise UsageError(f"--dpi must be positive, found {args.dpi!r}.")
+    from netctl.report.progress import Progress
+    from netctl.viz.interactive import MAP_STATE_LIMIT, check_map_size
+
     limit = MAP_STATE_LIMIT if args.max_states is None else args.max_states
     if limit < 1:
         raise UsageError(f"--max-states must be at least 1, found {limit!r}.")
+
     show = [s.strip() for s in args.show.split(",") if s.strip()]
     progress = Progress(4, enabled=progress_enabled(args))
     from netctl.viz import map_marks
@@ -163,20 +164,13 @@ def _place(args: argparse.Namespace, system: Any) -> tuple[Any, str, Any]:
 
 
 def _figure(args: argparse.Namespace, system: Any, marks: Any, pos: Any, how: str) -> None:
-    import matplotlib
+    # matplotlib's object API on the Agg canvas: no pyplot (netctl.viz.network.map_figure)
+    from netctl.viz import save_figure
+    from netctl.viz.network import _default_title, map_figure
 
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    from netctl.viz import draw_map, save_figure
-    from netctl.viz.network import _default_title
-
-    ax = draw_map(system, marks, positions=pos, labels=args.labels)
-    try:
-        ax.set_title(_default_title(system, marks, how), loc="left", fontsize=10)
-        save_figure(ax.figure, args.out, dpi=args.dpi)
-    finally:
-        plt.close(cast(Any, ax.figure))
+    fig = map_figure(system, marks, positions=pos, labels=args.labels,
+                     title=_default_title(system, marks, how))
+    save_figure(fig, args.out, dpi=args.dpi)
 
 
 def _document(args: argparse.Namespace, kind: str, system: Any, marks: Any,

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any, cast
+from typing import Any
 
 import numpy as np
 
@@ -200,14 +200,9 @@ def map_section(ctx: ReportContext) -> Section | None:
         return Section("map", "Map", (note(f"The network has {n} states, more than the "
                                            f"report draws ({MAP_LIMIT}); draw it with "
                                            "netctl map."),))
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    from netctl.viz import draw_map, map_marks
+    from netctl.viz import map_marks
     from netctl.viz.interactive import map_fragment, map_payload
-    from netctl.viz.network import _default_title
+    from netctl.viz.network import _default_title, map_figure
     from netctl.viz.output import figure_bytes
     from netctl.viz.placement import map_placement
 
@@ -218,11 +213,8 @@ def map_section(ctx: ReportContext) -> Section | None:
     placement = map_placement(ctx.system, seed=ctx.seed)
     how = placement.how
     title = _default_title(ctx.system, marks, how)
-    ax = draw_map(ctx.system, marks, positions=placement.xy, title=title)
-    try:
-        png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
-    finally:
-        plt.close(cast(Any, ax.figure))
+    png = figure_bytes(map_figure(ctx.system, marks, positions=placement.xy, title=title),
+                       "png", dpi=ctx.dpi)
     caption = (f"Map of {ctx.design_words()}; {placement.note()}. Triangles: driver nodes; "
                "heavy solid lines: control paths; heavy dashed lines: control cycles; "
                "hatched squares: states no input reaches; hollow diamonds: a dilation; "
@@ -274,24 +266,17 @@ def roles_section(ctx: ReportContext) -> Section | None:
     nr = ctx.cached("node_roles", lambda: node_roles(ctx.system))
     lr = ctx.cached("link_roles", lambda: link_roles(ctx.system))
     nc, lc = nr.counts(), lr.counts()
-    import matplotlib
+    from netctl.viz.charts import plot_role_composition
+    from netctl.viz.output import figure_bytes, new_figure
 
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    from netctl.viz import plot_role_composition
-    from netctl.viz.output import figure_bytes
-
-    fig, axes = plt.subplots(2, 1, figsize=(6.4, 3.2), layout="constrained")
-    try:
-        plot_role_composition({"states": [nc["critical"], nc["intermittent"],
-                                          nc["redundant"]]}, ax=axes[0], title="")
-        plot_role_composition({"links": [lc["critical"], lc["ordinary"], lc["redundant"]]},
-                              ax=axes[1], roles=("critical", "ordinary", "redundant"),
-                              title="")
-        png = figure_bytes(fig, "png", dpi=ctx.dpi)
-    finally:
-        plt.close(fig)
+    fig = new_figure((6.4, 3.2))  # no pyplot: matplotlib's object API (issue 15)
+    axes = fig.subplots(2, 1)
+    plot_role_composition({"states": [nc["critical"], nc["intermittent"],
+                                      nc["redundant"]]}, ax=axes[0], title="")
+    plot_role_composition({"links": [lc["critical"], lc["ordinary"], lc["redundant"]]},
+                          ax=axes[1], roles=("critical", "ordinary", "redundant"),
+                          title="")
+    png = figure_bytes(fig, "png", dpi=ctx.dpi)
     crit_links = [f"{u} -> {v}" for u, v in lr.link_names(lr.critical[:LIST_LIMIT])]
     blocks = [
         para("A state is critical if it is a driver node in every minimum driver set, "
@@ -338,22 +323,15 @@ def null_model_section(ctx: ReportContext) -> Section | None:
     r = ctx.cached("null", lambda: compare_to_null(ctx.system, null="degree",
                                                    samples=samples, seed=ctx.seed,
                                                    executor="local", workers=1))
-    import matplotlib
+    from netctl.viz.charts import CHART_SIZE, plot_null_model
+    from netctl.viz.output import figure_bytes, new_figure
 
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    from netctl.viz import plot_null_model
-    from netctl.viz.output import figure_bytes
-
-    ax = plot_null_model(r.observed_n_inputs, r.samples, label="this network",
-                         quantity="minimum number of inputs",
-                         prediction=None if r.prediction is None
-                         else r.prediction.driver_fraction * n)
-    try:
-        png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
-    finally:
-        plt.close(cast(Any, ax.figure))
+    fig = new_figure(CHART_SIZE)
+    plot_null_model(r.observed_n_inputs, r.samples, label="this network",
+                    quantity="minimum number of inputs",
+                    prediction=None if r.prediction is None
+                    else r.prediction.driver_fraction * n, ax=fig.add_subplot())
+    png = figure_bytes(fig, "png", dpi=ctx.dpi)
     z = r.z_score
     words = ("the same as" if z is None or abs(z) < 2 else
              "more than" if z > 0 else "fewer than")
@@ -411,13 +389,8 @@ def robustness_section(ctx: ReportContext) -> Section | None:
     data: dict[str, Any] = {"links": sweep.to_dict(rows=False)}
     n = ctx.system.n_states
     if 20 <= n <= ATTACK_LIMIT:  # fewer states give too few points to read a trend
-        import matplotlib
-
-        matplotlib.use("Agg")
-        import matplotlib.pyplot as plt
-
-        from netctl.viz import plot_attack_curves
-        from netctl.viz.output import figure_bytes
+        from netctl.viz.charts import CHART_SIZE, plot_attack_curves
+        from netctl.viz.output import figure_bytes, new_figure
 
         curves = {}
         for strategy, label in (("random", "random order"),
@@ -426,12 +399,10 @@ def robustness_section(ctx: ReportContext) -> Section | None:
                              max_fraction=0.5, seed=ctx.seed)
             curves[label] = (c.fraction_removed, c.driver_fraction)
             data[f"attack_{strategy}"] = c.to_dict()
-        ax = plot_attack_curves(curves, xlabel="fraction of states removed",
-                                ylabel="minimum inputs / states left")
-        try:
-            png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
-        finally:
-            plt.close(cast(Any, ax.figure))
+        fig = new_figure(CHART_SIZE)
+        plot_attack_curves(curves, xlabel="fraction of states removed",
+                           ylabel="minimum inputs / states left", ax=fig.add_subplot())
+        png = figure_bytes(fig, "png", dpi=ctx.dpi)
         blocks.append(figure(png, "Attack curves: the share of the remaining states that "
                                   "need an input as states are removed, in random order "
                                   f"(seed {ctx.seed}) and highest total degree first."))
@@ -490,20 +461,14 @@ def modes_section(ctx: ReportContext) -> Section | None:
     r = ctx.cached("modes", lambda: modal_controllability(system))
     lam = np.array([m.eigenvalue for m in r.modes], dtype=np.complex128)
     reach = np.array([m.reach for m in r.modes], dtype=np.float64)
-    import matplotlib
+    from netctl.viz.charts import plot_weakest_modes, weakest_modes_size
+    from netctl.viz.output import figure_bytes, new_figure
 
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
-    from netctl.viz import plot_weakest_modes
-    from netctl.viz.output import figure_bytes
-
-    ax = plot_weakest_modes(lam, reach, k=min(10, lam.size),
-                            quantity="reach of the inputs (cosine to the input subspace)")
-    try:
-        png = figure_bytes(ax.figure, "png", dpi=ctx.dpi)
-    finally:
-        plt.close(cast(Any, ax.figure))
+    k = min(10, lam.size)
+    fig = new_figure(weakest_modes_size(k, lam.size))
+    plot_weakest_modes(lam, reach, k=k, ax=fig.add_subplot(),
+                       quantity="reach of the inputs (cosine to the input subspace)")
+    png = figure_bytes(fig, "png", dpi=ctx.dpi)
     rows = [(f"{complex(m.eigenvalue):.4g}", m.multiplicity, f"{m.reach:.3g}",
              ", ".join(r.names(m.carriers[:8])) + (" ..." if m.carriers.size > 8 else ""))
             for m in r.weakest(10)]

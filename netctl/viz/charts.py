@@ -18,8 +18,8 @@ from netctl.viz.style import INK, MARKS, SERIES
 if TYPE_CHECKING:  # pragma: no cover
     from matplotlib.axes import Axes
 
-__all__ = ["plot_attack_curves", "plot_null_model", "plot_role_composition",
-           "plot_weakest_modes"]
+__all__ = ["CHART_SIZE", "plot_attack_curves", "plot_null_model", "plot_role_composition",
+           "plot_weakest_modes", "weakest_modes_size"]
 
 
 def _plain(text: object) -> str:
@@ -27,7 +27,17 @@ def _plain(text: object) -> str:
     return str(text).replace("$", r"\$")
 
 
-def _new_axes(ax: Axes | None, size: tuple[float, float] = (6.4, 4.2)) -> Axes:
+#: Size (inches) of a chart's own figure (the weakest modes: :func:`weakest_modes_size`).
+CHART_SIZE: tuple[float, float] = (6.4, 4.2)
+
+
+def weakest_modes_size(k: int, n_modes: int) -> tuple[float, float]:
+    """Size (inches) of :func:`plot_weakest_modes`'s own figure for ``k`` of
+    ``n_modes`` modes (one row each)."""
+    return (6.4, 1.2 + 0.32 * min(k, n_modes))
+
+
+def _new_axes(ax: Axes | None, size: tuple[float, float] = CHART_SIZE) -> Axes:
     if ax is not None:
         return ax
     import matplotlib.pyplot as plt
@@ -333,7 +343,7 @@ def plot_weakest_modes(eigenvalues: ArrayLike, measure: ArrayLike, *,
         raise OptionError(f"k must be a positive integer, found {k!r}.")
     if np.any(val < 0) or not np.all(np.isfinite(val)):
         raise OptionError("measure values must be finite and non-negative.")
-    ax = _new_axes(ax, (6.4, 1.2 + 0.32 * min(k, lam.size)))
+    ax = _new_axes(ax, weakest_modes_size(k, lam.size))
     order = np.lexsort((np.abs(lam), val))[:k]
     yy = np.arange(order.size)[::-1]
     vals = val[order]

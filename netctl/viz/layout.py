@@ -10,7 +10,7 @@ import numpy as np
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
 
-__all__ = ["LAYOUTS", "node_positions"]
+__all__ = ["LAYOUTS", "SMALL_LAYOUT", "node_positions", "weak_labels"]
 
 #: Layout choices accepted by :func:`node_positions`.
 LAYOUTS: tuple[str, ...] = ("auto", "coordinates", "fr", "fr-grid", "circle")
@@ -174,11 +174,7 @@ def _force_layout(n: int, src: np.ndarray, dst: np.ndarray, seed: int, *,
     them (vectorized; no per-component loop). ``src -> dst`` are the links (any
     orientation; self-loops and repeats are ignored).
     """
-    import scipy.sparse as sp
-    from scipy.sparse.csgraph import connected_components
-
-    A = sp.csr_array((np.ones(src.size, np.int8), (dst, src)), shape=(n, n))
-    k, lab = connected_components(A, directed=True, connection="weak")
+    k, lab = weak_labels(n, src, dst)
     sizes = np.bincount(lab, minlength=k)
     order = np.lexsort((np.arange(k), -sizes))  # largest first, ties by label
     big = order[sizes[order] >= _BIG][:_MAX_BIG]
@@ -261,12 +257,82 @@ _BIG = 12
 _MAX_BIG = 24
 
 
+def weak_labels(n: int, src: np.ndarray, dst: np.ndarray) -> tuple[int, np.ndarray]:
+    """Weakly connected components of the links ``src -> dst`` on ``n`` states:
+    ``(count, labels)``, labels numbered in order of each component's smallest state.
+
+    Up to :data:`SMALL_LAYOUT` states by netctl's union-find (no scipy import: on a
+    small map scipy.sparse and csgraph cost more than the rest of the run); above, by
+    scipy's compiled routine, as before. Both number components the same way.
+    """
+    if n <= SMALL_LAYOUT:
+        from netctl._csr import coo_pattern
+        from netctl.graph.components import weak_component_labels
+
+        p, _ = coo_pattern(np.asarray(dst, np.int64), np.asarray(src, np.int64), None,
+                           (n, n), count=False)
+        return weak_component_labels(p.indptr, p.indices)
+    import scipy.sparse as sp
+    from scipy.sparse.csgraph import connected_components
+
+    A = sp.csr_array((np.ones(src.size, np.int8), (dst, src)), shape=(n, n))
+    k, lab = connected_components(A, directed=True, connection="weak")
+    return int(k), lab
+
+
+#: Up to this many states a component is laid out by :func:`_fr_small` (NumPy) and the
+#: components are found without scipy; above, by igraph's compiled layout. igraph's
+#: import brings matplotlib.pyplot with it (about 0.3 s), more than a small map costs
+#: (benchmarks/RESULTS.md, small maps).
+SMALL_LAYOUT = 100
+
+
+def _fr_small(n: int, src: np.ndarray, dst: np.ndarray, seed: int, niter: int
+              ) -> np.ndarray:
+    r"""Fruchterman-Reingold on one connected component of ``n`` states, with NumPy.
+
+    The published method [1]_: every pair of states repels with force :math:`k^2/d`,
+    linked states attract with :math:`d^2/k`, and each step moves a state along its
+    net force by at most the temperature, which falls linearly to zero over ``niter``
+    steps; here :math:`k = 1` in a square of area ``n``, starting positions uniform in
+    that square from ``numpy.random.default_rng(seed)`` (the same seed, the same
+    picture). :math:`O(n^2)` per step, so only for small components
+    (:data:`SMALL_LAYOUT`).
+    """
+    side = np.sqrt(n)
+    pos = np.random.default_rng(seed).uniform(-side / 2, side / 2, size=(n, 2))
+    keep = src != dst
+    a, b = np.minimum(src[keep], dst[keep]), np.maximum(src[keep], dst[keep])
+    if a.size:
+        pairs = np.unique(a.astype(np.int64) * n + b)
+        a, b = pairs // n, pairs % n
+    eye = np.eye(n, dtype=bool)
+    t0 = side / 10.0
+    for it in range(niter):
+        delta = pos[:, None, :] - pos[None, :, :]
+        d2 = np.einsum("ijk,ijk->ij", delta, delta)
+        d2[eye] = np.inf
+        np.maximum(d2, 1e-9, out=d2)
+        disp = np.einsum("ijk,ij->ik", delta, 1.0 / d2)  # k^2/d along delta/d
+        if a.size:
+            e = pos[a] - pos[b]
+            f = e * np.hypot(e[:, 0], e[:, 1])[:, None]  # d^2/k along e/d
+            for j in (0, 1):
+                disp[:, j] += np.bincount(b, f[:, j], n) - np.bincount(a, f[:, j], n)
+        length = np.maximum(np.hypot(disp[:, 0], disp[:, 1]), 1e-12)
+        temp = t0 * (1.0 - it / niter)
+        pos += disp * (np.minimum(length, temp) / length)[:, None]
+    return pos
+
+
 def _fr(n: int, src: np.ndarray, dst: np.ndarray, seed: int, *, grid: bool,
         quick: bool = False) -> np.ndarray:
-    import igraph
-
     if n <= 2:
         return np.column_stack([np.arange(n, dtype=float), np.zeros(n)])
+    if n <= SMALL_LAYOUT:
+        return _fr_small(n, src, dst, seed, 50 if quick else 500)
+    import igraph
+
     g = igraph.Graph(n=n, edges=np.column_stack([src, dst]).tolist(), directed=False)
     g.simplify()
     niter = 500 if not grid else int(np.clip(3e7 / max(n + g.ecount(), 1), 50, 500))

@@ -7,8 +7,6 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
-from scipy.sparse.csgraph import connected_components
 
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
@@ -229,7 +227,7 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
     else:
         actuated = system
     report = controllability(actuated, dimension=False)
-    comp = completion(actuated.A, actuated.B)
+    comp = completion(actuated.pattern("A"), actuated.pattern("B"))
     rm = comp.row_match
     state_pred = (rm >= 0) & (rm < n)
     tgt = np.flatnonzero(state_pred).astype(np.int64)
@@ -237,8 +235,9 @@ def map_marks(system: StructuredSystem, *, inputs: Any = None,
     # matched links form disjoint paths and cycles; a component of them is a cycle
     # exactly when none of its states lacks a matched in-link from a state
     if tgt.size:
-        g = sp.csr_array((np.ones(tgt.size), (src, tgt)), shape=(n, n))
-        _, lab = connected_components(sp.csr_matrix(g), directed=True, connection="weak")
+        from netctl.viz.layout import weak_labels
+
+        _, lab = weak_labels(n, src, tgt)
         has_head = np.zeros(n, bool)
         has_head[lab[~state_pred]] = True
         on_cycle = ~has_head[lab[tgt]]
@@ -298,13 +297,14 @@ EXPLAINED = 200
 def _single_points(system: StructuredSystem, actuated: StructuredSystem, design: str
                    ) -> tuple[np.ndarray, tuple[tuple[int, str], ...], str]:
     """States of critical actuators (given/chosen design) and critical sensors, with
-    why; and what was covered. Near-linear (no useful/useless classification)."""
-    from netctl.structural.failures import audit_design
-
+    why; and what was covered. Near-linear (no useful/useless classification). The
+    audit module (and scipy with it) is imported only when there is something to audit."""
     sites: list[np.ndarray] = []
     notes: list[tuple[int, str]] = []
     covered: list[str] = []
     audits = []
+    if (design != "minimum" and actuated.n_inputs) or system.n_outputs:
+        from netctl.structural.failures import audit_design
     if design != "minimum" and actuated.n_inputs:
         audits.append(("actuator", audit_design(actuated, kind="inputs", classify=False)))
     elif design == "minimum":

@@ -14,8 +14,9 @@ from netctl.viz.style import INK, MARKS, Mark
 
 if TYPE_CHECKING:  # pragma: no cover
     from matplotlib.axes import Axes
+    from matplotlib.figure import Figure
 
-__all__ = ["GID_PREFIX", "draw_map"]
+__all__ = ["GID_PREFIX", "draw_map", "map_figure"]
 
 #: Every artist of a map carries the gid ``GID_PREFIX + mark name`` (e.g.
 #: ``"netctl:driver"``), so programs and tests can find what was drawn.
@@ -92,9 +93,6 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
     ['netctl:driver', 'netctl:state']
     >>> import matplotlib.pyplot as plt; plt.close(ax.figure)
     """
-    import matplotlib.pyplot as plt
-    from matplotlib.collections import LineCollection
-
     from netctl.viz.layout import node_positions
 
     n = system.n_states
@@ -105,8 +103,39 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
     pos = np.asarray(positions, dtype=np.float64).reshape(n, 2)
     own = ax is None
     if ax is None:
+        import matplotlib.pyplot as plt
+
         fig, ax = plt.subplots(figsize=_figure_size(pos), layout="constrained")
     assert ax is not None
+    _draw(system, marks, pos, how, ax, own=own, labels=labels, legend=legend, title=title)
+    return ax
+
+
+def map_figure(system: StructuredSystem, marks: MapMarks, *, positions: np.ndarray,
+               labels: bool | None = None, title: str | None = None) -> Figure:
+    """The map of :func:`draw_map` on a new figure that pyplot does not manage.
+
+    For files and reports: the figure is a :class:`matplotlib.figure.Figure` on the Agg
+    canvas (:func:`netctl.viz.output.new_figure`), so neither pyplot nor a GUI backend
+    is imported (pyplot's import costs about as much as a small map; issue 15), and
+    nothing needs closing. The drawing is the one :func:`draw_map` makes on its own
+    figure, legend beside the map.
+    """
+    from netctl.viz.output import new_figure
+
+    pos = np.asarray(positions, dtype=np.float64).reshape(system.n_states, 2)
+    fig = new_figure(_figure_size(pos))
+    _draw(system, marks, pos, "given", fig.add_subplot(), own=True, labels=labels,
+          legend=True, title=title)
+    return fig
+
+
+def _draw(system: StructuredSystem, marks: MapMarks, pos: np.ndarray, how: str, ax: Axes,
+          *, own: bool, labels: bool | None, legend: bool, title: str | None) -> None:
+    """Draw the map into ``ax`` (``own``: the figure is the map's, legend outside)."""
+    from matplotlib.collections import LineCollection
+
+    n = system.n_states
     ax.set_aspect("equal", adjustable="box")
     ax.set_axis_off()
 
@@ -200,7 +229,6 @@ def draw_map(system: StructuredSystem, marks: MapMarks | None = None, *,
     if legend:
         _legend(ax, system, marks, area, n_loops=int(loop_states.size),
                 loops_drawn=n <= 500, arrows=arrows, outside=own)
-    return ax
 
 
 def _figure_size(pos: np.ndarray) -> tuple[float, float]:

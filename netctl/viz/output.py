@@ -13,7 +13,7 @@ from netctl.io import atomic_write
 if TYPE_CHECKING:  # pragma: no cover
     from matplotlib.figure import Figure
 
-__all__ = ["FIGURE_FORMATS", "figure_bytes", "save_figure", "usual_mode"]
+__all__ = ["FIGURE_FORMATS", "figure_bytes", "new_figure", "save_figure", "usual_mode"]
 
 #: File suffixes :func:`save_figure` writes.
 FIGURE_FORMATS: tuple[str, ...] = ("png", "svg", "pdf")
@@ -26,6 +26,30 @@ def figure_format(path: str | os.PathLike[str]) -> str:
         raise OptionError(f"cannot tell the figure format of {str(path)!r}: the file name "
                           f"must end in one of {', '.join('.' + f for f in FIGURE_FORMATS)}.")
     return suffix
+
+
+def new_figure(figsize: tuple[float, float]) -> Figure:
+    """A figure with constrained layout on the Agg canvas, outside pyplot.
+
+    Files and reports draw on it: matplotlib's object API needs neither pyplot (whose
+    import, with its backend machinery, costs about 0.15 s of a run) nor a GUI backend,
+    and a figure pyplot does not manage is freed with its last reference (nothing to
+    close). Saving as SVG or PDF switches to that format's canvas, as pyplot's figures
+    do; the bytes are the same.
+
+    Examples
+    --------
+    >>> fig = new_figure((4.0, 3.0))
+    >>> ax = fig.add_subplot()
+    >>> figure_bytes(fig)[:4]
+    b'\\x89PNG'
+    """
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=figsize, layout="constrained")
+    FigureCanvasAgg(fig)
+    return fig
 
 
 def figure_bytes(fig: Figure | Any, format: str = "png", *, dpi: float = 150,

@@ -7,7 +7,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
@@ -167,6 +166,8 @@ def _numbers(system: StructuredSystem, key: str) -> np.ndarray:
 def _fill_missing(system: StructuredSystem, xy: np.ndarray, known: np.ndarray,
                   seed: int) -> np.ndarray:
     """Unplaced states at the mean of their placed neighbours (vectorized sweeps)."""
+    import scipy.sparse as sp
+
     n = system.n_states
     src, dst = system.edges()
     keep = src != dst
