@@ -267,3 +267,25 @@ def test_small_report_loads_no_pyplot_or_igraph(tmp_path):
     out = tmp_path / "r.html"
     assert _modules_after(["report", str(f), "--out", str(out)], NOT_FOR_A_SMALL_REPORT) == []
     assert "data:image/png;base64," in out.read_text(encoding="utf-8")  # figures drawn
+
+
+def test_a_json_report_draws_nothing(tmp_path):
+    """A JSON report leaves figures out, so it is built without them and matplotlib is
+    never loaded; its content is the same as a report built with its figures."""
+    f = tmp_path / "two.csv"
+    f.write_text("a,b\nb,c\n")
+    out = tmp_path / "r.json"
+    loaded = _modules_after(["report", str(f), "--out", str(out)],
+                            NOT_FOR_A_SMALL_REPORT + ("matplotlib",))
+    assert loaded == []
+    assert json.loads(out.read_text(encoding="utf-8"))["sections"]
+
+    from netctl.io import read
+    from netctl.report import build_report
+
+    plant = read(ROOT / "networks" / "chemical_plant.toml")  # 22 states: every figure
+    drawn, bare = build_report(plant), build_report(plant, figures=False)
+    assert bare.to_json() == drawn.to_json()
+    pngs = [b.png for s in drawn.sections for b in s.blocks if b.kind in ("figure", "map")]
+    assert len(pngs) >= 3 and all(p.startswith(b"\x89PNG") for p in pngs)
+    assert all(b.png == b"" for s in bare.sections for b in s.blocks)

@@ -51,7 +51,8 @@ def _cmd_report(args: argparse.Namespace) -> int:
         if args.inputs is not None:
             inputs = system.names_of(parse_names(system, args.inputs))
     report = build_report(system, inputs=inputs, source=args.file, seed=args.seed,
-                          progress=progress, weights=args.weights)
+                          progress=progress, weights=args.weights,
+                          figures=fmt != "json")  # JSON leaves figures out
     with progress.step(f"writing {args.out}"):
         # a grid's states in a planner's words for people (HTML, Markdown); JSON keeps
         # the state names

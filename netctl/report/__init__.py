@@ -32,7 +32,8 @@ REPORT_FORMATS: dict[str, str] = {".html": "html", ".htm": "html", ".md": "markd
 
 def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = "",
                  sections: Sequence[SectionBuilder] | None = None, seed: int = 0,
-                 progress: Progress | None = None, weights: str | None = None) -> Report:
+                 progress: Progress | None = None, weights: str | None = None,
+                 figures: bool = True) -> Report:
     r"""Analyse ``system`` and assemble a report.
 
     Parameters
@@ -53,6 +54,10 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
         second-order model, ``independent`` otherwise.
     progress : Progress, optional
         Announces each section on a terminal.
+    figures : bool
+        Draw the figures (PNG). ``False`` for a report kept only as JSON, which leaves
+        figures out: the sections and their data are the same, and matplotlib is not
+        loaded.
 
     Returns
     -------
@@ -83,7 +88,8 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
             raise OptionError(f"inputs must be a sequence of state names or indices, found "
                               f"the string {inputs!r}; split it, e.g. {inputs.split(',')!r}.")
         idx = system.index_of(list(inputs))
-    ctx = ReportContext(system=system, inputs=idx, source=source, seed=seed, weights=weights)
+    ctx = ReportContext(system=system, inputs=idx, source=source, seed=seed, weights=weights,
+                        figures=figures)
     progress = progress or Progress(len(builders), enabled=False)
     built: list[Section] = []
     for builder in builders:

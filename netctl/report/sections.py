@@ -60,6 +60,7 @@ class ReportContext:
     seed: int = 0
     dpi: float = 110.0
     weights: str | None = None
+    figures: bool = True  # False: no PNG drawn (a JSON report leaves figures out)
     missing: list[str] = field(default_factory=list)
     _cache: dict[str, Any] = field(default_factory=dict)
 
@@ -213,8 +214,8 @@ def map_section(ctx: ReportContext) -> Section | None:
     placement = map_placement(ctx.system, seed=ctx.seed)
     how = placement.how
     title = _default_title(ctx.system, marks, how)
-    png = figure_bytes(map_figure(ctx.system, marks, positions=placement.xy, title=title),
-                       "png", dpi=ctx.dpi)
+    png = (figure_bytes(map_figure(ctx.system, marks, positions=placement.xy, title=title),
+                        "png", dpi=ctx.dpi) if ctx.figures else b"")
     caption = (f"Map of {ctx.design_words()}; {placement.note()}. Triangles: driver nodes; "
                "heavy solid lines: control paths; heavy dashed lines: control cycles; "
                "hatched squares: states no input reaches; hollow diamonds: a dilation; "
@@ -266,17 +267,7 @@ def roles_section(ctx: ReportContext) -> Section | None:
     nr = ctx.cached("node_roles", lambda: node_roles(ctx.system))
     lr = ctx.cached("link_roles", lambda: link_roles(ctx.system))
     nc, lc = nr.counts(), lr.counts()
-    from netctl.viz.charts import plot_role_composition
-    from netctl.viz.output import figure_bytes, new_figure
-
-    fig = new_figure((6.4, 3.2))  # no pyplot: matplotlib's object API (issue 15)
-    axes = fig.subplots(2, 1)
-    plot_role_composition({"states": [nc["critical"], nc["intermittent"],
-                                      nc["redundant"]]}, ax=axes[0], title="")
-    plot_role_composition({"links": [lc["critical"], lc["ordinary"], lc["redundant"]]},
-                          ax=axes[1], roles=("critical", "ordinary", "redundant"),
-                          title="")
-    png = figure_bytes(fig, "png", dpi=ctx.dpi)
+    png = _roles_png(ctx, nc, lc) if ctx.figures else b""
     crit_links = [f"{u} -> {v}" for u, v in lr.link_names(lr.critical[:LIST_LIMIT])]
     blocks = [
         para("A state is critical if it is a driver node in every minimum driver set, "
@@ -308,6 +299,21 @@ def roles_section(ctx: ReportContext) -> Section | None:
                                             for u, v in lr.link_names(lr.critical)]})
 
 
+def _roles_png(ctx: ReportContext, nc: dict[str, int], lc: dict[str, int]) -> bytes:
+    """The shares of state and link roles as two bars (PNG)."""
+    from netctl.viz.charts import plot_role_composition
+    from netctl.viz.output import figure_bytes, new_figure
+
+    fig = new_figure((6.4, 3.2))  # no pyplot: matplotlib's object API (issue 15)
+    axes = fig.subplots(2, 1)
+    plot_role_composition({"states": [nc["critical"], nc["intermittent"],
+                                      nc["redundant"]]}, ax=axes[0], title="")
+    plot_role_composition({"links": [lc["critical"], lc["ordinary"], lc["redundant"]]},
+                          ax=axes[1], roles=("critical", "ordinary", "redundant"),
+                          title="")
+    return figure_bytes(fig, "png", dpi=ctx.dpi)
+
+
 def null_model_section(ctx: ReportContext) -> Section | None:
     """Minimum inputs against a degree-preserving null model (``netctl.ensemble``)."""
     from netctl.ensemble import compare_to_null
@@ -323,15 +329,17 @@ def null_model_section(ctx: ReportContext) -> Section | None:
     r = ctx.cached("null", lambda: compare_to_null(ctx.system, null="degree",
                                                    samples=samples, seed=ctx.seed,
                                                    executor="local", workers=1))
-    from netctl.viz.charts import CHART_SIZE, plot_null_model
-    from netctl.viz.output import figure_bytes, new_figure
+    png = b""
+    if ctx.figures:
+        from netctl.viz.charts import CHART_SIZE, plot_null_model
+        from netctl.viz.output import figure_bytes, new_figure
 
-    fig = new_figure(CHART_SIZE)
-    plot_null_model(r.observed_n_inputs, r.samples, label="this network",
-                    quantity="minimum number of inputs",
-                    prediction=None if r.prediction is None
-                    else r.prediction.driver_fraction * n, ax=fig.add_subplot())
-    png = figure_bytes(fig, "png", dpi=ctx.dpi)
+        fig = new_figure(CHART_SIZE)
+        plot_null_model(r.observed_n_inputs, r.samples, label="this network",
+                        quantity="minimum number of inputs",
+                        prediction=None if r.prediction is None
+                        else r.prediction.driver_fraction * n, ax=fig.add_subplot())
+        png = figure_bytes(fig, "png", dpi=ctx.dpi)
     z = r.z_score
     words = ("the same as" if z is None or abs(z) < 2 else
              "more than" if z > 0 else "fewer than")
@@ -389,9 +397,6 @@ def robustness_section(ctx: ReportContext) -> Section | None:
     data: dict[str, Any] = {"links": sweep.to_dict(rows=False)}
     n = ctx.system.n_states
     if 20 <= n <= ATTACK_LIMIT:  # fewer states give too few points to read a trend
-        from netctl.viz.charts import CHART_SIZE, plot_attack_curves
-        from netctl.viz.output import figure_bytes, new_figure
-
         curves = {}
         for strategy, label in (("random", "random order"),
                                 ("degree", "highest degree first")):
@@ -399,10 +404,15 @@ def robustness_section(ctx: ReportContext) -> Section | None:
                              max_fraction=0.5, seed=ctx.seed)
             curves[label] = (c.fraction_removed, c.driver_fraction)
             data[f"attack_{strategy}"] = c.to_dict()
-        fig = new_figure(CHART_SIZE)
-        plot_attack_curves(curves, xlabel="fraction of states removed",
-                           ylabel="minimum inputs / states left", ax=fig.add_subplot())
-        png = figure_bytes(fig, "png", dpi=ctx.dpi)
+        png = b""
+        if ctx.figures:
+            from netctl.viz.charts import CHART_SIZE, plot_attack_curves
+            from netctl.viz.output import figure_bytes, new_figure
+
+            fig = new_figure(CHART_SIZE)
+            plot_attack_curves(curves, xlabel="fraction of states removed",
+                               ylabel="minimum inputs / states left", ax=fig.add_subplot())
+            png = figure_bytes(fig, "png", dpi=ctx.dpi)
         blocks.append(figure(png, "Attack curves: the share of the remaining states that "
                                   "need an input as states are removed, in random order "
                                   f"(seed {ctx.seed}) and highest total degree first."))
@@ -461,14 +471,16 @@ def modes_section(ctx: ReportContext) -> Section | None:
     r = ctx.cached("modes", lambda: modal_controllability(system))
     lam = np.array([m.eigenvalue for m in r.modes], dtype=np.complex128)
     reach = np.array([m.reach for m in r.modes], dtype=np.float64)
-    from netctl.viz.charts import plot_weakest_modes, weakest_modes_size
-    from netctl.viz.output import figure_bytes, new_figure
+    png = b""
+    if ctx.figures:
+        from netctl.viz.charts import plot_weakest_modes, weakest_modes_size
+        from netctl.viz.output import figure_bytes, new_figure
 
-    k = min(10, lam.size)
-    fig = new_figure(weakest_modes_size(k, lam.size))
-    plot_weakest_modes(lam, reach, k=k, ax=fig.add_subplot(),
-                       quantity="reach of the inputs (cosine to the input subspace)")
-    png = figure_bytes(fig, "png", dpi=ctx.dpi)
+        k = min(10, lam.size)
+        fig = new_figure(weakest_modes_size(k, lam.size))
+        plot_weakest_modes(lam, reach, k=k, ax=fig.add_subplot(),
+                           quantity="reach of the inputs (cosine to the input subspace)")
+        png = figure_bytes(fig, "png", dpi=ctx.dpi)
     rows = [(f"{complex(m.eigenvalue):.4g}", m.multiplicity, f"{m.reach:.3g}",
              ", ".join(r.names(m.carriers[:8])) + (" ..." if m.carriers.size > 8 else ""))
             for m in r.weakest(10)]
