@@ -35,7 +35,8 @@ def node_positions(system: StructuredSystem, *, layout: str = "auto",
     quick : bool
         At most 50 iterations of the force-directed layout, its grid variant from 1000
         states (for previews such as the notebook map: well under a second for 2000
-        states instead of seconds; rougher).
+        states instead of seconds; rougher). Components of up to
+        :data:`SMALL_LAYOUT` states get all their iterations (they are cheap).
 
     Returns
     -------
@@ -55,7 +56,9 @@ def node_positions(system: StructuredSystem, *, layout: str = "auto",
     are placed by the layout, scaled into the box of the known coordinates, and a
     warning says how many. The grid variant runs fewer iterations on large networks
     (at least 50), so a map of :math:`10^5` states is laid out in seconds; it shows
-    clusters and components, not fine structure.
+    clusters and components, not fine structure. Components of up to
+    :data:`SMALL_LAYOUT` states are laid out by a NumPy implementation of the same
+    method, larger ones by igraph's (whose import costs more than a small map).
 
     References
     ----------
@@ -329,8 +332,8 @@ def _fr(n: int, src: np.ndarray, dst: np.ndarray, seed: int, *, grid: bool,
         quick: bool = False) -> np.ndarray:
     if n <= 2:
         return np.column_stack([np.arange(n, dtype=float), np.zeros(n)])
-    if n <= SMALL_LAYOUT:
-        return _fr_small(n, src, dst, seed, 50 if quick else 500)
+    if n <= SMALL_LAYOUT:  # cheap here, so all 500 steps even for a preview (50 leave
+        return _fr_small(n, src, dst, seed, 500)  # a lattice's stress four times higher)
     import igraph
 
     g = igraph.Graph(n=n, edges=np.column_stack([src, dst]).tolist(), directed=False)

@@ -1,0 +1,139 @@
+"""Whole-process cost of ``map`` and ``report`` on a small file: two source trees in turn.
+
+Run by hand (not part of the test suite)::
+
+    python3 benchmarks/bench_small_maps.py --before /path/to/old/tree [--runs 5]
+    python3 benchmarks/bench_small_maps.py --before OLD --large 20000 [--runs 3]
+
+Times whole processes (start-up, imports and the work, until exit) of the two trees in
+turn (A B A B ...), one warm-up pair first, so the ratio of each pair is taken under the
+same load: ``map`` without ``--out`` (the usage message), ``map --out`` .html, .geojson,
+.svg, .png, ``report --out`` .html and .json on a 2-line edge list (``a,b`` / ``b,c``),
+and ``drivers`` as the reference. Then the floors a form cannot go below: the bare
+interpreter, ``import numpy``, and matplotlib's figure with the Agg canvas (what a PNG
+needs). ``--large N``: instead, ``map --out`` .html and .png on a generated directed
+Erdős–Rényi network of N states (mean degree 3, seed 1), to check a large map does not
+get slower.
+
+Reports medians of wall and CPU seconds (user + system of the child, from ``os.wait4``)
+of each side and the median of the per-pair ratios after/before (the CPU ratio is the
+figure of record on a shared machine). Compile both trees first (``python3 -m
+compileall -q TREE``) so that neither pays for compiling its sources.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import platform
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def run_once(argv: list[str], env: dict[str, str], cwd: str,
+             ok: tuple[int, ...] = (0, 1)) -> tuple[float, float]:
+    """Wall and CPU seconds of one whole process (its output thrown away)."""
+    t0 = time.perf_counter()
+    proc = subprocess.Popen(argv, env=env, cwd=cwd, stdout=subprocess.DEVNULL,
+                            stderr=subprocess.DEVNULL)
+    _, status, usage = os.wait4(proc.pid, 0)
+    wall = time.perf_counter() - t0
+    code = os.waitstatus_to_exitcode(status)
+    if code not in ok:
+        raise SystemExit(f"{' '.join(argv)} exited with {code}")
+    return wall, usage.ru_utime + usage.ru_stime
+
+
+def env_for(tree: str | None) -> dict[str, str]:
+    env = dict(os.environ)
+    if tree is None:
+        env.pop("PYTHONPATH", None)
+    else:
+        env["PYTHONPATH"] = tree
+    return env
+
+
+def pairs(name: str, tail: list[str], trees: dict[str, str], d: str, runs: int,
+          ok: tuple[int, ...] = (0, 1)) -> None:
+    py = sys.executable
+    rows: dict[str, list[tuple[float, float]]] = {"before": [], "after": []}
+    for k in range(runs + 1):  # the first pair warms the file cache
+        got = {side: run_once([py, *tail], env_for(tree), d, ok) for side, tree in trees.items()}
+        if k:
+            for side in rows:
+                rows[side].append(got[side])
+    med = {s: (statistics.median(w for w, _ in r), statistics.median(c for _, c in r))
+           for s, r in rows.items()}
+    rw = statistics.median(a[0] / b[0] for a, b in zip(rows["after"], rows["before"]))
+    rc = statistics.median(a[1] / b[1] for a, b in zip(rows["after"], rows["before"]))
+    print(f"| {name} | {med['before'][0]:.3f} | {med['after'][0]:.3f} | "
+          f"{med['before'][1]:.3f} | {med['after'][1]:.3f} | {rw:.2f} | {rc:.2f} |",
+          flush=True)
+
+
+def floor(name: str, code: str, d: str, runs: int) -> None:
+    got = [run_once([sys.executable, "-c", code], env_for(None), d) for _ in range(runs + 1)][1:]
+    print(f"| floor: {name} | | {statistics.median(w for w, _ in got):.3f} | | "
+          f"{statistics.median(c for _, c in got):.3f} | | |", flush=True)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--before", required=True, help="source tree of the baseline")
+    ap.add_argument("--after", default=str(ROOT), help="source tree measured (default: this)")
+    ap.add_argument("--runs", type=int, default=5, help="pairs per command (default 5)")
+    ap.add_argument("--large", type=int, default=0, metavar="N",
+                    help="map a generated network of N states instead")
+    args = ap.parse_args()
+    trees = {"before": args.before, "after": args.after}
+    py = sys.executable
+    with tempfile.TemporaryDirectory() as d:
+        for tree in trees.values():  # each side must import its own tree
+            where = subprocess.run([py, "-c", "import netctl; print(netctl.__file__)"],
+                                   env=env_for(tree), cwd=d, capture_output=True, text=True)
+            if not where.stdout.startswith(os.path.abspath(tree)):
+                raise SystemExit(f"{tree}: netctl comes from {where.stdout.strip()!r}")
+        print(f"# {platform.machine()}, {os.cpu_count()} CPUs, Python "
+              f"{platform.python_version()}, {time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}"
+              f", load average {os.getloadavg()[0]:.2f}")
+        print("| command | before wall s | after wall s | before cpu s | after cpu s | "
+              "ratio wall | ratio cpu |\n|---|---|---|---|---|---|---|")
+        out = os.path.join(d, "out")
+        if args.large:
+            net = os.path.join(d, "large.csv")
+            subprocess.run([py, "-m", "netctl.cli", "generate", "erdos-renyi", net, "--nodes",
+                            str(args.large), "--mean-degree", "3", "--seed", "1"],
+                           env=env_for(args.after), cwd=d, check=True,
+                           stdout=subprocess.DEVNULL)
+            for suffix in ("html", "png"):
+                pairs(f"map --out .{suffix}, {args.large} states", ["-m", "netctl.cli", "map",
+                      net, "--out", f"{out}.{suffix}"], trees, d, args.runs)
+            return
+        two = os.path.join(d, "two.csv")
+        with open(two, "w") as fh:
+            fh.write("a,b\nb,c\n")
+        cli = ["-m", "netctl.cli"]
+        pairs("drivers (reference)", [*cli, "drivers", two], trees, d, args.runs)
+        pairs("map (no --out: usage message)", [*cli, "map", two], trees, d, args.runs,
+              ok=(2,))
+        for suffix in ("html", "geojson", "svg", "png"):
+            pairs(f"map --out .{suffix}", [*cli, "map", two, "--out", f"{out}.{suffix}"],
+                  trees, d, args.runs)
+        for suffix in ("html", "json"):
+            pairs(f"report --out .{suffix}", [*cli, "report", two, "--out",
+                                              f"{out}.{suffix}"], trees, d, args.runs)
+        floor("bare interpreter", "pass", d, args.runs)
+        floor("import numpy", "import numpy", d, args.runs)
+        floor("matplotlib figure + Agg canvas", "import matplotlib.figure, "
+              "matplotlib.backends.backend_agg", d, args.runs)
+        floor("matplotlib.pyplot", "import matplotlib.pyplot", d, args.runs)
+
+
+if __name__ == "__main__":
+    main()
