@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any
@@ -115,15 +116,78 @@ def _clean(x: float) -> float:
     return 0.0 if abs(x) < 1e-12 else float(x)
 
 
+def _brentq(f: Callable[[float], float], xa: float, xb: float, xtol: float, rtol: float,
+            maxiter: int) -> float:
+    """Root of ``f`` in the bracket ``[xa, xb]`` by Brent's method [1]_, step for step the
+    algorithm of ``scipy.optimize.brentq`` (its C routine ``brentq.c``, by Charles Harris):
+    the same double operations in the same order, so the same root to the last bit
+    (``tests/test_ensemble_brent.py`` checks that against SciPy). Here because importing
+    ``scipy.optimize`` costs more than a whole ``compare`` run on a small network
+    (issue 15; ``benchmarks/RESULTS.md``). ``f(xa)`` and ``f(xb)`` must differ in sign
+    (else ValueError); no convergence in ``maxiter`` steps raises RuntimeError, as SciPy
+    does.
+
+    References
+    ----------
+    .. [1] R. P. Brent, "Algorithms for Minimization Without Derivatives", Prentice-Hall,
+       1973, chapter 4 (details from memory).
+    """
+    xpre, xcur = float(xa), float(xb)
+    xblk = fblk = spre = scur = 0.0
+    fpre = float(f(xpre))
+    fcur = float(f(xcur))
+    if fpre == 0:
+        return xpre
+    if fcur == 0:
+        return xcur
+    if math.copysign(1.0, fpre) == math.copysign(1.0, fcur):
+        raise ValueError(f"f({xpre!r}) = {fpre!r} and f({xcur!r}) = {fcur!r} have the same "
+                         "sign; Brent's method needs a bracket with a sign change.")
+    for _ in range(maxiter):
+        if fpre != 0 and fcur != 0 and \
+                math.copysign(1.0, fpre) != math.copysign(1.0, fcur):
+            xblk = xpre
+            fblk = fpre
+            spre = scur = xcur - xpre
+        if abs(fblk) < abs(fcur):
+            xpre, xcur, xblk = xcur, xblk, xcur
+            fpre, fcur, fblk = fcur, fblk, fcur
+        delta = (xtol + rtol * abs(xcur)) / 2
+        sbis = (xblk - xcur) / 2
+        if fcur == 0 or abs(sbis) < delta:
+            return xcur
+        if abs(spre) > delta and abs(fcur) < abs(fpre):
+            if xpre == xblk:  # interpolate
+                stry = -fcur * (xcur - xpre) / (fcur - fpre)
+            else:  # extrapolate
+                dpre = (fpre - fcur) / (xpre - xcur)
+                dblk = (fblk - fcur) / (xblk - xcur)
+                stry = -fcur * (fblk * dblk - fpre * dpre) / (dblk * dpre * (fblk - fpre))
+            if 2 * abs(stry) < min(abs(spre), 3 * abs(sbis) - delta):  # good short step
+                spre = scur
+                scur = stry
+            else:  # bisect
+                spre = scur = sbis
+        else:  # bisect
+            spre = scur = sbis
+        xpre = xcur
+        fpre = fcur
+        if abs(scur) > delta:
+            xcur += scur
+        else:
+            xcur += delta if sbis > 0 else -delta
+        fcur = float(f(xcur))
+    raise RuntimeError(f"Brent's method did not converge in {maxiter} iterations "
+                       f"(last value {xcur!r}).")
+
+
 def _roots(f: Callable[[Any], Any]) -> list[float]:
     """All sign-change roots of ``f`` on [0, 1], bracketed by a grid, refined by Brent."""
-    from scipy.optimize import brentq  # here: scipy.optimize costs ~0.4 s to import
-
     xs = np.linspace(0.0, 1.0, _GRID)
     fs = np.asarray(f(xs), np.float64)  # the whole grid at once; Brent refines by scalars
     roots = [float(x) for x, v in zip(xs, fs) if v == 0.0]
     for i in np.flatnonzero(fs[:-1] * fs[1:] < 0):
-        roots.append(float(brentq(f, xs[i], xs[i + 1], xtol=1e-15, rtol=1e-15, maxiter=200)))
+        roots.append(_brentq(f, xs[i], xs[i + 1], xtol=1e-15, rtol=1e-15, maxiter=200))
     return sorted(set(roots))
 
 
@@ -191,7 +255,8 @@ def cavity_driver_fraction(out_degrees: Any, in_degrees: Any | None = None, *,
     the configuration-model ensemble: ``docs/SCALE.md``.
 
     Each closed equation is solved by scanning [0, 1] on a grid of 4097 points for sign
-    changes and refining every bracket with Brent's method (``scipy.optimize.brentq``);
+    changes and refining every bracket with Brent's method (the algorithm of
+    ``scipy.optimize.brentq``, run in Python: same roots, without that import);
     a root always exists because ``f(0) >= 0 >= f(1)``. The prediction holds for the
     configuration model with these degree sequences (any correlation between a state's
     own in- and out-degree is irrelevant: the bipartite graph never joins a state's two

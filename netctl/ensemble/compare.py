@@ -23,7 +23,13 @@ from netctl.errors import InvalidSystemError, OptionError
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
-__all__ = ["NullComparison", "compare_to_null", "null_sample_inputs"]
+__all__ = ["IN_PROCESS_WORK", "NullComparison", "compare_to_null", "null_sample_inputs"]
+
+#: With ``executor="local"``, an ensemble of at most this many samples x (states + links)
+#: runs in this process: starting worker processes (and loading the compiled kernels
+#: they use) costs more than such samples, and the per-sample seeds give the same
+#: results either way (common practice, no source: measured, benchmarks/RESULTS.md).
+IN_PROCESS_WORK: int = 20_000
 
 
 @dataclass(frozen=True)
@@ -121,11 +127,17 @@ class NullComparison(ResultTables):
 
 
 def _poisson_pmf(mean: float) -> np.ndarray:
-    """Poisson probabilities P(k), k = 0 .. mean + 12 sqrt(mean) + 30, renormalized."""
-    from scipy.stats import poisson
+    """Poisson probabilities P(k), k = 0 .. mean + 12 sqrt(mean) + 30, renormalized.
+
+    ``exp(xlogy(k, mean) - gammaln(k + 1) - mean)`` clipped to [0, 1]: the formula
+    ``scipy.stats.poisson.pmf`` evaluates, from ``scipy.special`` directly, because
+    importing ``scipy.stats`` costs more than a ``compare`` run on a small network
+    (issue 15); ``tests/test_ensemble_brent.py`` checks the values equal SciPy's.
+    """
+    from scipy.special import gammaln, xlogy
 
     k = np.arange(int(mean + 12 * np.sqrt(mean) + 30))
-    p = poisson.pmf(k, mean)
+    p = np.clip(np.exp(xlogy(k, mean) - gammaln(k + 1) - mean), 0, 1)
     return np.asarray(p / p.sum(), np.float64)
 
 
@@ -173,7 +185,9 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
     seed : None, int or SeedSequence
         The same seed gives the same samples whichever executor runs them.
     executor, workers, scheduler
-        How the samples run; see :func:`netctl.ensemble.run_tasks`.
+        How the samples run; see :func:`netctl.ensemble.run_tasks`. ``"local"`` runs a
+        small ensemble (``samples * (states + links) <= IN_PROCESS_WORK``) in this
+        process, with the same results.
     undirected : bool or None
         Randomize the links as undirected ones (each link ``u -- v`` moves as a whole
         and stays both ways; degrees are undirected degrees), see
@@ -237,6 +251,8 @@ def compare_to_null(system: StructuredSystem, *, null: str = "degree", samples: 
     observed = max(n_unmatched(np.concatenate([src, loops]), np.concatenate([dst, loops]), n),
                    1) if n else 0
     entropy, _ = spawn_seeds(seed, 0)
+    if executor == "local" and int(samples) * (n + src.size) <= IN_PROCESS_WORK:
+        executor = "serial"  # starting workers would cost more than the samples
     counts = run_tasks(null_sample_inputs, range(int(samples)), seed=entropy,
                        shared=(null, *(_halves(src, dst) if undirected else (src, dst)), n,
                                loops, undirected), executor=executor, progress=progress,

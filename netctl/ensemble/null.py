@@ -353,7 +353,10 @@ _GOLD = -7046029254386353131  # 0x9E3779B97F4A7C15 as a signed 64-bit integer
 
 @njit(cache=True, nogil=True)
 def _slot(key, bits):  # pragma: no cover - compiled
-    return ((key * _GOLD) >> (64 - bits)) & ((1 << bits) - 1)
+    # int(key): the Python body (small inputs, see netctl._jit) multiplies exact
+    # integers, where NumPy's int64 would warn of the wrap-around; the bits kept here
+    # (64 - bits .. 63) are those of numba's wrapped 64-bit product either way
+    return ((int(key) * _GOLD) >> (64 - bits)) & ((1 << bits) - 1)
 
 
 @njit(cache=True, nogil=True)
