@@ -289,3 +289,63 @@ def test_a_json_report_draws_nothing(tmp_path):
     pngs = [b.png for s in drawn.sections for b in s.blocks if b.kind in ("figure", "map")]
     assert len(pngs) >= 3 and all(p.startswith(b"\x89PNG") for p in pngs)
     assert all(b.png == b"" for s in bare.sections for b in s.blocks)
+
+#: ``compare`` on the two-line edge list with its common options ({f}: the file). The
+#: ensemble is tiny, so it runs in the calling process: no worker processes and no
+#: compiled kernels warmed for them (numba), and the cavity prediction's root finding
+#: needs no scipy.optimize (issue 15, goal 1; benchmarks/RESULTS.md, compare)
+COMPARE_SMALL = (
+    ["compare", "{f}"], ["compare", "{f}", "--seed", "3"],
+    ["compare", "{f}", "--null", "degree", "--samples", "10"],
+    ["compare", "{f}", "--null", "swap"], ["compare", "{f}", "--null", "swap", "--seed", "3"],
+    ["compare", "{f}", "--terms", "network"], ["compare", "{f}", "--samples", "10"],
+)
+
+
+def test_compare_on_a_small_edge_list_loads_no_scipy_and_no_numba(tmp_path):
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    for argv in COMPARE_SMALL:
+        args = [a.format(f=f) for a in argv]
+        assert _scipy_modules_after(args) == [], args
+        assert "numba" not in loaded_after(run_main(args)), args
+
+
+def test_compare_erdos_renyi_on_a_small_edge_list_loads_neither_stats_nor_optimize(tmp_path):
+    """The Erdős–Rényi note needs Poisson probabilities: scipy.special's functions, not
+    scipy.stats (whose import costs more than the rest of the run)."""
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    mods = _scipy_modules_after(["compare", str(f), "--null", "erdos-renyi", "--seed", "3"])
+    assert "scipy.special" in mods  # the note was computed
+    assert not [m for m in mods if m.startswith(("scipy.stats", "scipy.optimize"))], mods
+    assert "numba" not in loaded_after(run_main(["compare", str(f), "--null", "erdos-renyi"]))
+
+
+def test_compare_on_a_small_edge_list_still_answers(tmp_path, capsys):
+    """The same runs give the known answers, so the checks above cannot pass by a verb
+    that stopped early. The path a -> b -> c needs one input (Liu, Slotine & Barabási,
+    Nature 473:167-173 (2011)), and so does every sample: a configuration-model or swap
+    sample of its degrees (out 1, 1, 0; in 0, 1, 1) is the path itself or a -> c with
+    a self-loop on b; an Erdős–Rényi sample of 2 links between distinct states of 3
+    matches one or two of them, so needs 2 or 1 inputs. The cavity prediction (Liu et
+    al. 2011, SI Sec. IV) of these degrees: no core, a third of the states unmatched
+    (worked by hand: every excess degree is 0, so H = 1, w1 = 1, and the unmatched
+    fraction is P(0) = 1/3 on each side)."""
+    from netctl.cli import main
+
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    for extra in ([], ["--null", "swap"], ["--null", "erdos-renyi"], ["--samples", "10"]):
+        try:
+            main(["compare", str(f), "--seed", "3", "--json", *extra])
+        except SystemExit as exc:
+            assert (exc.code or 0) == 0, extra
+        d = json.loads(capsys.readouterr().out)
+        assert d["observed_n_inputs"] == 1
+        if extra == ["--null", "erdos-renyi"]:
+            assert set(d["samples"]) == {1, 2}, d["samples"]
+        else:
+            assert d["samples"] == [1] * (10 if extra == ["--samples", "10"] else 100), extra
+        assert abs(d["predicted_fraction"] - 1 / 3) < 1e-12
+        assert d["prediction"]["core_out"] == 0.0 and d["prediction"]["core_in"] == 0.0

@@ -121,7 +121,7 @@ def _brentq(f: Callable[[float], float], xa: float, xb: float, xtol: float, rtol
     """Root of ``f`` in the bracket ``[xa, xb]`` by Brent's method [1]_, step for step the
     algorithm of ``scipy.optimize.brentq`` (its C routine ``brentq.c``, by Charles Harris):
     the same double operations in the same order, so the same root to the last bit
-    (``tests/test_ensemble_brent.py`` checks that against SciPy). Here because importing
+    (``tests/test_ensemble_small_paths.py`` checks that against SciPy). Here because importing
     ``scipy.optimize`` costs more than a whole ``compare`` run on a small network
     (issue 15; ``benchmarks/RESULTS.md``). ``f(xa)`` and ``f(xb)`` must differ in sign
     (else ValueError); no convergence in ``maxiter`` steps raises RuntimeError, as SciPy

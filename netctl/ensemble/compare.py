@@ -132,7 +132,7 @@ def _poisson_pmf(mean: float) -> np.ndarray:
     ``exp(xlogy(k, mean) - gammaln(k + 1) - mean)`` clipped to [0, 1]: the formula
     ``scipy.stats.poisson.pmf`` evaluates, from ``scipy.special`` directly, because
     importing ``scipy.stats`` costs more than a ``compare`` run on a small network
-    (issue 15); ``tests/test_ensemble_brent.py`` checks the values equal SciPy's.
+    (issue 15); ``tests/test_ensemble_small_paths.py`` checks the values equal SciPy's.
     """
     from scipy.special import gammaln, xlogy
 
