@@ -127,17 +127,12 @@ class NullComparison(ResultTables):
 
 
 def _poisson_pmf(mean: float) -> np.ndarray:
-    """Poisson probabilities P(k), k = 0 .. mean + 12 sqrt(mean) + 30, renormalized.
+    """Poisson probabilities P(k), k = 0 .. mean + 12 sqrt(mean) + 30, renormalized
+    (the values of ``scipy.stats.poisson.pmf``, computed without importing SciPy: see
+    :mod:`netctl.ensemble._poisson`)."""
+    from netctl.ensemble._poisson import poisson_pmf
 
-    ``exp(xlogy(k, mean) - gammaln(k + 1) - mean)`` clipped to [0, 1]: the formula
-    ``scipy.stats.poisson.pmf`` evaluates, from ``scipy.special`` directly, because
-    importing ``scipy.stats`` costs more than a ``compare`` run on a small network
-    (issue 15); ``tests/test_ensemble_small_paths.py`` checks the values equal SciPy's.
-    """
-    from scipy.special import gammaln, xlogy
-
-    k = np.arange(int(mean + 12 * np.sqrt(mean) + 30))
-    p = np.clip(np.exp(xlogy(k, mean) - gammaln(k + 1) - mean), 0, 1)
+    p = poisson_pmf(int(mean + 12 * np.sqrt(mean) + 30), mean)
     return np.asarray(p / p.sum(), np.float64)
 
 
