@@ -30,8 +30,8 @@ if TYPE_CHECKING:
         undirected_null,
     )
 
-#: name -> submodule; loaded on first access (the cavity prediction needs scipy.optimize,
-#: the null models numba: neither should load for ``--help`` or the executor alone)
+#: name -> submodule; loaded on first access (the null models' kernels may need numba
+#: on large inputs, which should not load for ``--help`` or the executor alone)
 _LAZY: dict[str, str] = {
     "CavityPrediction": "netctl.ensemble.cavity",
     "EXECUTORS": "netctl.ensemble.executor",
