@@ -351,3 +351,18 @@ def test_compare_on_a_small_edge_list_still_answers(tmp_path, capsys):
         if extra == ["--null", "erdos-renyi"]:  # the note on the Poisson ensemble ran
             assert any("Erdős–Rényi ensemble" in note for note in d["notes"]), d["notes"]
         assert d["prediction"]["core_out"] == 0.0 and d["prediction"]["core_in"] == 0.0
+
+
+def test_compare_on_a_small_edge_list_starts_no_worker_machinery(tmp_path):
+    """The tiny ensemble runs in the calling process, so neither multiprocessing nor
+    concurrent.futures (about 10 ms of imports, sockets included) is loaded."""
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    probe = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\n"
+             f"{run_main(['compare', str(f), '--seed', '3'])}\n"
+             "print(sorted(m for m in sys.modules if m.startswith(('multiprocessing', "
+             "'concurrent.futures'))))")
+    r = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                       timeout=300, cwd=ROOT)
+    assert r.returncode == 0, r.stderr
+    assert r.stdout.strip().splitlines()[-1] == "[]"

@@ -11,10 +11,8 @@ order of the work list.
 from __future__ import annotations
 
 import math
-import multiprocessing as mp
 import os
 from collections.abc import Callable, Iterable, Sequence
-from concurrent.futures import ProcessPoolExecutor
 from itertools import repeat
 from typing import Any
 
@@ -145,6 +143,8 @@ def run_tasks(func: Callable[[Any, np.random.SeedSequence, Any], Any], items: Se
     n_workers = min(workers or default_workers(), len(items))
     if executor == "serial" or n_workers == 1:
         return tick(func(item, s, shared) for item, s in zip(items, seeds))
+    from concurrent.futures import ProcessPoolExecutor  # here: serial runs need neither
+
     ctx = _context()
     if ctx.get_start_method() == "fork":
         import netctl.ensemble._preload  # noqa: F401  (warm kernels once; workers inherit)
@@ -164,6 +164,7 @@ def _context() -> Any:
     """``fork`` where it is safe and quiet (POSIX, Python < 3.12, no other Python
     thread): workers start instantly with everything loaded. Else ``forkserver`` (a clean
     server preloaded once), else ``spawn``."""
+    import multiprocessing as mp
     import sys
     import threading
 
