@@ -8,7 +8,8 @@ network (issue 15, goal 1; ``benchmarks/RESULTS.md``). Here ``gammaln`` at whole
 is Cephes' ``lgam`` as SciPy compiles it (the same double operations in the same order)
 and ``xlogy`` is ``k * log(mu)`` with the C library's ``log``, so the probabilities equal
 SciPy's bit for bit; ``tests/test_ensemble_small_paths.py`` checks that against SciPy
-for every whole number up to 2·10^5 and for random means.
+for every whole number up to 2·10^5 and for random means. Translated from SciPy's C code
+under SciPy's BSD licence: see THIRD_PARTY_NOTICES.md.
 """
 
 from __future__ import annotations

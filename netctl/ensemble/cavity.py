@@ -125,7 +125,7 @@ def _brentq(f: Callable[[float], float], xa: float, xb: float, xtol: float, rtol
     ``scipy.optimize`` costs more than a whole ``compare`` run on a small network
     (issue 15; ``benchmarks/RESULTS.md``). ``f(xa)`` and ``f(xb)`` must differ in sign
     (else ValueError); no convergence in ``maxiter`` steps raises RuntimeError, as SciPy
-    does.
+    does. Translated from SciPy's C code under SciPy's BSD licence (THIRD_PARTY_NOTICES.md).
 
     References
     ----------
