@@ -79,7 +79,9 @@ class RankTest(ResultTables):
     smallest_kept, largest_dropped, tolerance : float
         The two sides of the closest rank decision and the tolerance used.
     blocks : ndarray of int
-        Staircase block sizes (``staircase``), cluster sizes (``pbh``).
+        Staircase block sizes (``staircase``), cluster sizes (``pbh``), sizes of the
+        strongly connected blocks of two or more states of the matched columns, largest
+        first (``certificate``).
     lost_modes : tuple of LostMode
         Uncontrollable modes with the states that carry them (``pbh``).
     failure_bound : float or None
