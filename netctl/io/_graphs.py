@@ -30,6 +30,8 @@ def _scalar(v: Any) -> bool:
 #: ``locate(kind, index)``: the line of the file that holds node ``index`` (``kind``
 #: ``"node"``) or edge ``index`` (``"edge"``) of the lists given to
 #: :func:`system_from_parts`, or None where the format (or the file) does not say.
+#: ``"repeat"``: edge ``index``, which has the ends of an earlier edge (a parallel
+#: edge); where edges are found by their ends, the line of the second such edge.
 Locate = Callable[[str, int], "int | None"]
 
 
@@ -75,6 +77,7 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
                          f"); give every node a distinct id.")
     src = np.asarray(sources, dtype=np.int64)
     dst = np.asarray(targets, dtype=np.int64)
+    kept = np.arange(src.size)  # each link's place in the lists given (for ``where``)
     w = None
     if weights is not None:
         try:
@@ -98,7 +101,8 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
             warnings.warn(f"{path}: {nz} link{'s' if nz > 1 else ''} with weight 0 "
                           f"{'are' if nz > 1 else 'is'} not a link and "
                           f"{'were' if nz > 1 else 'was'} left out.", stacklevel=3)
-            src, dst, w = src[~zero], dst[~zero], w[~zero]
+            src, dst, w, kept = src[~zero], dst[~zero], w[~zero], kept[~zero]
+    repeat = _first_repeat(src, dst, kept, directed, len(str_names))
     if not directed:
         loop = src == dst
         src, dst = np.concatenate([src, dst[~loop]]), np.concatenate([dst, src[~loop]])
@@ -110,8 +114,47 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
         system = StructuredSystem.from_edges(src, dst, len(str_names), weights=w,
                                              state_names=str_names, nodes=table, model=model)
     for c in caught:
-        warnings.warn(f"{path}: {c.message}", stacklevel=3)
+        text = str(c.message)
+        if repeat is not None and "duplicate link" in text:
+            text = _said_where(text, str_names, src, dst, repeat, where, path)
+        else:
+            text = f"{path}: {text}"
+        warnings.warn(text, stacklevel=3)
     return apply_node_kinds(system, path)
+
+
+def _first_repeat(src: np.ndarray, dst: np.ndarray, kept: np.ndarray, directed: bool,
+                  n: int) -> tuple[int, int, int] | None:
+    """The first link that repeats the ends of an earlier one (either way round when
+    undirected), as (its position in ``src``, its index and the earlier one's index in
+    the lists given), or None."""
+    if src.size < 2:
+        return None
+    a, b = (src, dst) if directed else (np.minimum(src, dst), np.maximum(src, dst))
+    key = a * max(n, 1) + b
+    _, first = np.unique(key, return_index=True)
+    later = np.ones(key.size, bool)
+    later[first] = False
+    if not later.any():
+        return None
+    pos = int(np.flatnonzero(later)[0])
+    before = int(np.flatnonzero(key == key[pos])[0])
+    return pos, int(kept[pos]), int(kept[before])
+
+
+def _said_where(text: str, names: Sequence[str], src: np.ndarray, dst: np.ndarray,
+                repeat: tuple[int, int, int], where: Locate, path: object) -> str:
+    """The merge warning of :meth:`StructuredSystem.from_edges`, placed on the line of
+    the first repeated link, with the line of the link it repeats and the fix."""
+    pos, again, first = repeat
+    line, before = where("repeat", again), where("edge", first)
+    if line is None:
+        return f"{path}: {text}"
+    earlier = f" on line {before}" if before is not None and before != line else " before it"
+    fix = (" (one link with the summed weight, if both were meant)" if "weights summed" in text
+           else "")
+    return (f"{path}:{line}: {text.rstrip('.')}: the link {_link(names, src, dst, pos)} here "
+            f"repeats the one{earlier}. Give each link once{fix}.")
 
 
 def _link(names: Sequence[str], src: np.ndarray, dst: np.ndarray, e: int) -> str:

@@ -167,6 +167,8 @@ def _finder(text: str) -> Find:
                 and all(_same(d.get(end), i) for end, i in zip(("source", "target"), ids)
                         if i is not None)
                 and None not in ids]
+        if kind == "repeat":  # the second edge with these ends, in the file's order
+            return hits[1][0] if len(hits) > 1 else None
         bad = [line for line, w in hits if w is not None and not finite_weight(w)]
         lines = bad or [line for line, _ in hits]
         return lines[0] if lines else None

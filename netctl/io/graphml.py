@@ -27,7 +27,8 @@ __all__ = ["read_graphml", "write_graphml", "graph_to_system", "system_to_graph"
 
 
 #: ``find(kind, key)``: the line of the node ``key`` (``kind`` ``"node"``, the graph's
-#: node key) or of the edge ``key`` (``"edge"``, a pair of node keys), or None.
+#: node key) or of the edge ``key`` (``"edge"``, a pair of node keys), or of the second
+#: edge with the ends ``key`` (``"repeat"``), or None.
 Find = Callable[[str, Any], "int | None"]
 
 
@@ -228,7 +229,9 @@ def _finder(data: bytes, directed: bool) -> Find:
             return found["nodes"].get(str(key))
         u, v = str(key[0]), str(key[1])
         hits = found["edges"].get((u, v), []) + (
-            [] if directed else found["edges"].get((v, u), []))
+            [] if directed or u == v else found["edges"].get((v, u), []))
+        if kind == "repeat":  # the second edge with these ends, in the file's order
+            return sorted(hits)[1][0] if len(hits) > 1 else None
         bad = [line for line, w in hits if w is not None and not finite_weight(w)]
         lines = bad or [line for line, _ in hits]
         return lines[0] if lines else None

@@ -126,6 +126,61 @@ def test_graphml_node_declared_twice_alike_is_said(tmp_path):
                             "attributes (first on line 7); read as one node") for m in msgs), msgs
 
 
+#: a link given twice in a graph file: (file name, content, line of the second, line of
+#: the first, the weight kept); read with the weights summed, the warning names both lines
+PARALLEL = [
+    pytest.param("p.graphml", _graphml('    <edge source="b" target="c"><data key="d0">2'
+                                       '</data></edge>\n'
+                                       '    <edge source="a" target="b"><data key="d0">3'
+                                       '</data></edge>\n'), 11, 9, 4.5, id="graphml"),
+    pytest.param("p.graphml", _graphml('    <edge source="c" target="c"/>\n'
+                                       '    <edge source="b" target="a"><data key="d0">3'
+                                       '</data></edge>\n', edges="undirected"), 11, 9, 4.5,
+                 id="graphml-undirected-reversed"),
+    pytest.param("p.gml", _GML.replace("directed 1", "directed 1\n  multigraph 1").format(
+        extra="  edge [ source 1 target 2 weight 2 ]\n  edge [ source 0 target 1 weight 3 ]\n"),
+        12, 10, 4.5, id="gml-multigraph"),
+    pytest.param("p.json", _JSON.replace('"weight": {w}}}]', '"weight": {w}}},\n'
+                                         '           {{"source": "a", "target": "b", '
+                                         '"weight": 3}}]').format(nodes="", w="2"),
+                 7, 5, 4.5, id="node-link-json"),
+]
+
+
+@pytest.mark.parametrize("name, text, line, first, kept", PARALLEL)
+def test_parallel_links_are_merged_with_the_line_of_the_second(tmp_path, name, text, line,
+                                                               first, kept):
+    """A second link between the same two nodes is merged (weights summed, nothing
+    lost), and the warning names the file, the line of the second link, the line of the
+    first and the fix (it named no line before)."""
+    p = tmp_path / name
+    p.write_text(text)
+    with pytest.warns(UserWarning) as caught:
+        s = read(p)
+    msgs = [str(w.message) for w in caught]
+    assert any(m.startswith(f"{p}:{line}: ") and "duplicate link" in m and
+               f"here repeats the one on line {first}. Give each link once" in m
+               for m in msgs), msgs
+    assert kept in s.A.data.tolist()
+    lines = text.splitlines()  # the file is the reference: both lines hold an a-b link
+    for n in (line, first):
+        held = lines[n - 1].replace('"', "").replace("source 0 target 1", "a b")
+        assert any(f"source={u} target={v}" in held or f"source: {u}, target: {v}" in held
+                   or f"{u} {v}" in held for u, v in (("a", "b"), ("b", "a"))), (n, held)
+
+
+def test_parallel_link_warning_through_the_cli(tmp_path, monkeypatch, capsys):
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "p.graphml").write_text(PARALLEL[0].values[1])
+    assert main(["convert", "p.graphml", "out.toml"]) == 0
+    err = capsys.readouterr().err
+    assert err.startswith("netctl: warning: p.graphml:11: 1 duplicate link was merged "
+                          "(weights summed): the link 'a' -> 'b' here repeats the one on "
+                          "line 9. Give each link once (one link with the summed weight, if "
+                          "both were meant)."), err
+    assert err.count("\n") == 1 and "Traceback" not in err
+
+
 def test_good_graph_files_read_without_the_line_search(tmp_path):
     """The line search runs only on an error: good files read as before."""
     for name, text in (("g.graphml", _graphml("")), ("g.gml", _GML.format(extra="")),
