@@ -60,7 +60,11 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     attrs: list[dict[str, Any]] = []
     locate = _locator(text, "links" if "links" in data else "edges")
     for k, node in enumerate(data["nodes"]):
-        if not isinstance(node, dict) or "id" not in node:
+        if not isinstance(node, dict):
+            raise file_error(path, locate("node", k), f"node {k} is {node!r:.60}, not an "
+                             "object; write each node as an object with an \"id\", such as "
+                             "{\"id\": \"a\"}.")
+        if "id" not in node:
             raise file_error(path, locate("node", k), f"node {k} ({node!r:.60}) has no "
                              "\"id\"; every node is an object with an \"id\".")
         if isinstance(node["id"], bool) or not isinstance(node["id"], (str, int)):
@@ -73,9 +77,13 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     weighted = any(isinstance(e, dict) and "weight" in e for e in links)
     extra: set[str] = set()
     for k, e in enumerate(links):
-        if not isinstance(e, dict) or "source" not in e or "target" not in e:
+        if not isinstance(e, dict):
+            raise file_error(path, locate("edge", k), f"link {k} is {e!r:.60}, not an "
+                             "object; write each link as an object such as {\"source\": \"a\", "
+                             "\"target\": \"b\"} (a \"weight\" is optional).")
+        if "source" not in e or "target" not in e:
             raise file_error(path, locate("edge", k), f"link {k} ({e!r:.60}) needs "
-                             "\"source\" and \"target\".")
+                             "\"source\" and \"target\"; give both (ids from \"nodes\").")
         for end in ("source", "target"):
             if not isinstance(e[end], (str, int)) or e[end] not in index:
                 raise file_error(path, locate("edge", k), f"link {k} names the {end} "
@@ -95,31 +103,36 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
                              directed, model=model, what="node-link JSON", locate=locate)
 
 
-class _At(dict):  # type: ignore[type-arg]
-    """A JSON object with the offset of its opening brace in the text."""
+class _Items(list):  # type: ignore[type-arg]
+    """A JSON array with the offset in the text where each of its items starts."""
 
-    at = 0
+    starts: list[int] = []
 
 
-def _parse_object(s_and_end: tuple[str, int], strict: bool, scan_once: Any,
-                  object_hook: Any, object_pairs_hook: Any,
-                  memo: dict[str, str] | None = None) -> tuple[_At, int]:
-    obj, end = json.decoder.JSONObject(s_and_end, strict, scan_once, None, None, memo)  # type: ignore[attr-defined]
-    found = _At(obj)
-    found.at = s_and_end[1] - 1
+def _parse_array(s_and_end: tuple[str, int], scan_once: Any) -> tuple[_Items, int]:
+    starts: list[int] = []
+
+    def scan(string: str, idx: int) -> tuple[Any, int]:
+        starts.append(idx)  # the array's own items only: nested arrays come back here
+        return scan_once(string, idx)
+
+    values, end = json.decoder.JSONArray(s_and_end, scan)  # type: ignore[attr-defined]
+    found = _Items(values)
+    found.starts = starts
     return found, end
 
 
 def _locator(text: str, key: str) -> Locate:
-    """``locate(kind, k)``: the line of node ``k`` (``"node"``) or link ``k`` (``"edge"``,
-    in the list ``key``). The text is parsed again, keeping each object's offset, only
-    when a line is asked for (the pure-Python parser: an error's price, not a read's)."""
+    """``locate(kind, k)``: the line of node ``k`` (``"node"``) or link ``k`` (``"edge"``
+    or ``"repeat"``, in the list ``key``), whatever the item is (an object, a number, a
+    list...). The text is parsed again, keeping where each array item starts, only when
+    a line is asked for (the pure-Python parser: an error's price, not a read's)."""
     found: list[Any] = []
 
     def locate(kind: str, k: int) -> int | None:
         if not found:
             decoder = json.JSONDecoder()
-            decoder.parse_object = _parse_object  # type: ignore[attr-defined]
+            decoder.parse_array = _parse_array  # type: ignore[attr-defined]
             decoder.scan_once = json.scanner.py_make_scanner(decoder)  # type: ignore[attr-defined]
             try:
                 found.append(decoder.decode(text))
@@ -127,12 +140,9 @@ def _locator(text: str, key: str) -> Locate:
                 found.append(None)
         doc = found[0]
         items = doc.get("nodes" if kind == "node" else key) if isinstance(doc, dict) else None
-        if not isinstance(items, list) or not 0 <= k < len(items):
+        if not isinstance(items, _Items) or not 0 <= k < len(items.starts):
             return None
-        item = items[k]
-        if not isinstance(item, _At):  # not an object: its place is not kept
-            return None
-        return text.count("\n", 0, item.at) + 1
+        return text.count("\n", 0, items.starts[k]) + 1
 
     return locate
 

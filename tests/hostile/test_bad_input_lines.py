@@ -95,6 +95,25 @@ CASES = [
     pytest.param("u.json", _JSON.format(nodes="", w='2, "target": "ghost"'),
                  ":6: link 1 names the target 'ghost', which is not in \"nodes\"", "ghost",
                  id="json-unknown-node"),
+    # a list item that is not an object was named by its position only
+    pytest.param("n.json", _JSON.format(nodes=",\n           7", w="2"),
+                 ":5: node 3 is 7, not an object; write each node as an object with an "
+                 "\"id\", such as {\"id\": \"a\"}.", "7", id="json-node-not-an-object"),
+    pytest.param("l.json", _JSON.replace('{{"source": "b", "target": "c", "weight": {w}}}',
+                                         "{w}").format(nodes="", w="7"),
+                 ":6: link 1 is 7, not an object; write each link as an object such as "
+                 "{\"source\": \"a\", \"target\": \"b\"} (a \"weight\" is optional).", "7",
+                 id="json-link-a-number"),
+    pytest.param("l.json", _JSON.replace('{{"source": "b", "target": "c", "weight": {w}}}',
+                                         "{w}").format(nodes="", w='["b", "c"]'),
+                 ":6: link 1 is ['b', 'c'], not an object; write each link as an object",
+                 '["b", "c"]', id="json-link-a-list"),
+    pytest.param("l.json", _JSON.replace('"links"', '"edges"').format(
+        nodes="", w='2}, null, {"source": "a", "target": "c"'),
+        ":6: link 2 is None, not an object", "null", id="json-edges-null-item"),
+    pytest.param("l.json", _JSON.format(nodes="", w='2, "to": "c"}, {"source": "a"'),
+                 ":6: link 2 ({'source': 'a'}) needs \"source\" and \"target\"; give both "
+                 "(ids from \"nodes\").", '"source": "a"}]', id="json-link-without-target"),
 ]
 
 
