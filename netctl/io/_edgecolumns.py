@@ -16,12 +16,31 @@ import re
 import zlib
 from typing import NamedTuple
 
-__all__ = ["MixedColumns", "mixed_columns", "empty_weight"]
+__all__ = ["MixedColumns", "mixed_columns", "empty_weight", "empty_cell", "EMPTY_CELL_HELP"]
 
 _SPLIT = re.compile(r"[,\t; \r\v\f]+")
 #: A link line that ends with a separator other than a space (comma, semicolon, tab):
 #: a third column written empty. Trailing spaces alone are layout, not a column.
 _EMPTY_LAST = re.compile(r"[,;\t][ \t\r\v\f,;]*\Z")
+
+
+#: A cell separator (comma or semicolon) at the start of a line, or two with only spaces
+#: and tabs between them: a cell left empty if a name follows (the scanner's ERR_EMPTY).
+_EMPTY_CELL = re.compile(rb"\A[ \t\r\v\f]*[,;]|[,;][ \t\r\v\f]*[,;]")
+_NAME = re.compile(rb"[^,\t; \r\v\f]")
+_COLUMN = {1: "source", 2: "target", 3: "weight"}
+EMPTY_CELL_HELP = ("two commas or semicolons in a row leave a column empty (only spaces and "
+                   "tabs may repeat).")
+
+
+def empty_cell(body: bytes) -> str | None:
+    """The column (``"source"``, ``"target"``, ``"weight"`` or ``"column k"``) that a link
+    line (``body``, its comment removed) leaves empty before a name, or None."""
+    m = _EMPTY_CELL.search(body)
+    if m is None or not _NAME.search(body, m.end()):
+        return None  # none, or only separators follow (a trailing one: see empty_weight)
+    k = 1 + len([f for f in _SPLIT.split(body[:m.start()].decode("utf-8", "replace")) if f])
+    return _COLUMN.get(k, f"column {k}")
 
 
 class MixedColumns(NamedTuple):

@@ -27,7 +27,7 @@ import numpy as np
 from netctl._jit import njit
 
 __all__ = ["scan_chunk", "rehash", "mark_present", "remap", "int_names_text", "build_csr", "MODE_INT", "MODE_STR", "STATUS_DONE", "STATUS_ERROR",
-           "STATUS_NOT_INT", "STATUS_GROW", "STATUS_FULL", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ST_SIZE",
+           "STATUS_NOT_INT", "STATUS_GROW", "STATUS_FULL", "ERR_TOO_MANY", "ERR_MIXED", "ERR_WEIGHT", "ERR_EMPTY", "ST_SIZE",
            "STR_BATCH"]
 
 MODE_INT = 0
@@ -40,6 +40,9 @@ STATUS_FULL = 4
 ERR_TOO_MANY = 1
 ERR_MIXED = 2
 ERR_WEIGHT = 3
+#: a column left empty between two commas or semicolons (``a,,1``) or before the first
+#: name (``,a,b``): never read as one separator, which would run two columns together
+ERR_EMPTY = 4
 
 # state array slots
 _POS, _LINE, _NCOLS, _NE, _NI, _NFB, _NN, _NUSED, _NZERO, _ZLINE, _ERR, _ELS, _ELE = range(13)
@@ -304,6 +307,11 @@ for _c in b",\t; \r\v\f":
     _CLASS[_c] = 1
 _CLASS[10] = 2
 _CLASS[35] = 3
+# separators that end a cell (a run holding two of them leaves a cell empty); spaces and
+# tabs are layout, and a run of them counts as one
+_HARD = np.zeros(256, np.uint8)
+for _c in b",;":
+    _HARD[_c] = 1
 
 
 @njit(python=False, cache=True, nogil=True, inline="always")
@@ -363,13 +371,17 @@ def _line_tail(buf: np.ndarray, q: int, n: int) -> tuple[int, int, bool, float]:
     """The rest of a fast-path line after its second name: separators, an optional
     weight, separators, an optional comment. Returns ``(q, n_fields, ok, weight)`` with
     ``q`` at the line break (or the end, or where reading stopped); ``ok`` is False when
-    the weight needs the general path."""
+    the weight needs the general path (or an empty cell comes before it)."""
+    hard = 0
     while q < n and _CLASS[buf[q]] == 1:
+        hard += _HARD[buf[q]]
         q += 1
     nf = 2
     x = 0.0
     ok = True
     if q < n and _CLASS[buf[q]] == 0:
+        if hard >= 2:  # an empty cell before the weight: the general path reports it
+            return q, 3, False, x
         ws = q
         while q < n and _CLASS[buf[q]] == 0:
             q += 1
@@ -444,10 +456,12 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                 q += 1
             ok, a, q = _fast_int(buf, q, n)
             if ok and q < n and _CLASS[buf[q]] == 1:
+                hard = 0
                 while q < n and _CLASS[buf[q]] == 1:
+                    hard += _HARD[buf[q]]
                     q += 1
                 ok, b, q = _fast_int(buf, q, n)
-                if ok:
+                if ok and hard < 2:
                     q, nf, ok, x = _line_tail(buf, q, n)
                     if ok and (q >= n or buf[q] == 10) and (ncols == 0 or ncols == nf):
                         ncols = nf
@@ -482,8 +496,12 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                 e0 = q
                 if e0 == s0 or q >= n or _CLASS[buf[q]] != 1:
                     break
+                hard = 0
                 while q < n and _CLASS[buf[q]] == 1:
+                    hard += _HARD[buf[q]]
                     q += 1
+                if hard >= 2:
+                    break  # an empty cell: the general path reports it
                 s1 = q
                 q, c0, c1 = _scan_name(buf, q, n)
                 e1 = q
@@ -539,6 +557,8 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
         # general path: tokenize the line, then interpret it
         nf = 0
         intok = False
+        hard = 0  # cell separators since the last name
+        empty = False
         q = p
         while q < n:
             c = _CLASS[buf[q]]
@@ -556,7 +576,12 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
                     if nf <= 4:
                         ends[nf - 1] = q
                     intok = False
+                    hard = 0
+                hard += _HARD[buf[q]]
             elif not intok:
+                if hard >= 2 or (nf == 0 and hard >= 1):
+                    empty = True  # a cell left empty before this name
+                hard = 0
                 if nf < 4:
                     starts[nf] = q
                 nf += 1
@@ -564,8 +589,8 @@ def scan_chunk(buf: np.ndarray, mode: int, st: np.ndarray,
             q += 1
         if intok and nf <= 4:
             ends[nf - 1] = q
-        if nf > 3 or (nf >= 2 and ncols != 0 and ncols != nf):
-            st[_ERR] = ERR_TOO_MANY if nf > 3 else ERR_MIXED
+        if empty or nf > 3 or (nf >= 2 and ncols != 0 and ncols != nf):
+            st[_ERR] = ERR_EMPTY if empty else ERR_TOO_MANY if nf > 3 else ERR_MIXED
             st[_ELS] = p
             st[_ELE] = q
             _save(st, p, line, ncols, ne, ni, nfb, nzero, zline)

@@ -19,6 +19,8 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from netctl.io._edgecolumns import empty_cell
+
 if TYPE_CHECKING:
     from netctl.io.edgelist import EdgeArrays
 
@@ -68,10 +70,13 @@ def read_small(path: str | os.PathLike[str], is_header: Callable[[list[str]], bo
     iso_tok: list[int] = []
     weights: list[float] = []
     for lineno, raw in enumerate(lines, start=1):
-        fields = _TOKEN.findall(raw.split(b"#", 1)[0])
+        body = raw.split(b"#", 1)[0]
+        fields = _TOKEN.findall(body)
         nf = len(fields)
         if nf == 0:
             continue
+        if (b"," in body or b";" in body) and empty_cell(body):
+            return None  # a column left empty: the scanner reports it
         if not header_seen:
             header_seen = True
             if is_header([f.decode("utf-8") for f in fields]):  # the scanner's own rule

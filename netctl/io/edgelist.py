@@ -1,7 +1,9 @@
 """Edge lists: one link per line, ``source target [weight]``.
 
 Columns are separated by commas, tabs, semicolons or spaces (runs of separators count
-as one; there is no quoting, so names may not contain separators); ``#`` starts a
+as one, except that two commas or semicolons in a row, or one before the first name,
+leave a cell empty and are refused; there is no quoting, so names may not contain
+separators); ``#`` starts a
 comment; an optional header line names the columns (``source,target,weight`` or
 similar); a line with a single name declares a state (kept even when it has no link).
 Names may be integers or strings; a name written with a leading apostrophe before
@@ -43,7 +45,7 @@ from netctl.io._common import (
     max_bytes,
     note_input,
 )
-from netctl.io._edgecolumns import empty_weight, mixed_columns
+from netctl.io._edgecolumns import EMPTY_CELL_HELP, empty_cell, empty_weight, mixed_columns
 from netctl.io._edgemarks import apply_marks, header_marks, quoted_names, repeated_header
 from netctl.io._edgenames import _INT, cat_arrays, factorize_ints, int_order, unquote_names
 from netctl.io._edgesmall import SMALL_BYTES, read_small
@@ -396,6 +398,12 @@ class _Scan:
         line = int(st[1])
         text = _line_text(chunk, int(st[11]), int(st[12]))
         nf = len(_fields(text))
+        if st[10] == _k.ERR_EMPTY:
+            col = empty_cell(chunk[int(st[11]):int(st[12])].split(b"#", 1)[0])
+            raise file_error(self.path, line, f"the {col or 'a'} column is empty in "
+                             f"{excerpt(text)}; expected 'source target [weight]' with a name "
+                             "in each of the first two columns. Write the missing "
+                             f"{col or 'value'} (or remove the line); {EMPTY_CELL_HELP}")
         if st[10] == _k.ERR_TOO_MANY:
             raise file_error(self.path, line, f"expected 'source target [weight]', found {nf} "
                              f"columns in {excerpt(text)}. {_FORMAT_HELP}")
@@ -411,6 +419,8 @@ class _Scan:
         raw = chunk[int(st[11]):int(st[12])].decode("utf-8", errors="replace")
         said = ("the weight column of this line is empty" if empty_weight(raw) else
                 f"this line has {nf} columns")
+        if "\t\t" in raw.split("#", 1)[0].strip():
+            fix += " Two tabs in a row count as one: write a name in every column."
         raise file_error(self.path, line, f"{said}: {excerpt(text)}, but earlier link lines "
                          f"have {int(st[2])} (the first: line {where.first_line}, "
                          f"{excerpt(where.first_text)}). {fix}")

@@ -278,6 +278,95 @@ def test_empty_weight_through_the_cli(tmp_path, monkeypatch, capsys):
     assert sorted(p.name for p in tmp_path.iterdir()) == ["e.csv"]
 
 
+#: a line with a cell left empty: (line text, the empty column, the names read if the
+#: separators were run together -- what the reader did before)
+EMPTY_CELLS = [
+    pytest.param("a{s}{s}1", "target", id="empty-target"),
+    pytest.param("{s}a{s}b", "source", id="empty-source"),
+    pytest.param("a{s} {s}b", "target", id="blank-between"),
+    pytest.param("a{s}b{s}{s}1", "weight", id="empty-weight-before-a-value"),
+]
+
+
+@pytest.mark.parametrize("sep", [pytest.param(",", id="comma"),
+                                 pytest.param(";", id="semicolon")])
+@pytest.mark.parametrize("names", ["text", "integers"])
+@pytest.mark.parametrize("weighted", [False, True], ids=["two-columns", "three-columns"])
+@pytest.mark.parametrize("pad", [0, 3000], ids=["small", "past-the-small-path"])
+@pytest.mark.parametrize("bad, column", EMPTY_CELLS)
+def test_empty_cell_is_refused_not_run_together(tmp_path, sep, names, weighted, pad, bad,
+                                                 column):
+    """'a,,1' (a spreadsheet's empty cell) was read as the link a -> 1 in a file without
+    weights (the two separators run together), and as a column-count mismatch naming 2
+    columns in one with weights. Now every reader path (the plain-Python one, the compiled
+    scanner with text and integer names, any chunking) refuses it on its line, saying
+    which column is empty, what is expected and the fix."""
+    def name(k: int) -> str:
+        return str(k + 10) if names == "integers" else f"n{k}"
+
+    w = f"{sep}2" if weighted else ""
+    good = [f"{name(k)}{sep}{name(k + 1)}{w}" for k in range(pad + 3)]
+    bad_line = bad.format(s=sep).replace("a", name(0)).replace("b", name(1))
+    lines = good[:2] + [bad_line] + good[2:]
+    p = tmp_path / "e.csv"
+    p.write_text("\n".join(lines) + "\n")
+    said = {_message(p, chunk) for chunk in CHUNKS}
+    assert len(said) == 1, said
+    msg = said.pop()
+    assert msg == (f"{p}:3: the {column} column is empty in {bad_line!r}; expected 'source "
+                   "target [weight]' with a name in each of the first two columns. Write the "
+                   f"missing {column} (or remove the line); two commas or semicolons in a row "
+                   "leave a column empty (only spaces and tabs may repeat)."), msg
+    assert p.read_text().splitlines()[2] == bad_line  # the named line is the bad one
+
+
+@pytest.mark.parametrize("text", ["a,b,,\nb,c,,\n", "a;b;;\n", "a , b\nb\t\tc\n",
+                                  "a, ,\n", ",,\na,b\n", "a,b # c,,d\n"],
+                         ids=["trailing-run", "trailing-semicolons", "spaces-and-tabs",
+                              "no-name-after", "separators-only", "in-a-comment"])
+def test_what_is_not_an_empty_cell_reads_as_before(tmp_path, text):
+    # separators at the end of a line, runs of spaces and tabs, lines of separators only
+    # and comments are not cells left empty: the same arrays as the old rule gives
+    import re
+
+    p = tmp_path / "e.csv"
+    p.write_text(text)
+    got = {_arrays(p, chunk) for chunk in CHUNKS}
+    assert len(got) == 1, got
+    links = [tuple(f for f in re.split(r"[,;\s]+", ln.split("#")[0]) if f)
+             for ln in text.splitlines()]
+    assert got.pop() == tuple(sorted(x for x in links if len(x) == 2))
+
+
+def _arrays(path: Path, chunk: int | None) -> tuple[tuple[str, ...], ...]:
+    e = read_edge_arrays(path) if chunk is None else read_edge_arrays(path, chunk_bytes=chunk)
+    return tuple(sorted((e.names[a], e.names[b]) for a, b in
+                        zip(e.sources.tolist(), e.targets.tolist())))
+
+
+def test_empty_cell_through_the_cli(tmp_path, monkeypatch, capsys):
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "e.csv").write_text("source,target,weight\na,b,1\na,,1\n")
+    assert main(["convert", "e.csv", "out.json"]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("netctl: error: e.csv:3: the target column is empty in 'a,,1'; "
+                          "expected 'source target [weight]'"), err
+    assert err.count("\n") == 1 and "Traceback" not in err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["e.csv"]
+
+
+def test_tabs_in_a_row_that_leave_a_column_short_say_so(tmp_path):
+    # tabs are layout (a run counts as one), so 'a<tab><tab>1' after weighted lines is a
+    # column-count mismatch; the message says that two tabs count as one
+    p = tmp_path / "e.tsv"
+    p.write_text("a\tb\t1\na\t\t1\n")
+    said = {_message(p, chunk) for chunk in CHUNKS}
+    assert len(said) == 1, said
+    msg = said.pop()
+    assert msg.startswith(f"{p}:2: this line has 2 columns: 'a\\t\\t1'"), msg
+    assert msg.endswith("Two tabs in a row count as one: write a name in every column."), msg
+
+
 # ---------------------------------------------------------------- coupling files
 #: a description whose wiring is a coupling file; 'weather' is a disturbance, 'level' is
 #: read by a regulated output (invented plant)
