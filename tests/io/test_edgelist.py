@@ -324,7 +324,7 @@ PARALLEL_CASES = [
 
 @pytest.mark.parametrize("text, error", PARALLEL_CASES)
 def test_two_thread_scan_equals_one_thread(tmp_path, monkeypatch, text, error):
-    import netctl.io.edgelist as mod
+    import netctl.io._edgechunks as mod
 
     p = write(tmp_path, text)
     monkeypatch.setattr(mod, "PARALLEL_MIN_BYTES", 1 << 30)
