@@ -89,6 +89,20 @@ def _threshold_pivots(blk: sp.csc_matrix, tol: float) -> tuple[np.ndarray, float
     return np.abs(U.diagonal()), tol * max(1.0, growth)
 
 
+def _weights_words(weights: str) -> str:
+    """How a note names the weights the certificate used."""
+    return "the given weights" if weights == "given" else "random weights"
+
+
+def _inconclusive_hint(weights: str) -> str:
+    """What to do after an inconclusive certificate: another random start draws other
+    weights, but given weights stay what they are."""
+    if weights == "given":
+        return ("(the weights are given, so another seed does not change them: check their "
+                "values and scales, or use --weights independent for the generic answer)")
+    return "(try another seed)"
+
+
 def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
                        weights: str = "independent") -> RankTest:
     r"""Certificate that ``rank [A B] = n`` with random weights, plus accessibility.
@@ -222,11 +236,11 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
                     margin=_margin(smallest, 0.0, tol) if ok else _margin(tol, smallest, tol),
                     smallest_kept=smallest if ok else np.inf,
                     largest_dropped=0.0 if ok else smallest, tolerance=tol,
-                    note=("certified: rank [A B] = n with random weights, all states "
+                    note=(f"certified: rank [A B] = n with {_weights_words(weights)}, all states "
                           f"accessible; largest strongly connected block "
                           f"{int(sizes[0]) if sizes.size else 1}"
                           + ("; LU with threshold pivoting on a symmetric fill-reducing "
                              "ordering" if lu_path == "threshold" else ""))
                     if ok else "inconclusive: the matched columns are numerically singular "
-                    "for these weights (try another seed)",
+                    "for these weights " + _inconclusive_hint(weights),
                     **{**base, "blocks": sizes.astype(np.int64)})

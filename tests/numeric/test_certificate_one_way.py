@@ -177,3 +177,28 @@ def test_full_size_torus_uses_the_faster_path_and_matches_the_exact_rank():
     assert r.blocks.sum() >= certificate.THRESHOLD_LU_FROM
     assert "threshold pivoting" in r.note
     assert r.dimension == n == _exact_rank(AB)
+
+
+def _forced_three(weights):
+    """Three states, an input on state 0, links 0->1, 0->2, 1->1, 1->2 with ``weights``:
+    [A B] has exactly three nonzero columns (out of 0, out of 1, the input), so the matched
+    columns are forced; structurally of full rank and all states accessible. The 2x2 block
+    of rows 1, 2 is [[w01, w11], [w02, w12]] (hand calculation)."""
+    return StructuredSystem.from_edges([0, 0, 1, 1], [1, 2, 1, 2], 3, weights=weights,
+                                       inputs=[0])
+
+
+def test_given_weights_that_are_singular_do_not_ask_for_another_seed():
+    """With given weights another seed changes nothing: an inconclusive note must not send
+    the user to one (it did), and a certified one must not speak of random weights.
+    Singular by hand: w01*w12 - w11*w02 = 1*1 - 1*1 = 0; numpy agrees below."""
+    singular = _forced_three([1.0, 1.0, 1.0, 1.0])
+    AB = np.hstack([singular.A.toarray(), singular.B.toarray()])
+    assert np.linalg.matrix_rank(AB) == 2  # numpy: the given weights lose a rank
+    r = sparse_certificate(singular, weights="given")
+    assert r.dimension is None and "another seed does not change them" in r.note
+    assert "(try another seed)" not in r.note and "--weights independent" in r.note
+    regular = _forced_three([1.0, 2.0, 3.0, 5.0])  # 1*5 - 3*2 = -1
+    assert np.linalg.matrix_rank(np.hstack([regular.A.toarray(), regular.B.toarray()])) == 3
+    ok = sparse_certificate(regular, weights="given")
+    assert ok.dimension == 3 and "the given weights" in ok.note and "random" not in ok.note
