@@ -8,15 +8,17 @@ One of the four rank tests of :mod:`netctl.numeric.rank` (which holds the shared
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.errors import OptionError
 from netctl.numeric.rank import _EPS, RankTest, _margin
 from netctl.numeric.verdict import MARGIN_DECADES
 from netctl.system import StructuredSystem
+
+if TYPE_CHECKING:  # imported where used: a small verify never runs the certificate
+    import scipy.sparse as sp
 
 __all__ = ["sparse_certificate", "THRESHOLD_LU_FROM", "ONE_WAY_BELOW", "PIVOT_THRESHOLD"]
 
@@ -39,6 +41,8 @@ PIVOT_THRESHOLD = 0.1
 def _reciprocity(A: sp.spmatrix, states: np.ndarray) -> float:
     """Fraction of the links among ``states`` (self-loops aside) whose reverse is a
     link too."""
+    import scipy.sparse as sp
+
     P = sp.csr_matrix(A)[states][:, states].tocoo()
     off = (P.row != P.col) & (P.data != 0)
     P = sp.csr_matrix((np.ones(int(off.sum()), np.int8), (P.row[off], P.col[off])),
@@ -174,6 +178,8 @@ def sparse_certificate(system: StructuredSystem, *, seed: int = 0,
     >>> sparse_certificate(cyc).dimension
     3
     """
+    import scipy.sparse as sp
+
     from netctl.graph.components import strongly_connected_components
     from netctl.graph.matching import maximum_matching
     from netctl.numeric.realize import realize

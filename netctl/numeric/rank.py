@@ -33,20 +33,30 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.linalg as la
-import scipy.sparse as sp
 
+from netctl._csr import to_dense
 from netctl.errors import InvalidSystemError, OptionError
 from netctl.system import StructuredSystem
 from netctl.tables import ResultTables
 
-__all__ = ["RankTest", "LostMode", "staircase", "pbh", "staircase_dimension", "DENSE_LIMIT"]
+__all__ = ["RankTest", "LostMode", "staircase", "pbh", "staircase_dimension", "DENSE_LIMIT",
+           "SMALL_STATES"]
 
 DENSE_LIMIT = 5000
 _EPS = float(np.finfo(float).eps)
 #: Largest weight magnitude a dense numeric analysis takes: norms, Gramians and products
 #: square the weights, and a double overflows past about 1.8e308 (IEEE 754).
 MAX_WEIGHT = 1e150
+#: Up to this many states the staircase runs on NumPy's LAPACK alone (``geqrf`` for the
+#: Householder steps, ``gesdd`` for a block's singular values, ``geev`` for the lost
+#: modes), one Householder step a block, and does not import scipy.linalg, whose import
+#: costs more than such a whole run (issue 15; benchmarks/RESULTS.md). Above it, a chain
+#: of blocks of size one is one blocked Hessenberg reduction (scipy's ``gehrd``), and
+#: blocks' SVDs use ``gesvd``. Both are orthogonal reductions of the same form, so they
+#: agree to rounding (tests/numeric/test_rank_small.py); the bound is our choice
+#: (common practice, no source: the per-step loop costs about as much as one blocked
+#: call at this size).
+SMALL_STATES = 64
 
 
 @dataclass(frozen=True)
@@ -156,13 +166,13 @@ def _dense(system: StructuredSystem, limit: int = DENSE_LIMIT) -> tuple[np.ndarr
     too_large = weight_overflow(system)
     if too_large:
         raise InvalidSystemError(too_large)
-    return system.A.toarray(), system.B.toarray()
+    return to_dense(system.pattern("A")), to_dense(system.pattern("B"))
 
 
 def weight_overflow(system: StructuredSystem) -> str | None:
     """Why the weights of ``system`` are too large for a dense numeric analysis (a weight
     beyond :data:`MAX_WEIGHT`), or ``None``."""
-    for M in (system.A, system.B):
+    for M in (system.pattern("A"), system.pattern("B")):
         big = float(np.max(np.abs(M.data))) if M.nnz else 0.0
         if big > MAX_WEIGHT:
             return (f"a weight of magnitude {big:.3g} is beyond what the numeric analyses "
@@ -245,20 +255,29 @@ def staircase_dimension(A: np.ndarray, B: np.ndarray, tol: float
     k0 = 0
     c0 = 0  # first column of the current block (0 while the block is B)
     X = np.asarray(B, dtype=dtype)
+    small = n <= SMALL_STATES
+    if not small:
+        import scipy.linalg as la
     while k0 < n and X.shape[1] > 0:
         if X.shape[1] == 1:
             s = np.array([np.linalg.norm(X)])
+        elif small:
+            U, s, _ = np.linalg.svd(X, full_matrices=False)
         else:
             U, s, _ = la.svd(X, full_matrices=False, lapack_driver="gesvd")
         r = dec.take(s, tol)
         if r == 0:
             break
         basis = X / s[0] if X.shape[1] == 1 else U[:, :r]
-        (qr, tau), _ = la.qr(np.asarray(basis, order="F"), mode="raw")
+        if small:  # NumPy's raw QR is LAPACK's geqrf output, transposed
+            h, tau = np.linalg.qr(basis, mode="raw")
+            qr = h.T
+        else:
+            (qr, tau), _ = la.qr(np.asarray(basis, order="F"), mode="raw")
         _apply_q(qr, tau, A, k0, c0)
         blocks.append(r)
         k0 += r
-        if r == 1 and k0 < n:
+        if r == 1 and k0 < n and not small:
             # the rest of the chain has blocks of size <= 1: a Hessenberg reduction of
             # the trailing part (Q e1 = e1) gives them all at once (blocked LAPACK)
             T = A[k0 - 1:, k0 - 1:]
@@ -304,8 +323,10 @@ def staircase(system: StructuredSystem, *, tol: float | None = None) -> RankTest
     -----
     Only orthogonal transformations are used, so the computed form is exact for a
     nearby system (backward stable) [1]_, unlike the Kalman matrix, whose rank fails
-    already for ``A = diag(1..12), b = 1`` [3]_. Once a block has size one, the rest
-    of the chain is one Hessenberg reduction (blocked LAPACK). Dense, ``O(n^3)`` time,
+    already for ``A = diag(1..12), b = 1`` [3]_. Above :data:`SMALL_STATES` states, once
+    a block has size one, the rest of the chain is one Hessenberg reduction (blocked
+    LAPACK); up to it, one Householder step a block with NumPy's LAPACK (same form, same
+    decisions up to rounding, no scipy import). Dense, ``O(n^3)`` time,
     ``O(n^2)`` memory.
 
     References
@@ -328,13 +349,25 @@ def staircase(system: StructuredSystem, *, tol: float | None = None) -> RankTest
     A, B = _dense(system)
     t = _default_tol(A, B) if tol is None else float(tol)
     dim, blocks, dec, Au = staircase_dimension(A, B, t)
-    ev = la.eigvals(Au) if Au.size else np.zeros(0, complex)
+    ev = _eigvals(Au)
     return RankTest(method="staircase", n_states=system.n_states, dimension=dim,
                     margin=_margin(dec.kept, dec.dropped, t), smallest_kept=dec.kept,
                     largest_dropped=dec.dropped, tolerance=t,
                     blocks=np.asarray(blocks, np.int64), state_names=tuple(system.state_names),
                     uncontrollable_eigenvalues=np.sort_complex(ev),
                     weights=_weights_of(system))
+
+
+def _eigvals(M: np.ndarray) -> np.ndarray:
+    """Eigenvalues of a dense square matrix (LAPACK ``geev``): NumPy's up to
+    :data:`SMALL_STATES` rows (no scipy import), scipy's above; the same routine."""
+    if M.size == 0:
+        return np.zeros(0, complex)
+    if M.shape[0] <= SMALL_STATES:
+        return np.linalg.eigvals(M)
+    import scipy.linalg as la
+
+    return la.eigvals(M)  # type: ignore[no-any-return]
 
 
 def _weights_of(system: StructuredSystem) -> str:
@@ -347,6 +380,7 @@ def eigen_clusters(lam: np.ndarray, radius: float) -> list[np.ndarray]:
     n = lam.size
     if n == 0:
         return []
+    import scipy.sparse as sp
     from scipy.sparse.csgraph import connected_components
 
     if n <= 4000:
@@ -369,6 +403,8 @@ def cluster_subspace(A: np.ndarray, lam: np.ndarray, idx: np.ndarray, radius: fl
                      ) -> tuple[np.ndarray, np.ndarray]:
     """Orthonormal basis ``W`` (n x k) of the left invariant subspace of a cluster and
     ``S`` with ``W^H A = S W^H`` (ordered complex Schur form of ``A^H``)."""
+    import scipy.linalg as la
+
     mu = lam[idx]
 
     def select(z: complex) -> bool:
@@ -448,6 +484,8 @@ def pbh(system: StructuredSystem, *, tol: float | None = None,
     if n == 0:
         return RankTest("pbh", 0, 0, np.inf, np.inf, 0.0, t, np.zeros(0, np.int64),
                         tuple(system.state_names), weights=_weights_of(system))
+    import scipy.linalg as la
+
     lam, VL = la.eig(A, left=True, right=False)
     dec = _Decisions()
     lost: list[LostMode] = []

@@ -15,12 +15,16 @@ coupling adds the diagonal, the swing model doubles the states).
 from __future__ import annotations
 
 from collections.abc import Callable
+from typing import TYPE_CHECKING
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, coo_pattern
 from netctl.errors import OptionError
 from netctl.system import StructuredSystem
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
 
 __all__ = ["PARAMETERIZATIONS", "realize", "is_second_order"]
 
@@ -76,9 +80,19 @@ def _signed(rng: np.random.Generator, k: int) -> np.ndarray:
     return _magnitudes(rng, k) * np.where(rng.random(k) < 0.5, -1.0, 1.0)
 
 
-def _coo(M: sp.csr_array) -> tuple[np.ndarray, np.ndarray]:
-    c = M.tocoo()
-    return c.row.astype(np.int64), c.col.astype(np.int64)
+def _coo(M: sp.csr_array | Pattern) -> tuple[np.ndarray, np.ndarray]:
+    """Row and column of each stored entry of a canonical CSR matrix, in storage order
+    (scipy's ``M.tocoo()``), read from its arrays: no scipy needed."""
+    rows = np.repeat(np.arange(M.shape[0], dtype=np.int64), np.diff(M.indptr))
+    return rows, np.asarray(M.indices, np.int64)
+
+
+def _csr(vals: np.ndarray, rows: np.ndarray, cols: np.ndarray,
+         shape: tuple[int, int]) -> Pattern:
+    """The canonical matrix with ``vals`` at ``(rows, cols)`` (distinct coordinates;
+    scipy's ``csr_array((vals, (rows, cols)))`` as the system stores it), built with
+    NumPy on small inputs (no scipy import; :func:`netctl._csr.coo_pattern`)."""
+    return coo_pattern(rows, cols, vals, (int(shape[0]), int(shape[1])), count=False)[0]
 
 
 def _pair_weights(rows: np.ndarray, cols: np.ndarray, n: int,
@@ -155,7 +169,7 @@ def realize(system: StructuredSystem, *, weights: str = "independent",
     _check(weights)
     rng = np.random.default_rng(seed)
     n = system.n_states
-    A, B = system.A, system.B
+    A, B = system.pattern("A"), system.pattern("B")
     tag = f"{system.model}+{weights}"
     if weights == "given":
         if not system.weighted:
@@ -169,15 +183,15 @@ def realize(system: StructuredSystem, *, weights: str = "independent",
     rows, cols = _coo(A)
     off = rows != cols
     if weights == "independent":
-        Ar = sp.csr_array((_signed(rng, rows.size), (rows, cols)), shape=(n, n))
+        Ar = _csr(_signed(rng, rows.size), rows, cols, (n, n))
         br, bc = _coo(B)
-        Br = sp.csr_array((_signed(rng, br.size), (br, bc)), shape=B.shape)
+        Br = _csr(_signed(rng, br.size), br, bc, B.shape)
         return system._replace(A=Ar, B=Br, weighted=True, model=tag)
     if weights == "symmetric":
         vals = np.empty(rows.size)
         vals[off] = _pair_weights(rows[off], cols[off], n, lambda k: _signed(rng, k))
         vals[~off] = _signed(rng, int(np.count_nonzero(~off)))
-        Ar = sp.csr_array((vals, (rows, cols)), shape=(n, n))
+        Ar = _csr(vals, rows, cols, (n, n))
         return system._replace(A=Ar, weighted=True, model=tag)
     # diffusive coupling: laplacian (random positive) or uniform (all ones)
     r, c = rows[off], cols[off]
@@ -193,13 +207,15 @@ def realize(system: StructuredSystem, *, weights: str = "independent",
     diag = diag - np.where(looped, damping, 0.0)
     keep = diag != 0
     idx = np.flatnonzero(keep)
-    Ar = sp.csr_array((np.concatenate([w, diag[keep]]),
-                       (np.concatenate([r, idx]), np.concatenate([c, idx]))), shape=(n, n))
+    Ar = _csr(np.concatenate([w, diag[keep]]), np.concatenate([r, idx]),
+              np.concatenate([c, idx]), (n, n))
     return system._replace(A=Ar, weighted=True, model=tag)
 
 
 def _swing(system: StructuredSystem, rng: np.random.Generator, tag: str) -> StructuredSystem:
     """Swing realization: from a second-order pattern, or built from a network."""
+    import scipy.sparse as sp
+
     if is_second_order(system):
         names = system.state_names
         node_names = [s[:-4] for s in names if s.endswith(":pos")]
