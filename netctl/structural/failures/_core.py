@@ -8,9 +8,9 @@ elements fail one at a time (or ``k`` at a time) by losing their column.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.graph.components import (
     condensation_sources,
@@ -22,6 +22,9 @@ from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural._engine import stack_AB
 from netctl.structural.robustness.contingency import _dominators
 
+if TYPE_CHECKING:  # imported where used (a small audit needs no scipy)
+    import scipy.sparse as sp
+
 __all__ = ["DesignFacts", "design_facts", "is_controlling", "source_components",
            "dedicated_B", "free_rows_after_loss", "rank_after", "Check"]
 
@@ -31,6 +34,8 @@ def dedicated_B(n: int, states: np.ndarray, kept: sp.csr_array | None = None
     """``n x len(states)`` input matrix, one dedicated input per listed state; with
     ``kept`` (``n x m``), its columns first and the dedicated ones after them. CSR with
     sorted int64 index arrays."""
+    import scipy.sparse as sp
+
     states = np.asarray(states, np.int64)
     B = sp.csr_array((np.ones(states.size), (states, np.arange(states.size))),
                      shape=(n, states.size))

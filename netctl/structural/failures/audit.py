@@ -9,11 +9,11 @@ from __future__ import annotations
 import itertools
 from collections.abc import Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern, take, transpose_pattern
 from netctl.errors import OptionError
 from netctl.graph.dm import alternating_reach_rows
 from netctl.graph.matching import maximum_matching
@@ -25,6 +25,10 @@ from netctl.structural.failures._core import (
     source_components,
 )
 from netctl.system import StructuredSystem
+
+if TYPE_CHECKING:
+    import scipy.sparse as sp
+
 
 __all__ = ["ELEMENT_CLASSES", "KINDS", "DesignAudit", "audit_design"]
 
@@ -247,7 +251,7 @@ def audit_design(system: StructuredSystem, *, kind: str = "inputs",
             or max_trials < 1:
         raise OptionError(f"max_trials must be an integer >= 1, found {max_trials!r}.")
     work = _work_system(system, kind)
-    A, B = work.A, work.B
+    A, B = work.pattern("A"), work.pattern("B")  # stored arrays: no scipy needed
     n, m = work.n_states, work.n_inputs
     facts = design_facts(A, B)
     elem_states = _column_states(B)
@@ -267,14 +271,17 @@ def audit_design(system: StructuredSystem, *, kind: str = "inputs",
                        model=system.model, _facts=facts)
 
 
-def _column_states(B: sp.csr_array) -> tuple[np.ndarray, ...]:
-    Bc = sp.csc_array(B)
-    Bc.sort_indices()
+def _column_states(B: sp.csr_array | Pattern) -> tuple[np.ndarray, ...]:
+    """The sorted states of each column of a canonical CSR ``B`` (its transpose's rows)."""
+    P = B if isinstance(B, Pattern) else Pattern(
+        np.asarray(B.data, np.float64), np.asarray(B.indices, np.int64),
+        np.asarray(B.indptr, np.int64), (int(B.shape[0]), int(B.shape[1])))
+    Bc = transpose_pattern(P)
     return tuple(np.asarray(Bc.indices[Bc.indptr[k]:Bc.indptr[k + 1]], np.int64)
                  for k in range(B.shape[1]))
 
 
-def _classify(A: sp.csr_array, B: sp.csr_array, rest: np.ndarray, max_trials: int
+def _classify(A: Pattern, B: Pattern, rest: np.ndarray, max_trials: int
               ) -> np.ndarray:
     """Useful (1), useless (2) or undecided (3) for the non-critical columns ``rest``."""
     n, m = B.shape
@@ -299,7 +306,7 @@ def _classify(A: sp.csr_array, B: sp.csr_array, rest: np.ndarray, max_trials: in
     return out
 
 
-def _one(A: sp.csr_array, B: sp.csr_array, s: int, touches: list[set[int]],
+def _one(A: Pattern, B: Pattern, s: int, touches: list[set[int]],
          users: dict[int, list[int]], loop: np.ndarray, rank_A: int, max_trials: int) -> int:
     m = B.shape[1]
     budget = max_trials
@@ -307,7 +314,7 @@ def _one(A: sp.csr_array, B: sp.csr_array, s: int, touches: list[set[int]],
     for c in sorted(touches[s]):
         drop = set(users[c]) - {s}
         keep = np.array([k for k in range(m) if k not in drop], np.int64)
-        if is_controlling(A, B[:, keep]).ok:
+        if is_controlling(A, take(B, None, keep)).ok:
             return 1
         budget -= 1
         if budget <= 0:
@@ -338,7 +345,7 @@ def _one(A: sp.csr_array, B: sp.csr_array, s: int, touches: list[set[int]],
             return 3
         budget -= 1
         cols = np.array(sorted(R), np.int64)
-        base = rank_after(A, B[:, cols])
-        if rank_after(A, B[:, np.append(cols, s)]) > base:
+        base = rank_after(A, take(B, None, cols))
+        if rank_after(A, take(B, None, np.append(cols, s))) > base:
             return 1
     return 2

@@ -16,8 +16,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
 
+from netctl._csr import Pattern
 from netctl.structural.failures._core import is_controlling
 from netctl.structural.failures.audit import _work_system
 from netctl.structural.robustness.contingency import contingency_sweep
@@ -123,14 +123,16 @@ class LineLosses:
                              for k in br]}
 
 
-def _without(A: sp.csr_array, links: np.ndarray) -> sp.csr_array:
-    """``A`` without the listed links (positions in CSR order of ``A``)."""
+def _without(A: Pattern, links: np.ndarray) -> Pattern:
+    """``A`` without the listed links (positions in CSR order of ``A``); the kept
+    entries keep their order, so the result is canonical (one pass, no scipy)."""
     keep = np.ones(A.nnz, bool)
     keep[links] = False
-    rows = np.repeat(np.arange(A.shape[0]), np.diff(A.indptr))
-    out = sp.csr_array((A.data[keep], (rows[keep], A.indices[keep])), shape=A.shape)
-    out.sort_indices()
-    return out
+    n = A.shape[0]
+    rows = np.repeat(np.arange(n, dtype=np.int64), np.diff(A.indptr))
+    indptr = np.zeros(n + 1, np.int64)
+    np.cumsum(np.bincount(rows[keep], minlength=n), out=indptr[1:])
+    return Pattern(A.data[keep], A.indices[keep], indptr, A.shape).frozen()
 
 
 def audit_links(system: StructuredSystem, *, kind: str = "inputs") -> LineLosses:
@@ -166,7 +168,7 @@ def audit_links(system: StructuredSystem, *, kind: str = "inputs") -> LineLosses
     groups, labels = line_elements(system)
     # positions refer to system.edges() (sorted by target, then source): the CSR order
     # of A; for the dual the same links appear reversed, so map through (source, target)
-    A, B = work.A, work.B
+    A, B = work.pattern("A"), work.pattern("B")  # stored arrays: no scipy needed
     src, tgt = system.edges()
     if kind == "sensors":
         # position in the dual's CSR order of the reversed link tgt -> src

@@ -8,15 +8,17 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
-import scipy.sparse as sp
 
 from netctl.errors import OptionError
 from netctl.structural.failures._core import is_controlling, source_components
 from netctl.structural.failures.audit import _column_states, _work_system, audit_design
 from netctl.system import StructuredSystem
+
+if TYPE_CHECKING:  # imported where used (a small audit needs no scipy)
+    import scipy.sparse as sp
 
 __all__ = ["FailureCount", "fewest_failures", "FEWEST_MAX_VARIABLES"]
 
@@ -200,6 +202,7 @@ def _rank_milp(A: sp.csr_array, B: sp.csr_array, incumbent: tuple[int, ...] | No
 
     Returns ``(witness or None, proven optimal, lower bound)``; the programme is bounded
     by the incumbent (a cheaper answer is all that matters)."""
+    import scipy.sparse as sp
     from scipy.optimize import Bounds, LinearConstraint, milp
 
     n, m = B.shape
