@@ -55,8 +55,6 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     import numpy as np
 
     from netctl.errors import OptionError
-    from netctl.numeric.energy import energy
-    from netctl.numeric.selection import select_actuators
     from netctl.numeric.realize import PARAMETERIZATIONS, realize
 
     if args.horizon is not None and not args.horizon > 0:
@@ -70,6 +68,10 @@ def _cmd_energy(args: argparse.Namespace) -> int:
     said = wording(system)  # a grid's states in bus words
     refuse_dense(system, what='the controllability Gramian (energy metrics)', file=args.file)
     weights = resolve_weights(args, system)
+    # the Gramians (and scipy.linalg) load once the options and weights are settled
+    from netctl.numeric.energy import energy
+    from netctl.numeric.selection import select_actuators
+
     real = realize(system, weights=weights, seed=args.seed)
     r = energy(real, horizon=args.horizon, precision=args.precision,
                progress=numeric_progress(args, "energy", real.n_states, 4.0))

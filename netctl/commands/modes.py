@@ -48,8 +48,6 @@ def _short(names: list[str], limit: int = 10) -> str:
 
 def _cmd_modes(args: argparse.Namespace) -> int:
     from netctl.errors import OptionError
-    from netctl.numeric.exact import exact_controllability
-    from netctl.numeric.modal import modal_controllability
     from netctl.numeric.realize import PARAMETERIZATIONS, realize
     from netctl.numeric.verdict import MARGIN_DECADES, WEAK_REACH
 
@@ -59,6 +57,10 @@ def _cmd_modes(args: argparse.Namespace) -> int:
     said = wording(system)  # a grid's states in bus words
     refuse_dense(system, what='the modal analysis (all eigenvectors of A)', file=args.file)
     weights = resolve_weights(args, system)
+    # the dense analyses (and scipy.linalg) load once the options and weights are settled
+    from netctl.numeric.exact import exact_controllability
+    from netctl.numeric.modal import modal_controllability
+
     real = realize(system, weights=weights, seed=args.seed)
     tick = numeric_progress(args, "modes", real.n_states, 8.0)
     r = modal_controllability(real, progress=tick)
