@@ -380,10 +380,16 @@ def eigen_clusters(lam: np.ndarray, radius: float) -> list[np.ndarray]:
     n = lam.size
     if n == 0:
         return []
-    import scipy.sparse as sp
-    from scipy.sparse.csgraph import connected_components
+    if n <= SMALL_STATES:  # the same labels without scipy (spectrum._component_labels)
+        from netctl.numeric.spectrum import _component_labels
 
-    if n <= 4000:
+        r, c = np.nonzero(np.abs(lam[:, None] - lam[None, :]) <= radius)
+        labels = _component_labels(r, c, n)
+        k = int(labels.max()) + 1
+    elif n <= 4000:
+        import scipy.sparse as sp
+        from scipy.sparse.csgraph import connected_components
+
         close = np.abs(lam[:, None] - lam[None, :]) <= radius
         k, labels = connected_components(sp.csr_array(close), directed=False)
     else:  # pragma: no cover - large spectra: sort by real part, compare neighbours

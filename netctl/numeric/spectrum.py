@@ -58,6 +58,28 @@ def _radius(k: int, n: int, scale: float) -> float:
     return float((_SAFETY * max(n, 1) * _EPS) ** (1.0 / k) * scale)
 
 
+def _component_labels(rows: np.ndarray, cols: np.ndarray, n: int) -> np.ndarray:
+    """Connected components of the undirected graph with edges ``rows[k] -- cols[k]`` on
+    ``n`` vertices, numbered in order of their smallest vertex (as
+    ``scipy.sparse.csgraph.connected_components`` numbers them). Up to
+    :data:`~netctl.numeric.rank.SMALL_STATES` vertices by netctl's union-find on NumPy
+    arrays (no scipy import), above by scipy's; the same labels."""
+    from netctl.numeric.rank import SMALL_STATES
+
+    if n <= SMALL_STATES:
+        from netctl._csr import coo_pattern
+        from netctl.graph.components import weak_component_labels
+
+        g = coo_pattern(rows, cols, None, (n, n), count=False)[0]
+        return weak_component_labels(g.indptr, g.indices)[1]
+    import scipy.sparse as sp
+    from scipy.sparse.csgraph import connected_components
+
+    g = sp.coo_array((np.ones(rows.size), (rows, cols)), shape=(n, n)).tocsr() if rows.size \
+        else sp.csr_array((n, n))
+    return connected_components(g + sp.eye_array(n, format="csr"), directed=False)[1]
+
+
 def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
                     symmetric: bool = False, progress: Progress | None = None
                     ) -> list[Cluster]:
@@ -93,9 +115,6 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
        perturbation theory for eigenvalues of matrices with arbitrary Jordan structure",
        SIAM J. Matrix Anal. Appl. 18(4):793-817, 1997. doi:10.1137/S0895479895294666
     """
-    from scipy.sparse.csgraph import connected_components
-    import scipy.sparse as sp
-
     A = np.asarray(A)
     n = A.shape[0]
     if n == 0:
@@ -126,9 +145,7 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
             near = np.flatnonzero(di <= _radius(1, n, scale))
             rows.extend([i] * near.size)
             cols.extend(near.tolist())
-    g = sp.coo_array((np.ones(len(rows)), (rows, cols)), shape=(n, n)).tocsr() if rows \
-        else sp.csr_array((n, n))
-    _, labels = connected_components(g + sp.eye_array(n, format="csr"), directed=False)
+    labels = _component_labels(np.asarray(rows, np.int64), np.asarray(cols, np.int64), n)
     tol = _SAFETY * n * _EPS * scale
     out: list[Cluster] = []
     sizes = np.bincount(labels)

@@ -77,3 +77,22 @@ def test_the_small_path_really_is_used_below_the_bound(monkeypatch):
     monkeypatch.setattr(R, "SMALL_STATES", 0)
     with pytest.raises(AssertionError, match="small path"):
         R.staircase(s)
+
+
+@pytest.mark.parametrize("k", range(6))
+def test_eigenvalue_cluster_labels_equal_scipy_connected_components(k):
+    """The clusters of close eigenvalues (Jordan-structure search, PBH clusters) are the
+    connected components of a small graph: on few states netctl's union-find numbers
+    them as scipy.sparse.csgraph.connected_components does (by smallest vertex)."""
+    import scipy.sparse as sp
+    from scipy.sparse.csgraph import connected_components
+
+    from netctl.numeric.spectrum import _component_labels
+
+    rng = np.random.default_rng(k)
+    n = int(rng.integers(1, 40))
+    e = int(rng.integers(0, 2 * n))
+    rows, cols = rng.integers(0, n, e), rng.integers(0, n, e)
+    g = sp.coo_array((np.ones(e), (rows, cols)), shape=(n, n)).tocsr()
+    want = connected_components(g + sp.eye_array(n, format="csr"), directed=False)[1]
+    assert _component_labels(rows, cols, n).tolist() == want.tolist()
