@@ -332,6 +332,62 @@ def test_compare_on_a_small_edge_list_still_answers(tmp_path, capsys):
     al. 2011, SI Sec. IV) of these degrees: no core, a third of the states unmatched
     (worked by hand: every excess degree is 0, so H = 1, w1 = 1, and the unmatched
     fraction is P(0) = 1/3 on each side)."""
+
+
+#: the numeric and failure verbs on the same two-line edge list ({f}): the import of
+#: scipy.sparse and scipy.linalg (through scipy's array-API layer) was most of their run
+#: (issue 15, goal 1; benchmarks/RESULTS.md). ``energy`` and ``modes`` on a file without
+#: weights are refused (exit 2) before any analysis loads.
+NO_SCIPY_NUMERIC = (
+    ["verify", "{f}"], ["verify", "{f}", "--inputs", "a"], ["verify", "{f}", "--inputs", "b"],
+    ["verify", "{f}", "--inputs", "a,b"], ["verify", "{f}", "--weights", "uniform"],
+    ["verify", "{f}", "--weights", "laplacian", "--inputs", "a"],
+    ["verify", "{f}", "--weights", "symmetric"], ["verify", "{f}", "--method", "modular"],
+    ["secure", "{f}", "--inputs", "a"], ["secure", "{f}", "--inputs", "a,b"],
+    ["secure", "{f}", "--outputs", "c"], ["secure", "{f}", "--inputs", "a", "--outputs", "c"],
+    ["energy", "{f}"], ["energy", "{f}", "--inputs", "a"],
+    ["modes", "{f}"], ["modes", "{f}", "--inputs", "a"],
+)
+
+
+def test_numeric_and_failure_verbs_on_a_small_edge_list_load_no_scipy(tmp_path):
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    for argv in NO_SCIPY_NUMERIC:
+        args = [a.format(f=f) for a in argv]
+        assert _scipy_modules_after(args) == [], args
+
+
+#: with weights, the dense Gramian and eigenvector analyses need scipy.linalg (matrix
+#: exponential, Lyapunov and Schur solvers), and nothing more
+WEIGHTED_NUMERIC = (
+    ["energy", "{f}", "--weights", "independent"],
+    ["energy", "{f}", "--weights", "independent", "--inputs", "a"],
+    ["modes", "{f}", "--weights", "independent"],
+    ["modes", "{f}", "--weights", "independent", "--inputs", "a"],
+)
+
+
+def test_weighted_energy_and_modes_on_a_small_edge_list_load_only_scipy_linalg(tmp_path):
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    for argv in WEIGHTED_NUMERIC:
+        args = [a.format(f=f) for a in argv]
+        loaded = _scipy_modules_after(args)
+        assert "scipy.linalg" in loaded, args  # the check can see scipy
+        for never in ("scipy.sparse", "scipy.optimize", "scipy.stats", "scipy.integrate"):
+            assert never not in loaded, (args, never)
+        assert set(loaded_after(run_main(args))).isdisjoint(NOT_FOR_A_VERB + ("numba",)), args
+
+
+def test_the_numeric_verbs_without_scipy_still_answer(tmp_path, capsys):
+    """The same runs give the known answers, so the checks above cannot pass by a verb
+    that stopped early. The path a -> b -> c: driven at a it is controllable (Kalman
+    rank 3 for any nonzero weights: B, AB, A^2B are the three unit directions up to
+    scale), driven at b only b and c are reached (dimension 2; Lin, IEEE TAC
+    19(3):201-208, 1974: a is not input-accessible); its one actuator is a single point
+    of failure (Commault, Dion & Trinh, IEEE TAC 53(6):1554-1559, 2008: losing it loses
+    accessibility of every state). energy and modes refuse a file without weights."""
     from netctl.cli import main
 
     f = tmp_path / "two.txt"
@@ -366,3 +422,29 @@ def test_compare_on_a_small_edge_list_starts_no_worker_machinery(tmp_path):
                        timeout=300, cwd=ROOT)
     assert r.returncode == 0, r.stderr
     assert r.stdout.strip().splitlines()[-1] == "[]"
+
+
+    def run(*argv: str, ok: tuple[int, ...] = (0,)) -> dict:
+        try:
+            main([*argv, "--json"])
+        except SystemExit as exc:
+            assert (exc.code or 0) in ok, argv
+        return json.loads(capsys.readouterr().out)
+
+    v = run("verify", str(f), "--inputs", "a")
+    assert v["agrees"] is True and [s["dimension"] for s in v["samples"]] == [3, 3, 3]
+    v = run("verify", str(f), "--inputs", "b", ok=(1,))
+    assert v["structural_dimension"] == 2 and [s["dimension"] for s in v["samples"]] == [2] * 3
+    s = run("secure", str(f), "--inputs", "a", ok=(1,))
+    assert s["secure"] is False
+    el = s["audits"][0]["elements"]["elements"]
+    assert [(e["states"], e["class"], e["cut_off"]) for e in el] == [(["a"], "critical", 3)]
+    assert s["audits"][0]["fewest_failures"]["value"] == 1
+    for verb in ("energy", "modes"):
+        for extra in ([], ["--inputs", "a"]):
+            try:
+                code = main([verb, str(f), *extra])
+            except SystemExit as exc:
+                code = exc.code
+            assert code == 2, (verb, extra)
+            assert "carries no weights" in capsys.readouterr().err

@@ -69,23 +69,25 @@ def krylov_dimension_mod_p(A: np.ndarray, B: np.ndarray, p: int) -> int:
 def _modular_matrices(system: StructuredSystem, weights: str, rng: np.random.Generator,
                       p: int) -> tuple[np.ndarray, np.ndarray]:
     """Dense integer matrices mod ``p`` of one random realization under ``weights``."""
+    from netctl.numeric.realize import _coo
+
     n = system.n_states
-    coo = system.A.tocoo()
-    rows, cols = coo.row.astype(np.int64), coo.col.astype(np.int64)
+    rows, cols = _coo(system.pattern("A"))  # the stored arrays: no scipy needed
     off = rows != cols
     A = np.zeros((n, n), np.int64)
-    Bc = system.B.tocoo()
-    B = np.zeros(system.B.shape, np.int64)
+    pb = system.pattern("B")
+    b_rows, b_cols = _coo(pb)
+    B = np.zeros(pb.shape, np.int64)
 
     def draw(k: int) -> np.ndarray:
         return rng.integers(1, p, size=k, dtype=np.int64)
 
     if weights == "independent":
         A[rows, cols] = draw(rows.size)
-        B[Bc.row, Bc.col] = draw(Bc.row.size)
+        B[b_rows, b_cols] = draw(b_rows.size)
         return A, B
-    B[Bc.row, Bc.col] = np.round(Bc.data).astype(np.int64) % p if np.allclose(
-        Bc.data, np.round(Bc.data)) else draw(Bc.row.size)
+    B[b_rows, b_cols] = np.round(pb.data).astype(np.int64) % p if np.allclose(
+        pb.data, np.round(pb.data)) else draw(b_rows.size)
     r, c = rows[off], cols[off]
     key_n = max(n, 1)
     uniq, inv = np.unique(np.minimum(r, c) * key_n + np.maximum(r, c), return_inverse=True)
