@@ -332,6 +332,40 @@ def test_compare_on_a_small_edge_list_still_answers(tmp_path, capsys):
     al. 2011, SI Sec. IV) of these degrees: no core, a third of the states unmatched
     (worked by hand: every excess degree is 0, so H = 1, w1 = 1, and the unmatched
     fraction is P(0) = 1/3 on each side)."""
+    from netctl.cli import main
+
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    for extra in ([], ["--null", "swap"], ["--null", "erdos-renyi"], ["--samples", "10"]):
+        try:
+            main(["compare", str(f), "--seed", "3", "--json", *extra])
+        except SystemExit as exc:
+            assert (exc.code or 0) == 0, extra
+        d = json.loads(capsys.readouterr().out)
+        assert d["observed_n_inputs"] == 1
+        if extra == ["--null", "erdos-renyi"]:
+            assert set(d["samples"]) == {1, 2}, d["samples"]
+        else:
+            assert d["samples"] == [1] * (10 if extra == ["--samples", "10"] else 100), extra
+        assert abs(d["predicted_fraction"] - 1 / 3) < 1e-12
+        if extra == ["--null", "erdos-renyi"]:  # the note on the Poisson ensemble ran
+            assert any("Erdős–Rényi ensemble" in note for note in d["notes"]), d["notes"]
+        assert d["prediction"]["core_out"] == 0.0 and d["prediction"]["core_in"] == 0.0
+
+
+def test_compare_on_a_small_edge_list_starts_no_worker_machinery(tmp_path):
+    """The tiny ensemble runs in the calling process, so neither multiprocessing nor
+    concurrent.futures (about 10 ms of imports, sockets included) is loaded."""
+    f = tmp_path / "two.txt"
+    f.write_text("a b\nb c\n")
+    probe = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\n"
+             f"{run_main(['compare', str(f), '--seed', '3'])}\n"
+             "print(sorted(m for m in sys.modules if m.startswith(('multiprocessing', "
+             "'concurrent.futures'))))")
+    r = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                       timeout=300, cwd=ROOT)
+    assert r.returncode == 0, r.stderr
+    assert r.stdout.strip().splitlines()[-1] == "[]"
 
 
 #: the numeric and failure verbs on the same two-line edge list ({f}): the import of
@@ -392,37 +426,6 @@ def test_the_numeric_verbs_without_scipy_still_answer(tmp_path, capsys):
 
     f = tmp_path / "two.txt"
     f.write_text("a b\nb c\n")
-    for extra in ([], ["--null", "swap"], ["--null", "erdos-renyi"], ["--samples", "10"]):
-        try:
-            main(["compare", str(f), "--seed", "3", "--json", *extra])
-        except SystemExit as exc:
-            assert (exc.code or 0) == 0, extra
-        d = json.loads(capsys.readouterr().out)
-        assert d["observed_n_inputs"] == 1
-        if extra == ["--null", "erdos-renyi"]:
-            assert set(d["samples"]) == {1, 2}, d["samples"]
-        else:
-            assert d["samples"] == [1] * (10 if extra == ["--samples", "10"] else 100), extra
-        assert abs(d["predicted_fraction"] - 1 / 3) < 1e-12
-        if extra == ["--null", "erdos-renyi"]:  # the note on the Poisson ensemble ran
-            assert any("Erdős–Rényi ensemble" in note for note in d["notes"]), d["notes"]
-        assert d["prediction"]["core_out"] == 0.0 and d["prediction"]["core_in"] == 0.0
-
-
-def test_compare_on_a_small_edge_list_starts_no_worker_machinery(tmp_path):
-    """The tiny ensemble runs in the calling process, so neither multiprocessing nor
-    concurrent.futures (about 10 ms of imports, sockets included) is loaded."""
-    f = tmp_path / "two.txt"
-    f.write_text("a b\nb c\n")
-    probe = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\n"
-             f"{run_main(['compare', str(f), '--seed', '3'])}\n"
-             "print(sorted(m for m in sys.modules if m.startswith(('multiprocessing', "
-             "'concurrent.futures'))))")
-    r = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
-                       timeout=300, cwd=ROOT)
-    assert r.returncode == 0, r.stderr
-    assert r.stdout.strip().splitlines()[-1] == "[]"
-
 
     def run(*argv: str, ok: tuple[int, ...] = (0,)) -> dict:
         try:
