@@ -451,3 +451,16 @@ def test_the_numeric_verbs_without_scipy_still_answer(tmp_path, capsys):
                 code = exc.code
             assert code == 2, (verb, extra)
             assert "carries no weights" in capsys.readouterr().err
+
+
+def test_the_erdos_renyi_curve_loads_no_scipy_stats(tmp_path):
+    """The Erdős–Rényi curve's prediction takes its Poisson degrees from netctl's port
+    (equal to scipy.stats bit for bit, tests/test_ensemble_small_paths.py); scipy.stats
+    is left to the scale-free mixture. The answer is the curve itself, checked in
+    tests/test_curves.py against the published values."""
+    out = tmp_path / "c.json"
+    argv = ["curve", "--family", "erdos-renyi", "--mean-degrees", "2,4", "--nodes", "200",
+            "--samples", "1", "--json", "--out", str(out)]
+    assert _modules_after(argv, ("scipy.stats",)) == []
+    rows = json.loads(out.read_text(encoding="utf-8"))
+    assert rows  # the run got to the end
