@@ -27,35 +27,18 @@ from __future__ import annotations
 
 import argparse
 import os
-import platform
-import statistics
-import subprocess
 import sys
 import tempfile
-import time
 from pathlib import Path
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from _two_trees import check_trees, machine_line, in_turn  # noqa: E402  (run as a script)
 
 ROOT = Path(__file__).resolve().parents[1]
 
 
-def run_once(argv: list[str], env: dict[str, str], cwd: str) -> tuple[float, float]:
-    """Wall and CPU seconds of one whole process and the children it waited for (its
-    output thrown away). ``cwd`` must hold no ``netctl`` folder."""
-    t0 = time.perf_counter()
-    proc = subprocess.Popen(argv, env=env, cwd=cwd, stdout=subprocess.DEVNULL,
-                            stderr=subprocess.DEVNULL)
-    _, status, usage = os.wait4(proc.pid, 0)
-    wall = time.perf_counter() - t0
-    code = os.waitstatus_to_exitcode(status)
-    if code not in (0, 1):
-        raise SystemExit(f"{' '.join(argv)} exited with {code}")
-    return wall, usage.ru_utime + usage.ru_stime
 
 
-def env_for(tree: str) -> dict[str, str]:
-    env = dict(os.environ)
-    env["PYTHONPATH"] = tree
-    return env
 
 
 def main() -> None:
@@ -68,16 +51,11 @@ def main() -> None:
                     help="null-model samples on the large file (default 20)")
     ap.add_argument("--only-large", action="store_true", help="skip the 2-line cases")
     args = ap.parse_args()
-    py = sys.executable
     with tempfile.TemporaryDirectory() as d:
         two = os.path.join(d, "two.csv")
         with open(two, "w") as fh:
             fh.write("a,b\nb,c\n")
-        for tree in (args.before, args.after):  # each side must import its own tree
-            where = subprocess.run([py, "-c", "import netctl; print(netctl.__file__)"],
-                                   env=env_for(tree), cwd=d, capture_output=True, text=True)
-            if not where.stdout.startswith(os.path.abspath(tree)):
-                raise SystemExit(f"{tree}: netctl comes from {where.stdout.strip()!r}")
+        check_trees((args.before, args.after), d)  # each side must import its own tree
         verb = ["-m", "netctl.cli", "compare"]
         cases: dict[str, list[str]] = {}
         if not args.only_large:
@@ -92,24 +70,11 @@ def main() -> None:
             big = os.path.abspath(args.large)
             cases[f"compare {os.path.basename(big)}"] = [
                 *verb, big, "--seed", "1", "--samples", str(args.large_samples)]
-        print(f"# {platform.node()} {platform.processor() or platform.machine()}, "
-              f"{os.cpu_count()} CPUs, Python {platform.python_version()}, "
-              f"{time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}, "
-              f"load average {' '.join(f'{x:.2f}' for x in os.getloadavg())}")
+        print(machine_line())
         print(f"{'command':30}{'before wall':>12}{'after wall':>12}{'before cpu':>12}"
               f"{'after cpu':>12}{'ratio wall':>12}{'ratio cpu':>11}")
         for name, tail in cases.items():
-            rows: dict[str, list[tuple[float, float]]] = {"before": [], "after": []}
-            for k in range(args.runs + 1):  # the first pair warms caches
-                pair = {side: run_once([py, *tail], env_for(tree), d)
-                        for side, tree in (("before", args.before), ("after", args.after))}
-                if k:
-                    for side in rows:
-                        rows[side].append(pair[side])
-            med = {s: (statistics.median(w for w, _ in r), statistics.median(c for _, c in r))
-                   for s, r in rows.items()}
-            rw = statistics.median(a[0] / b[0] for a, b in zip(rows["after"], rows["before"]))
-            rc = statistics.median(a[1] / b[1] for a, b in zip(rows["after"], rows["before"]))
+            med, rw, rc = in_turn(tail, args.before, args.after, d, args.runs)
             print(f"{name:30}{med['before'][0]:12.3f}{med['after'][0]:12.3f}"
                   f"{med['before'][1]:12.3f}{med['after'][1]:12.3f}{rw:12.3f}{rc:11.3f}",
                   flush=True)

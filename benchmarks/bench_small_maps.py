@@ -33,45 +33,19 @@ import tempfile
 import time
 from pathlib import Path
 
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from _two_trees import run_once, env_for, check_trees, in_turn  # noqa: E402  (run as a script)
+
 ROOT = Path(__file__).resolve().parents[1]
 
 
-def run_once(argv: list[str], env: dict[str, str], cwd: str,
-             ok: tuple[int, ...] = (0, 1)) -> tuple[float, float]:
-    """Wall and CPU seconds of one whole process (its output thrown away)."""
-    t0 = time.perf_counter()
-    proc = subprocess.Popen(argv, env=env, cwd=cwd, stdout=subprocess.DEVNULL,
-                            stderr=subprocess.DEVNULL)
-    _, status, usage = os.wait4(proc.pid, 0)
-    wall = time.perf_counter() - t0
-    code = os.waitstatus_to_exitcode(status)
-    if code not in ok:
-        raise SystemExit(f"{' '.join(argv)} exited with {code}")
-    return wall, usage.ru_utime + usage.ru_stime
 
 
-def env_for(tree: str | None) -> dict[str, str]:
-    env = dict(os.environ)
-    if tree is None:
-        env.pop("PYTHONPATH", None)
-    else:
-        env["PYTHONPATH"] = tree
-    return env
 
 
 def pairs(name: str, tail: list[str], trees: dict[str, str], d: str, runs: int,
           ok: tuple[int, ...] = (0, 1)) -> None:
-    py = sys.executable
-    rows: dict[str, list[tuple[float, float]]] = {"before": [], "after": []}
-    for k in range(runs + 1):  # the first pair warms the file cache
-        got = {side: run_once([py, *tail], env_for(tree), d, ok) for side, tree in trees.items()}
-        if k:
-            for side in rows:
-                rows[side].append(got[side])
-    med = {s: (statistics.median(w for w, _ in r), statistics.median(c for _, c in r))
-           for s, r in rows.items()}
-    rw = statistics.median(a[0] / b[0] for a, b in zip(rows["after"], rows["before"]))
-    rc = statistics.median(a[1] / b[1] for a, b in zip(rows["after"], rows["before"]))
+    med, rw, rc = in_turn(tail, trees["before"], trees["after"], d, runs, ok=ok)
     print(f"| {name} | {med['before'][0]:.3f} | {med['after'][0]:.3f} | "
           f"{med['before'][1]:.3f} | {med['after'][1]:.3f} | {rw:.2f} | {rc:.2f} |",
           flush=True)
@@ -94,11 +68,7 @@ def main() -> None:
     trees = {"before": args.before, "after": args.after}
     py = sys.executable
     with tempfile.TemporaryDirectory() as d:
-        for tree in trees.values():  # each side must import its own tree
-            where = subprocess.run([py, "-c", "import netctl; print(netctl.__file__)"],
-                                   env=env_for(tree), cwd=d, capture_output=True, text=True)
-            if not where.stdout.startswith(os.path.abspath(tree)):
-                raise SystemExit(f"{tree}: netctl comes from {where.stdout.strip()!r}")
+        check_trees(trees.values(), d)  # each side must import its own tree
         print(f"# {platform.machine()}, {os.cpu_count()} CPUs, Python "
               f"{platform.python_version()}, {time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}"
               f", load average {os.getloadavg()[0]:.2f}")

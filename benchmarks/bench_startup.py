@@ -25,36 +25,19 @@ import argparse
 import os
 import platform
 import statistics
-import subprocess
 import sys
 import tempfile
 import time
 from pathlib import Path
 
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from _two_trees import run_once, env_for, check_trees, in_turn  # noqa: E402  (run as a script)
+
 ROOT = Path(__file__).resolve().parents[1]
 
 
-def run_once(argv: list[str], env: dict[str, str], cwd: str) -> tuple[float, float]:
-    """Wall and CPU seconds of one whole process (its output thrown away). ``cwd`` must
-    hold no ``netctl`` folder: ``-c`` and ``-m`` put it first on the path."""
-    t0 = time.perf_counter()
-    proc = subprocess.Popen(argv, env=env, cwd=cwd, stdout=subprocess.DEVNULL,
-                            stderr=subprocess.DEVNULL)
-    _, status, usage = os.wait4(proc.pid, 0)
-    wall = time.perf_counter() - t0
-    proc.returncode = os.waitstatus_to_exitcode(status)
-    if proc.returncode not in (0, 1):
-        raise SystemExit(f"{' '.join(argv)} exited with {proc.returncode}")
-    return wall, usage.ru_utime + usage.ru_stime
 
 
-def env_for(tree: str | None) -> dict[str, str]:
-    env = dict(os.environ)
-    if tree is None:
-        env.pop("PYTHONPATH", None)
-    else:
-        env["PYTHONPATH"] = tree
-    return env
 
 
 def main() -> None:
@@ -68,11 +51,7 @@ def main() -> None:
         two = os.path.join(d, "two.csv")
         with open(two, "w") as fh:
             fh.write("a,b\nb,c\n")
-        for tree in (args.before, args.after):  # each side must import its own tree
-            where = subprocess.run([py, "-c", "import netctl; print(netctl.__file__)"],
-                                   env=env_for(tree), cwd=d, capture_output=True, text=True)
-            if not where.stdout.startswith(os.path.abspath(tree)):
-                raise SystemExit(f"{tree}: netctl comes from {where.stdout.strip()!r}")
+        check_trees((args.before, args.after), d)  # each side must import its own tree
         cases = {
             "import netctl": ["-c", "import netctl"],
             "netctl --help": ["-m", "netctl.cli", "--help"],
@@ -88,17 +67,7 @@ def main() -> None:
         print(f"{'command':32}{'before wall':>12}{'after wall':>12}{'before cpu':>12}"
               f"{'after cpu':>12}{'ratio wall':>12}{'ratio cpu':>11}")
         for name, tail in cases.items():
-            rows = {"before": [], "after": []}
-            for k in range(args.runs + 1):  # the first pair warms the file cache
-                pair = {side: run_once([py, *tail], env_for(tree), d)
-                        for side, tree in (("before", args.before), ("after", args.after))}
-                if k:
-                    for side in rows:
-                        rows[side].append(pair[side])
-            med = {s: (statistics.median(w for w, _ in r), statistics.median(c for _, c in r))
-                   for s, r in rows.items()}
-            rw = statistics.median(a[0] / b[0] for a, b in zip(rows["after"], rows["before"]))
-            rc = statistics.median(a[1] / b[1] for a, b in zip(rows["after"], rows["before"]))
+            med, rw, rc = in_turn(tail, args.before, args.after, d, args.runs)
             print(f"{name:32}{med['before'][0]:12.3f}{med['after'][0]:12.3f}"
                   f"{med['before'][1]:12.3f}{med['after'][1]:12.3f}{rw:12.3f}{rc:11.3f}")
         floor = [run_once([py, "-c", "import numpy, scipy.sparse, numba"], env_for(None), d)
