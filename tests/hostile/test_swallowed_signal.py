@@ -66,6 +66,25 @@ def test_handlers_are_put_back(tmp_path, monkeypatch):
     assert (signal.getsignal(signal.SIGINT), signal.getsignal(signal.SIGTERM)) == before
 
 
+
+def _ends_cleanly(probe: str, tmp_path, sig, code) -> None:
+    """Run ``probe`` (a script that reads g.csv through netctl's command line and sends
+    ``sig`` from a place that swallows exceptions): the run must end as interrupted with
+    ``code``, print no traceback, and leave no output file."""
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[2]
+    (tmp_path / "g.csv").write_text("a,b\nb,c\n")
+    r = subprocess.run([sys.executable, "-c", probe.format(root=str(root), sig=int(sig))],
+                       cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert r.returncode == code, r.stderr
+    assert "Traceback" not in r.stderr and "Exception ignored" not in r.stderr, r.stderr
+    assert ("terminated" if sig == signal.SIGTERM else "interrupted") in r.stderr
+    assert sorted(os.listdir(tmp_path)) == ["g.csv"]
+
+
 # A signal that lands while compiled code has called back into Python: numba's first compile
 # of a kernel hands the object code to a Python callback of llvmlite's (to write its cache).
 # An exception raised there cannot unwind the compiled caller; Python prints it with a
@@ -100,18 +119,7 @@ sys.exit(cli.main(["convert", "g.csv", "out.json"]))
 @pytest.mark.parametrize("sig, code", [(signal.SIGTERM, 143), (signal.SIGINT, 130)])
 def test_signal_inside_a_compiled_callback_ends_the_run_without_a_traceback(
         tmp_path, sig, code):
-    import subprocess
-    import sys
-    from pathlib import Path
-
-    root = Path(__file__).resolve().parents[2]
-    (tmp_path / "g.csv").write_text("a,b\nb,c\n")
-    r = subprocess.run([sys.executable, "-c", _CALLBACK_PROBE.format(root=str(root), sig=int(sig))],
-                       cwd=tmp_path, capture_output=True, text=True, timeout=120)
-    assert r.returncode == code, r.stderr
-    assert "Traceback" not in r.stderr and "Exception ignored" not in r.stderr, r.stderr
-    assert ("terminated" if sig == signal.SIGTERM else "interrupted") in r.stderr
-    assert sorted(os.listdir(tmp_path)) == ["g.csv"]
+    _ends_cleanly(_CALLBACK_PROBE, tmp_path, sig, code)
 
 
 def test_a_signal_deferred_then_outrun_leaves_no_alarm_behind(tmp_path, monkeypatch):
@@ -181,18 +189,7 @@ sys.exit(cli.main(["convert", "g.csv", "out.json"]))
 
 @pytest.mark.parametrize("sig, code", [(signal.SIGTERM, 143), (signal.SIGINT, 130)])
 def test_signal_inside_a_destructor_ends_the_run_without_a_traceback(tmp_path, sig, code):
-    import subprocess
-    import sys
-    from pathlib import Path
-
-    root = Path(__file__).resolve().parents[2]
-    (tmp_path / "g.csv").write_text("a,b\nb,c\n")
-    r = subprocess.run([sys.executable, "-c",
-                        _DESTRUCTOR_PROBE.format(root=str(root), sig=int(sig))],
-                       cwd=tmp_path, capture_output=True, text=True, timeout=120)
-    assert r.returncode == code, r.stderr
-    assert "Traceback" not in r.stderr and "Exception ignored" not in r.stderr, r.stderr
-    assert sorted(os.listdir(tmp_path)) == ["g.csv"]
+    _ends_cleanly(_DESTRUCTOR_PROBE, tmp_path, sig, code)
 
 
 # And inside a weak-reference callback of the import system: importlib frees a module's
@@ -228,15 +225,4 @@ sys.exit(cli.main(["convert", "g.csv", "out.json"]))
 @pytest.mark.parametrize("sig, code", [(signal.SIGTERM, 143), (signal.SIGINT, 130)])
 def test_signal_inside_an_import_callback_ends_the_run_without_a_traceback(
         tmp_path, sig, code):
-    import subprocess
-    import sys
-    from pathlib import Path
-
-    root = Path(__file__).resolve().parents[2]
-    (tmp_path / "g.csv").write_text("a,b\nb,c\n")
-    r = subprocess.run([sys.executable, "-c",
-                        _WEAKREF_PROBE.format(root=str(root), sig=int(sig))],
-                       cwd=tmp_path, capture_output=True, text=True, timeout=120)
-    assert r.returncode == code, r.stderr
-    assert "Traceback" not in r.stderr and "Exception ignored" not in r.stderr, r.stderr
-    assert sorted(os.listdir(tmp_path)) == ["g.csv"]
+    _ends_cleanly(_WEAKREF_PROBE, tmp_path, sig, code)
