@@ -45,6 +45,19 @@ def run_main(argv: list[str]) -> str:
             f"    try:\n        main({argv!r})\n    except SystemExit:\n        pass")
 
 
+
+def _json_answer(capsys, *argv: str, ok: tuple[int, ...] = (0,)) -> dict:
+    """The --json answer of ``netctl *argv`` run in this process (exit status in ``ok``)."""
+    from netctl.cli import main
+
+    try:
+        code = main([*argv, "--json"])
+    except SystemExit as exc:
+        code = exc.code or 0
+    assert (code or 0) in ok, (argv, code)
+    return json.loads(capsys.readouterr().out)
+
+
 def test_import_netctl_loads_no_heavy_module():
     assert loaded_after("import netctl") == []
 
@@ -181,18 +194,13 @@ def test_the_more_verbs_without_scipy_still_answer(tmp_path, capsys):
     forces b and b forces c (zero forcing, Monshizadeh, Zhang & Camlibel, IEEE TAC
     59(9):2562-2567 (2014)); a is in every minimum driver set (control capacity 1, Jia
     & Barabási, Sci. Rep. 3:2354 (2013)); losing a -> b cuts b and c off the input."""
-    from netctl.cli import main
     from netctl.io import read
 
     f = tmp_path / "two.txt"
     f.write_text("a b\nb c\n")
 
     def run(*argv: str, ok: tuple[int, ...] = (0,)) -> dict:
-        try:
-            main([*argv, "--json"])
-        except SystemExit as exc:
-            assert (exc.code or 0) in ok, argv
-        return json.loads(capsys.readouterr().out)
+        return _json_answer(capsys, *argv, ok=ok)
 
     assert run("strong", str(f), "--inputs", "a")["strongly_controllable"] is True
     assert run("strong", str(f))["drivers"] == ["a"]
@@ -428,11 +436,7 @@ def test_the_numeric_verbs_without_scipy_still_answer(tmp_path, capsys):
     f.write_text("a b\nb c\n")
 
     def run(*argv: str, ok: tuple[int, ...] = (0,)) -> dict:
-        try:
-            main([*argv, "--json"])
-        except SystemExit as exc:
-            assert (exc.code or 0) in ok, argv
-        return json.loads(capsys.readouterr().out)
+        return _json_answer(capsys, *argv, ok=ok)
 
     v = run("verify", str(f), "--inputs", "a")
     assert v["agrees"] is True and [s["dimension"] for s in v["samples"]] == [3, 3, 3]
