@@ -184,6 +184,29 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
     return system
 
 
+#: Up to this many links, a duplicate-link warning names the first repeated link (one
+#: sort of the links, only when there are duplicates; above it the count alone).
+NAME_REPEAT_UP_TO = 2_000_000
+
+
+def _first_repeat(e: EdgeArrays) -> str:
+    """``"; the first repeat: 'a' -> 'b'"`` for the earliest link of the file that repeats
+    an earlier one (links of weight 0 left out, as the build leaves them), or ``""``."""
+    keep = slice(None) if e.weights is None else np.flatnonzero(e.weights != 0)
+    src, dst = e.sources[keep], e.targets[keep]
+    if src.size > NAME_REPEAT_UP_TO:
+        return ""
+    keys = dst.astype(np.int64) * max(len(e.names), 1) + src
+    _, first = np.unique(keys, return_index=True)
+    repeat = np.ones(keys.size, bool)
+    repeat[first] = False
+    at = np.flatnonzero(repeat)
+    if not at.size:
+        return ""
+    i = int(at[0])
+    return f"; the first repeat: {e.names[int(src[i])]!r} -> {e.names[int(dst[i])]!r}"
+
+
 def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
                         nodes: dict[str, np.ndarray] | None = None) -> StructuredSystem:
     src, dst, w = e.sources, e.targets, e.weights
@@ -204,8 +227,8 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
     A = Pattern(data, indices, indptr, (n, n))
     if n_dup:
         warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
-                      "merged" + (" (weights summed)" if w is not None else "") + ".",
-                      stacklevel=3)
+                      "merged" + (" (weights summed)" if w is not None else "")
+                      + _first_repeat(e) + ".", stacklevel=3)
     if cancelled:
         warnings.warn(f"{path}: {cancelled} link{'s' if cancelled > 1 else ''} whose "
                       "duplicate weights sum to 0 were left out.", stacklevel=3)

@@ -158,6 +158,39 @@ def test_duplicates_merged_with_count(tmp_path):
     assert s.A[1, 0] == 3.5 and s.n_links == 2
 
 
+def _first_repeat_by_hand(text: str) -> tuple[str, str] | None:
+    """The earliest line whose (source, target) appeared on an earlier line: a plain scan
+    of the text with a set, links of weight 0 skipped (they are not links)."""
+    seen = set()
+    for line in text.splitlines():
+        cells = line.split()
+        if len(cells) > 2 and float(cells[2]) == 0:
+            continue
+        if tuple(cells[:2]) in seen:
+            return cells[0], cells[1]
+        seen.add(tuple(cells[:2]))
+    return None
+
+
+@pytest.mark.parametrize("text", [
+    "a b 1\na b 2\nb c 1\na b 0.5\n",
+    "a b\nb c\nc a\nb c\na b\n",
+    "a b 0\nb c 1\na b 1\nc a 1\nb c 2\n",  # the 0-weight a b is no link: b c repeats
+    "x y\ny x\nx y\n",
+])
+def test_duplicate_warning_names_the_first_repeat(tmp_path, text):
+    import warnings
+
+    p = write(tmp_path, text)
+    a, b = _first_repeat_by_hand(text)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        read_edgelist(p)
+    said = [str(w.message) for w in caught if "duplicate link" in str(w.message)]
+    assert len(said) == 1 and said[0].endswith(f"; the first repeat: {a!r} -> {b!r}."), (
+        [str(w.message) for w in caught])
+
+
 def test_zero_weights_warned_and_left_out(tmp_path):
     p = write(tmp_path, "a b 1\nb c 0\nc a 0.0\n")
     with pytest.warns(UserWarning, match=r"2 links with weight 0 are not a link and were "
