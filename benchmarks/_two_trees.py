@@ -10,6 +10,7 @@ bench_small_maps.py and bench_small_numeric.py (run as scripts from any folder).
 
 from __future__ import annotations
 
+import argparse
 import os
 import platform
 import statistics
@@ -18,9 +19,19 @@ import sys
 import time
 from collections.abc import Iterable
 
-__all__ = ["run_once", "env_for", "check_trees", "machine_line", "in_turn"]
+__all__ = ["run_once", "env_for", "check_trees", "machine_line", "in_turn", "tree_options"]
 
 Times = tuple[float, float]
+
+#: this checkout: the default tree measured
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+
+
+def tree_options(ap: argparse.ArgumentParser, runs: int) -> None:
+    """The options every two-tree benchmark takes: --before, --after, --runs."""
+    ap.add_argument("--before", required=True, help="source tree of the baseline (a checkout)")
+    ap.add_argument("--after", default=ROOT, help="source tree measured (default: this one)")
+    ap.add_argument("--runs", type=int, default=runs, help=f"pairs per command (default {runs})")
 
 
 def run_once(argv: list[str], env: dict[str, str], cwd: str,

@@ -29,23 +29,15 @@ import argparse
 import os
 import sys
 import tempfile
-from pathlib import Path
 
-sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from _two_trees import check_trees, machine_line, in_turn  # noqa: E402  (run as a script)
-
-ROOT = Path(__file__).resolve().parents[1]
-
-
-
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
+from _two_trees import check_trees, in_turn, machine_line, tree_options  # noqa: E402
 
 
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--before", required=True, help="source tree of the baseline (a checkout)")
-    ap.add_argument("--after", default=str(ROOT), help="source tree measured (default: this one)")
-    ap.add_argument("--runs", type=int, default=5, help="pairs per command (default 5)")
+    tree_options(ap, 5)
     ap.add_argument("--large", help="a large network file for the spot check")
     ap.add_argument("--large-samples", type=int, default=20,
                     help="null-model samples on the large file (default 20)")

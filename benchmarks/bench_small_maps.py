@@ -31,15 +31,9 @@ import subprocess
 import sys
 import tempfile
 import time
-from pathlib import Path
 
-sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from _two_trees import run_once, env_for, check_trees, in_turn  # noqa: E402  (run as a script)
-
-ROOT = Path(__file__).resolve().parents[1]
-
-
-
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
+from _two_trees import check_trees, env_for, in_turn, run_once, tree_options  # noqa: E402
 
 
 
@@ -59,9 +53,7 @@ def floor(name: str, code: str, d: str, runs: int) -> None:
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--before", required=True, help="source tree of the baseline")
-    ap.add_argument("--after", default=str(ROOT), help="source tree measured (default: this)")
-    ap.add_argument("--runs", type=int, default=5, help="pairs per command (default 5)")
+    tree_options(ap, 5)
     ap.add_argument("--large", type=int, default=0, metavar="N",
                     help="map a generated network of N states instead")
     args = ap.parse_args()

@@ -29,23 +29,15 @@ import subprocess
 import sys
 import tempfile
 import time
-from pathlib import Path
 
-sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from _two_trees import env_for, check_trees, in_turn  # noqa: E402  (run as a script)
-
-ROOT = Path(__file__).resolve().parents[1]
-
-
-
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
+from _two_trees import check_trees, env_for, in_turn, tree_options  # noqa: E402
 
 
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--before", required=True, help="source tree of the baseline (a checkout)")
-    ap.add_argument("--after", default=str(ROOT), help="source tree measured (default: this one)")
-    ap.add_argument("--runs", type=int, default=7, help="pairs per command (default 7)")
+    tree_options(ap, 7)
     ap.add_argument("--warmup", type=int, default=1, metavar="K",
                     help="pairs run first and not counted (default 1; 0 for the long large runs)")
     ap.add_argument("--only", default="", metavar="WORD",
