@@ -6,7 +6,6 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.linalg as la
 
 from netctl.numeric._tasks import Progress, announce
 from netctl.numeric.rank import _dense, _weights_of, cluster_subspace, eigen_clusters
@@ -148,6 +147,8 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
     >>> [round(m.reach, 6) for m in modal_controllability(s).modes]
     [0.707107, 0.707107]
     """
+    import scipy.linalg as la  # left eigenvectors (LAPACK geev); loaded only when used
+
     A, B = _dense(system)
     n, m = B.shape
     nrm = max(1.0, float(np.linalg.norm(A)))

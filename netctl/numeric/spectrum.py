@@ -16,7 +16,6 @@ from fractions import Fraction
 from typing import Any
 
 import numpy as np
-import scipy.linalg as la
 
 from netctl.numeric._tasks import Progress
 
@@ -115,6 +114,9 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
        perturbation theory for eigenvalues of matrices with arbitrary Jordan structure",
        SIAM J. Matrix Anal. Appl. 18(4):793-817, 1997. doi:10.1137/S0895479895294666
     """
+    import scipy.linalg as la  # here, not at import: reports and checks that need no
+    # clusters load no scipy.linalg (issue 15)
+
     A = np.asarray(A)
     n = A.shape[0]
     if n == 0:
