@@ -314,7 +314,8 @@ def _labels(ax: Axes, pos: np.ndarray, names: Sequence[str], radius_pt: float) -
         t.set_gid(GID_PREFIX + "label")
 
 
-def _default_title(system: StructuredSystem, marks: MapMarks, how: str) -> str:
+def _default_title(system: StructuredSystem, marks: MapMarks, how: str,
+                   width: int = 88) -> str:
     n = system.n_states
     design = {"minimum": "a minimum input design (one of possibly many)",
               "given": "the inputs in the file", "chosen": "the chosen inputs"}[marks.design]
@@ -330,7 +331,8 @@ def _default_title(system: StructuredSystem, marks: MapMarks, how: str) -> str:
     first = (f"{n} states, {system.n_links} link{'' if system.n_links == 1 else 's'}, model {marks.model}: {marks.n_inputs} "
              f"input(s) on {marks.drivers.size} driver node(s) from {design}")
     # wrapped to the map's width, so a long title never runs under the legend
-    return "\n".join(textwrap.wrap(first, 88) + textwrap.wrap(f"{verdict}; {placed}", 88))
+    return "\n".join(textwrap.wrap(first, width)
+                     + textwrap.wrap(f"{verdict}; {placed}", width))
 
 
 def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,

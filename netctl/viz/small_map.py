@@ -27,6 +27,7 @@ from __future__ import annotations
 import hashlib
 import html
 import re
+import textwrap
 import warnings
 from collections.abc import Sequence
 from typing import Any
@@ -36,8 +37,8 @@ import numpy as np
 from netctl.viz.small_marks import Lines, Rows, change_view, result_lines, result_marks
 from netctl.viz.style import INK, MARKS, PAPER, Mark
 
-__all__ = ["SMALL_MAP_HEADS", "SMALL_MAP_LINKS", "SMALL_MAP_STATES", "result_map_html",
-           "result_marks"]
+__all__ = ["SMALL_MAP_HEADS", "SMALL_MAP_LINKS", "SMALL_MAP_STATES", "marks_map_svg",
+           "result_map_html", "result_marks"]
 
 #: Above this many states the notebook view gives counts instead of a map.
 SMALL_MAP_STATES = 2000
@@ -51,6 +52,8 @@ _LABELS_UP_TO = 40
 #: Width of the drawing area (px); the height follows the aspect of the positions.
 _WIDTH = 440.0
 _PAD = 16.0
+#: Longest line of a title (characters, at 11 px: the drawing's width); longer ones wrap.
+_TITLE_CHARS = 74
 #: Room (px) kept right of the map for the names of small maps.
 _LABEL_ROOM = 90.0
 _CACHE_ATTR = "_netctl_map_cache"
@@ -63,8 +66,13 @@ _POINT_ORDER = ("role_critical", "role_intermittent", "role_redundant", "disturb
                 "unreached", "dilation", "bottleneck", "costly", "fragile", "candidate",
                 "candidate_sensor", "removed_state", "former_driver", "driver", "sensor",
                 "suggested", "suggested_sensor")
-#: Drawing order of highlighted links (later on top).
-_LINE_ORDER = ("critical_link", "costly_link", "fragile_link", "removed_link", "added_link")
+#: Drawing order of highlighted links (later on top); control paths and cycles (the
+#: matched links of a map's design) over critical links, as on the static maps.
+_LINE_ORDER = ("critical_link", "chain", "cycle", "costly_link", "fragile_link",
+               "removed_link", "added_link")
+#: Up to this many states, self-loops are drawn (a small ring beside the state), as on
+#: the static maps.
+_LOOPS_UP_TO = 500
 
 
 def _text(value: object) -> str:
@@ -209,14 +217,52 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
     return _draw(system, rows, lines, pos, how, max_links, max_heads)
 
 
+def marks_map_svg(system: Any, rows: Rows, lines: Lines, positions: np.ndarray, *,
+                  how: str = "given", title: str = "", max_links: int = SMALL_MAP_LINKS,
+                  max_heads: int = SMALL_MAP_HEADS) -> str:
+    """The small SVG map of ``system`` with the given marks at the given positions.
+
+    For a page that has already worked out what to mark and where the states sit (the
+    report's static map: :func:`netctl.viz.small_marks.map_view` of its
+    :class:`~netctl.viz.MapMarks`, at its placement), drawn like
+    :func:`result_map_html` and with no matplotlib.
+
+    Parameters
+    ----------
+    system : StructuredSystem
+    rows : list of (mark, legend text, state indices)
+        Point marks (:data:`netctl.viz.small_marks.Rows`).
+    lines : list of (mark, legend text, sources, targets)
+        Highlighted links (:data:`netctl.viz.small_marks.Lines`), e.g. ``chain`` and
+        ``cycle`` (control paths and cycles).
+    positions : ndarray, shape (n, 2)
+        ``x`` to the right, ``y`` up.
+    how : str
+        Where the positions came from (``"coordinates"``, ``"coordinates+fr"``, or a
+        layout), said below the legend.
+    title : str
+        Written above the map (escaped; its lines kept, each wrapped at 74 characters).
+
+    Returns
+    -------
+    str
+        An ``<svg>`` element (well-formed XML, no script), whatever the size: the caller
+        decides up to how many states an inline map is worth it
+        (:data:`SMALL_MAP_STATES`).
+    """
+    pos = np.asarray(positions, dtype=np.float64).reshape(int(system.n_states), 2)
+    return _draw(system, rows, lines, pos, how, max_links, max_heads, title=title)
+
+
 def _segments(px: np.ndarray, py: np.ndarray, u: np.ndarray, v: np.ndarray) -> str:
     return "".join(f"M{px[i]:.1f} {py[i]:.1f}L{px[j]:.1f} {py[j]:.1f}"
                    for i, j in zip(u.tolist(), v.tolist()) if i != j)
 
 
 def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
-          max_links: int, max_heads: int) -> str:
+          max_links: int, max_heads: int, *, title: str = "") -> str:
     n = int(system.n_states)
+    heading = [w for t in title.splitlines() for w in textwrap.wrap(t, _TITLE_CHARS)]
     # fit into the drawing box, y up (as on a map), aspect kept
     if n:
         lo, hi = pos.min(axis=0), pos.max(axis=0)
@@ -229,7 +275,8 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
     inner_h = min(max(float(span[1]) * scale, 2 * _PAD), 1.5 * _WIDTH - 2 * _PAD)
     if span[1] * scale > inner_h:  # very tall: fit the height instead
         scale = inner_h / float(span[1])
-    top = _PAD + (_PAD if with_labels else 0.0)  # room for the names above the top states
+    # room for the title, and for the names above the top states
+    top = _PAD + (_PAD if with_labels else 0.0) + 13.0 * len(heading)
     height = inner_h + top + _PAD
     px = _PAD + (pos[:, 0] - lo[0]) * scale + (inner_w - span[0] * scale) / 2
     py = top + (hi[1] - pos[:, 1]) * scale + (inner_h - span[1] * scale) / 2
@@ -302,6 +349,29 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
                          f'stroke-opacity="0.8" stroke-linecap="round"{dash}/>')
             legend_keys.append((key, label))
 
+    # self-loops (self-dynamics): a ring around the state, as on the static maps; a
+    # matched self-loop is a control cycle of one state
+    loop_at = np.unique(system.edges()[0][~keep]).astype(np.int64)
+    if loop_at.size and links_drawn and n <= _LOOPS_UP_TO:
+        on_cycle = np.zeros(n, bool)
+        for key, _, s, t in lines:
+            if key == "cycle":
+                on_cycle[np.asarray(s, np.int64)[np.asarray(s) == np.asarray(t)]] = True
+        for key, sel in (("link", ~on_cycle[loop_at]), ("cycle", on_cycle[loop_at])):
+            if not sel.any():
+                continue
+            mk = MARKS[key]
+            rings = "".join(f'<circle cx="{px[i]:.1f}" cy="{py[i]:.1f}" r="{2 * r0:.1f}">'
+                            f"<title>{_text(names[i])} \u2014 self-loop</title></circle>"
+                            for i in loop_at[sel].tolist())
+            parts.append(f'<g class="{"self_loops" if key == "link" else "cycle_loops"}" '
+                         f'fill="none" stroke="{mk.edge}" stroke-width="'
+                         f'{max(mk.linewidth * 0.8, 0.8):.1f}"{_DASH.get(mk.linestyle, "")}>'
+                         f"{rings}</g>")
+        legend_keys.append(("self_loop", f"self-loop (self-dynamics) ({loop_at.size:,})"))
+    elif loop_at.size:
+        links_note += f"; {loop_at.size:,} self-loops not drawn"
+
     # plain states, then the marks in the static maps' order
     st = MARKS["state"]
     circles = []
@@ -337,8 +407,11 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
     rows_svg = []
     y = height + 6.0
     for key, label in legend_keys:
-        mk = MARKS[key]
-        if mk.marker is None:
+        mk = MARKS["link" if key == "self_loop" else key]
+        if key == "self_loop":
+            sample = (f'<circle cx="{_PAD:.1f}" cy="{y + 6:.1f}" r="5" fill="none" '
+                      f'stroke="{mk.edge}" stroke-width="0.8"/>')
+        elif mk.marker is None:
             dash = _DASH.get(mk.linestyle, "")
             sample = (f'<path d="M{_PAD - 6:.1f} {y + 6:.1f}H{_PAD + 6:.1f}" '
                       f'stroke="{mk.edge}" stroke-width="2.5"{dash}/>')
@@ -357,6 +430,11 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
     parts.append(f'<g class="legend" font-size="10" fill="{INK}" '
                  f'font-family="sans-serif">{"".join(rows_svg)}</g>')
     total_h = y + 4.0
+    if heading:
+        parts.insert(0, f'<g class="title" font-size="11" fill="{INK}" '
+                        'font-family="sans-serif">' + "".join(
+                            f'<text x="{_PAD - 6:.1f}" y="{_PAD + 13.0 * k:.1f}">'
+                            f"{_text(t)}</text>" for k, t in enumerate(heading)) + "</g>")
     return (f'<svg xmlns="http://www.w3.org/2000/svg" class="netctl-small-map" '
             f'width="{_WIDTH:.0f}" height="{total_h:.0f}" '
             f'viewBox="0 0 {_WIDTH:.0f} {total_h:.0f}" role="img" '

@@ -3,7 +3,8 @@
 :func:`result_marks` gives the point marks (states) and :func:`result_lines` the
 highlighted links of a result computed on one system; :func:`change_view` gives the
 system, marks and links of a before/after comparison (:func:`netctl.what_if`), drawn on
-the union of the two networks. The marks are those of :mod:`netctl.viz.style`; the
+the union of the two networks; :func:`map_view` gives those of a network map's
+:class:`~netctl.viz.MapMarks` (the report's static map). The marks are those of :mod:`netctl.viz.style`; the
 drawing is :mod:`netctl.viz.small_map`.
 """
 
@@ -15,7 +16,7 @@ import numpy as np
 
 from netctl.viz.style import MARKS
 
-__all__ = ["Lines", "Rows", "change_view", "result_lines", "result_marks"]
+__all__ = ["Lines", "Rows", "change_view", "map_view", "result_lines", "result_marks"]
 
 #: ``(mark, legend text, sorted state indices)`` rows.
 Rows = list[tuple[str, str, np.ndarray]]
@@ -221,3 +222,43 @@ def change_view(result: Any) -> tuple[Any, Rows, Lines]:
             t = np.array([pos[str(v)] for _, v in links], np.int64)
             lines.append((key, MARKS[key].label, s, t))
     return union, rows, lines
+
+
+def map_view(marks: Any) -> tuple[Rows, Lines]:
+    """What the static map of :func:`netctl.viz.draw_map` marks, as the small map's
+    point marks and highlighted links.
+
+    ``marks`` is a :class:`~netctl.viz.MapMarks`. Point marks: the states a disturbance
+    acts on, unreached states, the dilation, the single points of failure, the driver
+    nodes and where to add inputs, and the node roles when the map has them and they
+    differ; links: critical links (when asked for), then the control paths (``chain``)
+    and control cycles (``cycle``: its self-loops are drawn as rings) of the matching.
+    """
+    rows: Rows = []
+
+    def add(key: str, idx: Any) -> None:
+        arr = np.unique(np.asarray(idx, np.int64))
+        if arr.size:
+            rows.append((key, MARKS[key].label, arr))
+
+    for key, field in (("disturbed", "disturbed"), ("unreached", "unreached"),
+                       ("dilation", "dilation"), ("fragile", "fragile"),
+                       ("driver", "drivers"), ("suggested", "suggested")):
+        add(key, getattr(marks, field))
+    roles = marks.roles
+    if roles is not None and np.unique(roles).size > 1:  # one role everywhere says nothing
+        for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
+            add(key, np.flatnonzero(np.asarray(roles) == k))
+    lines: Lines = []
+    if marks.critical_sources is not None and marks.critical_targets is not None \
+            and len(marks.critical_sources):
+        lines.append(("critical_link", MARKS["critical_link"].label,
+                      np.asarray(marks.critical_sources, np.int64),
+                      np.asarray(marks.critical_targets, np.int64)))
+    src = np.asarray(marks.matched_sources, np.int64)
+    dst = np.asarray(marks.matched_targets, np.int64)
+    cyc = np.asarray(marks.on_cycle, bool)
+    for key, sel in (("chain", ~cyc), ("cycle", cyc)):
+        if sel.any():
+            lines.append((key, MARKS[key].label, src[sel], dst[sel]))
+    return rows, lines

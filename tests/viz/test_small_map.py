@@ -211,3 +211,16 @@ def test_the_system_is_not_part_of_the_result(loop):
     assert len(pickle.dumps(kept)) == len(pickle.dumps(bare))
     # the wrapped public function still pickles by name (the executor sends it)
     assert pickle.loads(pickle.dumps(netctl.minimum_inputs)) is netctl.minimum_inputs
+
+
+def test_self_loops_are_drawn_as_rings():
+    """Self-dynamics are part of the model (DESIGN.md): the notebook map draws each
+    self-loop as a ring around its state, as the static maps do, and names it in the
+    legend; none is dropped silently."""
+    s = StructuredSystem.from_named_edges(["a", "a", "b", "c"], ["a", "b", "c", "c"])
+    svg = _svg(result_map_html(netctl.minimum_inputs(s), s))
+    rings = [c for g in svg.iter(f"{SVG}g") if g.get("class") == "self_loops" for c in g]
+    assert sorted(_title(c) for c in rings) == ["a \u2014 self-loop", "c \u2014 self-loop"]
+    legend = svg.find(f"{SVG}g[@class='legend']")
+    assert any((t.text or "").startswith("self-loop (self-dynamics) (2)")
+               for t in legend.iter(f"{SVG}text"))
