@@ -225,9 +225,13 @@ NOT_FOR_A_SMALL_MAP = ("scipy", "scipy.sparse", "igraph", "matplotlib", "matplot
 #: a drawn figure needs matplotlib's figure and a canvas, never pyplot nor igraph
 NOT_FOR_A_FIGURE = ("scipy", "scipy.sparse", "igraph", "matplotlib.pyplot", "networkx",
                     "numba", "pandas")
-#: the HTML report draws its figures with matplotlib (and its numeric section samples
-#: weights with scipy), but needs neither pyplot nor igraph
+#: a report needs neither pyplot nor igraph; a Markdown report draws its figures with
+#: matplotlib (PNG), an HTML report of a small system draws them as its own inline SVG
 NOT_FOR_A_SMALL_REPORT = ("igraph", "matplotlib.pyplot", "networkx", "numba", "pandas")
+#: the HTML report of the two-line file: its figures are netctl's own inline SVG (no
+#: matplotlib), and its numeric section and the weakest modes (skipped: no weights) load
+#: no scipy.linalg (issue 15, goal 1)
+NOT_FOR_A_SMALL_HTML_REPORT = NOT_FOR_A_SMALL_MAP + ("scipy.linalg", "PIL")
 
 
 def _modules_after(argv: list[str], watch: tuple[str, ...]) -> list[str]:
@@ -272,9 +276,23 @@ def test_small_figure_map_loads_no_pyplot_igraph_or_scipy(tmp_path, suffix):
 def test_small_report_loads_no_pyplot_or_igraph(tmp_path):
     f = tmp_path / "two.csv"
     f.write_text("a,b\nb,c\n")
-    out = tmp_path / "r.html"
+    out = tmp_path / "r.md"
     assert _modules_after(["report", str(f), "--out", str(out)], NOT_FOR_A_SMALL_REPORT) == []
     assert "data:image/png;base64," in out.read_text(encoding="utf-8")  # figures drawn
+
+
+def test_small_html_report_loads_no_matplotlib_and_no_scipy(tmp_path):
+    """The HTML report of a small system draws its map and roles chart as inline SVG of
+    its own, so neither matplotlib nor scipy is loaded; the figures are there all the
+    same (two SVG figures, no PNG)."""
+    f = tmp_path / "two.csv"
+    f.write_text("a,b\nb,c\n")
+    out = tmp_path / "r.html"
+    loaded = _modules_after(["report", str(f), "--out", str(out)],
+                            NOT_FOR_A_SMALL_HTML_REPORT)
+    assert loaded == []
+    text = out.read_text(encoding="utf-8")
+    assert text.count("<svg") == 2 and "data:image/png" not in text
 
 
 def test_a_json_report_draws_nothing(tmp_path):

@@ -52,7 +52,9 @@ def _cmd_report(args: argparse.Namespace) -> int:
             inputs = system.names_of(parse_names(system, args.inputs))
     report = build_report(system, inputs=inputs, source=args.file, seed=args.seed,
                           progress=progress, weights=args.weights,
-                          figures=fmt != "json")  # JSON leaves figures out
+                          # JSON leaves figures out; HTML draws netctl's own SVG where
+                          # it can (no plotting library), Markdown needs the PNG
+                          figures={"json": False, "html": "svg", "markdown": "png"}[fmt])
     with progress.step(f"writing {args.out}"):
         # a grid's states in a planner's words for people (HTML, Markdown); JSON keeps
         # the state names

@@ -19,7 +19,13 @@ from typing import Any
 from netctl.errors import NetctlError, OptionError
 from netctl.report.document import Block, Report, Section
 from netctl.report.progress import Progress
-from netctl.report.sections import OPTIONAL, SECTIONS, ReportContext, SectionBuilder
+from netctl.report.sections import (
+    FIGURES,
+    OPTIONAL,
+    SECTIONS,
+    ReportContext,
+    SectionBuilder,
+)
 from netctl.system import StructuredSystem
 
 __all__ = ["REPORT_FORMATS", "Block", "Progress", "Report", "ReportContext", "SECTIONS",
@@ -33,7 +39,7 @@ REPORT_FORMATS: dict[str, str] = {".html": "html", ".htm": "html", ".md": "markd
 def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = "",
                  sections: Sequence[SectionBuilder] | None = None, seed: int = 0,
                  progress: Progress | None = None, weights: str | None = None,
-                 figures: bool = True) -> Report:
+                 figures: bool | str = True) -> Report:
     r"""Analyse ``system`` and assemble a report.
 
     Parameters
@@ -54,10 +60,15 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
         second-order model, ``independent`` otherwise.
     progress : Progress, optional
         Announces each section on a terminal.
-    figures : bool
-        Draw the figures (PNG). ``False`` for a report kept only as JSON, which leaves
-        figures out: the sections and their data are the same, and matplotlib is not
-        loaded.
+    figures : {True, False, "svg", "png"}
+        Which figures to draw. ``True``: every kind, so the report renders well in any
+        format (PNG for Markdown; and for HTML inline SVG drawn by netctl where a
+        section has one: the map up to :data:`netctl.viz.small_map.SMALL_MAP_STATES`
+        states and the roles chart). ``"svg"``: for an HTML report only: the inline SVG
+        where a section has one and PNG elsewhere, so a small report loads no plotting
+        library. ``"png"``: PNG only. ``False``: no figure, for a report kept only as
+        JSON, which leaves figures out: the sections and their data are the same, and
+        matplotlib is not loaded.
 
     Returns
     -------
@@ -82,6 +93,9 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
     from netctl._meta import __version__
 
     builders = list(SECTIONS if sections is None else sections)
+    if not any(figures is f or (isinstance(f, str) and figures == f) for f in FIGURES):
+        raise OptionError(f"figures must be one of {', '.join(map(repr, FIGURES))}, found "
+                          f"{figures!r}.")
     idx = None
     if inputs is not None:
         if isinstance(inputs, str):

@@ -1,9 +1,11 @@
 """A report as plain data (sections of blocks) and its three renderings.
 
 HTML and Markdown are self-contained: no script, no style sheet, font or image is
-fetched from anywhere (figures are PNG data URIs; the interactive map's renderer and data
-are inline), and every piece of text that can come from an input file is escaped. JSON
-carries the sections' data, not the figures.
+fetched from anywhere (figures are inline SVG written by netctl where a block has one,
+else PNG data URIs; the interactive map's renderer and data are inline), and every piece
+of text that can come from an input file is escaped. Markdown shows a figure's PNG where
+the block has one (common Markdown renderers pass PNG data URIs but drop SVG ones), else
+its SVG as a data URI. JSON carries the sections' data, not the figures.
 """
 
 from __future__ import annotations
@@ -32,10 +34,13 @@ class Block:
 
     ``para``: ``text``. ``items``: ``rows`` (list of str), optional ``more`` (how many
     were left out). ``table``: ``header`` and ``rows`` (lists of cells). ``figure``:
-    ``png`` (bytes) and ``text`` (the caption). ``note``: ``text``, shown set apart.
-    ``map``: ``html``, an interactive map fragment built by
+    ``png`` (bytes) and/or ``svg`` (an ``<svg>`` element drawn by netctl: well-formed
+    XML, no script, names escaped) and ``text`` (the caption); HTML shows the SVG when
+    there is one, Markdown the PNG. ``note``: ``text``, shown set apart. ``map``:
+    ``html``, an interactive map fragment built by
     :func:`netctl.viz.interactive.map_fragment` (its names are already escaped inside
-    JSON), and ``png``/``text``, the static figure shown where HTML is not rendered.
+    JSON), and ``png``/``svg``/``text``, the static figure shown where HTML is not
+    rendered.
     """
 
     kind: str
@@ -45,6 +50,7 @@ class Block:
     png: bytes = b""
     more: int = 0
     html: str = ""
+    svg: str = ""
 
 
 def para(text: str) -> Block:
@@ -74,9 +80,10 @@ def table(header: Sequence[str], rows: Sequence[Sequence[Any]], *, limit: int = 
                  more=total - min(len(rows), limit))
 
 
-def figure(png: bytes, caption: str) -> Block:
-    """A PNG figure (embedded as a data URI) with its caption."""
-    return Block("figure", png=png, text=caption)
+def figure(png: bytes, caption: str, *, svg: str = "") -> Block:
+    """A figure with its caption: a PNG (embedded as a data URI) and/or an inline
+    ``<svg>`` element drawn by netctl (HTML shows the SVG, Markdown the PNG)."""
+    return Block("figure", png=png, text=caption, svg=svg)
 
 
 def _cell(c: Any) -> str:
@@ -157,7 +164,8 @@ class Report:
 
     # ------------------------------------------------------------------ HTML
     def to_html(self) -> str:
-        """One self-contained HTML5 page (inline style, figures as data URIs)."""
+        """One self-contained HTML5 page (inline style; figures as inline SVG or PNG
+        data URIs)."""
         e = _esc
         out = ["<!DOCTYPE html>", '<html lang="en">', "<head>", '<meta charset="utf-8">',
                '<meta name="viewport" content="width=device-width, initial-scale=1">',
@@ -216,7 +224,8 @@ _CSS = (
     "th,td{border:1px solid #bdbdbd;padding:.25em .6em;text-align:left;vertical-align:top;"
     "overflow-wrap:anywhere}th{background:#efefef}"
     "td.num{text-align:right;font-variant-numeric:tabular-nums}"
-    "figure{margin:1em 0}figure img{max-width:100%;height:auto;border:1px solid #e0e0e0}"
+    "figure{margin:1em 0}figure img,figure svg{max-width:100%;height:auto;"
+    "border:1px solid #e0e0e0}"
     "figcaption{font-size:.9em;color:#444;margin-top:.3em}"
     ".note{border-left:4px solid #262626;background:#f4f4f4;padding:.5em .9em;margin:.8em 0}"
     ".verdict{font-weight:600;padding:.4em .8em;border:2px solid;display:inline-block}"
@@ -262,15 +271,28 @@ def _html_block(b: Block) -> str:
                 if b.more > 0 else "")
         return f"<table><thead><tr>{head}</tr></thead><tbody>{rows}</tbody></table>{more}"
     if b.kind == "figure":
-        data = base64.b64encode(b.png).decode("ascii")
-        return (f'<figure><img alt="{e(b.text)}" src="data:image/png;base64,{data}">'
-                f"<figcaption>{e(b.text)}</figcaption></figure>")
+        return f"<figure>{_html_picture(b)}<figcaption>{e(b.text)}</figcaption></figure>"
     if b.kind == "map":
-        data = base64.b64encode(b.png).decode("ascii")
         return (f"{b.html}<details><summary>static figure (for print)</summary><figure>"
-                f'<img alt="{e(b.text)}" src="data:image/png;base64,{data}">'
-                f"<figcaption>{e(b.text)}</figcaption></figure></details>")
+                f"{_html_picture(b)}<figcaption>{e(b.text)}</figcaption></figure></details>")
     raise ValueError(f"unknown block kind {b.kind!r}; expected one of {BLOCK_KINDS}")
+
+
+def _html_picture(b: Block) -> str:
+    """The figure itself: the inline SVG when the block has one, else the PNG."""
+    if b.svg:
+        return b.svg
+    data = base64.b64encode(b.png).decode("ascii")
+    return f'<img alt="{_esc(b.text)}" src="data:image/png;base64,{data}">'
+
+
+def _md_picture(b: Block) -> str:
+    """The figure as a Markdown image: the PNG when the block has one (the data URIs
+    common renderers pass), else the SVG as a data URI (no figure is lost)."""
+    if b.png or not b.svg:
+        return f"data:image/png;base64,{base64.b64encode(b.png).decode('ascii')}"
+    svg = base64.b64encode(b.svg.encode("utf-8")).decode("ascii")
+    return f"data:image/svg+xml;base64,{svg}"
 
 
 _MD_SPECIAL = re.compile(r"([\\`*_{}\[\]()#+\-.!|~>])")
@@ -300,12 +322,8 @@ def _md_block(b: Block) -> list[str]:
         if b.more > 0:
             out.append(f"\n*… and {b.more} more rows (the JSON report lists all)*")
         return out
-    if b.kind == "figure":
-        data = base64.b64encode(b.png).decode("ascii")
-        return [f"![{m(b.text)}](data:image/png;base64,{data})", "", f"*{m(b.text)}*"]
-    if b.kind == "map":  # Markdown renderers drop scripts: the static figure only
-        data = base64.b64encode(b.png).decode("ascii")
-        return [f"![{m(b.text)}](data:image/png;base64,{data})", "", f"*{m(b.text)}*"]
+    if b.kind in ("figure", "map"):  # a map: renderers drop scripts, the static figure
+        return [f"![{m(b.text)}]({_md_picture(b)})", "", f"*{m(b.text)}*"]
     raise ValueError(f"unknown block kind {b.kind!r}; expected one of {BLOCK_KINDS}")
 
 

@@ -25,7 +25,8 @@ __all__ = ["SECTIONS", "ReportContext", "SectionBuilder", "cautions_section",
            "numeric_section",
            "robustness_section", "roles_section", "strong_section", "summary_section"]
 
-#: Up to this many states the report draws the map.
+#: Up to this many states the report draws the map (up to
+#: :data:`netctl.viz.small_map.SMALL_MAP_STATES` as inline SVG in HTML, as PNG above).
 MAP_LIMIT = 200_000
 #: Up to this many states the report runs the attack curves (one matching per step).
 ATTACK_LIMIT = 50_000
@@ -43,6 +44,9 @@ NULL_FEWER_ABOVE = 5_000
 NULL_SAMPLES_LARGE = 10
 #: Names listed per list (the JSON report lists all).
 LIST_LIMIT = 200
+#: What ``figures`` may be: every kind (PNG, and inline SVG where netctl draws one),
+#: none, PNG only, or inline SVG where netctl draws one and PNG elsewhere.
+FIGURES: tuple[bool | str, ...] = (True, False, "png", "svg")
 
 
 @dataclass
@@ -60,7 +64,7 @@ class ReportContext:
     seed: int = 0
     dpi: float = 110.0
     weights: str | None = None
-    figures: bool = True  # False: no PNG drawn (a JSON report leaves figures out)
+    figures: bool | str = True  # see FIGURES; False: none (a JSON report leaves them out)
     missing: list[str] = field(default_factory=list)
     _cache: dict[str, Any] = field(default_factory=dict)
 
@@ -68,6 +72,16 @@ class ReportContext:
         if key not in self._cache:
             self._cache[key] = make()
         return self._cache[key]
+
+    @property
+    def svg(self) -> bool:
+        """Draw the inline SVG figures (where a section has one)."""
+        return self.figures is True or self.figures == "svg"
+
+    def png(self, svg_drawn: bool = False) -> bool:
+        """Draw a PNG figure: asked for, or the SVG that was wanted could not be drawn."""
+        return (self.figures is True or self.figures == "png"
+                or (self.figures == "svg" and not svg_drawn))
 
     @property
     def design_kind(self) -> str:
@@ -203,9 +217,9 @@ def map_section(ctx: ReportContext) -> Section | None:
                                            "netctl map."),))
     from netctl.viz import map_marks
     from netctl.viz.interactive import map_fragment, map_payload
-    from netctl.viz.network import _default_title, map_figure
-    from netctl.viz.output import figure_bytes
+    from netctl.viz.network import _default_title
     from netctl.viz.placement import map_placement
+    from netctl.viz.small_map import SMALL_MAP_STATES
 
     inputs: Any = None
     if ctx.inputs is not None:
@@ -214,8 +228,21 @@ def map_section(ctx: ReportContext) -> Section | None:
     placement = map_placement(ctx.system, seed=ctx.seed)
     how = placement.how
     title = _default_title(ctx.system, marks, how)
-    png = (figure_bytes(map_figure(ctx.system, marks, positions=placement.xy, title=title),
-                        "png", dpi=ctx.dpi) if ctx.figures else b"")
+    svg = ""
+    if ctx.svg and n <= SMALL_MAP_STATES:  # our own SVG: no plotting library loaded
+        from netctl.viz.small_map import marks_map_svg
+        from netctl.viz.small_marks import map_view
+
+        rows, lines = map_view(marks)
+        svg = marks_map_svg(ctx.system, rows, lines, placement.xy, how=how,
+                            title=_default_title(ctx.system, marks, how, width=72))
+    png = b""
+    if ctx.png(svg_drawn=bool(svg)):
+        from netctl.viz.network import map_figure
+        from netctl.viz.output import figure_bytes
+
+        png = figure_bytes(map_figure(ctx.system, marks, positions=placement.xy,
+                                      title=title), "png", dpi=ctx.dpi)
     caption = (f"Map of {ctx.design_words()}; {placement.note()}. Triangles: driver nodes; "
                "heavy solid lines: control paths; heavy dashed lines: control cycles; "
                "hatched squares: states no input reaches; hollow diamonds: a dilation; "
@@ -227,7 +254,7 @@ def map_section(ctx: ReportContext) -> Section | None:
     intro = para("Drag to pan, use the wheel to zoom, find a state by name, click a state "
                  "for its role, the input that reaches it and its control path, and switch "
                  "layers on and off in the legend.")
-    return Section("map", "Map", (intro, Block("map", text=caption, png=png,
+    return Section("map", "Map", (intro, Block("map", text=caption, png=png, svg=svg,
                                                html=fragment)),
                    data={"layout": how, "design": marks.design,
                          "drivers": marks.names(marks.drivers),
@@ -267,7 +294,16 @@ def roles_section(ctx: ReportContext) -> Section | None:
     nr = ctx.cached("node_roles", lambda: node_roles(ctx.system))
     lr = ctx.cached("link_roles", lambda: link_roles(ctx.system))
     nc, lc = nr.counts(), lr.counts()
-    png = _roles_png(ctx, nc, lc) if ctx.figures else b""
+    svg = ""
+    if ctx.svg:  # two bars whatever the size: always our own SVG when it is wanted
+        from netctl.viz.role_bars import role_bars_svg
+
+        svg = role_bars_svg({
+            "states": (("critical", "intermittent", "redundant"),
+                       (nc["critical"], nc["intermittent"], nc["redundant"])),
+            "links": (("critical", "ordinary", "redundant"),
+                      (lc["critical"], lc["ordinary"], lc["redundant"]))})
+    png = _roles_png(ctx, nc, lc) if ctx.png(svg_drawn=bool(svg)) else b""
     crit_links = [f"{u} -> {v}" for u, v in lr.link_names(lr.critical[:LIST_LIMIT])]
     blocks = [
         para("A state is critical if it is a driver node in every minimum driver set, "
@@ -278,7 +314,7 @@ def roles_section(ctx: ReportContext) -> Section | None:
               [("states", nc["critical"], nc["intermittent"], nc["redundant"]),
                ("links", lc["critical"], lc["ordinary"], lc["redundant"])]),
         figure(png, "Shares of state and link roles (dark: critical; dotted: intermittent "
-                    "or ordinary; white: redundant)."),
+                    "or ordinary; white: redundant).", svg=svg),
         para(f"Critical states ({nc['critical']}): every minimum design drives them."),
         items(nr.names(nr.critical[:LIST_LIMIT]), total=nc["critical"]),
         para(f"Critical links ({lc['critical']}): losing one raises the minimum number of "
@@ -458,8 +494,6 @@ def numeric_section(ctx: ReportContext) -> Section | None:
 
 def modes_section(ctx: ReportContext) -> Section | None:
     """The weakest modes for the file's own weights (``netctl.numeric.modal``)."""
-    from netctl.numeric.modal import modal_controllability
-
     system = ctx.actuated()
     n = system.n_states
     if not system.weighted or n == 0:
@@ -468,6 +502,11 @@ def modes_section(ctx: ReportContext) -> Section | None:
         ctx.missing.append(f"weakest modes (over {NUMERIC_DENSE_LIMIT} states; run "
                            "netctl modes)")
         return None
+    # imported once the section has something to compute: its scipy.linalg costs more
+    # than the rest of a small report (issue 15); still before the work, so a missing
+    # module leaves the section out as before
+    from netctl.numeric.modal import modal_controllability
+
     r = ctx.cached("modes", lambda: modal_controllability(system))
     lam = np.array([m.eigenvalue for m in r.modes], dtype=np.complex128)
     reach = np.array([m.reach for m in r.modes], dtype=np.float64)
