@@ -25,8 +25,9 @@ __all__ = ["SECTIONS", "ReportContext", "SectionBuilder", "cautions_section",
            "numeric_section",
            "robustness_section", "roles_section", "strong_section", "summary_section"]
 
-#: Up to this many states the report draws the map (up to
-#: :data:`netctl.viz.small_map.SMALL_MAP_STATES` as inline SVG in HTML, as PNG above).
+#: Up to this many states the report draws the map (as inline SVG in HTML up to
+#: :data:`netctl.viz.small_map.SMALL_MAP_STATES` states and
+#: :data:`~netctl.viz.small_map.SMALL_MAP_LINKS` links, as PNG above).
 MAP_LIMIT = 200_000
 #: Up to this many states the report runs the attack curves (one matching per step).
 ATTACK_LIMIT = 50_000
@@ -219,7 +220,7 @@ def map_section(ctx: ReportContext) -> Section | None:
     from netctl.viz.interactive import map_fragment, map_payload
     from netctl.viz.network import _default_title
     from netctl.viz.placement import map_placement
-    from netctl.viz.small_map import SMALL_MAP_STATES
+    from netctl.viz.small_map import SMALL_MAP_LINKS, SMALL_MAP_STATES
 
     inputs: Any = None
     if ctx.inputs is not None:
@@ -229,7 +230,9 @@ def map_section(ctx: ReportContext) -> Section | None:
     how = placement.how
     title = _default_title(ctx.system, marks, how)
     svg = ""
-    if ctx.svg and n <= SMALL_MAP_STATES:  # our own SVG: no plotting library loaded
+    # our own SVG (no plotting library loaded) where it shows everything the PNG does:
+    # up to SMALL_MAP_STATES states and SMALL_MAP_LINKS links (above, it leaves links out)
+    if ctx.svg and n <= SMALL_MAP_STATES and ctx.system.n_links <= SMALL_MAP_LINKS:
         from netctl.viz.small_map import marks_map_svg
         from netctl.viz.small_marks import map_view
 

@@ -127,6 +127,10 @@ def test_above_the_inline_limit_the_map_keeps_its_png(monkeypatch):
     monkeypatch.setattr(small_map, "SMALL_MAP_STATES", 6)
     block = build_report(s, figures="svg", sections=[map_section]).section("map").blocks[-1]
     assert block.svg.startswith("<svg") and block.png == b""
+    # above SMALL_MAP_LINKS the small map would leave the links out: the PNG instead
+    monkeypatch.setattr(small_map, "SMALL_MAP_LINKS", 4)
+    block = build_report(s, figures="svg", sections=[map_section]).section("map").blocks[-1]
+    assert block.svg == "" and block.png.startswith(b"\x89PNG\r\n\x1a\n")
 
 
 def test_markdown_keeps_the_png_and_loses_no_figure():
