@@ -251,7 +251,7 @@ def map_section(ctx: ReportContext) -> Section | None:
                "hatched squares: states no input reaches; hollow diamonds: a dilation; "
                "dashed hollow triangles: where to add inputs; violet octagon rings: "
                "single points of failure; dotted circles: where a disturbance acts. The "
-               "legend beside the map explains every mark.")
+               "map's legend explains every mark.")
     fragment = map_fragment(map_payload(ctx.system, marks, placement, title=title),
                             element_id="netctl-report-map")
     intro = para("Drag to pan, use the wheel to zoom, find a state by name, click a state "
