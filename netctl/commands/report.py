@@ -50,11 +50,12 @@ def _cmd_report(args: argparse.Namespace) -> int:
         inputs = None
         if args.inputs is not None:
             inputs = system.names_of(parse_names(system, args.inputs))
+    # JSON leaves figures out; HTML draws netctl's own SVG where it can (no plotting
+    # library), Markdown needs the PNG
+    kinds: dict[str, bool | str] = {"json": False, "html": "svg", "markdown": "png"}
+    figures = kinds[fmt]
     report = build_report(system, inputs=inputs, source=args.file, seed=args.seed,
-                          progress=progress, weights=args.weights,
-                          # JSON leaves figures out; HTML draws netctl's own SVG where
-                          # it can (no plotting library), Markdown needs the PNG
-                          figures={"json": False, "html": "svg", "markdown": "png"}[fmt])
+                          progress=progress, weights=args.weights, figures=figures)
     with progress.step(f"writing {args.out}"):
         # a grid's states in a planner's words for people (HTML, Markdown); JSON keeps
         # the state names
