@@ -211,18 +211,18 @@ def test_each_phase_keeps_the_optimality_conditions_and_matches_every_tight_path
             rows = np.repeat(np.arange(r), np.diff(fptr))
             srow, scol = np.zeros(r, np.int64), np.zeros(n_cols, np.int64)
             drow, dcol = np.empty(r, np.int64), np.empty(n_cols, np.int64)
-            enode, enext = np.empty(n_cols + 1, np.int64), np.empty(n_cols + 1, np.int64)
+            work = cov._SearchWork(r, n_cols, np.int64)
             act = np.empty(r + 1, np.int64)
             free = np.flatnonzero(rm < 0)
             while free.size:
-                cov._sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext)
+                work.search(tptr, tind, tw, rm, cm, srow, scol, drow, dcol)
                 rc = fw + srow[rows] - scol[find]
                 assert (rc >= 0).all(), trial
                 on = rm[rows] == find
                 assert (rc[on] == 0).all(), trial
                 assert (scol[cm < 0] == 0).all() and (scol <= 0).all(), trial
                 n_free = cov._push_relabel(fptr, find, fw, tptr, tind, tw, rm, cm, srow,
-                                           scol, free, dcol, enode, act)
+                                           scol, free, dcol, work.buf, act)
                 free = free[:n_free]
                 phases += 1
                 tight = rc == 0
@@ -259,3 +259,67 @@ def test_accessible_rows_equals_scipy_slicing(mode):
             assert n_cols == ref_.shape[1]
             assert (got != (ref_ != 0)).nnz == 0
             assert loops.tolist() == (A.diagonal()[keep] != 0).tolist()
+
+
+def _after_one_search(A: sp.csr_array, B: sp.csr_array, work_of=None):
+    fptr, find, fw, tptr, tind, tw, rm, cm = _cover_arrays(A, B)
+    r, n_cols = rm.size, cm.size
+    srow, scol = np.zeros(r, np.int64), np.zeros(n_cols, np.int64)
+    drow, dcol = np.empty(r, np.int64), np.empty(n_cols, np.int64)
+    work = cov._SearchWork(r, n_cols, np.int64) if work_of is None else work_of(r, n_cols)
+    far = work.search(tptr, tind, tw, rm, cm, srow, scol, drow, dcol)
+    return (fptr, find, fw, tptr, tind, tw, rm, cm), srow, scol, far, work
+
+
+@pytest.mark.parametrize("mode", ["python", "compiled"])
+def test_search_with_short_work_arrays_gives_the_same_prices(mode):
+    # a search that runs out of bucket entries (-1) or list heads (-2) is run again
+    # with longer arrays and must give the prices of a search that had room from the
+    # start (the first, abandoned attempt must leave no trace)
+    def short(r, n_cols):
+        w = cov._SearchWork(r, n_cols, np.int64)
+        w.enode, w.enext = np.empty(1, np.int64), np.empty(1, np.int64)
+        w.head = np.empty(1, np.int64)
+        return w
+
+    rng = np.random.default_rng(5)
+    grown = 0
+    with always_python() if mode == "python" else always_compiled():
+        for trial in range(40):
+            kind = ["chain", "cycles", "sources", "random"][trial % 4]
+            A, B = _shaped_system(kind, int(rng.integers(5, 60)), rng)
+            _, s1, c1, f1, _ = _after_one_search(A, B)
+            _, s2, c2, f2, w2 = _after_one_search(A, B, short)
+            assert (s1 == s2).all() and (c1 == c2).all() and f1 == f2, trial
+            grown += w2.enode.size > 1
+    assert grown > 30
+
+
+def test_relabel_gives_breadth_first_distances_of_scipy():
+    # exact labels: twice the number of rows on the shortest alternating path of tight
+    # edges from each column to a free column; reference: SciPy's unweighted shortest
+    # paths (csgraph.dijkstra, unweighted) on the graph "column j -> column rm[i]" for every tight edge (i, j)
+    # that is not matched
+    from scipy.sparse.csgraph import dijkstra
+
+    rng = np.random.default_rng(17)
+    with always_compiled():
+        for trial in range(60):
+            kind = ["chain", "cycles", "sources", "random"][trial % 4]
+            A, B = _shaped_system(kind, int(rng.integers(5, 120)), rng)
+            (fptr, find, fw, tptr, tind, tw, rm, cm), srow, scol, _, work = \
+                _after_one_search(A, B)
+            r, n_cols = rm.size, cm.size
+            inf = 2 * (r + n_cols) + 4
+            psi = np.empty(n_cols, np.int64)
+            cov._relabel(tptr, tind, tw, rm, cm, srow, scol, psi, work.buf, inf)
+            rows = np.repeat(np.arange(r), np.diff(fptr))
+            go = (fw + srow[rows] == scol[find]) & (rm[rows] >= 0) & (rm[rows] != find)
+            G = sp.csr_array((np.ones(int(go.sum())), (find[go], rm[rows][go])),
+                             shape=(n_cols, n_cols))
+            free = np.flatnonzero(cm < 0)
+            want = np.full(n_cols, inf)
+            if free.size:
+                d = dijkstra(G, unweighted=True, indices=free, min_only=True)
+                want = np.where(np.isfinite(d), 2 * np.nan_to_num(d, posinf=0), inf)
+            assert (psi == want.astype(np.int64)).all(), trial
