@@ -212,6 +212,7 @@ def test_each_phase_keeps_the_optimality_conditions_and_matches_every_tight_path
             srow, scol = np.zeros(r, np.int64), np.zeros(n_cols, np.int64)
             drow, dcol = np.empty(r, np.int64), np.empty(n_cols, np.int64)
             work = cov._SearchWork(r, n_cols, np.int64)
+            pair = cov._TightWork(r, n_cols, find.size, np.int64)
             act = np.empty(r + 1, np.int64)
             free = np.flatnonzero(rm < 0)
             while free.size:
@@ -221,8 +222,8 @@ def test_each_phase_keeps_the_optimality_conditions_and_matches_every_tight_path
                 on = rm[rows] == find
                 assert (rc[on] == 0).all(), trial
                 assert (scol[cm < 0] == 0).all() and (scol <= 0).all(), trial
-                n_free = cov._push_relabel(fptr, find, fw, tptr, tind, tw, rm, cm, srow,
-                                           scol, free, dcol, work.buf, act)
+                n_free = pair.match(fptr, find, fw, tptr, tind, tw, rm, cm, srow, scol,
+                                    free, dcol, work.buf, act)
                 free = free[:n_free]
                 phases += 1
                 tight = rc == 0
@@ -312,7 +313,9 @@ def test_relabel_gives_breadth_first_distances_of_scipy():
             r, n_cols = rm.size, cm.size
             inf = 2 * (r + n_cols) + 4
             psi = np.empty(n_cols, np.int64)
-            cov._relabel(tptr, tind, tw, rm, cm, srow, scol, psi, work.buf, inf)
+            tight = cov._TightWork(r, n_cols, find.size, np.int64)
+            cov._tight_part(tptr, tind, tw, scol, srow, tight.tptr, tight.tind, False)
+            cov._relabel(tight.tptr, tight.tind, rm, cm, psi, work.buf, inf)
             rows = np.repeat(np.arange(r), np.diff(fptr))
             go = (fw + srow[rows] == scol[find]) & (rm[rows] >= 0) & (rm[rows] != find)
             G = sp.csr_array((np.ones(int(go.sum())), (find[go], rm[rows][go])),
