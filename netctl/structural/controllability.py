@@ -27,6 +27,10 @@ if TYPE_CHECKING:
 #: ``progress(stage, done, total)`` of a long analysis (see :func:`controllability`).
 Progress = Callable[[str, int, int], None]
 
+#: From this many links (``A`` and ``B``) a failing system's Hosoe dimension starts on a
+#: second thread as soon as an inaccessible state makes the failure certain.
+BACKGROUND_LINKS = 200_000
+
 __all__ = [
     "ControllabilityReport",
     "Dilation",
@@ -367,6 +371,15 @@ def _report(system: StructuredSystem, kind: str, dimension: bool,
     st = structure_of(A)
     acc = accessible_states(st, B)
     inaccessible = np.flatnonzero(~acc)
+    stage = "controllable" if kind == "controllability" else "observable"
+    early = None
+    if dimension and inaccessible.size and A.nnz + B.nnz >= BACKGROUND_LINKS:
+        # certain to fail: Hosoe's dimension starts now, on a second thread (compiled
+        # kernels without the GIL), while the reasons below are found
+        from netctl._background import Background
+
+        early = Background(lambda note: _hosoe_dimension(A, B, acc, note),
+                           name="netctl-dimension")
     groups = _inaccessible_groups(st, acc) if inaccessible.size else ()
     # a fix for an unreached component goes where an actuator (sensor) may sit, when the
     # node table says where (e.g. a grid's generator buses, their frequency states)
@@ -382,12 +395,14 @@ def _report(system: StructuredSystem, kind: str, dimension: bool,
     if progress is not None:
         progress("reach and matching", 1, 1)
     dim: int | None
-    if ok:
+    step = None if progress is None else (
+        lambda done, total: progress(f"{stage} dimension", done, total))
+    if early is not None:
+        dim = early.result(step)
+    elif ok:
         dim = n
     elif dimension:
-        stage = "controllable" if kind == "controllability" else "observable"
-        dim = _hosoe_dimension(A, B, acc, None if progress is None else (
-            lambda done, total: progress(f"{stage} dimension", done, total)))
+        dim = _hosoe_dimension(A, B, acc, step)
     else:
         dim = None
     return ControllabilityReport(
