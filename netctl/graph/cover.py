@@ -263,11 +263,11 @@ class _SearchWork:
     __slots__ = ("enode", "enext", "head", "mark", "buf")
 
     def __init__(self, r: int, n_cols: int, dt: type) -> None:
-        self.enode = np.empty(n_cols + r + 1, dt)  # a column enters once per drop
-        self.enext = np.empty(n_cols + r + 1, dt)
-        self.head = np.empty(256, np.int64)
-        self.mark = np.zeros(n_cols, np.bool_)
-        self.buf = np.empty(n_cols, dt)
+        self.enode: np.ndarray = np.empty(n_cols + r + 1, dt)  # a column enters once per drop
+        self.enext: np.ndarray = np.empty(n_cols + r + 1, dt)
+        self.head: np.ndarray = np.empty(256, np.int64)
+        self.mark: np.ndarray = np.zeros(n_cols, np.bool_)
+        self.buf: np.ndarray = np.empty(n_cols, dt)
 
     def search(self, tptr: np.ndarray, tind: np.ndarray, tw: np.ndarray, rm: np.ndarray,
                cm: np.ndarray, srow: np.ndarray, scol: np.ndarray, drow: np.ndarray,
@@ -280,10 +280,10 @@ class _SearchWork:
             if far >= 0:
                 return far
             if far == -1:
-                self.enode = np.empty(2 * self.enode.size, self.enode.dtype)
-                self.enext = np.empty(2 * self.enext.size, self.enext.dtype)
+                self.enode: np.ndarray = np.empty(2 * self.enode.size, self.enode.dtype)
+                self.enext: np.ndarray = np.empty(2 * self.enext.size, self.enext.dtype)
             else:
-                self.head = np.empty(4 * self.head.size, np.int64)
+                self.head: np.ndarray = np.empty(4 * self.head.size, np.int64)
 
 
 @njit(cache=True, nogil=True)
@@ -428,10 +428,10 @@ class _TightWork:
     __slots__ = ("fptr", "find", "tptr", "tind")
 
     def __init__(self, r: int, n_cols: int, size: int, dt: type) -> None:
-        self.fptr = np.zeros(r + 1, dt)
-        self.find = np.empty(size, dt)
-        self.tptr = np.zeros(n_cols + 1, dt)
-        self.tind = np.empty(size, dt)
+        self.fptr: np.ndarray = np.zeros(r + 1, dt)
+        self.find: np.ndarray = np.empty(size, dt)
+        self.tptr: np.ndarray = np.zeros(n_cols + 1, dt)
+        self.tind: np.ndarray = np.empty(size, dt)
 
     def match(self, fptr: np.ndarray, find: np.ndarray, fw: np.ndarray, tptr: np.ndarray,
               tind: np.ndarray, tw: np.ndarray, rm: np.ndarray, cm: np.ndarray,
