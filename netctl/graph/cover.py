@@ -280,10 +280,10 @@ class _SearchWork:
             if far >= 0:
                 return far
             if far == -1:
-                self.enode: np.ndarray = np.empty(2 * self.enode.size, self.enode.dtype)
-                self.enext: np.ndarray = np.empty(2 * self.enext.size, self.enext.dtype)
+                self.enode = np.empty(2 * self.enode.size, self.enode.dtype)
+                self.enext = np.empty(2 * self.enext.size, self.enext.dtype)
             else:
-                self.head: np.ndarray = np.empty(4 * self.head.size, np.int64)
+                self.head = np.empty(4 * self.head.size, np.int64)
 
 
 @njit(cache=True, nogil=True)
