@@ -11,13 +11,13 @@ are what disturbances must be kept from; measured outputs ``y = C x`` are what s
 
 from __future__ import annotations
 
-import warnings
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field, fields
 from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 
+from netctl import _construct
 from netctl._csr import (
     Pattern,
     SparseView,
@@ -31,20 +31,15 @@ from netctl._csr import (
 from netctl._parts import (
     DistinctNames,  # noqa: F401 (readers import it from here)
     NameList,
-    _as_index_array,
     _as_list,
     _empty_csr,
     _first_common,
-    _is_bool,
     _missing,
     _names,
     _node_table_from_attrs,  # noqa: F401 (readers import it from here)
-    _seq,
-    _shape,
     _table,
     _truthy,  # noqa: F401 (readers import it from here)
     canonical_csr,
-    check_finite,
     name_lookup,
 )
 from netctl.errors import InvalidSystemError, UnknownNameError
@@ -258,46 +253,9 @@ class StructuredSystem:
         InvalidSystemError
             Negative or out-of-range indices, unequal lengths, NaN or infinite weights.
         """
-        if n_states is None:
-            if state_names is not None:
-                n_states = len(state_names)
-            else:
-                s = np.asarray(sources)
-                t = np.asarray(targets)
-                n_states = int(max(s.max(initial=-1), t.max(initial=-1))) + 1 if (
-                    s.size and np.issubdtype(s.dtype, np.number)) else 0
-        if n_states < 0:
-            raise InvalidSystemError(f"n_states must be >= 0, found {n_states}.")
-        src = _as_index_array(sources, n_states, "sources")
-        dst = _as_index_array(targets, n_states, "targets")
-        if src.shape != dst.shape:
-            raise InvalidSystemError(
-                f"sources and targets must have equal lengths, found {src.size} and {dst.size}.")
-        if weights is None:
-            data = np.ones(src.size)
-            weighted = False
-        else:
-            data = np.asarray(weights, dtype=np.float64)
-            if data.shape != src.shape:
-                raise InvalidSystemError(
-                    f"weights must have one value per edge ({src.size}), found {data.size}.")
-            weighted = True
-        A, n_dup = coo_pattern(dst, src, data if weighted else None, (n_states, n_states))
-        if n_dup:
-            warnings.warn(
-                f"{n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} merged"
-                + (" (weights summed)" if weighted else "") + ".", stacklevel=2)
-        if weighted:
-            check_finite(A.data, "A")
-        elif n_dup:  # a pattern: a merged link is still 1.0
-            A = Pattern(np.ones(A.nnz), A.indices, A.indptr, A.shape).frozen()
-        sys_ = cls(A=A, B=None, C=None, state_names=_seq(state_names), input_names=(),
-                   output_names=(), nodes=dict(nodes or {}), weighted=weighted, model=model)
-        if inputs is not None:
-            sys_ = sys_.with_inputs(inputs)
-        if outputs is not None:
-            sys_ = sys_.with_outputs(outputs)
-        return sys_
+        return _construct.from_edges(cls, sources, targets, n_states, weights=weights,
+                                      state_names=state_names, inputs=inputs,
+                                      outputs=outputs, nodes=nodes, model=model)
 
     @classmethod
     def from_named_edges(
@@ -317,20 +275,9 @@ class StructuredSystem:
         States are numbered in order of first appearance, after any names listed in
         ``states`` (which may also declare isolated states).
         """
-        if len(sources) != len(targets):
-            raise InvalidSystemError(
-                f"sources and targets must have equal lengths, found {len(sources)} and "
-                f"{len(targets)}.")
-        order: dict[str, int] = {}
-        for name in (states or ()):
-            order.setdefault(str(name), len(order))
-        src = np.empty(len(sources), np.int64)
-        dst = np.empty(len(targets), np.int64)
-        for k, (a, b) in enumerate(zip(sources, targets)):
-            src[k] = order.setdefault(str(a), len(order))
-            dst[k] = order.setdefault(str(b), len(order))
-        return cls.from_edges(src, dst, len(order), weights=weights, state_names=list(order),
-                              inputs=inputs, outputs=outputs, nodes=nodes, model=model)
+        return _construct.from_named_edges(cls, sources, targets, weights=weights,
+                                            states=states, inputs=inputs, outputs=outputs,
+                                            nodes=nodes, model=model)
 
     @classmethod
     def from_matrices(
@@ -354,16 +301,10 @@ class StructuredSystem:
         ``M[u, v]`` for the edge ``u -> v`` (the networkx, igraph and
         ``scipy.sparse.csgraph`` convention) is passed as ``M.T``.
         """
-        n = _shape(A, "A")[0]
-        if B is None:
-            B = _empty_csr((n, 0))
-        if C is None:
-            C = _empty_csr((0, n))
-        if _is_bool(A):
-            weighted = False
-        return cls(A=A, B=B, C=C, state_names=_seq(state_names),
-                   input_names=_seq(input_names), output_names=_seq(output_names),
-                   nodes=dict(nodes or {}), weighted=weighted, model=model)
+        return _construct.from_matrices(cls, A, B, C, state_names=state_names,
+                                         input_names=input_names,
+                                         output_names=output_names, nodes=nodes,
+                                         weighted=weighted, model=model)
 
     @classmethod
     def from_networkx(
@@ -383,11 +324,7 @@ class StructuredSystem:
         :data:`NODE_COLUMNS` fill the node table; other scalar attributes are carried in
         the table too. ``weight`` names the edge attribute holding weights.
         """
-        from netctl._graphlibs import networkx_edges
-
-        src, dst, w, names, table = networkx_edges(graph, weight)
-        return cls.from_edges(src, dst, len(names), weights=w, state_names=names,
-                              inputs=inputs, nodes=table, model=model)
+        return _construct.from_networkx(cls, graph, weight=weight, inputs=inputs, model=model)
 
     @classmethod
     def from_igraph(
@@ -405,11 +342,7 @@ class StructuredSystem:
         gives the state names when present (``_nx_name`` when the graph came from
         ``igraph.Graph.from_networkx``).
         """
-        from netctl._graphlibs import igraph_edges
-
-        n, src, dst, w, names, table = igraph_edges(graph, weight)
-        return cls.from_edges(src, dst, n, weights=w, state_names=names, inputs=inputs,
-                              nodes=table, model=model)
+        return _construct.from_igraph(cls, graph, weight=weight, inputs=inputs, model=model)
 
     # ------------------------------------------------------------------ views
     def edges(self) -> tuple[np.ndarray, np.ndarray]:
