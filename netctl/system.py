@@ -17,15 +17,13 @@ from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 
-from netctl import _construct
+from netctl import _construct, _disturb
 from netctl._csr import (
     Pattern,
     SparseView,
     coo_pattern,
-    hstack_patterns,
     is_sparse,
     n_diagonal,
-    take,
     transpose_pattern,
 )
 from netctl._parts import (
@@ -34,7 +32,6 @@ from netctl._parts import (
     _as_list,
     _empty_csr,
     _first_common,
-    _missing,
     _names,
     _node_table_from_attrs,  # noqa: F401 (readers import it from here)
     _table,
@@ -531,50 +528,7 @@ class StructuredSystem:
             exogenous), an input acts on it, or a sensor or regulated output reads it;
             the message names it.
         """
-        idx = self.index_of(list(names))
-        if idx.size == 0:
-            return self
-        if np.unique(idx).size != idx.size:
-            dup = self.state_names[int(np.flatnonzero(np.bincount(idx) > 1)[0])]
-            raise InvalidSystemError(f"the disturbance {dup!r} is named twice.")
-        n = self.n_states
-        P = self._parts
-        indeg = np.diff(P["A"].indptr)
-        for i in idx.tolist():
-            if indeg[i]:
-                src = self.state_names[int(P["A"].indices[P["A"].indptr[i]])]
-                what = "a self-loop" if src == self.state_names[i] else f"a link from {src!r}"
-                raise InvalidSystemError(
-                    f"{self.state_names[i]!r} is marked as a disturbance but has {indeg[i]} "
-                    f"incoming link{'s' if indeg[i] > 1 else ''} ({what}); a disturbance is "
-                    "exogenous, nothing in the plant acts on it: remove the links into it, or "
-                    "model it as a state.")
-        for M, what in ((P["B"], "an input acts on"), (transpose_pattern(P["C"]), "a sensor "
-                        "reads"), (transpose_pattern(P["H"]), "a regulated output reads")):
-            hit = idx[np.diff(M.indptr)[idx] > 0]
-            if hit.size:
-                raise InvalidSystemError(
-                    f"{self.state_names[int(hit[0])]!r} is marked as a disturbance, but {what} "
-                    "it; inputs, sensors and regulated outputs belong on states only.")
-        keep = np.ones(n, bool)
-        keep[idx] = False
-        kept = np.flatnonzero(keep)
-        A = take(P["A"], kept, kept)
-        E = hstack_patterns(take(P["E"], kept), take(P["A"], kept, idx))
-        dnames = tuple(self.disturbance_names) + tuple(self.state_names[int(i)] for i in idx)
-        cols = set(self.nodes) | set(self.disturbance_nodes)
-        dnodes: dict[str, np.ndarray] = {}
-        for c in sorted(cols):
-            old = self.disturbance_nodes.get(c)
-            new = self.nodes.get(c)
-            old_arr = np.asarray(old) if old is not None else _missing(self.n_disturbances, new)
-            new_arr = np.asarray(new)[idx] if new is not None else _missing(idx.size, old)
-            dnodes[c] = np.concatenate([old_arr, new_arr]) if old_arr.size else new_arr
-        names_kept: Any = [self.state_names[int(i)] for i in kept]
-        return self._replace(
-            A=A, B=take(P["B"], kept), C=take(P["C"], None, kept), H=take(P["H"], None, kept), E=E,
-            state_names=tuple(names_kept), disturbance_names=dnames,
-            nodes={c: v[kept] for c, v in self.nodes.items()}, disturbance_nodes=dnodes)
+        return _disturb.states_to_disturbances(self, names)
 
     def _columns(self, spec: Any, names: Sequence[object] | None, prefix: str
                  ) -> tuple[Any, tuple[str, ...]]:
