@@ -27,15 +27,12 @@ from netctl._csr import (
     transpose_pattern,
 )
 from netctl._parts import (
-    DistinctNames,  # noqa: F401 (readers import it from here)
     NameList,
     _as_list,
     _empty_csr,
     _first_common,
     _names,
-    _node_table_from_attrs,  # noqa: F401 (readers import it from here)
     _table,
-    _truthy,  # noqa: F401 (readers import it from here)
     canonical_csr,
     name_lookup,
 )

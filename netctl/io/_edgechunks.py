@@ -21,12 +21,12 @@ from typing import IO, TYPE_CHECKING
 
 import numpy as np
 
+from netctl._parts import DistinctNames
 from netctl.errors import LimitError, MissingFileError
 from netctl.io import _edgescan as _k
 from netctl.io._common import excerpt, file_error, limit_error, max_bytes, note_input
 from netctl.io._edgecolumns import EMPTY_CELL_HELP, empty_cell, empty_weight, mixed_columns
 from netctl.io._edgenames import cat_arrays, factorize_ints, int_order, unquote_names
-from netctl.system import DistinctNames
 
 if TYPE_CHECKING:
     from netctl.io.edgelist import EdgeArrays

@@ -38,8 +38,8 @@ _NOT_MINUS_ZERO = b"-0"
 def read_small(path: str | os.PathLike[str], is_header: Callable[[list[str]], bool],
                int_name: re.Pattern[str]) -> EdgeArrays | None:
     """The edge arrays of a small, well-formed file, or ``None`` (use the scanner)."""
+    from netctl._parts import DistinctNames
     from netctl.io.edgelist import EdgeArrays
-    from netctl.system import DistinctNames
 
     try:
         if os.path.getsize(path) > SMALL_BYTES or not os.path.isfile(path):

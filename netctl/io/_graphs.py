@@ -13,9 +13,10 @@ from typing import Any
 
 import numpy as np
 
+from netctl._parts import _node_table_from_attrs
 from netctl.io._common import excerpt, file_error
 from netctl.io._signals import apply_node_kinds, regulated_not_kept
-from netctl.system import StructuredSystem, _node_table_from_attrs
+from netctl.system import StructuredSystem
 
 __all__ = ["Locate", "system_from_parts", "node_rows", "refuse_unsafe_xml", "warn_not_kept"]
 

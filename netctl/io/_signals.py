@@ -15,9 +15,10 @@ from typing import Any
 
 import numpy as np
 
+from netctl._parts import _truthy
 from netctl.errors import InvalidSystemError, UnknownNameError
 from netctl.io._common import file_error
-from netctl.system import StructuredSystem, _truthy
+from netctl.system import StructuredSystem
 
 __all__ = ["mark_disturbances", "apply_node_kinds", "disturbance_rows",
            "disturbance_links", "dedicated_regulated", "regulated_not_kept"]

@@ -29,6 +29,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from netctl._parts import DistinctNames
 from netctl._csr import Pattern
 from netctl._parts import check_finite
 from netctl.io import _edgescan as _k
@@ -42,7 +43,7 @@ from netctl.io._edgemarks import apply_marks, header_marks, quoted_names, repeat
 from netctl.io._edgenames import _INT, int_order, unquote_names
 from netctl.io._edgesmall import SMALL_BYTES, read_small
 from netctl.io.edgelist_writer import write_edgelist
-from netctl.system import DistinctNames, StructuredSystem
+from netctl.system import StructuredSystem
 
 __all__ = ["EdgeArrays", "read_edge_arrays", "read_edgelist", "write_edgelist",
            "CHUNK_BYTES"]
