@@ -159,3 +159,41 @@ def test_index_of_few_names_in_a_large_pool_matches_the_whole_index():
     many = [names[int(k)] for k in rng.integers(0, n, parts.FEW_NAMES + 1)]
     assert s.index_of(many).tolist() == [names.index(a) for a in many]
     assert "state" in s._index  # the whole index, kept
+
+
+def test_duplicate_link_warning_points_at_the_callers_line():
+    # The builder bodies live in netctl/_construct.py; the warning must still name the
+    # line that called StructuredSystem.from_edges (Python's warnings.warn ``stacklevel``;
+    # common practice, no source).
+    import warnings
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        StructuredSystem.from_edges([0, 0], [1, 1], 2)
+    assert len(caught) == 1 and "duplicate link" in str(caught[0].message)
+    assert caught[0].filename == __file__
+
+
+def test_builders_keep_their_signatures_and_docstrings():
+    # The public builders are thin class methods over netctl/_construct.py: their
+    # parameters (names, order, keyword-only) and numpydoc docstrings are the API.
+    import inspect
+
+    expected = {
+        "from_edges": "(sources, targets, n_states=None, *, weights=None, state_names=None, "
+                      "inputs=None, outputs=None, nodes=None, model='given')",
+        "from_named_edges": "(sources, targets, *, weights=None, states=None, inputs=None, "
+                            "outputs=None, nodes=None, model='given')",
+        "from_matrices": "(A, B=None, C=None, *, state_names=None, input_names=None, "
+                         "output_names=None, nodes=None, weighted=True, model='given')",
+        "from_networkx": "(graph, *, weight=None, inputs=None, model='given')",
+        "from_igraph": "(graph, *, weight=None, inputs=None, model='given')",
+    }
+    for name, sig in expected.items():
+        method = getattr(StructuredSystem, name)
+        bare = inspect.signature(method).replace(return_annotation=inspect.Signature.empty)
+        bare = bare.replace(parameters=[p.replace(annotation=inspect.Parameter.empty)
+                                        for p in bare.parameters.values()])
+        assert str(bare) == sig, name
+        assert method.__doc__ and method.__doc__.startswith("Build a system from "), name
+    assert "Raises\n" in StructuredSystem.from_edges.__doc__
