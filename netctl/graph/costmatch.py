@@ -100,22 +100,45 @@ def extend_matching_least_cost(
                                       col_match)[0].view(np.uint8)
         # node ids (rows, then real and extra columns) in the type of the indices
         tdt = dt if row_match.size + n_cols + x_match.size < 2**31 - 1 else np.int64
-        _least_cost_extend(np.ascontiguousarray(transpose[0], dt),
-                           np.ascontiguousarray(transpose[1], tdt), int(n_cols), row_match,
-                           col_match, np.ascontiguousarray(extra[0], dt),
-                           np.ascontiguousarray(extra[1], dt), x_match,
-                           np.ascontiguousarray(barred, np.uint8),
-                           np.ascontiguousarray(full, np.uint8), live)
+        _extend(np.ascontiguousarray(transpose[0], dt),
+                np.ascontiguousarray(transpose[1], tdt), int(n_cols), row_match, col_match,
+                np.ascontiguousarray(extra[0], dt), np.ascontiguousarray(extra[1], dt),
+                x_match, np.ascontiguousarray(barred, np.uint8),
+                np.ascontiguousarray(full, np.uint8), live)
     return x_match
+
+
+#: Entries of the search's heap at the start; 8 times longer whenever a search runs out.
+_HEAP_START = 1024
+
+
+def _extend(tptr: np.ndarray, tind: np.ndarray, n_cols: int, row_match: np.ndarray,
+            col_match: np.ndarray, xptr: np.ndarray, xind: np.ndarray, x_match: np.ndarray,
+            barred: np.ndarray, full: np.ndarray, live: np.ndarray,
+            heap_start: int | None = None, grow: int = 8) -> tuple[int, int]:
+    """:func:`_least_cost_extend`, called again with a heap ``grow`` times longer
+    whenever a search runs out of it (the potentials and the rounds done are kept, the
+    search that ran out starts over); returns the kernel's counts ``(passes,
+    touched)``."""
+    n = row_match.size
+    pi = np.zeros(n + n_cols + xptr.size - 1, np.int32)
+    pi[:n] = -(np.asarray(barred) != 0).astype(np.int32)
+    # pi_s, depth-first passes, nodes touched
+    state = np.zeros(3, np.int64)
+    size = _HEAP_START if heap_start is None else heap_start
+    while True:
+        hkey = np.empty(size, np.int32)
+        hnode = np.empty(size, tind.dtype)
+        if _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind,
+                              x_match, barred, full, live, pi, state, hkey, hnode) >= 0:
+            return int(state[1]), int(state[2])
+        size *= grow
 
 
 @njit(cache=True, nogil=True)
 def _heap_push(hkey, hnode, hsize, key, node):  # pragma: no cover - compiled
     """Push ``(key, node)`` on the binary min-heap ``hkey[:hsize]``/``hnode[:hsize]``
-    (sift up), doubling both arrays when full; returns the arrays (new when grown)."""
-    if hsize == hkey.size:
-        hkey = np.concatenate((hkey, np.empty(hsize, hkey.dtype)))
-        hnode = np.concatenate((hnode, np.empty(hsize, hnode.dtype)))
+    (sift up); the caller has checked that ``hsize < hkey.size``."""
     i = hsize
     while i > 0:
         q = (i - 1) // 2
@@ -126,12 +149,12 @@ def _heap_push(hkey, hnode, hsize, key, node):  # pragma: no cover - compiled
         i = q
     hkey[i] = key
     hnode[i] = node
-    return hkey, hnode
 
 
 @njit(cache=True, nogil=True)
 def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_match,
-                       barred, full, live):  # pragma: no cover - compiled
+                       barred, full, live, pi, state, hkey,
+                       hnode):  # pragma: no cover - compiled
     """Successive shortest paths; see :func:`extend_matching_least_cost`.
 
     Nodes: rows ``0..n-1``, then column ``c`` (real, or extra ``n_cols + k``) as
@@ -139,35 +162,40 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
     after every free row, kept as the two numbers ``pi_s`` and ``pi_t``. Arc costs are
     minus the reward: column ``c`` -> row ``v`` (``v`` takes ``c``) costs
     ``-reward(v, c)``, row ``v`` -> its column ``m`` (``v`` leaves ``m``) costs
-    ``+reward(v, m)``. Reduced cost ``cost + pi[tail] - pi[head] >= 0``. Returns the
-    number of depth-first passes and of nodes the Dijkstra searches touched (for
-    measurements).
+    ``+reward(v, m)``. Reduced cost ``cost + pi[tail] - pi[head] >= 0``.
+
+    ``pi`` (potentials of rows and columns) and ``state`` (``pi_s``, then the number of
+    depth-first passes and of nodes the Dijkstra searches touched, for measurements)
+    are kept across calls; a first call starts from ``pi`` = columns 0, rows
+    ``-barred`` and ``state`` = 0 (with ``pi_t = -1`` every arc of the start, a maximum
+    matching of the real graph with no extra column matched, has a non-negative reduced
+    cost: col -> row ``-barred + barred``; row -> its real column ``barred - barred``;
+    free row -> t ``-barred + 1``). ``hkey``/``hnode`` are the search's heap. Returns
+    0 when done, or -1 when a search found the heap too short: that search is
+    abandoned before it changed anything (the rounds before it are kept in the
+    matching, ``pi`` and ``state``), and the caller calls again with a longer heap. No
+    array is reallocated in here: a reassigned array in the search's loop made it
+    slower throughout (``benchmarks/RESULTS.md``).
     """
     n = row_match.size
     n_x = xptr.size - 1
     n_nodes = n + n_cols + n_x
     big = 1 << 30
-    # potentials: columns 0, rows -barred, t -1: every arc of the start (a maximum
-    # matching of the real graph, no extra column matched) has a non-negative reduced
-    # cost (col -> row: -barred + barred; row -> its real column: barred - barred;
-    # free row -> t: -barred + 1)
-    pi = np.zeros(n_nodes, np.int32)
-    for v in range(n):
-        if barred[v]:
-            pi[v] = -1
-    pi_s = 0
+    cap = hkey.size
+    pi_s = state[0]
     pi_t = -1
     dist = np.full(n_nodes, big, np.int32)
     touched = np.empty(n_nodes, tind.dtype)
-    hkey = np.empty(1024, np.int32)
-    hnode = np.empty(1024, tind.dtype)
-    stamp = np.full(n, -1, np.int32)
+    stamp = np.full(n, -1, np.int32)  # below every pass number still to come
     stack_col = np.empty(n + 1, tind.dtype)
     stack_pos = np.empty(n + 1, np.int64)
     stack_row = np.empty(n + 1, tind.dtype)
-    rnd = 0
-    work = 0
+    rnd = state[1]
+    work = state[2]
     while True:
+        state[0] = pi_s  # what a call that finds the heap short leaves
+        state[1] = rnd
+        state[2] = work
         # --- Dijkstra from s, stopped when the cheapest free row is known
         hsize = 0
         ntouch = 0
@@ -180,7 +208,9 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
             dist[u] = d0
             touched[ntouch] = u
             ntouch += 1
-            hkey, hnode = _heap_push(hkey, hnode, hsize, d0, u)
+            if hsize == cap:
+                return -1
+            _heap_push(hkey, hnode, hsize, d0, u)
             hsize += 1
         while hsize > 0:
             d = hkey[0]
@@ -233,7 +263,9 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                             if cand < best:
                                 best = cand
                             continue
-                        hkey, hnode = _heap_push(hkey, hnode, hsize, nd, v)
+                        if hsize == cap:
+                            return -1
+                        _heap_push(hkey, hnode, hsize, nd, v)
                         hsize += 1
             else:  # a matched row: to the column it holds
                 m = row_match[u]
@@ -245,7 +277,8 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                         touched[ntouch] = w
                         ntouch += 1
                     dist[w] = nd
-                    hkey, hnode = _heap_push(hkey, hnode, hsize, nd, w)
+                    # room: this row's own entry was popped just before
+                    _heap_push(hkey, hnode, hsize, nd, w)
                     hsize += 1
         work += ntouch
         if best == big:
@@ -321,4 +354,7 @@ def _least_cost_extend(tptr, tind, n_cols, row_match, col_match, xptr, xind, x_m
                 break
         if total == 0:
             break  # cannot happen with exact potentials; a guard against a loop
-    return rnd, work
+    state[0] = pi_s
+    state[1] = rnd
+    state[2] = work
+    return 0
