@@ -16,6 +16,11 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   cycles (its extra-column search has work to do), as the product calls it (searches
   restricted to the rows some maximum matching leaves free) and with every row
   searched (the same answer, about a hundred times more Dijkstra work);
+* ``sink distances`` times ``netctl.graph.linking._sink_distance`` (the 0-1
+  breadth-first search that gives the linking's starting potentials) at BASE (a
+  double-ended queue) and here (one level at a time), on the node-split network of
+  ``bench_folds.py`` (100 sources and 100 sinks on random states), with no flow and
+  after a maximum linking;
 * a breadth-first search that visits each level in index order reads its rows' data in
   memory order: ``alternating search, levels in order`` times
   ``netctl.graph.dm._alt_bfs`` against a variant defined here that sorts each level's
@@ -49,7 +54,7 @@ from numba import njit
 
 from netctl import StructuredSystem
 from netctl._jit import always_compiled
-from netctl.graph import costmatch, dm
+from netctl.graph import costmatch, dm, linking
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural import controllability
 
@@ -294,6 +299,22 @@ def main() -> None:
         rm, cm = maximum_matching(ptr, ind, n)
         tptr, tind = (np.ascontiguousarray(x, np.int64)
                       for x in transpose_csr(ptr, ind, np.int64(n)))
+        out_ptr, out_ind = transpose_csr(ptr, ind, np.int64(n))
+        srcs = rng.choice(n, 100, replace=False).astype(np.int64)
+        snks = rng.choice(n, 100, replace=False).astype(np.int64)
+        one = np.arange(101, dtype=np.int64)
+        g = linking.linking_graph(n, one, srcs, out_ptr, out_ind, one, snks)
+        old_lk = load_old(a.base, "netctl/graph/linking.py", "old_linking", tmp)
+        lk = linking.maximum_linking(g, paths=False)
+        for what, cap in (("no flow", g.cap), ("after a maximum linking", lk._residual)):
+            pair(f"sink distances (linking potentials), {what}",
+                 lambda: old_lk._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
+                                               cap),
+                 lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
+                                                cap), a.repeat, eq)
+        pair("maximum_linking (potentials + flow), 100 sources, 100 sinks",
+             lambda: old_lk.maximum_linking(g, paths=False).length,
+             lambda: linking.maximum_linking(g, paths=False).length, a.repeat, eq)
         for side, (p, i, partner, starts) in {
                 "from unmatched rows": (ptr, ind, cm, np.flatnonzero(rm < 0)),
                 "from unmatched columns": (tptr, tind, rm, np.flatnonzero(cm < 0))}.items():

@@ -144,3 +144,36 @@ def test_source_entering_only_states_that_reach_no_sink_needs_no_pass():
     L2 = maximum_linking(g2, sources=np.array([0]))
     assert extension(g2, L2, np.array([2])) == (False, 0)  # same entry, same length
     assert "to_sink" in L2._labels and "back" in L2._labels
+
+
+@pytest.mark.parametrize("mode", ["python", "compiled"])
+def test_sink_distances_equal_networkx_dijkstra(mode):
+    # the starting potentials: least cost (0/1 arcs) from every node of the node-split
+    # network to the super-sink over arcs with capacity; reference: NetworkX's Dijkstra
+    # to node 1 on the same arcs, before and after a maximum linking uses some of them
+    from netctl import _jit
+    from netctl.graph.linking import _INF, _sink_distance
+
+    rng = np.random.default_rng(3)
+    deep = 0
+    for trial in range(80):
+        n = int(rng.integers(2, 40))
+        k, r = (int(v) for v in rng.integers(1, 5, 2))
+        A = rng.random((n, n)) < 2.5 / n
+        S = rng.random((k, n)) < 0.1
+        H = rng.random((r, n)) < 0.1
+        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        tail = np.repeat(np.arange(g.adj_ptr.size - 1), np.diff(g.adj_ptr))
+        for cap in (g.cap, maximum_linking(g, paths=False)._residual):
+            G = nx.DiGraph()
+            G.add_nodes_from(range(g.adj_ptr.size - 1))
+            on = g.forward & (cap > 0)
+            G.add_weighted_edges_from(zip(tail[on].tolist(), g.head[on].tolist(),
+                                          g.cost[on].tolist()))
+            want = nx.single_source_dijkstra_path_length(G.reverse(), 1)
+            with (_jit.always_python() if mode == "python" else _jit.always_compiled()):
+                got = _sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost, cap)
+            ref = np.array([want.get(v, int(_INF)) for v in range(got.size)])
+            assert (got == ref).all(), trial
+            deep += int(ref[ref < _INF].max()) >= 4
+    assert deep > 40
