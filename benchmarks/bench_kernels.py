@@ -20,7 +20,8 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   breadth-first search that gives the linking's starting potentials) at BASE (a
   double-ended queue) and here (one level at a time), on the node-split network of
   ``bench_folds.py`` (100 sources and 100 sinks on random states), with no flow and
-  after a maximum linking;
+  after a maximum linking; ``reverse Dijkstra`` the same for ``linking._back`` (a
+  bucket's list popped in discovery order at BASE, here in rounds in node order);
 * a breadth-first search that visits each level in index order reads its rows' data in
   memory order: ``alternating search, levels in order`` times
   ``netctl.graph.dm._alt_bfs`` against a variant defined here that sorts each level's
@@ -312,6 +313,15 @@ def main() -> None:
                                                cap),
                  lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
                                                 cap), a.repeat, eq)
+        pair("reverse Dijkstra to the source after a maximum linking (linking._back)",
+             lambda: old_lk._back(g.adj_ptr, g.head, g.rev, g.cost, lk._residual,
+                                  lk._potential),
+             lambda: linking._back(g.adj_ptr, g.head, g.rev, g.cost, lk._residual,
+                                   lk._potential), a.repeat, eq)
+        old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
+        pair("minimum_separator (max flow + search), 100 sources, 100 sinks",
+             lambda: old_lk.minimum_separator(old_g),
+             lambda: linking.minimum_separator(g), a.repeat, eq)
         pair("maximum_linking (potentials + flow), 100 sources, 100 sinks",
              lambda: old_lk.maximum_linking(g, paths=False).length,
              lambda: linking.maximum_linking(g, paths=False).length, a.repeat, eq)

@@ -177,3 +177,39 @@ def test_sink_distances_equal_networkx_dijkstra(mode):
             assert (got == ref).all(), trial
             deep += int(ref[ref < _INF].max()) >= 4
     assert deep > 40
+
+
+@pytest.mark.parametrize("mode", ["python", "compiled"])
+def test_back_costs_equal_networkx_bellman_ford(mode):
+    # after a maximum linking of least length: the least real cost of a residual path
+    # from each node to the super-source (node 0) that does not pass through the
+    # super-sink (node 1); reference: NetworkX's Bellman-Ford from node 0 on the
+    # reversed residual graph (reverse arcs cost minus their forward arc), without the
+    # arcs into node 1 (it ends no path through it) and out of node 0
+    from netctl import _jit
+    from netctl.graph.linking import _INF, _back
+
+    rng = np.random.default_rng(8)
+    far = 0
+    for trial in range(80):
+        n = int(rng.integers(2, 40))
+        k, r = (int(v) for v in rng.integers(1, 6, 2))
+        A = rng.random((n, n)) < 2.5 / n
+        S = rng.random((k, n)) < 0.15
+        H = rng.random((r, n)) < 0.15
+        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        L = maximum_linking(g, paths=False)
+        cap, pi = L._residual, L._potential
+        with (_jit.always_python() if mode == "python" else _jit.always_compiled()):
+            got = _back(g.adj_ptr, g.head, g.rev, g.cost, cap, pi)
+        tail = np.repeat(np.arange(g.adj_ptr.size - 1), np.diff(g.adj_ptr))
+        on = (cap > 0) & (g.head != 1) & (tail != 0)
+        G = nx.DiGraph()
+        G.add_nodes_from(range(got.size))
+        G.add_weighted_edges_from(zip(g.head[on].tolist(), tail[on].tolist(),
+                                      g.cost[on].tolist()))  # reversed arcs
+        want = nx.single_source_bellman_ford_path_length(G, 0)
+        ref = np.array([want.get(v, int(_INF)) for v in range(got.size)])
+        assert (got == ref).all(), trial
+        far += int((ref[ref < _INF] >= 2).sum()) > 3
+    assert far > 20
