@@ -22,6 +22,9 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   ``bench_folds.py`` (100 sources and 100 sinks on random states), with no flow and
   after a maximum linking; ``reverse Dijkstra`` the same for ``linking._back`` (a
   bucket's list popped in discovery order at BASE, here in rounds in node order);
+  ``residual search`` the reachability search of ``extension`` and
+  ``minimum_separator`` (a depth-first stack at BASE, levels in node order here);
+  ``minimum_separator`` as a whole (its flow, ``linking._solve``, unchanged);
 * a breadth-first search that visits each level in index order reads its rows' data in
   memory order: ``alternating search, levels in order`` times
   ``netctl.graph.dm._alt_bfs`` against a variant defined here that sorts each level's
@@ -313,6 +316,12 @@ def main() -> None:
                                                cap),
                  lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
                                                 cap), a.repeat, eq)
+        for what, args in (("forward from the source", (g.cap, 0, -1, False)),
+                           ("backward from the sink", (g.cap, 1, 0, True))):
+            pair(f"residual search {what}, no flow (linking._residual_search)",
+                 lambda: old_lk._residual_search(g.adj_ptr, g.head, g.rev, *args),
+                 lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, *args),
+                 a.repeat, eq)
         pair("reverse Dijkstra to the source after a maximum linking (linking._back)",
              lambda: old_lk._back(g.adj_ptr, g.head, g.rev, g.cost, lk._residual,
                                   lk._potential),

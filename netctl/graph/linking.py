@@ -400,16 +400,38 @@ def _residual_search(adj_ptr, head, rev, cap, start, stop,
                      backward):  # pragma: no cover - compiled
     """Nodes joined to ``start`` by arcs with residual capacity in ``cap``: the nodes it
     reaches, or with ``backward`` the nodes that reach it (each arc ``q`` read as the
-    reverse of arc ``rev[q]``). ``stop`` is marked but never passed through (-1: none)."""
+    reverse of arc ``rev[q]``). ``stop`` is marked but never passed through (-1: none).
+
+    Breadth-first, each level put in increasing order first (sorted, or for a level
+    above n/16 found by a scan of a mark array) so that the nodes read their arcs in
+    memory order: measured 0.32 -> 0.09 s forward and 0.44 -> 0.19 s backward at 10^6
+    states against a depth-first stack (``benchmarks/RESULTS.md``, 2026-12-05)."""
     n_nodes = adj_ptr.size - 1
     seen = np.zeros(n_nodes, np.bool_)
-    stack = np.empty(n_nodes, np.int64)
+    queue = np.empty(n_nodes, np.int64)
+    mark = np.zeros(n_nodes, np.bool_)
+    big = n_nodes // 16  # a larger level is put in order by a scan instead of a sort
     seen[start] = True
-    stack[0] = start
-    top = 1
-    while top:
-        top -= 1
-        v = stack[top]
+    queue[0] = start
+    tail = 1
+    at = 0
+    level_end = 0
+    while at < tail:
+        if at == level_end:
+            if tail - at > big:
+                for t in range(at, tail):
+                    mark[queue[t]] = True
+                t = at
+                for v in range(n_nodes):
+                    if mark[v]:
+                        mark[v] = False
+                        queue[t] = v
+                        t += 1
+            else:
+                queue[at:tail].sort()
+            level_end = tail
+        v = queue[at]
+        at += 1
         if v == stop:
             continue
         for q in range(adj_ptr[v], adj_ptr[v + 1]):
@@ -417,8 +439,8 @@ def _residual_search(adj_ptr, head, rev, cap, start, stop,
             u = head[q]
             if cap[f] > 0 and not seen[u]:
                 seen[u] = True
-                stack[top] = u
-                top += 1
+                queue[tail] = u
+                tail += 1
     return seen
 
 

@@ -213,3 +213,44 @@ def test_back_costs_equal_networkx_bellman_ford(mode):
         assert (got == ref).all(), trial
         far += int((ref[ref < _INF] >= 2).sum()) > 3
     assert far > 20
+
+
+@pytest.mark.parametrize("mode", ["python", "compiled"])
+def test_residual_search_equals_scipy_breadth_first_order(mode):
+    # the nodes a node reaches (or that reach it, backward) over arcs with residual
+    # capacity, never passing through ``stop``; reference: SciPy's breadth_first_order
+    # on the same arcs (those out of ``stop`` left out), before and after a linking;
+    # ``stop`` also a state's copy, where it cuts paths
+    from scipy.sparse.csgraph import breadth_first_order
+
+    from netctl import _jit
+    from netctl.graph.linking import _residual_search
+
+    rng = np.random.default_rng(21)
+    wide = 0
+    for trial in range(60):
+        n = int(rng.integers(2, 40))
+        k, r = (int(v) for v in rng.integers(1, 6, 2))
+        A = rng.random((n, n)) < 2.5 / n
+        S = rng.random((k, n)) < 0.15
+        H = rng.random((r, n)) < 0.15
+        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        n_nodes = g.adj_ptr.size - 1
+        tail = np.repeat(np.arange(n_nodes), np.diff(g.adj_ptr))
+        for cap in (g.cap, maximum_linking(g, paths=False)._residual):
+            mid = 2 + k + int(rng.integers(0, 2 * n))  # a state's in- or out-copy
+            for start, stop, backward in ((0, -1, False), (1, 0, True), (0, 1, False),
+                                          (0, mid, False), (1, mid, True)):
+                f = g.rev if backward else np.arange(g.head.size)
+                on = (cap[f] > 0) & (tail != stop)
+                G = sp.csr_array((np.ones(int(on.sum())), (tail[on], g.head[on])),
+                                 shape=(n_nodes, n_nodes))
+                want = np.zeros(n_nodes, bool)
+                want[breadth_first_order(G, start, return_predecessors=False)] = True
+                with (_jit.always_python() if mode == "python"
+                      else _jit.always_compiled()):
+                    got = _residual_search(g.adj_ptr, g.head, g.rev, cap, start, stop,
+                                           backward)
+                assert (got == want).all(), (trial, start, backward)
+                wide += int(want.sum()) > n_nodes // 4
+    assert wide > 150
