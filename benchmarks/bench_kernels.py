@@ -316,11 +316,11 @@ def main() -> None:
                                                cap),
                  lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
                                                 cap), a.repeat, eq)
-        for what, args in (("forward from the source", (g.cap, 0, -1, False)),
-                           ("backward from the sink", (g.cap, 1, 0, True))):
+        for what, ends in (("forward from the source", (0, -1, False)),
+                           ("backward from the sink", (1, 0, True))):
             pair(f"residual search {what}, no flow (linking._residual_search)",
-                 lambda: old_lk._residual_search(g.adj_ptr, g.head, g.rev, *args),
-                 lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, *args),
+                 lambda: old_lk._residual_search(g.adj_ptr, g.head, g.rev, g.cap, *ends),
+                 lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, g.cap, *ends),
                  a.repeat, eq)
         pair("reverse Dijkstra to the source after a maximum linking (linking._back)",
              lambda: old_lk._back(g.adj_ptr, g.head, g.rev, g.cost, lk._residual,
