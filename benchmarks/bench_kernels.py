@@ -25,6 +25,8 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   ``residual search`` the reachability search of ``extension`` and
   ``minimum_separator`` (a depth-first stack at BASE, levels in node order here);
   ``minimum_separator`` as a whole (its flow, ``linking._solve``, unchanged);
+  ``reachable_from`` the accessibility search of every analysis (a queue in discovery
+  order at BASE, levels in vertex order here), from 100 random states;
 * a breadth-first search that visits each level in index order reads its rows' data in
   memory order: ``alternating search, levels in order`` times
   ``netctl.graph.dm._alt_bfs`` against a variant defined here that sorts each level's
@@ -58,7 +60,7 @@ from numba import njit
 
 from netctl import StructuredSystem
 from netctl._jit import always_compiled
-from netctl.graph import costmatch, dm, linking
+from netctl.graph import components, costmatch, dm, linking
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural import controllability
 
@@ -334,6 +336,11 @@ def main() -> None:
         pair("maximum_linking (potentials + flow), 100 sources, 100 sinks",
              lambda: old_lk.maximum_linking(g, paths=False).length,
              lambda: linking.maximum_linking(g, paths=False).length, a.repeat, eq)
+        old_comp = load_old(a.base, "netctl/graph/components.py", "old_components", tmp)
+        seeds = rng.choice(n, 100, replace=False).astype(np.int64)
+        pair("reachable_from 100 random states (accessibility from the inputs)",
+             lambda: old_comp.reachable_from(out_ptr, out_ind, seeds),
+             lambda: components.reachable_from(out_ptr, out_ind, seeds), a.repeat, eq)
         for side, (p, i, partner, starts) in {
                 "from unmatched rows": (ptr, ind, cm, np.flatnonzero(rm < 0)),
                 "from unmatched columns": (tptr, tind, rm, np.flatnonzero(cm < 0))}.items():

@@ -326,3 +326,27 @@ def test_repeated_entries_and_warm_starts_on_both_paths(monkeypatch, prefetch_by
         assert is_valid_matching(m.indptr, m.indices, rm, cm)
         assert np.all(rm[rm0 >= 0] >= 0) and np.all(cm[cm0 >= 0] >= 0)
         assert int((rm >= 0).sum()) == _scipy_size(m)
+
+
+@pytest.mark.parametrize("mode", ["python", "compiled"])
+def test_reachable_from_many_sources_equals_scipy_breadth_first_order(mode):
+    # reachability from several sources (repeats included), on graphs deep enough for
+    # small sorted levels and wide enough for large scanned ones; reference: the union
+    # of SciPy's breadth_first_order from each source
+    from scipy.sparse.csgraph import breadth_first_order
+
+    from netctl import _jit
+
+    rng = np.random.default_rng(4)
+    for trial in range(60):
+        n = int(rng.integers(2, 300))
+        m = int(rng.integers(0, 3 * n))
+        u, v = rng.integers(0, n, m), rng.integers(0, n, m)
+        out = sp.csr_array((np.ones(m), (u, v)), shape=(n, n))
+        src = rng.integers(0, n, int(rng.integers(1, 6)))
+        want = np.zeros(n, bool)
+        for s in src.tolist():
+            want[breadth_first_order(out, s, return_predecessors=False)] = True
+        with (_jit.always_python() if mode == "python" else _jit.always_compiled()):
+            got = reachable_from(out.indptr, out.indices, src)
+        assert (got == want).all(), trial
