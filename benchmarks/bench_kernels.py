@@ -24,7 +24,8 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   bucket's list popped in discovery order at BASE, here in rounds in node order);
   ``residual search`` the reachability search of ``extension`` and
   ``minimum_separator`` (a depth-first stack at BASE, levels in node order here);
-  ``minimum_separator`` as a whole (its flow, ``linking._solve``, unchanged);
+  ``minimum_separator`` as a whole (its flow, ``linking._solve``, unchanged; about
+  30 s a call at 10^6 states, so only with ``--only minimum_separator``);
   ``reachable_from`` the accessibility search of every analysis (a queue in discovery
   order at BASE, levels in vertex order here), from 100 random states;
 * a breadth-first search that visits each level in index order reads its rows' data in
@@ -330,9 +331,10 @@ def main() -> None:
              lambda: linking._back(g.adj_ptr, g.head, g.rev, g.cost, lk._residual,
                                    lk._potential), a.repeat, eq)
         old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
-        pair("minimum_separator (max flow + search), 100 sources, 100 sinks",
-             lambda: old_lk.minimum_separator(old_g),
-             lambda: linking.minimum_separator(g), a.repeat, eq)
+        if any("minimum_separator" in w for w in ONLY):  # about 30 s a call at 1e6
+            pair("minimum_separator (max flow + search), 100 sources, 100 sinks",
+                 lambda: old_lk.minimum_separator(old_g),
+                 lambda: linking.minimum_separator(g), a.repeat, eq)
         pair("maximum_linking (potentials + flow), 100 sources, 100 sinks",
              lambda: old_lk.maximum_linking(g, paths=False).length,
              lambda: linking.maximum_linking(g, paths=False).length, a.repeat, eq)
