@@ -20,14 +20,10 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   breadth-first search that gives the linking's starting potentials) at BASE (a
   double-ended queue) and here (one level at a time), on the node-split network of
   ``bench_folds.py`` (100 sources and 100 sinks on random states), with no flow and
-  after a maximum linking; ``reverse Dijkstra`` the same for ``linking._back`` (a
-  bucket's list popped in discovery order at BASE, here in rounds in node order);
-  ``residual search`` the reachability search of ``extension`` and
-  ``minimum_separator`` (a depth-first stack at BASE, levels in node order here);
-  ``minimum_separator`` as a whole (its flow, ``linking._solve``, unchanged; about
+  after a maximum linking; ``minimum_separator`` as a whole (its flow, ``linking._solve``, unchanged; about
   30 s a call at 10^6 states, so only with ``--only minimum_separator``);
   ``reachable_from`` the accessibility search of every analysis (a queue in discovery
-  order at BASE, levels in vertex order here), from 100 random states;
+  order at BASE; here levels above n/16 in vertex order), from 100 random states;
 * a breadth-first search that visits each level in index order reads its rows' data in
   memory order: ``alternating search, levels in order`` times
   ``netctl.graph.dm._alt_bfs`` against a variant defined here that sorts each level's
@@ -319,17 +315,6 @@ def main() -> None:
                                                cap),
                  lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
                                                 cap), a.repeat, eq)
-        for what, ends in (("forward from the source", (0, -1, False)),
-                           ("backward from the sink", (1, 0, True))):
-            pair(f"residual search {what}, no flow (linking._residual_search)",
-                 lambda: old_lk._residual_search(g.adj_ptr, g.head, g.rev, g.cap, *ends),
-                 lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, g.cap, *ends),
-                 a.repeat, eq)
-        pair("reverse Dijkstra to the source after a maximum linking (linking._back)",
-             lambda: old_lk._back(g.adj_ptr, g.head, g.rev, g.cost, lk._residual,
-                                  lk._potential),
-             lambda: linking._back(g.adj_ptr, g.head, g.rev, g.cost, lk._residual,
-                                   lk._potential), a.repeat, eq)
         old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
         if any("minimum_separator" in w for w in ONLY):  # about 30 s a call at 1e6
             pair("minimum_separator (max flow + search), 100 sources, 100 sinks",

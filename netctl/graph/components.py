@@ -146,15 +146,17 @@ def condensation_sources(in_indptr: np.ndarray, in_indices: np.ndarray, labels: 
 
 @njit(cache=True, nogil=True)
 def _reach(indptr, indices, seeds, seen):  # pragma: no cover - compiled
-    """Breadth-first search from ``seeds``, marking ``seen``. Each level is put in
-    increasing order before it is read (sorted, or for a level above n/16 found by a
-    scan of a mark array), so that the vertices read their edge lists in memory order:
-    measured 0.27 -> 0.13 s at 3*10^6 states from 100 seeds, of which 0.20 -> 0.13 s
-    from the order alone (``benchmarks/RESULTS.md``, 2026-12-05)."""
+    """Breadth-first search from ``seeds``, marking ``seen``. A level above n/16
+    vertices is put in increasing order before it is read (by a scan of a mark array),
+    so that its vertices read their edge lists in memory order: measured 0.27 -> 0.13 s
+    at 3*10^6 states from 100 seeds, of which 0.20 -> 0.13 s from the order alone.
+    Smaller levels stay in discovery order: sorting them made a 1000 x 1000 grid
+    (thousands of small levels, already local) 1.37 times slower
+    (``benchmarks/RESULTS.md``, 2026-12-05)."""
     n = indptr.size - 1
     queue = np.empty(n, np.int32)  # vertex ids fit in int32 (n < 2**31)
     mark = np.zeros(n, np.bool_)
-    big = n // 16  # a larger level is put in order by a scan instead of a sort
+    big = n // 16  # a larger level is put in order by a scan
     tail = 0
     for k in range(seeds.size):
         s = seeds[k]
@@ -175,8 +177,6 @@ def _reach(indptr, indices, seeds, seen):  # pragma: no cover - compiled
                         mark[v] = False
                         queue[t] = v
                         t += 1
-            else:
-                queue[head:tail].sort()
             level_end = tail
         u = queue[head]
         head += 1

@@ -400,38 +400,16 @@ def _residual_search(adj_ptr, head, rev, cap, start, stop,
                      backward):  # pragma: no cover - compiled
     """Nodes joined to ``start`` by arcs with residual capacity in ``cap``: the nodes it
     reaches, or with ``backward`` the nodes that reach it (each arc ``q`` read as the
-    reverse of arc ``rev[q]``). ``stop`` is marked but never passed through (-1: none).
-
-    Breadth-first, each level put in increasing order first (sorted, or for a level
-    above n/16 found by a scan of a mark array) so that the nodes read their arcs in
-    memory order: measured 0.32 -> 0.09 s forward and 0.44 -> 0.19 s backward at 10^6
-    states against a depth-first stack (``benchmarks/RESULTS.md``, 2026-12-05)."""
+    reverse of arc ``rev[q]``). ``stop`` is marked but never passed through (-1: none)."""
     n_nodes = adj_ptr.size - 1
     seen = np.zeros(n_nodes, np.bool_)
-    queue = np.empty(n_nodes, np.int64)
-    mark = np.zeros(n_nodes, np.bool_)
-    big = n_nodes // 16  # a larger level is put in order by a scan instead of a sort
+    stack = np.empty(n_nodes, np.int64)
     seen[start] = True
-    queue[0] = start
-    tail = 1
-    at = 0
-    level_end = 0
-    while at < tail:
-        if at == level_end:
-            if tail - at > big:
-                for t in range(at, tail):
-                    mark[queue[t]] = True
-                t = at
-                for v in range(n_nodes):
-                    if mark[v]:
-                        mark[v] = False
-                        queue[t] = v
-                        t += 1
-            else:
-                queue[at:tail].sort()
-            level_end = tail
-        v = queue[at]
-        at += 1
+    stack[0] = start
+    top = 1
+    while top:
+        top -= 1
+        v = stack[top]
         if v == stop:
             continue
         for q in range(adj_ptr[v], adj_ptr[v + 1]):
@@ -439,8 +417,8 @@ def _residual_search(adj_ptr, head, rev, cap, start, stop,
             u = head[q]
             if cap[f] > 0 and not seen[u]:
                 seen[u] = True
-                queue[tail] = u
-                tail += 1
+                stack[top] = u
+                top += 1
     return seen
 
 
@@ -448,23 +426,13 @@ def _residual_search(adj_ptr, head, rev, cap, start, stop,
 def _back(adj_ptr, head, rev, cost, cap, pi):  # pragma: no cover - compiled
     """For an optimal flow (``cap`` residual, ``pi`` potentials): the least real cost of a
     residual path from each node back to the super-source without passing through the
-    super-sink (reverse Dijkstra on reduced costs, bucket queue). 2**62: no path.
-
-    A bucket is settled in rounds: its live entries are gathered and put in increasing
-    order (sorted, or for a round above n/16 found by a scan of a mark array), and the
-    nodes a zero reduced cost brings into the same bucket meanwhile form the next round;
-    nodes in index order read their arcs in memory order (measured 1.01 -> 0.67 s at
-    10^6 states against popping the bucket's list in discovery order;
-    ``benchmarks/RESULTS.md``, 2026-12-05)."""
+    super-sink (reverse Dijkstra on reduced costs, bucket queue). 2**62: no path."""
     n_nodes = adj_ptr.size - 1
     lo_pi = pi.min()
     hi_pi = pi.max()
     dcap = 2 * n_nodes + (hi_pi - lo_pi) + 2
     dist = np.full(n_nodes, _INF, np.int64)
     done = np.zeros(n_nodes, np.bool_)
-    mark = np.zeros(n_nodes, np.bool_)
-    buf = np.empty(n_nodes, np.int64)
-    big = n_nodes // 16  # a larger round is put in order by a scan instead of a sort
     bucket = np.full(dcap + 1, -1, np.int64)
     pool_node = np.empty(cost.size + 1, np.int64)
     pool_next = np.empty(cost.size + 1, np.int64)
@@ -477,46 +445,30 @@ def _back(adj_ptr, head, rev, cost, cap, pi):  # pragma: no cover - compiled
     b = 0
     while b <= hi:
         while bucket[b] >= 0:
-            nb = 0
             e = bucket[b]
-            bucket[b] = -1
-            while e >= 0:
-                v = pool_node[e]
-                if not done[v] and dist[v] == b and not mark[v]:
-                    mark[v] = True
-                    buf[nb] = v
-                    nb += 1
-                e = pool_next[e]
-            if nb > big:
-                t = 0
-                for v in range(n_nodes):
-                    if mark[v]:
-                        buf[t] = v
-                        t += 1
-            else:
-                buf[:nb].sort()
-            for t in range(nb):
-                v = buf[t]
-                mark[v] = False
-                done[v] = True
-                if v == 1:
-                    continue  # never through the super-sink
-                for q in range(adj_ptr[v], adj_ptr[v + 1]):
-                    f = rev[q]  # arc u -> v with residual capacity
-                    if cap[f] <= 0:
-                        continue
-                    u = head[q]
-                    if done[u] or u == 0:
-                        continue
-                    nd = b + cost[f] + pi[u] - pi[v]
-                    if nd < dist[u] and nd <= dcap:
-                        dist[u] = nd
-                        pool_node[n_pool] = u
-                        pool_next[n_pool] = bucket[nd]
-                        bucket[nd] = n_pool
-                        n_pool += 1
-                        if nd > hi:
-                            hi = nd
+            bucket[b] = pool_next[e]
+            v = pool_node[e]
+            if done[v] or dist[v] != b:
+                continue
+            done[v] = True
+            if v == 1:
+                continue  # never through the super-sink
+            for q in range(adj_ptr[v], adj_ptr[v + 1]):
+                f = rev[q]  # arc u -> v with residual capacity
+                if cap[f] <= 0:
+                    continue
+                u = head[q]
+                if done[u] or u == 0:
+                    continue
+                nd = b + cost[f] + pi[u] - pi[v]
+                if nd < dist[u] and nd <= dcap:
+                    dist[u] = nd
+                    pool_node[n_pool] = u
+                    pool_next[n_pool] = bucket[nd]
+                    bucket[nd] = n_pool
+                    n_pool += 1
+                    if nd > hi:
+                        hi = nd
         b += 1
     back = np.full(n_nodes, _INF, np.int64)
     for v in range(n_nodes):

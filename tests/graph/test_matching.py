@@ -331,7 +331,7 @@ def test_repeated_entries_and_warm_starts_on_both_paths(monkeypatch, prefetch_by
 @pytest.mark.parametrize("mode", ["python", "compiled"])
 def test_reachable_from_many_sources_equals_scipy_breadth_first_order(mode):
     # reachability from several sources (repeats included), on graphs deep enough for
-    # small sorted levels and wide enough for large scanned ones; reference: the union
+    # small levels and wide enough for large ones put in order by a scan; reference: the union
     # of SciPy's breadth_first_order from each source
     from scipy.sparse.csgraph import breadth_first_order
 
