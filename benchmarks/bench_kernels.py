@@ -24,6 +24,8 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   30 s a call at 10^6 states, so only with ``--only minimum_separator``);
   ``reachable_from`` the accessibility search of every analysis (a queue in discovery
   order at BASE; here levels above n/16 in vertex order), from 100 random states;
+  ``--grid`` runs the linking and search rows on a square grid instead (one source,
+  one sink, one seed at the corners), where discovery order is already local;
 * a breadth-first search that visits each level in index order reads its rows' data in
   memory order: ``alternating search, levels in order`` times
   ``netctl.graph.dm._alt_bfs`` against a variant defined here that sorts each level's
@@ -56,6 +58,7 @@ import scipy.sparse as sp
 from numba import njit
 
 from netctl import StructuredSystem
+from netctl.generate import grid
 from netctl._jit import always_compiled
 from netctl.graph import components, costmatch, dm, linking
 from netctl.graph.matching import maximum_matching, transpose_csr
@@ -265,6 +268,9 @@ def main() -> None:
     ap.add_argument("--n", type=float, default=1e6)
     ap.add_argument("--base", default="main")
     ap.add_argument("--repeat", type=int, default=7)
+    ap.add_argument("--grid", action="store_true",
+                    help="a square grid of about n states instead of Erdos-Renyi "
+                         "(one source, sink and seed at the corners)")
     ap.add_argument("--only", action="append", default=[],
                     help="run only the kernels whose label contains this (repeatable)")
     a = ap.parse_args()
@@ -272,7 +278,8 @@ def main() -> None:
     n = int(a.n)
     print(f"# {platform.node()} {platform.processor() or platform.machine()}, "
           f"{os.cpu_count()} CPUs, Python {platform.python_version()}, "
-          f"load {os.getloadavg()[0]:.1f}, n = {n}, base = {a.base}, "
+          f"load {os.getloadavg()[0]:.1f}, n = {n}{' (grid)' if a.grid else ''}, "
+          f"base = {a.base}, "
           f"{time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}")
     print("| kernel | old CPU s (median) | new CPU s (median) | paired ratio new/old "
           "(median) | ratio of minima |")
@@ -290,22 +297,28 @@ def main() -> None:
                      least_cost_runner(old_cm, args, every),
                      least_cost_runner(new_cm, args, every), a.repeat, eq)
 
-        # directed Erdos-Renyi, 3n links (bench_folds.py's draws)
         rng = np.random.default_rng(0)
-        src, dst = rng.integers(0, n, 3 * n), rng.integers(0, n, 3 * n)
-        keep = src != dst
-        A = sp.csr_array((np.ones(int(keep.sum())), (dst[keep], src[keep])), shape=(n, n))
-        A.sum_duplicates()
-        A.sort_indices()
+        if a.grid:  # a square grid, links both ways (thousands of small levels)
+            width = int(round(n ** 0.5))
+            A = grid(width, width).A
+            n = A.shape[0]
+        else:  # directed Erdos-Renyi, 3n links (bench_folds.py's draws)
+            src, dst = rng.integers(0, n, 3 * n), rng.integers(0, n, 3 * n)
+            keep = src != dst
+            A = sp.csr_array((np.ones(int(keep.sum())), (dst[keep], src[keep])),
+                             shape=(n, n))
+            A.sum_duplicates()
+            A.sort_indices()
         ptr = A.indptr.astype(np.int64)
         ind = A.indices.astype(np.int64)
         rm, cm = maximum_matching(ptr, ind, n)
         tptr, tind = (np.ascontiguousarray(x, np.int64)
                       for x in transpose_csr(ptr, ind, np.int64(n)))
         out_ptr, out_ind = transpose_csr(ptr, ind, np.int64(n))
-        srcs = rng.choice(n, 100, replace=False).astype(np.int64)
-        snks = rng.choice(n, 100, replace=False).astype(np.int64)
-        one = np.arange(101, dtype=np.int64)
+        k = 1 if a.grid else 100  # on the grid: one source at a corner, one sink opposite
+        srcs = np.zeros(1, np.int64) if a.grid else rng.choice(n, k, replace=False)
+        snks = np.full(1, n - 1, np.int64) if a.grid else rng.choice(n, k, replace=False)
+        one = np.arange(k + 1, dtype=np.int64)
         g = linking.linking_graph(n, one, srcs, out_ptr, out_ind, one, snks)
         old_lk = load_old(a.base, "netctl/graph/linking.py", "old_linking", tmp)
         lk = linking.maximum_linking(g, paths=False)
@@ -320,12 +333,12 @@ def main() -> None:
             pair("minimum_separator (max flow + search), 100 sources, 100 sinks",
                  lambda: old_lk.minimum_separator(old_g),
                  lambda: linking.minimum_separator(g), a.repeat, eq)
-        pair("maximum_linking (potentials + flow), 100 sources, 100 sinks",
+        pair(f"maximum_linking (potentials + flow), {k} sources, {k} sinks",
              lambda: old_lk.maximum_linking(g, paths=False).length,
              lambda: linking.maximum_linking(g, paths=False).length, a.repeat, eq)
         old_comp = load_old(a.base, "netctl/graph/components.py", "old_components", tmp)
-        seeds = rng.choice(n, 100, replace=False).astype(np.int64)
-        pair("reachable_from 100 random states (accessibility from the inputs)",
+        seeds = np.zeros(1, np.int64) if a.grid else rng.choice(n, 100, replace=False)
+        pair(f"reachable_from {seeds.size} states (accessibility from the inputs)",
              lambda: old_comp.reachable_from(out_ptr, out_ind, seeds),
              lambda: components.reachable_from(out_ptr, out_ind, seeds), a.repeat, eq)
         for side, (p, i, partner, starts) in {
