@@ -13,6 +13,8 @@ from netctl.errors import InvalidSystemError, OptionError
 
 __all__ = ["CavityPrediction", "cavity_driver_fraction", "degree_distribution"]
 
+#: Values of the fixed-point functions this close to 0 are roots (a few ulps of 1).
+_ZERO = 8 * np.finfo(np.float64).eps
 _GRID = 4097  # sign-change scan of the fixed-point map on [0, 1]
 
 
@@ -182,9 +184,15 @@ def _brentq(f: Callable[[float], float], xa: float, xb: float, xtol: float, rtol
 
 
 def _roots(f: Callable[[Any], Any]) -> list[float]:
-    """All sign-change roots of ``f`` on [0, 1], bracketed by a grid, refined by Brent."""
+    """All sign-change roots of ``f`` on [0, 1], bracketed by a grid, refined by Brent.
+
+    A grid value within a few rounding errors of 0 (``_ZERO``; ``f`` is a difference of
+    probabilities) is a root itself: ``w = 1`` solves the equations exactly when no
+    state has excess degree 0 on the other side, and rounding can leave ``f(1)`` at
+    2e-16 with no sign change to bracket."""
     xs = np.linspace(0.0, 1.0, _GRID)
     fs = np.asarray(f(xs), np.float64)  # the whole grid at once; Brent refines by scalars
+    fs = np.where(np.abs(fs) <= _ZERO, 0.0, fs)
     roots = [float(x) for x, v in zip(xs, fs) if v == 0.0]
     for i in np.flatnonzero(fs[:-1] * fs[1:] < 0):
         roots.append(_brentq(f, xs[i], xs[i + 1], xtol=1e-15, rtol=1e-15, maxiter=200))
