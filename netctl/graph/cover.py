@@ -24,8 +24,9 @@ of them as are vertex-disjoint. The assignment LP's optimality conditions (dual
 feasibility, tight matched edges, free columns at the sink's price, other column prices
 below it) hold after every step, so the final perfect assignment is optimal whatever
 order the rows were matched in. On the failing networks netctl targets the phases are
-three or four (``benchmarks/RESULTS.md``), each one search over the edges plus the
-matching. Exact.
+three or four (``benchmarks/RESULTS.md``), each one search over the edges, one copy of
+the tight edges (the matching reads only those: prices do not change within a phase)
+and the matching. Exact.
 
 References
 ----------
