@@ -131,14 +131,19 @@ def stage_progress(what: str, *, stream: TextIO | None = None,
     out = _terminal(stream, enabled)
     if out is None:
         return None
-    state: dict[str, Any] = {"stage": None, "open": False}
+    state: dict[str, Any] = {"stage": None, "open": False, "pct": -1}
 
     def tick(stage: str, done: int, total: int) -> None:
         if state["open"] and state["stage"] != stage:
             out.write("\n")  # the previous stage stopped short of its total
             state["open"] = False
-        state["stage"] = stage
-        if done == total or done % max(total // 100, 1) == 0:
+        if state["stage"] != stage:
+            state["stage"], state["pct"] = stage, -1
+        # a line whenever another percent is reached: steps of one, and jumps (a phase
+        # that places thousands at once) alike
+        pct = done * 100 // total if total > 0 else 100
+        if done == total or pct > state["pct"]:
+            state["pct"] = pct
             out.write(f"\rnetctl: {what}: {stage} {done}/{total}")
             state["open"] = done != total
             if done == total:
