@@ -5,7 +5,8 @@ Each command runs once with the *before* tree first on ``PYTHONPATH``, then once
 are the medians of each side and the medians of the per-pair ratios after/before. Wall
 seconds from ``time.perf_counter``, CPU seconds (user + system of the child and the
 children it waited for) from ``os.wait4``. Used by bench_startup.py, bench_compare.py,
-bench_small_maps.py and bench_small_numeric.py (run as scripts from any folder).
+bench_small_maps.py, bench_small_numeric.py and bench_report_figures.py (run as scripts
+from any folder).
 """
 
 from __future__ import annotations
@@ -19,7 +20,8 @@ import sys
 import time
 from collections.abc import Iterable
 
-__all__ = ["run_once", "env_for", "check_trees", "machine_line", "in_turn", "tree_options"]
+__all__ = ["run_once", "env_for", "check_trees", "machine_line", "in_turn", "tree_options",
+           "pair_row", "floor_row"]
 
 Times = tuple[float, float]
 
@@ -94,3 +96,23 @@ def in_turn(tail: list[str], before: str, after: str, cwd: str, runs: int, warmu
     rw = statistics.median(a[0] / b[0] for a, b in zip(rows["after"], rows["before"]))
     rc = statistics.median(a[1] / b[1] for a, b in zip(rows["after"], rows["before"]))
     return med, rw, rc
+
+
+def pair_row(name: str, tail: list[str], trees: dict[str, str], cwd: str, runs: int,
+             ok: Iterable[int] = (0, 1)) -> None:
+    """Print one Markdown row: ``python3 *tail`` with the trees ``trees["before"]`` and
+    ``trees["after"]`` in turn (:func:`in_turn`): medians of wall and CPU seconds of each
+    side, then the paired ratios."""
+    med, rw, rc = in_turn(tail, trees["before"], trees["after"], cwd, runs, ok=ok)
+    print(f"| {name} | {med['before'][0]:.3f} | {med['after'][0]:.3f} | "
+          f"{med['before'][1]:.3f} | {med['after'][1]:.3f} | {rw:.2f} | {rc:.2f} |",
+          flush=True)
+
+
+def floor_row(name: str, code: str, cwd: str, runs: int) -> None:
+    """Print one Markdown row: ``python3 -c code`` with no tree (an import floor), one
+    warm-up then ``runs`` runs, medians in the "after" columns."""
+    got = [run_once([sys.executable, "-c", code], env_for(None), cwd)
+           for _ in range(runs + 1)][1:]
+    print(f"| floor: {name} | | {statistics.median(w for w, _ in got):.3f} | | "
+          f"{statistics.median(c for _, c in got):.3f} | | |", flush=True)

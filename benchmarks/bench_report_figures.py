@@ -24,7 +24,6 @@ from __future__ import annotations
 
 import argparse
 import os
-import statistics
 import subprocess
 import sys
 import tempfile
@@ -33,25 +32,11 @@ sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a scrip
 from _two_trees import (  # noqa: E402
     check_trees,
     env_for,
-    in_turn,
+    floor_row,
     machine_line,
-    run_once,
+    pair_row,
     tree_options,
 )
-
-
-def pairs(name: str, tail: list[str], trees: dict[str, str], d: str, runs: int) -> None:
-    med, rw, rc = in_turn(tail, trees["before"], trees["after"], d, runs)
-    print(f"| {name} | {med['before'][0]:.3f} | {med['after'][0]:.3f} | "
-          f"{med['before'][1]:.3f} | {med['after'][1]:.3f} | {rw:.2f} | {rc:.2f} |",
-          flush=True)
-
-
-def floor(name: str, code: str, d: str, runs: int) -> None:
-    got = [run_once([sys.executable, "-c", code], env_for(None), d) for _ in range(runs + 1)][1:]
-    print(f"| floor: {name} | | {statistics.median(w for w, _ in got):.3f} | | "
-          f"{statistics.median(c for _, c in got):.3f} | | |", flush=True)
-
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
@@ -71,7 +56,7 @@ def main() -> None:
         with open(two, "w") as fh:
             fh.write("a,b\nb,c\n")
         for suffix in ("html", "json", "md"):
-            pairs(f"report --out .{suffix}, 2-line file", [*cli, "report", two, "--out",
+            pair_row(f"report --out .{suffix}, 2-line file", [*cli, "report", two, "--out",
                   f"{out}.{suffix}"], trees, d, args.runs)
         if args.large:
             net = os.path.join(d, "large.csv")
@@ -80,11 +65,11 @@ def main() -> None:
                            env=env_for(args.after), cwd=d, check=True,
                            stdout=subprocess.DEVNULL)
             for suffix in ("html", "md"):
-                pairs(f"report --out .{suffix}, {args.large} states", [
+                pair_row(f"report --out .{suffix}, {args.large} states", [
                     *cli, "report", net, "--out", f"{out}.{suffix}"], trees, d, args.runs)
-        floor("bare interpreter", "pass", d, args.runs)
-        floor("import numpy", "import numpy", d, args.runs)
-        floor("matplotlib figure + Agg canvas", "import matplotlib.figure, "
+        floor_row("bare interpreter", "pass", d, args.runs)
+        floor_row("import numpy", "import numpy", d, args.runs)
+        floor_row("matplotlib figure + Agg canvas", "import matplotlib.figure, "
               "matplotlib.backends.backend_agg", d, args.runs)
 
 

@@ -26,29 +26,20 @@ from __future__ import annotations
 import argparse
 import os
 import platform
-import statistics
 import subprocess
 import sys
 import tempfile
 import time
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
-from _two_trees import check_trees, env_for, in_turn, run_once, tree_options  # noqa: E402
+from _two_trees import (  # noqa: E402
+    check_trees,
+    env_for,
+    floor_row,
+    pair_row,
+    tree_options,
+)
 
-
-
-def pairs(name: str, tail: list[str], trees: dict[str, str], d: str, runs: int,
-          ok: tuple[int, ...] = (0, 1)) -> None:
-    med, rw, rc = in_turn(tail, trees["before"], trees["after"], d, runs, ok=ok)
-    print(f"| {name} | {med['before'][0]:.3f} | {med['after'][0]:.3f} | "
-          f"{med['before'][1]:.3f} | {med['after'][1]:.3f} | {rw:.2f} | {rc:.2f} |",
-          flush=True)
-
-
-def floor(name: str, code: str, d: str, runs: int) -> None:
-    got = [run_once([sys.executable, "-c", code], env_for(None), d) for _ in range(runs + 1)][1:]
-    print(f"| floor: {name} | | {statistics.median(w for w, _ in got):.3f} | | "
-          f"{statistics.median(c for _, c in got):.3f} | | |", flush=True)
 
 
 def main() -> None:
@@ -74,27 +65,27 @@ def main() -> None:
                            env=env_for(args.after), cwd=d, check=True,
                            stdout=subprocess.DEVNULL)
             for suffix in ("html", "png"):
-                pairs(f"map --out .{suffix}, {args.large} states", ["-m", "netctl.cli", "map",
+                pair_row(f"map --out .{suffix}, {args.large} states", ["-m", "netctl.cli", "map",
                       net, "--out", f"{out}.{suffix}"], trees, d, args.runs)
             return
         two = os.path.join(d, "two.csv")
         with open(two, "w") as fh:
             fh.write("a,b\nb,c\n")
         cli = ["-m", "netctl.cli"]
-        pairs("drivers (reference)", [*cli, "drivers", two], trees, d, args.runs)
-        pairs("map (no --out: usage message)", [*cli, "map", two], trees, d, args.runs,
+        pair_row("drivers (reference)", [*cli, "drivers", two], trees, d, args.runs)
+        pair_row("map (no --out: usage message)", [*cli, "map", two], trees, d, args.runs,
               ok=(2,))
         for suffix in ("html", "geojson", "svg", "png"):
-            pairs(f"map --out .{suffix}", [*cli, "map", two, "--out", f"{out}.{suffix}"],
+            pair_row(f"map --out .{suffix}", [*cli, "map", two, "--out", f"{out}.{suffix}"],
                   trees, d, args.runs)
         for suffix in ("html", "json"):
-            pairs(f"report --out .{suffix}", [*cli, "report", two, "--out",
+            pair_row(f"report --out .{suffix}", [*cli, "report", two, "--out",
                                               f"{out}.{suffix}"], trees, d, args.runs)
-        floor("bare interpreter", "pass", d, args.runs)
-        floor("import numpy", "import numpy", d, args.runs)
-        floor("matplotlib figure + Agg canvas", "import matplotlib.figure, "
+        floor_row("bare interpreter", "pass", d, args.runs)
+        floor_row("import numpy", "import numpy", d, args.runs)
+        floor_row("matplotlib figure + Agg canvas", "import matplotlib.figure, "
               "matplotlib.backends.backend_agg", d, args.runs)
-        floor("matplotlib.pyplot", "import matplotlib.pyplot", d, args.runs)
+        floor_row("matplotlib.pyplot", "import matplotlib.pyplot", d, args.runs)
 
 
 if __name__ == "__main__":
