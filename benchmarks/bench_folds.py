@@ -34,6 +34,8 @@ from netctl._jit import always_compiled
 from netctl.graph import dm, linking, stem_cycle
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural.failures._core import dedicated_B, design_facts
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
+from _in_process import ONLY, eq, pair_row  # noqa: E402
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
@@ -52,32 +54,11 @@ def load_old(base: str, path: str, name: str, folder: str) -> Any:
     return mod
 
 
-ONLY: list[str] = []
 
 
-def pair(label: str, old: Callable[[], Any], new: Callable[[], Any], repeat: int,
-         same: Callable[[Any, Any], bool]) -> None:
-    if ONLY and not any(w in label for w in ONLY):
-        return
-    a, b = old(), new()  # warm-up (compile or load the cache) and the answer check
-    assert same(a, b), label
-    to, tn = [], []
-    for _ in range(repeat):
-        t = time.process_time()
-        old()
-        to.append(time.process_time() - t)
-        t = time.process_time()
-        new()
-        tn.append(time.process_time() - t)
-    mo, mn = float(np.median(to)), float(np.median(tn))
-    print(f"| {label} | {mo:.4f} | {mn:.4f} | {mn / mo:.2f} | {min(tn) / min(to):.2f} |",
-          flush=True)
+def _pair(*args: Any) -> None:
+    pair_row(*args, paired=False)  # this script's tables: the ratio of the medians
 
-
-def eq(a: Any, b: Any) -> bool:
-    if isinstance(a, tuple):
-        return all(eq(x, y) for x, y in zip(a, b))
-    return bool(np.array_equal(np.asarray(a), np.asarray(b)))
 
 
 def main() -> None:
@@ -116,7 +97,7 @@ def main() -> None:
 
         # 1. the engine's alternating search from the unmatched rows (banned=None)
         rm, cm = maximum_matching(ptr, ind, n)
-        pair("alternating_reach_rows, unmatched rows, no ban",
+        _pair("alternating_reach_rows, unmatched rows, no ban",
              lambda: old_dm.alternating_reach_rows(ptr, ind, n, cm),
              lambda: dm.alternating_reach_rows(ptr, ind, n, cm), a.repeat, eq)
 
@@ -137,7 +118,7 @@ def main() -> None:
                 out.append(np.flatnonzero(rs))
             return out
 
-        pair(f"rivals of {crit.size} critical inputs (m = {f.m})", old_rivals,
+        _pair(f"rivals of {crit.size} critical inputs (m = {f.m})", old_rivals,
              lambda: [f.rivals(int(q)) for q in crit], a.repeat,
              lambda x, y: all(eq(p, q) for p, q in zip(x, y)))
 
@@ -149,17 +130,17 @@ def main() -> None:
         g = linking.linking_graph(n, one, srcs, out_ptr, out_ind, one, snks)
         lk = linking.maximum_linking(g, paths=False)
         for what, cap in (("no flow", g.cap), ("after a maximum linking", lk._residual)):
-            pair(f"linking: backward residual search to the sink, {what}",
+            _pair(f"linking: backward residual search to the sink, {what}",
                  lambda: old_lk._to_sink(g.adj_ptr, g.head, g.rev, cap),
                  lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, cap, 1, 0, True),
                  a.repeat, eq)
-            pair(f"linking: forward residual search from the source, {what}",
+            _pair(f"linking: forward residual search from the source, {what}",
                  lambda: old_lk._residual_reach(g.adj_ptr, g.head, cap),
                  lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, cap, 0, -1,
                                                   False),
                  a.repeat, eq)
         old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
-        pair("linking: minimum_separator (max flow + search)",
+        _pair("linking: minimum_separator (max flow + search)",
              lambda: old_lk.minimum_separator(old_g),
              lambda: linking.minimum_separator(g), max(3, a.repeat // 2), eq)
 
@@ -185,7 +166,7 @@ def main() -> None:
                 return v, r, cost
             return run
 
-        pair(f"stem_cycle: _prices (cycle cover with dual prices), n = {n}", prices(old_sc),
+        _pair(f"stem_cycle: _prices (cycle cover with dual prices), n = {n}", prices(old_sc),
              prices(stem_cycle), a.repeat, eq)
 
 

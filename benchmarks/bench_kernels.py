@@ -63,9 +63,11 @@ from netctl._jit import always_compiled
 from netctl.graph import components, costmatch, dm, linking
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural import controllability
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
+from _in_process import ONLY, eq, pair_row  # noqa: E402
+from _networks import barred_check_network  # noqa: E402
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
-ONLY: list[str] = []
 
 
 def load_old(base: str, path: str, name: str, folder: str) -> Any:
@@ -88,56 +90,13 @@ def load_file(f: str, name: str) -> Any:
     return mod
 
 
-def pair(label: str, old: Callable[[], Any], new: Callable[[], Any], repeat: int,
-         same: Callable[[Any, Any], bool]) -> None:
-    if ONLY and not any(w in label for w in ONLY):
-        return
-    a, b = old(), new()  # warm-up (compile or load the cache) and the answer check
-    assert same(a, b), label
-    to, tn = [], []
-    for _ in range(repeat):
-        t = time.process_time()
-        old()
-        to.append(time.process_time() - t)
-        t = time.process_time()
-        new()
-        tn.append(time.process_time() - t)
-    mo, mn = float(np.median(to)), float(np.median(tn))
-    paired = float(np.median(np.array(tn) / np.array(to)))
-    print(f"| {label} | {mo:.4f} | {mn:.4f} | {paired:.2f} | {min(tn) / min(to):.2f} |",
-          flush=True)
-
-
-def eq(a: Any, b: Any) -> bool:
-    if isinstance(a, tuple):
-        return all(eq(x, y) for x, y in zip(a, b))
-    return bool(np.array_equal(np.asarray(a), np.asarray(b)))
-
 
 # ----------------------------------------------------------------- 1. least-cost extension
-def cycles_network(n: int) -> tuple[np.ndarray, np.ndarray]:
-    """``bench_check_barred.py``'s network with source cycles (the same draws)."""
-    rng = np.random.default_rng(0)
-    src = rng.integers(0, n, 3 * n)
-    dst = rng.integers(0, n, 3 * n)
-    ring_states = rng.permutation(n)[: n // 50]
-    keep = ~np.isin(dst, ring_states)
-    src, dst = src[keep], dst[keep]
-    pos = 0
-    rs, rd = [], []
-    while pos < ring_states.size:
-        k = int(rng.integers(2, 5))
-        ring = ring_states[pos:pos + k]
-        pos += k
-        rs.append(ring)
-        rd.append(np.roll(ring, -1))
-    return np.concatenate([src, *rs]), np.concatenate([dst, *rd])
-
 
 def least_cost_input(n: int) -> list[Any]:
     """The arguments ``controllability`` hands to ``extend_matching_least_cost`` for
     ``check``'s smallest fix (30% of the states barred, inputs on 0.1%)."""
-    src, dst = cycles_network(n)
+    src, dst = barred_check_network(n, cycles=True)
     rng = np.random.default_rng(1)
     barred = rng.random(n) < 0.3
     driven = rng.choice(n, n // 1000, replace=False)
@@ -293,7 +252,7 @@ def main() -> None:
                 new_cm = load_file(os.path.join(ROOT, "netctl/graph/costmatch.py"),
                                    f"new_costmatch_{int(every)}")
                 what = "every row searched" if every else "as check calls it"
-                pair(f"least-cost extension, {what}",
+                pair_row(f"least-cost extension, {what}",
                      least_cost_runner(old_cm, args, every),
                      least_cost_runner(new_cm, args, every), a.repeat, eq)
 
@@ -323,29 +282,29 @@ def main() -> None:
         old_lk = load_old(a.base, "netctl/graph/linking.py", "old_linking", tmp)
         lk = linking.maximum_linking(g, paths=False)
         for what, cap in (("no flow", g.cap), ("after a maximum linking", lk._residual)):
-            pair(f"sink distances (linking potentials), {what}",
+            pair_row(f"sink distances (linking potentials), {what}",
                  lambda: old_lk._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
                                                cap),
                  lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
                                                 cap), a.repeat, eq)
         old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
         if any("minimum_separator" in w for w in ONLY):  # about 30 s a call at 1e6
-            pair("minimum_separator (max flow + search), 100 sources, 100 sinks",
+            pair_row("minimum_separator (max flow + search), 100 sources, 100 sinks",
                  lambda: old_lk.minimum_separator(old_g),
                  lambda: linking.minimum_separator(g), a.repeat, eq)
-        pair(f"maximum_linking (potentials + flow), {k} sources, {k} sinks",
+        pair_row(f"maximum_linking (potentials + flow), {k} sources, {k} sinks",
              lambda: old_lk.maximum_linking(g, paths=False).length,
              lambda: linking.maximum_linking(g, paths=False).length, a.repeat, eq)
         old_comp = load_old(a.base, "netctl/graph/components.py", "old_components", tmp)
         seeds = np.zeros(1, np.int64) if a.grid else rng.choice(n, 100, replace=False)
-        pair(f"reachable_from {seeds.size} states (accessibility from the inputs)",
+        pair_row(f"reachable_from {seeds.size} states (accessibility from the inputs)",
              lambda: old_comp.reachable_from(out_ptr, out_ind, seeds),
              lambda: components.reachable_from(out_ptr, out_ind, seeds), a.repeat, eq)
         for side, (p, i, partner, starts) in {
                 "from unmatched rows": (ptr, ind, cm, np.flatnonzero(rm < 0)),
                 "from unmatched columns": (tptr, tind, rm, np.flatnonzero(cm < 0))}.items():
             for how, cand in (("sorted", _alt_bfs_sorted), ("scan of large", _alt_bfs_scan)):
-                pair(f"alternating search {side}, levels in order ({how}; candidate)",
+                pair_row(f"alternating search {side}, levels in order ({how}; candidate)",
                      alt_runner(dm._alt_bfs, p, i, partner, starts, n),
                      alt_runner(cand, p, i, partner, starts, n), a.repeat, eq)
 
