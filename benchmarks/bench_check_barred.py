@@ -17,6 +17,7 @@ fix size, how many of the fix's states the column bars, and the source component
 
 __all__: list[str] = []
 
+import os
 import sys
 import time
 import warnings
@@ -28,27 +29,8 @@ import scipy.sparse as sp  # noqa: E402
 from netctl import StructuredSystem  # noqa: E402
 from netctl.structural import controllability  # noqa: E402
 
-
-def network(n: int, cycles: bool) -> tuple[np.ndarray, np.ndarray]:
-    rng = np.random.default_rng(0)
-    src = rng.integers(0, n, 3 * n)
-    dst = rng.integers(0, n, 3 * n)
-    if cycles:
-        ring_states = rng.permutation(n)[: n // 50]
-        keep = ~np.isin(dst, ring_states)
-        src, dst = src[keep], dst[keep]
-        pos = 0
-        rs, rd = [], []
-        while pos < ring_states.size:
-            k = int(rng.integers(2, 5))
-            ring = ring_states[pos:pos + k]
-            pos += k
-            rs.append(ring)
-            rd.append(np.roll(ring, -1))
-        src = np.concatenate([src, *rs])
-        dst = np.concatenate([dst, *rd])
-    return src, dst
-
+sys.path.insert(1, os.path.dirname(os.path.abspath(__file__)))  # the shared network
+from _networks import barred_check_network as network  # noqa: E402
 
 for n in [int(float(a)) for a in sys.argv[2:]] or [10**5, 10**6]:
     for cycles in (False, True):
