@@ -146,6 +146,18 @@ def test_source_entering_only_states_that_reach_no_sink_needs_no_pass():
     assert "to_sink" in L2._labels and "back" in L2._labels
 
 
+def _random_split_network(rng: np.random.Generator, ends: int, share: float):
+    """A random node-split linking network (invented data): up to 39 states with about
+    2.5 links each, and 1 .. ends - 1 sources and sinks, each on a ``share`` of the
+    states. Returns ``(graph, n_states, n_sources)``."""
+    n = int(rng.integers(2, 40))
+    k, r = (int(v) for v in rng.integers(1, ends, 2))
+    A = rng.random((n, n)) < 2.5 / n
+    S = rng.random((k, n)) < share
+    H = rng.random((r, n)) < share
+    return linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H)), n, k
+
+
 @pytest.mark.parametrize("mode", ["python", "compiled"])
 def test_sink_distances_equal_networkx_dijkstra(mode):
     # the starting potentials: least cost (0/1 arcs) from every node of the node-split
@@ -157,12 +169,7 @@ def test_sink_distances_equal_networkx_dijkstra(mode):
     rng = np.random.default_rng(3)
     deep = 0
     for trial in range(80):
-        n = int(rng.integers(2, 40))
-        k, r = (int(v) for v in rng.integers(1, 5, 2))
-        A = rng.random((n, n)) < 2.5 / n
-        S = rng.random((k, n)) < 0.1
-        H = rng.random((r, n)) < 0.1
-        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        g, n, k = _random_split_network(rng, 5, 0.1)
         tail = np.repeat(np.arange(g.adj_ptr.size - 1), np.diff(g.adj_ptr))
         for cap in (g.cap, maximum_linking(g, paths=False)._residual):
             G = nx.DiGraph()
@@ -192,12 +199,7 @@ def test_back_costs_equal_networkx_bellman_ford(mode):
     rng = np.random.default_rng(8)
     far = 0
     for trial in range(80):
-        n = int(rng.integers(2, 40))
-        k, r = (int(v) for v in rng.integers(1, 6, 2))
-        A = rng.random((n, n)) < 2.5 / n
-        S = rng.random((k, n)) < 0.15
-        H = rng.random((r, n)) < 0.15
-        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        g, n, k = _random_split_network(rng, 6, 0.15)
         L = maximum_linking(g, paths=False)
         cap, pi = L._residual, L._potential
         with (_jit.always_python() if mode == "python" else _jit.always_compiled()):
@@ -229,12 +231,7 @@ def test_residual_search_equals_scipy_breadth_first_order(mode):
     rng = np.random.default_rng(21)
     wide = 0
     for trial in range(60):
-        n = int(rng.integers(2, 40))
-        k, r = (int(v) for v in rng.integers(1, 6, 2))
-        A = rng.random((n, n)) < 2.5 / n
-        S = rng.random((k, n)) < 0.15
-        H = rng.random((r, n)) < 0.15
-        g = linking_graph(n, *_csr(S), *_csr(A.T), *_csr(H))
+        g, n, k = _random_split_network(rng, 6, 0.15)
         n_nodes = g.adj_ptr.size - 1
         tail = np.repeat(np.arange(n_nodes), np.diff(g.adj_ptr))
         for cap in (g.cap, maximum_linking(g, paths=False)._residual):
