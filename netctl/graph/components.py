@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 from netctl._jit import njit
+from netctl.graph._levels import order_by_scan
 
 __all__ = ["strongly_connected_components", "condensation_sources", "reachable_from",
            "label_reach", "induced_subgraph", "weak_component_count", "weak_component_labels"]
@@ -169,14 +170,7 @@ def _reach(indptr, indices, seeds, seen):  # pragma: no cover - compiled
     while head < tail:
         if head == level_end:
             if tail - head > big:
-                for t in range(head, tail):
-                    mark[queue[t]] = True
-                t = head
-                for v in range(n):
-                    if mark[v]:
-                        mark[v] = False
-                        queue[t] = v
-                        t += 1
+                order_by_scan(queue, head, tail, mark)
             level_end = tail
         u = queue[head]
         head += 1

@@ -34,6 +34,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 from netctl._jit import njit
+from netctl.graph._levels import order_by_scan
 
 __all__ = ["Linking", "maximum_linking", "minimum_separator", "LinkingGraph",
            "linking_graph", "extension"]
@@ -197,14 +198,7 @@ def _sink_distance(adj_ptr, head, rev, forward, cost, cap):  # pragma: no cover 
         while lo < nc:
             hi = nc
             if hi - lo > big:
-                for t in range(lo, hi):
-                    mark[cur[t]] = True
-                t = lo
-                for v in range(n_nodes):
-                    if mark[v]:
-                        mark[v] = False
-                        cur[t] = v
-                        t += 1
+                order_by_scan(cur, lo, hi, mark)
             else:
                 cur[lo:hi].sort()
             for t in range(lo, hi):
