@@ -1,5 +1,6 @@
-"""What the in-process kernel benchmarks share (bench_folds.py, bench_kernels.py): an old
-and a new callable timed in turn in one process, and the equality of their answers.
+"""What the in-process kernel benchmarks share (bench_folds.py, bench_kernels.py): a module
+as it was at an earlier revision, an old and a new callable timed in turn in one
+process, and the equality of their answers.
 
 ``pair_row`` runs each callable once untimed (compile or load the cache) and checks the
 answers agree, then times ``repeat`` pairs, old then new, in CPU seconds
@@ -9,13 +10,20 @@ words in :data:`ONLY` are skipped (the scripts fill it from ``--only``).
 
 from __future__ import annotations
 
+import importlib.util
+import os
+import subprocess
+import sys
 import time
 from collections.abc import Callable
 from typing import Any
 
 import numpy as np
 
-__all__ = ["ONLY", "pair_row", "eq"]
+__all__ = ["ONLY", "pair_row", "eq", "load_old", "load_file"]
+
+#: the checkout these scripts belong to
+ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
 #: words a row's label must hold one of (empty: every row)
 ONLY: list[str] = []
@@ -48,3 +56,24 @@ def eq(a: Any, b: Any) -> bool:
     if isinstance(a, tuple):
         return all(eq(x, y) for x, y in zip(a, b))
     return bool(np.array_equal(np.asarray(a), np.asarray(b)))
+
+
+def load_old(base: str, path: str, name: str, folder: str) -> Any:
+    """The module at ``path`` as it is at revision ``base`` (``git show``), written into
+    ``folder`` and imported as ``name``."""
+    src = subprocess.run(["git", "-C", ROOT, "show", f"{base}:{path}"], check=True,
+                         capture_output=True, text=True).stdout
+    f = os.path.join(folder, name + ".py")
+    with open(f, "w") as fh:
+        fh.write(src)
+    return load_file(f, name)
+
+
+def load_file(f: str, name: str) -> Any:
+    """The module in file ``f``, imported as ``name`` (a copy of its own)."""
+    spec = importlib.util.spec_from_file_location(name, f)
+    assert spec and spec.loader
+    mod = importlib.util.module_from_spec(spec)
+    sys.modules[name] = mod
+    spec.loader.exec_module(mod)
+    return mod

@@ -17,10 +17,8 @@ the shared machine's load moves wall times by tens of percent) and their same-ru
 from __future__ import annotations
 
 import argparse
-import importlib.util
 import os
 import platform
-import subprocess
 import sys
 import tempfile
 import time
@@ -30,28 +28,16 @@ from typing import Any
 import numpy as np
 import scipy.sparse as sp
 
+# this checkout's netctl, not an installed one (the new side of every row)
+sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 from netctl._jit import always_compiled
 from netctl.graph import dm, linking, stem_cycle
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural.failures._core import dedicated_B, design_facts
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
-from _in_process import ONLY, eq, pair_row  # noqa: E402
-
-ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
+from _in_process import ONLY, eq, load_old, pair_row  # noqa: E402
 
 
-def load_old(base: str, path: str, name: str, folder: str) -> Any:
-    src = subprocess.run(["git", "-C", ROOT, "show", f"{base}:{path}"], check=True,
-                         capture_output=True, text=True).stdout
-    f = os.path.join(folder, name + ".py")
-    with open(f, "w") as fh:
-        fh.write(src)
-    spec = importlib.util.spec_from_file_location(name, f)
-    assert spec and spec.loader
-    mod = importlib.util.module_from_spec(spec)
-    sys.modules[name] = mod
-    spec.loader.exec_module(mod)
-    return mod
 
 
 

@@ -42,10 +42,8 @@ the ratio of the minima.
 from __future__ import annotations
 
 import argparse
-import importlib.util
 import os
 import platform
-import subprocess
 import sys
 import tempfile
 import time
@@ -57,6 +55,8 @@ import numpy as np
 import scipy.sparse as sp
 from numba import njit
 
+# this checkout's netctl, not an installed one (the new side of every row)
+sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 from netctl import StructuredSystem
 from netctl.generate import grid
 from netctl._jit import always_compiled
@@ -64,30 +64,11 @@ from netctl.graph import components, costmatch, dm, linking
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural import controllability
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
-from _in_process import ONLY, eq, pair_row  # noqa: E402
+from _in_process import ONLY, eq, load_file, load_old, pair_row  # noqa: E402
 from _networks import barred_check_network  # noqa: E402
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 
-
-def load_old(base: str, path: str, name: str, folder: str) -> Any:
-    """The module at ``path`` as it is at revision ``base``, imported as ``name``."""
-    src = subprocess.run(["git", "-C", ROOT, "show", f"{base}:{path}"], check=True,
-                         capture_output=True, text=True).stdout
-    f = os.path.join(folder, name + ".py")
-    with open(f, "w") as fh:
-        fh.write(src)
-    return load_file(f, name)
-
-
-def load_file(f: str, name: str) -> Any:
-    """The module in file ``f``, imported as ``name`` (a copy of its own)."""
-    spec = importlib.util.spec_from_file_location(name, f)
-    assert spec and spec.loader
-    mod = importlib.util.module_from_spec(spec)
-    sys.modules[name] = mod
-    spec.loader.exec_module(mod)
-    return mod
 
 
 
