@@ -56,14 +56,7 @@ def test_least_cost_extension_matches_networkx_max_weight_matching(mode):
         cm = np.full(n_c, -1, np.int64)
         for r, c in start:
             rm[r], cm[c] = c, r
-        ptr = np.zeros(n_r + 1, np.int64)
-        for r, _c in real:
-            ptr[r + 1] += 1
-        np.cumsum(ptr, out=ptr)
-        ind = np.array([c for _r, c in sorted(real)], np.int64)
-        tr = transpose_index(ptr, ind, n_c)
-        xptr = np.concatenate([[0], np.cumsum([len(e) for e in extra])]).astype(np.int64)
-        xind = np.array([r for e in extra for r in e], np.int64)
+        ptr, ind, tr, xptr, xind = _arrays(n_r, n_c, real, extra)
         # the same extension without costs (the earlier way), to count telling cases
         prm, _, _ = extend_matching(tr, n_c, rm, cm, (xptr, xind),
                                     np.full(len(extra), -1, np.int64))
