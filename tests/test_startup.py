@@ -225,10 +225,10 @@ NOT_FOR_A_SMALL_MAP = ("scipy", "scipy.sparse", "igraph", "matplotlib", "matplot
 #: a drawn figure needs matplotlib's figure and a canvas, never pyplot nor igraph
 NOT_FOR_A_FIGURE = ("scipy", "scipy.sparse", "igraph", "matplotlib.pyplot", "networkx",
                     "numba", "pandas")
-#: a report needs neither pyplot nor igraph; a Markdown report draws its figures with
-#: matplotlib (PNG), an HTML report of a small system draws them as its own inline SVG
+#: a report needs neither pyplot nor igraph; an HTML or Markdown report of a small system
+#: draws its figures as its own SVG (inline in HTML, files beside the Markdown)
 NOT_FOR_A_SMALL_REPORT = ("igraph", "matplotlib.pyplot", "networkx", "numba", "pandas")
-#: the HTML report of the two-line file: its figures are netctl's own inline SVG (no
+#: the HTML or Markdown report of the two-line file: its figures are netctl's own SVG (no
 #: matplotlib), and its numeric section and the weakest modes (skipped: no weights) load
 #: no scipy.linalg (issue 15, goal 1)
 NOT_FOR_A_SMALL_HTML_REPORT = NOT_FOR_A_SMALL_MAP + ("scipy.linalg", "PIL")
@@ -273,12 +273,20 @@ def test_small_figure_map_loads_no_pyplot_igraph_or_scipy(tmp_path, suffix):
     assert out.stat().st_size > 0
 
 
-def test_small_report_loads_no_pyplot_or_igraph(tmp_path):
+def test_small_markdown_report_loads_no_matplotlib_and_no_scipy(tmp_path):
+    """The Markdown report of a small system writes its map and roles chart as netctl's
+    own SVG files beside it (linked from the Markdown), so, as for HTML, neither
+    matplotlib nor scipy is loaded; the figures are there all the same."""
     f = tmp_path / "two.csv"
     f.write_text("a,b\nb,c\n")
     out = tmp_path / "r.md"
-    assert _modules_after(["report", str(f), "--out", str(out)], NOT_FOR_A_SMALL_REPORT) == []
-    assert "data:image/png;base64," in out.read_text(encoding="utf-8")  # figures drawn
+    assert _modules_after(["report", str(f), "--out", str(out)],
+                          NOT_FOR_A_SMALL_HTML_REPORT) == []
+    text = out.read_text(encoding="utf-8")
+    assert "](r.map.svg)" in text and "](r.roles.svg)" in text
+    assert "data:image/png" not in text
+    for name in ("r.map.svg", "r.roles.svg"):
+        assert (tmp_path / name).read_text(encoding="utf-8").startswith("<svg")
 
 
 def test_small_html_report_loads_no_matplotlib_and_no_scipy(tmp_path):

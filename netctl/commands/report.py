@@ -21,9 +21,12 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                     "inputs and where, why a given design fails, the map, and the further "
                     "analyses installed (roles, robustness, numeric confirmation, strong "
                     "structural controllability), with the cautions. --out names the file; "
-                    "its suffix picks HTML, Markdown or JSON. Figures are embedded; nothing "
-                    "is fetched when the report is opened. Exit status 0 when the design in "
-                    "the report is structurally controllable, 1 when not.")
+                    "its suffix picks HTML, Markdown or JSON. HTML embeds its figures; "
+                    "Markdown embeds PNG figures and writes the figures netctl draws as SVG "
+                    "(the map of a small network, the roles chart) as files beside it, "
+                    "named after it (report.md: report.map.svg, ...). Nothing is fetched "
+                    "when the report is opened. Exit status 0 when the design in the "
+                    "report is structurally controllable, 1 when not.")
     add_inputs(p, default="the file's inputs, else the minimum design",
                what="a design to check: states with a dedicated input")
     add_seed(p, help="seed of the layout and sampled checks (default 0)")
@@ -50,9 +53,9 @@ def _cmd_report(args: argparse.Namespace) -> int:
         inputs = None
         if args.inputs is not None:
             inputs = system.names_of(parse_names(system, args.inputs))
-    # JSON leaves figures out; HTML draws netctl's own SVG where it can (no plotting
-    # library), Markdown needs the PNG
-    kinds: dict[str, bool | str] = {"json": False, "html": "svg", "markdown": "png"}
+    # JSON leaves figures out; HTML and Markdown draw netctl's own SVG where it can (no
+    # plotting library): inline in HTML, as files beside the Markdown
+    kinds: dict[str, bool | str] = {"json": False, "html": "svg", "markdown": "svg"}
     figures = kinds[fmt]
     report = build_report(system, inputs=inputs, source=args.file, seed=args.seed,
                           progress=progress, weights=args.weights, figures=figures)
@@ -60,15 +63,18 @@ def _cmd_report(args: argparse.Namespace) -> int:
         # a grid's states in a planner's words for people (HTML, Markdown); JSON keeps
         # the state names
         said = wording(system)
-        write_report(report.reworded(said.text) if said.grid and fmt != "json" else report,
-                     args.out)
+        beside = write_report(report.reworded(said.text) if said.grid and fmt != "json"
+                              else report, args.out)
     verdict = _verdict(report)
     if args.json:
         sys.stdout.write(report.to_json())
     else:
         keys = ", ".join(s.key for s in report.sections)
         sys.stdout.write(f"{args.out}: {fmt} report on {args.file} ({system.n_states} "
-                         f"states); sections: {keys}\n  design: {verdict[1]}\n")
+                         f"states); sections: {keys}\n"
+                         + (f"  figures beside it: {', '.join(str(b) for b in beside)}\n"
+                            if beside else "")
+                         + f"  design: {verdict[1]}\n")
         grid = getattr(args, "_grid", None)
         if grid is not None:  # a grid: buses and branches, and its caution
             from netctl.commands._emit import _GRID_CAUTION, _grid_text

@@ -16,7 +16,7 @@ from pathlib import Path
 from typing import Any
 
 
-from netctl.errors import NetctlError, OptionError
+from netctl.errors import NetctlError, OptionError, OutputFileError
 from netctl.report.document import Block, Report, Section
 from netctl.report.progress import Progress
 from netctl.report.sections import (
@@ -64,8 +64,9 @@ def build_report(system: StructuredSystem, *, inputs: Any = None, source: str = 
         Which figures to draw. ``True``: every kind, so the report renders well in any
         format (PNG for Markdown; and for HTML inline SVG drawn by netctl where a
         section has one: the map up to :data:`netctl.viz.small_map.SMALL_MAP_STATES`
-        states and the roles chart). ``"svg"``: for an HTML report only: the inline SVG
-        where a section has one and PNG elsewhere, so a small report loads no plotting
+        states and the roles chart). ``"svg"``: for HTML and Markdown: SVG drawn by
+        netctl where a section has one (inline in HTML; files beside the Markdown, see
+        :func:`write_report`) and PNG elsewhere, so a small report loads no plotting
         library. ``"png"``: PNG only. ``False``: no figure, for a report kept only as
         JSON, which leaves figures out: the sections and their data are the same, and
         matplotlib is not loaded.
@@ -162,17 +163,46 @@ def report_format(path: str | os.PathLike[str]) -> str:
     return REPORT_FORMATS[suffix]
 
 
-def write_report(report: Report, path: str | os.PathLike[str]) -> None:
-    """Render ``report`` in the format named by the suffix of ``path``; write atomically."""
-    from netctl.io import atomic_write
+def write_report(report: Report, path: str | os.PathLike[str]) -> list[Path]:
+    """Render ``report`` in the format named by the suffix of ``path``; write atomically.
+
+    HTML and JSON are one file. Markdown embeds PNG figures as data URIs and writes each
+    figure that is only netctl's own SVG (a report built with ``figures="svg"``) as a
+    file beside it, ``STEM.KEY.svg``, linked from the Markdown
+    (:meth:`Report.to_markdown_files`). All files appear together or none does (an
+    error leaves no partial output).
+
+    Returns
+    -------
+    list of Path
+        The figure files written beside ``path`` (empty for HTML, JSON, and Markdown
+        whose figures are all PNG).
+    """
+    from netctl.io import atomic_group, atomic_write
 
     fmt = report_format(path)
-    text = {"html": report.to_html, "markdown": report.to_markdown,
-            "json": report.to_json}[fmt]()
-    with atomic_write(path) as fh:
-        fh.write(text)
+    files: dict[str, str] = {}
+    if fmt == "markdown":
+        text, files = report.to_markdown_files(Path(path).stem)
+    else:
+        text = {"html": report.to_html, "json": report.to_json}[fmt]()
+    beside = [Path(path).with_name(name) for name in files]
+    with atomic_group():  # the figures and the Markdown appear together or not at all
+        for where, svg in zip(beside, files.values()):
+            try:
+                with atomic_write(where) as fh:
+                    fh.write(svg)
+            except OutputFileError as exc:  # a name the user did not type: say whose
+                raise OutputFileError(
+                    f"{exc} ({where.name} is a figure of the Markdown report {path}, "
+                    "named after it; choose another report name or move that one "
+                    "away.)") from None
+        with atomic_write(path) as fh:
+            fh.write(text)
     from netctl.viz.output import usual_mode
 
-    usual_mode(path)
+    for written in [*beside, Path(path)]:
+        usual_mode(written)
+    return beside
 
 

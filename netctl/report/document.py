@@ -1,11 +1,14 @@
 """A report as plain data (sections of blocks) and its three renderings.
 
-HTML and Markdown are self-contained: no script, no style sheet, font or image is
-fetched from anywhere (figures are inline SVG written by netctl where a block has one,
-else PNG data URIs; the interactive map's renderer and data are inline), and every piece
-of text that can come from an input file is escaped. Markdown shows a figure's PNG where
-the block has one (common Markdown renderers pass PNG data URIs but drop SVG ones), else
-its SVG as a data URI. JSON carries the sections' data, not the figures.
+HTML is self-contained: no script, no style sheet, font or image is fetched from
+anywhere (figures are inline SVG written by netctl where a block has one, else PNG data
+URIs; the interactive map's renderer and data are inline), and every piece of text that
+can come from an input file is escaped. Markdown shows a figure's PNG where the block
+has one (common Markdown renderers pass PNG data URIs but drop SVG ones); a figure that
+is only netctl's SVG is, from :meth:`Report.to_markdown_files`, a file beside the
+Markdown (a relative link, which those renderers show), and from
+:meth:`Report.to_markdown` an SVG data URI. JSON carries the sections' data, not the
+figures.
 """
 
 from __future__ import annotations
@@ -14,6 +17,7 @@ import base64
 import html
 import json
 import re
+import urllib.parse
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field, replace
 from typing import Any
@@ -195,19 +199,72 @@ class Report:
     # ------------------------------------------------------------------ Markdown
     def to_markdown(self) -> str:
         """Markdown (GitHub flavour); figures as data URIs, text escaped."""
+        return self._markdown(None)[0]
+
+    def to_markdown_files(self, stem: str) -> tuple[str, dict[str, str]]:
+        """Markdown whose SVG-only figures are files beside it, and those files.
+
+        A figure block with a PNG is embedded as a PNG data URI, as in
+        :meth:`to_markdown`; one that has only netctl's own SVG (a report built with
+        ``figures="svg"``) is linked as the file ``STEM.KEY.svg`` (``KEY``: the
+        section's key, numbered when a section has several), a relative link that common
+        Markdown previews show (most drop SVG data URIs), and the files are listed
+        below the facts.
+
+        Parameters
+        ----------
+        stem : str
+            The Markdown file's name without its suffix (``"report"`` for
+            ``report.md``).
+
+        Returns
+        -------
+        text : str
+            The Markdown.
+        files : dict
+            File name (in the Markdown's folder) -> the ``<svg>`` document, in the order
+            the figures appear; empty when every figure has a PNG.
+
+        Examples
+        --------
+        >>> r = Report("r", (), (Section("map", "Map", (figure(b"", "a map",
+        ...                                                    svg="<svg/>"),)),))
+        >>> text, files = r.to_markdown_files("out")
+        >>> files
+        {'out.map.svg': '<svg/>'}
+        >>> "![a map](out.map.svg)" in text
+        True
+        """
+        return self._markdown(stem)
+
+    def _markdown(self, stem: str | None) -> tuple[str, dict[str, str]]:
         m = _md
+        files: dict[str, str] = {}
+        bodies: list[str] = []
+        for s in self.sections:
+            badge = f" \\[{m(s.badge_text)}\\]" if s.badge_text else ""
+            bodies += [f"## {m(s.title)}{badge}", ""]
+            if s.verdict:
+                bodies += [f"**{m(s.verdict)}**", ""]
+            own = [stem is not None and b.kind in ("figure", "map") and bool(b.svg)
+                   and not b.png for b in s.blocks]
+            nth = 0
+            for b, to_file in zip(s.blocks, own):
+                target = None
+                if to_file:
+                    nth += 1
+                    key = re.sub(r"[^A-Za-z0-9_-]", "_", s.key)  # a file name's part
+                    target = f"{stem}.{key}{f'-{nth}' if sum(own) > 1 else ''}.svg"
+                    files[target] = b.svg
+                bodies += _md_block(b, target) + [""]
         out = [f"# {m(self.title)}", ""]
         for k, v in self.facts:
             out.append(f"- **{m(k)}:** {m(v)}")
+        if files:
+            out.append("- **figure files (beside this file):** "
+                       + ", ".join(f"[{m(name)}]({_md_link(name)})" for name in files))
         out.append("")
-        for s in self.sections:
-            badge = f" \\[{m(s.badge_text)}\\]" if s.badge_text else ""
-            out += [f"## {m(s.title)}{badge}", ""]
-            if s.verdict:
-                out += [f"**{m(s.verdict)}**", ""]
-            for b in s.blocks:
-                out += _md_block(b) + [""]
-        return "\n".join(out).rstrip("\n") + "\n"
+        return "\n".join(out + bodies).rstrip("\n") + "\n", files
 
 
 _BADGE = {"info": "", "ok": "holds", "warning": "attention", "fail": "fails"}
@@ -304,7 +361,15 @@ def _md(text: object) -> str:
     return _MD_SPECIAL.sub(r"\\\1", html.escape(str(text), quote=False)).replace("\n", " ")
 
 
-def _md_block(b: Block) -> list[str]:
+def _md_link(name: str) -> str:
+    """A file name as a relative Markdown link target (spaces, brackets, ``%`` and other
+    characters outside a URL path percent-encoded)."""
+    return urllib.parse.quote(name, safe="")
+
+
+def _md_block(b: Block, target: str | None = None) -> list[str]:
+    """The Markdown lines of one block; a figure goes to the file ``target`` when
+    given (else a data URI)."""
     m = _md
     if b.kind == "para":
         return [m(b.text)]
@@ -323,7 +388,8 @@ def _md_block(b: Block) -> list[str]:
             out.append(f"\n*… and {b.more} more rows (the JSON report lists all)*")
         return out
     if b.kind in ("figure", "map"):  # a map: renderers drop scripts, the static figure
-        return [f"![{m(b.text)}]({_md_picture(b)})", "", f"*{m(b.text)}*"]
+        where = _md_link(target) if target is not None else _md_picture(b)
+        return [f"![{m(b.text)}]({where})", "", f"*{m(b.text)}*"]
     raise ValueError(f"unknown block kind {b.kind!r}; expected one of {BLOCK_KINDS}")
 
 
