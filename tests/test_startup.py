@@ -269,7 +269,9 @@ def test_small_figure_map_loads_no_pyplot_igraph_or_scipy(tmp_path, suffix):
     f = tmp_path / "two.csv"
     f.write_text("a,b\nb,c\n")
     out = tmp_path / f"m.{suffix}"
-    assert _modules_after(["map", str(f), "--out", str(out)], NOT_FOR_A_FIGURE) == []
+    # an SVG map of a small network is netctl's own SVG: not even matplotlib
+    watch = NOT_FOR_A_FIGURE + (("matplotlib",) if suffix == "svg" else ())
+    assert _modules_after(["map", str(f), "--out", str(out)], watch) == []
     assert out.stat().st_size > 0
 
 
@@ -286,7 +288,7 @@ def test_small_markdown_report_loads_no_matplotlib_and_no_scipy(tmp_path):
     assert "](r.map.svg)" in text and "](r.roles.svg)" in text
     assert "data:image/png" not in text
     for name in ("r.map.svg", "r.roles.svg"):
-        assert (tmp_path / name).read_text(encoding="utf-8").startswith("<svg")
+        assert "\n<svg " in (tmp_path / name).read_text(encoding="utf-8")
 
 
 def test_small_html_report_loads_no_matplotlib_and_no_scipy(tmp_path):

@@ -190,8 +190,8 @@ def write_report(report: Report, path: str | os.PathLike[str]) -> list[Path]:
     with atomic_group():  # the figures and the Markdown appear together or not at all
         for where, svg in zip(beside, files.values()):
             try:
-                with atomic_write(where) as fh:
-                    fh.write(svg)
+                with atomic_write(where) as fh:  # a standalone SVG document
+                    fh.write(f'<?xml version="1.0" encoding="UTF-8"?>\n{svg}\n')
             except OutputFileError as exc:  # a name the user did not type: say whose
                 raise OutputFileError(
                     f"{exc} ({where.name} is a figure of the Markdown report {path}, "

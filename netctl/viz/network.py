@@ -16,7 +16,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from matplotlib.axes import Axes
     from matplotlib.figure import Figure
 
-__all__ = ["GID_PREFIX", "draw_map", "map_figure"]
+__all__ = ["GID_PREFIX", "draw_map", "legend_entries", "map_figure"]
 
 #: Every artist of a map carries the gid ``GID_PREFIX + mark name`` (e.g.
 #: ``"netctl:driver"``), so programs and tests can find what was drawn.
@@ -335,73 +335,88 @@ def _default_title(system: StructuredSystem, marks: MapMarks, how: str,
                      + textwrap.wrap(f"{verdict}; {placed}", width))
 
 
+def legend_entries(system: StructuredSystem, marks: MapMarks, *, n_loops: int,
+                   loops_drawn: bool) -> list[tuple[str, str]]:
+    """The rows of a map's legend, in order: ``(mark, text with its count)``.
+
+    ``mark`` is a key of :data:`netctl.viz.style.MARKS`, or ``"self_loop"``. The
+    matplotlib map (:func:`draw_map`) and netctl's own SVG map of ``netctl map``
+    (:func:`netctl.viz.map_svg.map_svg`) both write these rows, so their legends say
+    the same.
+    """
+    def count(key: str, n: int) -> tuple[str, str]:
+        return key, f"{MARKS[key].label} ({n})"
+
+    items: list[tuple[str, str]] = [count("driver", marks.drivers.size)]
+    for key, idx in (("suggested", marks.suggested), ("unreached", marks.unreached),
+                     ("dilation", marks.dilation), ("fragile", marks.fragile),
+                     ("disturbed", marks.disturbed)):
+        if idx.size:
+            items.append(count(key, idx.size))
+    if _roles_tell(marks):
+        assert marks.roles is not None
+        for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
+            n = int(np.count_nonzero(marks.roles == k))
+            if n:  # a role no state has is left out of the legend
+                items.append(count(key, n))
+    else:
+        text = f"state ({system.n_states})"
+        if marks.roles is not None and system.n_states:
+            only = MARKS[("role_critical", "role_intermittent",
+                          "role_redundant")[int(marks.roles[0])]].label.split(":")[0]
+            text = f"state: every one is {only} ({system.n_states})"
+        items.append(("state", text))
+    n_cyc = int(np.count_nonzero(marks.on_cycle))
+    if marks.on_cycle.size - n_cyc or not n_cyc:
+        items.append(count("chain", marks.on_cycle.size - n_cyc))
+    if n_cyc:
+        items.append(count("cycle", n_cyc))
+    items.append(count("link", system.n_links - marks.on_cycle.size - n_loops
+                       + int(np.count_nonzero(marks.on_cycle & (marks.matched_sources
+                                                                == marks.matched_targets)))))
+    if marks.critical_sources is not None:
+        if getattr(marks, "grid", False):
+            items.append(("critical_link",
+                          f"critical branches ({len(marks.critical_elements)})"))
+        else:
+            items.append(count("critical_link", marks.critical_sources.size))
+    if n_loops:
+        items.append(("self_loop", f"self-loop (self-dynamics) ({n_loops})" if loops_drawn
+                      else f"self-loops: {n_loops}, not drawn at this size"))
+    return items
+
+
 def _legend(ax: Axes, system: StructuredSystem, marks: MapMarks, area: float, *,
             n_loops: int, loops_drawn: bool, arrows: bool, outside: bool) -> None:
     from matplotlib.lines import Line2D
 
-    def point(key: str, count: int) -> tuple[Any, str]:
+    def point(key: str) -> Any:
         mk = MARKS[key]
         # a scatter made and removed at once is a legend handle that keeps the hatch
         h = ax.scatter([], [], s=60.0 * min(mk.size, 2.6) / 1.6, marker=mk.marker,
                        facecolors=mk.face, edgecolors=mk.edge, linewidths=mk.linewidth,
                        linestyles=mk.linestyle, hatch=mk.hatch or None)
         h.remove()
-        return h, f"{mk.label} ({count})"
+        return h
 
-    def line(key: str, count: int) -> tuple[Any, str]:
+    def line(key: str) -> Any:
         mk = MARKS[key]
-        h = Line2D([], [], color=mk.edge, linewidth=mk.linewidth,
-                   linestyle=cast(Any, mk.linestyle))
-        return h, f"{mk.label} ({count})"
+        return Line2D([], [], color=mk.edge, linewidth=mk.linewidth,
+                      linestyle=cast(Any, mk.linestyle))
 
     items: list[tuple[Any, str]] = []
-    items.append(point("driver", marks.drivers.size))
-    if marks.suggested.size:
-        items.append(point("suggested", marks.suggested.size))
-    if marks.unreached.size:
-        items.append(point("unreached", marks.unreached.size))
-    if marks.dilation.size:
-        items.append(point("dilation", marks.dilation.size))
-    if marks.fragile.size:
-        items.append(point("fragile", marks.fragile.size))
-    if marks.disturbed.size:
-        items.append(point("disturbed", marks.disturbed.size))
-    if _roles_tell(marks):
-        assert marks.roles is not None
-        for k, key in enumerate(("role_critical", "role_intermittent", "role_redundant")):
-            count = int(np.count_nonzero(marks.roles == k))
-            if count:  # a role no state has is left out of the legend
-                items.append(point(key, count))
-    else:
-        h, _ = point("state", system.n_states)
-        text = f"state ({system.n_states})"
-        if marks.roles is not None and system.n_states:
-            only = MARKS[("role_critical", "role_intermittent",
-                          "role_redundant")[int(marks.roles[0])]].label.split(":")[0]
-            text = f"state: every one is {only} ({system.n_states})"
-        items.append((h, text))
-    n_cyc = int(np.count_nonzero(marks.on_cycle))
-    if marks.on_cycle.size - n_cyc or not n_cyc:
-        items.append(line("chain", marks.on_cycle.size - n_cyc))
-    if n_cyc:
-        items.append(line("cycle", n_cyc))
-    items.append(line("link", system.n_links - marks.on_cycle.size - n_loops
-                      + int(np.count_nonzero(marks.on_cycle & (marks.matched_sources
-                                                               == marks.matched_targets)))))
-    if marks.critical_sources is not None:
-        casing = Line2D([], [], color=MARKS["critical_link"].edge,
-                        linewidth=MARKS["critical_link"].linewidth)
-        inner = Line2D([], [], color="white", linewidth=MARKS["chain"].linewidth * 0.8)
-        if getattr(marks, "grid", False):
-            crit_label = f"critical branches ({len(marks.critical_elements)})"
+    for key, text in legend_entries(system, marks, n_loops=n_loops, loops_drawn=loops_drawn):
+        if key == "critical_link":
+            casing = Line2D([], [], color=MARKS["critical_link"].edge,
+                            linewidth=MARKS["critical_link"].linewidth)
+            inner = Line2D([], [], color="white", linewidth=MARKS["chain"].linewidth * 0.8)
+            items.append(((casing, inner), text))
+        elif key == "self_loop":
+            items.append((Line2D([], [], marker="o", markerfacecolor="none",
+                                 linestyle="none", markeredgecolor=MARKS["link"].edge,
+                                 markersize=9), text))
         else:
-            crit_label = f"{MARKS['critical_link'].label} ({marks.critical_sources.size})"
-        items.append(((casing, inner), crit_label))
-    if n_loops:
-        items.append((Line2D([], [], marker="o", markerfacecolor="none", linestyle="none",
-                             markeredgecolor=MARKS["link"].edge, markersize=9),
-                      f"self-loop (self-dynamics) ({n_loops})" if loops_drawn
-                      else f"self-loops: {n_loops}, not drawn at this size"))
+            items.append((point(key) if MARKS[key].marker is not None else line(key), text))
     handles, texts = zip(*items)
     kw: dict[str, Any] = {}
     if marks.critical_sources is not None:

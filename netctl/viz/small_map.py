@@ -219,7 +219,11 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
 
 def marks_map_svg(system: Any, rows: Rows, lines: Lines, positions: np.ndarray, *,
                   how: str = "given", title: str = "", max_links: int = SMALL_MAP_LINKS,
-                  max_heads: int = SMALL_MAP_HEADS) -> str:
+                  max_heads: int = SMALL_MAP_HEADS, labels: bool | None = None,
+                  labels_up_to: int = _LABELS_UP_TO,
+                  legend: Sequence[tuple[str, str]] | None = None, legend_title: str = "",
+                  path_heads: bool = False, roles_on_top: bool = False,
+                  where: str = "") -> str:
     """The small SVG map of ``system`` with the given marks at the given positions.
 
     For a page that has already worked out what to mark and where the states sit (the
@@ -242,6 +246,25 @@ def marks_map_svg(system: Any, rows: Rows, lines: Lines, positions: np.ndarray, 
         layout), said below the legend.
     title : str
         Written above the map (escaped; its lines kept, each wrapped at 74 characters).
+    labels : bool, optional
+        Write every state's name (``True``), none (``False``), or, by default, those of
+        maps of up to ``labels_up_to`` states.
+    legend : sequence of (mark, text), optional
+        The legend's rows in order (a mark of :data:`netctl.viz.style.MARKS` or
+        ``"self_loop"``), e.g. with counts; default: one row per highlighted link kind
+        and point mark drawn.
+    legend_title : str
+        Lines above the legend (e.g. how to read the links).
+    path_heads : bool
+        End each control path and cycle link (``chain``, ``cycle``) in an arrowhead of
+        its colour, so its direction shows even where a pair of states is linked both
+        ways (one more ``<marker>`` per kind; up to ``max_heads`` such links).
+    roles_on_top : bool
+        Draw the node roles (``role_*``) small, over the other marks, so a driver's role
+        shows (as on the static maps); default: under them.
+    where : str
+        The line below the legend on where the positions come from (default: from
+        ``how``).
 
     Returns
     -------
@@ -251,7 +274,10 @@ def marks_map_svg(system: Any, rows: Rows, lines: Lines, positions: np.ndarray, 
         (:data:`SMALL_MAP_STATES`).
     """
     pos = np.asarray(positions, dtype=np.float64).reshape(int(system.n_states), 2)
-    return _draw(system, rows, lines, pos, how, max_links, max_heads, title=title)
+    return _draw(system, rows, lines, pos, how, max_links, max_heads, title=title,
+                 labels=labels, labels_up_to=labels_up_to, legend=legend,
+                 legend_title=legend_title, path_heads=path_heads,
+                 roles_on_top=roles_on_top, where=where)
 
 
 def _segments(px: np.ndarray, py: np.ndarray, u: np.ndarray, v: np.ndarray) -> str:
@@ -260,7 +286,10 @@ def _segments(px: np.ndarray, py: np.ndarray, u: np.ndarray, v: np.ndarray) -> s
 
 
 def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
-          max_links: int, max_heads: int, *, title: str = "") -> str:
+          max_links: int, max_heads: int, *, title: str = "", labels: bool | None = None,
+          labels_up_to: int = _LABELS_UP_TO,
+          legend: Sequence[tuple[str, str]] | None = None, legend_title: str = "",
+          path_heads: bool = False, roles_on_top: bool = False, where: str = "") -> str:
     n = int(system.n_states)
     heading = [w for t in title.splitlines() for w in textwrap.wrap(t, _TITLE_CHARS)]
     # fit into the drawing box, y up (as on a map), aspect kept
@@ -269,7 +298,7 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
     else:
         lo, hi = np.zeros(2), np.ones(2)
     span = np.where(hi - lo > 0, hi - lo, 0.0)
-    with_labels = 0 < n <= _LABELS_UP_TO
+    with_labels = n > 0 and (labels if labels is not None else n <= labels_up_to)
     inner_w = _WIDTH - 2 * _PAD - (_LABEL_ROOM if with_labels else 0.0)
     scale = inner_w / float(span.max()) if span.max() > 0 else 0.0
     inner_h = min(max(float(span[1]) * scale, 2 * _PAD), 1.5 * _WIDTH - 2 * _PAD)
@@ -282,13 +311,18 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
     py = top + (hi[1] - pos[:, 1]) * scale + (inner_h - span[1] * scale) / 2
     names = system.state_names
     parts: list[str] = []
-    defs = ""
+    markers: list[str] = []  # arrowhead definitions
     r0 = _radius("state", n)
+
+    def radius(key: str) -> float:
+        r = _radius(key, n)
+        return min(r, 2.6) if roles_on_top and key.startswith("role_") else r
+
     # how far a head stops short of its target's centre: the largest mark drawn there
     reach = np.full(n, r0 + 1.0)
     for key, _, idx in rows:
         if MARKS[key].marker is not None and key not in ("fragile", "bottleneck", "costly"):
-            reach[idx] = np.maximum(reach[idx], _radius(key, n) + 1.0)
+            reach[idx] = np.maximum(reach[idx], radius(key) + 1.0)
 
     # links: pairs linked both ways once, plain; one-way links with an arrowhead
     src, dst = system.edges()
@@ -325,11 +359,7 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
                              for i, x, y in zip(u.tolist(), ex.tolist(), ey.tolist()))
             size = 6.0 if n <= 200 else 4.5
             mid = "netctl-head-" + hashlib.sha1(arrows.encode("utf-8")).hexdigest()[:12]
-            defs = (f'<defs><marker id="{mid}" viewBox="0 0 10 10" refX="9" refY="5" '
-                    f'markerWidth="{size:.1f}" markerHeight="{size:.1f}" '
-                    'markerUnits="userSpaceOnUse" orient="auto">'
-                    f'<path d="M0 1L10 5L0 9Z" fill="{MARKS["state"].edge}" '
-                    f'fill-opacity="{max(alpha, 0.5):.2f}"/></marker></defs>')
+            markers.append(_marker(mid, size, MARKS["state"].edge, max(alpha, 0.5)))
             parts.append(f'<g class="arrows" {pen} marker-end="url(#{mid})">{arrows}</g>')
         elif one.size:
             links_note = (f"; {one.size:,} one-way links drawn without arrowheads (more "
@@ -344,9 +374,25 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
             mk = MARKS[key]
             width = 2.5 if key == "critical_link" else mk.linewidth
             dash = _DASH.get(mk.linestyle, "")
-            parts.append(f'<path class="{key}" d="{_segments(px, py, s, t)}" fill="none" '
-                         f'stroke="{mk.edge}" stroke-width="{width:.1f}" '
-                         f'stroke-opacity="0.8" stroke-linecap="round"{dash}/>')
+            pen = (f'fill="none" stroke="{mk.edge}" stroke-width="{width:.1f}" '
+                   f'stroke-opacity="0.8" stroke-linecap="round"{dash}')
+            s, t = np.asarray(s, np.int64), np.asarray(t, np.int64)
+            if path_heads and key in ("chain", "cycle") and 0 < s.size <= max_heads:
+                # one path per link, stopping at the target's mark, with a head
+                u, v = s[s != t], t[s != t]
+                dx, dy = px[v] - px[u], py[v] - py[u]
+                length = np.hypot(dx, dy)
+                cut = np.where(length > 0, np.minimum(reach[v], 0.5 * length)
+                               / np.maximum(length, 1e-9), 0.0)
+                ex, ey = px[v] - dx * cut, py[v] - dy * cut
+                each = "".join(f'<path d="M{px[i]:.1f} {py[i]:.1f}L{x:.1f} {y:.1f}"/>'
+                               for i, x, y in zip(u.tolist(), ex.tolist(), ey.tolist()))
+                mid = (f"netctl-{key}-head-"
+                       + hashlib.sha1(each.encode("utf-8")).hexdigest()[:12])
+                markers.append(_marker(mid, 8.0 if n <= 200 else 6.0, mk.edge, 0.9))
+                parts.append(f'<g class="{key}" {pen} marker-end="url(#{mid})">{each}</g>')
+            else:
+                parts.append(f'<path class="{key}" d="{_segments(px, py, s, t)}" {pen}/>')
             legend_keys.append((key, label))
 
     # self-loops (self-dynamics): a ring around the state, as on the static maps; a
@@ -385,11 +431,14 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
         by_key.setdefault(key, []).append((label, idx))
     marks_svg = []
     legend_keys += [(key, label) for key, label, _ in rows]
-    for key in _POINT_ORDER:
+    order: tuple[str, ...] = _POINT_ORDER
+    if roles_on_top:  # as on the static maps: the role sits inside every other mark
+        order = tuple(k for k in order if not k.startswith("role_")) + _POINT_ORDER[:3]
+    for key in order:
         if key not in by_key:
             continue
         mk = MARKS[key]
-        shape = _shape(mk, _radius(key, n))
+        shape = _shape(mk, radius(key))
         for label, idx in by_key[key]:
             for i in idx.tolist():
                 marks_svg.append(
@@ -398,14 +447,19 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
                     f"{_text(label)}</title></path>")
     parts.append(f'<g class="marks">{"".join(marks_svg)}</g>')
     if with_labels:
-        labels = [f'<text x="{px[i] + 6:.1f}" y="{py[i] - 6:.1f}">{_text(names[i])}</text>'
+        written = [f'<text x="{px[i] + 6:.1f}" y="{py[i] - 6:.1f}">{_text(names[i])}</text>'
                   for i in range(n)]
         parts.append(f'<g class="labels" font-size="9" fill="{INK}" '
-                     f'font-family="sans-serif">{"".join(labels)}</g>')
+                     f'font-family="sans-serif">{"".join(written)}</g>')
 
     # legend below the map: one row per marked meaning, then where positions came from
     rows_svg = []
     y = height + 6.0
+    if legend is not None:
+        legend_keys = list(legend)
+    for line in legend_title.splitlines():
+        rows_svg.append(f'<text x="{_PAD - 6:.1f}" y="{y + 9.5:.1f}">{_text(line)}</text>')
+        y += 13.0
     for key, label in legend_keys:
         mk = MARKS["link" if key == "self_loop" else key]
         if key == "self_loop":
@@ -421,7 +475,7 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
         rows_svg.append(f"{sample}<text x=\"{_PAD + 12:.1f}\" y=\"{y + 9.5:.1f}\">"
                         f"{_text(label)}</text>")
         y += 15.0
-    where = {"coordinates": "positions: the node table's x and y",
+    where = where or {"coordinates": "positions: the node table's x and y",
              "coordinates+fr": "positions: x and y, missing ones by a quick layout"}.get(
                  how, "positions: a quick force-directed layout (no coordinates)")
     rows_svg.append(f'<text x="{_PAD - 6:.1f}" y="{y + 9.5:.1f}" fill="#5C5C5C">'
@@ -439,4 +493,14 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
             f'width="{_WIDTH:.0f}" height="{total_h:.0f}" '
             f'viewBox="0 0 {_WIDTH:.0f} {total_h:.0f}" role="img" '
             f'style="background:{PAPER}"><title>network map ({n:,} states)</title>'
-            f'{defs}{"".join(parts)}</svg>')
+            f'{"<defs>" + "".join(markers) + "</defs>" if markers else ""}'
+            f'{"".join(parts)}</svg>')
+
+
+def _marker(mid: str, size: float, colour: str, opacity: float) -> str:
+    """An arrowhead ``<marker>`` named ``mid``: its tip at the end of a path."""
+    return (f'<marker id="{mid}" viewBox="0 0 10 10" refX="9" refY="5" '
+            f'markerWidth="{size:.1f}" markerHeight="{size:.1f}" '
+            'markerUnits="userSpaceOnUse" orient="auto">'
+            f'<path d="M0 1L10 5L0 9Z" fill="{colour}" fill-opacity="{opacity:.2f}"/>'
+            "</marker>")
