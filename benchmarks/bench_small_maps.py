@@ -8,10 +8,10 @@ Run by hand (not part of the test suite)::
 Times whole processes (start-up, imports and the work, until exit) of the two trees in
 turn (A B A B ...), one warm-up pair first, so the ratio of each pair is taken under the
 same load: ``map`` without ``--out`` (the usage message), ``map --out`` .html, .geojson,
-.svg, .png, ``report --out`` .html and .json on a 2-line edge list (``a,b`` / ``b,c``),
+.svg, .png, ``report --out`` .html, .json and .md on a 2-line edge list (``a,b`` / ``b,c``),
 and ``drivers`` as the reference. Then the floors a form cannot go below: the bare
 interpreter, ``import numpy``, and matplotlib's figure with the Agg canvas (what a PNG
-needs). ``--large N``: instead, ``map --out`` .html and .png on a generated directed
+needs). ``--large N``: instead, ``map --out`` .html, .png and .svg on a generated directed
 Erdős–Rényi network of N states (mean degree 3, seed 1), to check a large map does not
 get slower.
 
@@ -64,7 +64,7 @@ def main() -> None:
                             str(args.large), "--mean-degree", "3", "--seed", "1"],
                            env=env_for(args.after), cwd=d, check=True,
                            stdout=subprocess.DEVNULL)
-            for suffix in ("html", "png"):
+            for suffix in ("html", "png", "svg"):
                 pair_row(f"map --out .{suffix}, {args.large} states", ["-m", "netctl.cli", "map",
                       net, "--out", f"{out}.{suffix}"], trees, d, args.runs)
             return
@@ -78,7 +78,7 @@ def main() -> None:
         for suffix in ("html", "geojson", "svg", "png"):
             pair_row(f"map --out .{suffix}", [*cli, "map", two, "--out", f"{out}.{suffix}"],
                   trees, d, args.runs)
-        for suffix in ("html", "json"):
+        for suffix in ("html", "json", "md"):
             pair_row(f"report --out .{suffix}", [*cli, "report", two, "--out",
                                               f"{out}.{suffix}"], trees, d, args.runs)
         floor_row("bare interpreter", "pass", d, args.runs)
