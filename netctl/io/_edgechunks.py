@@ -110,6 +110,9 @@ class ChunkScan:
             self.size_hint = 0
         self.header_done = False
         self.quoted = False  # a name starts with an apostrophe (spreadsheet quoting)
+        self.header = False  # the first content line was a header row
+        #: lines of one name beside a separator: their number, the first's line and text
+        self.lone: tuple[int, int, str] = (0, 0, "")
         self.chunk_len = 0
         self.half: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None
         # string-mode name table
@@ -180,6 +183,27 @@ class ChunkScan:
             if pos < 0:
                 return
         arr = np.frombuffer(chunk, np.uint8)
+        line0, lone_before = int(st[1]), len(self.iso)
+        self._links(chunk, arr, pos)
+        if len(self.iso) > lone_before:  # single names here: any beside a separator?
+            self._lone_separated(chunk, arr, pos, line0)
+
+    def _lone_separated(self, chunk: bytes, arr: np.ndarray, pos: int, line0: int) -> None:
+        """Count the lines of ``chunk`` (from ``pos``, line ``line0``) holding one name
+        beside a comma, semicolon or tab; keep the first one's line and text. Run only
+        on chunks where the scanner found a line with a single name."""
+        from netctl.io._edgelines import line_text, lone_separated
+
+        count, first, fs, fe = lone_separated(arr, pos)
+        if count:
+            n, line, text = self.lone
+            if not n:
+                line, text = line0 + int(first), line_text(chunk, int(fs), int(fe))
+            self.lone = (n + int(count), line, text)
+
+    def _links(self, chunk: bytes, arr: np.ndarray, pos: int) -> None:
+        """Scan the links of ``chunk`` from byte ``pos`` (after comments and a header)."""
+        st = self.st
         self.chunk_len = len(chunk)
         split = -1
         if (self.mode == _k.MODE_INT and len(chunk) - pos >= PARALLEL_MIN_BYTES
@@ -316,6 +340,7 @@ class ChunkScan:
                         raise file_error(self.path, int(st[1]), f"the header names {len(f)} "
                                          f"columns ({excerpt(text.strip())}); expected 'source "
                                          "target [weight]'.")
+                    self.header = True
                     st[1] += 1
                     return end + 1
                 return pos
@@ -426,7 +451,8 @@ class ChunkScan:
             raise file_error(self.path, None, "the file holds no links and no states. "
                              "Expected lines 'source target [weight]' (see docs/FORMATS.md).")
         # distinct str by construction (hash table or factorization of the values)
-        return EdgeArrays(src, dst, w, DistinctNames(names), n_lines, int(self.st[9]))
+        return EdgeArrays(src, dst, w, DistinctNames(names), n_lines, int(self.st[9]),
+                          self.lone, self.header)
 
     def _decode_names(self) -> tuple[str, ...]:
         """The names in id order: the buffer holds each name followed by a line break, so

@@ -33,6 +33,7 @@ SMALL_BYTES = 1 << 15
 _TOKEN = re.compile(rb"[^,\t; \r\v\f]+")
 _CANONICAL_INT = re.compile(rb"-?(0|[1-9][0-9]{0,17})\Z")  # the scanner's integer names
 _NOT_MINUS_ZERO = b"-0"
+_LOUD = re.compile(rb"[,;\t]")  # beside a single name: maybe a link missing a name
 
 
 def read_small(path: str | os.PathLike[str], is_header: Callable[[list[str]], bool],
@@ -69,6 +70,8 @@ def read_small(path: str | os.PathLike[str], is_header: Callable[[list[str]], bo
     dst_tok: list[int] = []
     iso_tok: list[int] = []
     weights: list[float] = []
+    header = False
+    lone: list[tuple[int, bytes]] = []  # single names beside a comma, semicolon or tab
     for lineno, raw in enumerate(lines, start=1):
         body = raw.split(b"#", 1)[0]
         fields = _TOKEN.findall(body)
@@ -82,10 +85,13 @@ def read_small(path: str | os.PathLike[str], is_header: Callable[[list[str]], bo
             if is_header([f.decode("utf-8") for f in fields]):  # the scanner's own rule
                 if nf > 3:
                     return None
+                header = True
                 continue
         if nf > 3 or (nf >= 2 and ncols and ncols != nf):
             return None
         if nf == 1:
+            if _LOUD.search(body):
+                lone.append((lineno, body))
             iso_tok.append(len(tokens))
             tokens.append(fields[0])
             continue
@@ -129,4 +135,6 @@ def read_small(path: str | os.PathLike[str], is_header: Callable[[list[str]], bo
     src = ids[np.array(src_tok, dtype=np.int64)]
     dst = ids[np.array(dst_tok, dtype=np.int64)]
     w = np.array(weights, dtype=np.float64) if ncols == 3 else None
-    return EdgeArrays(src, dst, w, DistinctNames(names), len(lines), first_zero)
+    said = (len(lone), lone[0][0], lone[0][1].decode("utf-8").strip()) if lone else (0, 0, "")
+    return EdgeArrays(src, dst, w, DistinctNames(names), len(lines), first_zero, said,
+                      header)

@@ -33,12 +33,14 @@ from netctl._parts import DistinctNames
 from netctl._csr import Pattern
 from netctl._parts import check_finite
 from netctl.io import _edgescan as _k
-from netctl.io._common import max_bytes, note_input
+from netctl.io._common import excerpt, max_bytes, note_input
 from netctl.io._edgechunks import ChunkScan as _Scan
 from netctl.io._edgechunks import NotInt as _NotInt
 from netctl.io._edgechunks import fields as _fields
 from netctl.io._edgechunks import is_header as _is_header
 from netctl.io._edgechunks import open_edge_file as _open
+from netctl.errors import NetctlError
+from netctl.io._edgelines import LONE_SEPARATED_HELP, first_repeat, line_of_link
 from netctl.io._edgemarks import apply_marks, header_marks, quoted_names, repeated_header
 from netctl.io._edgenames import _INT, int_order, unquote_names
 from netctl.io._edgesmall import SMALL_BYTES, read_small
@@ -68,6 +70,12 @@ class EdgeArrays:
         Number of lines read.
     first_zero_line : int
         Line of the first link with weight 0 (0 when there is none or it is unknown).
+    lone_separated : tuple of (int, int, str)
+        Lines that hold one name beside a comma, semicolon or tab (``c,``: a state
+        with no link, or a link whose other name is missing): their number, the first
+        one's line and its text; ``(0, 0, "")`` when there are none.
+    header : bool
+        Whether the first content line was a header row.
     """
 
     sources: np.ndarray
@@ -76,6 +84,8 @@ class EdgeArrays:
     names: tuple[str, ...]
     n_lines: int
     first_zero_line: int = 0
+    lone_separated: tuple[int, int, str] = (0, 0, "")
+    header: bool = False
 
 
 def read_edge_arrays(path: str | os.PathLike[str], *,
@@ -127,6 +137,7 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
                                                              small.targets))
                 small = dataclasses.replace(small, names=DistinctNames(names), sources=src,
                                             targets=dst)
+            _warn_lone_separated(small, path)
             return small
     scan = _Scan(path, _k.MODE_INT, chunk_bytes)
     try:
@@ -134,7 +145,22 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
     except _NotInt:
         scan = _Scan(path, _k.MODE_STR, chunk_bytes)
         scan.run()
-    return scan.result()
+    e = scan.result()
+    _warn_lone_separated(e, path)
+    return e
+
+
+def _warn_lone_separated(e: EdgeArrays, path: object) -> None:
+    """Warn once about lines of one name beside a separator (``c,``): each is read as a
+    state with no link, which is kept, but it may be a link whose other name is
+    missing. A name alone on its line (the documented way) is silent."""
+    count, line, text = e.lone_separated
+    if not count:
+        return
+    more = (f" ({count} such lines; this is the first)" if count > 1 else "")
+    warnings.warn(f"{path}:{line}: the line {excerpt(text)} holds one name and a "
+                  f"separator{more}; it was read as a state with no link. "
+                  f"{LONE_SEPARATED_HELP}", stacklevel=3)
 
 
 def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
@@ -185,27 +211,33 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
     return system
 
 
-#: Up to this many links, a duplicate-link warning names the first repeated link (one
-#: sort of the links, only when there are duplicates; above it the count alone).
-NAME_REPEAT_UP_TO = 2_000_000
-
-
-def _first_repeat(e: EdgeArrays) -> str:
-    """``"; the first repeat: 'a' -> 'b'"`` for the earliest link of the file that repeats
-    an earlier one (links of weight 0 left out, as the build leaves them), or ``""``."""
-    keep = slice(None) if e.weights is None else np.flatnonzero(e.weights != 0)
-    src, dst = e.sources[keep], e.targets[keep]
-    if src.size > NAME_REPEAT_UP_TO:
-        return ""
-    keys = dst.astype(np.int64) * max(len(e.names), 1) + src
-    _, first = np.unique(keys, return_index=True)
-    repeat = np.ones(keys.size, bool)
-    repeat[first] = False
-    at = np.flatnonzero(repeat)
-    if not at.size:
-        return ""
-    i = int(at[0])
-    return f"; the first repeat: {e.names[int(src[i])]!r} -> {e.names[int(dst[i])]!r}"
+def _first_repeat(e: EdgeArrays, path: object, said: str) -> str:
+    """The duplicate-link warning ``said`` (``"N duplicate links were merged ..."``)
+    placed on the line of the earliest link that repeats an earlier one, with that
+    link's names, the line of the link it repeats and the fix (links of weight 0 left
+    out, as the build leaves them). Run only when there are duplicates: one compiled
+    pass over the links, then passes over the file up to that link for the lines."""
+    keep = None if e.weights is None else np.flatnonzero(e.weights != 0)
+    src = e.sources if keep is None else e.sources[keep]
+    dst = e.targets if keep is None else e.targets[keep]
+    k, j = (int(x) for x in first_repeat(dst, src, max(len(e.names), 1)))
+    if k < 0:
+        return f"{path}: {said}."
+    link = f"{excerpt(e.names[int(src[k])])} -> {excerpt(e.names[int(dst[k])])}"
+    fix = " (one link with the summed weight, if both were meant)" if e.weights is not None \
+        else ""
+    line = before = None
+    if isinstance(path, (str, os.PathLike)):
+        at = (k, j) if keep is None else (int(keep[k]), int(keep[j]))
+        try:
+            line, before = (line_of_link(path, x, header=e.header) for x in at)
+        except (OSError, NetctlError):  # the file went away since it was read
+            pass
+    if line is None:
+        return f"{path}: {said}: the first repeat is the link {link}. Give each link once{fix}."
+    earlier = f" on line {before}" if before is not None else " before it"
+    return (f"{path}:{line}: {said}: the link {link} here repeats the one{earlier}. Give "
+            f"each link once{fix}.")
 
 
 def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
@@ -227,9 +259,9 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
     check_finite(data, "A")
     A = Pattern(data, indices, indptr, (n, n))
     if n_dup:
-        warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
-                      "merged" + (" (weights summed)" if w is not None else "")
-                      + _first_repeat(e) + ".", stacklevel=3)
+        said = (f"{n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} merged"
+                + (" (weights summed)" if w is not None else ""))
+        warnings.warn(_first_repeat(e, path, said), stacklevel=3)
     if cancelled:
         warnings.warn(f"{path}: {cancelled} link{'s' if cancelled > 1 else ''} whose "
                       "duplicate weights sum to 0 were left out.", stacklevel=3)

@@ -35,6 +35,7 @@ from netctl.io._spec_parts import (
     _read_subsystems,
     _read_ties,
 )
+from netctl.io._spec_repeats import Place, links_entry_place, repeat_said
 from netctl.io.system_writer import INLINE_LINKS, _MODEL_NAMES, write_system  # noqa: F401
 from netctl.records import TIE_KINDS
 from netctl.stations import Station, make_stations
@@ -324,6 +325,7 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     src_parts: list[np.ndarray] = []
     dst_parts: list[np.ndarray] = []
     w_parts: list[np.ndarray | None] = []
+    places: list[Place] = []  # where each part's links are written (for the merge warning)
     coupling_file: Path | None = None
     if "file" in coup:
         f = coup["file"]
@@ -347,12 +349,14 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         src_parts.append(remap[e.sources])
         dst_parts.append(remap[e.targets])
         w_parts.append(e.weights)
+        places.append((e.sources.size, _file_place(fpath, e.header)))
 
     links = _read_links(doc, coup.get("links", []), state_id, path)
     if links is not None:
         src_parts.append(links[0])
         dst_parts.append(links[1])
         w_parts.append(links[2])
+        places.append((links[0].size, links_entry_place(doc.text, coup["links"])))
 
     # ---- subsystems
     subsystems, owner = _read_subsystems(doc, data.get("subsystems", {}), state_id)
@@ -372,6 +376,9 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         src_parts.append(tie_links[0])
         dst_parts.append(tie_links[1])
         w_parts.append(tie_links[2])
+        per_tie = np.repeat(np.arange(len(ties)), [
+            1 if t[4] == "state" else len(outputs[t[1]]) * len(inputs[t[3]]) for t in ties])
+        places.append((tie_links[0].size, lambda i: (f"[[ties]] entry {per_tie[i] + 1}", None)))
 
     # ---- control stations
     stations = _read_stations_table(doc, data.get("stations", {}),
@@ -400,12 +407,22 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     dst = np.concatenate(dst_parts) if dst_parts else np.zeros(0, np.int64)
     w = np.concatenate([np.ones(s.size) if x is None else x for s, x in
                         zip(src_parts, w_parts)]) if src_parts else np.zeros(0)
+    origin = np.arange(src.size)  # each link's entry, counted over ``places``
+    mirror = None
     if undirected:
         loop = src == dst
         src, dst, w = (np.concatenate([src, dst[~loop]]), np.concatenate([dst, src[~loop]]),
                        np.concatenate([w, w[~loop]]))
+        origin = np.concatenate([origin, origin[~loop]])
+        mirror = np.arange(src.size) >= origin.size - int(np.count_nonzero(~loop))
     if self_w:
         ids = np.array([index[s] for s in self_w], np.int64)
+        origin = np.concatenate([origin, sum(x[0] for x in places) + np.arange(ids.size)])
+        selfs = list(self_w)
+        if mirror is not None:
+            mirror = np.concatenate([mirror, np.zeros(ids.size, bool)])
+        places.append((ids.size, lambda i: (f"the 'self' attribute of state {selfs[i]!r}",
+                                            doc.line_of(selfs[i], "self"))))
         src = np.concatenate([src, ids])
         dst = np.concatenate([dst, ids])
         w = np.concatenate([w, np.array(list(self_w.values()))])
@@ -413,8 +430,10 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
     # scipy for a large one (netctl._csr)
     A, n_dup = coo_pattern(dst, src, w if weighted else None, (n, n))
     if n_dup:
-        warnings.warn(f"{path}: {n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} "
-                      "merged" + (" (weights summed)" if weighted else "") + ".", stacklevel=2)
+        said = (f"{n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} merged"
+                + (" (weights summed)" if weighted else ""))
+        warnings.warn(repeat_said(path, said, names, src, dst, origin, places, weighted,
+                                  mirror), stacklevel=2)
     if not weighted and n_dup:
         A = Pattern(np.ones(A.nnz), A.indices, A.indptr, A.shape).frozen()
     nodes = _node_table(attrs, names)
@@ -478,6 +497,19 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
                       terms=terms,
                       inputs=inputs, outputs=outputs, subsystems=subsystems, ties=tuple(ties),
                       tie_weights=tuple(tie_w), unassigned=unassigned, stations=stations)
+
+
+def _file_place(fpath: Path, header: bool) -> Any:
+    """``where`` for the links of a coupling file: the file and the link's line."""
+    from netctl.io._edgelines import line_of_link
+
+    def where(i: int) -> tuple[str, int | None]:
+        try:
+            line = line_of_link(fpath, i, header=header)
+        except (OSError, MissingFileError):  # the file went away since it was read
+            line = None
+        return f"the coupling file {fpath}" + (f" (line {line})" if line else ""), None
+    return where
 
 
 def read_system(path: str | os.PathLike[str], *, model: str = "given") -> StructuredSystem:

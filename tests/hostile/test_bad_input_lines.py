@@ -329,12 +329,18 @@ def test_what_is_not_an_empty_cell_reads_as_before(tmp_path, text):
     # and comments are not cells left empty: the same arrays as the old rule gives
     import re
 
+    import contextlib
+
     p = tmp_path / "e.csv"
     p.write_text(text)
-    got = {_arrays(p, chunk) for chunk in CHUNKS}
-    assert len(got) == 1, got
     links = [tuple(f for f in re.split(r"[,;\s]+", ln.split("#")[0]) if f)
              for ln in text.splitlines()]
+    # a single name beside a separator ('a, ,') is kept as a state, with a warning
+    lone = any(len(x) == 1 for x in links)
+    with (pytest.warns(UserWarning, match="holds one name and a separator") if lone
+          else contextlib.nullcontext()):
+        got = {_arrays(p, chunk) for chunk in CHUNKS}
+    assert len(got) == 1, got
     assert got.pop() == tuple(sorted(x for x in links if len(x) == 2))
 
 

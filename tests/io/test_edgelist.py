@@ -152,23 +152,24 @@ def test_matches_reference_parser(tmp_path, edges, sep, chunk):
 # ---------------------------------------------------------------- system building
 def test_duplicates_merged_with_count(tmp_path):
     p = write(tmp_path, "a b 1\na b 2\nb c 1\na b 0.5\n")
-    with pytest.warns(UserWarning, match=r"net\.csv: 2 duplicate links were merged "
+    with pytest.warns(UserWarning, match=r"net\.csv:2: 2 duplicate links were merged "
                       r"\(weights summed\)"):
         s = read_edgelist(p)
     assert s.A[1, 0] == 3.5 and s.n_links == 2
 
 
-def _first_repeat_by_hand(text: str) -> tuple[str, str] | None:
-    """The earliest line whose (source, target) appeared on an earlier line: a plain scan
-    of the text with a set, links of weight 0 skipped (they are not links)."""
-    seen = set()
-    for line in text.splitlines():
+def _first_repeat_by_hand(text: str) -> tuple[str, str, int, int] | None:
+    """The earliest line whose (source, target) appeared on an earlier line, and the
+    lines of both: a plain scan of the text with a dict, links of weight 0 skipped (they
+    are not links)."""
+    seen: dict[tuple[str, ...], int] = {}
+    for n, line in enumerate(text.splitlines(), start=1):
         cells = line.split()
         if len(cells) > 2 and float(cells[2]) == 0:
             continue
         if tuple(cells[:2]) in seen:
-            return cells[0], cells[1]
-        seen.add(tuple(cells[:2]))
+            return cells[0], cells[1], n, seen[tuple(cells[:2])]
+        seen[tuple(cells[:2])] = n
     return None
 
 
@@ -178,17 +179,26 @@ def _first_repeat_by_hand(text: str) -> tuple[str, str] | None:
     "a b 0\nb c 1\na b 1\nc a 1\nb c 2\n",  # the 0-weight a b is no link: b c repeats
     "x y\ny x\nx y\n",
 ])
-def test_duplicate_warning_names_the_first_repeat(tmp_path, text):
+@pytest.mark.parametrize("chunk", [None, 5])  # the small-file path, the compiled scanner
+def test_duplicate_warning_names_the_first_repeat(tmp_path, text, chunk):
+    """The warning names the file, the line of the first repeated link, its names and
+    the line of the link it repeats (it named no line before)."""
     import warnings
 
     p = write(tmp_path, text)
-    a, b = _first_repeat_by_hand(text)
+    a, b, line, first = _first_repeat_by_hand(text)
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        read_edgelist(p)
+        if chunk is None:
+            read_edgelist(p)
+        else:
+            from netctl.io.edgelist import _system_from_arrays
+
+            _system_from_arrays(read_edge_arrays(p, chunk_bytes=chunk), p, model="given")
     said = [str(w.message) for w in caught if "duplicate link" in str(w.message)]
-    assert len(said) == 1 and said[0].endswith(f"; the first repeat: {a!r} -> {b!r}."), (
-        [str(w.message) for w in caught])
+    assert len(said) == 1 and said[0].startswith(f"{p}:{line}: "), said
+    assert f": the link {a!r} -> {b!r} here repeats the one on line {first}. Give each link " \
+        "once" in said[0], said
 
 
 def test_zero_weights_warned_and_left_out(tmp_path):
