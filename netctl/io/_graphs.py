@@ -96,6 +96,16 @@ def system_from_parts(path: object, names: Sequence[Any], attrs: Sequence[Mappin
                              f"{_link(str_names, src, dst, e)} has the weight "
                              f"{weights[e]!r}, which is NaN or infinite; give a finite "
                              "weight.")
+        unweighted = [i for i, x in enumerate(weights) if x is None]
+        if unweighted:  # kept, with the weight 1.0: said, with the first one's line
+            e, n_un = unweighted[0], len(unweighted)
+            line = where("edge", e)
+            warnings.warn(f"{path}{f':{line}' if line is not None else ''}: {n_un} "
+                          f"link{'s' if n_un > 1 else ''} without a weight "
+                          f"{'were' if n_un > 1 else 'was'} given the weight 1.0, because "
+                          f"other links have weights (the first: "
+                          f"{_link(str_names, src, dst, e)}). Give every link a weight "
+                          "(or none).", stacklevel=3)
         zero = w == 0
         if zero.any():
             nz = int(zero.sum())

@@ -106,18 +106,35 @@ def _expat_pass(data: bytes, start: Callable[[str, dict[str, str], int], None],
     return True
 
 
-def _check_ids(path: object, data: bytes) -> None:
+def _check_ids(path: object, data: bytes
+               ) -> tuple[list[int], list[tuple[int, str]], list[int]] | None:
     """Refuse what networkx would merge or invent silently: a node id declared twice
     with different attributes, and an edge to a node no ``<node>`` declares (each with
-    its line)."""
+    its line). Returns what networkx passes over, for :func:`_warn_unread` once the
+    file is read: the lines of the top-level graphs, of graphs nested in a node that is
+    not a yFiles group (with the node's id), and of ``<port>`` elements."""
     nodes: dict[str, tuple[int, list[tuple[str, str]]]] = {}
     ends: list[tuple[str, int]] = []
     again: list[tuple[str, int, int]] = []  # (id, first line, line of the repeat)
     state: dict[str, Any] = {"node": None, "key": None, "text": [], "depth": 0}
+    tops: list[int] = []  # lines of the top-level graphs (networkx reads the first)
+    nested: list[tuple[int, str]] = []  # graphs in a node that networkx does not read
+    ports: list[int] = []
+    group: list[bool] = []  # per open <node>: a yFiles group (its graph is read)
+    node_ids: list[str] = []
 
     def start(local: str, attrs: dict[str, str], line: int) -> None:
         if local == "graph":
             state["depth"] += 1
+            if state["depth"] == 1:
+                tops.append(line)
+            elif len(tops) == 1 and not (group and group[-1]):
+                nested.append((line, node_ids[-1] if node_ids else ""))
+        elif local == "node":
+            group.append(attrs.get("yfiles.foldertype") == "group")
+            node_ids.append(attrs.get("id", ""))
+        elif local == "port" and len(tops) == 1:
+            ports.append(line)
         if state["depth"] != 1:  # nested graphs are networkx's business
             return
         if local == "node" and "id" in attrs:
@@ -135,6 +152,9 @@ def _check_ids(path: object, data: bytes) -> None:
             state["text"].append(text)
 
     def end(local: str) -> None:
+        if local == "node" and group:
+            group.pop()
+            node_ids.pop()
         if local == "graph":
             state["depth"] -= 1
         elif local == "data" and state["key"] is not None and state["node"] is not None:
@@ -152,7 +172,8 @@ def _check_ids(path: object, data: bytes) -> None:
             nodes.setdefault(nid, (line, attrs))
 
     if not _expat_pass(data, start, end, chars):
-        return  # malformed XML: the full parser reports it with its line
+        return None  # malformed XML: the full parser reports it with its line
+    unread = (tops, nested, ports)
     for nid, line in ends:
         if nid not in nodes:
             raise file_error(path, line, f"an edge names the node {excerpt(nid)}, which no "
@@ -164,6 +185,32 @@ def _check_ids(path: object, data: bytes) -> None:
                       f"same attributes (first on line {first}); read as one node{more}. "
                       "GraphML wants each id once: remove the repeat, or give a different "
                       "node its own id.", stacklevel=3)
+    return unread
+
+
+def _warn_unread(path: object, tops: list[int], nested: list[tuple[int, str]],
+                 ports: list[int]) -> None:
+    """Warn about what the GraphML reader (networkx) passes over: graphs after the
+    first, a graph nested in a node that is not a yFiles group, and ``<port>``
+    elements (each with its line)."""
+    if len(tops) > 1:
+        k = len(tops) - 1
+        warnings.warn(f"{path}:{tops[1]}: the file holds {len(tops)} graphs; only the first "
+                      f"(line {tops[0]}) was read, and the nodes and links of the other "
+                      f"{'graph are' if k == 1 else f'{k} graphs are'} not kept. Put each "
+                      "network in a file of its own.", stacklevel=3)
+    if nested:
+        line, node = nested[0]
+        more = f" ({len(nested)} nested graphs in all)" if len(nested) > 1 else ""
+        warnings.warn(f"{path}:{line}: the graph nested in node {excerpt(node)} was not "
+                      f"read{more}: its nodes and links are not kept (a nested graph is read "
+                      "only in a yFiles group node). Move its nodes and links into the "
+                      "top-level graph.", stacklevel=3)
+    if ports:
+        more = f" ({len(ports)} in all)" if len(ports) > 1 else ""
+        warnings.warn(f"{path}:{ports[0]}: <port> elements are not kept{more}: each link "
+                      "is read as joining its two nodes. Remove the ports to silence "
+                      "this.", stacklevel=3)
 
 
 def finite_weight(value: Any) -> bool:
@@ -255,9 +302,11 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
 
     data = read_bytes(path)
     refuse_unsafe_xml(path, data)
-    _check_ids(path, data)
+    unread = _check_ids(path, data)
     try:
-        g = nx.read_graphml(io.BytesIO(data))
+        with warnings.catch_warnings():  # said with the file and line by _check_ids
+            warnings.filterwarnings("ignore", "GraphML port tag not supported")
+            g = nx.read_graphml(io.BytesIO(data))
     except ET.ParseError as exc:
         line, col = getattr(exc, "position", (None, None))
         what = re.sub(r":? *line \d+, column \d+", "", str(exc))
@@ -283,8 +332,24 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
             fix = "Declare the key (a <key id=... for=... attr.name=... attr.type=...>)."
         raise file_error(path, line, f"not a GraphML graph netctl can read: {why}. {fix}"
                          ) from None
+    if unread is not None:
+        _warn_unread(path, *unread)
+    _apply_defaults(g)
     return graph_to_system(g, path, model=model, what="GraphML",
                            find=_finder(data, g.is_directed()))
+
+
+def _apply_defaults(g: Any) -> None:
+    """Give every node and edge without a ``<data>`` of a key that declares a
+    ``<default>`` that default, as GraphML means it (networkx keeps the defaults aside
+    in ``g.graph``, so a weight or attribute given by default would be lost)."""
+    for key, table in (("node_default", g.nodes(data=True)),
+                       ("edge_default", g.edges(data=True))):
+        default = g.graph.get(key) or {}
+        if default:
+            for *_, d in table:
+                for k, v in default.items():
+                    d.setdefault(k, v)
 
 
 #: networkx's (Python's) messages for a value that its type does not read, and for a

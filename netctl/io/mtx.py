@@ -10,6 +10,7 @@ from __future__ import annotations
 import io
 import os
 import re
+from typing import Any
 
 import numpy as np
 
@@ -139,9 +140,8 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
         n_dup = int(M.nnz) - int(A.nnz)
     if n_dup:
         import warnings
-        warnings.warn(f"{path}: {n_dup} entr{'y' if n_dup == 1 else 'ies'} given twice "
-                      f"{'was' if n_dup == 1 else 'were'} merged"
-                      + (" (values summed)." if field != "pattern" else "."), stacklevel=2)
+        warnings.warn(_repeat_said(path, data, size_line_no, end, M, claimed, n_dup,
+                                   field), stacklevel=2)
     if field == "pattern":
         A = sp.csr_array((np.ones(A.nnz), A.indices, A.indptr), shape=A.shape)
     if A.nnz and not np.all(np.isfinite(A.data)):
@@ -150,10 +150,63 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     n_zero = int(np.count_nonzero(A.data == 0))
     if n_zero:
         import warnings
-        warnings.warn(f"{path}: {n_zero} explicitly stored zero entr"
-                      f"{'y is' if n_zero == 1 else 'ies are'} not links and were left out.",
-                      stacklevel=2)
+        first = None
+        if sp.issparse(M):  # the first entry line with the value 0
+            zero = np.flatnonzero(np.asarray(M.data[:claimed]) == 0)
+            if zero.size:
+                first = _entry_line(data, size_line_no, end, claimed, int(zero[0]))
+        warnings.warn(f"{path}{f':{first}' if first else ''}: {n_zero} explicitly stored "
+                      f"zero entr{'y is no link and was' if n_zero == 1 else 'ies are no links and were'} "
+                      f"left out{' (the first on this line)' if first else ''}. Remove "
+                      "the zero entries (and lower the entry count on the size line) to "
+                      "silence this.", stacklevel=2)
     return StructuredSystem.from_matrices(A, weighted=field != "pattern", model=model)
+
+
+def _entry_line(data: bytes, size_line: int, end: int, claimed: int, k: int) -> int | None:
+    """Line of entry ``k`` (from 0, in file order) of a coordinate file whose size line
+    is line ``size_line`` ending at byte ``end`` (only on a warning's path). Without
+    comment or blank lines among the entries (the entry lines are exactly ``claimed``),
+    it is counted; otherwise the lines are walked."""
+    rest = data[end + 1:]
+    if rest.count(b"\n") == claimed and b"%" not in rest:
+        return size_line + 1 + k
+    seen = -1
+    for n, raw in enumerate(rest.split(b"\n"), start=size_line + 1):
+        s = raw.strip()
+        if s and not s.startswith(b"%"):
+            seen += 1
+            if seen == k:
+                return n
+    return None
+
+
+def _repeat_said(path: object, data: bytes, size_line: int, end: int, M: Any,
+                 claimed: int, n_dup: int, field: str) -> str:
+    """The merge warning for entries given twice, on the line of the first entry that
+    repeats an earlier one (its row and column, the line of the earlier one, the fix).
+    A symmetric file's mirrored entries count as given on their original's line."""
+    from netctl.io._edgelines import first_repeat
+
+    row, col = np.asarray(M.row, np.int64), np.asarray(M.col, np.int64)
+    stored = np.arange(claimed)  # the file entry behind each coordinate of M
+    mirrored = np.flatnonzero(row[:claimed] != col[:claimed])[:row.size - claimed]
+    pos = np.concatenate([stored, mirrored])
+    order = np.argsort(pos, kind="stable")
+    k, j = (int(x) for x in first_repeat(row[order], col[order], max(M.shape[0], 1)))
+    said = (f"{n_dup} entr{'y' if n_dup == 1 else 'ies'} given twice "
+            f"{'was' if n_dup == 1 else 'were'} merged"
+            + (" (values summed)" if field != "pattern" else ""))
+    if k < 0:
+        return f"{path}: {said}."
+    ek, ej = int(pos[order[k]]), int(pos[order[j]])
+    line = _entry_line(data, size_line, end, claimed, ek)
+    before = _entry_line(data, size_line, end, claimed, ej)
+    r, c = int(row[order[k]]) + 1, int(col[order[k]]) + 1
+    return (f"{path}{f':{line}' if line else ''}: {said}: the entry (row {r}, column {c}) "
+            f"here repeats the one{f' on line {before}' if before and before != line else ''}. "
+            "Give each entry once" + (" (one entry with the summed value, if both were "
+                                      "meant)." if field != "pattern" else "."))
 
 
 #: Bytes looked at per step when counting the numbers of the entry lines (small enough

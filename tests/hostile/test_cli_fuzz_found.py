@@ -188,7 +188,8 @@ def test_matrix_market_entry_given_twice_is_said(tmp_path):
     p.write_text("%%MatrixMarket matrix coordinate real general\n2 2 2\n1 1 1.0\n1 1 2.0\n")
     code, out, err = run_cli(["inspect", str(p), "--json"])
     assert code == 0
-    assert f"{p}: 1 entry given twice was merged (values summed)." in err, err
+    assert f"{p}:4: 1 entry given twice was merged (values summed): the entry (row 1, " \
+        "column 1) here repeats the one on line 3. Give each entry once" in err, err
     with pytest.warns(UserWarning, match="given twice"):
         A = nio.read(p).A
     assert A.toarray().tolist() == [[3.0, 0.0], [0.0, 0.0]]  # summed, as scipy reads it
