@@ -9,6 +9,7 @@ layout networkx's ``node_link_data`` writes.
 from __future__ import annotations
 
 import json
+import re
 import json.decoder
 import json.scanner
 import os
@@ -48,6 +49,13 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
     if not isinstance(data, dict) or not isinstance(data.get("nodes"), list):
         raise file_error(path, None, "expected a JSON object with a \"nodes\" list and a "
                          "\"links\" list (node-link layout, see docs/FORMATS.md).")
+    if "links" in data and "edges" in data:  # one list would be passed over
+        m = re.search(r'"edges"\s*:', text)
+        raise file_error(path, text.count("\n", 0, m.start()) + 1 if m else None,
+                         f"the file holds both a \"links\" list ({_count(data['links'])}) "
+                         f"and an \"edges\" list ({_count(data['edges'])}); netctl reads one "
+                         "list of links and would pass over the other. Put all links in "
+                         "\"links\".")
     unknown = [k for k in data if k not in _TOP]
     if unknown or data.get("graph"):
         warnings.warn(f"{path}: the keys {', '.join(map(repr, unknown + (['graph'] if data.get('graph') else [])))} "
@@ -101,6 +109,13 @@ def read_nodelink(path: str | os.PathLike[str], *, model: str = "given") -> Stru
         raise file_error(path, None, f"\"directed\" must be true or false, found {directed!r}.")
     return system_from_parts(path, names, attrs, src, dst, wts if weighted else None,
                              directed, model=model, what="node-link JSON", locate=locate)
+
+
+def _count(items: Any) -> str:
+    """``"3 items"`` for a list, else its JSON type (for a message)."""
+    if isinstance(items, list):
+        return f"{len(items)} item{'s' if len(items) != 1 else ''}"
+    return f"a {type(items).__name__}, not a list"
 
 
 class _Items(list):  # type: ignore[type-arg]

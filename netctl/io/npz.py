@@ -28,6 +28,12 @@ __all__ = ["read_npz", "write_npz", "MAX_STATES"]
 MAX_STATES = 2_000_000_000
 
 
+#: The arrays a .npz of A holds (scipy.sparse.save_npz's, and netctl's names and flag).
+_KNOWN = frozenset({"format", "shape", "data", "indices", "indptr", "row", "col", "coords",
+                    "_is_array",  # scipy: a sparse array (not matrix) was saved
+                    "state_names", "weighted"})
+
+
 def _load(path: object, data: bytes) -> dict[str, np.ndarray]:
     try:
         with np.load(io.BytesIO(data), allow_pickle=False) as z:
@@ -57,6 +63,13 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     if any(k not in z for k in need):
         raise file_error(path, None, f"expected the arrays of scipy.sparse.save_npz "
                          f"(format, shape, data, ...); found {sorted(z)}.")
+    other = sorted(k for k in z if k not in _KNOWN)
+    if other:  # an .npz holds A only: anything else would be passed over
+        import warnings
+        warnings.warn(f"{path}: the arrays {', '.join(map(repr, other))} are not read: an "
+                      ".npz holds the matrix A only (scipy.sparse.save_npz's arrays, with "
+                      "state_names and weighted). Write inputs, outputs and node tables to a "
+                      ".toml description to keep them.", stacklevel=2)
     fmt = z["format"].item()
     fmt = fmt.decode("ascii", "replace") if isinstance(fmt, bytes) else str(fmt)
     raw_shape = np.asarray(z["shape"]).ravel()
@@ -113,8 +126,8 @@ def read_npz(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     if zero:
         import warnings
         warnings.warn(f"{path}: {zero} explicitly stored zero entr"
-                      f"{'y is' if zero == 1 else 'ies are'} not links and were left out.",
-                      stacklevel=2)
+                      f"{'y is no link and was' if zero == 1 else 'ies are no links and were'}"
+                      " left out.", stacklevel=2)
     return StructuredSystem.from_matrices(A, state_names=names, weighted=weighted, model=model)
 
 
