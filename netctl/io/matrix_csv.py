@@ -117,8 +117,11 @@ def read_matrix_csv(path: str | os.PathLike[str], *, model: str = "given") -> St
         raise file_error(path, 1, f"the header names {len(names)} states but the matrix has "
                          f"{n}; give one name per column.")
     if col_names is not None and len(row_names) == n and row_names != col_names:
-        raise file_error(path, None, "the row labels differ from the column names; a state "
-                         "matrix has the same states on both sides.")
+        k = next(i for i, (r, c) in enumerate(zip(row_names, col_names)) if r != c)
+        raise file_error(path, row_lines[k], f"the row label {excerpt(row_names[k])} differs "
+                         f"from the name of column {k + 1} ({excerpt(col_names[k])}); a state "
+                         "matrix has the same states, in the same order, on both sides. "
+                         "Put the rows in the order of the columns.")
     A = np.array(rows)
     weighted = bool(np.any((A != 0) & (A != 1)))
     return StructuredSystem.from_matrices(A, state_names=names, weighted=weighted, model=model)

@@ -151,16 +151,31 @@ def read_mtx(path: str | os.PathLike[str], *, model: str = "given") -> Structure
     if n_zero:
         import warnings
         first = None
-        if sp.issparse(M):  # the first entry line with the value 0
-            zero = np.flatnonzero(np.asarray(M.data[:claimed]) == 0)
-            if zero.size:
-                first = _entry_line(data, size_line_no, end, claimed, int(zero[0]))
+        if sp.issparse(M):  # the first entry line of a position whose value is 0
+            width = max(A.shape[1], 1)
+            rows = np.repeat(np.arange(A.shape[0]), np.diff(A.indptr))
+            zero = (rows * width + A.indices)[A.data == 0]
+            held = np.isin(np.asarray(M.row, np.int64) * width + np.asarray(M.col, np.int64),
+                           zero)
+            held = held[:claimed] | _mirrors_of(M, claimed, held)
+            if held.any():
+                first = _entry_line(data, size_line_no, end, claimed, int(np.argmax(held)))
         warnings.warn(f"{path}{f':{first}' if first else ''}: {n_zero} explicitly stored "
                       f"zero entr{'y is no link and was' if n_zero == 1 else 'ies are no links and were'} "
                       f"left out{' (the first on this line)' if first else ''}. Remove "
                       "the zero entries (and lower the entry count on the size line) to "
                       "silence this.", stacklevel=2)
     return StructuredSystem.from_matrices(A, weighted=field != "pattern", model=model)
+
+
+def _mirrors_of(M: Any, claimed: int, flags: np.ndarray) -> np.ndarray:
+    """``flags`` of a symmetric file's mirrored coordinates (after the ``claimed``
+    stored ones, one per off-diagonal entry) carried back to their stored entries."""
+    out = np.zeros(claimed, bool)
+    if flags.size > claimed:
+        off = np.flatnonzero(np.asarray(M.row[:claimed]) != np.asarray(M.col[:claimed]))
+        out[off[:flags.size - claimed]] = flags[claimed:]
+    return out
 
 
 def _entry_line(data: bytes, size_line: int, end: int, claimed: int, k: int) -> int | None:
