@@ -5,7 +5,9 @@ as one, except that two commas or semicolons in a row, or one before the first n
 leave a cell empty and are refused; there is no quoting, so names may not contain
 separators); ``#`` starts a
 comment; an optional header line names the columns (``source,target,weight`` or
-similar); a line with a single name declares a state (kept even when it has no link).
+similar); a line with a single name declares a state (kept even when it has no link;
+with a comma, semicolon or tab beside the name, as in ``c,``, it is kept too, and one
+warning names the first such line: it may be a link whose other name is missing).
 Names may be integers or strings; a name written with a leading apostrophe before
 ``=``, ``+``, ``-``, ``@``, ``'``, a tab or a carriage return is read without it (the
 spreadsheet quoting of :mod:`netctl.io.edgelist_writer`; ``'=x`` is the name ``=x``).
@@ -111,6 +113,13 @@ def read_edge_arrays(path: str | os.PathLike[str], *,
         text, a damaged or truncated gzip stream, an empty file.
     MissingFileError
         The file does not exist.
+
+    Warns
+    -----
+    UserWarning
+        Once, naming the first line and the count, for lines of one name beside a comma,
+        semicolon or tab (``c,``): kept as states with no link, but maybe links whose
+        other name is missing.
 
     Notes
     -----
