@@ -203,7 +203,7 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
         lo = np.minimum(e.sources, e.targets)
         hi = np.maximum(e.sources, e.targets)
         one_way = _system_from_arrays(dataclasses.replace(e, sources=lo, targets=hi), path,
-                                      model=model)
+                                      model=model, as_written=e)
         import scipy.sparse as sp
 
         A = one_way.A  # row = hi >= column = lo: each link once; add its mirror
@@ -220,26 +220,32 @@ def read_edgelist(path: str | os.PathLike[str], *, model: str = "given",
     return system
 
 
-def _first_repeat(e: EdgeArrays, path: object, said: str) -> str:
+def _first_repeat(e: EdgeArrays, path: object, said: str,
+                  as_written: EdgeArrays | None = None) -> str:
     """The duplicate-link warning ``said`` (``"N duplicate links were merged ..."``)
     placed on the line of the earliest link that repeats an earlier one, with that
     link's names, the line of the link it repeats and the fix (links of weight 0 left
     out, as the build leaves them). Run only when there are duplicates: one compiled
-    pass over the links, then passes over the file up to that link for the lines."""
+    pass over the links, then passes over the file up to that link for the lines.
+    ``as_written``: the links as the file gives them, for the names (an undirected read
+    looks for repeats among its links with their ends in index order)."""
     keep = None if e.weights is None else np.flatnonzero(e.weights != 0)
     src = e.sources if keep is None else e.sources[keep]
     dst = e.targets if keep is None else e.targets[keep]
     k, j = (int(x) for x in first_repeat(dst, src, max(len(e.names), 1)))
     if k < 0:
         return f"{path}: {said}."
-    link = f"{excerpt(e.names[int(src[k])])} -> {excerpt(e.names[int(dst[k])])}"
+    at = k if keep is None else int(keep[k])
+    shown = e if as_written is None else as_written
+    link = (f"{excerpt(e.names[int(shown.sources[at])])} -> "
+            f"{excerpt(e.names[int(shown.targets[at])])}")
     fix = " (one link with the summed weight, if both were meant)" if e.weights is not None \
         else ""
     line = before = None
     if isinstance(path, (str, os.PathLike)):
-        at = (k, j) if keep is None else (int(keep[k]), int(keep[j]))
+        pair = (k, j) if keep is None else (int(keep[k]), int(keep[j]))
         try:
-            line, before = (line_of_link(path, x, header=e.header) for x in at)
+            line, before = (line_of_link(path, x, header=e.header) for x in pair)
         except (OSError, NetctlError):  # the file went away since it was read
             pass
     if line is None:
@@ -250,6 +256,7 @@ def _first_repeat(e: EdgeArrays, path: object, said: str) -> str:
 
 
 def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
+                        as_written: EdgeArrays | None = None,
                         nodes: dict[str, np.ndarray] | None = None) -> StructuredSystem:
     src, dst, w = e.sources, e.targets, e.weights
     n = len(e.names)
@@ -270,7 +277,7 @@ def _system_from_arrays(e: EdgeArrays, path: object, *, model: str,
     if n_dup:
         said = (f"{n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} merged"
                 + (" (weights summed)" if w is not None else ""))
-        warnings.warn(_first_repeat(e, path, said), stacklevel=3)
+        warnings.warn(_first_repeat(e, path, said, as_written), stacklevel=3)
     if cancelled:
         warnings.warn(f"{path}: {cancelled} link{'s' if cancelled > 1 else ''} whose "
                       "duplicate weights sum to 0 were left out.", stacklevel=3)

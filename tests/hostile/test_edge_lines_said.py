@@ -203,6 +203,17 @@ def test_repeat_named_by_its_line_through_the_cli(tmp_path, monkeypatch, capsys)
                    "'b' here repeats the one on line 3. Give each link once.\n"), err
 
 
+def test_undirected_repeat_named_as_written(tmp_path):
+    """Read undirected, 'c,b' repeats 'b,c': named as line 3 writes it."""
+    p = tmp_path / "u.csv"
+    p.write_text("a,b\nb,c\nc,b\n")
+    with pytest.warns(UserWarning) as caught:
+        read_edgelist(p, undirected=True)
+    said = [str(w.message) for w in caught]
+    assert said == [f"{p}:3: 1 duplicate link was merged: the link 'c' -> 'b' here repeats "
+                    "the one on line 2. Give each link once."], said
+
+
 @pytest.mark.parametrize("mode", ["compiled", "python"])
 def test_first_repeat_against_a_plain_scan(mode):
     """The kernel against a dict scan (brute force) on random pairs, short and long rows,
