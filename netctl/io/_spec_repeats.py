@@ -21,7 +21,7 @@ import numpy as np
 from netctl.io._common import excerpt
 from netctl.io._edgelines import first_repeat
 
-__all__ = ["Place", "repeat_said", "links_entry_place"]
+__all__ = ["Place", "repeat_said", "zero_said", "links_entry_place"]
 
 #: ``where(i)`` of the entries of one place: ``(how the entry is named, its line in
 #: the description or None)``.
@@ -50,6 +50,22 @@ def repeat_said(path: object, said: str, names: Sequence[str], src: np.ndarray,
     there += f" (line {before})" if before is not None else ""
     return (f"{at}: {said}: the link {link} from {here} repeats the one from {there}. "
             f"Give each link once{fix}.")
+
+
+def zero_said(path: object, names: Sequence[str], src: np.ndarray, dst: np.ndarray,
+              w: np.ndarray, origin: np.ndarray, places: Sequence[Place]) -> str:
+    """The warning for links of weight 0 (no link: left out), naming the first one by
+    its states and its entry (with its line where found)."""
+    zero = np.flatnonzero(w == 0)
+    k = int(zero[np.argmin(origin[zero])])  # the first in the order of the entries
+    here, line = _where(int(origin[k]), places)
+    nz = zero.size
+    link = f"{excerpt(names[int(src[k])])} -> {excerpt(names[int(dst[k])])}"
+    return (f"{path}{f':{line}' if line is not None else ''}: {nz} "
+            f"link{'s' if nz > 1 else ''} with weight 0 {'are' if nz > 1 else 'is'} not a "
+            f"link and {'were' if nz > 1 else 'was'} left out (the first: {link} from "
+            f"{here}). Remove {'them' if nz > 1 else 'it'}, or give the weight "
+            f"{'each' if nz > 1 else 'it'} has.")
 
 
 def _where(i: int, places: Sequence[Place]) -> tuple[str, int | None]:

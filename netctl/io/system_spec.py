@@ -35,7 +35,7 @@ from netctl.io._spec_parts import (
     _read_subsystems,
     _read_ties,
 )
-from netctl.io._spec_repeats import Place, links_entry_place, repeat_said
+from netctl.io._spec_repeats import Place, links_entry_place, repeat_said, zero_said
 from netctl.io.system_writer import INLINE_LINKS, _MODEL_NAMES, write_system  # noqa: F401
 from netctl.records import TIE_KINDS
 from netctl.stations import Station, make_stations
@@ -428,12 +428,24 @@ def read_spec(path: str | os.PathLike[str], *, model: str = "given") -> SystemSp
         w = np.concatenate([w, np.array(list(self_w.values()))])
     # duplicates summed (weighted) or merged to 1.0 (a pattern): NumPy for a small file,
     # scipy for a large one (netctl._csr)
+    if weighted and (w == 0).any():  # weight 0 is no link: left out, said (as edge lists)
+        warnings.warn(zero_said(path, names, src, dst, w, origin, places), stacklevel=2)
+        nz = w != 0
+        src, dst, w, origin = src[nz], dst[nz], w[nz], origin[nz]
+        mirror = None if mirror is None else mirror[nz]
     A, n_dup = coo_pattern(dst, src, w if weighted else None, (n, n))
     if n_dup:
         said = (f"{n_dup} duplicate link{'s were' if n_dup > 1 else ' was'} merged"
                 + (" (weights summed)" if weighted else ""))
         warnings.warn(repeat_said(path, said, names, src, dst, origin, places, weighted,
                                   mirror), stacklevel=2)
+    if weighted and n_dup:  # repeats whose weights cancel leave no link: said
+        gone = int(np.unique(dst * max(n, 1) + src).size) - A.nnz
+        if gone:
+            warnings.warn(f"{path}: {gone} link{'s' if gone > 1 else ''} given more than once "
+                          "with weights that sum to 0 " + ("were" if gone > 1 else "was") +
+                          " left out (no link is left where weights cancel); give each link "
+                          "once, with its weight.", stacklevel=2)
     if not weighted and n_dup:
         A = Pattern(np.ones(A.nnz), A.indices, A.indptr, A.shape).frozen()
     nodes = _node_table(attrs, names)

@@ -302,3 +302,58 @@ def test_matrix_csv_row_label_mismatch_names_its_line(tmp_path, monkeypatch, cap
                    "column 2 ('b'); a state matrix has the same states, in the same order, on "
                    "both sides. Put the rows in the order of the columns.\n"), err
     assert not list(tmp_path.glob("out*"))
+
+
+# ---------------------------------------------------------------- TOML weights of 0
+_WEIGHTS = """[system]
+name = "w"
+description = "an invented three-tank line"
+
+[couplings]
+{file}links = [
+  ["a", "b", 0],
+  ["b", "c", 1.0],
+  ["c", "a", 2],
+  ["c", "a", -2],
+]
+"""
+
+
+def test_toml_zero_weight_and_cancelled_links_are_said(tmp_path, monkeypatch, capsys):
+    """A link of weight 0 is no link (left out, as edge lists say), and repeats whose
+    weights sum to 0 leave no link: both were left out silently."""
+    text = _WEIGHTS.format(file="")
+    p = tmp_path / "w.toml"
+    p.write_text(text)
+    with pytest.warns(UserWarning) as caught:
+        s = read_spec(p).system
+    said = [str(w.message) for w in caught]
+    line = _line_of(text, '["a", "b", 0]')
+    assert said[0] == (f"{p}:{line}: 1 link with weight 0 is "
+                       "not a link and was left out (the first: 'a' -> 'b' from [couplings] "
+                       "links entry 1). Remove it, or give the weight it has."), said
+    assert said[2] == (f"{p}: 1 link given more than once with weights that sum to 0 was left "
+                       "out (no link is left where weights cancel); give each link once, with "
+                       "its weight."), said
+    assert "1 duplicate link was merged (weights summed): the link 'c' -> 'a' from " \
+           "[couplings] links entry 4" in said[1], said
+    assert s.n_links == 1  # b -> c only
+    monkeypatch.chdir(tmp_path)
+    assert main(["inspect", "w.toml", "--json"]) == 0
+    err = capsys.readouterr().err.splitlines()
+    assert err[0].startswith("netctl: warning: w.toml:7: 1 link with weight 0"), err
+    assert len(err) == 3, err
+
+
+def test_toml_coupling_file_zero_weight_is_said(tmp_path):
+    (tmp_path / "w.edges.csv").write_text("source,target,weight\nx,y,1\ny,z,0\n")
+    p = tmp_path / "w.toml"
+    p.write_text('[system]\nname = "w"\ndescription = "d"\n\n[couplings]\n'
+                 'file = "w.edges.csv"\nlinks = [["z", "x", 0]]\n')
+    with pytest.warns(UserWarning) as caught:
+        s = read_spec(p).system
+    assert [str(w.message) for w in caught] == [  # the file's links come first
+        f"{p}: 2 links with weight 0 are not a link and were left out (the first: 'y' -> 'z' "
+        f"from the coupling file {tmp_path / 'w.edges.csv'} (line 3)). Remove them, or give "
+        "the weight each has."]
+    assert s.state_names == ("x", "y", "z") and s.n_links == 1  # the states stay
