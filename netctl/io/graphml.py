@@ -107,12 +107,13 @@ def _expat_pass(data: bytes, start: Callable[[str, dict[str, str], int], None],
 
 
 def _check_ids(path: object, data: bytes
-               ) -> tuple[list[int], list[tuple[int, str]], list[int]] | None:
+               ) -> tuple[list[int], list[tuple[int, str]], list[int], list[int]] | None:
     """Refuse what networkx would merge or invent silently: a node id declared twice
     with different attributes, and an edge to a node no ``<node>`` declares (each with
     its line). Returns what networkx passes over, for :func:`_warn_unread` once the
     file is read: the lines of the top-level graphs, of graphs nested in a node that is
-    not a yFiles group (with the node's id), and of ``<port>`` elements."""
+    not a yFiles group (with the node's id), of ``<port>`` elements and of
+    ``<hyperedge>`` elements."""
     nodes: dict[str, tuple[int, list[tuple[str, str]]]] = {}
     ends: list[tuple[str, int]] = []
     again: list[tuple[str, int, int]] = []  # (id, first line, line of the repeat)
@@ -120,6 +121,7 @@ def _check_ids(path: object, data: bytes
     tops: list[int] = []  # lines of the top-level graphs (networkx reads the first)
     nested: list[tuple[int, str]] = []  # graphs in a node that networkx does not read
     ports: list[int] = []
+    hyper: list[int] = []  # networkx refuses a hyperedge: the message names its line
     group: list[bool] = []  # per open <node>: a yFiles group (its graph is read)
     node_ids: list[str] = []
 
@@ -135,6 +137,8 @@ def _check_ids(path: object, data: bytes
             node_ids.append(attrs.get("id", ""))
         elif local == "port" and len(tops) == 1:
             ports.append(line)
+        elif local == "hyperedge":
+            hyper.append(line)
         if state["depth"] != 1:  # nested graphs are networkx's business
             return
         if local == "node" and "id" in attrs:
@@ -173,7 +177,7 @@ def _check_ids(path: object, data: bytes
 
     if not _expat_pass(data, start, end, chars):
         return None  # malformed XML: the full parser reports it with its line
-    unread = (tops, nested, ports)
+    unread = (tops, nested, ports, hyper)
     for nid, line in ends:
         if nid not in nodes:
             raise file_error(path, line, f"an edge names the node {excerpt(nid)}, which no "
@@ -330,10 +334,14 @@ def read_graphml(path: str | os.PathLike[str], *, model: str = "given") -> Struc
         elif key:
             line = _data_line(data, key=key.group(1))
             fix = "Declare the key (a <key id=... for=... attr.name=... attr.type=...>)."
+        elif "hyperedge" in why and unread is not None and unread[3]:
+            line = unread[3][0]
+            fix = ("A link joins two states: write the hyperedge as <edge> elements from "
+                   "each source to each target.")
         raise file_error(path, line, f"not a GraphML graph netctl can read: {why}. {fix}"
                          ) from None
     if unread is not None:
-        _warn_unread(path, *unread)
+        _warn_unread(path, *unread[:3])
     _apply_defaults(g)
     return graph_to_system(g, path, model=model, what="GraphML",
                            find=_finder(data, g.is_directed()))

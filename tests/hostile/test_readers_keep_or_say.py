@@ -357,3 +357,18 @@ def test_toml_coupling_file_zero_weight_is_said(tmp_path):
         f"from the coupling file {tmp_path / 'w.edges.csv'} (line 3)). Remove them, or give "
         "the weight each has."]
     assert s.state_names == ("x", "y", "z") and s.n_links == 1  # the states stay
+
+
+def test_graphml_hyperedge_refused_on_its_line(tmp_path, monkeypatch, capsys):
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "h.graphml").write_text(
+        '<?xml version="1.0"?>\n<graphml xmlns="http://graphml.graphdrawing.org/xmlns">\n'
+        '  <graph edgedefault="directed">\n    <node id="a"/><node id="b"/>\n'
+        '    <hyperedge><endpoint node="a"/><endpoint node="b"/></hyperedge>\n'
+        '  </graph>\n</graphml>\n')
+    assert main(["convert", "h.graphml", "out.json"]) == 2
+    err = capsys.readouterr().err
+    assert err == ("netctl: error: h.graphml:5: not a GraphML graph netctl can read: GraphML "
+                   "reader doesn't support hyperedges. A link joins two states: write the "
+                   "hyperedge as <edge> elements from each source to each target.\n"), err
+    assert not list(tmp_path.glob("out*"))
