@@ -128,7 +128,7 @@ def failures_section(ctx: Any) -> Section | None:
         for k in br.tolist():
             n_bad += 1
             rows.append((f"line {lines.labels[k]}", "-",
-                         ", ".join(system.names_of(lines.unreached[k][:8])) or "-",
+                         ", ".join(system.names_of(lines.unreached.first(k, 8))) or "-",
                          "; ".join(lines.reasons(k)) or "-"))
         data["lines"] = lines.to_dict()
     if rows:

@@ -191,8 +191,10 @@ def _sizes_after(indptr, indices, row_of, t_ptr, t_row, t_pos, rm0, cm0, size0,
                     fr[nfr] = r
                     nfr += 1
                     row_freed[r] = True
-        # phase 1: freed columns to originally unmatched rows (freed rows set aside)
-        for i in range(nfc):
+        # phase 1: freed columns to originally unmatched rows (freed rows set aside);
+        # none when the matching covered every row (a Lin test's intact design), and
+        # each fruitless search would read the whole graph (a grid: quadratic in all)
+        for i in range(nfc if size0 < n_r else 0):
             c0 = fc[i]
             if cm[c0] >= 0:
                 continue
