@@ -21,6 +21,8 @@ import networkx as nx
 import numpy as np
 import pytest
 import scipy.sparse as sp
+from hypothesis import example, given, settings
+from hypothesis import strategies as st
 from numba import njit
 
 from netctl import StructuredSystem
@@ -593,3 +595,94 @@ def test_empty_and_edgeless_systems():
         assert minimum_strong_inputs(iso, diagonal=diagonal).n_inputs == 3
         assert _search_uncontrollable(*_patterns(iso.with_inputs([0, 1, 2])), diagonal) is None
         assert _search_uncontrollable(*_patterns(iso.with_inputs([0, 1])), diagonal) is not None
+
+
+def _greedy_rescanning(g, rule, black0, allowed):
+    """``_greedy`` as it was before each vertex kept a resume position: the same heap
+    and closure steps (the module's own), but every choice scans the chosen vertex's
+    out-list from its start (quadratic on an out-star). Plain Python."""
+    import heapq
+
+    from netctl.structural.strong.forcing import _blacken, _drain, _white_counts
+
+    out_ptr, out_idx, in_ptr, in_idx = g.out_ptr, g.out_idx, g.in_ptr, g.in_idx
+    closed, white_ok = rule.closed, rule.white_ok
+    black = black0.copy()
+    w = _white_counts(g, rule, black)
+    forcer = np.full(black.size, -1, np.int64)
+    N, n_states = black.size, g.n
+    queue = np.empty(3 * N + 1, np.int64)
+    tail = 0
+    heap = []
+    for j in range(N):
+        if white_ok[j] or black[j]:
+            if w[j] == 1:
+                queue[tail] = j
+                tail += 1
+            elif w[j] >= 2:
+                heap.append((w[j], np.int64(j)))
+    heapq.heapify(heap)
+    n_white = int(np.count_nonzero(~black[:n_states]))
+    chosen = []
+    head = 0
+    scan = 0
+    while True:
+        head, tail, nf = _drain(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black,
+                                w, forcer, queue, head, tail, heap, True)
+        n_white -= nf
+        head = tail = 0
+        if n_white <= 0:
+            return chosen
+        t = -1
+        while heap:
+            k, j = heapq.heappop(heap)
+            if w[j] != k or k < 2 or not (white_ok[j] or black[j]):
+                continue
+            for p in range(out_ptr[j], out_ptr[j + 1]):
+                if not black[out_idx[p]] and allowed[out_idx[p]]:
+                    t = int(out_idx[p])
+                    break
+            if t < 0 and closed[j] and not black[j] and allowed[j]:
+                t = int(j)
+            if t >= 0:
+                break
+        if t < 0:
+            while scan < n_states and (black[scan] or not allowed[scan]):
+                scan += 1
+            if scan >= n_states:
+                return chosen
+            t = scan
+        chosen.append(t)
+        n_white -= 1
+        tail = _blacken(t, out_ptr, in_ptr, in_idx, closed, white_ok, black, w, queue,
+                        tail, heap, True)
+
+
+@settings(max_examples=150, deadline=None)
+@example((9, [(0, 5), (0, 6), (0, 7), (4, 1), (4, 2), (4, 3), (4, 8)], [True] * 9,
+          "as-given"))  # state 0 picks a second target from its list after a first one
+@given(st.integers(2, 10).flatmap(lambda n: st.tuples(
+    st.just(n),
+    st.lists(st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)), max_size=3 * n,
+             unique=True),
+    st.lists(st.booleans(), min_size=n, max_size=n),
+    st.sampled_from(["free", "as-given"]))))
+def test_greedy_choices_equal_the_rescanning_greedy(case):
+    # the greedy keeps a resume position per vertex instead of rescanning its out-list
+    # at every step (an out-star was quadratic); its choices must not change (common
+    # practice, no source: a faster path pinned to the plain one)
+    from netctl._jit import always_python
+    from netctl.structural.strong.forcing import _graph, _greedy, _rules
+
+    n, links, allowed, diagonal = case
+    s = StructuredSystem.from_edges([a for a, _ in links], [b for _, b in links], n)
+    A = s.pattern("A")
+    loops = np.zeros(n, bool)
+    loops[[a for a, b in links if a == b]] = True
+    g = _graph(A, None)
+    ok = np.asarray(allowed, bool)
+    for rule in _rules(loops, diagonal, 0):
+        b0 = np.zeros(n, bool)
+        with always_python():  # the module's kernels on a Python list as the heap
+            want = _greedy_rescanning(g, rule, b0, ok)
+        assert _greedy(g, rule, b0, ok).tolist() == want

@@ -238,6 +238,7 @@ def _greedy_kernel(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black, w,
     n_chosen = 0
     head = 0
     scan = 0
+    first = out_ptr[:-1].copy()  # per vertex: where the search for a white target resumes
     while True:
         # queue positions are reused: pushes since the last drain start at 0
         head, tail, nf = _drain(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black,
@@ -252,10 +253,16 @@ def _greedy_kernel(out_ptr, out_idx, in_ptr, in_idx, closed, white_ok, black, w,
             k, j = heapq.heappop(heap)
             if w[j] != k or k < 2 or not (white_ok[j] or black[j]):
                 continue
-            for p in range(out_ptr[j], out_ptr[j + 1]):
-                if not black[out_idx[p]] and allowed[out_idx[p]]:
-                    t = out_idx[p]
-                    break
+            # its first allowed white out-neighbour: states only turn black, so the
+            # scan resumes where it stopped last time (a hub is not read again from its
+            # start for every leaf: an out-star was quadratic)
+            p = first[j]
+            end = out_ptr[j + 1]
+            while p < end and (black[out_idx[p]] or not allowed[out_idx[p]]):
+                p += 1
+            first[j] = p
+            if p < end:
+                t = out_idx[p]
             if t < 0 and closed[j] and not black[j] and allowed[j]:
                 t = j
             if t >= 0:
