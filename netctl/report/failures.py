@@ -113,8 +113,8 @@ def failures_section(ctx: Any) -> Section | None:
                            f"{c['useful']} useful, {c['useless']} useless"
                            + (f", {c['replaceable']} replaceable (not decided further)"
                               if c["replaceable"] else "") + "."))
-        for k in au.critical.tolist():
-            n_bad += 1
+        n_bad += au.critical.size
+        for k in au.critical[:max(_ROWS - len(rows), 0)].tolist():  # the rows shown
             rows.append((f"{word} {au.element_names[k]}", _states(system, au.element_states[k]),
                          ", ".join(system.names_of(au.lost_states(k)[:8])) or "-",
                          "; ".join(au.reasons(k)) or "-"))
@@ -125,16 +125,15 @@ def failures_section(ctx: Any) -> Section | None:
         blocks.append(para(f"{lines.n_lines} line(s) (both directions of a coupling are "
                            f"one line; self-loops never fail): {br.size} break the design "
                            "when lost alone."))
-        for k in br.tolist():
-            n_bad += 1
+        n_bad += br.size
+        for k in br[:max(_ROWS - len(rows), 0)].tolist():  # the rows shown
             rows.append((f"line {lines.labels[k]}", "-",
                          ", ".join(system.names_of(lines.unreached.first(k, 8))) or "-",
                          "; ".join(lines.reasons(k)) or "-"))
         data["lines"] = lines.to_dict()
-    if rows:
+    if rows:  # the first _ROWS single points; their reasons are built for those only
         blocks.append(table(("single point of failure", "where", "states lost",
-                             "why the design fails without it"), rows[:_ROWS],
-                            total=len(rows)))
+                             "why the design fails without it"), rows, total=n_bad))
         blocks.append(note("On the map, a violet octagon ring marks the site of each "
                            "critical actuator and sensor."))
     if not acts.works:

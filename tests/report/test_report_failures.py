@@ -181,3 +181,24 @@ def test_static_map_marks_disturbed_states():
         assert "a disturbance acts here (not commanded) (2)" in texts
     finally:
         plt.close(ax.figure)
+
+
+def test_a_long_list_of_single_points_shows_the_first_rows_and_counts_the_rest():
+    # an in-star of 301 states with an actuator on every leaf: no link reaches a leaf,
+    # so every actuator is the only one reaching its leaf and all 300 are critical
+    # (checked by brute force); the table shows the first 200 (with their reasons) and
+    # counts the other 100
+    from netctl.report.failures import _ROWS
+
+    n = 301
+    edges = [(v, 0) for v in range(1, n)]
+    leaves = list(range(1, n))
+    s = StructuredSystem.from_edges(leaves, [0] * (n - 1), n, inputs=leaves)
+    crit = brute_critical(n, edges, leaves)
+    assert len(crit) == n - 1
+    sec = build_report(s, sections=[failures_section]).section("failures")
+    assert sec.data["n_single_points"] == len(crit) + len(brute_lines(n, edges, leaves))
+    tab = next(b for b in sec.blocks if b.kind == "table")
+    assert len(tab.rows) == _ROWS
+    assert tab.more == sec.data["n_single_points"] - _ROWS
+    assert all(row[3] != "-" for row in tab.rows)  # every row shown has its reasons
