@@ -123,6 +123,27 @@ def test_node_sweep_equals_recomputation(seed):
                 assert set(sw.cut_off_states(w).tolist()) == newly
 
 
+@pytest.mark.parametrize("seed", range(3))
+def test_node_sweep_on_larger_sparse_networks_equals_recomputation(seed):
+    # many strongly connected components in the alternating graph (chains both ways,
+    # sparse random links), where the reachability questions of a state's loss are
+    # pruned by interval labels: minimum inputs after each loss against a fresh
+    # maximum matching (SciPy's Hopcroft–Karp) of what is left
+    rng = np.random.default_rng(700 + seed)
+    for _ in range(12):
+        n = int(rng.integers(20, 60))
+        D = rng.random((n, n)) < 1.5 / n
+        if rng.random() < 0.5:  # a chain both ways, as grids and feeders have
+            i = np.arange(n - 1)
+            D[i + 1, i] = D[i, i + 1] = True
+        np.fill_diagonal(D, False)
+        s = StructuredSystem.from_matrices(D, weighted=False)
+        sw = contingency_sweep(s, elements="nodes")
+        for w in range(n):
+            keep = np.arange(n) != w
+            assert sw.n_inputs_after[w] == n_d(D[keep][:, keep]), (seed, n, w)
+
+
 def test_sweep_path_example_and_text():
     # A driven path needs every link (each is its successor's only feeder): Lin 1974.
     s = directed_path(4).with_inputs(["x0"])
