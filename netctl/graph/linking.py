@@ -34,6 +34,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 from netctl._jit import njit
+from netctl.graph._dinic import dinic
 from netctl.graph._levels import order_by_scan
 
 __all__ = ["Linking", "maximum_linking", "minimum_separator", "LinkingGraph",
@@ -596,9 +597,9 @@ def minimum_separator(graph: LinkingGraph, *, sources: np.ndarray | None = None
         keep = np.zeros(k, bool)
         keep[np.asarray(sources, np.int64)] = True
         cap[graph.src_pos[~keep]] = 0
-    _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, False,
-           np.zeros(graph.adj_ptr.size - 1, np.int64))
-    reach = _residual_search(graph.adj_ptr, graph.head, graph.rev, cap, 0, -1, False)
+    level = np.empty(graph.adj_ptr.size - 1, np.int64)
+    dinic(graph.adj_ptr, graph.head, graph.rev, cap, 0, 1, level)
+    reach = level >= 0  # the residual reachability from the super-source (final search)
     in0 = 2 + k
     ins = reach[in0:in0 + n]
     outs = reach[in0 + n:in0 + 2 * n]
