@@ -200,3 +200,30 @@ def test_separator_edge_cases(mode, A, S, H, sources, size):
     with _mode(mode):
         assert minimum_separator(g, sources=sources).size == size
     _check_separator(A, S, H, sources, mode)
+
+
+def test_no_search_past_the_sink_depth():
+    # a network (found by the random test above) where the search from the source
+    # reaches the sink alone (no backward level) and a node at the sink's depth has
+    # further arcs: nothing may be taken beyond that depth, or the phase repeats forever;
+    # the Python body runs under an alarm so that such a loop fails instead of hanging
+    # (compiled code cannot be interrupted; it is the same source)
+    import signal
+
+    arcs = [(5, 5, 1), (0, 3, 2), (3, 4, 1), (1, 4, 2), (5, 0, 3), (4, 1, 1), (1, 2, 3),
+            (5, 1, 2), (3, 5, 1), (4, 5, 3)]
+    adj_ptr, head, rev, cap, tail = _adjacency(6, arcs)
+
+    def stop(*_: object) -> None:
+        raise TimeoutError("the flow did not finish: a phase made no progress")
+
+    old = signal.signal(signal.SIGALRM, stop)
+    signal.alarm(20)
+    try:
+        with _jit.always_python():
+            flow = dinic(adj_ptr, head, rev, cap, 0, 5, np.empty(6, np.int64))
+    finally:
+        signal.alarm(0)
+        signal.signal(signal.SIGALRM, old)
+    G = nx.DiGraph([(u, v, {"capacity": c}) for u, v, c in arcs if u != v])
+    assert flow == nx.maximum_flow_value(G, 0, 5) == 2
