@@ -132,6 +132,7 @@ def dinic(adj_ptr, head, rev, cap, source, sink, level):  # pragma: no cover - c
         # search is at level p from the source (p <= la) or d - p from the sink (p > la);
         # an arc is passed over for the rest of the phase once saturated or leading to a
         # dead end
+        before = flow
         top = 0
         stack[0] = source
         while top >= 0:
@@ -172,6 +173,8 @@ def dinic(adj_ptr, head, rev, cap, source, sink, level):  # pragma: no cover - c
                 top -= 1
                 if top >= 0:
                     it[stack[top]] += 1
+        if flow == before:  # a shortest path was found, so one must carry flow
+            raise RuntimeError("dinic: a phase found no augmenting path (internal error)")
         for t in range(ft):
             level[fq[t]] = -1
         for t in range(bt):
