@@ -20,8 +20,9 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   breadth-first search that gives the linking's starting potentials) at BASE (a
   double-ended queue) and here (one level at a time), on the node-split network of
   ``bench_folds.py`` (100 sources and 100 sinks on random states), with no flow and
-  after a maximum linking; ``minimum_separator`` as a whole (its flow, ``linking._solve``, unchanged; about
-  30 s a call at 10^6 states, so only with ``--only minimum_separator``);
+  after a maximum linking; ``minimum_separator`` as a whole (its max flow by
+  ``linking._solve`` before 2026-12-05, about 30 s a call at 10^6 states, then by Dinic's
+  algorithm, ``netctl/graph/_dinic.py``; so only with ``--only minimum_separator``);
   ``reachable_from`` the accessibility search of every analysis (a queue in discovery
   order at BASE; here levels above n/16 in vertex order), from 100 random states;
   ``--grid`` runs the linking and search rows on a square grid instead (one source,
@@ -269,7 +270,7 @@ def main() -> None:
                  lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
                                                 cap), a.repeat, eq)
         old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
-        if any("minimum_separator" in w for w in ONLY):  # about 30 s a call at 1e6
+        if any("minimum_separator" in w for w in ONLY):  # before Dinic: ~30 s a call at 1e6
             pair_row("minimum_separator (max flow + search), 100 sources, 100 sinks",
                  lambda: old_lk.minimum_separator(old_g),
                  lambda: linking.minimum_separator(g), a.repeat, eq)

@@ -587,7 +587,10 @@ def minimum_separator(graph: LinkingGraph, *, sources: np.ndarray | None = None
 
     Sources and sinks may carry any number of paths here (only states are cut), so the
     size can exceed the linking size. Sorted state indices; one of possibly many minimum
-    separators (the one nearest the sources). Menger's theorem via max-flow.
+    separators (the one nearest the sources: the states whose in-copy the super-source
+    reaches in the final residual network and whose out-copy it does not, the same for
+    every maximum flow). Menger's theorem via max-flow, by Dinic's algorithm
+    (:mod:`netctl.graph._dinic`; O(sqrt(V) E) on this unit-capacity network).
     """
     cap = graph.cap.copy()
     k, n = graph.n_sources, graph.n_states
