@@ -15,12 +15,12 @@ backwards from the sink, each advancing by a whole level and the one with the sm
 frontier first, until some node has both levels: a shortest path then has ``la + lb``
 arcs, and its node at depth ``p`` is at level ``p`` from the source (``p <= la``) or
 ``la + lb - p`` from the sink. Dinic's level graph is the special case of a search from
-the source alone; on a large random network the two searches meet after a few thousand
-nodes where one search from the source sweeps most of the graph (``benchmarks/RESULTS.md``,
-2026-12-05). When the sink is out of reach the search from the source is finished, so
-that its levels give every node the source reaches in the final residual network (the
-source side of the minimum cut nearest the source, the same for every maximum flow [3]_)
-without a further pass.
+the source alone; on a large random network the two searches meet after some ten
+thousand nodes where one search from the source sweeps most of the graph
+(``benchmarks/RESULTS.md``, 2026-12-05). When the sink is out of reach the search from
+the source is finished, so that its levels give every node the source reaches in the
+final residual network (the source side of the minimum cut nearest the source, the same
+for every maximum flow [3]_) without a further pass.
 
 References
 ----------
