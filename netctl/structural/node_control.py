@@ -18,12 +18,22 @@ from typing import Any
 
 import numpy as np
 
-from netctl._jit import njit
 
 from netctl.errors import OptionError
 from netctl.graph.components import reachable_from, strongly_connected_components
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.graph.stem_cycle import cycle_cover_prices, reach_sums, stem_gains
+from netctl.structural._capacity_walk import (
+    BLOCK,
+    ONLY,
+    credit_all,
+    credit_log,
+    places,
+    random_blocks,
+    records,
+    single,
+    walk,
+)
 from netctl.structural.controllability import _hosoe_dimension_reference
 from netctl.system import StructuredSystem
 
@@ -79,81 +89,6 @@ class ControlCapacity:
                 "capacity": {s: float(c) for s, c in zip(self.state_names, self.capacity)},
                 "standard_error": {s: float(e) for s, e in
                                    zip(self.state_names, self.standard_error)}}
-
-
-@njit(cache=True)
-def _capacity_chain(indptr, indices, row_match, col_match, drivers, n_steps, burn,
-                    n_batches, rand_d, rand_v):  # pragma: no cover - compiled
-    n = row_match.size
-    nd = drivers.size
-    pos = np.full(n, -1, np.int64)
-    for k in range(nd):
-        pos[drivers[k]] = k
-    seen = np.zeros(n, np.bool_)
-    prow = np.full(n, -1, np.int64)
-    pcol = np.full(n, -1, np.int64)
-    queue = np.empty(n, np.int64)
-    enter = np.zeros(n, np.int64)
-    batch_len = max((n_steps - burn) // n_batches, 1)
-    time_in = np.zeros((n_batches, n), np.float64)
-    for k in range(nd):
-        enter[drivers[k]] = burn
-    for step in range(n_steps):
-        d = drivers[rand_d[step] % nd]
-        # alternating BFS over rows from the driver row d
-        head = 0
-        tail = 1
-        queue[0] = d
-        seen[d] = True
-        while head < tail:
-            r = queue[head]
-            head += 1
-            for e in range(indptr[r], indptr[r + 1]):
-                j = indices[e]
-                rr = col_match[j]
-                if rr >= 0 and not seen[rr]:
-                    seen[rr] = True
-                    prow[rr] = r
-                    pcol[rr] = j
-                    queue[tail] = rr
-                    tail += 1
-        v = queue[rand_v[step] % tail]
-        for q in range(tail):
-            seen[queue[q]] = False
-        if v == d:
-            continue
-        # flip the alternating path d ... v: d becomes matched, v unmatched
-        row_match[v] = -1
-        cur = v
-        while cur != d:
-            r = prow[cur]
-            j = pcol[cur]
-            col_match[j] = r
-            row_match[r] = j
-            cur = r
-        k = pos[d]
-        drivers[k] = v
-        pos[v] = k
-        pos[d] = -1
-        if step >= burn:
-            # time spent by d as a driver, split over the batches it covered
-            _credit(time_in, enter[d], step, burn, batch_len, n_batches, d)
-            enter[v] = step
-        else:
-            enter[v] = burn
-    for k in range(nd):
-        _credit(time_in, enter[drivers[k]], n_steps, burn, batch_len, n_batches, drivers[k])
-    return time_in, batch_len
-
-
-@njit(cache=True)
-def _credit(time_in, t0, t1, burn, batch_len, n_batches, node):  # pragma: no cover
-    t = t0
-    while t < t1:
-        b = min((t - burn) // batch_len, n_batches - 1)
-        end = t1 if b == n_batches - 1 else min(t1, burn + (b + 1) * batch_len)
-        time_in[b, node] += end - t
-        t = end
 
 
 def control_capacity(system: StructuredSystem, *, sweeps: int = 400, burn_in: int = 50,
@@ -225,13 +160,9 @@ def control_capacity(system: StructuredSystem, *, sweeps: int = 400, burn_in: in
     if nd:
         burn = int(burn_in) * nd
         steps = burn + int(sweeps) * nd
-        rng = np.random.default_rng(seed)
-        rand_d = rng.integers(0, 2**62, steps)
-        rand_v = rng.integers(0, 2**62, steps)
         n_batches = 20 if sweeps * nd >= 20 else 1
-        time_in, batch_len = _capacity_chain(indptr, indices, row_match.copy(),
-                                             col_match.copy(), drivers.copy(), steps, burn,
-                                             n_batches, rand_d, rand_v)
+        time_in, batch_len = _walk(indptr, indices, row_match.copy(), col_match.copy(),
+                                   drivers.copy(), steps, burn, n_batches, int(seed))
         total = steps - burn
         cap = time_in.sum(axis=0) / total
         if n_batches > 1:
@@ -242,6 +173,30 @@ def control_capacity(system: StructuredSystem, *, sweeps: int = 400, burn_in: in
     return ControlCapacity(state_names=tuple(system.state_names), capacity=cap,
                            standard_error=se, n_drivers=nd, sweeps=int(sweeps),
                            burn_in=int(burn_in), seed=int(seed))
+
+
+def _walk(indptr: np.ndarray, indices: np.ndarray, row_match: np.ndarray,
+          col_match: np.ndarray, drivers: np.ndarray, steps: int, burn: int,
+          n_batches: int, seed: int) -> tuple[np.ndarray, int]:
+    """The basis-exchange walk of ``steps`` steps (:mod:`._capacity_walk`), block by
+    block; ``time_in[b, v]``: steps of batch ``b`` (after ``burn``) that ``v`` drove."""
+    n = row_match.size
+    batch_len = max((steps - burn) // n_batches, 1)
+    time_in = np.zeros((n_batches, n), np.float64)
+    only = single(indptr, indices)
+    pl = places(drivers, only, burn)
+    if not np.all(pl[:, ONLY] == -2):  # else every driver has an empty row: no move
+        rec = records(indptr, indices)
+        queue = np.empty(n, np.int64)
+        log = np.empty((min(BLOCK, steps), 3), np.int64)
+        first = 0
+        for rand_d, rand_v in random_blocks(seed, steps):
+            count = walk(rec, indices, col_match, only, pl, log, queue, first, rand_d,
+                         rand_v, burn)
+            credit_log(time_in, log, count, burn, batch_len)
+            first += rand_d.size
+    credit_all(time_in, pl, steps, burn, batch_len)
+    return time_in, batch_len
 
 
 def minimum_driver_sets(system: StructuredSystem, *, limit: int = 20) -> list[tuple[int, ...]]:
