@@ -24,7 +24,7 @@ import numpy as np
 
 from netctl._jit import njit
 
-__all__ = ["BLOCK", "credit_all", "credit_log", "places", "random_blocks", "records", "single",
+__all__ = ["BLOCK", "alone", "credit_all", "credit_log", "places", "random_blocks", "records", "single",
            "walk"]
 
 #: Steps of the walk per block of random numbers (common practice, no source: large
@@ -86,15 +86,16 @@ def _raw_words_agree(bits: np.random.BitGenerator) -> bool:
     return bool(np.array_equal(drawn, raw)) and a.state == b.state
 
 
-#: How many steps ahead :func:`walk` reads the driver list and the records (common
-#: practice, no source: measured, see benchmarks/RESULTS.md).
-AHEAD = 32
+#: How many steps' places and records :func:`walk` reads into the cache at a time
+#: (common practice, no source: their cache lines, 2 x 64 bytes a step, fit in a
+#: core's L2 cache; measured, see benchmarks/RESULTS.md).
+AHEAD = 2048
 
 #: Fields of a state's record in :func:`walk` (one 64-byte cache line a state, so a
 #: step reads one line per state it visits instead of one per array): its row's span in
 #: ``indices``, the row's first column, the last step whose search saw it, its parents
-#: in that search.
-START, END, FIRST, STAMP, PROW, PCOL = range(6)
+#: in that search, and :func:`single` of its row.
+START, END, FIRST, STAMP, PROW, PCOL, SINGLE = range(7)
 
 #: Fields of a place of the driver list: the driver there, the step from which its time
 #: counts, and :func:`single` of its row.
@@ -111,7 +112,7 @@ def single(indptr: np.ndarray, indices: np.ndarray) -> np.ndarray:
     return out
 
 
-def records(indptr: np.ndarray, indices: np.ndarray) -> np.ndarray:
+def records(indptr: np.ndarray, indices: np.ndarray, only: np.ndarray) -> np.ndarray:
     """The per-state records of :func:`walk` (fields :data:`START` ...)."""
     n = indptr.size - 1
     rec = np.full((n, 8), -1, np.int64)
@@ -119,7 +120,16 @@ def records(indptr: np.ndarray, indices: np.ndarray) -> np.ndarray:
     rec[:, END] = indptr[1:]
     has = indptr[1:] > indptr[:-1]
     rec[has, FIRST] = indices[indptr[:-1][has]]
+    rec[:, SINGLE] = only
     return rec
+
+
+def alone(col_match: np.ndarray, only: np.ndarray) -> np.ndarray:
+    """Per column ``j``: whether its matched row holds ``j`` alone."""
+    matched = col_match >= 0
+    out = np.zeros(col_match.size, np.bool_)
+    out[matched] = only[col_match[matched]] == np.flatnonzero(matched)
+    return out
 
 
 def places(drivers: np.ndarray, only: np.ndarray, burn: int) -> np.ndarray:
@@ -133,12 +143,12 @@ def places(drivers: np.ndarray, only: np.ndarray, burn: int) -> np.ndarray:
 
 
 @njit(cache=True)
-def walk(rec, indices, col_match, only, pl, log, queue, first, rand_d, rand_v,
+def walk(rec, indices, col_match, col_alone, pl, log, queue, first, rand_d, rand_v,
          burn):  # pragma: no cover - compiled
     """Run steps ``first .. first + rand_d.size - 1`` of the walk (state in place).
 
-    ``rec``: the states' records (:func:`records`); ``only``: :func:`single`;
-    ``pl``: the driver list (:func:`places`; a step replaces the driver it picked in
+    ``rec``: the states' records (:func:`records`); ``col_alone``: :func:`alone`, kept
+    up to date; ``pl``: the driver list (:func:`places`; a step replaces the driver it picked in
     its place); ``col_match``: the row matched to each column (the walk needs no other
     side of the matching). Returns how many rows of ``log`` it filled: ``(v, t0, t1)``,
     state ``v`` was a driver from step ``t0`` to ``t1 - 1`` (after burn-in); the caller
@@ -155,27 +165,34 @@ def walk(rec, indices, col_match, only, pl, log, queue, first, rand_d, rand_v,
     m = rand_d.size
     c = 0
     sink = 0
+    ks = np.empty(min(AHEAD, m), np.int64)
     for i in range(m):
+        if i % AHEAD == 0:
+            # read, in passes of independent reads whose cache misses overlap, the
+            # places and records the next AHEAD steps will read first (the values are
+            # not used, a step may change them: this only brings them into the cache)
+            top = min(i + AHEAD, m)
+            for a in range(i, top):
+                ka = rand_d[a] % nd
+                ks[a - i] = ka
+                sink += pl[ka, ONLY]
+            for a in range(i, top):
+                ka = ks[a - i]
+                if pl[ka, ONLY] == -1:
+                    sink += rec[pl[ka, DRIVER], START]
         step = first + i
-        # read ahead what later steps will read, so that their cache misses overlap
-        # this step's work (the values are not used; a step may change them)
-        if i + 2 * AHEAD < m:
-            sink += pl[rand_d[i + 2 * AHEAD] % nd, DRIVER]
-        if i + AHEAD < m:
-            ka = rand_d[i + AHEAD] % nd
-            if pl[ka, ONLY] == -1:
-                sink += rec[pl[ka, DRIVER], START]
-        k = rand_d[i] % nd
+        k = ks[i % AHEAD]
         o = pl[k, ONLY]
         if o == -2:
             continue
         d = pl[k, DRIVER]
         v = d
-        if o >= 0 and col_match[o] >= 0 and only[col_match[o]] == o:
+        if o >= 0 and col_alone[o]:
             if rand_v[i] & 1 == 0:
                 continue
             v = col_match[o]
-            col_match[o] = d
+            ov = o  # v held o alone
+            col_match[o] = d  # and so does d: col_alone[o] stays
         else:
             # alternating BFS over rows from the driver row d; rec[r, STAMP] == step: seen
             head = 0
@@ -202,13 +219,16 @@ def walk(rec, indices, col_match, only, pl, log, queue, first, rand_d, rand_v,
                 v = queue[rand_v[i] % tail]
             if v == d:
                 continue
+            ov = rec[v, SINGLE]
             # flip the alternating path d ... v: d becomes matched, v unmatched
             cur = v
             while cur != d:
-                col_match[rec[cur, PCOL]] = rec[cur, PROW]
+                j = rec[cur, PCOL]
                 cur = rec[cur, PROW]
+                col_match[j] = cur
+                col_alone[j] = rec[cur, SINGLE] == j
         pl[k, DRIVER] = v
-        pl[k, ONLY] = only[v]
+        pl[k, ONLY] = ov
         if step >= burn:
             log[c, 0] = d
             log[c, 1] = pl[k, ENTER]
@@ -237,8 +257,14 @@ def credit(time_in, t0, t1, burn, batch_len, n_batches, node):  # pragma: no cov
 def credit_log(time_in, log, count, burn, batch_len):  # pragma: no cover
     """Credit the first ``count`` rows ``(v, t0, t1)`` of ``log`` (see :func:`walk`)."""
     n_batches = time_in.shape[0]
-    for c in range(count):
-        credit(time_in, log[c, 1], log[c, 2], burn, batch_len, n_batches, log[c, 0])
+    sink = 0.0
+    for lo in range(0, count, AHEAD):
+        top = min(lo + AHEAD, count)
+        for c in range(lo, top):  # into the cache first, misses overlapping (as in walk)
+            sink += time_in[min((log[c, 1] - burn) // batch_len, n_batches - 1), log[c, 0]]
+        for c in range(lo, top):
+            credit(time_in, log[c, 1], log[c, 2], burn, batch_len, n_batches, log[c, 0])
+    return sink
 
 
 @njit(cache=True)

@@ -26,6 +26,7 @@ from netctl.graph.stem_cycle import cycle_cover_prices, reach_sums, stem_gains
 from netctl.structural._capacity_walk import (
     BLOCK,
     ONLY,
+    alone,
     credit_all,
     credit_log,
     places,
@@ -186,13 +187,14 @@ def _walk(indptr: np.ndarray, indices: np.ndarray, row_match: np.ndarray,
     only = single(indptr, indices)
     pl = places(drivers, only, burn)
     if not np.all(pl[:, ONLY] == -2):  # else every driver has an empty row: no move
-        rec = records(indptr, indices)
+        rec = records(indptr, indices, only)
+        col_alone = alone(col_match, only)
         queue = np.empty(n, np.int64)
         log = np.empty((min(BLOCK, steps), 3), np.int64)
         first = 0
         for rand_d, rand_v in random_blocks(seed, steps):
-            count = walk(rec, indices, col_match, only, pl, log, queue, first, rand_d,
-                         rand_v, burn)
+            count = walk(rec, indices, col_match, col_alone, pl, log, queue, first,
+                         rand_d, rand_v, burn)
             credit_log(time_in, log, count, burn, batch_len)
             first += rand_d.size
     credit_all(time_in, pl, steps, burn, batch_len)
