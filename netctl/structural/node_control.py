@@ -123,7 +123,10 @@ def control_capacity(system: StructuredSystem, *, sweeps: int = 400, burn_in: in
     over MDSs at equilibrium, and mixes rapidly on any matroid [2]_. Estimates are time
     averages after burn-in; standard errors are batch means over 20 batches. Critical
     states (in-degree 0) get capacity 1 and redundant ones 0, as they must [3]_. One
-    alternating search per step: O(sweeps x n_drivers x reach). With a perfect matching
+    alternating search per step: O(sweeps x n_drivers x reach) time, O(n + links)
+    memory (the random numbers are drawn block by block); a step that picks a critical
+    state, or a leaf of an out-star (one column, matched to a row holding it alone),
+    needs no search (:mod:`netctl.structural._capacity_walk`). With a perfect matching
     there is no unmatched state (``N_D = 1`` by convention) and every capacity is 0.
 
     References
