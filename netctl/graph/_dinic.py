@@ -42,6 +42,28 @@ __all__ = ["dinic"]
 
 
 @njit(cache=True, nogil=True)
+def _grow(adj_ptr, head, cap, level, fq, fh, ft, la, other):  # pragma: no cover
+    """One level of the search from the source: the nodes one arc with capacity left
+    beyond ``fq[fh:ft]`` (level ``la``) and not labelled yet get level ``la + 1`` and join
+    the queue; returns its new end and whether one of them already has a distance to
+    the sink (``other >= 0``: the two searches met)."""
+    met = False
+    end = ft
+    for t in range(fh, ft):
+        v = fq[t]
+        for a in range(adj_ptr[v], adj_ptr[v + 1]):
+            if cap[a] > 0:
+                w = head[a]
+                if level[w] < 0:
+                    level[w] = la + 1
+                    fq[end] = w
+                    end += 1
+                    if other[w] >= 0:
+                        met = True
+    return end, met
+
+
+@njit(cache=True, nogil=True)
 def dinic(adj_ptr, head, rev, cap, source, sink, level):  # pragma: no cover - compiled
     """Maximum flow from ``source`` to ``sink`` (distinct nodes); ``cap`` (residual
     capacities) is updated in place and the flow value returned. ``level`` (int64, one
@@ -75,19 +97,9 @@ def dinic(adj_ptr, head, rev, cap, source, sink, level):  # pragma: no cover - c
         met = False
         while fh < ft and bh < bt and not met:
             if ft - fh <= bt - bh:
-                end = ft
-                for t in range(fh, end):
-                    v = fq[t]
-                    for a in range(adj_ptr[v], adj_ptr[v + 1]):
-                        if cap[a] > 0:
-                            w = head[a]
-                            if level[w] < 0:
-                                level[w] = la + 1
-                                fq[ft] = w
-                                ft += 1
-                                if dt[w] >= 0:
-                                    met = True
-                fh = end
+                end, met = _grow(adj_ptr, head, cap, level, fq, fh, ft, la, dt)
+                fh = ft
+                ft = end
                 la += 1
             else:
                 end = bt
@@ -110,17 +122,9 @@ def dinic(adj_ptr, head, rev, cap, source, sink, level):  # pragma: no cover - c
             # no augmenting path: finish the forward search, so that ``level`` holds
             # every node the source reaches
             while fh < ft:
-                end = ft
-                for t in range(fh, end):
-                    v = fq[t]
-                    for a in range(adj_ptr[v], adj_ptr[v + 1]):
-                        if cap[a] > 0:
-                            w = head[a]
-                            if level[w] < 0:
-                                level[w] = la + 1
-                                fq[ft] = w
-                                ft += 1
-                fh = end
+                end, _ = _grow(adj_ptr, head, cap, level, fq, fh, ft, la, dt)
+                fh = ft
+                ft = end
                 la += 1
             break
         d = la + lb  # arcs on a shortest augmenting path
