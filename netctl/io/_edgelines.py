@@ -38,6 +38,28 @@ for _c in b",;\t":
 
 
 @njit(cache=True, nogil=True)
+def _names_part(buf: np.ndarray, p: int, n: int) -> tuple[int, int, int]:
+    """The part of the line starting at ``p`` before its comment or end: ``(names in
+    it, its commas, semicolons and tabs, where it ends)``."""
+    nf = 0
+    loud = 0
+    intok = False
+    q = p
+    while q < n:
+        c = _SEP[buf[q]]
+        if c == 2 or c == 3:
+            break
+        if c == 1:
+            intok = False
+            loud += _LOUD[buf[q]]
+        elif not intok:
+            nf += 1
+            intok = True
+        q += 1
+    return nf, loud, q
+
+
+@njit(cache=True, nogil=True)
 def lone_separated(buf: np.ndarray, start: int) -> tuple[int, int, int, int]:
     """Lines of ``buf[start:]`` (whole lines) holding exactly one name and, outside a
     comment, a comma, semicolon or tab: ``(count, first line's index from start (0 for
@@ -50,21 +72,7 @@ def lone_separated(buf: np.ndarray, start: int) -> tuple[int, int, int, int]:
     fs = 0
     fe = 0
     while p < n:
-        nf = 0
-        loud = 0
-        intok = False
-        q = p
-        while q < n:
-            c = _SEP[buf[q]]
-            if c == 2 or c == 3:
-                break
-            if c == 1:
-                intok = False
-                loud += _LOUD[buf[q]]
-            elif not intok:
-                nf += 1
-                intok = True
-            q += 1
+        nf, loud, q = _names_part(buf, p, n)
         e = q
         while q < n and buf[q] != 10:
             q += 1
@@ -89,19 +97,7 @@ def nth_link_line(buf: np.ndarray, need: int) -> tuple[int, int, int]:
     links = 0
     line = 0
     while p < n:
-        nf = 0
-        intok = False
-        q = p
-        while q < n:
-            c = _SEP[buf[q]]
-            if c == 2 or c == 3:
-                break
-            if c == 1:
-                intok = False
-            elif not intok:
-                nf += 1
-                intok = True
-            q += 1
+        nf, _, q = _names_part(buf, p, n)
         while q < n and buf[q] != 10:
             q += 1
         if nf >= 2:
