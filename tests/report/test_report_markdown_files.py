@@ -13,8 +13,6 @@ from __future__ import annotations
 
 import json
 import re
-import subprocess
-import sys
 import xml.etree.ElementTree as ET
 from pathlib import Path
 from urllib.parse import unquote
@@ -22,6 +20,7 @@ from urllib.parse import unquote
 import networkx as nx
 
 from netctl.cli import main
+from tests._probe import exit_and_modules
 
 ROOT = Path(__file__).resolve().parents[2]
 SVG = "{http://www.w3.org/2000/svg}"
@@ -98,14 +97,7 @@ def test_a_small_markdown_report_loads_no_matplotlib(tmp_path):
     f = tmp_path / "two.csv"
     f.write_text("a,b\nb,c\n")
     out = tmp_path / "r.md"
-    code = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\nfrom netctl.cli import main\n"
-            f"code = main(['report', {str(f)!r}, '--out', {str(out)!r}])\n"
-            "print(code, sorted(m for m in sys.modules if m == 'matplotlib' "
-            "or m.startswith(('matplotlib.', 'PIL'))))")
-    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                       timeout=300, cwd=ROOT)
-    assert r.returncode == 0, r.stderr
-    assert r.stdout.strip().splitlines()[-1] == "0 []"
+    assert exit_and_modules(['report', str(f), '--out', str(out)]) == (0, [])
     assert (tmp_path / "r.map.svg").is_file() and (tmp_path / "r.roles.svg").is_file()
 
 

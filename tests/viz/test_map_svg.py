@@ -12,8 +12,6 @@ path (the same paper: a star of k leaves needs k driver nodes; a path one, its h
 
 from __future__ import annotations
 
-import subprocess
-import sys
 import xml.etree.ElementTree as ET
 from pathlib import Path
 
@@ -26,6 +24,7 @@ from netctl.cli import main
 from netctl.io import read
 from netctl.viz import map_marks
 from netctl.viz.map_svg import map_svg
+from tests._probe import exit_and_modules
 
 ROOT = Path(__file__).resolve().parents[2]
 SVG = "{http://www.w3.org/2000/svg}"
@@ -174,13 +173,6 @@ def test_a_small_svg_map_loads_no_matplotlib(tmp_path):
     f = tmp_path / "two.csv"
     f.write_text("a,b\nb,c\n")
     out = tmp_path / "m.svg"
-    code = (f"import sys\nsys.path.insert(0, {str(ROOT)!r})\nfrom netctl.cli import main\n"
-            f"code = main(['map', {str(f)!r}, '--out', {str(out)!r}])\n"
-            "print(code, sorted(m for m in sys.modules if m == 'matplotlib' "
-            "or m.startswith(('matplotlib.', 'PIL'))))")
-    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
-                       timeout=300, cwd=ROOT)
-    assert r.returncode == 0, r.stderr
-    assert r.stdout.strip().splitlines()[-1] == "0 []"
+    assert exit_and_modules(['map', str(f), '--out', str(out)]) == (0, [])
     root = ET.parse(out).getroot()
     assert _named(root, "driver") == ["a"]  # a path: its head (Liu et al. 2011)
