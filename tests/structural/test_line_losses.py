@@ -73,7 +73,7 @@ def _agree(system: StructuredSystem, kind: str) -> None:
     assert got.rank_lost.tolist() == rk
     for k, want in enumerate(un):
         assert set(got.unreached[k].tolist()) == want
-        assert got.unreached.count(k) == len(want)
+        assert got.unreached.n_lost(k) == len(want)
         first = got.unreached.first(k, 3)
         assert len(first) == min(3, len(want)) and set(first.tolist()) <= want
 
@@ -136,7 +136,7 @@ def test_a_chain_lists_what_each_line_cuts_off_nearest_first():
     got = audit_links(s)
     # each state has one feeder: every loss also leaves a state without one (rank)
     assert got.breaking.all() and got.rank_lost.all()
-    counts = [got.unreached.count(k) for k in range(n - 1)]
+    counts = [got.unreached.n_lost(k) for k in range(n - 1)]
     assert counts == list(range(n - 1, 0, -1))
     assert got.unreached.first(10, 4).tolist() == [11, 12, 13, 14]
     assert got.unreached[n - 3].tolist() == [n - 2, n - 1]

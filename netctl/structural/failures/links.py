@@ -102,7 +102,7 @@ class _LostStates(Sequence[np.ndarray]):
     def __len__(self) -> int:
         return self._n_lines
 
-    def count(self, k: int) -> int:  # type: ignore[override]
+    def n_lost(self, k: int) -> int:
         """Number of states the loss of line ``k`` leaves unreached."""
         k = int(k)
         if k in self._extra:
@@ -169,7 +169,7 @@ class LineLosses:
         out = []
         if self.rank_lost[k]:
             out.append("dilation: the generic rank falls below the number of states")
-        n_lost = self.unreached.count(k)
+        n_lost = self.unreached.n_lost(k)
         if n_lost:
             verb = "seen by no sensor" if self.kind == "sensors" else "reached by no actuator"
             names = [self.state_names[int(i)] for i in self.unreached.first(k, 8)]
