@@ -16,6 +16,7 @@ import os
 import numpy as np
 
 from netctl._jit import njit
+from netctl.io._edgescan import _CLASS
 
 __all__ = ["lone_separated", "nth_link_line", "line_of_link", "line_text", "first_repeat",
            "LONE_SEPARATED_HELP"]
@@ -25,13 +26,10 @@ LONE_SEPARATED_HELP = (
     "If a link was meant, write the missing name; to declare a state with no link, "
     "write its name alone on the line, with no separator (see docs/FORMATS.md).")
 
-# byte classes: 0 a name's byte, 1 separator, 2 line break, 3 comment; 4 marks the
-# separators that make a single name suspect (comma, semicolon, tab)
-_SEP = np.zeros(256, np.uint8)
-for _c in b",\t; \r\v\f":
-    _SEP[_c] = 1
-_SEP[10] = 2
-_SEP[35] = 3
+# byte classes, the scanner's own (0 a name's byte, 1 separator, 2 line break, 3
+# comment); _LOUD marks the separators that make a single name suspect (comma,
+# semicolon, tab)
+_SEP = _CLASS
 _LOUD = np.zeros(256, np.uint8)
 for _c in b",;\t":
     _LOUD[_c] = 1
