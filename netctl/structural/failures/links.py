@@ -311,9 +311,10 @@ def audit_links(system: StructuredSystem, *, kind: str = "inputs") -> LineLosses
     pos_ptr = np.zeros(n_l + 1, np.int64)
     np.cumsum(sizes, out=pos_ptr[1:])
     pos = np.concatenate(groups).astype(np.int64) if n_l else np.zeros(0, np.int64)
+    # the merged lines' links pass through their line's vertex; the others stay links
     line_of = np.full(A.nnz, -1, np.int64)
-    line_of[pos] = np.repeat(np.arange(n_l, dtype=np.int64), sizes)
-    line_of[line_of >= 0] = np.where(merged[line_of[line_of >= 0]], line_of[line_of >= 0], -1)
+    owner = np.repeat(np.arange(n_l, dtype=np.int64), sizes)
+    line_of[pos] = np.where(merged[owner], owner, -1)
     out_ptr, out_idx, in_ptr, in_idx = _line_split(A, line_of, n_l)
     driven = np.zeros(n + n_l, np.bool_)
     driven[:n] = np.diff(B.indptr) > 0
