@@ -96,7 +96,7 @@ class _LostStates(Sequence[np.ndarray]):
         self._order = order  # dominator-tree preorder of the line-split graph
         self._lo = lo  # per line: its subtree's preorder range [lo, hi)
         self._hi = hi
-        self._count = count  # per line: states cut off
+        self._count = count  # per line: states cut off (lines checked alone too)
         self._extra = extra  # lines checked one by one: their states
 
     def __len__(self) -> int:
@@ -104,10 +104,7 @@ class _LostStates(Sequence[np.ndarray]):
 
     def n_lost(self, k: int) -> int:
         """Number of states the loss of line ``k`` leaves unreached."""
-        k = int(k)
-        if k in self._extra:
-            return int(self._extra[k].size)
-        return int(self._count[k])
+        return int(self._count[int(k)])
 
     def first(self, k: int, limit: int) -> np.ndarray:
         """Up to ``limit`` of them, in the order of the dominator tree (the states the
