@@ -175,7 +175,7 @@ def walk(rec, indices, col_match, col_alone, pl, log, queue, first, rand_d, rand
             for a in range(i, top):
                 ka = rand_d[a] % nd
                 ks[a - i] = ka
-                sink += pl[ka, ONLY]
+                sink += pl[ka, ONLY] + 2  # >= 0 (ONLY >= -2)
             for a in range(i, top):
                 ka = ks[a - i]
                 if pl[ka, ONLY] == -1:
@@ -237,7 +237,9 @@ def walk(rec, indices, col_match, col_alone, pl, log, queue, first, rand_d, rand
             pl[k, ENTER] = step
         else:
             pl[k, ENTER] = burn
-    if sink == -1:  # never: keeps the reads ahead from being optimized away
+    if sink < 0:  # never (a sum of non-negative terms): keeps the reads ahead from
+        # being optimized away. It was `sink == -1` over the raw ONLY values (-2, -1 or a
+        # column), which a small network can sum to: the block's log was then dropped
         c = -1
     return c
 
