@@ -129,6 +129,7 @@ _PREFETCH_BYTES = 16 * 2**20
 
 
 _NO_MATE = -(2**31)  # "no likely mate" in the walks' code arrays (fits int32 and int64)
+_NEVER = -(2**63)  # the least int64: what the cache-warming sums are compared with
 
 
 @njit(cache=True, nogil=True)
@@ -356,8 +357,11 @@ def _karp_sipser(indptr, indices, tptr, tind, row_match, col_match, fresh,
     for c in range(n_cols):
         s = cst[c]
         cst[c] = -s - 2 if s < 0 else -1
-    # the loads above must not be optimised away: their sum decides nothing
-    return snapshot or acc == -1
+    # the loads above must not be optimised away: their sum decides nothing. It is
+    # compared with the least int64, which a sum of fewer than 2**32 terms each below
+    # 2**31 in size cannot reach (compared with -1, as it was, a sum of the negative
+    # state words could reach it and claim a core that was never recorded)
+    return snapshot or acc == _NEVER
 
 
 @njit(cache=True, nogil=True)
