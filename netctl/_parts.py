@@ -18,7 +18,7 @@ import numpy as np
 from netctl._csr import Pattern, empty_pattern, is_sparse
 from netctl.errors import InvalidSystemError
 
-__all__ = ["DistinctNames", "NameList", "canonical_csr", "name_lookup"]
+__all__ = ["DistinctNames", "NameList", "canonical_csr", "check_not_states", "name_lookup"]
 
 
 def canonical_csr(matrix: Any, shape: tuple[int, int], what: str) -> Pattern:
@@ -247,6 +247,17 @@ def _table(columns: Mapping[str, Any], count: int, what: str, per: str
         arr.setflags(write=False)
         out[str(key)] = arr
     return out
+
+
+def check_not_states(disturbances: Sequence[str], states: Sequence[str]) -> None:
+    """Raise :class:`~netctl.errors.InvalidSystemError` naming the first disturbance name
+    that is also a state name (a disturbance is never a state)."""
+    if len(disturbances) and len(states):
+        clash = _first_common(disturbances, states)
+        if clash is not None:
+            raise InvalidSystemError(
+                f"{clash!r} is both a state and a disturbance; a disturbance is never a "
+                "state: rename one of them.")
 
 
 def _first_common(a: Sequence[str], b: Sequence[str]) -> str | None:

@@ -17,23 +17,15 @@ from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 
-from netctl import _construct, _disturb
-from netctl._csr import (
-    Pattern,
-    SparseView,
-    coo_pattern,
-    is_sparse,
-    n_diagonal,
-    transpose_pattern,
-)
+from netctl import _construct, _derive, _disturb
+from netctl._csr import Pattern, SparseView, n_diagonal
 from netctl._parts import (
     NameList,
-    _as_list,
     _empty_csr,
-    _first_common,
     _names,
     _table,
     canonical_csr,
+    check_not_states,
     name_lookup,
 )
 from netctl.errors import InvalidSystemError, UnknownNameError
@@ -148,12 +140,7 @@ class StructuredSystem:
                               q, "w", "disturbance names")
         regulated = _names(self.regulated_names if len(self.regulated_names) else None,
                            r, "z", "regulated output names")
-        if q and len(states):
-            clash = _first_common(disturbances, states)
-            if clash is not None:
-                raise InvalidSystemError(
-                    f"{clash!r} is both a state and a disturbance; a disturbance is never a "
-                    "state: rename one of them.")
+        check_not_states(disturbances, states)
         dnodes = _table(self.disturbance_nodes, q, "disturbance table", "disturbance")
         for k in _MATRICES:  # built again from the stored parts when first asked for
             self.__dict__.pop(k, None)
@@ -415,73 +402,19 @@ class StructuredSystem:
         return np.unique(self._parts["C"].indices).astype(np.int64)
 
     # ------------------------------------------------------------------ transforms
-    def _states_of(self, states: Any) -> np.ndarray:
-        """State indices of ``states``: a 1-D integer array is indices as they are (a
-        state named ``"1"`` that is not state 1 cannot capture them); anything else goes
-        through :meth:`index_of` (names first, then integers as indices).
-
-        Raises
-        ------
-        UnknownNameError
-            A name is unknown, or an index is outside ``0 .. n-1``.
-        """
-        if isinstance(states, np.ndarray) and states.ndim == 1 and states.dtype.kind in "iu":
-            idx = states.astype(np.int64)
-            bad = idx[(idx < 0) | (idx >= self.n_states)]
-            if bad.size:
-                raise UnknownNameError(f"state index {int(bad[0])} is out of range: the "
-                                       f"system has {self.n_states} states (0 .. "
-                                       f"{self.n_states - 1}).")
-            return idx
-        return self.index_of(_as_list(states))
-
     def with_inputs(self, inputs: Any, *, names: Sequence[object] | None = None) -> StructuredSystem:
         """A copy with new input columns (replacing any existing ones).
 
         ``inputs`` may be: a sequence of state names or indices (one dedicated input
-        each; a 1-D integer array is always indices, see ``_states_of``); a mapping
-        ``input name -> states it acts on``; or an ``n x m`` matrix.
+        each; a 1-D integer array is always indices, see :func:`netctl._derive.states_of`);
+        a mapping ``input name -> states it acts on``; or an ``n x m`` matrix.
         """
-        n = self.n_states
-        input_names: Sequence[object] | None = names
-        if isinstance(inputs, Mapping):
-            input_names = list(inputs.keys())
-            cols = [self.index_of(_as_list(v)) for v in inputs.values()]
-            rows = np.concatenate(cols) if cols else np.zeros(0, np.int64)
-            colidx = np.repeat(np.arange(len(cols)), [c.size for c in cols])
-            B: Any = coo_pattern(rows, colidx, None, (n, len(cols)), count=False)[0]
-        elif isinstance(inputs, Pattern) or is_sparse(inputs) or (
-                isinstance(inputs, np.ndarray) and inputs.ndim == 2):
-            B = inputs
-        else:
-            idx = self._states_of(inputs)
-            if input_names is None:
-                input_names = [f"u:{self.state_names[i]}" for i in idx]
-            B = coo_pattern(idx, np.arange(idx.size), None, (n, idx.size), count=False)[0]
-        m = B.shape[1]
-        return self._replace(B=B, input_names=tuple(input_names) if input_names is not None
-                             else tuple(f"u{k}" for k in range(m)))
+        return _derive.with_inputs(self, inputs, names=names)
 
     def with_outputs(self, outputs: Any, *, names: Sequence[object] | None = None) -> StructuredSystem:
         """A copy with new output rows: state names/indices (one dedicated sensor each),
         a mapping ``output name -> states it reads``, or a ``p x n`` matrix."""
-        # a 1-D array is a list of states (as with_inputs takes it), not a matrix
-        matrix = is_sparse(outputs) or (isinstance(outputs, np.ndarray)
-                                          and outputs.ndim == 2)
-        if isinstance(outputs, Mapping):
-            for v in outputs.values():
-                self.index_of(_as_list(v))  # errors name this system's states
-        elif not matrix:
-            self._states_of(outputs)
-        dual = self.dual().with_inputs(outputs.T if matrix else outputs, names=names)
-        if names is None and not isinstance(outputs, Mapping):
-            dual = dual._replace(input_names=tuple(
-                f"y{j}" for j in range(dual.n_inputs)) if matrix else tuple(
-                "y:" + s[2:] for s in dual.input_names))
-        back = dual.dual()
-        if self.disturbance_nodes:  # the dual has no table for its regulated outputs
-            back = back._replace(disturbance_nodes=dict(self.disturbance_nodes))
-        return back
+        return _derive.with_outputs(self, outputs, names=names)
 
     def with_disturbances(self, disturbances: Any, *, names: Sequence[object] | None = None,
                           nodes: Mapping[str, Any] | None = None) -> StructuredSystem:
@@ -492,23 +425,14 @@ class StructuredSystem:
         acts on``; or an ``n x q`` matrix. ``nodes`` is the disturbances' own node table
         (one value per disturbance in each column).
         """
-        E, dnames = self._columns(disturbances, names, "w")
-        return self._replace(E=E, disturbance_names=dnames, disturbance_nodes=dict(nodes or {}))
+        return _derive.with_disturbances(self, disturbances, names=names, nodes=nodes)
 
     def with_regulated(self, regulated: Any, *, names: Sequence[object] | None = None
                        ) -> StructuredSystem:
         """A copy with new regulated outputs ``z = H x``: state names/indices (one each,
         named ``z:<state>``), a mapping ``name -> states it depends on``, or an ``r x n``
         matrix."""
-        if is_sparse(regulated) or isinstance(regulated, np.ndarray):
-            H, znames = self._columns(regulated.T, names, "z")
-        else:
-            H, znames = self._columns(regulated, names, "z")
-        if not isinstance(H, Pattern):
-            import scipy.sparse as sp
-
-            return self._replace(H=sp.csr_array(H).T.tocsr(), regulated_names=znames)
-        return self._replace(H=transpose_pattern(H), regulated_names=znames)
+        return _derive.with_regulated(self, regulated, names=names)
 
     def states_to_disturbances(self, names: Iterable[object]) -> StructuredSystem:
         """A copy in which the named states become disturbances.
@@ -526,25 +450,6 @@ class StructuredSystem:
             the message names it.
         """
         return _disturb.states_to_disturbances(self, names)
-
-    def _columns(self, spec: Any, names: Sequence[object] | None, prefix: str
-                 ) -> tuple[Any, tuple[str, ...]]:
-        """Columns over the states from a mapping, a list of states or a matrix."""
-        n = self.n_states
-        if isinstance(spec, Mapping):
-            cols = [self.index_of(_as_list(v)) for v in spec.values()]
-            rows = np.concatenate(cols) if cols else np.zeros(0, np.int64)
-            colidx = np.repeat(np.arange(len(cols)), [c.size for c in cols])
-            M = coo_pattern(rows, colidx, None, (n, len(cols)), count=False)[0]
-            return M, tuple(str(k) for k in spec.keys())
-        if is_sparse(spec) or (isinstance(spec, np.ndarray) and spec.ndim == 2):
-            k = spec.shape[1]
-            return spec, (tuple(str(x) for x in names) if names is not None
-                          else tuple(f"{prefix}{j}" for j in range(k)))
-        idx = self.index_of(_as_list(spec))
-        M = coo_pattern(idx, np.arange(idx.size), None, (n, idx.size), count=False)[0]
-        return M, (tuple(str(x) for x in names) if names is not None
-                   else tuple(f"{prefix}:{self.state_names[i]}" for i in idx))
 
     def dual(self) -> StructuredSystem:
         """The dual system ``(A^T, C^T, B^T)``: inputs become outputs and vice versa.
@@ -564,24 +469,7 @@ class StructuredSystem:
         The one check that can newly fail is kept: the regulated outputs become
         disturbances, whose names must not be state names.
         """
-        disturbances = self.regulated_names
-        if len(disturbances) and len(self.state_names):
-            clash = _first_common(disturbances, self.state_names)
-            if clash is not None:
-                raise InvalidSystemError(
-                    f"{clash!r} is both a state and a disturbance; a disturbance is never a "
-                    "state: rename one of them.")
-        t = {k: transpose_pattern(v) for k, v in self._parts.items()}
-        return StructuredSystem._trusted(
-            A=t["A"], B=t["C"], C=t["B"],
-            state_names=self.state_names, input_names=self.output_names,
-            output_names=self.input_names, nodes=dict(self.nodes),
-            weighted=self.weighted, model=self.model,
-            E=t["H"], H=t["E"],
-            disturbance_names=disturbances, regulated_names=self.disturbance_names,
-            disturbance_nodes={}, elements=self.elements,
-            # the states are the same: share their name lookup (built once, never changed)
-            _index={"state": self._index["state"]} if "state" in self._index else {})
+        return _derive.dual(self)
 
     @classmethod
     def _trusted(cls, **parts: Any) -> StructuredSystem:
@@ -607,13 +495,7 @@ class StructuredSystem:
 
     def with_self_loops(self) -> StructuredSystem:
         """A copy with self-dynamics on every state (existing diagonal weights kept)."""
-        import scipy.sparse as sp
-
-        n = self.n_states
-        diag = self.A.diagonal()
-        add = np.where(diag == 0, 1.0, 0.0)
-        A = self.A + sp.dia_array((add[None, :], [0]), shape=(n, n))
-        return self._replace(A=A)
+        return _derive.with_self_loops(self)
 
     def to_networkx(self) -> Any:
         """A networkx ``DiGraph`` of the state graph (edge ``u -> v`` iff ``A[v, u] != 0``).
