@@ -232,11 +232,11 @@ def _sink_distance(adj_ptr, head, rev, forward, cost, cap):  # pragma: no cover 
 
 
 @njit(cache=True, nogil=True)
-def _solve(adj_ptr, head, rev, cost, cap, use_cost, pi):  # pragma: no cover - compiled
+def _solve(adj_ptr, head, rev, cost, cap, pi):  # pragma: no cover - compiled
     """Min-cost max-flow from node 0 to node 1; ``cap`` is the residual array (modified).
-    Returns (flow, total cost, potentials). With ``use_cost`` false every cost is taken
-    as zero. ``pi`` (modified) are feasible starting potentials: every arc with capacity
-    has reduced cost >= 0. At return the reduced costs of all residual arcs are >= 0."""
+    Returns (flow, total cost, potentials). ``pi`` (modified) are feasible starting
+    potentials: every arc with capacity has reduced cost >= 0. At return the reduced
+    costs of all residual arcs are >= 0."""
     n_nodes = adj_ptr.size - 1
     dist = np.empty(n_nodes, np.int64)
     done = np.zeros(n_nodes, np.bool_)
@@ -287,7 +287,7 @@ def _solve(adj_ptr, head, rev, cost, cap, use_cost, pi):  # pragma: no cover - c
                     w = head[a]
                     if done[w]:
                         continue
-                    nd = b + (cost[a] if use_cost else 0) + pv - pi[w]
+                    nd = b + cost[a] + pv - pi[w]
                     if nd < dist[w] and nd <= dcap:
                         if dist[w] == _INF:
                             touched[n_touched] = w
@@ -341,7 +341,7 @@ def _solve(adj_ptr, head, rev, cost, cap, use_cost, pi):  # pragma: no cover - c
                 w = head[a]
                 if seen[w] == phase:
                     continue
-                if (cost[a] if use_cost else 0) + pi[v] - pi[w] != 0:
+                if cost[a] + pi[v] - pi[w] != 0:
                     continue
                 seen[w] = phase if w != 1 else 0
                 it[w] = adj_ptr[w]
@@ -517,7 +517,7 @@ def maximum_linking(graph: LinkingGraph, *, sources: np.ndarray | None = None,
     cap[dead[graph.head] & graph.forward] = 0
     pi = np.where(dead, 0, -dsink)
     base = cap.copy()
-    flow, total, pi = _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, True, pi)
+    flow, total, pi = _solve(graph.adj_ptr, graph.head, graph.rev, graph.cost, cap, pi)
     if paths:
         ptr, st, ps, pt = _paths(graph.adj_ptr, graph.head, graph.forward, base, cap,
                                  graph.src_pos, k, graph.n_states)
