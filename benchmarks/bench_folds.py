@@ -31,7 +31,7 @@ import scipy.sparse as sp
 # this checkout's netctl, not an installed one (the new side of every row)
 sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 from netctl._jit import always_compiled
-from netctl.graph import dm, linking, stem_cycle
+from netctl.graph import _costflow, dm, linking, stem_cycle
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural.failures._core import dedicated_B, design_facts
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
@@ -118,12 +118,12 @@ def main() -> None:
         for what, cap in (("no flow", g.cap), ("after a maximum linking", lk._residual)):
             _pair(f"linking: backward residual search to the sink, {what}",
                  lambda: old_lk._to_sink(g.adj_ptr, g.head, g.rev, cap),
-                 lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, cap, 1, 0, True),
+                 lambda: _costflow.residual_search(g.adj_ptr, g.head, g.rev, cap, 1, 0, True),
                  a.repeat, eq)
             _pair(f"linking: forward residual search from the source, {what}",
                  lambda: old_lk._residual_reach(g.adj_ptr, g.head, cap),
-                 lambda: linking._residual_search(g.adj_ptr, g.head, g.rev, cap, 0, -1,
-                                                  False),
+                 lambda: _costflow.residual_search(g.adj_ptr, g.head, g.rev, cap, 0, -1,
+                                                   False),
                  a.repeat, eq)
         old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
         _pair("linking: minimum_separator (max flow + search)",

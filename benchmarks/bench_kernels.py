@@ -16,7 +16,8 @@ Two questions about the kernels' loops (``benchmarks/RESULTS.md``, 2026-12-05):
   cycles (its extra-column search has work to do), as the product calls it (searches
   restricted to the rows some maximum matching leaves free) and with every row
   searched (the same answer, about a hundred times more Dijkstra work);
-* ``sink distances`` times ``netctl.graph.linking._sink_distance`` (the 0-1
+* ``sink distances`` times ``netctl.graph._costflow.sink_distance`` (before the
+  kernels left it, ``netctl.graph.linking._sink_distance``; the 0-1
   breadth-first search that gives the linking's starting potentials) at BASE (a
   double-ended queue) and here (one level at a time), on the node-split network of
   ``bench_folds.py`` (100 sources and 100 sinks on random states), with no flow and
@@ -61,7 +62,7 @@ sys.path.insert(0, os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 from netctl import StructuredSystem
 from netctl.generate import grid
 from netctl._jit import always_compiled
-from netctl.graph import components, costmatch, dm, linking
+from netctl.graph import _costflow, components, costmatch, dm, linking
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural import controllability
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # run as a script
@@ -262,13 +263,15 @@ def main() -> None:
         one = np.arange(k + 1, dtype=np.int64)
         g = linking.linking_graph(n, one, srcs, out_ptr, out_ind, one, snks)
         old_lk = load_old(a.base, "netctl/graph/linking.py", "old_linking", tmp)
+        old_sink = (old_lk._sink_distance if hasattr(old_lk, "_sink_distance") else
+                    load_old(a.base, "netctl/graph/_costflow.py", "old_costflow",
+                             tmp).sink_distance)  # the flow kernels' own module
         lk = linking.maximum_linking(g, paths=False)
         for what, cap in (("no flow", g.cap), ("after a maximum linking", lk._residual)):
             pair_row(f"sink distances (linking potentials), {what}",
-                 lambda: old_lk._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
-                                               cap),
-                 lambda: linking._sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost,
-                                                cap), a.repeat, eq)
+                 lambda: old_sink(g.adj_ptr, g.head, g.rev, g.forward, g.cost, cap),
+                 lambda: _costflow.sink_distance(g.adj_ptr, g.head, g.rev, g.forward,
+                                                 g.cost, cap), a.repeat, eq)
         old_g = old_lk.LinkingGraph(*[getattr(g, k) for k in g.__dataclass_fields__])
         if any("minimum_separator" in w for w in ONLY):  # before Dinic: ~30 s a call at 1e6
             pair_row("minimum_separator (max flow + search), 100 sources, 100 sinks",

@@ -164,7 +164,7 @@ def test_sink_distances_equal_networkx_dijkstra(mode):
     # network to the super-sink over arcs with capacity; reference: NetworkX's Dijkstra
     # to node 1 on the same arcs, before and after a maximum linking uses some of them
     from netctl import _jit
-    from netctl.graph.linking import _INF, _sink_distance
+    from netctl.graph._costflow import INF, sink_distance
 
     rng = np.random.default_rng(3)
     deep = 0
@@ -179,10 +179,10 @@ def test_sink_distances_equal_networkx_dijkstra(mode):
                                           g.cost[on].tolist()))
             want = nx.single_source_dijkstra_path_length(G.reverse(), 1)
             with (_jit.always_python() if mode == "python" else _jit.always_compiled()):
-                got = _sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost, cap)
-            ref = np.array([want.get(v, int(_INF)) for v in range(got.size)])
+                got = sink_distance(g.adj_ptr, g.head, g.rev, g.forward, g.cost, cap)
+            ref = np.array([want.get(v, int(INF)) for v in range(got.size)])
             assert (got == ref).all(), trial
-            deep += int(ref[ref < _INF].max()) >= 4
+            deep += int(ref[ref < INF].max()) >= 4
     assert deep > 40
 
 
@@ -194,7 +194,7 @@ def test_back_costs_equal_networkx_bellman_ford(mode):
     # reversed residual graph (reverse arcs cost minus their forward arc), without the
     # arcs into node 1 (it ends no path through it) and out of node 0
     from netctl import _jit
-    from netctl.graph.linking import _INF, _back
+    from netctl.graph._costflow import INF, back_costs
 
     rng = np.random.default_rng(8)
     far = 0
@@ -203,7 +203,7 @@ def test_back_costs_equal_networkx_bellman_ford(mode):
         L = maximum_linking(g, paths=False)
         cap, pi = L._residual, L._potential
         with (_jit.always_python() if mode == "python" else _jit.always_compiled()):
-            got = _back(g.adj_ptr, g.head, g.rev, g.cost, cap, pi)
+            got = back_costs(g.adj_ptr, g.head, g.rev, g.cost, cap, pi)
         tail = np.repeat(np.arange(g.adj_ptr.size - 1), np.diff(g.adj_ptr))
         on = (cap > 0) & (g.head != 1) & (tail != 0)
         G = nx.DiGraph()
@@ -211,9 +211,9 @@ def test_back_costs_equal_networkx_bellman_ford(mode):
         G.add_weighted_edges_from(zip(g.head[on].tolist(), tail[on].tolist(),
                                       g.cost[on].tolist()))  # reversed arcs
         want = nx.single_source_bellman_ford_path_length(G, 0)
-        ref = np.array([want.get(v, int(_INF)) for v in range(got.size)])
+        ref = np.array([want.get(v, int(INF)) for v in range(got.size)])
         assert (got == ref).all(), trial
-        far += int((ref[ref < _INF] >= 2).sum()) > 3
+        far += int((ref[ref < INF] >= 2).sum()) > 3
     assert far > 20
 
 
@@ -226,7 +226,7 @@ def test_residual_search_equals_scipy_breadth_first_order(mode):
     from scipy.sparse.csgraph import breadth_first_order
 
     from netctl import _jit
-    from netctl.graph.linking import _residual_search
+    from netctl.graph._costflow import residual_search
 
     rng = np.random.default_rng(21)
     wide = 0
@@ -246,7 +246,7 @@ def test_residual_search_equals_scipy_breadth_first_order(mode):
                 want[breadth_first_order(G, start, return_predecessors=False)] = True
                 with (_jit.always_python() if mode == "python"
                       else _jit.always_compiled()):
-                    got = _residual_search(g.adj_ptr, g.head, g.rev, cap, start, stop,
+                    got = residual_search(g.adj_ptr, g.head, g.rev, cap, start, stop,
                                            backward)
                 assert (got == want).all(), (trial, start, backward)
                 wide += int(want.sum()) > n_nodes // 4
