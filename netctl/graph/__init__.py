@@ -9,7 +9,8 @@ from netctl.graph.components import (
     reachable_from,
     strongly_connected_components,
 )
-from netctl.graph.matching import is_valid_matching, maximum_matching, transpose_csr
+from netctl.graph.matching import is_valid_matching, maximum_matching
+from netctl.graph.transpose import transpose_csr
 from netctl.graph.dm import alternating_reach_rows, alternating_reach_cols, dm_coarse
 
 __all__ = [
