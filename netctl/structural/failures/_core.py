@@ -18,9 +18,9 @@ from netctl.graph.components import (
     strongly_connected_components,
 )
 from netctl.graph.dm import alternating_reach_rows
+from netctl.graph.dominators import input_dominators
 from netctl.graph.matching import maximum_matching, transpose_csr
 from netctl.structural._engine import stack_AB
-from netctl.structural.robustness.contingency import _dominators
 
 if TYPE_CHECKING:  # imported where used (a small audit needs no scipy)
     import scipy.sparse as sp
@@ -180,7 +180,7 @@ def design_facts(A: sp.csr_array, B: sp.csr_array) -> DesignFacts:
     out_ptr, out_ind = transpose_csr(in_ptr, ind, np.int64(N))
     driven = np.zeros(N, np.bool_)
     driven[n:] = True
-    idom, pre, size = _dominators(out_ptr, out_ind, in_ptr, ind, driven)
+    idom, pre, size = input_dominators(out_ptr, out_ind, in_ptr, ind, driven)
     reach = idom[:n] >= 0
     cut = np.where(pre[n:N] >= 0, size[n:N] - 1, 0).astype(np.int64)
     live = np.flatnonzero(pre >= 0)

@@ -18,12 +18,12 @@ from typing import Any
 import numpy as np
 
 from netctl._csr import Pattern
+from netctl.graph.dominators import input_dominators
 from netctl.graph.matching import maximum_matching
 from netctl.structural._engine import stack_AB
 from netctl.structural.failures._core import is_controlling
 from netctl.structural.failures.audit import _work_system
 from netctl.structural.robustness._rematch import matching_sizes_after
-from netctl.structural.robustness.contingency import _dominators
 from netctl.system import StructuredSystem
 
 __all__ = ["LineLosses", "audit_links", "line_elements"]
@@ -315,7 +315,7 @@ def audit_links(system: StructuredSystem, *, kind: str = "inputs") -> LineLosses
     out_ptr, out_idx, in_ptr, in_idx = _line_split(A, line_of, n_l)
     driven = np.zeros(n + n_l, np.bool_)
     driven[:n] = np.diff(B.indptr) > 0
-    _, pre, size = _dominators(out_ptr, out_idx, in_ptr, in_idx, driven)
+    _, pre, size = input_dominators(out_ptr, out_idx, in_ptr, in_idx, driven)
     before = bool(np.count_nonzero(rm >= 0) == n and np.all(pre[:n] >= 0))
     breaking = np.zeros(n_l, bool)
     rank_lost = np.zeros(n_l, bool)

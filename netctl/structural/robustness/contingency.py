@@ -18,6 +18,7 @@ import numpy as np
 
 from netctl._csr import Pattern, transpose_pattern
 from netctl._jit import njit
+from netctl.graph.dominators import input_dominators
 
 from netctl.structural._engine import stack_AB
 from netctl.structural.robustness._common import LossOutcomes, _check_elements, _n_d
@@ -36,113 +37,6 @@ __all__ = ["ContingencySweep", "contingency_sweep"]
 
 
 # ---------------------------------------------------------------------- dominators
-@njit(cache=True, nogil=True)
-def _dominators(out_indptr, out_indices, in_indptr, in_indices, driven):  # pragma: no cover
-    """Immediate dominators from a virtual root ``n`` that feeds every driven state.
-
-    Cooper, Harvey & Kennedy's iterative algorithm over reverse postorder. Returns
-    ``idom`` (``-1`` for unreachable states, ``n`` for the root), the dominator-tree
-    preorder number ``pre`` and subtree size ``size`` of every vertex (root included).
-    """
-    n = out_indptr.size - 1
-    N = n + 1
-    po = np.full(N, -1, np.int64)
-    order = np.empty(N, np.int64)  # vertices in postorder
-    # iterative DFS from the root
-    stack_v = np.empty(N, np.int64)
-    stack_k = np.empty(N, np.int64)
-    seen = np.zeros(N, np.bool_)
-    roots = np.flatnonzero(driven)
-    top = 0
-    stack_v[0] = n
-    stack_k[0] = 0
-    seen[n] = True
-    count = 0
-    while top >= 0:
-        v = stack_v[top]
-        k = stack_k[top]
-        if v == n:
-            end = roots.size
-        else:
-            end = out_indptr[v + 1] - out_indptr[v]
-        if k < end:
-            stack_k[top] = k + 1
-            w = roots[k] if v == n else out_indices[out_indptr[v] + k]
-            if not seen[w]:
-                seen[w] = True
-                top += 1
-                stack_v[top] = w
-                stack_k[top] = 0
-        else:
-            po[v] = count
-            order[count] = v
-            count += 1
-            top -= 1
-    idom = np.full(N, -1, np.int64)
-    idom[n] = n
-    changed = True
-    while changed:
-        changed = False
-        for j in range(count - 2, -1, -1):  # reverse postorder, root excluded
-            v = order[j]
-            new = -1
-            npred = in_indptr[v + 1] - in_indptr[v] + (1 if driven[v] else 0)
-            for t in range(npred):
-                p = n if t == in_indptr[v + 1] - in_indptr[v] else in_indices[in_indptr[v] + t]
-                if idom[p] == -1:
-                    continue
-                if new == -1:
-                    new = p
-                else:
-                    a = p
-                    b = new
-                    while a != b:
-                        while po[a] < po[b]:
-                            a = idom[a]
-                        while po[b] < po[a]:
-                            b = idom[b]
-                    new = a
-            if new != idom[v]:
-                idom[v] = new
-                changed = True
-    # dominator tree: children lists, preorder and subtree sizes
-    cnt = np.zeros(N + 1, np.int64)
-    for v in range(n):
-        if idom[v] >= 0:
-            cnt[idom[v] + 1] += 1
-    for v in range(N):
-        cnt[v + 1] += cnt[v]
-    fill = cnt[:-1].copy()
-    kids = np.empty(cnt[N], np.int64)
-    for v in range(n):
-        if idom[v] >= 0:
-            kids[fill[idom[v]]] = v
-            fill[idom[v]] += 1
-    pre = np.full(N, -1, np.int64)
-    size = np.zeros(N, np.int64)
-    top = 0
-    stack_v[0] = n
-    stack_k[0] = 0
-    c = 0
-    pre[n] = c
-    c += 1
-    while top >= 0:
-        v = stack_v[top]
-        k = stack_k[top]
-        if k < cnt[v + 1] - cnt[v]:
-            stack_k[top] = k + 1
-            w = kids[cnt[v] + k]
-            pre[w] = c
-            c += 1
-            top += 1
-            stack_v[top] = w
-            stack_k[top] = 0
-        else:
-            size[v] = c - pre[v]
-            top -= 1
-    return idom, pre, size
-
-
 @dataclass(frozen=True)
 class _Reach:
     reachable: np.ndarray  # bool per state
@@ -156,7 +50,7 @@ def _reach_structure(A: Pattern, B: Pattern) -> _Reach:
     At = transpose_pattern(A)
     driven = np.zeros(n, np.bool_)
     driven[np.flatnonzero(np.diff(B.indptr))] = True
-    idom, pre, size = _dominators(At.indptr.astype(np.int64), At.indices.astype(np.int64),
+    idom, pre, size = input_dominators(At.indptr.astype(np.int64), At.indices.astype(np.int64),
                                   A.indptr.astype(np.int64), A.indices.astype(np.int64),
                                   driven)
     reach = idom[:n] >= 0
