@@ -15,6 +15,16 @@ import pytest
 matplotlib.use("Agg")
 os.environ.setdefault("MPLBACKEND", "Agg")
 
+# Under CI the property tests draw the same examples every run (hypothesis's
+# ``derandomize``), so a submission's verdict does not depend on the luck of the draw;
+# run without CI=true to explore new examples (a falsifying one is then pinned with
+# ``@example`` beside its test).
+from hypothesis import settings  # noqa: E402
+
+settings.register_profile("ci", derandomize=True, database=None)
+if os.environ.get("CI") == "true":
+    settings.load_profile("ci")
+
 from netctl import StructuredSystem  # noqa: E402
 
 
