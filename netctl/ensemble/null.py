@@ -308,12 +308,15 @@ def degree_preserving_swaps(sources: Any, targets: Any, n_states: int, *,
     accepted = 0
     left = int(n_swaps)
     block = max(links, 1 << 20)
-    while left > 0:  # one hash table per block keeps tombstones from piling up
+    while left > 0:
         k = min(left, block)
-        table = _build_table(src * n + dst, bits)
         pick_i = rng.integers(0, links, k)
         pick_j = rng.integers(0, links, k)
-        accepted += int(_swap_block(src, dst, n, table, bits, pick_i, pick_j))
+        done = 0
+        while done < k:  # a fresh table whenever tombstones have filled the last one
+            table = _build_table(src * n + dst, bits)
+            got, done = _swap_block(src, dst, n, table, bits, pick_i, pick_j, done)
+            accepted += int(got)
         left -= k
     return src, dst, accepted
 
@@ -387,19 +390,38 @@ def _find(table, key, bits):  # pragma: no cover - compiled
 
 @njit(cache=True, nogil=True)
 def _insert(table, key, bits):  # pragma: no cover - compiled
-    """Insert an absent ``key``, reusing the first tombstone on its probe path."""
+    """Insert an absent ``key``, reusing the first tombstone on its probe path; returns
+    1 when it took an empty slot instead (one fewer left), else 0."""
     mask = table.size - 1
     h = _slot(key, bits)
     while table[h] >= 0:
         h = (h + 1) & mask
+    took = 1 if table[h] == _EMPTY else 0
     table[h] = key
+    return took
 
 
 @njit(cache=True, nogil=True)
-def _swap_block(src, dst, n, table, bits, pick_i, pick_j):  # pragma: no cover - compiled
-    """One Maslov-Sneppen attempt per pick: a->b, c->d become a->d, c->b when legal."""
+def _swap_block(src, dst, n, table, bits, pick_i, pick_j, first):  # pragma: no cover
+    """One Maslov-Sneppen attempt per pick from ``first`` on: a->b, c->d become a->d,
+    c->b when legal. Returns ``(accepted, next)``: it stops before pick ``next`` when
+    no more than a quarter of the table's slots are still empty.
+
+    A swap leaves two tombstones and its two inserts take an empty slot unless a
+    tombstone lies on their probe path, so empty slots run out after about as many
+    swaps as the table has slots; a search for an absent key then never meets an empty
+    slot and probes for ever (seen: ``compare --null swap`` on 8 links hung). The caller
+    rebuilds the table (its keys are the links, at most a quarter of the slots) and
+    goes on from ``next`` with the same picks, so the swaps are those of a table that
+    never filled."""
     accepted = 0
-    for t in range(pick_i.size):
+    empty = 0
+    for h in range(table.size):
+        empty += table[h] == _EMPTY
+    low = table.size // 4
+    for t in range(first, pick_i.size):
+        if empty <= low:
+            return accepted, t
         i = pick_i[t]
         j = pick_j[t]
         a = src[i]
@@ -414,12 +436,12 @@ def _swap_block(src, dst, n, table, bits, pick_i, pick_j):  # pragma: no cover -
             continue  # the link exists already
         table[_find(table, a * n + b, bits)] = _TOMB
         table[_find(table, c * n + d, bits)] = _TOMB
-        _insert(table, k1, bits)
-        _insert(table, k2, bits)
+        empty -= _insert(table, k1, bits)
+        empty -= _insert(table, k2, bits)
         dst[i] = d
         dst[j] = b
         accepted += 1
-    return accepted
+    return accepted, pick_i.size
 
 
 def _member(values: np.ndarray, sorted_keys: np.ndarray) -> np.ndarray:
