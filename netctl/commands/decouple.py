@@ -33,7 +33,6 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
 
 def _cmd_decouple(args: argparse.Namespace) -> int:
     from netctl.errors import OptionError
-    from netctl.structural.decoupling import decoupling
 
     if args.fix_candidates < 0:
         raise OptionError(f"--fix-candidates must be >= 0, found {args.fix_candidates}.")
@@ -54,6 +53,8 @@ def _cmd_decouple(args: argparse.Namespace) -> int:
         raise UsageError(f"{args.file}: the file declares no {against} outputs; declare the "
                          f"outputs to protect, or use --against "
                          f"{'measured' if against == 'regulated' else 'regulated'}.")
+    from netctl.structural.decoupling import decoupling  # after the refusals: not needed there
+
     r = decoupling(system, outputs=against, fixes=not args.no_fix,
                    max_candidates=args.fix_candidates)
     d = r.to_dict()

@@ -7,7 +7,7 @@ from netctl._jit import njit
 from netctl.graph._levels import order_by_scan
 
 __all__ = ["strongly_connected_components", "condensation_sources", "reachable_from",
-           "label_reach", "induced_subgraph", "weak_component_count", "weak_component_labels"]
+           "hops_from", "label_reach", "induced_subgraph", "weak_component_count", "weak_component_labels"]
 
 
 def _index(a: np.ndarray) -> np.ndarray:
@@ -196,6 +196,46 @@ def reachable_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.
         return seen
     _reach(_index(out_indptr), _index(out_indices), src, seen)
     return seen
+
+
+@njit(cache=True, nogil=True)
+def _hops(indptr, indices, seeds, dist):  # pragma: no cover - compiled
+    """Breadth-first search from ``seeds`` (distance 0), writing each vertex's number of
+    edges from the nearest seed into ``dist`` (-1 stays where none reaches)."""
+    n = indptr.size - 1
+    queue = np.empty(n, np.int64)
+    tail = 0
+    for k in range(seeds.size):
+        s = seeds[k]
+        if dist[s] < 0:
+            dist[s] = 0
+            queue[tail] = s
+            tail += 1
+    head = 0
+    while head < tail:
+        u = queue[head]
+        head += 1
+        for e in range(indptr[u], indptr[u + 1]):
+            v = indices[e]
+            if dist[v] < 0:
+                dist[v] = dist[u] + 1
+                queue[tail] = v
+                tail += 1
+
+
+def hops_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.ndarray
+              ) -> np.ndarray:
+    """Fewest edges from any of ``sources`` to each vertex (0 at the sources, -1 where
+    none reaches): one breadth-first search, linear time (the unweighted shortest-path
+    lengths of ``scipy.sparse.csgraph.shortest_path(..., unweighted=True)`` from a hub
+    joined to every source, less one, without importing scipy)."""
+    n = out_indptr.size - 1
+    dist = np.full(n, -1, np.int64)
+    src = _index(sources)
+    if n == 0 or src.size == 0:
+        return dist
+    _hops(_index(out_indptr), _index(out_indices), src, dist)
+    return dist
 
 
 @njit(cache=True, nogil=True)

@@ -29,9 +29,9 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.sparse as sp
-from scipy.sparse.csgraph import dijkstra
 
+from netctl._csr import Pattern, coo_pattern, hstack_patterns, transpose_pattern
+from netctl.graph.components import hops_from
 from netctl.graph.linking import (
     Linking,
     LinkingGraph,
@@ -50,29 +50,29 @@ STATE_FEEDBACK = "state feedback u = F x (disturbance not measured)"
 MEASURED = "measured disturbance u = F x + G w (feedforward allowed)"
 
 
-def _outputs(system: StructuredSystem, outputs: str) -> tuple[sp.csr_array, Sequence[str]]:
+def _outputs(system: StructuredSystem, outputs: str) -> tuple[Pattern, Sequence[str]]:
+    """The stored CSR arrays of ``H`` or ``C`` (no scipy array is built: a small system is
+    analysed without importing scipy, issue 15) and the outputs' names."""
     if outputs == "regulated":
-        return system.H, system.regulated_names
+        return system.pattern("H"), system.regulated_names
     if outputs == "measured":
-        return system.C, system.output_names
+        return system.pattern("C"), system.output_names
     raise ValueError(f"outputs must be 'regulated' or 'measured', found {outputs!r}.")
 
 
-def _graph(system: StructuredSystem, Z: sp.csr_array, extra_inputs: np.ndarray | None = None
+def _graph(system: StructuredSystem, Z: Pattern, extra_inputs: np.ndarray | None = None
            ) -> LinkingGraph:
     """Sources: the inputs, then the disturbances, then one dedicated source per state in
     ``extra_inputs`` (candidate added inputs)."""
     n = system.n_states
-    cols = [system.B, system.E]
+    S = hstack_patterns(system.pattern("B"), system.pattern("E"))
     if extra_inputs is not None and extra_inputs.size:
-        cols.append(sp.csr_array((np.ones(extra_inputs.size),
-                                  (extra_inputs, np.arange(extra_inputs.size))),
-                                 shape=(n, extra_inputs.size)))
-    S = sp.hstack(cols, format="csc") if len(cols) > 1 else cols[0].tocsc()
-    S.sort_indices()
-    A = system.A.tocsc()  # CSC of A = CSR of the transpose: the successors of each state
-    A.sort_indices()
-    return linking_graph(n, S.indptr, S.indices, A.indptr, A.indices, Z.indptr, Z.indices)
+        k = extra_inputs.size
+        S = hstack_patterns(S, coo_pattern(extra_inputs, np.arange(k), None, (n, k),
+                                           count=False)[0])
+    S = transpose_pattern(S)  # row j: the states source j enters (sorted)
+    At = transpose_pattern(system.pattern("A"))  # row u: the successors of state u
+    return linking_graph(n, S.indptr, S.indices, At.indptr, At.indices, Z.indptr, Z.indices)
 
 
 @dataclass(frozen=True)
@@ -312,26 +312,20 @@ def _answer(g: LinkingGraph, m: int, q: int, sources: np.ndarray | None = None
     return L, grows, (not grows and saving < 0), (not grows and saving <= 0), saving
 
 
-def _distances(system: StructuredSystem, Z: sp.csr_array, entry: np.ndarray) -> np.ndarray:
+def _distances(system: StructuredSystem, Z: Pattern, entry: np.ndarray) -> np.ndarray:
     """Fewest states on a path from the states ``entry`` to each output (-1: none)."""
-    n, r = system.n_states, Z.shape[0]
+    r = Z.shape[0]
     if entry.size == 0 or r == 0:
         return np.full(r, -1, np.int64)
-    G = sp.csr_array(system.A.T)  # G[u, v] != 0: edge u -> v
-    G.setdiag(0)
-    G.eliminate_zeros()
-    hub = sp.csr_array((np.ones(entry.size), (np.zeros(entry.size, np.int64), entry)),
-                       shape=(1, n))
-    big = sp.block_array([[G, None], [hub, sp.csr_array((1, 1))]], format="csr")
-    big.data[:] = 1.0
-    d = dijkstra(big, indices=n, unweighted=True)[:n]  # edges from the hub: entry = 1 state
+    At = transpose_pattern(system.pattern("A"))  # row u: the successors of state u
+    hops = hops_from(At.indptr, At.indices, entry)
+    d = np.where(hops >= 0, hops + 1, -1)  # an entry state is a path of 1 state
     out = np.full(r, -1, np.int64)
     for t in range(r):
-        reads = Z.indices[Z.indptr[t]:Z.indptr[t + 1]]
+        reads = d[Z.indices[Z.indptr[t]:Z.indptr[t + 1]]]
+        reads = reads[reads >= 0]
         if reads.size:
-            best = d[reads].min()
-            if np.isfinite(best):
-                out[t] = int(best)
+            out[t] = int(reads.min())
     return out
 
 
@@ -369,7 +363,8 @@ def decoupling(system: StructuredSystem, *, outputs: str = "regulated", explain:
     geometric test (``im E`` in ``V*`` resp. ``V* + im B``) on thousands of random systems
     (tests/structural/test_decoupling.py). Cost: one min-cost max-flow from the inputs
     (primal-dual, unit capacities) and one Dijkstra for the disturbances, plus one Dijkstra
-    per disturbance to name the failing ones.
+    per disturbance to name the failing ones; one breadth-first search per failing
+    disturbance (and one from the inputs) for how fast each reaches the outputs.
 
     References
     ----------
@@ -417,8 +412,9 @@ def decoupling(system: StructuredSystem, *, outputs: str = "regulated", explain:
     bottleneck = np.zeros(0, np.int64)
     if explain and sf_fail:
         d_in = _distances(system, Z, system.driven_states())
+        Et = transpose_pattern(system.pattern("E"))  # row j: the states disturbance j enters
         for j in sf_fail[:20]:
-            entry = system.E.tocsc()[:, [j]].indices.astype(np.int64)
+            entry = Et.indices[Et.indptr[j]:Et.indptr[j + 1]].astype(np.int64)
             d_w = _distances(system, Z, entry)
             hit = np.flatnonzero(d_w >= 0)
             reach.append(DisturbanceReach(j, hit, d_w[hit], d_in[hit]))
@@ -449,7 +445,7 @@ def decoupling(system: StructuredSystem, *, outputs: str = "regulated", explain:
         system.state_names, system.input_names, system.disturbance_names, znames)
 
 
-def _candidates(system: StructuredSystem, Z: sp.csr_array, reach: list[DisturbanceReach],
+def _candidates(system: StructuredSystem, Z: Pattern, reach: list[DisturbanceReach],
                 failing: list[int], limit: int) -> np.ndarray:
     """States where one added input might help: those that reach an output some failing
     disturbance reaches, nearest first (ties by index); states marked ``actuator = false``
@@ -459,18 +455,13 @@ def _candidates(system: StructuredSystem, Z: sp.csr_array, reach: list[Disturban
         return np.zeros(0, np.int64)
     outs = np.unique(np.concatenate([r.outputs for r in reach])) if reach else \
         np.arange(Z.shape[0])
-    reads = np.unique(Z[outs].indices) if outs.size else np.zeros(0, np.int64)
+    reads = np.unique(np.concatenate([Z.indices[Z.indptr[t]:Z.indptr[t + 1]] for t in outs])
+                      ) if outs.size else np.zeros(0, np.int64)
     if reads.size == 0:
         return np.zeros(0, np.int64)
-    G = sp.csr_array(system.A)  # G[v, u] != 0: edge u -> v; walk backwards from the reads
-    G.setdiag(0)
-    G.eliminate_zeros()
-    hub = sp.csr_array((np.ones(reads.size), (np.zeros(reads.size, np.int64), reads)),
-                       shape=(1, n))
-    big = sp.block_array([[G, None], [hub, sp.csr_array((1, 1))]], format="csr")
-    big.data[:] = 1.0
-    d = dijkstra(big, indices=n, unweighted=True)[:n]
-    ok = np.isfinite(d)
+    A = system.pattern("A")  # row v: the states with an edge into v (walk backwards)
+    d = hops_from(A.indptr, A.indices, reads.astype(np.int64))
+    ok = d >= 0
     elig = system.nodes.get("actuator")
     if elig is not None:
         ok &= np.asarray(elig, bool)
