@@ -13,9 +13,21 @@ import os
 import re
 from typing import Any
 
-from netctl.io._common import atomic_write, file_error, read_text, refuse_lone_surrogates
+from netctl.io._common import (
+    atomic_write,
+    excerpt,
+    file_error,
+    read_text,
+    refuse_lone_surrogates,
+)
 from netctl.io._graphs import warn_not_kept
-from netctl.io.graphml import Find, finite_weight, graph_to_system, system_to_graph
+from netctl.io.graphml import (
+    Find,
+    finite_weight,
+    graph_to_system,
+    network_parts,
+    system_to_graph,
+)
 from netctl.system import StructuredSystem
 
 __all__ = ["read_gml", "write_gml"]
@@ -177,17 +189,68 @@ def _finder(text: str) -> Find:
 
 
 def write_gml(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
-    """Write the network and node table as GML (atomically)."""
-    import networkx as nx
+    """Write the network and node table as GML (atomically).
+
+    The document is the one networkx writes for :func:`system_to_graph` (booleans as 1/0),
+    built without importing networkx (:mod:`netctl.io._graphtext`); a node table value of
+    another type than text, integer, number or boolean goes through networkx itself.
+
+    Raises
+    ------
+    InvalidSystemError
+        A node-table column whose name is not a GML key.
+    """
+    from netctl.io._graphtext import gml_bytes
 
     warn_not_kept(system, path, "GML")
     refuse_lone_surrogates(system, "GML")
-    g = system_to_graph(system)
-    for _, d in g.nodes(data=True):
-        for k, v in list(d.items()):
-            if isinstance(v, bool):
-                d[k] = int(v)
-    buf = io.BytesIO()
-    nx.write_gml(g, buf)
+    _check_keys(system, path)
+    parts = network_parts(system)
+    data = None
+    if parts is not None:
+        ids, rows, src, dst, edge_attrs = parts
+        rows = [{k: int(v) if isinstance(v, bool) else v for k, v in row.items()}
+                for row in rows]
+        data = gml_bytes(ids, rows, src, dst, edge_attrs)
+    if data is None:
+        import networkx as nx
+
+        g = system_to_graph(system)
+        for _, d in g.nodes(data=True):
+            for k, v in list(d.items()):
+                if isinstance(v, bool):
+                    d[k] = int(v)
+        buf = io.BytesIO()
+        nx.write_gml(g, buf)
+        data = buf.getvalue()
     with atomic_write(path, "wb") as fh:
-        fh.write(buf.getvalue())
+        fh.write(data)
+
+
+#: A GML key: a letter, then letters, digits or '_' (Himsolt 1997, the GML grammar)
+_KEY = re.compile(r"[A-Za-z][0-9A-Za-z_]*\Z")
+
+
+def _check_keys(system: StructuredSystem, path: object) -> None:
+    """Refuse a node-table column that GML cannot name (networkx failed on it with a
+    traceback), and warn about the columns ``id`` and ``label``, which GML uses for each
+    node's number and name (they are not written)."""
+    import warnings
+
+    from netctl.errors import InvalidSystemError
+
+    columns = list(system.nodes) + [k for k in system.disturbance_nodes
+                                    if k not in system.nodes]
+    for k in columns:
+        if not _KEY.match(k):
+            raise InvalidSystemError(
+                f"the node-table column {excerpt(k)} is not a GML key (a letter, then "
+                "letters, digits or '_'), so it cannot be written to GML; rename the "
+                "column, or write GraphML, node-link JSON or a .toml description.")
+    lost = [k for k in columns if k in ("id", "label")]
+    if lost:
+        warnings.warn(f"{path}: the node-table column{'s' if len(lost) > 1 else ''} "
+                      f"{' and '.join(map(repr, lost))} {'were' if len(lost) > 1 else 'was'} "
+                      "not written: GML gives every node its number as 'id' and its name "
+                      "as 'label'. Rename the column, or write GraphML, node-link JSON or a "
+                      ".toml description, to keep it.", stacklevel=3)

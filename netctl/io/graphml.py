@@ -17,13 +17,15 @@ import warnings
 from collections.abc import Callable
 from typing import Any
 
+import numpy as np
+
 from netctl.io._common import atomic_write, excerpt, file_error, read_bytes
 from netctl.io._graphs import node_rows, refuse_unsafe_xml, system_from_parts, warn_not_kept
 from netctl.io._signals import dedicated_regulated, disturbance_links, disturbance_rows
 from netctl.system import StructuredSystem
 
-__all__ = ["read_graphml", "write_graphml", "graph_to_system", "system_to_graph", "Find",
-           "finite_weight"]
+__all__ = ["read_graphml", "write_graphml", "graph_to_system", "system_to_graph",
+           "network_parts", "Find", "finite_weight"]
 
 
 #: ``find(kind, key)``: the line of the node ``key`` (``kind`` ``"node"``, the graph's
@@ -85,6 +87,40 @@ def system_to_graph(system: StructuredSystem) -> Any:
                              (names[i] for i in dst.tolist())))
         g.add_edges_from((w, x) for w, x, _ in disturbance_links(system))
     return g
+
+
+def network_parts(system: StructuredSystem
+                  ) -> tuple[list[str], list[dict[str, Any]], list[int], list[int],
+                             list[dict[str, Any]]] | None:
+    """What :func:`system_to_graph` puts in its ``DiGraph``, without networkx: node ids
+    (states, then disturbances), their attribute dicts, and the edges as node positions
+    with their attribute dicts (``weight`` when weighted), in the ``DiGraph``'s order
+    (:func:`netctl.io._graphtext.digraph_order`). None where a ``DiGraph`` would merge
+    something (two nodes of one id, an edge given twice): the caller then uses networkx."""
+    from netctl.io._graphtext import digraph_order
+
+    names = list(system.state_names)
+    ids = names + list(system.disturbance_names)
+    position = {x: i for i, x in enumerate(ids)}
+    if len(position) != len(ids):
+        return None
+    rows = node_rows(system)
+    for name in dedicated_regulated(system) or ():
+        rows[position[name]]["regulated"] = True
+    rows += disturbance_rows(system)
+    src, dst = system.edges()
+    links = list(disturbance_links(system))
+    src_all = np.concatenate([src, np.array([position[w] for w, _, _ in links], np.int64)])
+    dst_all = np.concatenate([dst, np.array([position[x] for _, x, _ in links], np.int64)])
+    order = digraph_order(src_all, dst_all, len(ids))
+    if order is None:
+        return None
+    if system.weighted:
+        w_all = system.pattern("A").data.tolist() + [w for _, _, w in links]
+        edge_attrs = [{"weight": w_all[k]} for k in order.tolist()]
+    else:
+        edge_attrs = [{} for _ in range(order.size)]
+    return ids, rows, src_all[order].tolist(), dst_all[order].tolist(), edge_attrs
 
 
 def _expat_pass(data: bytes, start: Callable[[str, dict[str, str], int], None],
@@ -421,12 +457,23 @@ def _refuse_non_xml(system: StructuredSystem) -> None:
 
 
 def write_graphml(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
-    """Write the network and node table as GraphML (atomically)."""
-    import networkx as nx
+    """Write the network and node table as GraphML (atomically).
+
+    The document is the one networkx writes for :func:`system_to_graph` (with Python's
+    ElementTree), built without importing networkx (:mod:`netctl.io._graphtext`); a node
+    table value of another type than text, integer, number or boolean goes through
+    networkx itself."""
+    from netctl.io._graphtext import graphml_bytes
 
     warn_not_kept(system, path, "GraphML")
     _refuse_non_xml(system)
-    buf = io.BytesIO()
-    nx.write_graphml(system_to_graph(system), buf)
+    parts = network_parts(system)
+    data = None if parts is None else graphml_bytes(*parts)
+    if data is None:
+        import networkx as nx
+
+        buf = io.BytesIO()
+        nx.write_graphml(system_to_graph(system), buf)
+        data = buf.getvalue()
     with atomic_write(path, "wb") as fh:
-        fh.write(buf.getvalue())
+        fh.write(data)

@@ -17,7 +17,7 @@ import numpy as np
 from netctl.io._common import atomic_write, check_states, file_error, read_bytes
 from netctl.system import StructuredSystem
 
-__all__ = ["read_mtx", "write_mtx", "warn_names_not_kept"]
+__all__ = ["read_mtx", "write_mtx", "mtx_bytes", "shortest_real", "warn_names_not_kept", "SMALL_WRITE"]
 
 #: Refuse headers that claim more entries than this (protects memory).
 MAX_ENTRIES = 2_000_000_000
@@ -332,18 +332,94 @@ def warn_names_not_kept(system: StructuredSystem, path: object, fmt: str) -> Non
                       "node-link JSON or .toml to keep them.", stacklevel=3)
 
 
+#: Up to this many entries of ``A`` the file is written here, without importing scipy
+#: (its import costs more than the rest of a small ``convert``; benchmarks/RESULTS.md,
+#: small writers); above it scipy's compiled writer is faster.
+SMALL_WRITE = 20_000
+#: The comment line every file netctl writes carries (the orientation).
+_COMMENT = " netctl: A[i, j] != 0 means state j influences state i"
+
+
 def write_mtx(system: StructuredSystem, path: str | os.PathLike[str]) -> None:
     """Write ``A`` as a Matrix Market coordinate file (pattern unless weighted).
 
     The format holds no names: a warning says so unless the names are ``x0, x1, ...``.
+    Up to :data:`SMALL_WRITE` entries the file is built by :func:`mtx_bytes`, the same
+    bytes as scipy's ``mmwrite`` writes for larger ones.
     """
-    import scipy.io
-    import scipy.sparse as sp
-
     warn_names_not_kept(system, path, "Matrix Market")
-    A = sp.coo_matrix(system.A)
-    buf = io.BytesIO()
-    scipy.io.mmwrite(buf, A, field="real" if system.weighted else "pattern",
-                     comment=" netctl: A[i, j] != 0 means state j influences state i")
+    if system.pattern("A").nnz <= SMALL_WRITE:
+        data = mtx_bytes(system)
+    else:
+        import scipy.io
+        import scipy.sparse as sp
+
+        buf = io.BytesIO()
+        scipy.io.mmwrite(buf, sp.coo_matrix(system.A),
+                         field="real" if system.weighted else "pattern", comment=_COMMENT)
+        data = buf.getvalue()
     with atomic_write(path, "wb") as fh:
-        fh.write(buf.getvalue())
+        fh.write(data)
+
+
+def mtx_bytes(system: StructuredSystem) -> bytes:
+    """``A`` as Matrix Market coordinate text, without scipy: the bytes of scipy's
+    ``mmwrite(coo_matrix(A), field=..., comment=...)`` (scipy >= 1.12).
+
+    As scipy does, a matrix of fewer than 100 states that equals its transpose is written
+    ``symmetric`` (or, with opposite weights across the diagonal and none on it,
+    ``skew-symmetric``) with the entries on and below the diagonal only; larger ones are
+    ``general``. Entries in row order; weights as the shortest decimal that reads back as
+    the same double, in the form ``d.dddE±x`` (``E0`` left out).
+    """
+    from netctl._csr import transpose_pattern
+
+    A = system.pattern("A")
+    n = A.shape[0]
+    rows = np.repeat(np.arange(1, n + 1, dtype=np.int64), np.diff(A.indptr))
+    cols = A.indices + 1
+    vals = A.data
+    symmetry = "general"
+    if n < 100:  # scipy looks for symmetry below 100 rows and columns only
+        T = transpose_pattern(A)
+        if np.array_equal(A.indptr, T.indptr) and np.array_equal(A.indices, T.indices):
+            if np.array_equal(A.data, T.data):
+                symmetry = "symmetric"
+            elif not np.any(rows == cols) and np.array_equal(A.data, -T.data):
+                symmetry = "skew-symmetric"
+    if symmetry != "general":
+        lower = rows >= cols
+        rows, cols, vals = rows[lower], cols[lower], vals[lower]
+    field = "real" if system.weighted else "pattern"
+    out = [f"%%MatrixMarket matrix coordinate {field} {symmetry}", f"%{_COMMENT}",
+           f"{n} {n} {rows.size}"]
+    if system.weighted:
+        text: dict[float, str] = {}
+        for r, c, v in zip(rows.tolist(), cols.tolist(), vals.tolist()):
+            t = text.get(v)
+            if t is None:
+                t = text[v] = shortest_real(v)
+            out.append(f"{r} {c} {t}")
+    else:
+        out += [f"{r} {c}" for r, c in zip(rows.tolist(), cols.tolist())]
+    return ("\n".join(out) + "\n").encode("ascii")
+
+
+def shortest_real(v: float) -> str:
+    """``v`` as Matrix Market files written by scipy hold it: the shortest decimal that
+    reads back as ``v`` (Python's ``repr`` finds the same digits), as ``d.ddd`` times a
+    power of ten written ``E±x``, left out when it is 0 (``1E-1``, ``2.5``, ``1E2``,
+    ``1.2345E17``, ``-0``)."""
+    r = repr(float(v))
+    sign = "-" if r.startswith("-") else ""
+    mantissa, _, exp = r.lstrip("-").partition("e")
+    whole, _, frac = mantissa.partition(".")
+    digits = (whole + frac).lstrip("0")
+    stripped = digits.rstrip("0")
+    # v = int(stripped) * 10**power
+    power = (int(exp) if exp else 0) - len(frac) + len(digits) - len(stripped)
+    if not stripped:
+        return sign + "0"
+    e = power + len(stripped) - 1
+    head = stripped[0] + ("." + stripped[1:] if len(stripped) > 1 else "")
+    return sign + head + (f"E{e}" if e else "")

@@ -152,7 +152,10 @@ def graphml_text(system: StructuredSystem, marks: MapMarks, placement: Placement
 
     Node attributes: ``x``, ``y`` (map position; ``lon``/``lat`` when geographic), the
     flags of :func:`node_flags`, and the node table's own columns; edge attributes
-    ``kind`` and ``critical``. Written with networkx.
+    ``kind`` and ``critical``. The text networkx's ``generate_graphml(prettyprint=False)``
+    gives for that graph, built without importing networkx
+    (:mod:`netctl.io._graphtext`); a node-table value of another type than text,
+    integer, number or boolean goes through networkx itself.
 
     Examples
     --------
@@ -162,16 +165,16 @@ def graphml_text(system: StructuredSystem, marks: MapMarks, placement: Placement
     >>> 'attr.name="driver"' in graphml_text(s, map_marks(s), map_placement(s))
     True
     """
-    import networkx as nx
+    from netctl.io._graphtext import digraph_order, graphml_bytes
 
     n = system.n_states
     names = [str(s) for s in system.state_names]
-    g = nx.DiGraph()
     xy = np.asarray(placement.xy, np.float64)
     kx, ky = ("lon", "lat") if placement.geographic else ("x", "y")
     cols: dict[str, list[Any]] = {k: [_py(x) for x in v.tolist()] for k, v in
                                   system.nodes.items() if k not in (kx, ky)}
     flags = {k: v.tolist() for k, v in node_flags(system, marks).items()}
+    rows: list[dict[str, Any]] = []
     for i in range(n):
         attrs: dict[str, Any] = {kx: float(xy[i, 0]), ky: float(xy[i, 1])}
         for k, col in cols.items():
@@ -179,8 +182,20 @@ def graphml_text(system: StructuredSystem, marks: MapMarks, placement: Placement
                 attrs[k] = col[i]
         for k, col in flags.items():
             attrs[k] = col[i]
-        g.add_node(names[i], **attrs)
+        rows.append(attrs)
     src, dst, kind, critical = link_kinds(system, marks)
-    for u, v, k, c in zip(src.tolist(), dst.tolist(), kind.tolist(), critical.tolist()):
-        g.add_edge(names[u], names[v], kind=k, critical=c)
+    links = [{"kind": k, "critical": c} for k, c in zip(kind.tolist(), critical.tolist())]
+    order = digraph_order(src, dst, n)
+    if order is not None:
+        data = graphml_bytes(names, rows, src[order].tolist(), dst[order].tolist(),
+                             [links[k] for k in order.tolist()], pretty=False)
+        if data is not None:
+            return data.decode("utf-8")
+    import networkx as nx
+
+    g = nx.DiGraph()
+    for name, attrs in zip(names, rows):
+        g.add_node(name, **attrs)
+    for u, v, link in zip(src.tolist(), dst.tolist(), links):
+        g.add_edge(names[u], names[v], **link)
     return "\n".join(nx.generate_graphml(g, prettyprint=False)) + "\n"
