@@ -369,8 +369,9 @@ def mtx_bytes(system: StructuredSystem) -> bytes:
     As scipy does, a matrix of fewer than 100 states that equals its transpose is written
     ``symmetric`` (or, with opposite weights across the diagonal and none on it,
     ``skew-symmetric``) with the entries on and below the diagonal only; larger ones are
-    ``general``. Entries in row order; weights as the shortest decimal that reads back as
-    the same double, in the form ``d.dddE±x`` (``E0`` left out).
+    ``general``; a matrix without entries is ``real``. Entries in row order; weights as
+    the shortest decimal that reads back as the same double, in the form ``d.dddE±x``
+    (``E0`` left out).
     """
     from netctl._csr import transpose_pattern
 
@@ -390,7 +391,8 @@ def mtx_bytes(system: StructuredSystem) -> bytes:
     if symmetry != "general":
         lower = rows >= cols
         rows, cols, vals = rows[lower], cols[lower], vals[lower]
-    field = "real" if system.weighted else "pattern"
+    # scipy tells a pattern by its missing values, so a matrix without entries is 'real'
+    field = "real" if system.weighted or rows.size == 0 else "pattern"
     out = [f"%%MatrixMarket matrix coordinate {field} {symmetry}", f"%{_COMMENT}",
            f"{n} {n} {rows.size}"]
     if system.weighted:
