@@ -11,9 +11,9 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
-from netctl.commands._options import links_text
 from netctl.commands._emit import emit
 from netctl.commands._load import load_system
+from netctl.commands._options import UsageError, links_text
 
 __all__ = ["register"]
 
@@ -23,17 +23,39 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
     from netctl.io import FORMATS
 
     p = subparsers.add_parser(name, parents=[common], help=help)
-    p.add_argument("output", metavar="OUT", help="file to write; its format comes from the "
-                   "name (.csv .toml .mtx .npz .npy .matrix.csv .graphml .gml .json, "
-                   "optionally .gz) or from --to")
+    # OUT is required, but checked by _cmd_convert, so that a missing OUT with --out given
+    # (as `map --out` names its file) gets a message with the fix, not argparse's bare one
+    p.add_argument("output", metavar="OUT", nargs="?", default=None,
+                   help="file to write; its format comes from the name (.csv .toml .mtx "
+                   ".npz .npy .matrix.csv .graphml .gml .json, optionally .gz) or from --to")
     p.add_argument("--to", choices=sorted(k for k, v in FORMATS.items() if v[1]),
                    default=None, help="output format (default: from OUT's name)")
     p.set_defaults(func=_cmd_convert)
+    # the usage line shows OUT as required, as it is (not "[OUT]")
+    p.usage = p.format_usage().removeprefix("usage: ").rstrip("\n").replace(" [OUT]", " OUT")
+
+
+def _missing_output(args: argparse.Namespace) -> str:
+    """The message for a convert without OUT: what is expected, what was found, the fix."""
+    import shlex
+
+    src = shlex.quote(args.file)
+    if args.out:
+        return (f"convert expects the file to write as its second positional argument "
+                f"(netctl convert IN OUT), and found only the input {args.file!r} with "
+                f"--out {args.out!r}; for convert, --out FILE means 'also write the result "
+                "of the run as JSON to FILE', not the converted network. Write: netctl "
+                f"convert {src} {shlex.quote(args.out)}")
+    return (f"convert expects the file to write as its second positional argument "
+            f"(netctl convert IN OUT), and found only the input {args.file!r}; OUT's name "
+            f"gives its format. Write, e.g.: netctl convert {src} network.graphml")
 
 
 def _cmd_convert(args: argparse.Namespace) -> int:
     from netctl.io import detect_format, write
 
+    if args.output is None:  # before any work
+        raise UsageError(_missing_output(args))
     system = load_system(args)
     fmt_in = args.format or detect_format(args.file)
     fmt_out = args.to or detect_format(args.output)
