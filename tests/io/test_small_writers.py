@@ -340,16 +340,27 @@ def test_shortest_real_matches_scipy_on_random_doubles():
     assert [shortest_real(v) for v in vals.tolist()] == written
 
 
-def test_large_mtx_still_goes_through_scipy(tmp_path, monkeypatch):
-    """Above SMALL_WRITE entries scipy's compiled writer is used, with the same bytes."""
+@pytest.mark.parametrize("weighted, limit", [(True, 22), (False, 2)])
+def test_large_mtx_still_goes_through_scipy(tmp_path, monkeypatch, weighted, limit):
+    """Above SMALL_WRITE weighted entries (ten times as many for a pattern) scipy's
+    compiled writer is used, with the same bytes as the small writer."""
     from netctl.io import mtx
 
-    s = _tricky_system(True)
-    monkeypatch.setattr(mtx, "SMALL_WRITE", 3)
+    s = _tricky_system(weighted)  # 23 entries
+    want = mtx_bytes(s)
+
+    def refuse(system):
+        raise AssertionError("the small writer ran above SMALL_WRITE")
+
+    monkeypatch.setattr(mtx, "SMALL_WRITE", limit)
+    monkeypatch.setattr(mtx, "mtx_bytes", refuse)
     out = tmp_path / "n.mtx"
     with pytest.warns(UserWarning):
         write(s, out)
-    assert out.read_bytes() == mtx_bytes(s)
+    assert out.read_bytes() == want
+    monkeypatch.setattr(mtx, "SMALL_WRITE", limit + 1)  # at the limit: the small writer
+    with pytest.raises(AssertionError, match="small writer ran"), pytest.warns(UserWarning):
+        write(s, out)
 
 
 # --------------------------------------------------------------------------- the map's export
