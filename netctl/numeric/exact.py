@@ -6,9 +6,9 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.linalg as la
 
 from netctl.errors import OptionError
+from netctl.numeric import _small_linalg as sl
 from netctl.numeric._tasks import Progress, announce
 from netctl.numeric.prime_field import MERSENNE_61, krylov_dimension_mod_p
 from netctl.numeric.rank import _dense, _weights_of, staircase_dimension
@@ -168,7 +168,7 @@ def _dependent_rows(M: np.ndarray, rows: np.ndarray, count: int) -> np.ndarray:
     """The ``count`` rows among ``rows`` of ``M`` that pivoted QR leaves last."""
     if count <= 0 or rows.size == 0:
         return np.zeros(0, np.int64)
-    _, _, piv = la.qr(M[rows].conj().T, mode="economic", pivoting=True)
+    piv = sl.qr_pivots(M[rows].conj().T, rows.size - count)
     return np.sort(rows[piv[rows.size - count:]]).astype(np.int64)
 
 
@@ -305,7 +305,7 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         return ExactControllability(0, 0, 0j, np.zeros(0, np.int64), True, np.inf, (),
                                     symmetric, names, weights, "empty system", True, np.inf,
                                     "exact")
-    scale = max(float(la.norm(A, 2)), 1e-300)
+    scale = max(sl.norm2(A), 1e-300)
     t = 1e3 * n * _EPS * scale if tol is None else float(tol)
     rat = rational_matrix(A) if arithmetic != "float" else None
     use_exact = rat is not None and n <= EXACT_LIMIT
@@ -412,6 +412,14 @@ def exact_controllability(system: StructuredSystem, *, tol: float | None = None,
         unreachable_mode=None if bad_mode is None else complex(bad_mode))
 
 
+def _simple(clusters: list[Cluster], lam: np.ndarray) -> list[int]:
+    """Positions in ``lam`` of the simple eigenvalues (their left eigenvectors are the
+    ones used): a float cluster's own index, else the nearest computed eigenvalue."""
+    return sorted({int(c.indices[0]) if c.indices.size else
+                   int(np.argmin(np.abs(lam - c.eigenvalue)))
+                   for c in clusters if c.algebraic == 1})
+
+
 def _fill_on_sites(A: np.ndarray, clusters: list[Cluster], allowed: np.ndarray,
                    tol: float) -> tuple[set[int] | None, complex | None]:
     """Drivers drawn from ``allowed`` only (floating point), or ``(None, eigenvalue)``
@@ -426,7 +434,7 @@ def _fill_on_sites(A: np.ndarray, clusters: list[Cluster], allowed: np.ndarray,
     it is not allowed.
     """
     n = A.shape[0]
-    lam, VL = la.eig(A, left=True, right=False)
+    lam, VL = sl.eig_left(A, cols=lambda lam: _simple(clusters, lam))
     chosen: set[int] = set()
     for c in sorted(clusters, key=lambda c: (-c.geometric, c.eigenvalue.real,
                                              c.eigenvalue.imag)):
@@ -445,7 +453,7 @@ def _fill_on_sites(A: np.ndarray, clusters: list[Cluster], allowed: np.ndarray,
         if not rest:
             continue
         M = (A - c.eigenvalue * np.eye(n))[rest]
-        r = la.qr(M.T, mode="r")[0]
+        r = sl.qr_r(M.T)
         diag = np.abs(np.diagonal(r))
         dep = [rest[k] for k in range(len(rest)) if k >= diag.size or diag[k] <= tol]
         if any(not allowed[i] for i in dep):
@@ -467,11 +475,11 @@ def _float_pbh_fill(A: np.ndarray, clusters: list[Cluster], chosen: set[int], to
     n = A.shape[0]
     chosen = set(chosen)
     if symmetric:
-        lam_r, V = la.eigh(A)
+        lam_r, V = sl.eigh(A)
         lam, VL = lam_r.astype(complex), V.astype(complex)
     else:
         announce(progress, "left eigenvectors", 0, 1)
-        lam, VL = la.eig(A, left=True, right=False)
+        lam, VL = sl.eig_left(A, cols=lambda lam: _simple(clusters, lam))
         announce(progress, "left eigenvectors", 1, 1)
     announce(progress, "PBH certification", 0, len(clusters))
     for done, c in enumerate(sorted(clusters, key=lambda c: (-c.geometric, c.eigenvalue.real,
@@ -488,7 +496,7 @@ def _float_pbh_fill(A: np.ndarray, clusters: list[Cluster], chosen: set[int], to
         if rest.size == 0:
             continue
         Mi = A - c.eigenvalue * np.eye(n)
-        s = la.svd(Mi[rest], compute_uv=False)
+        s = sl.svdvals(Mi[rest])
         deficit = int(np.count_nonzero(s <= tol)) + max(0, rest.size - s.size)
         chosen.update(_dependent_rows(Mi, rest, deficit).tolist())
     announce(progress, "PBH certification", len(clusters), len(clusters))

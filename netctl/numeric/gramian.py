@@ -24,11 +24,11 @@ import math
 from typing import Any
 
 import numpy as np
-import scipy.linalg as la
 from netctl._jit import THRESHOLD, always_compiled, always_python, njit
 from dataclasses import dataclass
 
 from netctl.errors import OptionError
+from netctl.numeric import _small_linalg as sl
 
 __all__ = ["lyapunov_factor", "finite_horizon_factor", "gramian_factor", "gramian_mp",
            "factor_eigenvalues", "PRECISION_BUDGET", "max_precision", "SmallestEigenvalue",
@@ -101,7 +101,7 @@ def _real_factor(L: np.ndarray) -> np.ndarray:
     G = np.hstack([L.real, L.imag]) if np.iscomplexobj(L) else L
     if G.shape[1] == 0:
         return np.zeros((n, n))
-    R = la.qr(G.T, mode="r")[0]
+    R = sl.qr_r(G.T)
     F = np.zeros((n, n))
     F[:, :min(n, R.shape[0])] = R[:n].T
     return F
@@ -131,11 +131,11 @@ def lyapunov_factor(A: np.ndarray, B: np.ndarray) -> np.ndarray:
     n = A.shape[0]
     if n == 0:
         return np.zeros((0, 0))
-    S, Q = la.schur(A.conj().T.astype(complex), output="complex")
+    S, Q = sl.schur_complex(A.conj().T)
     C = B.conj().T @ Q
     R = np.zeros((n, n), complex)
     if C.shape[0]:
-        Rc = la.qr(C, mode="r")[0]
+        Rc = sl.qr_r(C)
         R[:min(n, Rc.shape[0])] = Rc[:n]
     # the kernel's path (its Python body or numba's) is chosen by size alone, never by
     # whether numba happens to be loaded in this process: the two round differently, and
@@ -168,7 +168,7 @@ def finite_horizon_factor(A: np.ndarray, B: np.ndarray, horizon: float) -> np.nd
     if n == 0:
         return np.zeros((0, 0))
     T = float(horizon)
-    panels = max(1, int(math.ceil(2.0 * float(la.norm(A, 2)) * T)))
+    panels = max(1, int(math.ceil(2.0 * sl.norm2(A) * T)))
     h = T / panels
     x, w = np.polynomial.legendre.leggauss(_NODES)
     t_local = (x + 1.0) * h / 2.0
@@ -183,7 +183,7 @@ def finite_horizon_factor(A: np.ndarray, B: np.ndarray, horizon: float) -> np.nd
         dt = round(t - prev, 15)
         E = step_cache.get(dt)
         if E is None:
-            E = la.expm(A * (t - prev))
+            E = sl.expm(A * (t - prev), n)
             step_cache[dt] = E
         X = E @ X
         prev = t
@@ -215,7 +215,7 @@ def factor_eigenvalues(L: np.ndarray) -> np.ndarray:
     """
     if L.size == 0:
         return np.zeros(L.shape[0])
-    s = la.svd(L, compute_uv=False)
+    s = sl.svdvals(L)
     return np.sort(s ** 2)
 
 
@@ -248,7 +248,7 @@ def gramian_mp(A: np.ndarray, B: np.ndarray, horizon: float | None, digits: int)
     import mpmath
 
     n = A.shape[0]
-    norm_a = float(la.norm(A, 2)) if n else 0.0
+    norm_a = sl.norm2(A) if n else 0.0
     with mpmath.workdps(digits + 10 + int(math.ceil(norm_a * (horizon or 1.0) / 2.302))):
         Am = mpmath.matrix(A.tolist())
         Bm = mpmath.matrix(B.tolist()) if B.size else mpmath.matrix(n, 0)
@@ -380,13 +380,13 @@ def _gramian_vanloan(A: np.ndarray, B: np.ndarray, horizon: float | None = None
     n = A.shape[0]
     Q = B @ B.T
     if horizon is None:
-        W = la.solve_continuous_lyapunov(A, -Q)
+        W = sl.solve_continuous_lyapunov(A, -Q)
     else:
         M = np.zeros((2 * n, 2 * n))
         M[:n, :n] = -A
         M[:n, n:] = Q
         M[n:, n:] = A.T
-        F = la.expm(M * float(horizon))
+        F = sl.expm(M * float(horizon), n)
         W = F[n:, n:].T @ F[:n, n:]
     return (W + W.T) / 2
 
@@ -394,13 +394,13 @@ def _gramian_vanloan(A: np.ndarray, B: np.ndarray, horizon: float | None = None
 def _is_hurwitz(A: np.ndarray) -> bool:
     if A.shape[0] == 0:
         return True
-    return bool(np.max(la.eigvals(A).real) < -1e-9 * max(1.0, float(np.linalg.norm(A))))
+    return bool(np.max(sl.eigvals(A).real) < -1e-9 * max(1.0, float(np.linalg.norm(A))))
 
 
 def _choose_horizon(A: np.ndarray, horizon: float | None) -> tuple[float | None, str]:
     if horizon is not None and horizon == np.inf:
         if not _is_hurwitz(A):
-            lam = la.eigvals(A)
+            lam = sl.eigvals(A)
             worst = lam[int(np.argmax(lam.real))]
             what = ("singular (an eigenvalue is 0)" if np.min(np.abs(lam)) <=
                     1e-12 * max(1.0, float(np.linalg.norm(A))) else
@@ -453,10 +453,10 @@ def single_input_plan(A: np.ndarray, horizon: float | None) -> tuple[Any, ...]:
     """
     A = np.asarray(A, float)
     if horizon is None:
-        S, Q = la.schur(A.astype(complex), output="complex")
+        S, Q = sl.schur_complex(A)
         return ("lyapunov", S, Q)
     T = float(horizon)
-    panels = max(1, int(math.ceil(2.0 * float(la.norm(A, 2)) * T))) if A.size else 1
+    panels = max(1, int(math.ceil(2.0 * sl.norm2(A) * T))) if A.size else 1
     h = T / panels
     x, w = np.polynomial.legendre.leggauss(_NODES)
     times = (np.arange(panels)[:, None] * h + ((x + 1.0) * h / 2.0)[None, :]).ravel()
@@ -469,7 +469,7 @@ def single_input_plan(A: np.ndarray, horizon: float | None) -> tuple[Any, ...]:
         dt = round(t - prev, 15)
         if dt not in index:
             index[dt] = len(steps)
-            steps.append(la.expm(A * (t - prev)))
+            steps.append(sl.expm(A * (t - prev), A.shape[0]))
         order.append(index[dt])
         prev = t
     return ("quadrature", steps, np.asarray(order, np.int64), np.sqrt(weights))
@@ -489,10 +489,8 @@ def single_input_gramian(plan: tuple[Any, ...], i: int) -> np.ndarray:
     if plan[0] == "lyapunov":
         _, S, Q = plan
         c = np.conj(Q[int(i), :])[:, None]           # Q^H e_i
-        Y, scale, info = la.lapack.ztrsyl(S, S, -(c @ c.conj().T), trana="N", tranb="C")
-        if info < 0:  # pragma: no cover - bad arguments: a programming error
-            raise RuntimeError(f"ztrsyl failed (info {info})")
-        W = (Q @ (Y / scale) @ Q.conj().T).real
+        Y = sl.sylvester_triangular(S, -(c @ c.conj().T))
+        W = (Q @ Y @ Q.conj().T).real
     else:
         _, steps, order, sw = plan
         n = steps[0].shape[0] if steps else 0

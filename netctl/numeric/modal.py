@@ -147,7 +147,7 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
     >>> [round(m.reach, 6) for m in modal_controllability(s).modes]
     [0.707107, 0.707107]
     """
-    import scipy.linalg as la  # left eigenvectors (LAPACK geev); loaded only when used
+    from netctl.numeric import _small_linalg as sl  # NumPy alone on small matrices
 
     A, B = _dense(system)
     n, m = B.shape
@@ -158,13 +158,31 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
                            _weights_of(system))
     col_norm = np.linalg.norm(B, axis=0)
     Bn = B / np.where(col_norm > 0, col_norm, 1.0)
-    Q = la.orth(B) if m else np.zeros((n, 0))
+    Q = sl.orth(B) if m else np.zeros((n, 0))
+
+    def grouped(lam: np.ndarray) -> list[np.ndarray]:
+        return (eigen_clusters(lam, radius) if cluster_tol is not None
+                else [c.indices for c in jordan_clusters(A, lam, progress=progress)])
+
     announce(progress, "eigen-decomposition", 0, 1)
-    lam, VL = la.eig(A, left=True, right=False)
+    ok: np.ndarray | None = None
+    if sl.small(n):  # left eigenvectors from NumPy, each checked (issue 15)
+        lam = sl.eigvals(A)
+        VL, ok = sl.left_eigvecs(A, lam)
+    else:
+        import scipy.linalg as la  # left eigenvectors (LAPACK geev)
+
+        lam, VL = la.eig(A, left=True, right=False)
     announce(progress, "eigen-decomposition", 1, 1)
+    groups = grouped(lam)
+    if ok is not None and not all(ok[int(g[0])] for g in groups if g.size == 1):
+        import scipy.linalg as la  # a single mode's left eigenvector is not clean
+
+        lam2, VL = la.eig(A, left=True, right=False)
+        if not np.array_equal(lam2, lam):  # the same geev: equal unless builds differ
+            lam = lam2
+            groups = grouped(lam)
     modes: list[ModeReach] = []
-    groups = (eigen_clusters(lam, radius) if cluster_tol is not None
-              else [c.indices for c in jordan_clusters(A, lam, progress=progress)])
     for done, idx in enumerate(groups):
         announce(progress, "mode reach", done, len(groups))
         mu = complex(np.mean(lam[idx]))
@@ -178,14 +196,14 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
         spread = float(np.max(np.abs(lam[idx] - mu)))
         W, S = cluster_subspace(A, lam, idx, max(radius, 2 * spread))
         k = S.shape[0]
-        U, sv, _ = la.svd(S - mu * np.eye(k))
+        U, sv, _ = sl.svd(S - mu * np.eye(k))
         null = sv <= max(1e3 * n * np.finfo(float).eps * nrm, 10 * spread ** idx.size)
         if not null.any():
             null[-1] = True
         Y = W @ U[:, null]              # orthonormal basis of the left eigenspace
         g = int(Y.shape[1])
         M = Q.conj().T @ Y if Q.shape[1] else np.zeros((0, g))
-        s = la.svd(M, compute_uv=False) if M.size else np.zeros(0)
+        s = sl.svdvals(M) if M.size else np.zeros(0)
         reach = float(s.min()) if s.size == g else 0.0
         per = np.abs(Y.conj().T @ Bn).max(axis=0) if m else np.zeros(0)
         modes.append(ModeReach(mu, int(idx.size), g, min(reach, 1.0), per, _support(Y)))

@@ -6,8 +6,8 @@ from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
-import scipy.linalg as la
 
+from netctl.numeric import _small_linalg as sl
 from netctl.numeric.rank import _dense
 from netctl.system import StructuredSystem
 
@@ -65,14 +65,14 @@ def node_controllability(system: StructuredSystem) -> NodeControllability:
     n = A.shape[0]
     if n == 0:
         return NodeControllability(np.zeros(0), np.zeros(0), 1.0, ())
-    scale = 1.0 + float(la.svdvals(A)[0])
+    scale = 1.0 + float(sl.svdvals(A)[0])
     As = A / scale
-    X = la.solve_discrete_lyapunov(As.T, np.eye(n))
+    X = sl.solve_discrete_lyapunov(As.T, np.eye(n))
     if np.array_equal(A, A.T):
-        lam, V = la.eigh(As)
+        lam, V = sl.eigh(As)
         mag = lam ** 2
     else:
-        lam_c, Vc = la.eig(As)
+        lam_c, Vc = sl.eig(As)
         V = np.abs(Vc / np.linalg.norm(Vc, axis=0))
         mag = np.abs(lam_c) ** 2
     modal = (V ** 2) @ (1.0 - mag)

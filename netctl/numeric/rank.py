@@ -408,7 +408,12 @@ def eigen_clusters(lam: np.ndarray, radius: float) -> list[np.ndarray]:
 def cluster_subspace(A: np.ndarray, lam: np.ndarray, idx: np.ndarray, radius: float
                      ) -> tuple[np.ndarray, np.ndarray]:
     """Orthonormal basis ``W`` (n x k) of the left invariant subspace of a cluster and
-    ``S`` with ``W^H A = S W^H`` (ordered complex Schur form of ``A^H``)."""
+    ``S`` with ``W^H A = S W^H`` (ordered complex Schur form of ``A^H``). A cluster of
+    every eigenvalue of a matrix of at most :data:`SMALL_STATES` rows has the whole
+    space as its invariant subspace: ``W = I``, ``S = A`` exactly (no scipy import)."""
+    n = A.shape[0]
+    if idx.size == n and n <= SMALL_STATES:
+        return np.eye(n, dtype=complex), np.array(A, dtype=complex)
     import scipy.linalg as la
 
     mu = lam[idx]

@@ -114,8 +114,8 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
        perturbation theory for eigenvalues of matrices with arbitrary Jordan structure",
        SIAM J. Matrix Anal. Appl. 18(4):793-817, 1997. doi:10.1137/S0895479895294666
     """
-    import scipy.linalg as la  # here, not at import: reports and checks that need no
-    # clusters load no scipy.linalg (issue 15)
+    from netctl.numeric import _small_linalg as sl  # NumPy alone on small matrices
+    # (issue 15): no scipy.linalg import there
 
     A = np.asarray(A)
     n = A.shape[0]
@@ -124,11 +124,11 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
     if lam is None:
         if progress is not None:
             progress("eigenvalues", 0, 1)
-        lam = la.eigvalsh(A).astype(complex) if symmetric else la.eigvals(A)
+        lam = sl.eigvalsh(A).astype(complex) if symmetric else sl.eigvals(A)
         if progress is not None:
             progress("eigenvalues", 1, 1)
     lam = np.asarray(lam, complex)
-    scale = max(float(la.norm(A, 2)), 1e-300)
+    scale = max(sl.norm2(A), 1e-300)
     kmax = 1 if symmetric else min(MAX_BLOCK, n)
     rows: list[int] = []
     cols: list[int] = []
@@ -162,7 +162,7 @@ def jordan_clusters(A: np.ndarray, lam: np.ndarray | None = None, *,
         if progress is not None:
             progress("cluster ranks", ranked, multiple)
         ranked += 1
-        s = la.svd(A - mu * np.eye(n), compute_uv=False)
+        s = sl.svdvals(A - mu * np.eye(n))
         geo = int(np.count_nonzero(s <= tol))
         geo = max(1, min(geo, int(idx.size)))
         kept = float(s[n - geo - 1]) if n - geo - 1 >= 0 else np.inf
