@@ -55,9 +55,10 @@ _EPS = float(np.finfo(float).eps)
 #: of the problem: the size of the rounding in forming the residual itself, about what
 #: LAPACK's backward-stable routines leave (common practice, no source)
 RESIDUAL = 10.0
-#: largest 1-norm condition number of the Pade denominator accepted; Higham [1] bounds
-#: it by a small constant below theta_m (from memory), so this is a guard
-PADE_COND = 10.0
+#: the Pade denominator's 1-norm condition number may be at most PADE_COND * e^||X||_1:
+#: q_m(X) ~ e^(-X/2), so it is about e^||X||_1 at most (at most 70 below theta_13) when
+#: the approximant is what Higham's bound [1] assumes; a guard (common practice, no source)
+PADE_COND = 2.0
 #: QR with column pivoting: a pivot whose column norm is not ahead of the runner-up by
 #: this relative gap is a tie that LAPACK's norm downdating (accurate to about
 #: sqrt(eps)) might break the other way; scipy decides then (our choice, no source)
@@ -180,7 +181,7 @@ def expm_pade(X: np.ndarray) -> np.ndarray | None:
     r"""``e^X`` by one diagonal Pade approximant, no scaling (Higham 2005 [1]_), or
     ``None`` when ``||X||_1`` exceeds every ``theta_m`` (squarings would be needed,
     whose rounding can grow for a nonnormal ``X``: scipy's algorithm then) or the
-    denominator is not well conditioned (``kappa_1 > PADE_COND``).
+    denominator is worse conditioned than ``PADE_COND * e^||X||_1``.
 
     The degree is the smallest ``m`` in 3, 5, 7, 9, 13 with ``||X||_1 <= theta_m``, for
     which the approximant is ``e^(X + dX)`` with ``||dX|| <= u ||X||`` (unit roundoff
@@ -216,7 +217,7 @@ def expm_pade(X: np.ndarray) -> np.ndarray | None:
         U = X @ sum(b[2 * k + 1] * powers[k] for k in range((m + 1) // 2))
         V = sum(b[2 * k] * powers[k] for k in range(m // 2 + 1))
     Q = V - U
-    if not np.linalg.cond(Q, 1) <= PADE_COND:
+    if not np.linalg.cond(Q, 1) <= PADE_COND * math.exp(norm1):
         return None
     return np.linalg.solve(Q, V + U)
 

@@ -371,6 +371,11 @@ def _gramian_vanloan(A: np.ndarray, B: np.ndarray, horizon: float | None = None
                      ) -> np.ndarray:
     """Unfactored Gramian (Bartels-Stewart or Van Loan [1]_): fast, for greedy gains.
 
+    On a small system (:func:`netctl.numeric._small_linalg.small`) whose Van Loan
+    exponential would need squarings (``||M T||_1`` above ``theta_13``), the finite
+    horizon Gramian is the quadrature of :func:`finite_horizon_factor` instead, whose
+    steps never do (NumPy alone, issue 15).
+
     References
     ----------
     .. [1] C. F. Van Loan, IEEE TAC 23(3):395-404, 1978. doi:10.1109/TAC.1978.1101743
@@ -386,8 +391,14 @@ def _gramian_vanloan(A: np.ndarray, B: np.ndarray, horizon: float | None = None
         M[:n, :n] = -A
         M[:n, n:] = Q
         M[n:, n:] = A.T
-        F = sl.expm(M * float(horizon), n)
-        W = F[n:, n:].T @ F[:n, n:]
+        F = sl.expm_pade(M * float(horizon)) if sl.small(n) else None
+        if F is None and sl.small(n) and n:
+            L = finite_horizon_factor(A, B, float(horizon))
+            W = L @ L.T
+        else:
+            if F is None:
+                F = sl.expm(M * float(horizon), n)
+            W = F[n:, n:].T @ F[:n, n:]
     return (W + W.T) / 2
 
 
