@@ -154,7 +154,7 @@ def qr_r(G: np.ndarray) -> np.ndarray:
     """The triangular factor ``R`` of ``G = Q R`` (``geqrf``; ``min(m, n)`` rows)."""
     G = np.asarray(G)
     if small(min(G.shape)):
-        return np.linalg.qr(G, mode="r")
+        return np.asarray(np.linalg.qr(G, mode="r"))
     return _scipy().qr(G, mode="r")[0][:min(G.shape)]  # type: ignore[no-any-return]
 
 

@@ -184,8 +184,6 @@ def rational_matrix(A: np.ndarray) -> tuple[Any, int] | None:
     .. [1] W. B. Hart, FLINT: Fast Library for Number Theory, https://flintlib.org
        (exact integer matrices through python-flint).
     """
-    import flint
-
     A = np.asarray(A)
     if A.size and not np.all(np.isfinite(A)) or np.iscomplexobj(A):
         return None
@@ -199,6 +197,8 @@ def rational_matrix(A: np.ndarray) -> tuple[Any, int] | None:
     den = 1
     for f in fr.values():
         den = den * f.denominator // np.gcd(den, f.denominator)
+    import flint  # only for a rational matrix: sampled weights never need it
+
     ints = [[int(fr[v] * den) for v in row] for row in A.tolist()]
     return flint.fmpz_mat(ints) if ints else flint.fmpz_mat(0, 0), int(den)
 
