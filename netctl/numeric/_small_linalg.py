@@ -26,14 +26,16 @@ References
 .. [1] N. J. Higham, "The scaling and squaring method for the matrix exponential
    revisited", SIAM J. Matrix Anal. Appl. 26(4):1179-1193, 2005. doi:10.1137/04061101X
 .. [2] A. H. Al-Mohy, N. J. Higham, "A new scaling and squaring algorithm for the matrix
-   exponential", SIAM J. Matrix Anal. Appl. 31(3):970-989, 2009. doi:10.1137/09074721X (DOI from memory)
+   exponential", SIAM J. Matrix Anal. Appl. 31(3):970-989, 2009.
+   doi:10.1137/09074721X (DOI from memory)
 .. [3] R. H. Bartels, G. W. Stewart, "Solution of the matrix equation AX + XB = C",
    Comm. ACM 15(9):820-826, 1972. doi:10.1145/361573.361582
 .. [4] N. J. Higham, *Accuracy and Stability of Numerical Algorithms*, 2nd ed., SIAM,
    2002, ch. 16 (the residual of a Sylvester equation as its backward-error measure;
    from memory).
 .. [5] P. Businger, G. H. Golub, "Linear least squares solutions by Householder
-   transformations", Numer. Math. 7:269-276, 1965. doi:10.1007/BF01436084 (DOI from memory)
+   transformations", Numer. Math. 7:269-276, 1965. doi:10.1007/BF01436084 (DOI from
+   memory)
 """
 
 from __future__ import annotations
