@@ -15,7 +15,8 @@ after/before (on a shared machine the CPU ratio is the figure to quote).
 The commands: ``verify``, ``secure`` (the audit of a design), ``energy`` and ``modes``
 with their common options on the path ``a -> b -> c`` (``energy``/``modes`` without
 ``--weights`` are refused, exit 2, as a user meets them first), and the two dense
-verbs with sampled weights. ``--large N`` instead times ``verify``, ``energy`` and
+verbs with sampled weights (independent, with and without ``--inputs a``; laplacian;
+symmetric). ``--large N`` instead times ``verify``, ``energy`` and
 ``modes`` on a generated Erdos-Renyi network of N states (mean degree 6, seed 1), to
 check that nothing large got slower.
 """
@@ -74,6 +75,12 @@ def main() -> None:
                 "modes --inputs a (refused)": ["modes", f, "--inputs", "a"],
                 "energy --weights independent": ["energy", f, "--weights", "independent"],
                 "modes --weights independent": ["modes", f, "--weights", "independent"],
+                "energy --weights independent --inputs a": ["energy", f, "--weights",
+                                                            "independent", "--inputs", "a"],
+                "modes --weights independent --inputs a": ["modes", f, "--weights",
+                                                          "independent", "--inputs", "a"],
+                "energy --weights laplacian": ["energy", f, "--weights", "laplacian"],
+                "modes --weights symmetric": ["modes", f, "--weights", "symmetric"],
             }
         cases = {k: v for k, v in cases.items() if args.only in k}
         load = os.getloadavg()
@@ -82,12 +89,12 @@ def main() -> None:
               f"{time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())}, load average "
               f"{load[0]:.2f} {load[1]:.2f} {load[2]:.2f}; {args.runs} pairs after "
               f"{args.warmup} warm-up pair(s)")
-        print(f"{'command':34}{'before wall':>12}{'after wall':>12}{'before cpu':>12}"
+        print(f"{'command':42}{'before wall':>12}{'after wall':>12}{'before cpu':>12}"
               f"{'after cpu':>12}{'ratio wall':>12}{'ratio cpu':>11}")
         for name, tail in cases.items():
             med, rw, rc = in_turn([*cli, *tail], args.before, args.after, d, args.runs,
                                   args.warmup, ok=(0, 1, 2))
-            print(f"{name:34}{med['before'][0]:12.3f}{med['after'][0]:12.3f}"
+            print(f"{name:42}{med['before'][0]:12.3f}{med['after'][0]:12.3f}"
                   f"{med['before'][1]:12.3f}{med['after'][1]:12.3f}{rw:12.3f}{rc:11.3f}",
                   flush=True)
         load = os.getloadavg()
