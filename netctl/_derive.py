@@ -165,10 +165,15 @@ def dual(system: StructuredSystem) -> StructuredSystem:
 
 
 def with_self_loops(system: StructuredSystem) -> StructuredSystem:
-    """:meth:`StructuredSystem.with_self_loops` (see there)."""
-    import scipy.sparse as sp
-
+    """:meth:`StructuredSystem.with_self_loops` (see there): weight 1 where the diagonal
+    is empty, built from the stored arrays (:func:`netctl._csr.coo_pattern`: no scipy
+    import on small systems, issue 15)."""
+    P = system.pattern("A")
     n = system.n_states
-    A0 = system.A
-    add = np.where(A0.diagonal() == 0, 1.0, 0.0)
-    return system._replace(A=A0 + sp.dia_array((add[None, :], [0]), shape=(n, n)))
+    rows = np.repeat(np.arange(n, dtype=np.int64), np.diff(P.indptr))
+    has = np.zeros(n, bool)
+    has[rows[rows == P.indices]] = True  # a stored entry is never 0 (canonical)
+    add = np.flatnonzero(~has)
+    A, _ = coo_pattern(np.concatenate([rows, add]), np.concatenate([P.indices, add]),
+                       np.concatenate([P.data, np.ones(add.size)]), (n, n), count=False)
+    return system._replace(A=A)

@@ -438,6 +438,10 @@ WEIGHTED_NUMERIC = (
     ["modes", "{f}", "--weights", "independent", "--inputs", "a"],
     ["energy", "{f}", "--weights", "laplacian"], ["energy", "{f}", "--weights", "symmetric"],
     ["modes", "{f}", "--weights", "symmetric"], ["modes", "{f}", "--weights", "laplacian"],
+    # self-loops: a Hurwitz A (Schur form, Lyapunov solves), and the model built on NumPy
+    ["energy", "{f}", "--model", "self-loops", "--weights", "independent"],
+    ["modes", "{f}", "--model", "self-loops", "--weights", "independent"],
+    ["drivers", "{f}", "--model", "self-loops"],
 )
 
 

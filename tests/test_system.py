@@ -130,6 +130,31 @@ def test_self_loops_model_keeps_given_diagonal_weights():
     assert t.A[0, 0] == -3.0 and t.A[1, 1] == 1.0 and t.n_self_loops == 2
 
 
+@pytest.mark.parametrize("seed", range(40))
+def test_self_loops_model_is_scipys_sum_with_an_identity_on_the_empty_diagonal(seed):
+    """with_self_loops builds its pattern from the stored arrays (no scipy on small
+    systems): the same canonical arrays as scipy.sparse's A + diag(1 where A_ii = 0),
+    the reference library, on random weighted and 0/1 patterns (loops, none, all)."""
+    rng = np.random.default_rng(seed)
+    n = int(rng.integers(1, 30))
+    A = rng.standard_normal((n, n)) * (rng.random((n, n)) < rng.uniform(0.05, 0.5))
+    if seed % 3 == 0:
+        A = (A != 0).astype(float)
+    if seed % 5 == 0:
+        np.fill_diagonal(A, 2.0)
+    s = StructuredSystem.from_matrices(A, np.eye(n)[:, :1])
+    t = s.with_self_loops()
+    ref = sp.csr_array(A) + sp.dia_array((np.where(np.diag(A) == 0, 1.0, 0.0)[None, :], [0]),
+                                         shape=(n, n))
+    ref = sp.csr_array(ref)
+    ref.sort_indices()
+    got = t.pattern("A")
+    assert np.array_equal(got.indptr, ref.indptr)
+    assert np.array_equal(got.indices, ref.indices)
+    assert np.array_equal(got.data, ref.data)
+    assert t.weighted == s.weighted and t.n_self_loops == n
+
+
 def test_from_named_edges_orders_by_first_appearance():
     s = StructuredSystem.from_named_edges(["pump", "tank"], ["tank", "valve"], states=["spare"],
                                           inputs=["pump"])
