@@ -94,6 +94,27 @@ def _support(Y: np.ndarray) -> np.ndarray:
     return np.flatnonzero(mag > 1e-6 * top).astype(np.int64) if top > 0 else np.zeros(0, np.int64)
 
 
+#: reaches closer than this count as equal when ordering the modes (rounding: the same
+#: reach computed along two routes differs in the last bits; our choice, no source)
+REACH_TIE = 1e-12
+
+
+def _weakest_first(modes: list[ModeReach]) -> list[ModeReach]:
+    """The modes by reach, weakest first; reaches within :data:`REACH_TIE` of the first
+    of their run are a tie, ordered by eigenvalue (real, then imaginary part), so that
+    modes of equal reach (a spectrum symmetric about 0, say) come in the same order
+    whichever route computed them."""
+    modes = sorted(modes, key=lambda md: (md.reach, md.eigenvalue.real, md.eigenvalue.imag))
+    out: list[ModeReach] = []
+    start = 0
+    for k in range(1, len(modes) + 1):
+        if k == len(modes) or modes[k].reach - modes[start].reach > REACH_TIE:
+            out.extend(sorted(modes[start:k],
+                              key=lambda md: (md.eigenvalue.real, md.eigenvalue.imag)))
+            start = k
+    return out
+
+
 def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None = None,
                           tol: float = REACH_TOL, progress: Progress | None = None
                           ) -> ModalReport:
@@ -208,7 +229,7 @@ def modal_controllability(system: StructuredSystem, *, cluster_tol: float | None
         per = np.abs(Y.conj().T @ Bn).max(axis=0) if m else np.zeros(0)
         modes.append(ModeReach(mu, int(idx.size), g, min(reach, 1.0), per, _support(Y)))
     announce(progress, "mode reach", len(groups), len(groups))
-    modes.sort(key=lambda md: (md.reach, md.eigenvalue.real, md.eigenvalue.imag))
+    modes = _weakest_first(modes)
     return ModalReport(n_states=n, n_inputs=m, modes=tuple(modes), tolerance=tol,
                        state_names=tuple(system.state_names), input_names=tuple(system.input_names),
                        weights=_weights_of(system))

@@ -252,3 +252,28 @@ def test_node_average_controllability_against_truncated_sum(rng):
         total += P.T @ P
         P = As @ P
     np.testing.assert_allclose(r.average, np.diag(total), rtol=1e-10)
+
+
+@pytest.mark.parametrize("n", [2, 3, 4, 5, 8, 9])
+def test_modal_equal_reaches_come_in_eigenvalue_order_on_either_route(n, monkeypatch):
+    # the path graph's adjacency (weights 1 both ways), input on the first state: its
+    # eigenvalues 2 cos(k pi / (n + 1)) are symmetric about 0 and the eigenvector of k is
+    # sqrt(2 / (n + 1)) sin(j k pi / (n + 1)) (textbook closed form, e.g. G. Strang,
+    # Linear Algebra and Its Applications), so eigenvalues k and n + 1 - k have the same
+    # reach sqrt(2 / (n + 1)) sin(k pi / (n + 1)): a tie, to be listed by eigenvalue on
+    # the NumPy route (up to 64 states) and on SciPy's alike
+    from netctl.numeric import rank
+
+    A = np.eye(n, k=1) + np.eye(n, k=-1)
+    s = StructuredSystem.from_matrices(A, np.eye(n)[:, :1])
+    k = np.arange(1, n + 1)
+    want = sorted(zip(np.round(np.sqrt(2 / (n + 1)) * np.sin(k * np.pi / (n + 1)), 9),
+                      np.round(2 * np.cos(k * np.pi / (n + 1)), 9)))
+    orders = []
+    for small in (64, 0):
+        monkeypatch.setattr(rank, "SMALL_STATES", small)
+        r = modal_controllability(s)
+        got = [(round(m.reach, 9), round(m.eigenvalue.real, 9)) for m in r.modes]
+        assert got == want, small
+        orders.append([m.eigenvalue for m in r.modes])
+    assert np.array_equal(orders[0], orders[1])
