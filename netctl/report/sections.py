@@ -43,6 +43,10 @@ NULL_LIMIT = 20_000
 NULL_SAMPLES = 40
 NULL_FEWER_ABOVE = 5_000
 NULL_SAMPLES_LARGE = 10
+#: The same by links: a dense block of a few thousand states can carry 10^6 links, and
+#: each sample rewires and matches all of them (40 samples of 10^6 links: about 13 s).
+NULL_LINKS_LIMIT = 2_000_000
+NULL_FEWER_LINKS_ABOVE = 100_000
 #: Names listed per list (the JSON report lists all).
 LIST_LIMIT = 200
 #: What ``figures`` may be: every kind (PNG, and inline SVG where netctl draws one),
@@ -360,11 +364,15 @@ def null_model_section(ctx: ReportContext) -> Section | None:
     n = ctx.system.n_states
     if n < 10 or ctx.system.n_links == 0:
         return None
-    if n > NULL_LIMIT:
-        ctx.missing.append(f"null-model comparison (over {NULL_LIMIT} states; run "
-                           "netctl compare)")
+    links = ctx.system.n_links
+    if n > NULL_LIMIT or links > NULL_LINKS_LIMIT:
+        over = (f"{NULL_LIMIT} states" if n > NULL_LIMIT else f"{NULL_LINKS_LIMIT} links")
+        ctx.missing.append(f"null-model comparison (over {over}; run netctl compare)")
         return None
-    samples = NULL_SAMPLES if n <= NULL_FEWER_ABOVE else NULL_SAMPLES_LARGE
+    few = n > NULL_FEWER_ABOVE or links > NULL_FEWER_LINKS_ABOVE
+    samples = NULL_SAMPLES_LARGE if few else NULL_SAMPLES
+    above = (f"{NULL_FEWER_ABOVE} states" if n > NULL_FEWER_ABOVE
+             else f"{NULL_FEWER_LINKS_ABOVE} links")
     r = ctx.cached("null", lambda: compare_to_null(ctx.system, null="degree",
                                                    samples=samples, seed=ctx.seed,
                                                    executor="local", workers=1))
@@ -393,7 +401,7 @@ def null_model_section(ctx: ReportContext) -> Section | None:
               f"{r.seed}) need {r.mean:.1f} ± {r.std:.1f}: {words} expected from the "
               f"degrees alone (|z| < 2 counts as the same; common practice, no source)."
               + pred + ("" if samples == NULL_SAMPLES else
-                        f" Only {samples} samples above {NULL_FEWER_ABOVE} states, to keep "
+                        f" Only {samples} samples above {above}, to keep "
                         "the report quick; netctl compare --samples N draws more.")),
          figure(png, "Minimum inputs of the randomized networks (hatched) and of this "
                      "network (vertical line).")),

@@ -40,3 +40,19 @@ def test_smaller_network_keeps_the_full_count():
     sec = null_model_section(ReportContext(system=_random(300, 2)))
     assert sec is not None and sec.data["n_samples"] == NULL_SAMPLES
     assert "Only" not in sec.blocks[0].text
+
+
+def test_many_links_on_few_states_use_fewer_samples_or_none(monkeypatch):
+    # a dense block: few states, many links; the count of links drives the samples too
+    from netctl.report import sections
+
+    monkeypatch.setattr(sections, "NULL_FEWER_LINKS_ABOVE", 500)
+    s = _random(300, 3)
+    assert s.n_states <= NULL_FEWER_ABOVE and s.n_links > 500
+    sec = null_model_section(ReportContext(system=s))
+    assert sec is not None and sec.data["n_samples"] == NULL_SAMPLES_LARGE
+    assert f"Only {NULL_SAMPLES_LARGE} samples above 500 links" in sec.blocks[0].text
+    monkeypatch.setattr(sections, "NULL_LINKS_LIMIT", 500)
+    ctx = ReportContext(system=s)
+    assert null_model_section(ctx) is None
+    assert any("over 500 links; run netctl compare" in m for m in ctx.missing)
