@@ -41,6 +41,7 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from typing import Any
 
 import numpy as np
@@ -85,6 +86,17 @@ def _scipy() -> Any:
     import scipy.linalg as la  # the fallback: loaded only when used
 
     return la
+
+
+def _checked(n: int, route: Callable[..., np.ndarray | None], name: str,
+             *args: Any) -> np.ndarray:
+    """``route(*args)`` for a problem of ``n`` states when :func:`small` and its check is
+    clean (not ``None``), else scipy.linalg's ``name`` on the same arguments."""
+    if small(n):
+        got = route(*args)
+        if got is not None:
+            return got
+    return getattr(_scipy(), name)(*args)  # type: ignore[no-any-return]
 
 
 # ---------------------------------------------------------------- same LAPACK routine
@@ -227,11 +239,7 @@ def expm_pade(X: np.ndarray) -> np.ndarray | None:
 def expm(X: np.ndarray, n_states: int) -> np.ndarray:
     """``e^X``: :func:`expm_pade` for a problem of at most ``SMALL_STATES`` states when
     it is clean, else ``scipy.linalg.expm``."""
-    if small(n_states):
-        E = expm_pade(X)
-        if E is not None:
-            return E
-    return _scipy().expm(X)  # type: ignore[no-any-return]
+    return _checked(n_states, expm_pade, "expm", X)
 
 
 # ---------------------------------------------------------------- Schur form
@@ -349,11 +357,8 @@ def continuous_lyapunov(A: np.ndarray, Q: np.ndarray) -> np.ndarray | None:
 def solve_continuous_lyapunov(A: np.ndarray, Q: np.ndarray) -> np.ndarray:
     """``A X + X A^H = Q``: :func:`continuous_lyapunov` when small and clean, else
     ``scipy.linalg.solve_continuous_lyapunov``."""
-    if small(np.asarray(A).shape[0]):
-        X = continuous_lyapunov(A, Q)
-        if X is not None:
-            return X
-    return _scipy().solve_continuous_lyapunov(A, Q)  # type: ignore[no-any-return]
+    return _checked(np.asarray(A).shape[0], continuous_lyapunov,
+                    "solve_continuous_lyapunov", A, Q)
 
 
 def discrete_lyapunov(a: np.ndarray, q: np.ndarray, max_doublings: int = 64
@@ -399,11 +404,8 @@ def discrete_lyapunov(a: np.ndarray, q: np.ndarray, max_doublings: int = 64
 def solve_discrete_lyapunov(a: np.ndarray, q: np.ndarray) -> np.ndarray:
     """``a X a^H - X + q = 0``: :func:`discrete_lyapunov` when small and clean, else
     ``scipy.linalg.solve_discrete_lyapunov``."""
-    if small(np.asarray(a).shape[0]):
-        X = discrete_lyapunov(a, q)
-        if X is not None:
-            return X
-    return _scipy().solve_discrete_lyapunov(a, q)  # type: ignore[no-any-return]
+    return _checked(np.asarray(a).shape[0], discrete_lyapunov, "solve_discrete_lyapunov",
+                    a, q)
 
 
 # ---------------------------------------------------------------- left eigenvectors
