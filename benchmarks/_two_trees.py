@@ -63,7 +63,15 @@ def env_for(tree: str | None) -> dict[str, str]:
 
 
 def check_trees(trees: Iterable[str], cwd: str) -> None:
-    """Stop unless each tree's interpreter imports netctl from that tree."""
+    """Stop unless each tree's interpreter imports netctl from that tree; first compile
+    each tree's modules to bytecode (``compileall``), as an installation does: where
+    ``PYTHONDONTWRITEBYTECODE`` is set (this workplace sets it) a fresh checkout would
+    otherwise compile every module it imports in every run (about 40 ms of a 2-line
+    run), while a tree whose ``__pycache__`` was filled earlier would not."""
+    trees = list(trees)
+    for tree in trees:
+        subprocess.run([sys.executable, "-m", "compileall", "-q",
+                        os.path.join(tree, "netctl")], check=True, stdout=subprocess.DEVNULL)
     for tree in trees:
         where = subprocess.run([sys.executable, "-c", "import netctl; print(netctl.__file__)"],
                                env=env_for(tree), cwd=cwd, capture_output=True, text=True)
