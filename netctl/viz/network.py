@@ -163,6 +163,7 @@ def _draw(system: StructuredSystem, marks: MapMarks, pos: np.ndarray, how: str, 
     if marks.critical_sources is not None and marks.critical_targets is not None:
         crit = _edge_mask(src, dst, marks.critical_sources, marks.critical_targets, n) & ~loops
         layers.insert(1, ("critical_link", crit, None))
+    density = not arrows and int(np.count_nonzero(plain)) > _DENSITY_ABOVE
     alpha_plain = float(np.clip(12.0 / np.sqrt(max(n_links, 1)), 0.12, 0.9))
     for key, mask, _ in layers:
         if not mask.any():
@@ -176,7 +177,7 @@ def _draw(system: StructuredSystem, marks: MapMarks, pos: np.ndarray, how: str, 
         if arrows:
             _draw_arrows(ax, pos, src[mask], dst[mask], mk, lw, alpha, radius_pt,
                          head=key != "critical_link")
-        elif key == "link" and int(np.count_nonzero(mask)) > _DENSITY_ABOVE:
+        elif key == "link" and density:
             _draw_density(ax, pos, src[mask], dst[mask], mk)
         else:
             segs = np.stack([pos[src[mask]], pos[dst[mask]]], axis=1)
@@ -225,8 +226,7 @@ def _draw(system: StructuredSystem, marks: MapMarks, pos: np.ndarray, how: str, 
     if with_labels:
         _labels(ax, pos, system.state_names, radius_pt)
     if n:
-        lo, hi = pos.min(axis=0), pos.max(axis=0)
-        pad = np.maximum((hi - lo) * 0.06, 1e-9 + 0.5 * (hi - lo == 0))
+        lo, hi, pad = _box(pos)
         top = pad[1] * (2.5 if with_labels else 1.0)  # room for the slanted names
         ax.set_xlim(lo[0] - pad[0], hi[0] + pad[0] * (2.0 if with_labels else 1.0))
         ax.set_ylim(lo[1] - pad[1], hi[1] + top)
@@ -235,7 +235,14 @@ def _draw(system: StructuredSystem, marks: MapMarks, pos: np.ndarray, how: str, 
     if legend:
         _legend(ax, system, marks, area, n_loops=int(loop_states.size),
                 loops_drawn=n <= 500, arrows=arrows, outside=own,
-                density=int(np.count_nonzero(plain)) > _DENSITY_ABOVE)
+                density=density)
+
+
+def _box(pos: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The states' bounding box ``lo``, ``hi`` and the margin ``pad`` the map keeps
+    around it (6 % a side; a little where all states share a coordinate)."""
+    lo, hi = pos.min(axis=0), pos.max(axis=0)
+    return lo, hi, np.maximum((hi - lo) * 0.06, 1e-9 + 0.5 * (hi - lo == 0))
 
 
 def _draw_density(ax: Axes, pos: np.ndarray, s: np.ndarray, t: np.ndarray,
@@ -244,8 +251,7 @@ def _draw_density(ax: Axes, pos: np.ndarray, s: np.ndarray, t: np.ndarray,
     opacity grows with the logarithm of the number of link samples in each pixel
     (``samples`` evenly spaced points a link, both ends included), over the box the
     map's limits will show. Returns the counts (rows: y, columns: x)."""
-    lo, hi = pos.min(axis=0), pos.max(axis=0)
-    pad = np.maximum((hi - lo) * 0.06, 1e-9 + 0.5 * (hi - lo == 0))
+    lo, hi, pad = _box(pos)
     lo, hi = lo - pad, hi + pad
     counts = np.zeros((bins, bins))
     f = np.linspace(0.0, 1.0, samples)[None, :]
