@@ -24,9 +24,7 @@ instead, so showing a result never stalls a notebook.
 
 from __future__ import annotations
 
-import hashlib
 import html
-import re
 import textwrap
 import warnings
 from collections.abc import Sequence
@@ -35,10 +33,12 @@ from typing import Any
 import numpy as np
 
 from netctl.viz.small_marks import Lines, Rows, change_view, result_lines, result_marks
-from netctl.viz.style import INK, MARKS, PAPER, Mark
+from netctl.viz.scene import (DASHES, Circles, Group, Head, Item, Scene, Segments, Shapes,
+                              Stroke, Text, clean_text, scene_svg)
+from netctl.viz.style import INK, MARKS, PAPER
 
-__all__ = ["SMALL_MAP_HEADS", "SMALL_MAP_LINKS", "SMALL_MAP_STATES", "marks_map_svg",
-           "result_map_html", "result_marks"]
+__all__ = ["SMALL_MAP_HEADS", "SMALL_MAP_LINKS", "SMALL_MAP_STATES", "marks_map_scene",
+           "marks_map_svg", "result_map_html", "result_marks"]
 
 #: Above this many states the notebook view gives counts instead of a map.
 SMALL_MAP_STATES = 2000
@@ -58,9 +58,6 @@ _TITLE_CHARS = 74
 _LABEL_ROOM = 90.0
 _CACHE_ATTR = "_netctl_map_cache"
 
-#: Characters XML 1.0 forbids (a hostile name must not make the SVG unparseable).
-_NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ud800-\udfff\ufffe\uffff]")
-
 #: Drawing order of point marks (later on top), as in :func:`netctl.viz.draw_map`.
 _POINT_ORDER = ("role_critical", "role_intermittent", "role_redundant", "disturbed",
                 "unreached", "dilation", "bottleneck", "costly", "fragile", "candidate",
@@ -77,7 +74,7 @@ _LOOPS_UP_TO = 500
 
 def _text(value: object) -> str:
     """``value`` as XML-safe escaped text (markup characters and quotes escaped)."""
-    return html.escape(_NOT_XML.sub("\ufffd", str(value)), quote=True)
+    return html.escape(clean_text(value), quote=True)
 
 
 def _positions(result: Any, system: Any, key: Any) -> tuple[np.ndarray, str]:
@@ -104,45 +101,6 @@ def _counts_note(rows: Sequence[tuple[str, str, np.ndarray]], n: int, limit: int
     return (f"<p class=\"netctl-map-note\"><small>Map not drawn: {n:,} states (more than "
             f"{limit:,}). {listed}. For the full map use netctl.viz.draw_map or the "
             f"<code>netctl map</code> command.</small></p>")
-
-
-def _shape(mk: Mark, r: float) -> str:
-    """SVG path data of a point mark centred on the origin, radius about ``r``."""
-    m = mk.marker
-    if m == "^":
-        return f"M0 {-r:.1f}L{0.87 * r:.1f} {0.5 * r:.1f}L{-0.87 * r:.1f} {0.5 * r:.1f}Z"
-    if m == "v":
-        return f"M0 {r:.1f}L{0.87 * r:.1f} {-0.5 * r:.1f}L{-0.87 * r:.1f} {-0.5 * r:.1f}Z"
-    if m == "s":
-        h = 0.8 * r
-        cross = f"M{-h:.1f} {-h:.1f}L{h:.1f} {h:.1f}M{h:.1f} {-h:.1f}L{-h:.1f} {h:.1f}"
-        return f"M{-h:.1f} {-h:.1f}H{h:.1f}V{h:.1f}H{-h:.1f}Z" + cross
-    if m == "D":
-        return f"M0 {-r:.1f}L{r:.1f} 0L0 {r:.1f}L{-r:.1f} 0Z"
-    if m in ("h", "p"):  # hexagon (pointy top), pentagon
-        k = 6 if m == "h" else 5
-        pts = [(r * np.sin(a), -r * np.cos(a)) for a in np.arange(k) * 2 * np.pi / k]
-        return "M" + "L".join(f"{x:.1f} {y:.1f}" for x, y in pts) + "Z"
-    if m == "X":  # a cross drawn as two strokes
-        h = 0.75 * r
-        return f"M{-h:.1f} {-h:.1f}L{h:.1f} {h:.1f}M{h:.1f} {-h:.1f}L{-h:.1f} {h:.1f}"
-    if m == "8":  # octagon
-        pts = [(r * np.cos(a), r * np.sin(a)) for a in np.pi / 8 + np.arange(8) * np.pi / 4]
-        return "M" + "L".join(f"{x:.1f} {y:.1f}" for x, y in pts) + "Z"
-    # circle as two arcs (one path syntax for every mark)
-    return f"M{-r:.1f} 0A{r:.1f} {r:.1f} 0 1 0 {r:.1f} 0A{r:.1f} {r:.1f} 0 1 0 {-r:.1f} 0Z"
-
-
-_DASH = {"dashed": ' stroke-dasharray="3 2"', "dotted": ' stroke-dasharray="1 2"',
-         "dashdot": ' stroke-dasharray="5 2 1 2"'}
-
-
-def _style(mk: Mark) -> str:
-    # SVG has no hatch patterns without ids: a dotted hatch becomes a dotted outline (the
-    # cross hatch of unreached states is drawn into their path)
-    dash = ' stroke-dasharray="1 1"' if mk.hatch.startswith(".") else _DASH.get(mk.linestyle, "")
-    width = max(mk.linewidth, 0.6) * (1.5 if mk.hatch.startswith(".") else 1.0)
-    return f'fill="{mk.face}" stroke="{mk.edge}" stroke-width="{width:.1f}"' + dash
 
 
 def _radius(key: str, n: int) -> float:
@@ -214,7 +172,7 @@ def result_map_html(result: Any, system: Any, *, max_states: int = SMALL_MAP_STA
     if n > max_states:
         return _counts_note(rows, n, max_states)
     pos, how = _positions(result, system, key)
-    return _draw(system, rows, lines, pos, how, max_links, max_heads)
+    return scene_svg(_scene(system, rows, lines, pos, how, max_links, max_heads))
 
 
 def marks_map_svg(system: Any, rows: Rows, lines: Lines, positions: np.ndarray, *,
@@ -273,23 +231,53 @@ def marks_map_svg(system: Any, rows: Rows, lines: Lines, positions: np.ndarray, 
         decides up to how many states an inline map is worth it
         (:data:`SMALL_MAP_STATES`).
     """
+    return scene_svg(marks_map_scene(
+        system, rows, lines, positions, how=how, title=title, max_links=max_links,
+        max_heads=max_heads, labels=labels, labels_up_to=labels_up_to, legend=legend,
+        legend_title=legend_title, path_heads=path_heads, roles_on_top=roles_on_top,
+        where=where))
+
+
+def marks_map_scene(system: Any, rows: Rows, lines: Lines, positions: np.ndarray, *,
+                    how: str = "given", title: str = "", max_links: int = SMALL_MAP_LINKS,
+                    max_heads: int = SMALL_MAP_HEADS, labels: bool | None = None,
+                    labels_up_to: int = _LABELS_UP_TO,
+                    legend: Sequence[tuple[str, str]] | None = None,
+                    legend_title: str = "", path_heads: bool = False,
+                    roles_on_top: bool = False, where: str = "") -> Scene:
+    """The drawing of :func:`marks_map_svg` as primitives (:class:`~netctl.viz.scene.Scene`):
+    what :func:`~netctl.viz.scene.scene_svg` writes as SVG and
+    :func:`netctl.viz.scene_png.scene_png` paints as PNG. Same parameters."""
     pos = np.asarray(positions, dtype=np.float64).reshape(int(system.n_states), 2)
-    return _draw(system, rows, lines, pos, how, max_links, max_heads, title=title,
-                 labels=labels, labels_up_to=labels_up_to, legend=legend,
-                 legend_title=legend_title, path_heads=path_heads,
-                 roles_on_top=roles_on_top, where=where)
+    return _scene(system, rows, lines, pos, how, max_links, max_heads, title=title,
+                  labels=labels, labels_up_to=labels_up_to, legend=legend,
+                  legend_title=legend_title, path_heads=path_heads,
+                  roles_on_top=roles_on_top, where=where)
 
 
-def _segments(px: np.ndarray, py: np.ndarray, u: np.ndarray, v: np.ndarray) -> str:
-    return "".join(f"M{px[i]:.1f} {py[i]:.1f}L{px[j]:.1f} {py[j]:.1f}"
-                   for i, j in zip(u.tolist(), v.tolist()) if i != j)
+def _segs(px: np.ndarray, py: np.ndarray, u: np.ndarray, v: np.ndarray) -> np.ndarray:
+    """Segments ``(x0, y0, x1, y1)`` from states ``u`` to ``v`` (a state to itself left
+    out)."""
+    keep = u != v
+    u, v = u[keep], v[keep]
+    return np.c_[px[u], py[u], px[v], py[v]].reshape(-1, 4)
 
 
-def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
-          max_links: int, max_heads: int, *, title: str = "", labels: bool | None = None,
-          labels_up_to: int = _LABELS_UP_TO,
-          legend: Sequence[tuple[str, str]] | None = None, legend_title: str = "",
-          path_heads: bool = False, roles_on_top: bool = False, where: str = "") -> str:
+def _heads_at(px: np.ndarray, py: np.ndarray, u: np.ndarray, v: np.ndarray,
+              reach: np.ndarray) -> np.ndarray:
+    """Segments from ``u`` stopping short of ``v``'s mark (at most halfway), for a head."""
+    dx, dy = px[v] - px[u], py[v] - py[u]
+    length = np.hypot(dx, dy)
+    cut = np.where(length > 0, np.minimum(reach[v], 0.5 * length) / np.maximum(
+        length, 1e-9), 0.0)
+    return np.c_[px[u], py[u], px[v] - dx * cut, py[v] - dy * cut].reshape(-1, 4)
+
+
+def _scene(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
+           max_links: int, max_heads: int, *, title: str = "", labels: bool | None = None,
+           labels_up_to: int = _LABELS_UP_TO,
+           legend: Sequence[tuple[str, str]] | None = None, legend_title: str = "",
+           path_heads: bool = False, roles_on_top: bool = False, where: str = "") -> Scene:
     n = int(system.n_states)
     heading = [w for t in title.splitlines() for w in textwrap.wrap(t, _TITLE_CHARS)]
     # fit into the drawing box, y up (as on a map), aspect kept
@@ -309,9 +297,8 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
     height = inner_h + top + _PAD
     px = _PAD + (pos[:, 0] - lo[0]) * scale + (inner_w - span[0] * scale) / 2
     py = top + (hi[1] - pos[:, 1]) * scale + (inner_h - span[1] * scale) / 2
-    names = system.state_names
-    parts: list[str] = []
-    markers: list[str] = []  # arrowhead definitions
+    names = [clean_text(x) for x in system.state_names]
+    parts: list[Item] = []
     r0 = _radius("state", n)
 
     def radius(key: str) -> float:
@@ -339,28 +326,17 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
         links_note = f"; {pairs.size:,} links not drawn (more than {max_links:,})"
     elif pairs.size:
         mk = MARKS["link"]
-        alpha = float(np.clip(12.0 / np.sqrt(pairs.size), 0.2, 0.9))
-        pen = (f'fill="none" stroke="{mk.edge}" stroke-width="{mk.linewidth:.1f}" '
-               f'stroke-opacity="{alpha:.2f}"')
+        alpha = round(float(np.clip(12.0 / np.sqrt(pairs.size), 0.2, 0.9)), 2)
+        pen = Stroke(mk.edge, mk.linewidth, alpha)
         one = np.flatnonzero(~both)
         heads = 0 < one.size <= max_heads
         plain = np.unique(a[both] * N + b[both]) if heads else pairs
         if plain.size:
-            parts.append(f'<path class="links" d="{_segments(px, py, plain // N, plain % N)}" '
-                         f"{pen}/>")
+            parts.append(Segments("links", _segs(px, py, plain // N, plain % N), pen))
         if heads:
-            u, v = src[one], dst[one]
-            dx, dy = px[v] - px[u], py[v] - py[u]
-            length = np.hypot(dx, dy)
-            cut = np.where(length > 0, np.minimum(reach[v], 0.5 * length) / np.maximum(
-                length, 1e-9), 0.0)
-            ex, ey = px[v] - dx * cut, py[v] - dy * cut
-            arrows = "".join(f'<path d="M{px[i]:.1f} {py[i]:.1f}L{x:.1f} {y:.1f}"/>'
-                             for i, x, y in zip(u.tolist(), ex.tolist(), ey.tolist()))
-            size = 6.0 if n <= 200 else 4.5
-            mid = "netctl-head-" + hashlib.sha1(arrows.encode("utf-8")).hexdigest()[:12]
-            markers.append(_marker(mid, size, MARKS["state"].edge, max(alpha, 0.5)))
-            parts.append(f'<g class="arrows" {pen} marker-end="url(#{mid})">{arrows}</g>')
+            head = Head(6.0 if n <= 200 else 4.5, MARKS["state"].edge, max(alpha, 0.5))
+            parts.append(Segments("arrows", _heads_at(px, py, src[one], dst[one], reach),
+                                  pen, head))
         elif one.size:
             links_note = (f"; {one.size:,} one-way links drawn without arrowheads (more "
                           f"than {max_heads:,})")
@@ -373,26 +349,15 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
             label, s, t = by_line[key]
             mk = MARKS[key]
             width = 2.5 if key == "critical_link" else mk.linewidth
-            dash = _DASH.get(mk.linestyle, "")
-            pen = (f'fill="none" stroke="{mk.edge}" stroke-width="{width:.1f}" '
-                   f'stroke-opacity="0.8" stroke-linecap="round"{dash}')
+            pen = Stroke(mk.edge, width, 0.8, DASHES.get(mk.linestyle, ()), round_caps=True)
             s, t = np.asarray(s, np.int64), np.asarray(t, np.int64)
             if path_heads and key in ("chain", "cycle") and 0 < s.size <= max_heads:
-                # one path per link, stopping at the target's mark, with a head
-                u, v = s[s != t], t[s != t]
-                dx, dy = px[v] - px[u], py[v] - py[u]
-                length = np.hypot(dx, dy)
-                cut = np.where(length > 0, np.minimum(reach[v], 0.5 * length)
-                               / np.maximum(length, 1e-9), 0.0)
-                ex, ey = px[v] - dx * cut, py[v] - dy * cut
-                each = "".join(f'<path d="M{px[i]:.1f} {py[i]:.1f}L{x:.1f} {y:.1f}"/>'
-                               for i, x, y in zip(u.tolist(), ex.tolist(), ey.tolist()))
-                mid = (f"netctl-{key}-head-"
-                       + hashlib.sha1(each.encode("utf-8")).hexdigest()[:12])
-                markers.append(_marker(mid, 8.0 if n <= 200 else 6.0, mk.edge, 0.9))
-                parts.append(f'<g class="{key}" {pen} marker-end="url(#{mid})">{each}</g>')
+                # one line per link, stopping at the target's mark, with a head
+                head = Head(8.0 if n <= 200 else 6.0, mk.edge, 0.9)
+                parts.append(Segments(key, _heads_at(px, py, s[s != t], t[s != t], reach),
+                                      pen, head))
             else:
-                parts.append(f'<path class="{key}" d="{_segments(px, py, s, t)}" {pen}/>')
+                parts.append(Segments(key, _segs(px, py, s, t), pen))
             legend_keys.append((key, label))
 
     # self-loops (self-dynamics): a ring around the state, as on the static maps; a
@@ -407,100 +372,68 @@ def _draw(system: Any, rows: Rows, lines: Lines, pos: np.ndarray, how: str,
             if not sel.any():
                 continue
             mk = MARKS[key]
-            rings = "".join(f'<circle cx="{px[i]:.1f}" cy="{py[i]:.1f}" r="{2 * r0:.1f}">'
-                            f"<title>{_text(names[i])} \u2014 self-loop</title></circle>"
-                            for i in loop_at[sel].tolist())
-            parts.append(f'<g class="{"self_loops" if key == "link" else "cycle_loops"}" '
-                         f'fill="none" stroke="{mk.edge}" stroke-width="'
-                         f'{max(mk.linewidth * 0.8, 0.8):.1f}"{_DASH.get(mk.linestyle, "")}>'
-                         f"{rings}</g>")
+            at = loop_at[sel]
+            parts.append(Circles(
+                "self_loops" if key == "link" else "cycle_loops", np.c_[px[at], py[at]],
+                round(2 * r0, 1), "none",
+                Stroke(mk.edge, round(max(mk.linewidth * 0.8, 0.8), 1),
+                       dash=DASHES.get(mk.linestyle, ())),
+                tuple(f"{names[i]} \u2014 self-loop" for i in at.tolist())))
         legend_keys.append(("self_loop", f"self-loop (self-dynamics) ({loop_at.size:,})"))
     elif loop_at.size:
         links_note += f"; {loop_at.size:,} self-loops not drawn"
 
     # plain states, then the marks in the static maps' order
     st = MARKS["state"]
-    circles = []
-    for i in range(n):
-        circles.append(f'<circle cx="{px[i]:.1f}" cy="{py[i]:.1f}" r="{r0:.1f}">'
-                       f"<title>{_text(names[i])}</title></circle>")
-    parts.append(f'<g class="states" fill="{st.face}" stroke="{st.edge}" '
-                 f'stroke-width="0.6">{"".join(circles)}</g>')
+    parts.append(Circles("states", np.c_[px, py], round(r0, 1), st.face,
+                         Stroke(st.edge, 0.6), tuple(names)))
     by_key: dict[str, list[tuple[str, np.ndarray]]] = {}
     for key, label, idx in rows:
         by_key.setdefault(key, []).append((label, idx))
-    marks_svg = []
+    marked: list[Item] = []
     legend_keys += [(key, label) for key, label, _ in rows]
     order: tuple[str, ...] = _POINT_ORDER
     if roles_on_top:  # as on the static maps: the role sits inside every other mark
         order = tuple(k for k in order if not k.startswith("role_")) + _POINT_ORDER[:3]
     for key in order:
-        if key not in by_key:
-            continue
-        mk = MARKS[key]
-        shape = _shape(mk, radius(key))
-        for label, idx in by_key[key]:
-            for i in idx.tolist():
-                marks_svg.append(
-                    f'<path class="mark {key}" transform="translate({px[i]:.2f} {py[i]:.2f})" '
-                    f'd="{shape}" {_style(mk)}><title>{_text(names[i])} \u2014 '
-                    f"{_text(label)}</title></path>")
-    parts.append(f'<g class="marks">{"".join(marks_svg)}</g>')
+        for label, idx in by_key.get(key, ()):
+            text = clean_text(label)
+            marked.append(Shapes(key, np.c_[px[idx], py[idx]], radius(key),
+                                 tuple(f"{names[i]} \u2014 {text}" for i in idx.tolist())))
+    parts.append(Group("marks", tuple(marked)))
     if with_labels:
-        written = [f'<text x="{px[i] + 6:.1f}" y="{py[i] - 6:.1f}">{_text(names[i])}</text>'
-                  for i in range(n)]
-        parts.append(f'<g class="labels" font-size="9" fill="{INK}" '
-                     f'font-family="sans-serif">{"".join(written)}</g>')
+        parts.append(Group("labels", tuple(Text(px[i] + 6, py[i] - 6, names[i])
+                                           for i in range(n)), 9.0, INK))
 
     # legend below the map: one row per marked meaning, then where positions came from
-    rows_svg = []
+    keyed: list[Item] = []
     y = height + 6.0
     if legend is not None:
         legend_keys = list(legend)
     for line in legend_title.splitlines():
-        rows_svg.append(f'<text x="{_PAD - 6:.1f}" y="{y + 9.5:.1f}">{_text(line)}</text>')
+        keyed.append(Text(_PAD - 6, y + 9.5, clean_text(line)))
         y += 13.0
     for key, label in legend_keys:
         mk = MARKS["link" if key == "self_loop" else key]
+        at = np.array([[_PAD, y + 6]])
         if key == "self_loop":
-            sample = (f'<circle cx="{_PAD:.1f}" cy="{y + 6:.1f}" r="5" fill="none" '
-                      f'stroke="{mk.edge}" stroke-width="0.8"/>')
+            keyed.append(Circles("", at, 5.0, "none", Stroke(mk.edge, 0.8)))
         elif mk.marker is None:
-            dash = _DASH.get(mk.linestyle, "")
-            sample = (f'<path d="M{_PAD - 6:.1f} {y + 6:.1f}H{_PAD + 6:.1f}" '
-                      f'stroke="{mk.edge}" stroke-width="2.5"{dash}/>')
+            keyed.append(Segments("", np.array([[_PAD - 6, y + 6, _PAD + 6, y + 6]]),
+                                  Stroke(mk.edge, 2.5, dash=DASHES.get(mk.linestyle, ()))))
         else:
-            sample = (f'<path transform="translate({_PAD:.1f} {y + 6:.1f})" '
-                      f'd="{_shape(mk, 5.0)}" {_style(mk)}/>')
-        rows_svg.append(f"{sample}<text x=\"{_PAD + 12:.1f}\" y=\"{y + 9.5:.1f}\">"
-                        f"{_text(label)}</text>")
+            keyed.append(Shapes(key, at, 5.0, classed=False))
+        keyed.append(Text(_PAD + 12, y + 9.5, clean_text(label)))
         y += 15.0
     where = where or {"coordinates": "positions: the node table's x and y",
              "coordinates+fr": "positions: x and y, missing ones by a quick layout"}.get(
                  how, "positions: a quick force-directed layout (no coordinates)")
-    rows_svg.append(f'<text x="{_PAD - 6:.1f}" y="{y + 9.5:.1f}" fill="#5C5C5C">'
-                    f"{_text(f'{n:,} states; {where}{links_note}')}</text>")
+    keyed.append(Text(_PAD - 6, y + 9.5, clean_text(f"{n:,} states; {where}{links_note}"),
+                      "#5C5C5C"))
     y += 15.0
-    parts.append(f'<g class="legend" font-size="10" fill="{INK}" '
-                 f'font-family="sans-serif">{"".join(rows_svg)}</g>')
-    total_h = y + 4.0
+    parts.append(Group("legend", tuple(keyed), 10.0, INK))
     if heading:
-        parts.insert(0, f'<g class="title" font-size="11" fill="{INK}" '
-                        'font-family="sans-serif">' + "".join(
-                            f'<text x="{_PAD - 6:.1f}" y="{_PAD + 13.0 * k:.1f}">'
-                            f"{_text(t)}</text>" for k, t in enumerate(heading)) + "</g>")
-    return (f'<svg xmlns="http://www.w3.org/2000/svg" class="netctl-small-map" '
-            f'width="{_WIDTH:.0f}" height="{total_h:.0f}" '
-            f'viewBox="0 0 {_WIDTH:.0f} {total_h:.0f}" role="img" '
-            f'style="background:{PAPER}"><title>network map ({n:,} states)</title>'
-            f'{"<defs>" + "".join(markers) + "</defs>" if markers else ""}'
-            f'{"".join(parts)}</svg>')
-
-
-def _marker(mid: str, size: float, colour: str, opacity: float) -> str:
-    """An arrowhead ``<marker>`` named ``mid``: its tip at the end of a path."""
-    return (f'<marker id="{mid}" viewBox="0 0 10 10" refX="9" refY="5" '
-            f'markerWidth="{size:.1f}" markerHeight="{size:.1f}" '
-            'markerUnits="userSpaceOnUse" orient="auto">'
-            f'<path d="M0 1L10 5L0 9Z" fill="{colour}" fill-opacity="{opacity:.2f}"/>'
-            "</marker>")
+        parts.insert(0, Group("title", tuple(Text(_PAD - 6, _PAD + 13.0 * k, clean_text(t))
+                                             for k, t in enumerate(heading)), 11.0, INK))
+    return Scene(_WIDTH, float(round(y + 4.0)), PAPER, f"network map ({n:,} states)",
+                 tuple(parts))
