@@ -22,8 +22,8 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                     "dilation sets. --out names the result by its suffix: .html an "
                     "interactive map in one self-contained file (pan, zoom, search, "
                     "details, layers; nothing is fetched when it is opened); .png, .svg "
-                    ".pdf a static figure (.svg of up to 2000 states drawn by netctl "
-                    "itself, the same marks and legend); .geojson the states and links with their roles "
+                    ".pdf a static figure (.svg and .png of up to 2000 states drawn by "
+                    "netctl itself, the same marks and legend); .geojson the states and links with their roles "
                     "for GIS (RFC 7946); .graphml the network with role attributes. "
                     "Positions: the file's x/y or lat/lon, else a layout. Exit status 0 "
                     "when the mapped design is structurally controllable, 1 when not.")
@@ -165,18 +165,29 @@ def _place(args: argparse.Namespace, system: Any) -> tuple[Any, str, Any]:
 
 
 def _figure(args: argparse.Namespace, system: Any, marks: Any, pos: Any, how: str) -> None:
-    if _kind(args.out) == "svg":
-        from netctl.viz.map_svg import fits, map_svg
+    kind = _kind(args.out)
+    if kind in ("svg", "png"):
+        from netctl.viz.map_svg import fits, map_png, map_svg
 
-        if fits(system):  # netctl's own SVG, the same content: no matplotlib (issue 15)
+        # a small map: netctl's own drawing, the same content, no matplotlib (issue 15);
+        # a PNG needs Pillow with FreeType and the font, else matplotlib draws it
+        if fits(system):
             from netctl.io import atomic_write
             from netctl.viz.output import usual_mode
 
-            text = map_svg(system, marks, positions=pos, how=how, labels=args.labels)
-            with atomic_write(args.out) as fh:
-                fh.write(text)
-            usual_mode(args.out)
-            return
+            if kind == "svg":
+                text = map_svg(system, marks, positions=pos, how=how, labels=args.labels)
+                with atomic_write(args.out) as fh:
+                    fh.write(text)
+                usual_mode(args.out)
+                return
+            data = map_png(system, marks, positions=pos, how=how, labels=args.labels,
+                           dpi=args.dpi)
+            if data is not None:
+                with atomic_write(args.out, "wb") as fh:
+                    fh.write(data)
+                usual_mode(args.out)
+                return
     # matplotlib's object API on the Agg canvas: no pyplot (netctl.viz.network.map_figure)
     from netctl.viz import save_figure
     from netctl.viz.network import _default_title, map_figure
