@@ -269,8 +269,8 @@ def test_small_figure_map_loads_no_pyplot_igraph_or_scipy(tmp_path, suffix):
     f = tmp_path / "two.csv"
     f.write_text("a,b\nb,c\n")
     out = tmp_path / f"m.{suffix}"
-    # an SVG map of a small network is netctl's own SVG: not even matplotlib
-    watch = NOT_FOR_A_FIGURE + (("matplotlib",) if suffix == "svg" else ())
+    # an SVG or PNG map of a small network is netctl's own drawing: not even matplotlib
+    watch = NOT_FOR_A_FIGURE + (("matplotlib",) if suffix in ("svg", "png") else ())
     assert _modules_after(["map", str(f), "--out", str(out)], watch) == []
     assert out.stat().st_size > 0
 
