@@ -6,7 +6,8 @@ SVG (:func:`~netctl.viz.scene.scene_svg`) puts it, in the same colours, widths, 
 patterns, opacities and arrowheads, with the text in DejaVu Sans (the font matplotlib
 ships, found in its package data without importing it). Anti-aliasing: the scene is
 painted at 2 to 4 times the pixel size and reduced by averaging each block of pixels
-(a box filter: each pixel gets the share of it each mark covers). The file holds no
+(a box filter: each pixel gets the share of it each mark covers); the text is
+written at the final size, anti-aliased by FreeType. The file holds no
 time stamp and no text chunk, only the size, colours and resolution: the same scene
 gives the same bytes.
 """
@@ -88,7 +89,8 @@ def scene_png(scene: Scene, *, width: int, dpi: float) -> bytes | None:
     -----
     Painted at ``k`` times the size (``k`` = 4 up to 1000 pixels wide, 3 up to 1400,
     else 2; less where the canvas would pass 48 million pixels) and reduced by box
-    averaging. Opacities are those of the SVG: one line or arrowhead group is painted
+    averaging; text is written afterwards at the final size (FreeType anti-aliases
+    it). Opacities are those of the SVG: one line or arrowhead group is painted
     once (its overlaps are not darker). Cost: linear in the primitives and the pixels.
     """
     fonts = _font_loader()
@@ -107,6 +109,13 @@ def scene_png(scene: Scene, *, width: int, dpi: float) -> bytes | None:
         painter.item(item, 10.0, "#000000")
     if k > 1:
         im = im.reduce(k)
+    # text last, at the final size (FreeType anti-aliases it): in the scene, nothing is
+    # drawn over a title, a name or the legend's text
+    draw = ImageDraw.Draw(im)
+    s = width / w_units
+    for x, y, text, size, colour in painter.texts:
+        draw.text((x * s, y * s), text, fill=_rgb(colour),
+                  font=fonts(max(1, round(size * s))), anchor="ls")
     return _png(im.tobytes(), im.width, im.height, dpi)
 
 
@@ -189,12 +198,12 @@ class _Painter:
     """Paints primitives on ``im`` at ``scale`` pixels per drawing unit."""
 
     def __init__(self, im: Any, draw_module: Any, scale: float, fonts: Any) -> None:
-        self.im = im
-        self.ImageDraw = draw_module
         self.draw = draw_module.Draw(im)
         self.blend = draw_module.Draw(im, "RGBA")  # blends see-through ink
         self.s = scale
         self.fonts = fonts
+        #: text to write at the final size: (x, y, text, size, colour), drawing units
+        self.texts: list[tuple[float, float, str, float, str]] = []
 
     # -- lines: straight pieces as polygons, blended when see-through
     def _lines(self, lines: list[np.ndarray], stroke: Stroke, colour: str | None = None,
@@ -228,11 +237,10 @@ class _Painter:
         if isinstance(item, Group):
             for sub in item.items:
                 self.item(sub, item.size or size, item.fill or fill)
-        elif isinstance(item, Text):
+        elif isinstance(item, Text):  # white space folded as XML does
             text = _XML_SPACE.sub(" ", item.text).strip()
             if text:
-                self.draw.text((item.x * s, item.y * s), text, fill=_rgb(item.fill or fill),
-                               font=self.fonts(max(1, round(size * s))), anchor="ls")
+                self.texts.append((item.x, item.y, text, size, item.fill or fill))
         elif isinstance(item, Segments):
             xy = np.asarray(item.xy, np.float64).reshape(-1, 4)
             self._lines([seg.reshape(2, 2) * s for seg in xy], item.stroke)
