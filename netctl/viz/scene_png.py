@@ -87,10 +87,11 @@ def scene_png(scene: Scene, *, width: int, dpi: float) -> bytes | None:
 
     Notes
     -----
-    Painted at ``k`` times the size (``k`` = 4 up to 1000 pixels wide, 3 up to 1400,
-    else 2; less where the canvas would pass 48 million pixels) and reduced by box
-    averaging; text is written afterwards at the final size (FreeType anti-aliases
-    it). Opacities are those of the SVG: one line or arrowhead group is painted
+    The drawing (all but the text) is painted at ``k`` times the size (``k`` = 4 up to
+    1000 pixels wide, 3 up to 1400, else 2; less where the canvases would pass 48
+    million pixels), only over the boxes it covers (the map, the legend's samples), and
+    reduced by box averaging; text is written afterwards at the final size (FreeType
+    anti-aliases it). Opacities are those of the SVG: one line or arrowhead group is painted
     once (its overlaps are not darker). Cost: linear in the primitives and the pixels.
     """
     fonts = _font_loader()
@@ -100,23 +101,99 @@ def scene_png(scene: Scene, *, width: int, dpi: float) -> bytes | None:
 
     w_units, h_units = float(f"{scene.width:.0f}"), float(f"{scene.height:.0f}")
     height = max(1, round(h_units * width / w_units))
+    s = width / w_units  # pixels per drawing unit
+    boxes = _boxes(scene.items, s, width, height)
+    area = sum((x1 - x0) * (y1 - y0) for (x0, y0, x1, y1), _ in boxes)
     k = 4 if width <= 1000 else 3 if width <= 1400 else 2
-    while k > 1 and width * height * k * k > _CANVAS_PIXELS:
+    while k > 1 and area * k * k > _CANVAS_PIXELS:
         k -= 1
-    im = Image.new("RGB", (width * k, height * k), _rgb(scene.background))
-    painter = _Painter(im, ImageDraw, width * k / w_units, fonts)
-    for item in scene.items:
-        painter.item(item, 10.0, "#000000")
-    if k > 1:
-        im = im.reduce(k)
+    background = _rgb(scene.background)
+    im = Image.new("RGB", (width, height), background)
+    # the drawing (not the text) at k times the size, box by box, averaged down
+    for (x0, y0, x1, y1), items in boxes:
+        canvas = Image.new("RGB", ((x1 - x0) * k, (y1 - y0) * k), background)
+        painter = _Painter(canvas, ImageDraw, s * k, (x0 * k, y0 * k))
+        for item in items:
+            painter.item(item)
+        im.paste(canvas.reduce(k) if k > 1 else canvas, (x0, y0))
     # text last, at the final size (FreeType anti-aliases it): in the scene, nothing is
     # drawn over a title, a name or the legend's text
     draw = ImageDraw.Draw(im)
-    s = width / w_units
-    for x, y, text, size, colour in painter.texts:
+    texts: list[tuple[float, float, str, float, str]] = []
+    for item in scene.items:
+        _texts(item, 10.0, "#000000", texts)
+    for x, y, text, size, colour in texts:
         draw.text((x * s, y * s), text, fill=_rgb(colour),
                   font=fonts(max(1, round(size * s))), anchor="ls")
     return _png(im.tobytes(), im.width, im.height, dpi)
+
+
+def _texts(item: Item, size: float, fill: str,
+           out: list[tuple[float, float, str, float, str]]) -> None:
+    """Collect the text of ``item``: (x, y, text, size, colour), white space folded as
+    XML folds it."""
+    if isinstance(item, Group):
+        for sub in item.items:
+            _texts(sub, item.size or size, item.fill or fill, out)
+    elif isinstance(item, Text):
+        text = _XML_SPACE.sub(" ", item.text).strip()
+        if text:
+            out.append((item.x, item.y, text, size, item.fill or fill))
+
+
+def _extent(item: Item) -> tuple[np.ndarray, np.ndarray] | None:
+    """The box (drawing units) the drawing of ``item`` (its text left out) stays in."""
+    if isinstance(item, Group):
+        boxes = [b for b in (_extent(i) for i in item.items) if b is not None]
+        if not boxes:
+            return None
+        return (np.min([b[0] for b in boxes], axis=0), np.max([b[1] for b in boxes], axis=0))
+    if isinstance(item, Text):
+        return None
+    xy = np.asarray(item.xy, np.float64)
+    if not xy.size:
+        return None
+    if isinstance(item, Segments):
+        pts = xy.reshape(-1, 2)
+        pad = item.stroke.width + (item.head.size if item.head is not None else 0.0)
+    elif isinstance(item, Circles):
+        pts, pad = xy.reshape(-1, 2), item.r + item.stroke.width
+    else:  # Shapes
+        pts, pad = xy.reshape(-1, 2), 1.2 * item.r + mark_paint(MARKS[item.key])[1].width
+    return pts.min(axis=0) - pad, pts.max(axis=0) + pad
+
+
+def _boxes(items: tuple[Item, ...], s: float, width: int, height: int
+           ) -> list[tuple[tuple[int, int, int, int], list[Item]]]:
+    """Pixel boxes of the final picture that hold the drawing (text left out), each with
+    the items drawn in it; overlapping boxes merged."""
+    found: list[tuple[list[int], list[Item]]] = []
+    for item in items:
+        ext = _extent(item)
+        if ext is None:
+            continue
+        lo, hi = ext
+        box = [max(int(np.floor(lo[0] * s)) - 2, 0), max(int(np.floor(lo[1] * s)) - 2, 0),
+               min(int(np.ceil(hi[0] * s)) + 2, width), min(int(np.ceil(hi[1] * s)) + 2,
+                                                            height)]
+        if box[2] > box[0] and box[3] > box[1]:
+            found.append((box, [item]))
+    merged = True
+    while merged:
+        merged = False
+        for i in range(len(found)):
+            for j in range(i + 1, len(found)):
+                a, b = found[i][0], found[j][0]
+                if a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3]:
+                    box = [min(a[0], b[0]), min(a[1], b[1]), max(a[2], b[2]), max(a[3], b[3])]
+                    # keep the drawing order of the scene
+                    found[i] = (box, sorted(found[i][1] + found[j][1], key=items.index))
+                    del found[j]
+                    merged = True
+                    break
+            if merged:
+                break
+    return [((a[0], a[1], a[2], a[3]), its) for a, its in found]
 
 
 def _png(data: bytes, w: int, h: int, dpi: float) -> bytes:
@@ -195,15 +272,15 @@ def _ring(x: float, y: float, r: float) -> np.ndarray:
 
 
 class _Painter:
-    """Paints primitives on ``im`` at ``scale`` pixels per drawing unit."""
+    """Paints primitives (not their text) on ``im`` at ``scale`` pixels per drawing
+    unit, ``origin`` (pixels) at its top left."""
 
-    def __init__(self, im: Any, draw_module: Any, scale: float, fonts: Any) -> None:
+    def __init__(self, im: Any, draw_module: Any, scale: float,
+                 origin: tuple[float, float]) -> None:
         self.draw = draw_module.Draw(im)
         self.blend = draw_module.Draw(im, "RGBA")  # blends see-through ink
         self.s = scale
-        self.fonts = fonts
-        #: text to write at the final size: (x, y, text, size, colour), drawing units
-        self.texts: list[tuple[float, float, str, float, str]] = []
+        self.o = np.array(origin, np.float64)  # the canvas's top left, in pixels
 
     # -- lines: straight pieces as polygons, blended when see-through
     def _lines(self, lines: list[np.ndarray], stroke: Stroke, colour: str | None = None,
@@ -232,21 +309,19 @@ class _Painter:
         return self.blend, _rgb(colour) + (round(255 * opacity),)
 
     # -- one primitive
-    def item(self, item: Item, size: float, fill: str) -> None:
-        s = self.s
+    def item(self, item: Item) -> None:
+        s, o = self.s, self.o
         if isinstance(item, Group):
             for sub in item.items:
-                self.item(sub, item.size or size, item.fill or fill)
-        elif isinstance(item, Text):  # white space folded as XML does
-            text = _XML_SPACE.sub(" ", item.text).strip()
-            if text:
-                self.texts.append((item.x, item.y, text, size, item.fill or fill))
+                self.item(sub)
+        elif isinstance(item, Text):  # written afterwards, at the final size
+            pass
         elif isinstance(item, Segments):
             xy = np.asarray(item.xy, np.float64).reshape(-1, 4)
-            self._lines([seg.reshape(2, 2) * s for seg in xy], item.stroke)
+            self._lines([seg.reshape(2, 2) * s - o for seg in xy], item.stroke)
             if item.head is not None and xy.size:
                 draw, ink = self._ink(item.head.colour, item.head.opacity)
-                for tri in (head_polygons(xy, item.head.size) * s).tolist():
+                for tri in (head_polygons(xy, item.head.size) * s - o).tolist():
                     draw.polygon([tuple(p) for p in tri], fill=ink)
         elif isinstance(item, Circles):
             for x, y in np.asarray(item.xy, np.float64).reshape(-1, 2).tolist():
@@ -258,7 +333,7 @@ class _Painter:
                 if paths is None:
                     self._circle(x, y, item.r, fill_c, stroke)
                     continue
-                placed = [((pts + (x, y)) * s, closed) for pts, closed in paths]
+                placed = [((pts + (x, y)) * s - o, closed) for pts, closed in paths]
                 if fill_c != "none":
                     for pts, closed in placed:
                         if closed:
@@ -269,13 +344,13 @@ class _Painter:
 
     def _circle(self, x: float, y: float, r: float, fill: str, stroke: Stroke) -> None:
         s = self.s
-        cx, cy, rr = x * s, y * s, r * s
+        cx, cy, rr = x * s - self.o[0], y * s - self.o[1], r * s
         if fill != "none":
             self.draw.ellipse((cx - rr, cy - rr, cx + rr, cy + rr), fill=_rgb(fill))
         if stroke.colour == "none" or stroke.width <= 0:
             return
         if stroke.dash or stroke.opacity < 1.0:
-            self._lines([_ring(x, y, r) * s], stroke)
+            self._lines([_ring(x, y, r) * s - self.o], stroke)
             return
         h = stroke.width * s / 2  # Pillow strokes inside the box: centre it on the circle
         self.draw.ellipse((cx - rr - h, cy - rr - h, cx + rr + h, cy + rr + h),
