@@ -11,7 +11,7 @@ same load: ``map`` without ``--out`` (the usage message), ``map --out`` .html, .
 .svg, .png, ``report --out`` .html, .json and .md on a 2-line edge list (``a,b`` / ``b,c``),
 and ``drivers`` as the reference. Then the floors a form cannot go below: the bare
 interpreter, ``import numpy``, and matplotlib's figure with the Agg canvas (what a PNG
-needs). ``--large N``: instead, ``map --out`` .html, .png and .svg on a generated directed
+of a map above the small map's size needs; a small one is painted with Pillow). ``--large N``: instead, ``map --out`` .html, .png and .svg on a generated directed
 Erdős–Rényi network of N states (mean degree 3, seed 1), to check a large map does not
 get slower.
 
