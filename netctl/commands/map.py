@@ -23,8 +23,8 @@ def register(subparsers: Any, common: argparse.ArgumentParser, name: str, help: 
                     "interactive map in one self-contained file (pan, zoom, search, "
                     "details, layers; nothing is fetched when it is opened); .png, .svg "
                     ".pdf a static figure (.svg and .png of up to 2000 states drawn by "
-                    "netctl itself, the same marks and legend); .geojson the states and links with their roles "
-                    "for GIS (RFC 7946); .graphml the network with role attributes. "
+                    "netctl itself, the same marks and legend); .geojson the states and "
+                    "links with their roles for GIS (RFC 7946); .graphml the network with role attributes. "
                     "Positions: the file's x/y or lat/lon, else a layout. Exit status 0 "
                     "when the mapped design is structurally controllable, 1 when not.")
     group = p.add_mutually_exclusive_group()

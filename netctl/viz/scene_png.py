@@ -29,7 +29,7 @@ from netctl.viz.style import MARKS
 
 __all__ = ["can_paint", "font_file", "scene_png"]
 
-#: The supersampled canvas is kept below this many pixels (memory: 3 bytes each).
+#: The supersampled canvases are kept below this many pixels (Pillow: 4 bytes each).
 _CANVAS_PIXELS = 48_000_000
 #: Points on a circle drawn as a polygon (dashed rings and outlines).
 _CIRCLE_POINTS = 72
@@ -91,8 +91,10 @@ def scene_png(scene: Scene, *, width: int, dpi: float) -> bytes | None:
     1000 pixels wide, 3 up to 1400, else 2; less where the canvases would pass 48
     million pixels), only over the boxes it covers (the map, the legend's samples), and
     reduced by box averaging; text is written afterwards at the final size (FreeType
-    anti-aliases it). Opacities are those of the SVG: one line or arrowhead group is painted
-    once (its overlaps are not darker). Cost: linear in the primitives and the pixels.
+    anti-aliases it). Opacities are those of the SVG; each straight piece of a line is
+    blended on its own, so where two see-through links cross the crossing is darker (in
+    the SVG too, except for links of one ``<path>``). Cost: linear in the primitives
+    and the pixels.
     """
     fonts = _font_loader()
     if fonts is None:
@@ -197,9 +199,9 @@ def _boxes(items: tuple[Item, ...], s: float, width: int, height: int
 
 
 def _png(data: bytes, w: int, h: int, dpi: float) -> bytes:
-    """RGB pixels (``h`` rows of ``w``, 3 bytes each) as PNG bytes (ISO/IEC 15948): 8-bit truecolour, the
-    resolution ``dpi`` (pHYs), no time stamp, no text; rows unfiltered (filter type 0)
-    and deflated by zlib. Pillow's encoder tries every row filter on each row, which
+    """RGB pixels (``h`` rows of ``w``, 3 bytes each) as PNG bytes (ISO/IEC 15948):
+    8-bit truecolour, the resolution ``dpi`` (pHYs), no time stamp, no text; rows
+    unfiltered (filter type 0) and deflated by zlib. Pillow's encoder tries every row filter on each row, which
     took about twice as long on these mostly-white pictures."""
     pack = zlib.compressobj(_DEFLATE_LEVEL)
     stride = 3 * w
