@@ -141,7 +141,7 @@ def _transpose_w(fptr, find, fw, tptr, tind, tw):  # pragma: no cover - compiled
 
 
 @njit(cache=True, nogil=True)
-def _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext, head,
+def _sink_prices(tptr, tind, tw, rc, rows, cm, srow, scol, dcol, enode, enext, head,
                  mark, buf):  # pragma: no cover - compiled
     """One backward Dijkstra search (Dial's buckets) from the sink over the residual
     graph: the distance of a row is the least reduced cost of an alternating path from
@@ -158,13 +158,21 @@ def _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext, h
     in memory order (measured: 1.07 s -> 0.65 s a search at 10^7 links, its rounds
     against popping one column at a time; ``benchmarks/RESULTS.md``).
 
-    ``drow``, ``dcol`` (sizes r, n_cols), ``enode``, ``enext`` (bucket entries; any
+    Each entry's reduced cost is read from ``rc`` (column-wise, as ``tind``; kept by
+    :func:`_tight_cols`, saturated at :data:`_RC_TOP`, above which it is computed from
+    the prices), not from the row's price: the entry then costs one random access, to
+    the row's record ``rows[i] = (distance, matched column)`` (one cache line; the
+    caller fills ``rows[:, 1]``). A matched column's distance is always its row's
+    (only that row sets it), so a row that improves needs no read of its column's
+    (measured: 0.63 -> 0.41 s a search at 10^7 links; ``benchmarks/RESULTS.md``).
+
+    ``rows`` (r x 2), ``dcol`` (n_cols), ``enode``, ``enext`` (bucket entries; any
     size), ``head`` (int64, one list head per distance; any size), ``mark`` (bool,
     n_cols) and ``buf`` (n_cols) are work arrays. Returns the largest distance, or -1
     when ``enode``/``enext`` are too short and -2 when ``head`` is: the prices are then
     unchanged, and the caller calls again with longer arrays (no array is reallocated
     in here: a reassigned array in the loop made the search three times slower)."""
-    r = rm.size
+    r = rows.shape[0]
     n_cols = cm.size
     inf = 2 ** 30
     n_heads = head.size
@@ -174,7 +182,7 @@ def _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext, h
     for j in range(n_cols):
         mark[j] = False
     for i in range(r):
-        drow[i] = inf
+        rows[i, 0] = inf
     ne = 0
     for j in range(n_cols):
         if cm[j] < 0:
@@ -226,17 +234,21 @@ def _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext, h
             mj = cm[j]
             for k in range(tptr[j], tptr[j + 1]):
                 i = tind[k]
-                if i == mj:
-                    continue
-                nd = d + tw[k] + srow[i] - sj
-                if nd < drow[i]:
-                    drow[i] = nd
+                red = rc[k]
+                if red == _RC_TOP:
+                    nd = d + np.int64(tw[k]) + srow[i] - sj
+                else:
+                    nd = d + np.int64(red)
+                if nd < rows[i, 0]:
+                    if i == mj:
+                        continue
+                    rows[i, 0] = nd
                     if nd > far:
                         far = nd
-                    c = rm[i]
-                    if c < 0 or nd >= dcol[c]:
+                    c = rows[i, 1]
+                    if c < 0:  # a free row: no column follows
                         continue
-                    dcol[c] = nd
+                    dcol[c] = nd  # it was this row's old distance, which was larger
                     if scan and nd == d and c > j:
                         mark[c] = True  # this round's scan reaches it
                         continue
@@ -251,32 +263,43 @@ def _sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol, enode, enext, h
                     head[nd] = ne
                     ne += 1
     for i in range(r):
-        srow[i] -= drow[i] if drow[i] < far else far
+        srow[i] -= rows[i, 0] if rows[i, 0] < far else far
     for j in range(n_cols):
         scol[j] -= dcol[j] if dcol[j] < far else far
     return far
 
 
-class _SearchWork:
-    """The search's work arrays beyond the distances, kept across phases and lengthened
-    when a search reports them short (:func:`_sink_prices` returns -1 or -2)."""
+#: Reduced costs are kept per entry as int8 up to this value; an entry holding it has
+#: its reduced cost computed from the prices when read (a rare case: reduced costs are
+#: small integers on real networks).
+_RC_TOP = 127
 
-    __slots__ = ("enode", "enext", "head", "mark", "buf")
+
+class _SearchWork:
+    """The search's work arrays beyond the column distances, kept across phases and
+    lengthened when a search reports them short (:func:`_sink_prices` returns -1 or
+    -2)."""
+
+    __slots__ = ("rows", "enode", "enext", "head", "mark", "buf")
 
     def __init__(self, r: int, n_cols: int, dt: type) -> None:
+        self.rows: np.ndarray = np.empty((r, 2), dt)  # (distance, matched column) per row
         self.enode: np.ndarray = np.empty(n_cols + r + 1, dt)  # a column enters once per drop
         self.enext: np.ndarray = np.empty(n_cols + r + 1, dt)
         self.head: np.ndarray = np.empty(256, np.int64)
         self.mark: np.ndarray = np.zeros(n_cols, np.bool_)
         self.buf: np.ndarray = np.empty(n_cols, dt)
 
-    def search(self, tptr: np.ndarray, tind: np.ndarray, tw: np.ndarray, rm: np.ndarray,
-               cm: np.ndarray, srow: np.ndarray, scol: np.ndarray, drow: np.ndarray,
+    def search(self, tptr: np.ndarray, tind: np.ndarray, tw: np.ndarray, rc: np.ndarray,
+               rm: np.ndarray, cm: np.ndarray, srow: np.ndarray, scol: np.ndarray,
                dcol: np.ndarray) -> int:
-        """One :func:`_sink_prices` search, again with longer arrays until they suffice;
-        returns the largest distance."""
+        """One :func:`_sink_prices` search (``rc``: the entries' reduced costs at the
+        current prices, column-wise, as :func:`_tight_cols` keeps them), again with
+        longer arrays until they suffice; returns the largest distance. The rows'
+        distances are left in ``self.rows[:, 0]``."""
+        self.rows[:, 1] = rm
         while True:
-            far = int(_sink_prices(tptr, tind, tw, rm, cm, srow, scol, drow, dcol,
+            far = int(_sink_prices(tptr, tind, tw, rc, self.rows, cm, srow, scol, dcol,
                                    self.enode, self.enext, self.head, self.mark, self.buf))
             if far >= 0:
                 return far
@@ -288,22 +311,38 @@ class _SearchWork:
 
 
 @njit(cache=True, nogil=True)
-def _tight_part(ptr, ind, w, own, other, out_ptr, out_ind, by_rows):  # pragma: no cover
-    """Fill the CSR of the tight edges (zero reduced cost) out of the CSR ``ptr``,
-    ``ind``, ``w`` of all of them: row-wise (``by_rows``: ``own`` the row prices,
-    ``other`` the column prices) or column-wise (``own`` the column prices); returns the
-    number of tight edges. Prices do not change while the tight edges are matched, so
-    the matching reads this smaller copy and no price (measured: 8.6 of 12.5 million
-    edges tight at 10^7 links)."""
+def _tight_rows(fptr, find, fw, srow, scol, out_ptr, out_ind):  # pragma: no cover
+    """Fill the row-wise CSR of the tight edges (zero reduced cost) out of the CSR
+    ``fptr``, ``find``, ``fw`` of all of them; returns their number. Prices do not change
+    while the tight edges are matched, so the matching reads this smaller copy and no
+    price (measured: 8.6 of 12.5 million edges tight at 10^7 links)."""
     pos = 0
-    for a in range(ptr.size - 1):
-        sa = own[a]
-        for k in range(ptr[a], ptr[a + 1]):
-            b = ind[k]
-            if (w[k] + sa == other[b]) if by_rows else (w[k] + other[b] == sa):
-                out_ind[pos] = b
+    for i in range(fptr.size - 1):
+        si = srow[i]
+        for k in range(fptr[i], fptr[i + 1]):
+            j = find[k]
+            if fw[k] + si == scol[j]:
+                out_ind[pos] = j
                 pos += 1
-        out_ptr[a + 1] = pos
+        out_ptr[i + 1] = pos
+    return pos
+
+
+@njit(cache=True, nogil=True)
+def _tight_cols(tptr, tind, tw, srow, scol, out_ptr, out_ind, rc):  # pragma: no cover
+    """:func:`_tight_rows` column-wise, which also stores every entry's reduced cost
+    in ``rc`` (int8, at most :data:`_RC_TOP`) for the next search."""
+    pos = 0
+    for j in range(tptr.size - 1):
+        sj = scol[j]
+        for k in range(tptr[j], tptr[j + 1]):
+            i = tind[k]
+            red = tw[k] + srow[i] - sj
+            rc[k] = red if red < _RC_TOP else _RC_TOP
+            if red == 0:
+                out_ind[pos] = i
+                pos += 1
+        out_ptr[j + 1] = pos
     return pos
 
 
@@ -361,7 +400,7 @@ def _relabel(tptr, tind, rm, cm, psi, queue, inf):  # pragma: no cover - compile
 def _push_relabel(fptr, find, tptr, tind, rm, cm, free, psi, queue,
                   act):  # pragma: no cover - compiled
     """Maximum matching of the tight edges (``fptr``, ``find`` row-wise, ``tptr``,
-    ``tind`` column-wise: :func:`_tight_part`), completed from the current one in place,
+    ``tind`` column-wise: :func:`_tight_rows`, :func:`_tight_cols`), completed from the current one in place,
     by push-relabel with global relabelling [3]_: a free row takes its tight column of
     least label, that column's former row becomes free, and the column's label rises to
     the row's second least label plus two (labels stay lower bounds of the distance to a
@@ -435,13 +474,14 @@ class _TightWork:
         self.tind: np.ndarray = np.empty(size, dt)
 
     def match(self, fptr: np.ndarray, find: np.ndarray, fw: np.ndarray, tptr: np.ndarray,
-              tind: np.ndarray, tw: np.ndarray, rm: np.ndarray, cm: np.ndarray,
-              srow: np.ndarray, scol: np.ndarray, free: np.ndarray, psi: np.ndarray,
-              queue: np.ndarray, act: np.ndarray) -> int:
-        """The tight edges at the current prices, then :func:`_push_relabel` on them;
+              tind: np.ndarray, tw: np.ndarray, rc: np.ndarray, rm: np.ndarray,
+              cm: np.ndarray, srow: np.ndarray, scol: np.ndarray, free: np.ndarray,
+              psi: np.ndarray, queue: np.ndarray, act: np.ndarray) -> int:
+        """The tight edges at the current prices (and every entry's reduced cost in
+        ``rc``, column-wise, for the next search), then :func:`_push_relabel` on them;
         returns the number of rows left free (first in ``free``)."""
-        _tight_part(fptr, find, fw, srow, scol, self.fptr, self.find, True)
-        _tight_part(tptr, tind, tw, scol, srow, self.tptr, self.tind, False)
+        _tight_rows(fptr, find, fw, srow, scol, self.fptr, self.find)
+        _tight_cols(tptr, tind, tw, srow, scol, self.tptr, self.tind, rc)
         return int(_push_relabel(self.fptr, self.find, self.tptr, self.tind, rm, cm, free,
                                  psi, queue, act))
 
@@ -507,9 +547,9 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     matched = np.flatnonzero(rm64 >= 0)
     cm[rm64[matched]] = matched
     del rm64, matched
+    rc = tw.copy()  # every reduced cost at prices 0
     srow = np.zeros(r, dt)
     scol = np.zeros(n_cols, dt)
-    drow = np.empty(r, dt)
     dcol = np.empty(n_cols, dt)
     work = _SearchWork(r, n_cols, dt)
     tight = _TightWork(r, n_cols, size, dt)
@@ -519,11 +559,11 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     if progress is not None:
         progress(0, n_free0)
     while free.size:
-        work.search(tptr, tind, tw, rm, cm, srow, scol, drow, dcol)
+        work.search(tptr, tind, tw, rc, rm, cm, srow, scol, dcol)
         # a maximum matching of the tight edges: every free row whose shortest
         # augmenting path is still vertex-disjoint from the others' is matched
-        n_free = tight.match(fptr, find, fw, tptr, tind, tw, rm, cm, srow, scol, free,
-                             dcol, work.buf, act)  # the search's arrays, reused
+        n_free = tight.match(fptr, find, fw, tptr, tind, tw, rc, rm, cm, srow, scol,
+                             free, dcol, work.buf, act)  # the search's arrays, reused
         if n_free == free.size:  # cannot happen: the dummies make a perfect assignment
             raise RuntimeError(f"stem-cycle cover: a phase matched none of {n_free} free "
                                f"rows (internal error; please report)")

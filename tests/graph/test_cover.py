@@ -210,20 +210,25 @@ def test_each_phase_keeps_the_optimality_conditions_and_matches_every_tight_path
             r, n_cols = rm.size, cm.size
             rows = np.repeat(np.arange(r), np.diff(fptr))
             srow, scol = np.zeros(r, np.int64), np.zeros(n_cols, np.int64)
-            drow, dcol = np.empty(r, np.int64), np.empty(n_cols, np.int64)
+            dcol = np.empty(n_cols, np.int64)
+            rcs = tw.copy()
             work = cov._SearchWork(r, n_cols, np.int64)
             pair = cov._TightWork(r, n_cols, find.size, np.int64)
             act = np.empty(r + 1, np.int64)
             free = np.flatnonzero(rm < 0)
             while free.size:
-                work.search(tptr, tind, tw, rm, cm, srow, scol, drow, dcol)
+                work.search(tptr, tind, tw, rcs, rm, cm, srow, scol, dcol)
                 rc = fw + srow[rows] - scol[find]
                 assert (rc >= 0).all(), trial
                 on = rm[rows] == find
                 assert (rc[on] == 0).all(), trial
                 assert (scol[cm < 0] == 0).all() and (scol <= 0).all(), trial
-                n_free = pair.match(fptr, find, fw, tptr, tind, tw, rm, cm, srow, scol,
-                                    free, dcol, work.buf, act)
+                n_free = pair.match(fptr, find, fw, tptr, tind, tw, rcs, rm, cm, srow,
+                                    scol, free, dcol, work.buf, act)
+                # the reduced costs kept for the next search, column-wise
+                cols = np.repeat(np.arange(n_cols), np.diff(tptr))
+                want_rc = np.minimum(tw + srow[tind] - scol[cols], cov._RC_TOP)
+                assert (rcs == want_rc).all(), trial
                 free = free[:n_free]
                 phases += 1
                 tight = rc == 0
@@ -266,9 +271,9 @@ def _after_one_search(A: sp.csr_array, B: sp.csr_array, work_of=None):
     fptr, find, fw, tptr, tind, tw, rm, cm = _cover_arrays(A, B)
     r, n_cols = rm.size, cm.size
     srow, scol = np.zeros(r, np.int64), np.zeros(n_cols, np.int64)
-    drow, dcol = np.empty(r, np.int64), np.empty(n_cols, np.int64)
+    dcol = np.empty(n_cols, np.int64)
     work = cov._SearchWork(r, n_cols, np.int64) if work_of is None else work_of(r, n_cols)
-    far = work.search(tptr, tind, tw, rm, cm, srow, scol, drow, dcol)
+    far = work.search(tptr, tind, tw, tw.copy(), rm, cm, srow, scol, dcol)
     return (fptr, find, fw, tptr, tind, tw, rm, cm), srow, scol, far, work
 
 
@@ -296,6 +301,47 @@ def test_search_with_short_work_arrays_gives_the_same_prices(mode):
     assert grown > 30
 
 
+@pytest.mark.parametrize("mode", ["python", "compiled"])
+def test_search_computes_saturated_reduced_costs_from_the_prices(mode):
+    # an entry whose kept reduced cost reads _RC_TOP (int8 saturation) has it computed
+    # from the prices instead: after one phase (prices no longer 0), marking random
+    # entries so must not change the next search (the reference is the same search with
+    # every reduced cost kept exactly)
+    rng = np.random.default_rng(23)
+    marked = priced = 0
+    with always_python() if mode == "python" else always_compiled():
+        for trial in range(60):
+            kind = ["chain", "cycles", "sources", "random"][trial % 4]
+            A, B = _shaped_system(kind, int(rng.integers(5, 60)), rng)
+            fptr, find, fw, tptr, tind, tw, rm, cm = _cover_arrays(A, B)
+            r, n_cols = rm.size, cm.size
+            srow, scol = np.zeros(r, np.int64), np.zeros(n_cols, np.int64)
+            dcol = np.empty(n_cols, np.int64)
+            rcs = tw.copy()
+            work = cov._SearchWork(r, n_cols, np.int64)
+            free = np.flatnonzero(rm < 0)
+            if free.size:  # one phase: search, then match the tight edges
+                work.search(tptr, tind, tw, rcs, rm, cm, srow, scol, dcol)
+                pair = cov._TightWork(r, n_cols, find.size, np.int64)
+                pair.match(fptr, find, fw, tptr, tind, tw, rcs, rm, cm, srow, scol, free,
+                           dcol, work.buf, np.empty(r + 1, np.int64))
+            priced += bool((srow != 0).any())
+            out = []
+            for saturate in (False, True):
+                kept = rcs.copy()
+                if saturate:
+                    hit = rng.random(kept.size) < 0.5
+                    kept[hit] = cov._RC_TOP
+                    marked += int(hit.sum())
+                s2, c2 = srow.copy(), scol.copy()
+                far = cov._SearchWork(r, n_cols, np.int64).search(
+                    tptr, tind, tw, kept, rm.copy(), cm.copy(), s2, c2, dcol)
+                out.append((far, s2, c2))
+            assert out[0][0] == out[1][0], trial
+            assert (out[0][1] == out[1][1]).all() and (out[0][2] == out[1][2]).all(), trial
+    assert marked > 100 and priced > 10
+
+
 def test_relabel_gives_breadth_first_distances_of_scipy():
     # exact labels: twice the number of rows on the shortest alternating path of tight
     # edges from each column to a free column; reference: SciPy's unweighted shortest
@@ -314,7 +360,7 @@ def test_relabel_gives_breadth_first_distances_of_scipy():
             inf = 2 * (r + n_cols) + 4
             psi = np.empty(n_cols, np.int64)
             tight = cov._TightWork(r, n_cols, find.size, np.int64)
-            cov._tight_part(tptr, tind, tw, scol, srow, tight.tptr, tight.tind, False)
+            cov._tight_cols(tptr, tind, tw, srow, scol, tight.tptr, tight.tind, tw.copy())
             cov._relabel(tight.tptr, tight.tind, rm, cm, psi, work.buf, inf)
             rows = np.repeat(np.arange(r), np.diff(fptr))
             go = (fw + srow[rows] == scol[find]) & (rm[rows] >= 0) & (rm[rows] != find)
