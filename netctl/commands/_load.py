@@ -220,7 +220,7 @@ def system_with_inputs(args: argparse.Namespace) -> tuple[StructuredSystem, str]
 
     system = load_system(args)
     if args.inputs is not None:
-        return system.with_inputs(system.names_of(parse_names(system, args.inputs))), "inputs: --inputs"
+        return system.with_inputs(parse_names(system, args.inputs)), "inputs: --inputs"
     if system.n_inputs:
         return system, "inputs: from the file"
     design = minimum_inputs(system, dedicated=True)

@@ -51,7 +51,7 @@ def _cmd_check(args: argparse.Namespace) -> int:
                              "one name a line (the file itself declares no inputs or "
                              "outputs).")
     if args.inputs is not None:
-        system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
+        system = system.with_inputs(parse_names(system, args.inputs))
     if args.outputs is not None:
         system = system.with_outputs(system.names_of(
             parse_names(system, args.outputs, what="--outputs")))

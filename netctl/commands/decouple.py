@@ -38,7 +38,7 @@ def _cmd_decouple(args: argparse.Namespace) -> int:
         raise OptionError(f"--fix-candidates must be >= 0, found {args.fix_candidates}.")
     system = load_system(args)
     if args.inputs is not None:
-        system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
+        system = system.with_inputs(parse_names(system, args.inputs))
     against = args.against or ("regulated" if system.n_regulated else "measured")
     if system.n_disturbances == 0:
         raise UsageError(f"{args.file}: the file declares no disturbances, so there is nothing "

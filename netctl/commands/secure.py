@@ -75,18 +75,18 @@ def _cmd_secure(args: argparse.Namespace) -> int:
                              "(audit a design without --place), or add --keep to keep "
                              "them and add to them.")
         if args.inputs is not None:
-            system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
+            system = system.with_inputs(parse_names(system, args.inputs))
         if args.outputs is not None:
-            system = system.with_outputs(system.names_of(parse_names(system, args.outputs, what="--outputs")))
+            system = system.with_outputs(parse_names(system, args.outputs, what="--outputs"))
         return _place(args, system)
     if args.sensors or args.sites or args.against != "elements" or args.method != "auto" \
             or args.keep:
         raise UsageError("--sensors, --sites, --against, --method and --keep go with "
                          "--place; an audit takes --inputs and/or --outputs.")
     if args.inputs is not None:
-        system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
+        system = system.with_inputs(parse_names(system, args.inputs))
     if args.outputs is not None:
-        system = system.with_outputs(system.names_of(parse_names(system, args.outputs, what="--outputs")))
+        system = system.with_outputs(parse_names(system, args.outputs, what="--outputs"))
     kinds = []
     if system.n_inputs:
         kinds.append("inputs")

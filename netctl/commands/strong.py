@@ -61,7 +61,7 @@ def _cmd_strong(args: argparse.Namespace) -> int:
     if args.inputs is not None or (system.n_inputs and not args.search):
         # check the given design, or the one a system description declares (as `check`)
         if args.inputs is not None:
-            system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
+            system = system.with_inputs(parse_names(system, args.inputs))
         rep = strong_controllability(system, diagonal=args.diagonal)
         d: dict[str, Any] = {"file": args.file, "mode": "check", **rep.to_dict(),
                              "notes": notes, "caution": CAUTION}

@@ -94,7 +94,7 @@ def _cmd_sweep(args: argparse.Namespace) -> int:
                          f"(from {', '.join(ATTACK_STRATEGIES)}).")
     system = load_system(args)
     if args.inputs is not None:
-        system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
+        system = system.with_inputs(parse_names(system, args.inputs))
     elements = args.elements or ("grid" if system.elements is not None else "both")
     if elements == "grid":
         return _grid_sweep(args, system)

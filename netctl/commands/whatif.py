@@ -88,7 +88,7 @@ def _cmd_whatif(args: argparse.Namespace) -> int:
                          "and/or --remove-elements.")
     system = load_system(args)
     if args.inputs is not None:
-        system = system.with_inputs(system.names_of(parse_names(system, args.inputs)))
+        system = system.with_inputs(parse_names(system, args.inputs))
     add = _checked(system, args.add_links, "--add-links", new_ok=True)
     rem = _checked(system, args.remove_links, "--remove-links", new_ok=False)
     if system.elements is not None and (add or rem):
