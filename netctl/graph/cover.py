@@ -47,6 +47,7 @@ References
 from __future__ import annotations
 
 from collections.abc import Callable
+from concurrent.futures import ThreadPoolExecutor
 
 import numpy as np
 from netctl._jit import njit
@@ -463,15 +464,19 @@ def _push_relabel(fptr, find, tptr, tind, rm, cm, free, psi, queue,
 
 
 class _TightWork:
-    """The tight edges' CSRs, both ways (sized for every edge, reused by each phase)."""
+    """The tight edges' CSRs, both ways (sized for every edge, reused by each phase).
+    With a ``side`` thread pool, the row-wise copy is made there while this thread
+    makes the column-wise one (both kernels release the GIL)."""
 
-    __slots__ = ("fptr", "find", "tptr", "tind")
+    __slots__ = ("fptr", "find", "tptr", "tind", "side")
 
-    def __init__(self, r: int, n_cols: int, size: int, dt: type) -> None:
+    def __init__(self, r: int, n_cols: int, size: int, dt: type,
+                 side: ThreadPoolExecutor | None = None) -> None:
         self.fptr: np.ndarray = np.zeros(r + 1, dt)
         self.find: np.ndarray = np.empty(size, dt)
         self.tptr: np.ndarray = np.zeros(n_cols + 1, dt)
         self.tind: np.ndarray = np.empty(size, dt)
+        self.side = side
 
     def match(self, fptr: np.ndarray, find: np.ndarray, fw: np.ndarray, tptr: np.ndarray,
               tind: np.ndarray, tw: np.ndarray, rc: np.ndarray, rm: np.ndarray,
@@ -480,10 +485,61 @@ class _TightWork:
         """The tight edges at the current prices (and every entry's reduced cost in
         ``rc``, column-wise, for the next search), then :func:`_push_relabel` on them;
         returns the number of rows left free (first in ``free``)."""
-        _tight_rows(fptr, find, fw, srow, scol, self.fptr, self.find)
+        if self.side is None:
+            _tight_rows(fptr, find, fw, srow, scol, self.fptr, self.find)
+        else:
+            rows_job = self.side.submit(_tight_rows, fptr, find, fw, srow, scol, self.fptr,
+                                        self.find)
         _tight_cols(tptr, tind, tw, srow, scol, self.tptr, self.tind, rc)
+        if self.side is not None:
+            rows_job.result()
         return int(_push_relabel(self.fptr, self.find, self.tptr, self.tind, rm, cm, free,
                                  psi, queue, act))
+
+
+@njit(cache=True, nogil=True)
+def _touch(a):  # pragma: no cover - compiled
+    """Write a zero into every 4 KiB of ``a``, so that the memory is mapped now (on the
+    thread that calls this) rather than at the first write of a kernel."""
+    step = max(1, 4096 // a.itemsize)
+    for k in range(0, a.size, step):
+        a[k] = 0
+
+
+#: From this many entries (with the dummies) on, the set-up beside the maximum matching
+#: and the two tight copies of each phase run on a second thread (measured at 10^7
+#: links: ``benchmarks/RESULTS.md``; below, a thread costs more than it saves: common
+#: practice, no source).
+_SIDE_MIN = 1_000_000
+
+
+class _Arrays:
+    """Everything the phases read and write beside the matching: the rows' CSR with the
+    dummies (``fptr``, ``find``, ``fw``), its column-wise copy (``tptr``, ``tind``,
+    ``tw``), the kept reduced costs ``rc``, the prices and distances, and the search's and
+    tight copies' work arrays, allocated and mapped at once."""
+
+    def __init__(self, ptr: np.ndarray, ind: np.ndarray, loops: np.ndarray, size: int,
+                 n_cols: int, dt: type, side: ThreadPoolExecutor | None) -> None:
+        r = ptr.size - 1
+        self.fptr: np.ndarray = np.zeros(r + 1, dt)
+        self.find: np.ndarray = np.empty(size, dt)
+        self.fw: np.ndarray = np.empty(size, np.int8)
+        _with_dummies(ptr, ind, loops, self.fptr, self.find, self.fw)
+        self.tptr: np.ndarray = np.zeros(n_cols + 1, dt)
+        self.tind: np.ndarray = np.empty(size, dt)
+        self.tw: np.ndarray = np.empty(size, np.int8)
+        _transpose_w(self.fptr, self.find, self.fw, self.tptr, self.tind, self.tw)
+        self.rc: np.ndarray = self.tw.copy()  # every reduced cost at prices 0
+        self.srow: np.ndarray = np.zeros(r, dt)
+        self.scol: np.ndarray = np.zeros(n_cols, dt)
+        self.dcol: np.ndarray = np.empty(n_cols, dt)
+        self.act: np.ndarray = np.empty(r + 1, dt)
+        self.work = _SearchWork(r, n_cols, dt)
+        self.tight = _TightWork(r, n_cols, size, dt, side)
+        for a in (self.dcol, self.act, self.work.rows, self.work.enode, self.work.enext,
+                  self.work.buf, self.tight.find, self.tight.tind):
+            _touch(a)
 
 
 def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
@@ -526,44 +582,47 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     ind = np.ascontiguousarray(indices, np.int64)
     r = ptr.size - 1
     n_cols = int(n_cols)
-    rm64, _ = maximum_matching(ptr, ind, n_cols)
-    if r == 0:
-        return rm64, 0
     loops = np.ascontiguousarray(has_loop, np.bool_)
     size = ind.size + r - int(np.count_nonzero(loops))
     # labels reach 2 (r + n_cols) + 4; distances stay below 2**30
     dt = np.int32 if max(size, 2 * (r + n_cols) + 8) < 2**31 - 4 else np.int64
-    fptr = np.zeros(r + 1, dt)
-    find = np.empty(size, dt)
-    fw = np.empty(size, np.int8)
-    _with_dummies(ptr, ind, loops, fptr, find, fw)
-    del ptr, ind
-    tptr = np.zeros(n_cols + 1, dt)
-    tind = np.empty(size, dt)
-    tw = np.empty(size, np.int8)
-    _transpose_w(fptr, find, fw, tptr, tind, tw)
+    if r == 0:
+        return maximum_matching(ptr, ind, n_cols)[0], 0
+    if size < _SIDE_MIN:
+        rm64, _ = maximum_matching(ptr, ind, n_cols)
+        return _phases(rm64, _Arrays(ptr, ind, loops, size, n_cols, dt, None), loops,
+                       progress)
+    with ThreadPoolExecutor(max_workers=1, thread_name_prefix="netctl-cover") as side:
+        job = side.submit(_Arrays, ptr, ind, loops, size, n_cols, dt, side)
+        rm64, _ = maximum_matching(ptr, ind, n_cols)
+        arrays = job.result()
+        del ptr, ind
+        return _phases(rm64, arrays, loops, progress)
+
+
+def _phases(rm64: np.ndarray, arr: _Arrays, loops: np.ndarray,
+            progress: Callable[[int, int], None] | None) -> tuple[np.ndarray, int]:
+    """The phases of :func:`stem_cycle_cover` from the maximum matching ``rm64`` of the
+    real edges (prices 0)."""
+    r = rm64.size
+    dt = arr.find.dtype
     rm = rm64.astype(dt)
-    cm = np.full(n_cols, -1, dt)
+    cm = np.full(arr.scol.size, -1, dt)
     matched = np.flatnonzero(rm64 >= 0)
     cm[rm64[matched]] = matched
     del rm64, matched
-    rc = tw.copy()  # every reduced cost at prices 0
-    srow = np.zeros(r, dt)
-    scol = np.zeros(n_cols, dt)
-    dcol = np.empty(n_cols, dt)
-    work = _SearchWork(r, n_cols, dt)
-    tight = _TightWork(r, n_cols, size, dt)
-    act = np.empty(r + 1, dt)
     free = np.flatnonzero(rm < 0).astype(dt)
     n_free0 = free.size
     if progress is not None:
         progress(0, n_free0)
     while free.size:
-        work.search(tptr, tind, tw, rc, rm, cm, srow, scol, dcol)
+        arr.work.search(arr.tptr, arr.tind, arr.tw, arr.rc, rm, cm, arr.srow, arr.scol,
+                        arr.dcol)
         # a maximum matching of the tight edges: every free row whose shortest
         # augmenting path is still vertex-disjoint from the others' is matched
-        n_free = tight.match(fptr, find, fw, tptr, tind, tw, rc, rm, cm, srow, scol,
-                             free, dcol, work.buf, act)  # the search's arrays, reused
+        n_free = arr.tight.match(arr.fptr, arr.find, arr.fw, arr.tptr, arr.tind, arr.tw,
+                                 arr.rc, rm, cm, arr.srow, arr.scol, free, arr.dcol,
+                                 arr.work.buf, arr.act)  # the search's arrays, reused
         if n_free == free.size:  # cannot happen: the dummies make a perfect assignment
             raise RuntimeError(f"stem-cycle cover: a phase matched none of {n_free} free "
                                f"rows (internal error; please report)")
