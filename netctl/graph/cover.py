@@ -47,12 +47,13 @@ References
 from __future__ import annotations
 
 from collections.abc import Callable
-from concurrent.futures import ThreadPoolExecutor
+from concurrent.futures import Future, ThreadPoolExecutor
 
 import numpy as np
 from netctl._jit import njit
 
-from netctl.graph.matching import maximum_matching
+from netctl.graph.matching import matching_work, maximum_matching
+from netctl.graph.transpose import index_dtype
 
 __all__ = ["stem_cycle_cover", "accessible_rows"]
 
@@ -87,13 +88,17 @@ def accessible_rows(a_ptr: np.ndarray, a_ind: np.ndarray, b_ptr: np.ndarray,
     """``[A B]`` restricted to the states in ``keep`` (rows and state columns; every
     input kept), as :func:`stem_cycle_cover` takes it: ``(indptr, indices, n_cols,
     has_loop)``, states renumbered in order (``r`` kept states, then the inputs), in one
-    compiled pass over the entries (no link-sized temporaries but the result)."""
+    compiled pass over the entries (no link-sized temporaries but the result). The index
+    arrays are int32 whenever the sizes allow (:func:`~netctl.graph.transpose.index_dtype`:
+    half the memory, and the matching reads them faster)."""
     keep = np.asarray(keep, np.bool_)
     r = int(np.count_nonzero(keep))
     new_id = np.cumsum(keep, dtype=np.int64) - 1
     new_id[~keep] = -1
-    ptr = np.zeros(r + 1, np.int64)
-    ind = np.empty(np.asarray(a_ind).size + np.asarray(b_ind).size, np.int64)
+    total = np.asarray(a_ind).size + np.asarray(b_ind).size
+    dt = index_dtype(r + 1, r + int(n_inputs) + 1, total + 1)
+    ptr: np.ndarray = np.zeros(r + 1, dt)
+    ind: np.ndarray = np.empty(total, dt)
     loop = np.zeros(r, np.bool_)
     size = _restrict(np.ascontiguousarray(a_ptr, np.int64), np.ascontiguousarray(a_ind, np.int64),
                      np.ascontiguousarray(b_ptr, np.int64), np.ascontiguousarray(b_ind, np.int64),
@@ -477,6 +482,8 @@ class _TightWork:
         self.tptr: np.ndarray = np.zeros(n_cols + 1, dt)
         self.tind: np.ndarray = np.empty(size, dt)
         self.side = side
+        _touch(self.find)
+        _touch(self.tind)
 
     def match(self, fptr: np.ndarray, find: np.ndarray, fw: np.ndarray, tptr: np.ndarray,
               tind: np.ndarray, tw: np.ndarray, rc: np.ndarray, rm: np.ndarray,
@@ -514,13 +521,12 @@ _SIDE_MIN = 1_000_000
 
 
 class _Arrays:
-    """Everything the phases read and write beside the matching: the rows' CSR with the
-    dummies (``fptr``, ``find``, ``fw``), its column-wise copy (``tptr``, ``tind``,
-    ``tw``), the kept reduced costs ``rc``, the prices and distances, and the search's and
-    tight copies' work arrays, allocated and mapped at once."""
+    """What the phases read beside the matching: the rows' CSR with the dummies
+    (``fptr``, ``find``, ``fw``), its column-wise copy (``tptr``, ``tind``, ``tw``) and
+    the kept reduced costs ``rc`` (all at prices 0)."""
 
     def __init__(self, ptr: np.ndarray, ind: np.ndarray, loops: np.ndarray, size: int,
-                 n_cols: int, dt: type, side: ThreadPoolExecutor | None) -> None:
+                 n_cols: int, dt: type) -> None:
         r = ptr.size - 1
         self.fptr: np.ndarray = np.zeros(r + 1, dt)
         self.find: np.ndarray = np.empty(size, dt)
@@ -531,15 +537,6 @@ class _Arrays:
         self.tw: np.ndarray = np.empty(size, np.int8)
         _transpose_w(self.fptr, self.find, self.fw, self.tptr, self.tind, self.tw)
         self.rc: np.ndarray = self.tw.copy()  # every reduced cost at prices 0
-        self.srow: np.ndarray = np.zeros(r, dt)
-        self.scol: np.ndarray = np.zeros(n_cols, dt)
-        self.dcol: np.ndarray = np.empty(n_cols, dt)
-        self.act: np.ndarray = np.empty(r + 1, dt)
-        self.work = _SearchWork(r, n_cols, dt)
-        self.tight = _TightWork(r, n_cols, size, dt, side)
-        for a in (self.dcol, self.act, self.work.rows, self.work.enode, self.work.enext,
-                  self.work.buf, self.tight.find, self.tight.tind):
-            _touch(a)
 
 
 def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
@@ -578,8 +575,7 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     push-relabel matching; the phases are few in practice. The work arrays are int32
     whenever the sizes allow (less memory traffic on huge networks).
     """
-    ptr = np.ascontiguousarray(indptr, np.int64)
-    ind = np.ascontiguousarray(indices, np.int64)
+    ptr, ind = _index_array(indptr), _index_array(indices)
     r = ptr.size - 1
     n_cols = int(n_cols)
     loops = np.ascontiguousarray(has_loop, np.bool_)
@@ -589,40 +585,64 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     if r == 0:
         return maximum_matching(ptr, ind, n_cols)[0], 0
     if size < _SIDE_MIN:
-        rm64, _ = maximum_matching(ptr, ind, n_cols)
-        return _phases(rm64, _Arrays(ptr, ind, loops, size, n_cols, dt, None), loops,
-                       progress)
+        rm = matching_work(ptr, ind, n_cols, dtype=dt)[0]
+        return _phases(rm, _Arrays(ptr, ind, loops, size, n_cols, dt), loops, progress,
+                       None)
+    # the second thread builds the arrays beside the maximum matching, maps the tight
+    # copies' memory during the first search (not beside the matching, whose own arrays
+    # are then freed: the peak stays that of one thread) and makes each phase's
+    # row-wise tight copy
     with ThreadPoolExecutor(max_workers=1, thread_name_prefix="netctl-cover") as side:
-        job = side.submit(_Arrays, ptr, ind, loops, size, n_cols, dt, side)
-        rm64, _ = maximum_matching(ptr, ind, n_cols)
+        job = side.submit(_Arrays, ptr, ind, loops, size, n_cols, dt)
+        rm = matching_work(ptr, ind, n_cols, dtype=dt)[0]
         arrays = job.result()
         del ptr, ind
-        return _phases(rm64, arrays, loops, progress)
+        return _phases(rm, arrays, loops, progress, side)
 
 
-def _phases(rm64: np.ndarray, arr: _Arrays, loops: np.ndarray,
-            progress: Callable[[int, int], None] | None) -> tuple[np.ndarray, int]:
-    """The phases of :func:`stem_cycle_cover` from the maximum matching ``rm64`` of the
-    real edges (prices 0)."""
-    r = rm64.size
-    dt = arr.find.dtype
-    rm = rm64.astype(dt)
-    cm = np.full(arr.scol.size, -1, dt)
-    matched = np.flatnonzero(rm64 >= 0)
-    cm[rm64[matched]] = matched
-    del rm64, matched
+def _index_array(a: np.ndarray) -> np.ndarray:
+    """``a`` as a contiguous int32 or int64 array (as given when it is one: no copy)."""
+    a = np.asarray(a)
+    return np.ascontiguousarray(a if a.dtype in (np.int32, np.int64) else a.astype(np.int64))
+
+
+def _phases(rm: np.ndarray, arr: _Arrays, loops: np.ndarray,
+            progress: Callable[[int, int], None] | None,
+            side: ThreadPoolExecutor | None) -> tuple[np.ndarray, int]:
+    """The phases of :func:`stem_cycle_cover` from the maximum matching ``rm`` (of the
+    work type) of the real edges (prices 0); ``rm`` is completed in place."""
+    r = rm.size
+    n_cols = arr.tptr.size - 1
+    dt = arr.find.dtype.type
+    cm = np.full(n_cols, -1, dt)
+    matched = np.flatnonzero(rm >= 0)
+    cm[rm[matched]] = matched
+    del matched
+    srow = np.zeros(r, dt)
+    scol = np.zeros(n_cols, dt)
+    dcol = np.empty(n_cols, dt)
+    act = np.empty(r + 1, dt)
+    work = _SearchWork(r, n_cols, dt)
+    tight: _TightWork | None = None
+    tight_job: Future[_TightWork] | None = None
+    if side is None:
+        tight = _TightWork(r, n_cols, arr.find.size, dt)
+    else:  # mapped on the second thread during the first search
+        tight_job = side.submit(_TightWork, r, n_cols, arr.find.size, dt, side)
     free = np.flatnonzero(rm < 0).astype(dt)
     n_free0 = free.size
     if progress is not None:
         progress(0, n_free0)
     while free.size:
-        arr.work.search(arr.tptr, arr.tind, arr.tw, arr.rc, rm, cm, arr.srow, arr.scol,
-                        arr.dcol)
+        work.search(arr.tptr, arr.tind, arr.tw, arr.rc, rm, cm, srow, scol, dcol)
+        if tight is None:
+            assert tight_job is not None
+            tight = tight_job.result()
         # a maximum matching of the tight edges: every free row whose shortest
         # augmenting path is still vertex-disjoint from the others' is matched
-        n_free = arr.tight.match(arr.fptr, arr.find, arr.fw, arr.tptr, arr.tind, arr.tw,
-                                 arr.rc, rm, cm, arr.srow, arr.scol, free, arr.dcol,
-                                 arr.work.buf, arr.act)  # the search's arrays, reused
+        n_free = tight.match(arr.fptr, arr.find, arr.fw, arr.tptr, arr.tind, arr.tw,
+                             arr.rc, rm, cm, srow, scol, free, dcol, work.buf,
+                             act)  # the search's arrays, reused
         if n_free == free.size:  # cannot happen: the dummies make a perfect assignment
             raise RuntimeError(f"stem-cycle cover: a phase matched none of {n_free} free "
                                f"rows (internal error; please report)")
