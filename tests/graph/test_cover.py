@@ -12,6 +12,7 @@ small random systems, with the kernels run as Python and compiled.
 from __future__ import annotations
 
 import importlib
+from concurrent.futures import ThreadPoolExecutor
 
 import numpy as np
 import pytest
@@ -396,3 +397,9 @@ def test_relabel_gives_breadth_first_distances_of_scipy():
                 d = dijkstra(G, unweighted=True, indices=free, min_only=True)
                 want = np.where(np.isfinite(d), 2 * np.nan_to_num(d, posinf=0), inf)
             assert (psi == want.astype(np.int64)).all(), trial
+            # the same labels with each level split between two threads
+            psi2 = np.empty(n_cols, np.int64)
+            with ThreadPoolExecutor(max_workers=1) as side:
+                cov._relabel_two(tight.tptr, tight.tind, rm, cm, psi2, work.buf.copy(), inf,
+                                 side)
+            assert (psi2 == want.astype(np.int64)).all(), trial
