@@ -28,6 +28,12 @@ three or four (``benchmarks/RESULTS.md``), each one search over the edges, one c
 the tight edges (the matching reads only those: prices do not change within a phase)
 and the matching. Exact.
 
+On large inputs (:data:`_SIDE_MIN` entries) a second thread takes the work that can run
+beside the main line without changing it: building the arrays while the starting
+matching runs, the row-wise tight copy beside the column-wise one, and half of every
+breadth-first level of the global relabellings. Every step gives the same arrays as on
+one thread, so the cover is the same, entry for entry.
+
 References
 ----------
 .. [1] S. Hosoe, "Determination of generic dimensions of controllable subspaces and its
