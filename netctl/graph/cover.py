@@ -368,43 +368,19 @@ def _relabel(tptr, tind, rm, cm, psi, queue, inf):  # pragma: no cover - compile
     found by a scan of the labels) so that their data and edge lists are read in memory
     order (measured: 0.77 s -> 0.50 s a search at 10^7 links; ``benchmarks/RESULTS.md``).
     Returns the number of edges it scanned."""
-    n_cols = cm.size
-    tail = 0
-    for j in range(n_cols):
-        if cm[j] < 0:
-            psi[j] = 0
-            queue[tail] = j
-            tail += 1
-        else:
-            psi[j] = inf
-    big = n_cols // 16  # a larger level is found by a scan rather than sorted
+    n = _first_level(cm, psi, queue, inf)
+    big = cm.size // 16  # a larger level is found by a scan rather than sorted
     head = 0
-    level_end = tail
+    lab = 0
     work = 0
-    while head < tail:
-        if head == level_end:
-            if tail - head > big:
-                lab = psi[queue[head]]
-                t = head
-                for j in range(n_cols):
-                    if psi[j] == lab:
-                        queue[t] = j
-                        t += 1
-            else:
-                queue[head:tail].sort()
-            level_end = tail
-        j = queue[head]
-        head += 1
-        nxt = psi[j] + 2
-        work += tptr[j + 1] - tptr[j]
-        for k in range(tptr[j], tptr[j + 1]):
-            c = rm[tind[k]]
-            if c < 0 or c == j:
-                continue
-            if psi[c] == inf:
-                psi[c] = nxt
-                queue[tail] = c
-                tail += 1
+    while n:
+        lab += 2
+        got, seen = _level_part(tptr, tind, rm, psi, queue, head, head + n, lab, inf,
+                                queue[head + n:])
+        work += seen
+        head += n
+        rest = queue[head:]
+        n = _next_level(psi, lab, rest, got, rest, 0, rest, big)
     return work
 
 
