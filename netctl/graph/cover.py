@@ -154,7 +154,7 @@ def _transpose_w(fptr, find, fw, tptr, tind, tw):  # pragma: no cover - compiled
 
 @njit(cache=True, nogil=True)
 def _sink_prices(tptr, tind, tw, rc, rows, cm, srow, scol, dcol, enode, enext, head,
-                 mark, buf):  # pragma: no cover - compiled
+                 mark, buf, stop):  # pragma: no cover - compiled
     """One backward Dijkstra search (Dial's buckets) from the sink over the residual
     graph: the distance of a row is the least reduced cost of an alternating path from
     it to a free column (a column's is its matched row's: the matched edge is tight).
@@ -212,6 +212,9 @@ def _sink_prices(tptr, tind, tw, rc, rows, cm, srow, scol, dcol, enode, enext, h
     far = 0
     d = 0
     while d <= top:
+        if d >= stop:  # stopped early: every vertex not yet settled takes this distance
+            far = stop
+            break
         if head[d] < 0:
             d += 1
             continue
@@ -304,7 +307,7 @@ class _SearchWork:
 
     def search(self, tptr: np.ndarray, tind: np.ndarray, tw: np.ndarray, rc: np.ndarray,
                rm: np.ndarray, cm: np.ndarray, srow: np.ndarray, scol: np.ndarray,
-               dcol: np.ndarray) -> int:
+               dcol: np.ndarray, cap: int = 2**30) -> int:
         """One :func:`_sink_prices` search (``rc``: the entries' reduced costs at the
         current prices, column-wise, as :func:`_tight_cols` keeps them), again with
         longer arrays until they suffice; returns the largest distance. The rows'
@@ -312,7 +315,8 @@ class _SearchWork:
         self.rows[:, 1] = rm
         while True:
             far = int(_sink_prices(tptr, tind, tw, rc, self.rows, cm, srow, scol, dcol,
-                                   self.enode, self.enext, self.head, self.mark, self.buf))
+                                   self.enode, self.enext, self.head, self.mark, self.buf,
+                                   cap))
             if far >= 0:
                 return far
             if far == -1:
@@ -696,6 +700,12 @@ def _index_array(a: np.ndarray) -> np.ndarray:
     return np.ascontiguousarray(a if a.dtype in (np.int32, np.int64) else a.astype(np.int64))
 
 
+#: A phase searches only to distance 1 once at most 1/_CAP_SHARE of the rows the
+#: starting matching left free are still free (measured at 10^7 links:
+#: ``benchmarks/RESULTS.md``).
+_CAP_SHARE = 128
+
+
 def _phases(rm: np.ndarray, arr: _Arrays, loops: np.ndarray,
             progress: Callable[[int, int], None] | None,
             side: ThreadPoolExecutor | None) -> tuple[np.ndarray, int]:
@@ -723,8 +733,16 @@ def _phases(rm: np.ndarray, arr: _Arrays, loops: np.ndarray,
     n_free0 = free.size
     if progress is not None:
         progress(0, n_free0)
+    capped = stalled = False  # whether the last search stopped at distance 1 (and
+    # its phase matched no row)
     while free.size:
-        work.search(arr.tptr, arr.tind, arr.tw, arr.rc, rm, cm, srow, scol, dcol)
+        # few rows left (nearly always at distance 1): a search that stops after the
+        # distance-0 region (a valid step: unsettled vertices take the cap) makes their
+        # paths tight at a fraction of a full search's work; after a capped phase that
+        # matched none, a full search follows (each full phase matches one row at least)
+        capped = _CAP_SHARE * free.size <= n_free0 and not (capped and stalled)
+        work.search(arr.tptr, arr.tind, arr.tw, arr.rc, rm, cm, srow, scol, dcol,
+                    1 if capped else 2**30)
         if tight is None:
             assert tight_job is not None
             tight = tight_job.result()
@@ -733,7 +751,8 @@ def _phases(rm: np.ndarray, arr: _Arrays, loops: np.ndarray,
         n_free = tight.match(arr.fptr, arr.find, arr.fw, arr.tptr, arr.tind, arr.tw,
                              arr.rc, rm, cm, srow, scol, free, dcol, work.buf,
                              act)  # the search's arrays, reused
-        if n_free == free.size:  # cannot happen: the dummies make a perfect assignment
+        stalled = n_free == free.size
+        if stalled and not capped:  # cannot happen: the dummies make a perfect assignment
             raise RuntimeError(f"stem-cycle cover: a phase matched none of {n_free} free "
                                f"rows (internal error; please report)")
         free = free[:n_free]
