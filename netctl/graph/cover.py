@@ -26,7 +26,11 @@ below it) hold after every step, so the final perfect assignment is optimal what
 order the rows were matched in. On the failing networks netctl targets the phases are
 three or four (``benchmarks/RESULTS.md``), each one search over the edges, one copy of
 the tight edges (the matching reads only those: prices do not change within a phase)
-and the matching. Exact.
+and the matching. Exact. Once few free rows remain (:data:`_CAP_SHARE`), a phase's
+search stops after the distance-0 region and gives every vertex not yet settled
+distance 1 (capped distances keep the reduced costs non-negative): the few rows left are
+nearly always at distance 1, and their paths become tight at a fraction of a full
+search's work.
 
 On large inputs (:data:`_SIDE_MIN` entries) a second thread takes the work that can run
 beside the main line without changing it: building the arrays while the starting
