@@ -95,13 +95,19 @@ FAILING = [  # thousand-state networks with inputs on a few states: many phases,
 ]
 
 
+@pytest.mark.parametrize("stopped", [False, True], ids=["searches", "stopped-searches"])
 @pytest.mark.parametrize("kind, n, degree, n_inputs, random_start", FAILING)
 def test_thousand_state_failing_networks_agree_with_scipy(kind, n, degree, n_inputs,
-                                                          random_start):
+                                                          random_start, stopped,
+                                                          monkeypatch):
     # reference: SciPy's minimum-weight full bipartite matching (LAPJVsp) on the same
-    # costs; each phase's augmentation is restricted to the useful admissible subgraph
+    # costs; each phase's augmentation is restricted to the useful admissible subgraph.
+    # "stopped": every phase's search stops at distance 1 (as the last phases' do,
+    # _CAP_SHARE), and the cover must still be optimal
     from netctl.generate import erdos_renyi, scale_free
 
+    if stopped:
+        monkeypatch.setattr(cov, "_CAP_SHARE", 0)
     rng = np.random.default_rng(random_start)
     if kind == "sf":
         s = scale_free(n, mean_degree=degree, seed=random_start)
@@ -138,29 +144,6 @@ def test_second_thread_gives_the_same_cover(kind, n, degree, n_inputs, random_st
         seen.append(stem_cycle_cover(ptr, ind, n_cols, loops))
     assert (seen[0][0] == seen[1][0]).all() and seen[0][1] == seen[1][1]
     assert int(acc.sum()) - seen[1][1] == ctl._hosoe_dimension_reference(s.A, s.B, acc)
-
-
-@pytest.mark.parametrize("kind, n, degree, n_inputs, random_start", FAILING)
-def test_searches_stopped_at_distance_one_give_the_optimum(kind, n, degree, n_inputs,
-                                                          random_start, monkeypatch):
-    # the last phases search only to distance 1 (_CAP_SHARE); forced here from the
-    # first phase on, the cover must still be optimal: its size equals SciPy's
-    # minimum-weight full bipartite matching (LAPJVsp) on the same costs
-    from netctl.generate import erdos_renyi, scale_free
-
-    monkeypatch.setattr(cov, "_CAP_SHARE", 0)
-    rng = np.random.default_rng(random_start)
-    if kind == "sf":
-        s = scale_free(n, mean_degree=degree, seed=random_start)
-    else:
-        s = erdos_renyi(n, mean_degree=degree, seed=random_start)
-    if kind == "loops":
-        s = s._replace(A=s.A + sp.diags_array((rng.random(n) < 0.5).astype(float)))
-    s = s.with_inputs(rng.choice(n, n_inputs, replace=False).tolist())
-    acc = accessible_states(structure_of(s.A), s.B)
-    with always_compiled():
-        assert ctl._hosoe_dimension(s.A, s.B, acc) == \
-            ctl._hosoe_dimension_reference(s.A, s.B, acc)
 
 
 @settings(max_examples=150, deadline=None)
