@@ -5,18 +5,10 @@ from __future__ import annotations
 import numpy as np
 from netctl._jit import njit
 from netctl.graph._levels import order_by_scan
+from netctl.graph.transpose import index_array
 
 __all__ = ["strongly_connected_components", "condensation_sources", "reachable_from",
            "hops_from", "label_reach", "induced_subgraph", "weak_component_count", "weak_component_labels"]
-
-
-def _index(a: np.ndarray) -> np.ndarray:
-    """Contiguous integer index array: int32 and int64 pass as they are (the kernels are
-    compiled for both), anything else becomes int64."""
-    a = np.asarray(a)
-    if a.dtype == np.int32 or a.dtype == np.int64:
-        return np.ascontiguousarray(a)
-    return np.ascontiguousarray(a, np.int64)
 
 
 @njit(cache=True, nogil=True)
@@ -111,7 +103,7 @@ def strongly_connected_components(indptr: np.ndarray, indices: np.ndarray,
     if n == 0:
         return 0, np.zeros(0, np.int64)
     m = np.ones(n, np.bool_) if mask is None else np.ascontiguousarray(mask, np.bool_)
-    k, labels = _tarjan(_index(indptr), _index(indices), m)
+    k, labels = _tarjan(index_array(indptr), index_array(indices), m)
     return int(k), labels
 
 
@@ -141,7 +133,7 @@ def condensation_sources(in_indptr: np.ndarray, in_indices: np.ndarray, labels: 
     """
     if n_components == 0:
         return np.zeros(0, bool)
-    return _sources(_index(in_indptr), _index(in_indices),
+    return _sources(index_array(in_indptr), index_array(in_indices),
                     np.ascontiguousarray(labels, np.int64), np.int64(n_components))
 
 
@@ -190,11 +182,11 @@ def reachable_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.
     breadth-first search, each level read in vertex order).
     """
     n = out_indptr.size - 1
-    src = _index(sources)
+    src = index_array(sources)
     seen = np.zeros(n, dtype=np.bool_)  # one byte per vertex: this runs on every analysis
     if n == 0 or src.size == 0:
         return seen
-    _reach(_index(out_indptr), _index(out_indices), src, seen)
+    _reach(index_array(out_indptr), index_array(out_indices), src, seen)
     return seen
 
 
@@ -231,10 +223,10 @@ def hops_from(out_indptr: np.ndarray, out_indices: np.ndarray, sources: np.ndarr
     joined to every source, less one, without importing scipy)."""
     n = out_indptr.size - 1
     dist = np.full(n, -1, np.int64)
-    src = _index(sources)
+    src = index_array(sources)
     if n == 0 or src.size == 0:
         return dist
-    _hops(_index(out_indptr), _index(out_indices), src, dist)
+    _hops(index_array(out_indptr), index_array(out_indices), src, dist)
     return dist
 
 
@@ -274,7 +266,7 @@ def label_reach(out_indptr: np.ndarray, out_indices: np.ndarray, seeds: np.ndarr
     labels = np.full(n, -1, np.int64)
     if n == 0 or np.asarray(seeds).size == 0:
         return labels
-    return _label_bfs(_index(out_indptr), _index(out_indices),
+    return _label_bfs(index_array(out_indptr), index_array(out_indices),
                       np.ascontiguousarray(seeds, np.int64),
                       np.ascontiguousarray(seed_labels, np.int64),
                       np.ascontiguousarray(allowed, np.bool_), labels)
@@ -312,7 +304,7 @@ def induced_subgraph(indptr: np.ndarray, indices: np.ndarray,
     verts = np.ascontiguousarray(vertices, np.int64)
     local = np.full(n, -1, np.int32)
     local[verts] = np.arange(verts.size, dtype=np.int32)
-    return _induced(_index(indptr), _index(indices), verts, local)
+    return _induced(index_array(indptr), index_array(indices), verts, local)
 
 
 @njit(cache=True, nogil=True)
@@ -349,7 +341,7 @@ def weak_component_count(indptr: np.ndarray, indices: np.ndarray) -> int:
     if n <= 0:
         return 0
     parent = np.empty(n, np.int32 if n < 2**31 - 1 else np.int64)
-    return int(_weak_count(_index(indptr), _index(indices), parent))
+    return int(_weak_count(index_array(indptr), index_array(indices), parent))
 
 
 def weak_component_labels(indptr: np.ndarray, indices: np.ndarray) -> tuple[int, np.ndarray]:
@@ -361,7 +353,7 @@ def weak_component_labels(indptr: np.ndarray, indices: np.ndarray) -> tuple[int,
     if n <= 0:
         return 0, np.zeros(0, np.int64)
     parent = np.empty(n, np.int32 if n < 2**31 - 1 else np.int64)
-    k = int(_weak_count(_index(indptr), _index(indices), parent))
+    k = int(_weak_count(index_array(indptr), index_array(indices), parent))
     root = parent.astype(np.int64)
     while True:  # pointer jumping: each round at least halves every path
         up = root[root]

@@ -63,7 +63,7 @@ import numpy as np
 from netctl._jit import njit
 
 from netctl.graph.matching import matching_work, maximum_matching
-from netctl.graph.transpose import index_dtype
+from netctl.graph.transpose import index_array, index_dtype
 
 __all__ = ["stem_cycle_cover", "accessible_rows"]
 
@@ -673,7 +673,7 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
     push-relabel matching; the phases are few in practice. The work arrays are int32
     whenever the sizes allow (less memory traffic on huge networks).
     """
-    ptr, ind = _index_array(indptr), _index_array(indices)
+    ptr, ind = index_array(indptr), index_array(indices)
     r = ptr.size - 1
     n_cols = int(n_cols)
     loops = np.ascontiguousarray(has_loop, np.bool_)
@@ -696,12 +696,6 @@ def stem_cycle_cover(indptr: np.ndarray, indices: np.ndarray, n_cols: int,
         arrays = job.result()
         del ptr, ind
         return _phases(rm, arrays, loops, progress, side)
-
-
-def _index_array(a: np.ndarray) -> np.ndarray:
-    """``a`` as a contiguous int32 or int64 array (as given when it is one: no copy)."""
-    a = np.asarray(a)
-    return np.ascontiguousarray(a if a.dtype in (np.int32, np.int64) else a.astype(np.int64))
 
 
 #: A phase searches only to distance 1 once at most 1/_CAP_SHARE of the rows the

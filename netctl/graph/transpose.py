@@ -14,7 +14,17 @@ import numpy as np
 
 from netctl._jit import njit
 
-__all__ = ["transpose_csr", "transpose_index", "index_dtype"]
+__all__ = ["transpose_csr", "transpose_index", "index_dtype", "index_array"]
+
+
+def index_array(a: np.ndarray) -> np.ndarray:
+    """Contiguous integer index array: int32 and int64 pass as they are (no copy when
+    already contiguous; the kernels are compiled for both), anything else becomes
+    int64."""
+    a = np.asarray(a)
+    if a.dtype == np.int32 or a.dtype == np.int64:
+        return np.ascontiguousarray(a)
+    return np.ascontiguousarray(a, np.int64)
 
 
 def index_dtype(n_rows: int, n_cols: int, nnz: int) -> type:
